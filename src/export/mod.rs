@@ -1,0 +1,112 @@
+//! Export stage: writes the network, the plan and the summary, all or nothing.
+//!
+//! Layers are RFC 7946 GeoJSON in WGS84 lon/lat with at most 7 decimals; every file is staged and
+//! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
+
+pub mod geojson;
+pub mod staging;
+pub mod summary;
+
+use crate::network::{Network, cost_to_repair_metres};
+use crate::solve::Plan;
+use crate::solve::components::Components;
+use geojson::{GeoJsonWriter, Prop};
+use std::path::{Path, PathBuf};
+pub use summary::Summary;
+
+/// Errors of the export stage.
+#[derive(Debug, thiserror::Error)]
+pub enum ExportError {
+    /// A file or folder could not be written.
+    #[error("{path}: cannot write: {source}")]
+    Io {
+        /// The output path.
+        path: PathBuf,
+        /// The operating system's error.
+        source: std::io::Error,
+    },
+    /// The output path exists and is not a folder.
+    #[error("{0}: the output path exists and is not a folder")]
+    NotAFolder(PathBuf),
+    /// The output folder already holds outputs and `--force` was not given.
+    #[error("{dir}: already holds outputs ({files}); pass --force to replace them")]
+    WouldReplace {
+        /// The output folder.
+        dir: PathBuf,
+        /// The outputs found.
+        files: String,
+    },
+}
+
+/// Writes `network.geojson`, `plan.geojson` and `summary.json` into `out` as one set.
+pub fn write_outputs(
+    out: &Path,
+    force: bool,
+    net: &Network,
+    comps: &Components,
+    plan: &Plan,
+    summary: &Summary,
+) -> Result<(), ExportError> {
+    let mut st = staging::Staging::begin(out, force)?;
+    st.write("network.geojson", |w| write_edges(w, net, comps, None))?;
+    st.write("plan.geojson", |w| write_edges(w, net, comps, Some(&plan.edges)))?;
+    st.write("summary.json", |w| {
+        serde_json::to_writer_pretty(&mut *w, summary)?;
+        std::io::Write::write_all(w, b"\n")
+    })?;
+    st.commit()
+}
+
+/// Writes the given edges (all when `only` is `None`) as LineString features.
+fn write_edges<W: std::io::Write>(
+    w: W,
+    net: &Network,
+    comps: &Components,
+    only: Option<&[u32]>,
+) -> std::io::Result<()> {
+    let mut gj = GeoJsonWriter::new(w)?;
+    let all: Vec<u32>;
+    let ids = match only {
+        Some(ids) => ids,
+        None => {
+            all = (0..net.edges.len() as u32).collect();
+            &all
+        }
+    };
+    for &e in ids {
+        let edge = &net.edges[e as usize];
+        let meta = &net.features[edge.feature as usize];
+        let damage = match edge.damage.factor() {
+            Some(f) => Prop::Num(f),
+            None => Prop::Str("closed"),
+        };
+        let cost = if edge.usable() {
+            Prop::Fixed3(cost_to_repair_metres(edge.cost))
+        } else {
+            Prop::Null
+        };
+        let component = if edge.usable() {
+            Prop::Int(comps.of[edge.from as usize] as i64)
+        } else {
+            Prop::Null
+        };
+        let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
+        let mut props = vec![
+            ("edge", Prop::Int(e as i64)),
+            ("from", Prop::Int(edge.from as i64)),
+            ("to", Prop::Int(edge.to as i64)),
+            ("length_m", Prop::Fixed3(edge.length_m)),
+            ("damage", damage),
+            ("cost", cost),
+            ("component", component),
+            ("source_index", Prop::Int(meta.source_index as i64)),
+            ("source_id", source_id),
+        ];
+        if only.is_some() {
+            props.push(("repair", Prop::Bool(edge.cost > 0)));
+        }
+        gj.line(&props, net.edge_geometry(e as usize))?;
+    }
+    gj.finish()?;
+    Ok(())
+}

@@ -1,0 +1,120 @@
+//! The run summary (`summary.json`): every figure of the run, its inputs and settings, the cautions.
+//!
+//! It holds no timings or dates, so the same inputs always give the same bytes.
+
+use crate::ingest::source::InputRecord;
+use serde::Serialize;
+use std::collections::BTreeMap;
+
+/// Name and version of the program that wrote the outputs.
+#[derive(Debug, Clone, Serialize)]
+pub struct Tool {
+    /// Always "reknit".
+    pub name: &'static str,
+    /// The crate version.
+    pub version: &'static str,
+}
+
+impl Default for Tool {
+    fn default() -> Self {
+        Tool {
+            name: "reknit",
+            version: env!("CARGO_PKG_VERSION"),
+        }
+    }
+}
+
+/// How coordinates were interpreted and lengths measured.
+#[derive(Debug, Clone, Serialize)]
+pub struct Geodesy {
+    /// Coordinate reference system of the road layer.
+    pub input_crs: String,
+    /// How edge lengths were measured.
+    pub length_method: String,
+    /// Coordinate reference system of every output layer.
+    pub output_crs: String,
+    /// Unit of every length in the outputs.
+    pub length_unit: &'static str,
+}
+
+/// Counts from reading and noding.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Counts {
+    /// Features in the road layer.
+    pub features_read: usize,
+    /// Features that contributed lines.
+    pub features_used: usize,
+    /// Features skipped, by reason.
+    pub features_skipped: BTreeMap<String, usize>,
+    /// Line parts read.
+    pub line_parts: usize,
+    /// Vertices read.
+    pub vertices: usize,
+    /// Vertices moved by snapping.
+    pub vertices_moved: usize,
+    /// Largest snapping move, metres.
+    pub max_move_m: f64,
+    /// Lines that collapsed to a point, dropped.
+    pub zero_length_parts_dropped: usize,
+    /// Duplicate edges dropped.
+    pub duplicate_edges_dropped: usize,
+    /// Junctions in the network.
+    pub junctions: usize,
+    /// Edges in the network.
+    pub edges: usize,
+    /// Edges with damage factor 0.
+    pub edges_intact: usize,
+    /// Edges with damage factor above 0.
+    pub edges_damaged: usize,
+    /// Edges marked impassable.
+    pub edges_closed: usize,
+    /// Connected components of the usable network (isolated junctions included).
+    pub components: usize,
+    /// Total length of all edges, metres.
+    pub network_length_m: f64,
+}
+
+/// What the plan is and what it costs.
+#[derive(Debug, Clone, Serialize)]
+pub struct PlanFigures {
+    /// Plain description of what the plan connects.
+    pub kind: &'static str,
+    /// Algorithm used.
+    pub algorithm: &'static str,
+    /// Trees in the plan (components with at least one edge).
+    pub trees: usize,
+    /// Plan edges that need repair (cost above 0).
+    pub repair_edges: usize,
+}
+
+/// The whole `summary.json`.
+#[derive(Debug, Clone, Serialize)]
+pub struct Summary {
+    /// Program name and version.
+    pub tool: Tool,
+    /// Input files with their SHA-256.
+    pub inputs: Vec<InputRecord>,
+    /// Settings in force.
+    pub settings: serde_json::Value,
+    /// Coordinate handling.
+    pub geodesy: Geodesy,
+    /// Counts from reading and noding.
+    pub counts: Counts,
+    /// Plan description.
+    pub plan: PlanFigures,
+    /// Total repair cost of the plan, repair-metres.
+    pub total_cost: f64,
+    /// Unit of every cost: one metre of road at damage factor 1.0.
+    pub cost_unit: &'static str,
+    /// Length of road to repair in the plan, metres.
+    pub repair_length_m: f64,
+    /// Edges in the plan.
+    pub plan_edges: usize,
+    /// Cautions that go with the plan.
+    pub cautions: Vec<&'static str>,
+}
+
+/// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing.
+pub fn round3(x: f64) -> f64 {
+    (x * 1000.0).round() / 1000.0
+}

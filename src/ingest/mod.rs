@@ -1,0 +1,98 @@
+//! Ingest stage: reads input layers and turns road lines into a topological [`Network`].
+//!
+//! Reading ([`roads`]) streams features into a flat [`LineLayer`]; noding ([`noding`]) merges
+//! vertices within the snapping tolerance, splits lines at shared vertices, drops zero-length pieces
+//! and duplicates, and measures every edge on the ellipsoid. Nothing after this stage touches files.
+
+pub mod coords;
+pub mod damage;
+pub mod geodesy;
+pub mod geojson;
+pub mod noding;
+pub mod roads;
+pub mod source;
+
+use crate::network::Network;
+use std::path::PathBuf;
+
+pub use noding::NodingStats;
+pub use roads::{LineLayer, ReadStats, RoadSettings};
+
+/// Largest snapping tolerance accepted, in metres; more would merge separate roads wholesale.
+pub const MAX_SNAP_M: f64 = 1000.0;
+
+/// Errors of the ingest stage; each names the file and, where it applies, the feature and field.
+#[derive(Debug, thiserror::Error)]
+pub enum IngestError {
+    /// The file could not be opened or read.
+    #[error("{path}: cannot read: {source}")]
+    Io {
+        /// The input file.
+        path: PathBuf,
+        /// The operating system's error.
+        source: std::io::Error,
+    },
+    /// The file is not valid JSON (or not the expected JSON shape).
+    #[error("{path}: {}not valid GeoJSON: {message}", feature.map(|f| format!("feature {f}: ")).unwrap_or_default())]
+    Syntax {
+        /// The input file.
+        path: PathBuf,
+        /// Index of the feature being read, when inside `features`.
+        feature: Option<usize>,
+        /// Parser message with line and column.
+        message: String,
+    },
+    /// The JSON document is not a FeatureCollection.
+    #[error("{path}: not a GeoJSON FeatureCollection: {message}")]
+    NotCollection {
+        /// The input file.
+        path: PathBuf,
+        /// What was found instead.
+        message: String,
+    },
+    /// One feature holds a value that cannot be used.
+    #[error("{path}: feature {feature}{}: {message}", field.as_ref().map(|f| format!(", field \"{f}\"")).unwrap_or_default())]
+    Feature {
+        /// The input file.
+        path: PathBuf,
+        /// 0-based index of the feature.
+        feature: usize,
+        /// The property or member concerned.
+        field: Option<String>,
+        /// What is wrong.
+        message: String,
+    },
+    /// The layer names a coordinate reference system reknit does not support.
+    #[error("{path}: {message}")]
+    Crs {
+        /// The input file.
+        path: PathBuf,
+        /// What is wrong.
+        message: String,
+    },
+    /// The layer holds no usable road lines.
+    #[error("{path}: no road lines found ({detail})")]
+    Empty {
+        /// The input file.
+        path: PathBuf,
+        /// What the layer held instead.
+        detail: String,
+    },
+    /// A setting is out of its valid range.
+    #[error("invalid setting {name}: {message}")]
+    Setting {
+        /// The setting's flag name.
+        name: &'static str,
+        /// What is wrong.
+        message: String,
+    },
+}
+
+/// Reads a road layer and builds its network, returning the statistics of both steps.
+pub fn build_network(
+    layer: LineLayer,
+    settings: &RoadSettings,
+) -> Result<(Network, NodingStats), IngestError> {
+    settings.validate()?;
+    Ok(noding::node(layer, settings.snap_m))
+}

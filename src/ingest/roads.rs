@@ -1,0 +1,299 @@
+//! Reading a road centerline layer into flat arrays of line parts.
+
+use super::damage::DamageRule;
+use super::geojson::{ReadFailure, read_collection};
+use super::source::{InputRecord, Source};
+use super::{IngestError, MAX_SNAP_M};
+use crate::network::FeatureMeta;
+use serde_json::Value;
+use std::collections::BTreeMap;
+use std::path::PathBuf;
+
+/// Property names taken as a feature's id when no `--id-field` is given and it has no `id` member.
+pub const ID_FIELDS: &[&str] = &[
+    "id", "ID", "Id", "osm_id", "fid", "FID", "objectid", "OBJECTID", "ObjectID", "gid", "GID",
+];
+
+/// How road features are read and noded.
+#[derive(Debug, Clone)]
+pub struct RoadSettings {
+    /// Vertices closer than this many metres are merged (0: exact coordinates only).
+    pub snap_m: f64,
+    /// How the damage factor is read.
+    pub damage: DamageRule,
+    /// Property holding each feature's id; `None` looks for the `id` member, then common id fields.
+    pub id_field: Option<String>,
+}
+
+impl Default for RoadSettings {
+    fn default() -> Self {
+        RoadSettings {
+            snap_m: 0.5,
+            damage: DamageRule::default(),
+            id_field: None,
+        }
+    }
+}
+
+impl RoadSettings {
+    /// Checks every setting's range.
+    pub fn validate(&self) -> Result<(), IngestError> {
+        if !self.snap_m.is_finite() || self.snap_m < 0.0 || self.snap_m > MAX_SNAP_M {
+            return Err(IngestError::Setting {
+                name: "--snap",
+                message: format!(
+                    "{} m is outside 0 to {MAX_SNAP_M} m (a tolerance this large would merge separate roads)",
+                    self.snap_m
+                ),
+            });
+        }
+        let d = self.damage.default;
+        if !d.is_finite() || d > super::damage::MAX_FACTOR {
+            return Err(IngestError::Setting {
+                name: "--default-damage",
+                message: format!(
+                    "{d} is not a factor from 0 to {} (negative means closed)",
+                    super::damage::MAX_FACTOR
+                ),
+            });
+        }
+        Ok(())
+    }
+}
+
+/// Counts from reading a layer.
+#[derive(Debug, Clone, Default, serde::Serialize)]
+pub struct ReadStats {
+    /// Features in the file.
+    pub features_read: usize,
+    /// Features that contributed at least one line.
+    pub features_used: usize,
+    /// Features skipped, by reason.
+    pub features_skipped: BTreeMap<String, usize>,
+    /// Line parts read (a MultiLineString contributes one per line).
+    pub line_parts: usize,
+    /// Vertices read.
+    pub vertices: usize,
+}
+
+/// Road lines as flat arrays: the vertices of part `p` are `coords[part_start(p)..part_ends[p]]`.
+#[derive(Debug, Clone, Default)]
+pub struct LineLayer {
+    /// Lon/lat of every vertex of every part.
+    pub coords: Vec<[f64; 2]>,
+    /// End offset of each part in `coords`.
+    pub part_ends: Vec<usize>,
+    /// Index into `features` of each part.
+    pub part_feature: Vec<u32>,
+    /// Attributes of each feature that contributed lines.
+    pub features: Vec<FeatureMeta>,
+    /// Counts from reading.
+    pub stats: ReadStats,
+    /// Path, size and fingerprint of the input.
+    pub input: Option<InputRecord>,
+}
+
+impl LineLayer {
+    /// The vertices of part `p`.
+    pub fn part(&self, p: usize) -> &[[f64; 2]] {
+        let start = if p == 0 { 0 } else { self.part_ends[p - 1] };
+        &self.coords[start..self.part_ends[p]]
+    }
+}
+
+/// Reads a GeoJSON road layer (RFC 7946 FeatureCollection of LineString / MultiLineString).
+pub fn read_geojson_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
+    settings.validate()?;
+    let path = source.display_path();
+    let mut reader = source.open()?;
+    let mut wanted = vec![settings.damage.field.clone()];
+    match &settings.id_field {
+        Some(f) => wanted.push(f.clone()),
+        None => wanted.extend(ID_FIELDS.iter().map(|s| s.to_string())),
+    }
+    let mut layer = LineLayer::default();
+    let info = read_collection(&mut reader, &wanted, |index, f| {
+        add_feature(&mut layer, &path, settings, index, f)
+    })
+    .map_err(|e| match e {
+        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
+            path: path.clone(),
+            feature,
+            message,
+        },
+        ReadFailure::NotCollection(message) => IngestError::NotCollection {
+            path: path.clone(),
+            message,
+        },
+        ReadFailure::Io(source) => IngestError::Io {
+            path: path.clone(),
+            source,
+        },
+        ReadFailure::Callback(e) => e,
+    })?;
+    check_crs_member(&path, info.crs.as_ref())?;
+    let (sha256, bytes) = reader.finish().map_err(|source| IngestError::Io {
+        path: path.clone(),
+        source,
+    })?;
+    layer.stats.features_read = info.features;
+    layer.input = Some(InputRecord {
+        role: "roads".into(),
+        path: path.display().to_string(),
+        bytes,
+        sha256,
+    });
+    if layer.part_ends.is_empty() {
+        let detail = if info.features == 0 {
+            "the FeatureCollection is empty".to_string()
+        } else {
+            let reasons: Vec<String> = layer
+                .stats
+                .features_skipped
+                .iter()
+                .map(|(k, v)| format!("{v} × {k}"))
+                .collect();
+            format!("{} features, all skipped: {}", info.features, reasons.join(", "))
+        };
+        return Err(IngestError::Empty { path, detail });
+    }
+    Ok(layer)
+}
+
+fn add_feature(
+    layer: &mut LineLayer,
+    path: &PathBuf,
+    settings: &RoadSettings,
+    index: usize,
+    f: super::geojson::RawFeature,
+) -> Result<(), IngestError> {
+    let fail = |field: Option<&str>, message: String| IngestError::Feature {
+        path: path.clone(),
+        feature: index,
+        field: field.map(str::to_string),
+        message,
+    };
+    let skip = |layer: &mut LineLayer, reason: String| {
+        *layer.stats.features_skipped.entry(reason).or_default() += 1;
+    };
+    let Some(kind) = f.geometry_type.as_deref() else {
+        skip(layer, "null geometry".into());
+        return Ok(());
+    };
+    let expected_height = match kind {
+        "LineString" => 2,
+        "MultiLineString" => 3,
+        "Point" | "MultiPoint" | "Polygon" | "MultiPolygon" | "GeometryCollection" => {
+            skip(layer, format!("not a line ({kind})"));
+            return Ok(());
+        }
+        other => {
+            return Err(fail(
+                Some("geometry"),
+                format!("unknown geometry type \"{other}\""),
+            ));
+        }
+    };
+    let c = &f.coords;
+    if c.height == 0 {
+        // RFC 7946 §3.1: an empty "coordinates" array may be read as a null geometry.
+        skip(layer, "empty geometry".into());
+        return Ok(());
+    }
+    if c.height != expected_height {
+        return Err(fail(
+            Some("geometry"),
+            format!("a {kind} needs coordinates nested {expected_height} deep, found {}", c.height),
+        ));
+    }
+    for (pi, part) in c.part_slices().enumerate() {
+        if part.len() < 2 {
+            // RFC 7946 §3.1.4: a LineString has two or more positions.
+            return Err(fail(
+                Some("geometry"),
+                format!(
+                    "line {pi} has {} position(s); a LineString needs at least 2 (RFC 7946 §3.1.4)",
+                    part.len()
+                ),
+            ));
+        }
+        for (vi, p) in part.iter().enumerate() {
+            if !(p[0].is_finite() && p[1].is_finite())
+                || p[0].abs() > 180.0
+                || p[1].abs() > 90.0
+            {
+                return Err(fail(
+                    Some("geometry"),
+                    format!(
+                        "line {pi} vertex {vi} ({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90)",
+                        p[0], p[1]
+                    ),
+                ));
+            }
+        }
+    }
+    let field = &settings.damage.field;
+    let damage = settings
+        .damage
+        .interpret(f.prop(field))
+        .map_err(|m| fail(Some(field), m))?;
+    let source_id = feature_id(&f, settings);
+    let fi = layer.features.len() as u32;
+    layer.features.push(FeatureMeta {
+        source_index: index as u32,
+        source_id,
+        damage,
+    });
+    for part in c.part_slices() {
+        layer.coords.extend_from_slice(part);
+        layer.part_ends.push(layer.coords.len());
+        layer.part_feature.push(fi);
+        layer.stats.line_parts += 1;
+        layer.stats.vertices += part.len();
+    }
+    layer.stats.features_used += 1;
+    Ok(())
+}
+
+fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings) -> Option<Value> {
+    let usable = |v: &Value| matches!(v, Value::String(_) | Value::Number(_));
+    if let Some(field) = &settings.id_field {
+        return f.prop(field).filter(|v| usable(v)).cloned();
+    }
+    if let Some(id) = f.id.as_ref().filter(|v| usable(v)) {
+        return Some(id.clone());
+    }
+    ID_FIELDS
+        .iter()
+        .find_map(|k| f.prop(k).filter(|v| usable(v)))
+        .cloned()
+}
+
+/// Accepts a legacy GeoJSON `crs` member only when it names WGS84 lon/lat.
+fn check_crs_member(path: &std::path::Path, crs: Option<&Value>) -> Result<(), IngestError> {
+    let Some(crs) = crs else { return Ok(()) };
+    if crs.is_null() {
+        return Ok(());
+    }
+    let name = crs
+        .pointer("/properties/name")
+        .and_then(Value::as_str)
+        .unwrap_or("");
+    let lonlat = [
+        "urn:ogc:def:crs:OGC:1.3:CRS84",
+        "urn:ogc:def:crs:OGC::CRS84",
+        "urn:ogc:def:crs:EPSG::4326",
+        "EPSG:4326",
+        "CRS84",
+    ];
+    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
+        return Ok(());
+    }
+    Err(IngestError::Crs {
+        path: path.to_path_buf(),
+        message: format!(
+            "the layer declares the coordinate reference system {crs}, which is not WGS84 longitude/latitude; \
+             reproject it to EPSG:4326 (RFC 7946 GeoJSON is always WGS84 lon/lat)"
+        ),
+    })
+}

@@ -1,0 +1,31 @@
+//! reknit: which damaged road segments to repair first so that a district's road network, or its
+//! critical sites, reconnect at the least repair effort.
+//!
+//! # A tour of the stages
+//! Data flows one way:
+//!
+//! 1. [`ingest`] reads a road centerline layer (GeoJSON) feature by feature, reads each road's
+//!    damage, merges vertices within a snapping tolerance, splits lines at shared vertices and measures
+//!    every piece on the WGS84 ellipsoid. The result is a [`Network`].
+//! 2. [`network`] holds junctions and edges in dense arrays with integer costs in
+//!    milli-repair-metres (one repair-metre = one metre of road at damage factor 1.0).
+//! 3. [`solve`] sees only compact edge arrays and returns a [`Plan`]: the minimum spanning forest by
+//!    Kruskal (Prim as an independent check).
+//! 4. [`export`] writes GeoJSON layers and `summary.json` through a staging folder, all or nothing.
+//!
+//! [`job`] strings the stages together for one district; the `reknit` binary is a thin command line
+//! over it.
+
+pub mod cautions;
+pub mod export;
+mod fxhash;
+pub mod ingest;
+pub mod job;
+pub mod network;
+pub mod progress;
+pub mod sample;
+pub mod solve;
+
+pub use job::{JobError, PlanJob, run_plan};
+pub use network::Network;
+pub use solve::Plan;

@@ -1,0 +1,70 @@
+//! Progress on a terminal: spinners per stage, timings with `--verbose`, silence with `--quiet`.
+//!
+//! Bars draw on stderr only when it is a terminal, so piped and batch runs stay clean.
+
+use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
+use std::time::{Duration, Instant};
+
+/// How much a run reports on stderr.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Progress {
+    /// No bars and no notes.
+    pub quiet: bool,
+    /// Stage timings and extra detail.
+    pub verbose: bool,
+}
+
+/// One running stage; finishing (or dropping) it clears its spinner and logs its time in verbose mode.
+pub struct Stage {
+    name: &'static str,
+    bar: ProgressBar,
+    start: Instant,
+    verbose: bool,
+}
+
+impl Progress {
+    /// Starts a stage with a spinner.
+    pub fn stage(&self, name: &'static str) -> Stage {
+        let bar = if self.quiet {
+            ProgressBar::hidden()
+        } else {
+            let b = ProgressBar::with_draw_target(None, ProgressDrawTarget::stderr());
+            b.set_style(
+                ProgressStyle::with_template("{spinner} {msg} {elapsed}")
+                    .unwrap_or_else(|_| ProgressStyle::default_spinner()),
+            );
+            b.set_message(name);
+            b.enable_steady_tick(Duration::from_millis(120));
+            b
+        };
+        Stage {
+            name,
+            bar,
+            start: Instant::now(),
+            verbose: self.verbose && !self.quiet,
+        }
+    }
+
+    /// Prints a note on stderr unless quiet.
+    pub fn note(&self, msg: &str) {
+        if !self.quiet {
+            eprintln!("{msg}");
+        }
+    }
+}
+
+impl Stage {
+    /// Updates the spinner's message.
+    pub fn set_message(&self, msg: String) {
+        self.bar.set_message(msg);
+    }
+}
+
+impl Drop for Stage {
+    fn drop(&mut self) {
+        self.bar.finish_and_clear();
+        if self.verbose {
+            eprintln!("{:>10.3} s  {}", self.start.elapsed().as_secs_f64(), self.name);
+        }
+    }
+}

@@ -1,0 +1,100 @@
+//! Compact graph arrays for the solvers: an edge list with integer costs and a CSR adjacency.
+
+use crate::network::Cost;
+
+/// Cost marking an edge that no plan may use (closed road).
+pub const UNUSABLE: Cost = Cost::MAX;
+
+/// Undirected multigraph as parallel arrays; edge ids are positions.
+#[derive(Debug, Clone, Default)]
+pub struct EdgeList {
+    /// Number of vertices (ids `0..vertices`).
+    pub vertices: usize,
+    /// End vertices of each edge.
+    pub ends: Vec<[u32; 2]>,
+    /// Cost of each edge; [`UNUSABLE`] for edges a plan may not use.
+    pub cost: Vec<Cost>,
+}
+
+impl EdgeList {
+    /// True when edge `e` may be used by a plan and is not a self-loop.
+    #[inline]
+    pub fn usable(&self, e: usize) -> bool {
+        self.cost[e] != UNUSABLE && self.ends[e][0] != self.ends[e][1]
+    }
+
+    /// Number of edges.
+    pub fn len(&self) -> usize {
+        self.ends.len()
+    }
+
+    /// True when there are no edges.
+    pub fn is_empty(&self) -> bool {
+        self.ends.is_empty()
+    }
+
+    /// Sum of the costs of the given edges.
+    pub fn total(&self, edges: &[u32]) -> Cost {
+        edges.iter().map(|&e| self.cost[e as usize]).sum()
+    }
+}
+
+/// Compressed sparse row adjacency over the usable edges of an [`EdgeList`].
+#[derive(Debug, Clone, Default)]
+pub struct Csr {
+    /// `offsets[v]..offsets[v + 1]` indexes `v`'s neighbours.
+    pub offsets: Vec<usize>,
+    /// Neighbour vertex of each adjacency entry.
+    pub target: Vec<u32>,
+    /// Edge id of each adjacency entry.
+    pub edge: Vec<u32>,
+}
+
+impl Csr {
+    /// Builds the adjacency of the usable, non-loop edges, each neighbour list in edge-id order.
+    pub fn from_edges(g: &EdgeList) -> Csr {
+        let n = g.vertices;
+        let mut deg = vec![0usize; n + 1];
+        for e in 0..g.len() {
+            if g.usable(e) {
+                let [a, b] = g.ends[e];
+                deg[a as usize] += 1;
+                deg[b as usize] += 1;
+            }
+        }
+        let mut offsets = vec![0usize; n + 1];
+        for v in 0..n {
+            offsets[v + 1] = offsets[v] + deg[v];
+        }
+        let mut fill = offsets.clone();
+        let m2 = offsets[n];
+        let mut target = vec![0u32; m2];
+        let mut edge = vec![0u32; m2];
+        for e in 0..g.len() {
+            if g.usable(e) {
+                let [a, b] = g.ends[e];
+                for (u, w) in [(a, b), (b, a)] {
+                    let slot = &mut fill[u as usize];
+                    target[*slot] = w;
+                    edge[*slot] = e as u32;
+                    *slot += 1;
+                }
+            }
+        }
+        Csr {
+            offsets,
+            target,
+            edge,
+        }
+    }
+
+    /// Neighbours of `v` as (neighbour, edge id) pairs.
+    #[inline]
+    pub fn neighbours(&self, v: u32) -> impl Iterator<Item = (u32, u32)> + '_ {
+        let r = self.offsets[v as usize]..self.offsets[v as usize + 1];
+        self.target[r.clone()]
+            .iter()
+            .copied()
+            .zip(self.edge[r].iter().copied())
+    }
+}
