@@ -113,7 +113,9 @@ impl Network {
             if g.len() < 2 {
                 return Err(format!("edge {i} has fewer than 2 vertices"));
             }
-            if g[0] != self.junctions[e.from as usize] || g[g.len() - 1] != self.junctions[e.to as usize] {
+            if g[0] != self.junctions[e.from as usize]
+                || g[g.len() - 1] != self.junctions[e.to as usize]
+            {
                 return Err(format!("edge {i} geometry does not end at its junctions"));
             }
             if e.feature as usize >= self.features.len() {

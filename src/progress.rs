@@ -64,7 +64,11 @@ impl Drop for Stage {
     fn drop(&mut self) {
         self.bar.finish_and_clear();
         if self.verbose {
-            eprintln!("{:>10.3} s  {}", self.start.elapsed().as_secs_f64(), self.name);
+            eprintln!(
+                "{:>10.3} s  {}",
+                self.start.elapsed().as_secs_f64(),
+                self.name
+            );
         }
     }
 }

@@ -43,7 +43,8 @@ impl<W: Write> GeoJsonWriter<W> {
     /// Writes a LineString feature.
     pub fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) -> io::Result<()> {
         self.start(props);
-        self.buf.push_str("\"geometry\":{\"type\":\"LineString\",\"coordinates\":[");
+        self.buf
+            .push_str("\"geometry\":{\"type\":\"LineString\",\"coordinates\":[");
         for (i, c) in coords.iter().enumerate() {
             if i > 0 {
                 self.buf.push(',');
@@ -57,7 +58,8 @@ impl<W: Write> GeoJsonWriter<W> {
     /// Writes a Point feature.
     pub fn point(&mut self, props: &[(&str, Prop)], c: [f64; 2]) -> io::Result<()> {
         self.start(props);
-        self.buf.push_str("\"geometry\":{\"type\":\"Point\",\"coordinates\":");
+        self.buf
+            .push_str("\"geometry\":{\"type\":\"Point\",\"coordinates\":");
         push_position(&mut self.buf, c);
         self.buf.push_str("}}");
         self.flush_feature()
@@ -162,7 +164,11 @@ mod tests {
     fn writes_valid_collection() {
         let mut w = GeoJsonWriter::new(Vec::new()).unwrap();
         w.line(
-            &[("a", Prop::Int(1)), ("b", Prop::Str("x\"y")), ("c", Prop::Fixed3(1.0))],
+            &[
+                ("a", Prop::Int(1)),
+                ("b", Prop::Str("x\"y")),
+                ("c", Prop::Fixed3(1.0)),
+            ],
             &[[0.0, 0.0], [1.0, 1.0]],
         )
         .unwrap();

@@ -49,7 +49,9 @@ pub fn write_outputs(
 ) -> Result<(), ExportError> {
     let mut st = staging::Staging::begin(out, force)?;
     st.write("network.geojson", |w| write_edges(w, net, comps, None))?;
-    st.write("plan.geojson", |w| write_edges(w, net, comps, Some(&plan.edges)))?;
+    st.write("plan.geojson", |w| {
+        write_edges(w, net, comps, Some(&plan.edges))
+    })?;
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, summary)?;
         std::io::Write::write_all(w, b"\n")

@@ -72,7 +72,11 @@ impl Staging {
         fs::create_dir_all(out).map_err(io(out))?;
         if let Ok(rd) = fs::read_dir(out) {
             for entry in rd.flatten() {
-                if entry.file_name().to_string_lossy().starts_with(STAGING_PREFIX) {
+                if entry
+                    .file_name()
+                    .to_string_lossy()
+                    .starts_with(STAGING_PREFIX)
+                {
                     let _ = fs::remove_dir_all(entry.path());
                 }
             }
@@ -98,7 +102,10 @@ impl Staging {
     where
         F: FnOnce(&mut BufWriter<File>) -> std::io::Result<()>,
     {
-        debug_assert!(OUTPUT_NAMES.contains(&name), "{name} missing from OUTPUT_NAMES");
+        debug_assert!(
+            OUTPUT_NAMES.contains(&name),
+            "{name} missing from OUTPUT_NAMES"
+        );
         let path = self.dir.join(name);
         let err = |source| ExportError::Io {
             path: self.out.join(name),

@@ -112,7 +112,9 @@ impl<'de> Visitor<'de> for ArrayVisitor<'_> {
         })?;
         match first {
             None if level == 1 => Ok(0),
-            None => Err(de::Error::custom("empty coordinate array inside a geometry")),
+            None => Err(de::Error::custom(
+                "empty coordinate array inside a geometry",
+            )),
             Some(Elem::Num(x)) => {
                 let mut n = 1;
                 let mut y = f64::NAN;

@@ -244,8 +244,20 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<[f64; 2]>) {
         // Neighbouring cells only where the point lies within the tolerance of the shared border.
         let rx = (fx - cx as f64) * cell[0];
         let ry = (fy - cy as f64) * cell[1];
-        let dx = if rx < tol[0] { -1 } else if rx > cell[0] - tol[0] { 1 } else { 0 };
-        let dy = if ry < tol[1] { -1 } else if ry > cell[1] - tol[1] { 1 } else { 0 };
+        let dx = if rx < tol[0] {
+            -1
+        } else if rx > cell[0] - tol[0] {
+            1
+        } else {
+            0
+        };
+        let dy = if ry < tol[1] {
+            -1
+        } else if ry > cell[1] - tol[1] {
+            1
+        } else {
+            0
+        };
         let mut best: Option<(f64, u32)> = None;
         let cells = [(0, 0), (dx, 0), (0, dy), (dx, dy)];
         let used = [true, dx != 0, dy != 0, dx != 0 && dy != 0];

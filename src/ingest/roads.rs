@@ -102,7 +102,10 @@ impl LineLayer {
 }
 
 /// Reads a GeoJSON road layer (RFC 7946 FeatureCollection of LineString / MultiLineString).
-pub fn read_geojson_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
+pub fn read_geojson_roads(
+    source: &Source,
+    settings: &RoadSettings,
+) -> Result<LineLayer, IngestError> {
     settings.validate()?;
     let path = source.display_path();
     let mut reader = source.open()?;
@@ -153,7 +156,11 @@ pub fn read_geojson_roads(source: &Source, settings: &RoadSettings) -> Result<Li
                 .iter()
                 .map(|(k, v)| format!("{v} × {k}"))
                 .collect();
-            format!("{} features, all skipped: {}", info.features, reasons.join(", "))
+            format!(
+                "{} features, all skipped: {}",
+                info.features,
+                reasons.join(", ")
+            )
         };
         return Err(IngestError::Empty { path, detail });
     }
@@ -196,14 +203,19 @@ fn add_feature(
     };
     let c = &f.coords;
     if c.height == 0 {
-        // RFC 7946 §3.1: an empty "coordinates" array may be read as a null geometry.
-        skip(layer, "empty geometry".into());
-        return Ok(());
+        // RFC 7946 §3.1.4 asks two or more positions of every LineString: an empty road is an error.
+        return Err(fail(
+            Some("geometry"),
+            format!("the {kind} has no positions"),
+        ));
     }
     if c.height != expected_height {
         return Err(fail(
             Some("geometry"),
-            format!("a {kind} needs coordinates nested {expected_height} deep, found {}", c.height),
+            format!(
+                "a {kind} needs coordinates nested {expected_height} deep, found {}",
+                c.height
+            ),
         ));
     }
     for (pi, part) in c.part_slices().enumerate() {
@@ -218,10 +230,7 @@ fn add_feature(
             ));
         }
         for (vi, p) in part.iter().enumerate() {
-            if !(p[0].is_finite() && p[1].is_finite())
-                || p[0].abs() > 180.0
-                || p[1].abs() > 90.0
-            {
+            if !(p[0].is_finite() && p[1].is_finite()) || p[0].abs() > 180.0 || p[1].abs() > 90.0 {
                 return Err(fail(
                     Some("geometry"),
                     format!(

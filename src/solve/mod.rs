@@ -118,7 +118,14 @@ mod tests {
         // Two components: a triangle 0-1-2 and an edge 3-4; vertex 5 isolated; edge 6 closed.
         let g = graph(
             6,
-            &[(0, 1, 5), (1, 2, 3), (0, 2, 4), (3, 4, 0), (2, 3, UNUSABLE), (4, 4, 1)],
+            &[
+                (0, 1, 5),
+                (1, 2, 3),
+                (0, 2, 4),
+                (3, 4, 0),
+                (2, 3, UNUSABLE),
+                (4, 4, 1),
+            ],
         );
         for alg in [MstAlgorithm::Kruskal, MstAlgorithm::Prim] {
             let p = minimum_spanning_forest(&g, alg).unwrap();
@@ -136,7 +143,11 @@ mod tests {
 
     fn arb_graph() -> impl Strategy<Value = EdgeList> {
         (1usize..40).prop_flat_map(|n| {
-            let edge = (0..n as u32, 0..n as u32, prop_oneof![4 => 0u64..20, 1 => Just(UNUSABLE)]);
+            let edge = (
+                0..n as u32,
+                0..n as u32,
+                prop_oneof![4 => 0u64..20, 1 => Just(UNUSABLE)],
+            );
             proptest::collection::vec(edge, 0..120).prop_map(move |es| graph(n, &es))
         })
     }

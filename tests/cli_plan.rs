@@ -1,0 +1,204 @@
+//! End-to-end runs of `reknit plan` and `reknit demo`: outputs, determinism, replacing outputs.
+
+mod common;
+use common::*;
+use std::fs;
+
+#[test]
+fn demo_writes_a_complete_consistent_set() {
+    let d = tmp();
+    let out = d.path().join("demo");
+    let o = run(&["demo", "--out", out.to_str().unwrap(), "--quiet"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(o.stderr.is_empty(), "--quiet printed: {}", stderr(&o));
+    assert_eq!(
+        listing(&out),
+        ["network.geojson", "plan.geojson", "summary.json"],
+        "no staging folder may remain"
+    );
+    let net = read_fc(&out.join("network.geojson"));
+    let plan = read_fc(&out.join("plan.geojson"));
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(
+        net.features.len() as u64,
+        s["counts"]["edges"].as_u64().unwrap()
+    );
+    assert_eq!(
+        plan.features.len() as u64,
+        s["plan_edges"].as_u64().unwrap()
+    );
+    // Forest size (common practice, no source): junctions − components edges.
+    assert_eq!(
+        s["plan_edges"].as_u64().unwrap(),
+        s["counts"]["junctions"].as_u64().unwrap() - s["counts"]["components"].as_u64().unwrap()
+    );
+    let total: f64 = plan
+        .features
+        .iter()
+        .map(|f| f.property("cost").unwrap().as_f64().unwrap())
+        .sum();
+    assert!((total - s["total_cost"].as_f64().unwrap()).abs() < 1e-6);
+    assert_eq!(s["cost_unit"], "repair-metre");
+    assert_eq!(s["cautions"].as_array().unwrap().len(), 4);
+    for f in &net.features {
+        for key in [
+            "edge",
+            "from",
+            "to",
+            "length_m",
+            "damage",
+            "cost",
+            "component",
+            "source_index",
+            "source_id",
+        ] {
+            assert!(f.contains_property(key), "missing {key}");
+        }
+        // RFC 7946 §3.1.4 and §4: LineStrings of lon/lat positions.
+        match &f.geometry.as_ref().unwrap().value {
+            geojson::GeometryValue::LineString { coordinates: c } => {
+                assert!(c.len() >= 2);
+                for p in c {
+                    assert!(p[0].abs() <= 180.0 && p[1].abs() <= 90.0);
+                }
+            }
+            other => panic!("{other:?}"),
+        }
+    }
+    for f in &plan.features {
+        let repair = f.property("repair").unwrap().as_bool().unwrap();
+        let cost = f.property("cost").unwrap().as_f64().unwrap();
+        assert_eq!(repair, cost > 0.0);
+    }
+}
+
+#[test]
+fn outputs_are_byte_identical_across_runs_and_thread_counts() {
+    let d = tmp();
+    let mut sets = Vec::new();
+    for threads in ["1", "2", "2"] {
+        let out = d.path().join(format!("t{}", sets.len()));
+        let o = reknit()
+            .env("RAYON_NUM_THREADS", threads)
+            .args(["plan", "--roads", sample_roads().to_str().unwrap(), "--out"])
+            .arg(&out)
+            .arg("--quiet")
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", stderr(&o));
+        let files: Vec<Vec<u8>> = ["network.geojson", "plan.geojson", "summary.json"]
+            .iter()
+            .map(|n| fs::read(out.join(n)).unwrap())
+            .collect();
+        sets.push(files);
+    }
+    assert_eq!(sets[0], sets[1], "1 thread vs 2 threads");
+    assert_eq!(sets[1], sets[2], "run vs rerun");
+}
+
+#[test]
+fn prim_and_kruskal_give_the_same_total() {
+    let d = tmp();
+    let mut totals = Vec::new();
+    for alg in ["kruskal", "prim"] {
+        let out = d.path().join(alg);
+        let o = run(&[
+            "demo",
+            "--out",
+            out.to_str().unwrap(),
+            "--quiet",
+            "--mst",
+            alg,
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        totals.push(
+            read_json(&out.join("summary.json"))["total_cost"]
+                .as_f64()
+                .unwrap(),
+        );
+    }
+    assert_eq!(totals[0], totals[1]);
+}
+
+#[test]
+fn existing_outputs_need_force() {
+    let d = tmp();
+    let out = d.path().join("o");
+    let out_s = out.to_str().unwrap();
+    assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
+    let before = fs::read(out.join("summary.json")).unwrap();
+    let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
+    assert_eq!(
+        fs::read(out.join("summary.json")).unwrap(),
+        before,
+        "left untouched"
+    );
+    let o = run(&["demo", "--out", out_s, "-q", "--snap", "1", "--force"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["settings"]["snap_m"], 1.0);
+    assert_eq!(listing(&out).len(), 3);
+}
+
+#[test]
+fn summary_records_input_fingerprint() {
+    let d = tmp();
+    let out = d.path().join("o");
+    let roads = sample_roads();
+    let o = run(&[
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    let input = &s["inputs"][0];
+    assert_eq!(
+        input["bytes"].as_u64().unwrap(),
+        fs::metadata(&roads).unwrap().len()
+    );
+    // Independent digest: the sha256sum tool (GNU coreutils), when present.
+    if let Ok(o) = std::process::Command::new("sha256sum").arg(&roads).output() {
+        let text = String::from_utf8_lossy(&o.stdout);
+        assert_eq!(
+            input["sha256"].as_str().unwrap(),
+            text.split_whitespace().next().unwrap()
+        );
+    }
+}
+
+#[test]
+fn help_explains_every_flag() {
+    let o = run(&["help", "plan"]);
+    let text = String::from_utf8_lossy(&o.stdout);
+    for flag in [
+        "--roads",
+        "--out",
+        "--snap",
+        "--damage-field",
+        "--default-damage",
+        "--closed-value",
+        "--id-field",
+        "--mst",
+        "--force",
+        "--quiet",
+        "--verbose",
+    ] {
+        assert!(text.contains(flag), "help lacks {flag}");
+    }
+    assert!(run(&["--help"]).status.success());
+    assert!(run(&["demo", "--help"]).status.success());
+}
+
+#[test]
+fn readme_carries_the_cautions() {
+    let readme = fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    for c in reknit::cautions::CAUTIONS {
+        assert!(readme.contains(c), "README lacks caution: {c}");
+    }
+}

@@ -1,0 +1,134 @@
+//! One harness for the end-to-end tests: runs the binary, makes fixtures, finds shared data and peers.
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// The reknit binary under test.
+pub fn reknit() -> Command {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_reknit"));
+    c.env_remove("RAYON_NUM_THREADS");
+    c
+}
+
+/// Runs reknit with `args`.
+pub fn run(args: &[&str]) -> Output {
+    reknit().args(args).output().expect("run reknit")
+}
+
+/// Stderr as text.
+pub fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+/// A fresh temporary folder.
+pub fn tmp() -> tempfile::TempDir {
+    tempfile::tempdir().expect("tempdir")
+}
+
+/// Path to a file under the shared data folder, or `None` (with a note) when it is absent.
+pub fn shared(rel: &str) -> Option<PathBuf> {
+    let root = std::env::var_os("REKNIT_SHARED")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared"));
+    let p = root.join(rel);
+    if p.exists() {
+        Some(p)
+    } else {
+        eprintln!("SKIP: shared data {} is absent", p.display());
+        None
+    }
+}
+
+/// A Python interpreter that can import every module in `modules`, or `None` (with a note).
+pub fn python_with(modules: &[&str]) -> Option<PathBuf> {
+    let candidates = [
+        std::env::var_os("REKNIT_PYTHON").map(PathBuf::from),
+        Some(Path::new(env!("CARGO_MANIFEST_DIR")).join("target/py-peers/bin/python")),
+        Some(PathBuf::from("python3")),
+    ];
+    let probe = format!("import {}", modules.join(", "));
+    for c in candidates.into_iter().flatten() {
+        let ok = Command::new(&c)
+            .args(["-c", &probe])
+            .output()
+            .map(|o| o.status.success())
+            .unwrap_or(false);
+        if ok {
+            return Some(c);
+        }
+    }
+    eprintln!(
+        "SKIP: no Python with {} (run scripts/test to install the peers)",
+        modules.join(", ")
+    );
+    None
+}
+
+/// A project script's path.
+pub fn script(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("scripts")
+        .join(name)
+}
+
+/// The bundled sample road layer.
+pub fn sample_roads() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/kestrel-vale/roads.geojson")
+}
+
+/// A LineString feature with the given coordinates and properties (JSON text).
+pub fn line(coords: &[[f64; 2]], props: &str) -> String {
+    let c: Vec<String> = coords
+        .iter()
+        .map(|p| format!("[{},{}]", p[0], p[1]))
+        .collect();
+    format!(
+        r#"{{"type":"Feature","properties":{props},"geometry":{{"type":"LineString","coordinates":[{}]}}}}"#,
+        c.join(",")
+    )
+}
+
+/// Writes a FeatureCollection of the given feature texts to `dir/name`.
+pub fn write_collection(dir: &Path, name: &str, features: &[String]) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(
+        &p,
+        format!(
+            r#"{{"type":"FeatureCollection","features":[{}]}}"#,
+            features.join(",")
+        ),
+    )
+    .unwrap();
+    p
+}
+
+/// Parses a GeoJSON file with the geojson crate (an independent reader) into a FeatureCollection.
+pub fn read_fc(p: &Path) -> geojson::FeatureCollection {
+    let text = std::fs::read_to_string(p).unwrap();
+    match text.parse::<geojson::GeoJson>().unwrap() {
+        geojson::GeoJson::FeatureCollection(fc) => fc,
+        other => panic!("{}: not a FeatureCollection: {other:?}", p.display()),
+    }
+}
+
+/// Parses a JSON file.
+pub fn read_json(p: &Path) -> serde_json::Value {
+    serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
+}
+
+/// Names of the entries of a folder, sorted (empty when it does not exist).
+pub fn listing(dir: &Path) -> Vec<String> {
+    let mut v: Vec<String> = std::fs::read_dir(dir)
+        .map(|rd| {
+            rd.flatten()
+                .map(|e| e.file_name().to_string_lossy().into_owned())
+                .collect()
+        })
+        .unwrap_or_default();
+    v.sort();
+    v
+}
+
+/// Metres per degree at latitude 0 (rough, for placing fixtures a few metres apart).
+pub const DEG_PER_M: f64 = 1.0 / 111_320.0;
