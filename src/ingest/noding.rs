@@ -3,7 +3,8 @@
 //! 1. Vertices are clustered: each vertex joins the nearest existing cluster centre within the
 //!    snapping tolerance, or starts a new cluster (input order decides, so the result is deterministic
 //!    and no vertex moves farther than the tolerance).
-//! 2. A cluster is a junction when it ends a line or is visited more than once.
+//! 2. A cluster is a junction when it ends a line or when the distinct segments meeting there are not
+//!    exactly two (a crossing, a branch or a dead end).
 //! 3. Lines are split at junctions into edges; exact duplicate edges and collapsed lines are dropped.
 //! 4. Edge lengths are measured on the ellipsoid, in parallel.
 
@@ -70,27 +71,38 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
     }
     drop(cid);
 
-    // Junctions: line ends and clusters visited more than once.
-    let mut visits = vec![0u8; centres.len()];
+    // Junctions: line ends, and clusters where the distinct road segments meeting there are not
+    // exactly two (so duplicated or overlapping lines do not turn their shared vertices into junctions).
+    let mut segs: Vec<u64> = Vec::with_capacity(seq.len());
     let mut is_end = vec![false; centres.len()];
     let mut s0 = 0;
     for &e in &seq_ends {
-        for &c in &seq[s0..e] {
-            visits[c as usize] = visits[c as usize].saturating_add(1);
+        for w in seq[s0..e].windows(2) {
+            let (a, b) = (w[0].min(w[1]) as u64, w[0].max(w[1]) as u64);
+            segs.push(a << 32 | b);
         }
         is_end[seq[s0] as usize] = true;
         is_end[seq[e - 1] as usize] = true;
         s0 = e;
     }
+    segs.par_sort_unstable();
+    segs.dedup();
+    let mut degree = vec![0u8; centres.len()];
+    for &k in &segs {
+        for c in [k >> 32, k & 0xFFFF_FFFF] {
+            degree[c as usize] = degree[c as usize].saturating_add(1);
+        }
+    }
+    drop(segs);
     let mut junction_of = vec![u32::MAX; centres.len()];
     let mut junctions = Vec::new();
     for c in 0..centres.len() {
-        if is_end[c] || visits[c] >= 2 {
+        if is_end[c] || degree[c] != 2 {
             junction_of[c] = junctions.len() as u32;
             junctions.push(centres[c]);
         }
     }
-    drop(visits);
+    drop(degree);
     drop(is_end);
 
     // Split at junctions into pieces (ranges of `seq`), dropping duplicates.

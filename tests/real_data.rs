@@ -1,0 +1,189 @@
+//! Checks against real open data and general-purpose reference tools.
+//!
+//! Data: ../shared/data/roads/liechtenstein (OpenStreetMap extract 2015-10-06, © OpenStreetMap
+//! contributors, ODbL 1.0). Peers: networkx, pyosmium, geographiclib (PyPI), GDAL's ogrinfo.
+//! Each test skips with a message when its data or peer is absent.
+
+mod common;
+use common::*;
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+const LI_GEOJSON: &str = "data/roads/liechtenstein/liechtenstein_highways.geojson";
+const LI_PBF: &str = "data/roads/liechtenstein/liechtenstein-2015-10-06.osm.pbf";
+
+/// Plans the Liechtenstein layer into a temporary folder with extra flags.
+fn plan_liechtenstein(d: &Path, name: &str, extra: &[&str]) -> Option<PathBuf> {
+    let roads = shared(LI_GEOJSON)?;
+    let out = d.join(name);
+    let mut args = vec![
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ];
+    args.extend_from_slice(extra);
+    let o = run(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    Some(out)
+}
+
+fn python_json(py: &Path, script_name: &str, arg: &Path) -> serde_json::Value {
+    let o = Command::new(py)
+        .arg(script(script_name))
+        .arg(arg)
+        .output()
+        .unwrap();
+    assert!(
+        o.status.success(),
+        "{script_name}: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    serde_json::from_slice(&o.stdout).unwrap()
+}
+
+fn milli(v: &serde_json::Value) -> u64 {
+    (v.as_f64().unwrap() * 1000.0).round() as u64
+}
+
+#[test]
+fn forest_total_matches_networkx_and_prim_on_liechtenstein() {
+    let d = tmp();
+    let Some(out) = plan_liechtenstein(d.path(), "k", &[]) else {
+        return;
+    };
+    let s = read_json(&out.join("summary.json"));
+    let ours = milli(&s["total_cost"]);
+    // Independent implementation in the same binary.
+    let prim = plan_liechtenstein(d.path(), "p", &["--mst", "prim"]).unwrap();
+    assert_eq!(
+        milli(&read_json(&prim.join("summary.json"))["total_cost"]),
+        ours
+    );
+    // Reference library: networkx minimum_spanning_tree (Kruskal) on the same edge list.
+    let Some(py) = python_with(&["networkx"]) else {
+        return;
+    };
+    let nx = python_json(&py, "peer_msf_networkx.py", &out.join("network.geojson"));
+    assert_eq!(nx["total_milli"].as_u64().unwrap(), ours, "networkx total");
+    assert_eq!(
+        nx["edges"].as_u64().unwrap(),
+        s["plan_edges"].as_u64().unwrap()
+    );
+}
+
+#[test]
+fn noding_matches_osm_node_topology() {
+    // OSM ways share junctions by node id; pyosmium reads the original .osm.pbf independently.
+    let d = tmp();
+    let Some(pbf) = shared(LI_PBF) else { return };
+    let Some(out) = plan_liechtenstein(d.path(), "s0", &["--snap", "0"]) else {
+        return;
+    };
+    let Some(py) = python_with(&["osmium"]) else {
+        return;
+    };
+    let osm = python_json(&py, "peer_osm_topology.py", &pbf);
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["counts"]["features_read"], osm["ways"]);
+    assert_eq!(s["counts"]["edges"], osm["edges"]);
+    assert_eq!(s["counts"]["junctions"], osm["junctions"]);
+    let net = read_fc(&out.join("network.geojson"));
+    let mut degree: HashMap<i64, usize> = HashMap::new();
+    for f in &net.features {
+        for k in ["from", "to"] {
+            *degree
+                .entry(f.property(k).unwrap().as_i64().unwrap())
+                .or_default() += 1;
+        }
+    }
+    let junctions = s["counts"]["junctions"].as_i64().unwrap();
+    let not2 = (0..junctions)
+        .filter(|j| degree.get(j).copied().unwrap_or(0) != 2)
+        .count();
+    assert_eq!(not2 as u64, osm["junctions_degree_not_2"].as_u64().unwrap());
+    // The default snap merges the extract's near-coincident vertices, so it changes the graph.
+    let def = plan_liechtenstein(d.path(), "s05", &[]).unwrap();
+    let sd = read_json(&def.join("summary.json"));
+    assert!(sd["counts"]["vertices_moved"].as_u64().unwrap() > 0);
+}
+
+#[test]
+fn edge_lengths_match_geographiclib_within_a_millimetre() {
+    // Reference: geographiclib (Karney's geodesic algorithms, PyPI) on every edge of a real network.
+    let d = tmp();
+    let Some(out) = plan_liechtenstein(d.path(), "g", &[]) else {
+        return;
+    };
+    let Some(py) = python_with(&["geographiclib"]) else {
+        return;
+    };
+    let o = Command::new(&py)
+        .arg(script("peer_geodesic_lengths.py"))
+        .arg(out.join("network.geojson"))
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let reference: HashMap<i64, f64> = String::from_utf8_lossy(&o.stdout)
+        .lines()
+        .map(|l| {
+            let mut it = l.split_whitespace();
+            (
+                it.next().unwrap().parse().unwrap(),
+                it.next().unwrap().parse().unwrap(),
+            )
+        })
+        .collect();
+    let net = read_fc(&out.join("network.geojson"));
+    assert_eq!(reference.len(), net.features.len());
+    let mut worst: f64 = 0.0;
+    for f in &net.features {
+        let e = f.property("edge").unwrap().as_i64().unwrap();
+        let ours = f.property("length_m").unwrap().as_f64().unwrap();
+        worst = worst.max((ours - reference[&e]).abs());
+    }
+    // length_m is printed to the millimetre, so rounding alone may account for 0.5 mm.
+    assert!(worst <= 0.001, "worst difference {worst} m");
+}
+
+#[test]
+fn demo_layers_open_in_ogrinfo() {
+    // Reference reader: GDAL's ogrinfo (Debian package gdal-bin).
+    if Command::new("ogrinfo").arg("--version").output().is_err() {
+        eprintln!("SKIP: ogrinfo is absent (apt-get install gdal-bin)");
+        return;
+    }
+    let d = tmp();
+    let out = d.path().join("demo");
+    assert!(
+        run(&["demo", "--out", out.to_str().unwrap(), "-q"])
+            .status
+            .success()
+    );
+    let s = read_json(&out.join("summary.json"));
+    for (file, count) in [
+        ("network.geojson", s["counts"]["edges"].as_u64().unwrap()),
+        ("plan.geojson", s["plan_edges"].as_u64().unwrap()),
+    ] {
+        let o = Command::new("ogrinfo")
+            .args(["-ro", "-so", "-al"])
+            .arg(out.join(file))
+            .output()
+            .unwrap();
+        let text = String::from_utf8_lossy(&o.stdout);
+        assert!(
+            o.status.success(),
+            "{file}: {}",
+            String::from_utf8_lossy(&o.stderr)
+        );
+        assert!(
+            text.contains(&format!("Feature Count: {count}")),
+            "{file}: {text}"
+        );
+        assert!(text.contains("Geometry: Line String"), "{file}: {text}");
+        assert!(text.contains("WGS 84"), "{file}: {text}");
+    }
+}
