@@ -90,7 +90,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         network_length += e.length_m;
         match e.damage.factor() {
             None => counts.edges_closed += 1,
-            Some(f) if f == 0.0 => counts.edges_intact += 1,
+            Some(0.0) => counts.edges_intact += 1,
             Some(_) => counts.edges_damaged += 1,
         }
     }

@@ -25,6 +25,7 @@ pub mod network;
 pub mod progress;
 pub mod sample;
 pub mod solve;
+pub mod synthetic;
 
 pub use job::{JobError, PlanJob, run_plan};
 pub use network::Network;

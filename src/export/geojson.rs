@@ -99,50 +99,112 @@ fn push_prop(buf: &mut String, v: &Prop) {
     match v {
         Prop::Null => buf.push_str("null"),
         Prop::Int(i) => {
-            let _ = write!(buf, "{i}");
+            if *i < 0 {
+                buf.push('-');
+            }
+            push_digits(buf, i.unsigned_abs(), 1);
         }
-        Prop::Fixed3(x) if x.is_finite() => buf.push_str(&fixed(*x, 3)),
-        Prop::Num(x) if x.is_finite() => buf.push_str(&trimmed(*x, 6)),
-        Prop::Fixed3(_) | Prop::Num(_) => buf.push_str("null"),
+        Prop::Fixed3(x) => push_decimal(buf, *x, 3, false),
+        Prop::Num(x) => push_decimal(buf, *x, 6, true),
         Prop::Str(s) => push_json_str(buf, s),
         Prop::Bool(b) => buf.push_str(if *b { "true" } else { "false" }),
+        Prop::Json(Value::String(s)) => push_json_str(buf, s),
+        Prop::Json(Value::Number(n)) => {
+            let _ = write!(buf, "{n}");
+        }
         Prop::Json(v) => buf.push_str(&v.to_string()),
     }
 }
 
 fn push_json_str(buf: &mut String, s: &str) {
-    buf.push_str(&Value::from(s).to_string());
+    if s.bytes().all(|b| b >= 0x20 && b != b'"' && b != b'\\') {
+        buf.push('"');
+        buf.push_str(s);
+        buf.push('"');
+    } else {
+        buf.push_str(&Value::from(s).to_string());
+    }
 }
 
 fn push_position(buf: &mut String, c: [f64; 2]) {
     buf.push('[');
-    buf.push_str(&trimmed(c[0], 7));
+    push_decimal(buf, c[0], 7, true);
     buf.push(',');
-    buf.push_str(&trimmed(c[1], 7));
+    push_decimal(buf, c[1], 7, true);
     buf.push(']');
+}
+
+const POW10: [u64; 10] = [
+    1,
+    10,
+    100,
+    1_000,
+    10_000,
+    100_000,
+    1_000_000,
+    10_000_000,
+    100_000_000,
+    1_000_000_000,
+];
+
+/// Appends `x` rounded to `decimals` (at most 9) decimals, optionally without trailing zeros.
+/// Non-finite values print as `null`; negative zero prints as zero.
+pub fn push_decimal(buf: &mut String, x: f64, decimals: usize, trim: bool) {
+    use std::fmt::Write as _;
+    if !x.is_finite() {
+        buf.push_str("null");
+        return;
+    }
+    let scaled = (x * POW10[decimals] as f64).round();
+    if scaled.abs() >= 9.0e15 {
+        // Beyond exact integers in f64: let the standard formatter handle it.
+        let _ = write!(buf, "{:.*}", decimals, x);
+        return;
+    }
+    let v = scaled.abs() as u64;
+    if v != 0 && scaled < 0.0 {
+        buf.push('-');
+    }
+    let mut d = decimals;
+    let int = v / POW10[d];
+    let mut frac = v % POW10[d];
+    push_digits(buf, int, 1);
+    if trim {
+        while d > 0 && frac.is_multiple_of(10) {
+            frac /= 10;
+            d -= 1;
+        }
+    }
+    if d > 0 {
+        buf.push('.');
+        push_digits(buf, frac, d);
+    }
+}
+
+/// Appends the decimal digits of `v`, left-padded with zeros to at least `width` digits.
+fn push_digits(buf: &mut String, mut v: u64, width: usize) {
+    let mut tmp = [b'0'; 20];
+    let mut i = tmp.len();
+    while v > 0 {
+        i -= 1;
+        tmp[i] = b'0' + (v % 10) as u8;
+        v /= 10;
+    }
+    i = i.min(tmp.len() - width.max(1));
+    buf.push_str(std::str::from_utf8(&tmp[i..]).unwrap_or("0"));
 }
 
 /// `x` with exactly `decimals` decimals; negative zero prints as zero.
 pub fn fixed(x: f64, decimals: usize) -> String {
-    let s = format!("{:.*}", decimals, x);
-    if s.starts_with('-') && s[1..].bytes().all(|b| b == b'0' || b == b'.') {
-        s[1..].to_string()
-    } else {
-        s
-    }
+    let mut s = String::new();
+    push_decimal(&mut s, x, decimals, false);
+    s
 }
 
 /// `x` rounded to `decimals` decimals with trailing zeros (and a bare point) removed.
 pub fn trimmed(x: f64, decimals: usize) -> String {
-    let mut s = fixed(x, decimals);
-    if s.contains('.') {
-        while s.ends_with('0') {
-            s.pop();
-        }
-        if s.ends_with('.') {
-            s.pop();
-        }
-    }
+    let mut s = String::new();
+    push_decimal(&mut s, x, decimals, true);
     s
 }
 
@@ -158,6 +220,10 @@ mod tests {
         assert_eq!(trimmed(10.0, 7), "10");
         assert_eq!(fixed(2.0, 3), "2.000");
         assert_eq!(fixed(-0.0001, 3), "0.000");
+        assert_eq!(fixed(-1.25, 3), "-1.250");
+        assert_eq!(trimmed(-35.0030621, 7), "-35.0030621");
+        assert_eq!(trimmed(f64::NAN, 3), "null");
+        assert_eq!(fixed(12.0005, 3), format!("{:.3}", 12.0005_f64));
     }
 
     #[test]

@@ -47,11 +47,17 @@ pub fn write_outputs(
     plan: &Plan,
     summary: &Summary,
 ) -> Result<(), ExportError> {
-    let mut st = staging::Staging::begin(out, force)?;
-    st.write("network.geojson", |w| write_edges(w, net, comps, None))?;
-    st.write("plan.geojson", |w| {
-        write_edges(w, net, comps, Some(&plan.edges))
-    })?;
+    let st = staging::Staging::begin(out, force)?;
+    let (a, b) = rayon::join(
+        || st.write("network.geojson", |w| write_edges(w, net, comps, None)),
+        || {
+            st.write("plan.geojson", |w| {
+                write_edges(w, net, comps, Some(&plan.edges))
+            })
+        },
+    );
+    a?;
+    b?;
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, summary)?;
         std::io::Write::write_all(w, b"\n")
@@ -93,7 +99,7 @@ fn write_edges<W: std::io::Write>(
             Prop::Null
         };
         let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
-        let mut props = vec![
+        let props = [
             ("edge", Prop::Int(e as i64)),
             ("from", Prop::Int(edge.from as i64)),
             ("to", Prop::Int(edge.to as i64)),
@@ -103,11 +109,14 @@ fn write_edges<W: std::io::Write>(
             ("component", component),
             ("source_index", Prop::Int(meta.source_index as i64)),
             ("source_id", source_id),
+            ("repair", Prop::Bool(edge.cost > 0)),
         ];
-        if only.is_some() {
-            props.push(("repair", Prop::Bool(edge.cost > 0)));
-        }
-        gj.line(&props, net.edge_geometry(e as usize))?;
+        let props = if only.is_some() {
+            &props[..]
+        } else {
+            &props[..9]
+        };
+        gj.line(props, net.edge_geometry(e as usize))?;
     }
     gj.finish()?;
     Ok(())

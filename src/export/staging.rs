@@ -55,7 +55,7 @@ pub fn preflight(out: &Path, force: bool) -> Result<(), ExportError> {
 pub struct Staging {
     out: PathBuf,
     dir: PathBuf,
-    written: Vec<String>,
+    written: std::sync::Mutex<Vec<String>>,
     committed: bool,
     created_out: bool,
 }
@@ -91,14 +91,14 @@ impl Staging {
         Ok(Staging {
             out: out.to_path_buf(),
             dir,
-            written: Vec::new(),
+            written: Default::default(),
             committed: false,
             created_out,
         })
     }
 
-    /// Writes one output file into the staging folder through `fill`.
-    pub fn write<F>(&mut self, name: &str, fill: F) -> Result<(), ExportError>
+    /// Writes one output file into the staging folder through `fill` (several may run in parallel).
+    pub fn write<F>(&self, name: &str, fill: F) -> Result<(), ExportError>
     where
         F: FnOnce(&mut BufWriter<File>) -> std::io::Result<()>,
     {
@@ -117,7 +117,10 @@ impl Staging {
         w.flush().map_err(err)?;
         let f = w.into_inner().map_err(|e| err(e.into_error()))?;
         f.sync_all().map_err(err)?;
-        self.written.push(name.to_string());
+        self.written
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .push(name.to_string());
         Ok(())
     }
 
@@ -131,8 +134,8 @@ impl Staging {
                 fs::remove_file(&p).map_err(err(p.clone()))?;
             }
         }
-        let mut names = self.written.clone();
-        names.sort_by_key(|n| n == COMPLETE_MARKER);
+        let mut names = std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
+        names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
         for name in &names {
             let to = self.out.join(name);
             fs::rename(self.dir.join(name), &to).map_err(err(to.clone()))?;

@@ -1,11 +1,13 @@
 //! Streaming reader for GeoJSON FeatureCollections (RFC 7946).
 //!
-//! Features are handed to a callback one at a time as they are parsed, so the raw text and the parsed
-//! layer are never both in memory. Members may come in any order (a `bbox` before `features` is fine),
-//! and only the properties a caller asks for are kept.
+//! A [`Scanner`] cuts the text into top-level members and single features; each feature's bytes are
+//! parsed on their own and handed to a callback, so the raw text and the parsed layer are never both
+//! in memory. Members may come in any order (a `bbox` before `features` is fine), and only the
+//! properties a caller asks for are kept.
 
 use super::coords::{Coords, CoordsSeed};
-use serde::de::{self, DeserializeSeed, IgnoredAny, MapAccess, SeqAccess, Visitor};
+use super::scan::{Position, Scanner};
+use serde::de::{self, DeserializeSeed, IgnoredAny, MapAccess, Visitor};
 use serde_json::Value;
 use std::fmt;
 use std::io::Read;
@@ -71,170 +73,202 @@ where
     R: Read,
     F: FnMut(usize, RawFeature) -> Result<(), E>,
 {
-    let mut state = State {
-        kind: None,
-        info: CollectionInfo::default(),
-        current: None,
-        failure: None,
+    let mut sc = Scanner::new(reader);
+    let mut info = CollectionInfo::default();
+    let io = ReadFailure::Io;
+    let eof = |sc: &Scanner<R>, feature| ReadFailure::Syntax {
+        message: at("unexpected end of file", sc.position()),
+        feature,
     };
-    let mut de = serde_json::Deserializer::from_reader(reader);
-    let res = {
-        let visitor = CollectionVisitor {
-            wanted,
-            sink: &mut sink,
-            state: &mut state,
+    match sc.peek().map_err(io)? {
+        Some(b'{') => sc.bump(),
+        Some(_) => {
+            let Some((text, pos)) = sc.value().map_err(io)? else {
+                return Err(eof(&sc, None));
+            };
+            return Err(match serde_json::from_slice::<Value>(text) {
+                Ok(v) => ReadFailure::NotCollection(format!(
+                    "it is {}, expected a FeatureCollection object",
+                    json_kind(&v)
+                )),
+                Err(e) => syntax(&e, pos, None),
+            });
+        }
+        None => {
+            return Err(ReadFailure::Syntax {
+                message: "the file is empty".into(),
+                feature: None,
+            });
+        }
+    }
+    let mut kind: Option<String> = None;
+    loop {
+        match sc.peek().map_err(io)? {
+            Some(b'}') => {
+                sc.bump();
+                break;
+            }
+            Some(b'"') => {}
+            Some(_) => return Err(unexpected(&sc, "a member name or '}'")),
+            None => return Err(eof(&sc, None)),
+        }
+        let Some((text, pos)) = sc.value().map_err(io)? else {
+            return Err(eof(&sc, None));
         };
-        serde::Deserializer::deserialize_any(&mut de, visitor).and_then(|_| de.end())
-    };
-    if let Some(e) = state.failure.take() {
-        return Err(ReadFailure::Callback(e));
-    }
-    if let Err(e) = res {
-        if e.is_io() {
-            return Err(ReadFailure::Io(std::io::Error::other(e.to_string())));
+        let key: String = serde_json::from_slice(text).map_err(|e| syntax(&e, pos, None))?;
+        match sc.peek().map_err(io)? {
+            Some(b':') => sc.bump(),
+            Some(_) => return Err(unexpected(&sc, "':'")),
+            None => return Err(eof(&sc, None)),
         }
-        if let Some(msg) = e.to_string().strip_prefix(NOT_COLLECTION) {
-            let msg = msg.split(" at line ").next().unwrap_or(msg);
-            return Err(ReadFailure::NotCollection(msg.to_string()));
+        if key == "features" {
+            read_features(&mut sc, wanted, &mut sink, &mut info)?;
+        } else {
+            let Some((text, pos)) = sc.value().map_err(io)? else {
+                return Err(eof(&sc, None));
+            };
+            match key.as_str() {
+                "type" => {
+                    let t: Value =
+                        serde_json::from_slice(text).map_err(|e| syntax(&e, pos, None))?;
+                    match t.as_str() {
+                        Some("FeatureCollection") => kind = Some("FeatureCollection".into()),
+                        _ => {
+                            return Err(ReadFailure::NotCollection(format!(
+                                "its \"type\" is {t}, expected \"FeatureCollection\""
+                            )));
+                        }
+                    }
+                }
+                "crs" => {
+                    info.crs =
+                        Some(serde_json::from_slice(text).map_err(|e| syntax(&e, pos, None))?)
+                }
+                _ => {
+                    serde_json::from_slice::<IgnoredAny>(text)
+                        .map_err(|e| syntax(&e, pos, None))?;
+                }
+            }
         }
-        return Err(ReadFailure::Syntax {
-            message: e.to_string(),
-            feature: state.current,
-        });
+        match sc.peek().map_err(io)? {
+            Some(b',') => sc.bump(),
+            Some(b'}') => {}
+            Some(_) => return Err(unexpected(&sc, "',' or '}'")),
+            None => return Err(eof(&sc, None)),
+        }
     }
-    match state.kind.as_deref() {
-        Some("FeatureCollection") => Ok(state.info),
-        Some(other) => Err(ReadFailure::NotCollection(format!(
-            "its \"type\" is \"{other}\", expected \"FeatureCollection\""
-        ))),
+    if sc.peek().map_err(io)?.is_some() {
+        return Err(unexpected(&sc, "the end of the file"));
+    }
+    match kind {
+        Some(_) => Ok(info),
         None => Err(ReadFailure::NotCollection(
             "it has no \"type\" member (expected \"FeatureCollection\")".into(),
         )),
     }
 }
 
-const NOT_COLLECTION: &str = "\u{1}not-a-collection:";
-const CALLBACK_ABORT: &str = "\u{1}callback-abort";
-
-struct State<E> {
-    kind: Option<String>,
-    info: CollectionInfo,
-    current: Option<usize>,
-    failure: Option<E>,
-}
-
-struct CollectionVisitor<'a, E, F> {
-    wanted: &'a [String],
-    sink: &'a mut F,
-    state: &'a mut State<E>,
-}
-
-impl<'de, E, F> Visitor<'de> for CollectionVisitor<'_, E, F>
+fn read_features<R, E, F>(
+    sc: &mut Scanner<R>,
+    wanted: &[String],
+    sink: &mut F,
+    info: &mut CollectionInfo,
+) -> Result<(), ReadFailure<E>>
 where
+    R: Read,
     F: FnMut(usize, RawFeature) -> Result<(), E>,
 {
-    type Value = ();
-    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-        f.write_str("a GeoJSON FeatureCollection object")
+    let io = ReadFailure::Io;
+    match sc.peek().map_err(io)? {
+        Some(b'[') => sc.bump(),
+        Some(_) => return Err(unexpected(sc, "an array of features")),
+        None => return Err(unexpected(sc, "an array of features")),
     }
-    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<(), A::Error> {
-        while let Some(key) = map.next_key::<String>()? {
-            match key.as_str() {
-                "type" => {
-                    let t: String = map.next_value()?;
-                    if t != "FeatureCollection" {
-                        return Err(de::Error::custom(format!(
-                            "{NOT_COLLECTION}its \"type\" is \"{t}\", expected \"FeatureCollection\""
-                        )));
-                    }
-                    self.state.kind = Some(t);
-                }
-                "features" => map.next_value_seed(FeaturesSeed {
-                    wanted: self.wanted,
-                    sink: &mut *self.sink,
-                    state: &mut *self.state,
-                })?,
-                "crs" => self.state.info.crs = Some(map.next_value()?),
-                _ => {
-                    map.next_value::<IgnoredAny>()?;
-                }
-            }
-        }
-        Ok(())
-    }
-    fn visit_seq<A: SeqAccess<'de>>(self, _seq: A) -> Result<(), A::Error> {
-        Err(not_object("an array"))
-    }
-    fn visit_str<E2: de::Error>(self, _v: &str) -> Result<(), E2> {
-        Err(not_object("a string"))
-    }
-    fn visit_bool<E2: de::Error>(self, _v: bool) -> Result<(), E2> {
-        Err(not_object("a boolean"))
-    }
-    fn visit_f64<E2: de::Error>(self, _v: f64) -> Result<(), E2> {
-        Err(not_object("a number"))
-    }
-    fn visit_i64<E2: de::Error>(self, _v: i64) -> Result<(), E2> {
-        Err(not_object("a number"))
-    }
-    fn visit_u64<E2: de::Error>(self, _v: u64) -> Result<(), E2> {
-        Err(not_object("a number"))
-    }
-    fn visit_unit<E2: de::Error>(self) -> Result<(), E2> {
-        Err(not_object("null"))
-    }
-}
-
-// A scalar or array at the top level is "not a FeatureCollection", not a syntax error.
-fn not_object<E2: de::Error>(what: &str) -> E2 {
-    de::Error::custom(format!(
-        "{NOT_COLLECTION}it is {what}, expected a FeatureCollection object"
-    ))
-}
-
-struct FeaturesSeed<'a, E, F> {
-    wanted: &'a [String],
-    sink: &'a mut F,
-    state: &'a mut State<E>,
-}
-
-impl<'de, E, F> DeserializeSeed<'de> for FeaturesSeed<'_, E, F>
-where
-    F: FnMut(usize, RawFeature) -> Result<(), E>,
-{
-    type Value = ();
-    fn deserialize<D: de::Deserializer<'de>>(self, d: D) -> Result<(), D::Error> {
-        d.deserialize_seq(self)
-    }
-}
-
-impl<'de, E, F> Visitor<'de> for FeaturesSeed<'_, E, F>
-where
-    F: FnMut(usize, RawFeature) -> Result<(), E>,
-{
-    type Value = ();
-    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-        f.write_str("an array of features")
-    }
-    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<(), A::Error> {
-        let mut index = self.state.info.features;
-        loop {
-            self.state.current = Some(index);
-            let Some(feature) = seq.next_element_seed(FeatureSeed {
-                wanted: self.wanted,
-            })?
-            else {
+    let mut index = info.features;
+    loop {
+        match sc.peek().map_err(io)? {
+            Some(b']') => {
+                sc.bump();
                 break;
-            };
-            if let Err(e) = (self.sink)(index, feature) {
-                self.state.failure = Some(e);
-                return Err(de::Error::custom(CALLBACK_ABORT));
             }
-            index += 1;
+            Some(_) => {}
+            None => {
+                return Err(ReadFailure::Syntax {
+                    message: at("unexpected end of file", sc.position()),
+                    feature: Some(index),
+                });
+            }
         }
-        self.state.current = None;
-        self.state.info.features = index;
-        Ok(())
+        let Some((text, pos)) = sc.value().map_err(io)? else {
+            return Err(ReadFailure::Syntax {
+                message: at("unexpected end of file inside the feature", sc.position()),
+                feature: Some(index),
+            });
+        };
+        let mut de = serde_json::Deserializer::from_slice(text);
+        let feature = FeatureSeed { wanted }
+            .deserialize(&mut de)
+            .and_then(|f| de.end().map(|_| f))
+            .map_err(|e| syntax(&e, pos, Some(index)))?;
+        sink(index, feature).map_err(ReadFailure::Callback)?;
+        index += 1;
+        match sc.peek().map_err(io)? {
+            Some(b',') => sc.bump(),
+            Some(b']') => {}
+            Some(_) => {
+                return Err(ReadFailure::Syntax {
+                    message: at("expected ',' or ']' after a feature", sc.position()),
+                    feature: Some(index),
+                });
+            }
+            None => {
+                return Err(ReadFailure::Syntax {
+                    message: at("unexpected end of file", sc.position()),
+                    feature: Some(index),
+                });
+            }
+        }
+    }
+    info.features = index;
+    Ok(())
+}
+
+fn at(msg: &str, p: Position) -> String {
+    format!("{msg} at line {} column {}", p.line, p.column)
+}
+
+fn unexpected<R: Read, E>(sc: &Scanner<R>, what: &str) -> ReadFailure<E> {
+    ReadFailure::Syntax {
+        message: at(&format!("expected {what}"), sc.position()),
+        feature: None,
+    }
+}
+
+/// A serde_json error on a slice that started at `start`, with the position made absolute.
+fn syntax<E>(e: &serde_json::Error, start: Position, feature: Option<usize>) -> ReadFailure<E> {
+    let text = e.to_string();
+    let msg = text
+        .rsplit_once(" at line ")
+        .map_or(text.as_str(), |(m, _)| m);
+    let (line, column) = if e.line() <= 1 {
+        (start.line, start.column + e.column().saturating_sub(1))
+    } else {
+        (start.line + e.line() - 1, e.column())
+    };
+    ReadFailure::Syntax {
+        message: format!("{msg} at line {line} column {column}"),
+        feature,
+    }
+}
+
+fn json_kind(v: &Value) -> &'static str {
+    match v {
+        Value::Null => "null",
+        Value::Bool(_) => "a boolean",
+        Value::Number(_) => "a number",
+        Value::String(_) => "a string",
+        Value::Array(_) => "an array",
+        Value::Object(_) => "an object without \"{\" at the start",
     }
 }
 
@@ -358,7 +392,7 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
     }
     fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<bool, A::Error> {
         while let Some(key) = map.next_key::<String>()? {
-            if self.wanted.iter().any(|w| *w == key) {
+            if self.wanted.contains(&key) {
                 let v: Value = map.next_value()?;
                 self.out.push((key, v));
             } else {

@@ -10,6 +10,7 @@ pub mod geodesy;
 pub mod geojson;
 pub mod noding;
 pub mod roads;
+pub mod scan;
 pub mod source;
 
 use crate::network::Network;

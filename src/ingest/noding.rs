@@ -8,7 +8,7 @@
 //! 3. Lines are split at junctions into edges; exact duplicate edges and collapsed lines are dropped.
 //! 4. Edge lengths are measured on the ellipsoid, in parallel.
 
-use super::geodesy::{distance_m, local_distance_m, metres_per_degree, polyline_length_m};
+use super::geodesy::{distance_m, metres_per_degree, polyline_length_m};
 use super::roads::LineLayer;
 use crate::fxhash::FxHashMap;
 use crate::network::{Edge, Network, cost_of};
@@ -170,8 +170,7 @@ fn is_new_piece(
     seen: &mut FxHashMap<u64, u32>,
     seen_exact: &mut std::collections::HashMap<Vec<u32>, u32>,
 ) -> bool {
-    let canon = canonical(piece);
-    let h = hash_seq(&canon);
+    let h = hash_canonical(piece);
     let id = pieces.len() as u32;
     match seen.get(&h) {
         None => {
@@ -180,10 +179,15 @@ fn is_new_piece(
         }
         Some(&other) => {
             let (a, b, _) = pieces[other as usize];
-            if canonical(&seq[a..b]) == canon {
+            if same_piece(&seq[a..b], piece) {
                 return false;
             }
             // A hash collision between different pieces: fall back to exact keys.
+            let canon: Vec<u32> = if reversed_is_smaller(piece) {
+                piece.iter().rev().copied().collect()
+            } else {
+                piece.to_vec()
+            };
             match seen_exact.entry(canon) {
                 std::collections::hash_map::Entry::Occupied(_) => false,
                 std::collections::hash_map::Entry::Vacant(v) => {
@@ -195,106 +199,270 @@ fn is_new_piece(
     }
 }
 
-/// The piece in a direction-independent orientation.
-fn canonical(piece: &[u32]) -> Vec<u32> {
-    let rev: Vec<u32> = piece.iter().rev().copied().collect();
-    if rev.as_slice() < piece {
-        rev
-    } else {
-        piece.to_vec()
-    }
+/// True when the piece read backwards is lexicographically smaller than forwards.
+fn reversed_is_smaller(piece: &[u32]) -> bool {
+    piece.iter().rev().lt(piece.iter())
 }
 
-fn hash_seq(s: &[u32]) -> u64 {
+/// True when two pieces have the same vertices in the same or the opposite direction.
+fn same_piece(a: &[u32], b: &[u32]) -> bool {
+    a.len() == b.len() && (a == b || a.iter().eq(b.iter().rev()))
+}
+
+/// Hash of the piece in its direction-independent orientation, without allocating.
+fn hash_canonical(piece: &[u32]) -> u64 {
     use std::hash::Hasher;
     let mut h = crate::fxhash::FxHasher::default();
-    h.write_usize(s.len());
-    for &x in s {
-        h.write_u32(x);
+    h.write_usize(piece.len());
+    if reversed_is_smaller(piece) {
+        piece.iter().rev().for_each(|&x| h.write_u32(x));
+    } else {
+        piece.iter().for_each(|&x| h.write_u32(x));
     }
     h.finish()
 }
 
 /// Assigns every vertex a cluster; returns (cluster per vertex, cluster centres).
 ///
-/// With `snap_m == 0` only bit-identical coordinates share a cluster. Otherwise a vertex joins the
-/// nearest existing centre within `snap_m` metres (ties: the older cluster), else founds a new one, so
-/// centres are always more than `snap_m` apart.
+/// With `snap_m == 0` only bit-identical coordinates share a cluster. Otherwise the result is that of
+/// one pass in input order where each vertex joins the nearest existing centre within `snap_m` metres
+/// (ties: the older cluster) or founds a new one, so centres are always more than `snap_m` apart and
+/// no vertex moves farther than `snap_m`. Clusters are numbered in order of first appearance.
+///
+/// Most vertices have no other position within the tolerance; those are found in parallel on a sorted
+/// grid, and only the rest ("contested" vertices) go through the sequential pass.
 pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<[f64; 2]>) {
-    let mut cid = Vec::with_capacity(coords.len());
-    let mut centres: Vec<[f64; 2]> = Vec::new();
-    if snap_m <= 0.0 {
-        let mut map: FxHashMap<(u64, u64), u32> = FxHashMap::default();
-        map.reserve(coords.len() / 2);
-        for p in coords {
-            let key = ((p[0] + 0.0).to_bits(), (p[1] + 0.0).to_bits());
-            let next = centres.len() as u32;
-            let c = *map.entry(key).or_insert_with(|| {
-                centres.push(*p);
-                next
-            });
-            cid.push(c);
+    let n = coords.len();
+    let grid = Grid::new(coords, snap_m);
+    let mut keyed: Vec<(u64, u32)> = coords
+        .par_iter()
+        .enumerate()
+        .map(|(i, p)| (grid.key(*p), i as u32))
+        .collect();
+    keyed.par_sort_unstable();
+    // Start of every run of equal cell keys.
+    let mut starts: Vec<usize> = Vec::new();
+    for i in 0..keyed.len() {
+        if i == 0 || keyed[i].0 != keyed[i - 1].0 {
+            starts.push(i);
         }
-        return (cid, centres);
     }
-    // Tolerance in degrees, conservative over the data's latitude range.
-    let max_lat = coords
+    starts.push(keyed.len());
+    let cell_keys: Vec<u64> = starts[..starts.len() - 1]
         .iter()
-        .fold(0.0f64, |m, p| m.max(p[1].abs()))
-        .min(89.9);
-    let (my_eq, _) = metres_per_degree(0.0);
-    let (_, mx_min) = metres_per_degree(max_lat);
-    let tol = [snap_m / mx_min, snap_m / my_eq];
-    let cell = [2.0 * tol[0], 2.0 * tol[1]];
-    let mut head: FxHashMap<(i64, i64), u32> = FxHashMap::default();
-    head.reserve(coords.len() / 2);
-    let mut next: Vec<u32> = Vec::new();
-    for p in coords {
-        let fx = p[0] / cell[0];
-        let fy = p[1] / cell[1];
-        let (cx, cy) = (fx.floor() as i64, fy.floor() as i64);
-        // Neighbouring cells only where the point lies within the tolerance of the shared border.
-        let rx = (fx - cx as f64) * cell[0];
-        let ry = (fy - cy as f64) * cell[1];
-        let dx = if rx < tol[0] {
-            -1
-        } else if rx > cell[0] - tol[0] {
-            1
-        } else {
-            0
-        };
-        let dy = if ry < tol[1] {
-            -1
-        } else if ry > cell[1] - tol[1] {
-            1
-        } else {
-            0
-        };
-        let mut best: Option<(f64, u32)> = None;
-        let cells = [(0, 0), (dx, 0), (0, dy), (dx, dy)];
-        let used = [true, dx != 0, dy != 0, dx != 0 && dy != 0];
-        for (&(ox, oy), _) in cells.iter().zip(used).filter(|(_, u)| *u) {
-            let mut c = head.get(&(cx + ox, cy + oy)).copied().unwrap_or(u32::MAX);
-            while c != u32::MAX {
-                let d = local_distance_m(*p, centres[c as usize]);
-                if d <= snap_m && best.is_none_or(|(bd, bc)| d < bd || (d == bd && c < bc)) {
-                    best = Some((d, c));
+        .map(|&s| keyed[s].0)
+        .collect();
+
+    // Per cell: the first vertex at each exact position, and whether another position lies within
+    // the tolerance (in this cell or a neighbouring one). Cells are taken in chunks to keep tasks large.
+    let cells: Vec<usize> = (0..cell_keys.len()).collect();
+    let per_chunk: Vec<Vec<(u32, u32, bool)>> = cells
+        .par_chunks(4096)
+        .map(|chunk| {
+            let mut out = Vec::with_capacity(chunk.len() * 2);
+            let mut local: Vec<(u64, u64, u32)> = Vec::new();
+            for &ci in chunk {
+                let cell = &keyed[starts[ci]..starts[ci + 1]];
+                let bits = |i: u32| {
+                    let p = coords[i as usize];
+                    ((p[0] + 0.0).to_bits(), (p[1] + 0.0).to_bits(), i)
+                };
+                local.clear();
+                local.extend(cell.iter().map(|&(_, i)| bits(i)));
+                if local.len() > 1 {
+                    local.sort_unstable();
                 }
-                c = next[c as usize];
+                let mut k = 0;
+                while k < local.len() {
+                    let (x, y, first) = local[k];
+                    let contested = snap_m > 0.0
+                        && grid.has_other_within(
+                            coords,
+                            coords[first as usize],
+                            &cell_keys,
+                            &starts,
+                            &keyed,
+                        );
+                    while k < local.len() && local[k].0 == x && local[k].1 == y {
+                        out.push((local[k].2, first, contested));
+                        k += 1;
+                    }
+                }
             }
+            out
+        })
+        .collect();
+    drop(cells);
+    let mut rep = vec![0u32; n];
+    let mut contested = vec![false; n];
+    for chunk in per_chunk {
+        for (i, first, c) in chunk {
+            rep[i as usize] = first;
+            contested[i as usize] = c;
         }
-        let c = match best {
-            Some((_, c)) => c,
-            None => {
-                let c = centres.len() as u32;
-                centres.push(*p);
-                let h = head.entry((cx, cy)).or_insert(u32::MAX);
-                next.push(*h);
-                *h = c;
-                c
-            }
-        };
-        cid.push(c);
+    }
+    if snap_m > 0.0 {
+        greedy_snap(coords, snap_m, &contested, &mut rep);
+    }
+    // Number clusters by first appearance: a representative always precedes its members.
+    let mut cid = vec![0u32; n];
+    let mut centres = Vec::new();
+    for i in 0..n {
+        let r = rep[i] as usize;
+        if r == i {
+            cid[i] = centres.len() as u32;
+            centres.push(coords[i]);
+        } else {
+            cid[i] = cid[r];
+        }
     }
     (cid, centres)
+}
+
+/// Grid cells eight times the tolerance wide, in degrees, conservative over the data's latitudes.
+///
+/// Wide cells mean most points lie farther than the tolerance from every border, so usually one
+/// cell, rarely up to four, is searched.
+struct Grid {
+    cell: [f64; 2],
+    tol: [f64; 2],
+    snap_m: f64,
+}
+
+impl Grid {
+    fn new(coords: &[[f64; 2]], snap_m: f64) -> Grid {
+        let max_lat = coords
+            .iter()
+            .fold(0.0f64, |m, p| m.max(p[1].abs()))
+            .min(89.9);
+        let (my_eq, _) = metres_per_degree(0.0);
+        let (_, mx_min) = metres_per_degree(max_lat);
+        let tol = [snap_m / mx_min, snap_m / my_eq];
+        // Cells never finer than 2^-31 of the globe, so keys fit in 32 bits per axis.
+        let floor = 360.0 / (1u64 << 31) as f64;
+        Grid {
+            cell: [(8.0 * tol[0]).max(floor), (8.0 * tol[1]).max(floor)],
+            tol,
+            snap_m,
+        }
+    }
+
+    fn cell_of(&self, p: [f64; 2]) -> (i64, i64) {
+        (
+            (p[0] / self.cell[0]).floor() as i64,
+            (p[1] / self.cell[1]).floor() as i64,
+        )
+    }
+
+    fn pack(c: (i64, i64)) -> u64 {
+        let bias = 1i64 << 31;
+        (((c.0 + bias) as u64) << 32) | ((c.1 + bias) as u64 & 0xFFFF_FFFF)
+    }
+
+    fn key(&self, p: [f64; 2]) -> u64 {
+        Self::pack(self.cell_of(p))
+    }
+
+    /// The cells to search around `p`: its own, plus neighbours whose border lies within tolerance.
+    fn neighbourhood(&self, p: [f64; 2]) -> impl Iterator<Item = (i64, i64)> {
+        let (cx, cy) = self.cell_of(p);
+        let rx = p[0] - cx as f64 * self.cell[0];
+        let ry = p[1] - cy as f64 * self.cell[1];
+        let side = |r: f64, cell: f64, tol: f64| {
+            if r < tol {
+                -1
+            } else if r > cell - tol {
+                1
+            } else {
+                0
+            }
+        };
+        let dx = side(rx, self.cell[0], self.tol[0]);
+        let dy = side(ry, self.cell[1], self.tol[1]);
+        let cells = [(0, 0), (dx, 0), (0, dy), (dx, dy)];
+        let used = [true, dx != 0, dy != 0, dx != 0 && dy != 0];
+        cells
+            .into_iter()
+            .zip(used)
+            .filter(|(_, u)| *u)
+            .map(move |((ox, oy), _)| (cx + ox, cy + oy))
+    }
+
+    /// True when some vertex at a different position lies within the tolerance of `p`.
+    fn has_other_within(
+        &self,
+        coords: &[[f64; 2]],
+        p: [f64; 2],
+        cell_keys: &[u64],
+        starts: &[usize],
+        keyed: &[(u64, u32)],
+    ) -> bool {
+        let (my, mx) = metres_per_degree(p[1]);
+        for c in self.neighbourhood(p) {
+            let Ok(ci) = cell_keys.binary_search(&Self::pack(c)) else {
+                continue;
+            };
+            for &(_, j) in &keyed[starts[ci]..starts[ci + 1]] {
+                let q = coords[j as usize];
+                if q != p && scaled_distance(p, q, my, mx) <= self.snap_m {
+                    return true;
+                }
+            }
+        }
+        false
+    }
+}
+
+/// Distance in metres for short steps with the scales (metres per degree) at one end's latitude:
+/// within 1e-4 relative of the mid-latitude formula over a kilometre, far below any tolerance's
+/// precision.
+fn scaled_distance(p: [f64; 2], q: [f64; 2], my: f64, mx: f64) -> f64 {
+    let mut dlon = q[0] - p[0];
+    if dlon.abs() > 180.0 {
+        dlon -= 360.0f64.copysign(dlon);
+    }
+    ((dlon * mx).powi(2) + ((q[1] - p[1]) * my).powi(2)).sqrt()
+}
+
+/// The sequential pass over contested vertices, in input order: each joins the nearest existing
+/// centre within the tolerance (ties: the older centre) or founds a new one. Uncontested vertices
+/// cannot be within the tolerance of any contested one, so they need no part in it.
+fn greedy_snap(coords: &[[f64; 2]], snap_m: f64, contested: &[bool], rep: &mut [u32]) {
+    let grid = Grid::new(coords, snap_m);
+    let mut head: FxHashMap<(i64, i64), u32> = FxHashMap::default();
+    let mut next: Vec<u32> = Vec::new();
+    let mut founders: Vec<u32> = Vec::new();
+    for (i, p) in coords.iter().enumerate() {
+        if !contested[i] {
+            continue;
+        }
+        let (my, mx) = metres_per_degree(p[1]);
+        let mut best: Option<(f64, u32)> = None;
+        for c in grid.neighbourhood(*p) {
+            let mut k = head.get(&c).copied().unwrap_or(u32::MAX);
+            while k != u32::MAX {
+                let q = coords[founders[k as usize] as usize];
+                let d = if q == *p {
+                    0.0
+                } else {
+                    scaled_distance(*p, q, my, mx)
+                };
+                if d <= snap_m && best.is_none_or(|(bd, bk)| d < bd || (d == bd && k < bk)) {
+                    best = Some((d, k));
+                }
+                k = next[k as usize];
+            }
+        }
+        rep[i] = match best {
+            Some((_, k)) => founders[k as usize],
+            None => {
+                let k = founders.len() as u32;
+                founders.push(i as u32);
+                let h = head.entry(grid.cell_of(*p)).or_insert(u32::MAX);
+                next.push(*h);
+                *h = k;
+                i as u32
+            }
+        };
+    }
 }

@@ -7,7 +7,6 @@ use super::{IngestError, MAX_SNAP_M};
 use crate::network::FeatureMeta;
 use serde_json::Value;
 use std::collections::BTreeMap;
-use std::path::PathBuf;
 
 /// Property names taken as a feature's id when no `--id-field` is given and it has no `id` member.
 pub const ID_FIELDS: &[&str] = &[
@@ -135,10 +134,13 @@ pub fn read_geojson_roads(
         ReadFailure::Callback(e) => e,
     })?;
     check_crs_member(&path, info.crs.as_ref())?;
-    let (sha256, bytes) = reader.finish().map_err(|source| IngestError::Io {
-        path: path.clone(),
-        source,
-    })?;
+    let (sha256, bytes) =
+        super::source::HashingReader::finish_buffered(reader).map_err(|source| {
+            IngestError::Io {
+                path: path.clone(),
+                source,
+            }
+        })?;
     layer.stats.features_read = info.features;
     layer.input = Some(InputRecord {
         role: "roads".into(),
@@ -169,13 +171,13 @@ pub fn read_geojson_roads(
 
 fn add_feature(
     layer: &mut LineLayer,
-    path: &PathBuf,
+    path: &std::path::Path,
     settings: &RoadSettings,
     index: usize,
     f: super::geojson::RawFeature,
 ) -> Result<(), IngestError> {
     let fail = |field: Option<&str>, message: String| IngestError::Feature {
-        path: path.clone(),
+        path: path.to_path_buf(),
         feature: index,
         field: field.map(str::to_string),
         message,

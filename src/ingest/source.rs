@@ -29,8 +29,8 @@ impl Source {
         }
     }
 
-    /// Opens the source for reading through a SHA-256 fingerprinting reader.
-    pub fn open(&self) -> Result<HashingReader<Box<dyn Read>>, IngestError> {
+    /// Opens the source for buffered reading through a SHA-256 fingerprinting reader.
+    pub fn open(&self) -> Result<BufReader<HashingReader<Box<dyn Read>>>, IngestError> {
         let inner: Box<dyn Read> = match self {
             Source::File(p) => {
                 let f = File::open(p).map_err(|source| IngestError::Io {
@@ -43,15 +43,19 @@ impl Source {
                         source: std::io::Error::other("is a directory, expected a file"),
                     });
                 }
-                Box::new(BufReader::with_capacity(1 << 20, f))
+                Box::new(f)
             }
             Source::Bundled { bytes, .. } => Box::new(*bytes),
         };
-        Ok(HashingReader {
-            inner,
-            hasher: Sha256::new(),
-            bytes: 0,
-        })
+        // Hash whole buffer refills, not the single bytes a parser asks for.
+        Ok(BufReader::with_capacity(
+            1 << 20,
+            HashingReader {
+                inner,
+                hasher: Sha256::new(),
+                bytes: 0,
+            },
+        ))
     }
 
     /// The file path when the source is a file.
@@ -71,6 +75,12 @@ pub struct HashingReader<R> {
 }
 
 impl<R: Read> HashingReader<R> {
+    /// Reads whatever is left (so the digest covers the whole input) and returns (hex digest, bytes).
+    pub fn finish_buffered(reader: BufReader<Self>) -> std::io::Result<(String, u64)> {
+        // Bytes still in the buffer were hashed when they were read from the file.
+        reader.into_inner().finish()
+    }
+
     /// Reads whatever is left (so the digest covers the whole input) and returns (hex digest, bytes).
     pub fn finish(mut self) -> std::io::Result<(String, u64)> {
         std::io::copy(&mut self, &mut std::io::sink())?;
@@ -113,7 +123,7 @@ mod tests {
             name: "abc".into(),
             bytes: b"abc",
         };
-        let (hex, n) = s.open().unwrap().finish().unwrap();
+        let (hex, n) = HashingReader::finish_buffered(s.open().unwrap()).unwrap();
         assert_eq!(n, 3);
         assert_eq!(
             hex,

@@ -1,0 +1,225 @@
+//! A streaming scanner that cuts a JSON text into complete values without parsing them.
+//!
+//! The GeoJSON reader uses it to find each feature's bytes in a refillable buffer and hands only
+//! those bytes to serde_json, which parses slices several times faster than byte-by-byte readers.
+//! Nesting is counted, not recursed, so no input can exhaust the stack here.
+
+use std::io::{self, Read};
+
+const CHUNK: usize = 1 << 20;
+
+/// Reads a JSON text in chunks and yields complete values as slices.
+pub struct Scanner<R> {
+    r: R,
+    buf: Vec<u8>,
+    pos: usize,
+    eof: bool,
+    /// 1-based line of `buf[pos]`.
+    line: usize,
+    /// 1-based column of `buf[pos]`.
+    col: usize,
+}
+
+/// Where a value starts in the text, for messages.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Position {
+    /// 1-based line.
+    pub line: usize,
+    /// 1-based column.
+    pub column: usize,
+}
+
+impl<R: Read> Scanner<R> {
+    /// A scanner over `r`.
+    pub fn new(r: R) -> Self {
+        Scanner {
+            r,
+            buf: Vec::with_capacity(CHUNK),
+            pos: 0,
+            eof: false,
+            line: 1,
+            col: 1,
+        }
+    }
+
+    /// Position of the next unread byte.
+    pub fn position(&self) -> Position {
+        Position {
+            line: self.line,
+            column: self.col,
+        }
+    }
+
+    /// Reads more input; false at end of input.
+    fn fill(&mut self) -> io::Result<bool> {
+        if self.eof {
+            return Ok(false);
+        }
+        if self.pos > 0 {
+            self.buf.drain(..self.pos);
+            self.pos = 0;
+        }
+        let old = self.buf.len();
+        self.buf.resize(old + CHUNK, 0);
+        let n = loop {
+            match self.r.read(&mut self.buf[old..]) {
+                Ok(n) => break n,
+                Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+                Err(e) => {
+                    self.buf.truncate(old);
+                    return Err(e);
+                }
+            }
+        };
+        self.buf.truncate(old + n);
+        if n == 0 {
+            self.eof = true;
+        }
+        Ok(n > 0)
+    }
+
+    fn advance(&mut self, n: usize) {
+        for &b in &self.buf[self.pos..self.pos + n] {
+            if b == b'\n' {
+                self.line += 1;
+                self.col = 1;
+            } else if b & 0xC0 != 0x80 {
+                self.col += 1;
+            }
+        }
+        self.pos += n;
+    }
+
+    /// Skips white space and returns the next byte without consuming it (`None` at end of input).
+    pub fn peek(&mut self) -> io::Result<Option<u8>> {
+        loop {
+            while self.pos < self.buf.len() {
+                let b = self.buf[self.pos];
+                if matches!(b, b' ' | b'\t' | b'\r' | b'\n') {
+                    self.advance(1);
+                } else {
+                    return Ok(Some(b));
+                }
+            }
+            if !self.fill()? {
+                return Ok(None);
+            }
+        }
+    }
+
+    /// Consumes one byte (after [`peek`](Self::peek) returned it).
+    pub fn bump(&mut self) {
+        self.advance(1);
+    }
+
+    /// Finds the complete JSON value starting at the next non-space byte and returns its bytes and
+    /// start position; `Ok(None)` when the input ends before the value does.
+    pub fn value(&mut self) -> io::Result<Option<(&[u8], Position)>> {
+        if self.peek()?.is_none() {
+            return Ok(None);
+        }
+        let start = self.position();
+        let mut i = self.pos;
+        let mut depth = 0usize;
+        let mut in_str = false;
+        let mut escape = false;
+        loop {
+            while i < self.buf.len() {
+                let b = self.buf[i];
+                i += 1;
+                if in_str {
+                    if escape {
+                        escape = false;
+                    } else if b == b'\\' {
+                        escape = true;
+                    } else if b == b'"' {
+                        in_str = false;
+                        if depth == 0 {
+                            return Ok(Some(self.take(i, start)));
+                        }
+                    }
+                    continue;
+                }
+                match b {
+                    b'"' => in_str = true,
+                    b'{' | b'[' => depth += 1,
+                    b'}' | b']' => {
+                        if depth == 0 {
+                            // The end of an enclosing container: the scalar before it is complete.
+                            return Ok(Some(self.take(i - 1, start)));
+                        }
+                        depth -= 1;
+                        if depth == 0 {
+                            return Ok(Some(self.take(i, start)));
+                        }
+                    }
+                    b',' | b' ' | b'\t' | b'\r' | b'\n' if depth == 0 => {
+                        return Ok(Some(self.take(i - 1, start)));
+                    }
+                    _ => {}
+                }
+            }
+            let consumed = i - self.pos;
+            if !self.fill()? {
+                if depth == 0 && !in_str && i > self.pos {
+                    // A scalar running to the end of the input.
+                    let end = self.buf.len();
+                    return Ok(Some(self.take(end, start)));
+                }
+                return Ok(None);
+            }
+            i = self.pos + consumed;
+        }
+    }
+
+    fn take(&mut self, end: usize, start: Position) -> (&[u8], Position) {
+        let begin = self.pos;
+        self.advance(end - begin);
+        (&self.buf[begin..end], start)
+    }
+
+    /// Reads the rest of the input (so a fingerprinting reader sees all of it) and returns the reader.
+    pub fn into_inner(self) -> R {
+        self.r
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn cuts_values_across_chunks() {
+        let big = format!("[{}]", "1,".repeat(CHUNK) + "2");
+        let text = format!(r#"  {{"a":"x\"}}"}} {big} 12 "s" "#);
+        let mut s = Scanner::new(text.as_bytes());
+        let (v, p) = s.value().unwrap().unwrap();
+        assert_eq!(v, br#"{"a":"x\"}"}"#);
+        assert_eq!(p, Position { line: 1, column: 3 });
+        let (v, _) = s.value().unwrap().unwrap();
+        assert_eq!(v.len(), big.len());
+        assert_eq!(s.value().unwrap().unwrap().0, b"12");
+        assert_eq!(s.value().unwrap().unwrap().0, b"\"s\"");
+        assert!(s.value().unwrap().is_none());
+    }
+
+    #[test]
+    fn scalar_before_closing_bracket() {
+        let mut s = Scanner::new(&b"true]"[..]);
+        assert_eq!(s.value().unwrap().unwrap().0, b"true");
+        assert_eq!(s.peek().unwrap(), Some(b']'));
+    }
+
+    #[test]
+    fn unterminated_value_is_none() {
+        let mut s = Scanner::new(&b"{\"a\": [1, 2"[..]);
+        assert!(s.value().unwrap().is_none());
+    }
+
+    #[test]
+    fn tracks_lines() {
+        let mut s = Scanner::new(&b"\n\n  [1]"[..]);
+        let (_, p) = s.value().unwrap().unwrap();
+        assert_eq!(p, Position { line: 3, column: 3 });
+    }
+}
