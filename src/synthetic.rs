@@ -40,8 +40,8 @@ impl Rng {
 
 /// A road-like graph on a `side × side` lattice: each junction links to its right and lower
 /// neighbours (about 2 edges per junction), costs are block lengths (80–120 m, in milli-repair-metres)
-/// times a damage factor (half intact at cost 0), and 1 % of edges are closed.
-pub fn grid_graph(side: usize, seed: u64) -> EdgeList {
+/// times a damage factor; `intact` is the share of roads left intact (cost 0) and 1 % are closed.
+pub fn grid_graph(side: usize, intact: f64, seed: u64) -> EdgeList {
     let mut rng = Rng::new(seed);
     let n = side * side;
     let mut g = EdgeList {
@@ -57,7 +57,7 @@ pub fn grid_graph(side: usize, seed: u64) -> EdgeList {
                 let r = rng.unit();
                 let cost = if r < 0.01 {
                     crate::solve::graph::UNUSABLE
-                } else if r < 0.5 {
+                } else if r < 0.01 + intact {
                     0
                 } else {
                     length_mm * (1 + rng.below(1000)) / 1000

@@ -1,29 +1,56 @@
 //! Disjoint sets (union-find) over u32 ids, with path halving and union by size.
+//!
+//! One array: a non-negative entry is the parent, a negative entry marks a root and holds minus the
+//! set's size, so a lookup touches one cache line per step.
 
 /// A partition of `0..n` into disjoint sets.
 #[derive(Debug, Clone)]
 pub struct DisjointSets {
-    parent: Vec<u32>,
-    size: Vec<u32>,
+    link: Vec<i32>,
 }
 
 impl DisjointSets {
-    /// `n` singleton sets.
+    /// `n` singleton sets (n must fit in i32).
     pub fn new(n: usize) -> Self {
-        DisjointSets {
-            parent: (0..n as u32).collect(),
-            size: vec![1; n],
-        }
+        assert!(
+            n <= i32::MAX as usize,
+            "too many elements for disjoint sets"
+        );
+        DisjointSets { link: vec![-1; n] }
     }
 
     /// Representative of `x`'s set.
     #[inline]
     pub fn find(&mut self, mut x: u32) -> u32 {
-        while self.parent[x as usize] != x {
-            let p = self.parent[x as usize];
-            let gp = self.parent[p as usize];
-            self.parent[x as usize] = gp;
-            x = gp;
+        loop {
+            let p = self.link[x as usize];
+            if p < 0 {
+                return x;
+            }
+            let gp = self.link[p as usize];
+            if gp < 0 {
+                return p as u32;
+            }
+            self.link[x as usize] = gp;
+            x = gp as u32;
+        }
+    }
+
+    /// Points every element straight at its representative, so [`root`](Self::root) takes one step.
+    pub fn flatten(&mut self) {
+        for x in 0..self.link.len() as u32 {
+            let r = self.find(x);
+            if r != x {
+                self.link[x as usize] = r as i32;
+            }
+        }
+    }
+
+    /// Representative of `x`'s set without compressing paths (safe to call from many threads).
+    #[inline]
+    pub fn root(&self, mut x: u32) -> u32 {
+        while self.link[x as usize] >= 0 {
+            x = self.link[x as usize] as u32;
         }
         x
     }
@@ -35,11 +62,11 @@ impl DisjointSets {
         if ra == rb {
             return false;
         }
-        if self.size[ra as usize] < self.size[rb as usize] {
+        if self.link[ra as usize] > self.link[rb as usize] {
             std::mem::swap(&mut ra, &mut rb);
         }
-        self.parent[rb as usize] = ra;
-        self.size[ra as usize] += self.size[rb as usize];
+        self.link[ra as usize] += self.link[rb as usize];
+        self.link[rb as usize] = ra as i32;
         true
     }
 }

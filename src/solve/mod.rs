@@ -9,6 +9,7 @@ pub mod disjoint;
 pub mod graph;
 pub mod kruskal;
 pub mod prim;
+pub mod radix;
 pub mod verify;
 
 use crate::network::Cost;
