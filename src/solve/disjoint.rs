@@ -19,6 +19,12 @@ impl DisjointSets {
         DisjointSets { link: vec![-1; n] }
     }
 
+    /// Makes `0..n` singletons again, reusing the memory.
+    pub fn reset(&mut self, n: usize) {
+        self.link.clear();
+        self.link.resize(n, -1);
+    }
+
     /// Representative of `x`'s set.
     #[inline]
     pub fn find(&mut self, mut x: u32) -> u32 {

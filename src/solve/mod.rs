@@ -10,6 +10,8 @@ pub mod graph;
 pub mod kruskal;
 pub mod prim;
 pub mod radix;
+pub mod steiner;
+pub mod stp;
 pub mod verify;
 
 use crate::network::Cost;

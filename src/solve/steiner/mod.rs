@@ -1,0 +1,225 @@
+//! Steiner tree in graphs: connect the terminals (critical sites) at least total cost.
+//!
+//! The problem is NP-hard, so the plan is built by heuristics and certified by a lower bound:
+//!
+//! 1. [`reduce`]: exact reductions (zero-cost components, non-terminal leaves, degree-2 chains).
+//! 2. [`mehlhorn`]: Mehlhorn's 2-approximation as the first solution.
+//! 3. [`sph`]: the shortest-path heuristic from several roots, each polished by [`local`] search
+//!    (key-path exchange, key-vertex elimination); the cheapest tree wins.
+//! 4. [`dual_ascent`]: Wong's lower bound, so every plan states how far from optimal it can be.
+//! 5. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
+//!
+//! All choices are deterministic for a given [`Effort`].
+
+pub mod dual_ascent;
+pub mod local;
+pub mod mehlhorn;
+pub mod paths;
+pub mod reduce;
+pub mod sph;
+pub mod tree;
+pub mod vertex_moves;
+
+use crate::network::Cost;
+use crate::solve::SolveError;
+use crate::solve::graph::{Csr, EdgeList};
+use paths::Workspace;
+
+/// How much work to spend on quality.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Effort {
+    /// One improvement start, a short bound computation: for very large networks or quick looks.
+    Quick,
+    /// Several starts, local search to a local optimum, a full bound on most networks.
+    #[default]
+    Normal,
+    /// Many starts and an unlimited bound computation.
+    Thorough,
+}
+
+impl Effort {
+    /// The name used in settings and summaries.
+    pub fn name(self) -> &'static str {
+        match self {
+            Effort::Quick => "quick",
+            Effort::Normal => "normal",
+            Effort::Thorough => "thorough",
+        }
+    }
+
+    /// Number of improvement starts on a reduced graph of `size` vertices plus edges: more on small
+    /// graphs, where each start is cheap.
+    fn starts(self, size: usize) -> usize {
+        let size = size.max(1);
+        match self {
+            Effort::Quick => 1,
+            Effort::Normal => (4_000_000 / size).clamp(8, 200),
+            Effort::Thorough => (40_000_000 / size).clamp(32, 2000),
+        }
+    }
+
+    /// How many of the best shortest-path trees get the full local search.
+    fn polished(self) -> usize {
+        match self {
+            Effort::Quick => 1,
+            Effort::Normal => 4,
+            Effort::Thorough => usize::MAX,
+        }
+    }
+
+    fn rounds(self) -> usize {
+        match self {
+            Effort::Quick => 2,
+            Effort::Normal => 25,
+            Effort::Thorough => 100,
+        }
+    }
+
+    fn bound_budget(self) -> u64 {
+        match self {
+            Effort::Quick => 5_000_000,
+            Effort::Normal => 400_000_000,
+            Effort::Thorough => u64::MAX,
+        }
+    }
+}
+
+/// A Steiner tree in the original graph with its certificate.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SteinerTree {
+    /// Original edge ids, ascending (positive-cost edges and the intact edges joining them).
+    pub edges: Vec<u32>,
+    /// Total cost.
+    pub cost: Cost,
+    /// A proven lower bound on the cost of any tree connecting the terminals.
+    pub lower_bound: Cost,
+    /// False when the bound computation stopped at its work budget (the bound still holds).
+    pub bound_complete: bool,
+    /// Vertices and edges of the reduced graph that was searched.
+    pub reduced_size: (usize, usize),
+}
+
+/// Connects `terminals` (original vertex ids, mutually reachable over usable edges) at least cost.
+pub fn steiner_tree(
+    g: &EdgeList,
+    terminals: &[u32],
+    effort: Effort,
+) -> Result<SteinerTree, SolveError> {
+    let mut terms = terminals.to_vec();
+    terms.sort_unstable();
+    terms.dedup();
+    let red = reduce::reduce(g, &terms);
+    let rg = &red.graph;
+    let mut best: Vec<u32> = Vec::new();
+    let mut bound = dual_ascent::Bound {
+        value: 0,
+        complete: true,
+        saturated: Vec::new(),
+    };
+    if red.terminals.len() >= 2 {
+        let csr = Csr::from_edges(rg);
+        let mut ws = Workspace::new(rg.vertices);
+        let it = &red.is_terminal;
+        bound = dual_ascent::dual_ascent(rg, &csr, &red.terminals, effort.bound_budget());
+        best = mehlhorn::mehlhorn(rg, &csr, &red.terminals, it, &mut ws);
+        let mut best_cost = tree::cost(rg, &best);
+        if bound.complete {
+            // The saturated edges join every terminal to the root: a tree there is a strong start.
+            let sat = EdgeList {
+                vertices: rg.vertices,
+                ends: rg.ends.clone(),
+                cost: rg
+                    .cost
+                    .iter()
+                    .zip(&bound.saturated)
+                    .map(|(&c, &s)| if s { c } else { crate::solve::graph::UNUSABLE })
+                    .collect(),
+            };
+            let sat_csr = Csr::from_edges(&sat);
+            let t = sph::sph(
+                &sat,
+                &sat_csr,
+                &red.terminals,
+                it,
+                red.terminals[0],
+                &mut ws,
+            );
+            let t = tree::mst_prune(rg, &csr, &t, it);
+            let t = polish(rg, &csr, it, t, &mut ws, effort);
+            let c = tree::cost(rg, &t);
+            if c < best_cost {
+                best = t;
+                best_cost = c;
+            }
+        }
+        let k = red.terminals.len();
+        // Shortest-path trees from spread-out roots; the cheapest few are polished.
+        let roots = effort.starts(rg.vertices + rg.len()).min(k);
+        let mut starts: Vec<(u64, Vec<u32>)> = (0..roots)
+            .map(|r| {
+                let root = red.terminals[r * k / roots];
+                let t = sph::sph(rg, &csr, &red.terminals, it, root, &mut ws);
+                (tree::cost(rg, &t), t)
+            })
+            .collect();
+        starts.sort();
+        starts.dedup();
+        for (_, t) in starts.into_iter().take(effort.polished()) {
+            let t = if effort == Effort::Quick {
+                t
+            } else {
+                polish(rg, &csr, it, t, &mut ws, effort)
+            };
+            let c = tree::cost(rg, &t);
+            if c < best_cost {
+                best = t;
+                best_cost = c;
+            }
+        }
+        best = polish(rg, &csr, it, best, &mut ws, effort);
+    }
+    let edges = reduce::expand(g, &red, &best, &terms);
+    tree::check_steiner_tree(g, &edges, &terms).map_err(|detail| SolveError::Verification {
+        what: "Steiner tree",
+        detail,
+    })?;
+    let cost = tree::cost(g, &edges);
+    if bound.value > cost {
+        return Err(SolveError::Verification {
+            what: "Steiner lower bound",
+            detail: format!("bound {} exceeds the tree's cost {cost}", bound.value),
+        });
+    }
+    Ok(SteinerTree {
+        edges,
+        cost,
+        lower_bound: bound.value,
+        bound_complete: bound.complete,
+        reduced_size: (rg.vertices, rg.len()),
+    })
+}
+
+/// Alternates path-based and vertex-based local search until neither improves the tree.
+fn polish(
+    g: &EdgeList,
+    csr: &Csr,
+    is_terminal: &[bool],
+    mut t: Vec<u32>,
+    ws: &mut Workspace,
+    effort: Effort,
+) -> Vec<u32> {
+    let mut c = tree::cost(g, &t);
+    for _ in 0..effort.rounds() {
+        t = local::improve(g, csr, is_terminal, t, ws, effort.rounds());
+        t = tree::mst_prune(g, csr, &t, is_terminal);
+        if effort != Effort::Quick {
+            t = vertex_moves::improve(g, csr, is_terminal, t, effort.rounds());
+        }
+        let c2 = tree::cost(g, &t);
+        if c2 >= c {
+            break;
+        }
+        c = c2;
+    }
+    t
+}

@@ -1,0 +1,353 @@
+//! Exact reductions before the Steiner search, and expansion of a solution back to road edges.
+//!
+//! 1. Intact roads cost nothing, so each connected set of zero-cost edges becomes one vertex.
+//! 2. Only the part of the graph connected to the terminals is kept; of parallel edges, the cheapest.
+//! 3. Non-terminal vertices of degree 1 are removed, repeatedly (they never help a tree).
+//! 4. Chains through non-terminal vertices of degree 2 become single edges with the summed cost.
+//!
+//! Each step keeps the optimal cost, so bounds and gaps computed on the reduced graph hold for the
+//! original one.
+
+use crate::solve::disjoint::DisjointSets;
+use crate::solve::graph::{Csr, EdgeList};
+
+/// The reduced graph and the maps back to the original.
+#[derive(Debug, Clone)]
+pub struct Reduced {
+    /// Reduced graph (all costs positive, no loops, no parallel edges).
+    pub graph: EdgeList,
+    /// Reduced terminal vertices, ascending.
+    pub terminals: Vec<u32>,
+    /// Whether each reduced vertex is a terminal.
+    pub is_terminal: Vec<bool>,
+    /// Original edge ids of reduced edge `e`: `orig[orig_offsets[e]..orig_offsets[e + 1]]`.
+    pub orig: Vec<u32>,
+    /// Offsets into `orig`.
+    pub orig_offsets: Vec<usize>,
+    /// Zero-cost component ("super vertex") of every original vertex.
+    pub super_of: Vec<u32>,
+}
+
+impl Reduced {
+    /// The original edges a reduced edge stands for.
+    pub fn originals(&self, e: u32) -> &[u32] {
+        &self.orig[self.orig_offsets[e as usize]..self.orig_offsets[e as usize + 1]]
+    }
+}
+
+/// Reduces `g` for the terminal set `terminals` (original vertex ids, all mutually reachable).
+pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
+    // 1. Zero-cost components.
+    let mut ds = DisjointSets::new(g.vertices);
+    for e in 0..g.len() {
+        if g.cost[e] == 0 && g.usable(e) {
+            let [a, b] = g.ends[e];
+            ds.union(a, b);
+        }
+    }
+    let mut label = vec![u32::MAX; g.vertices];
+    let mut super_of = vec![0u32; g.vertices];
+    let mut supers = 0u32;
+    for v in 0..g.vertices as u32 {
+        let r = ds.find(v) as usize;
+        if label[r] == u32::MAX {
+            label[r] = supers;
+            supers += 1;
+        }
+        super_of[v as usize] = label[r];
+    }
+    drop(label);
+    let ns = supers as usize;
+    let mut term = vec![false; ns];
+    for &t in terminals {
+        term[super_of[t as usize] as usize] = true;
+    }
+
+    // 2. Positive edges between distinct super vertices; cheapest of parallel edges.
+    let mut se: Vec<(u32, u32, u64, u32)> = (0..g.len())
+        .filter(|&e| g.usable(e) && g.cost[e] > 0)
+        .filter_map(|e| {
+            let [a, b] = g.ends[e];
+            let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
+            (sa != sb).then(|| (sa.min(sb), sa.max(sb), g.cost[e], e as u32))
+        })
+        .collect();
+    se.sort_unstable();
+    se.dedup_by(|later, first| later.0 == first.0 && later.1 == first.1);
+    let sg = EdgeList {
+        vertices: ns,
+        ends: se.iter().map(|s| [s.0, s.1]).collect(),
+        cost: se.iter().map(|s| s.2).collect(),
+    };
+    let sorig: Vec<u32> = se.iter().map(|s| s.3).collect();
+    drop(se);
+    let csr = Csr::from_edges(&sg);
+
+    // Keep what the terminals reach.
+    let mut alive_v = vec![false; ns];
+    let mut stack: Vec<u32> = (0..ns as u32).filter(|&s| term[s as usize]).collect();
+    for &s in &stack {
+        alive_v[s as usize] = true;
+    }
+    while let Some(v) = stack.pop() {
+        for (w, _) in csr.neighbours(v) {
+            if !alive_v[w as usize] {
+                alive_v[w as usize] = true;
+                stack.push(w);
+            }
+        }
+    }
+
+    // 3. Remove non-terminal leaves repeatedly.
+    let mut alive_e: Vec<bool> = sg.ends.iter().map(|&[a, _]| alive_v[a as usize]).collect();
+    let mut deg = vec![0u32; ns];
+    for (e, &[a, b]) in sg.ends.iter().enumerate() {
+        if alive_e[e] {
+            deg[a as usize] += 1;
+            deg[b as usize] += 1;
+        }
+    }
+    let mut queue: Vec<u32> = (0..ns as u32)
+        .filter(|&v| alive_v[v as usize] && !term[v as usize] && deg[v as usize] <= 1)
+        .collect();
+    while let Some(v) = queue.pop() {
+        if !alive_v[v as usize] {
+            continue;
+        }
+        alive_v[v as usize] = false;
+        for (w, e) in csr.neighbours(v) {
+            if alive_e[e as usize] {
+                alive_e[e as usize] = false;
+                deg[v as usize] -= 1;
+                deg[w as usize] -= 1;
+                if !term[w as usize] && deg[w as usize] <= 1 {
+                    queue.push(w);
+                }
+            }
+        }
+    }
+
+    // 4. Contract degree-2 chains between key vertices (terminals and degree ≠ 2).
+    let key = |v: u32| term[v as usize] || deg[v as usize] != 2;
+    let mut key_id = vec![u32::MAX; ns];
+    let mut keys = 0u32;
+    for v in 0..ns as u32 {
+        if alive_v[v as usize] && key(v) {
+            key_id[v as usize] = keys;
+            keys += 1;
+        }
+    }
+    let mut used = vec![false; sg.len()];
+    let mut chains: Vec<(u32, u32, u64, Vec<u32>)> = Vec::new();
+    for k in 0..ns as u32 {
+        if key_id[k as usize] == u32::MAX {
+            continue;
+        }
+        for (first_w, first_e) in csr.neighbours(k) {
+            if !alive_e[first_e as usize] || used[first_e as usize] {
+                continue;
+            }
+            let mut cost = 0u64;
+            let mut path = Vec::new();
+            let (mut cur, mut e) = (first_w, first_e);
+            loop {
+                used[e as usize] = true;
+                cost += sg.cost[e as usize];
+                path.push(sorig[e as usize]);
+                if key_id[cur as usize] != u32::MAX {
+                    break;
+                }
+                // A degree-2 non-terminal: continue along its other live edge.
+                let next = csr
+                    .neighbours(cur)
+                    .find(|&(_, e2)| e2 != e && alive_e[e2 as usize] && !used[e2 as usize]);
+                match next {
+                    Some((w2, e2)) => {
+                        cur = w2;
+                        e = e2;
+                    }
+                    None => break,
+                }
+            }
+            if key_id[cur as usize] != u32::MAX && cur != k {
+                let (a, b) = (key_id[k as usize], key_id[cur as usize]);
+                chains.push((a.min(b), a.max(b), cost, path));
+            }
+        }
+    }
+    chains.sort_by(|x, y| (x.0, x.1, x.2, x.3.first()).cmp(&(y.0, y.1, y.2, y.3.first())));
+    chains.dedup_by(|later, first| later.0 == first.0 && later.1 == first.1);
+
+    let mut graph = EdgeList {
+        vertices: keys as usize,
+        ends: Vec::with_capacity(chains.len()),
+        cost: Vec::with_capacity(chains.len()),
+    };
+    let mut orig = Vec::new();
+    let mut orig_offsets = vec![0];
+    for (a, b, c, path) in chains {
+        graph.ends.push([a, b]);
+        graph.cost.push(c);
+        orig.extend(path);
+        orig_offsets.push(orig.len());
+    }
+    let mut is_terminal = vec![false; keys as usize];
+    let mut rterms = Vec::new();
+    for s in 0..ns {
+        if term[s] && key_id[s] != u32::MAX {
+            is_terminal[key_id[s] as usize] = true;
+            rterms.push(key_id[s]);
+        }
+    }
+    Reduced {
+        graph,
+        terminals: rterms,
+        is_terminal,
+        orig,
+        orig_offsets,
+        super_of,
+    }
+}
+
+/// Original edges of a solution: the road edges behind the chosen reduced edges, plus the intact
+/// edges needed to join them and the terminals inside each zero-cost component (a spanning tree of
+/// each touched component, pruned to what connects something).
+pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) -> Vec<u32> {
+    let n = g.vertices;
+    let mut need = vec![false; n];
+    for &t in terminals {
+        need[t as usize] = true;
+    }
+    let mut edges: Vec<u32> = Vec::new();
+    for &e in chosen {
+        for &o in red.originals(e) {
+            edges.push(o);
+            let [a, b] = g.ends[o as usize];
+            need[a as usize] = true;
+            need[b as usize] = true;
+        }
+    }
+    // Zero-cost components that hold something needed.
+    let supers = red
+        .super_of
+        .iter()
+        .copied()
+        .max()
+        .map_or(0, |m| m as usize + 1);
+    let mut touched = vec![false; supers];
+    for v in 0..n {
+        if need[v] {
+            touched[red.super_of[v] as usize] = true;
+        }
+    }
+    // A BFS spanning forest over intact edges of the touched components.
+    let zero = EdgeList {
+        vertices: n,
+        ends: g.ends.clone(),
+        cost: g
+            .cost
+            .iter()
+            .map(|&c| {
+                if c == 0 {
+                    0
+                } else {
+                    crate::solve::graph::UNUSABLE
+                }
+            })
+            .collect(),
+    };
+    let csr = Csr::from_edges(&zero);
+    let mut seen = vec![false; n];
+    let mut queue = std::collections::VecDeque::new();
+    for s in 0..n as u32 {
+        if seen[s as usize] || !need[s as usize] || !touched[red.super_of[s as usize] as usize] {
+            continue;
+        }
+        seen[s as usize] = true;
+        queue.push_back(s);
+        while let Some(v) = queue.pop_front() {
+            for (w, e) in csr.neighbours(v) {
+                if !seen[w as usize] {
+                    seen[w as usize] = true;
+                    edges.push(e);
+                    queue.push_back(w);
+                }
+            }
+        }
+    }
+    prune_leaves(g, &mut edges, &need);
+    edges.sort_unstable();
+    edges
+}
+
+/// Removes, repeatedly, edges that end in a vertex of degree 1 that is not needed.
+///
+/// Works in time and memory proportional to the number of edges (vertices are renumbered locally),
+/// so local search can call it on small trees inside a huge graph.
+pub fn prune_leaves(g: &EdgeList, edges: &mut Vec<u32>, need: &[bool]) {
+    let mut verts: Vec<u32> = edges.iter().flat_map(|&e| g.ends[e as usize]).collect();
+    verts.sort_unstable();
+    verts.dedup();
+    let local = |v: u32| verts.binary_search(&v).unwrap_or(0);
+    let k = verts.len();
+    prune_leaves_local(g, edges, |v| need[verts[v] as usize], local, k);
+}
+
+/// [`prune_leaves`] with the caller's own local numbering `local` of the `k` vertices involved;
+/// `need(local id)` tells which vertices must stay.
+pub fn prune_leaves_local<N, L>(g: &EdgeList, edges: &mut Vec<u32>, need: N, local: L, k: usize)
+where
+    N: Fn(usize) -> bool,
+    L: Fn(u32) -> usize,
+{
+    let mut deg = vec![0u32; k];
+    let mut ends: Vec<[usize; 2]> = Vec::with_capacity(edges.len());
+    for &e in edges.iter() {
+        let [a, b] = g.ends[e as usize];
+        let (la, lb) = (local(a), local(b));
+        deg[la] += 1;
+        deg[lb] += 1;
+        ends.push([la, lb]);
+    }
+    // Incident edge lists in CSR form.
+    let mut off = vec![0usize; k + 1];
+    for &[a, b] in &ends {
+        off[a + 1] += 1;
+        off[b + 1] += 1;
+    }
+    for i in 0..k {
+        off[i + 1] += off[i];
+    }
+    let mut fill = off.clone();
+    let mut inc = vec![0u32; off[k]];
+    for (i, &[a, b]) in ends.iter().enumerate() {
+        inc[fill[a]] = i as u32;
+        fill[a] += 1;
+        inc[fill[b]] = i as u32;
+        fill[b] += 1;
+    }
+    let mut alive = vec![true; edges.len()];
+    let mut stack: Vec<usize> = (0..k).filter(|&v| deg[v] == 1 && !need(v)).collect();
+    while let Some(v) = stack.pop() {
+        if deg[v] != 1 {
+            continue;
+        }
+        let Some(&i) = inc[off[v]..off[v + 1]].iter().find(|&&i| alive[i as usize]) else {
+            continue;
+        };
+        alive[i as usize] = false;
+        let [a, b] = ends[i as usize];
+        let w = if a == v { b } else { a };
+        deg[v] -= 1;
+        deg[w] -= 1;
+        if deg[w] == 1 && !need(w) {
+            stack.push(w);
+        }
+    }
+    let mut i = 0;
+    edges.retain(|_| {
+        let keep = alive[i];
+        i += 1;
+        keep
+    });
+}
