@@ -264,8 +264,7 @@ impl State<'_> {
         let mut seen: std::collections::HashSet<u32> = [a, b].into_iter().collect();
         let mut sides = [(vec![a], 0usize), (vec![b], 0usize)];
         loop {
-            for side in 0..2 {
-                let (list, next) = &mut sides[side];
+            for (list, next) in sides.iter_mut() {
                 if *next == list.len() {
                     return std::mem::take(list);
                 }
