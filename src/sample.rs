@@ -10,3 +10,12 @@ pub const ROADS: &[u8] = include_bytes!("../sample-maps/kestrel-vale/roads.geojs
 
 /// Display path of the bundled road layer.
 pub const ROADS_NAME: &str = "sample-maps/kestrel-vale/roads.geojson (bundled)";
+
+/// The demo's critical sites (GeoJSON points: a hospital, shelters, a depot, a water plant, a clinic).
+pub const SITES: &[u8] = include_bytes!("../sample-maps/kestrel-vale/sites.geojson");
+
+/// Display path of the bundled sites layer.
+pub const SITES_NAME: &str = "sample-maps/kestrel-vale/sites.geojson (bundled)";
+
+/// The demo's hub: the relief depot at Corran Ford.
+pub const HUB: &str = "S3";

@@ -5,12 +5,57 @@ use common::*;
 use std::fs;
 
 #[test]
-fn demo_writes_a_complete_consistent_set() {
+fn demo_joins_the_sites_and_reports_them() {
     let d = tmp();
     let out = d.path().join("demo");
     let o = run(&["demo", "--out", out.to_str().unwrap(), "--quiet"]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(o.stderr.is_empty(), "--quiet printed: {}", stderr(&o));
+    assert_eq!(
+        listing(&out),
+        [
+            "network.geojson",
+            "plan.geojson",
+            "sites.geojson",
+            "summary.json"
+        ],
+        "no staging folder may remain"
+    );
+    let s = read_json(&out.join("summary.json"));
+    let sites = read_fc(&out.join("sites.geojson"));
+    assert_eq!(
+        sites.features.len() as u64,
+        s["sites"]["total"].as_u64().unwrap()
+    );
+    assert_eq!(s["sites"]["hub"], "S3");
+    let cost = s["total_cost"].as_f64().unwrap();
+    let bound = s["lower_bound"].as_f64().unwrap();
+    assert!(bound <= cost + 1e-9);
+    let connected = sites
+        .features
+        .iter()
+        .filter(|f| f.property("connected").unwrap().as_bool().unwrap())
+        .count();
+    assert_eq!(connected as u64, s["sites"]["connected"].as_u64().unwrap());
+    for f in &sites.features {
+        if f.property("status").unwrap() == "not attached" {
+            assert!(f.property("reason").unwrap().is_string());
+        }
+    }
+}
+
+#[test]
+fn whole_network_demo_writes_a_complete_consistent_set() {
+    let d = tmp();
+    let out = d.path().join("demo");
+    let o = run(&[
+        "demo",
+        "--whole-network",
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(
         listing(&out),
         ["network.geojson", "plan.geojson", "summary.json"],
@@ -127,6 +172,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
+    assert_eq!(listing(&out).len(), 4);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -135,11 +181,24 @@ fn existing_outputs_need_force() {
         before,
         "left untouched"
     );
-    let o = run(&["demo", "--out", out_s, "-q", "--snap", "1", "--force"]);
+    // Replacing with a whole-network plan must not leave the old sites layer behind.
+    let o = run(&[
+        "demo",
+        "--out",
+        out_s,
+        "-q",
+        "--snap",
+        "1",
+        "--force",
+        "--whole-network",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["settings"]["snap_m"], 1.0);
-    assert_eq!(listing(&out).len(), 3);
+    assert_eq!(
+        listing(&out),
+        ["network.geojson", "plan.geojson", "summary.json"]
+    );
 }
 
 #[test]

@@ -4,8 +4,12 @@ use clap::{Args, ValueEnum};
 use reknit::export::Summary;
 use reknit::ingest::RoadSettings;
 use reknit::ingest::damage::DamageRule;
+use reknit::ingest::sites::SiteSettings;
+use reknit::job::PlanJob;
 use reknit::progress::Progress;
 use reknit::solve::MstAlgorithm;
+use reknit::solve::steiner::Effort;
+use std::path::PathBuf;
 
 #[derive(Debug, Clone, Copy, ValueEnum)]
 pub enum MstChoice {
@@ -66,6 +70,82 @@ impl NetworkArgs {
     }
 }
 
+#[derive(Debug, Clone, Copy, ValueEnum)]
+pub enum EffortChoice {
+    /// One improvement start and a short bound computation.
+    Quick,
+    /// Several starts, local search, a full bound on most networks.
+    Normal,
+    /// Many starts and an unlimited bound computation.
+    Thorough,
+}
+
+/// Critical sites and the plan that joins them.
+#[derive(Debug, Args)]
+pub struct SiteArgs {
+    /// Critical sites (hospitals, shelters, depots…): GeoJSON points, or CSV with lon/lat columns.
+    /// With sites, the plan joins the sites only (a Steiner tree) instead of the whole network.
+    #[arg(long, value_name = "FILE")]
+    pub sites: Option<PathBuf>,
+
+    /// Largest distance in metres from a site to the road it joins; farther sites are reported.
+    #[arg(long, value_name = "METRES", default_value_t = 250.0)]
+    pub max_attach: f64,
+
+    /// Id of the hub site (the depot crews start from); default: the site with the highest priority.
+    #[arg(long, value_name = "SITE_ID")]
+    pub hub: Option<String>,
+
+    /// Plan the whole network (every junction) even when sites are given.
+    #[arg(long)]
+    pub whole_network: bool,
+
+    /// Time spent improving the sites plan; every effort gives the same result on every run.
+    #[arg(long, value_enum, default_value = "normal")]
+    pub effort: EffortChoice,
+
+    /// Site property or column holding each site's id (default: id, site_id, fid or name).
+    #[arg(long, value_name = "FIELD")]
+    pub site_id_field: Option<String>,
+
+    /// Site property or column holding a display name (default: name).
+    #[arg(long, value_name = "FIELD")]
+    pub site_name_field: Option<String>,
+
+    /// Site property or column holding a priority, higher first (default: priority; absent = 1).
+    #[arg(long, value_name = "FIELD")]
+    pub priority_field: Option<String>,
+
+    /// CSV column with longitudes (default: lon, lng, longitude or x).
+    #[arg(long, value_name = "COLUMN")]
+    pub lon_column: Option<String>,
+
+    /// CSV column with latitudes (default: lat, latitude or y).
+    #[arg(long, value_name = "COLUMN")]
+    pub lat_column: Option<String>,
+}
+
+impl SiteArgs {
+    /// Copies the site settings into a job.
+    pub fn apply(&self, job: &mut PlanJob) {
+        job.site_settings = SiteSettings {
+            id_field: self.site_id_field.clone(),
+            name_field: self.site_name_field.clone(),
+            priority_field: self.priority_field.clone(),
+            lon_column: self.lon_column.clone(),
+            lat_column: self.lat_column.clone(),
+        };
+        job.max_attach_m = self.max_attach;
+        job.hub = self.hub.clone();
+        job.whole_network = self.whole_network;
+        job.effort = match self.effort {
+            EffortChoice::Quick => Effort::Quick,
+            EffortChoice::Normal => Effort::Normal,
+            EffortChoice::Thorough => Effort::Thorough,
+        };
+    }
+}
+
 /// Output and terminal flags.
 #[derive(Debug, Args)]
 pub struct OutputArgs {
@@ -105,6 +185,25 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         "plan: {} edges, {} to repair, {:.3} repair-metres over {:.3} m of road",
         summary.plan_edges, summary.plan.repair_edges, summary.total_cost, summary.repair_length_m
     );
+    if let Some(s) = &summary.sites {
+        eprintln!(
+            "sites: {} of {} connected; lower bound {:.3} repair-metres ({})",
+            s.connected,
+            s.total,
+            summary.lower_bound,
+            match summary.gap {
+                Some(g) if g == 0.0 => "the plan is optimal".to_string(),
+                Some(g) => format!("the plan is at most {:.2} % above optimal", 100.0 * g),
+                None => "no gap: the bound is 0".to_string(),
+            }
+        );
+        for u in &s.unconnected {
+            eprintln!("  {} not connected: {}", u.id, u.reason);
+        }
+        if let Some(n) = &s.note {
+            eprintln!("  note: {n}");
+        }
+    }
     eprintln!("outputs written to {}", out.display());
     eprintln!("caution: decision support only; field-verify every segment before sending crews.");
 }

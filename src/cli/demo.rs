@@ -14,6 +14,10 @@ pub struct DemoArgs {
     #[arg(long, value_name = "DIR", default_value = "reknit-demo")]
     out: PathBuf,
 
+    /// Plan the whole network instead of joining the demo's critical sites.
+    #[arg(long)]
+    whole_network: bool,
+
     #[command(flatten)]
     network: NetworkArgs,
 
@@ -27,16 +31,22 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
         "demo: {} (an invented district with synthetic roads)",
         sample::DISTRICT
     ));
-    let job = PlanJob {
-        roads: Source::Bundled {
-            name: sample::ROADS_NAME.into(),
-            bytes: sample::ROADS,
-        },
-        out: a.out,
-        force: a.output.force,
-        road_settings: a.network.road_settings(),
-        mst: a.network.mst(),
+    let roads = Source::Bundled {
+        name: sample::ROADS_NAME.into(),
+        bytes: sample::ROADS,
     };
+    let mut job = PlanJob::new(roads, a.out);
+    job.force = a.output.force;
+    job.road_settings = a.network.road_settings();
+    job.mst = a.network.mst();
+    job.whole_network = a.whole_network;
+    if !a.whole_network {
+        job.sites = Some(Source::Bundled {
+            name: sample::SITES_NAME.into(),
+            bytes: sample::SITES,
+        });
+        job.hub = Some(sample::HUB.into());
+    }
     let summary = run_plan(&job, &progress)?;
     print_result(&summary, &job.out, &progress);
     Ok(ExitCode::SUCCESS)

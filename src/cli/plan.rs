@@ -1,16 +1,17 @@
 //! `reknit plan`: one district from a road layer to the plan and its map layers.
 
-use super::common::{NetworkArgs, OutputArgs, print_result};
+use super::common::{NetworkArgs, OutputArgs, SiteArgs, print_result};
 use clap::Args;
 use reknit::ingest::source::Source;
 use reknit::{PlanJob, run_plan};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-/// Build the road network and the least-cost repair plan that reconnects it.
+/// Build the road network and the least-cost repair plan that reconnects it, or that joins the
+/// critical sites given with --sites.
 ///
-/// Writes network.geojson (every edge), plan.geojson (the chosen edges) and summary.json into the
-/// output folder; nothing is written when the run fails.
+/// Writes network.geojson (every edge), plan.geojson (the chosen edges), sites.geojson (with
+/// --sites) and summary.json into the output folder; nothing is written when the run fails.
 #[derive(Debug, Args)]
 pub struct PlanArgs {
     /// Road centerline layer: GeoJSON FeatureCollection of LineString/MultiLineString in lon/lat.
@@ -25,18 +26,20 @@ pub struct PlanArgs {
     network: NetworkArgs,
 
     #[command(flatten)]
+    sites: SiteArgs,
+
+    #[command(flatten)]
     output: OutputArgs,
 }
 
 pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
-    let job = PlanJob {
-        roads: Source::File(a.roads),
-        out: a.out,
-        force: a.output.force,
-        road_settings: a.network.road_settings(),
-        mst: a.network.mst(),
-    };
+    let mut job = PlanJob::new(Source::File(a.roads), a.out);
+    job.force = a.output.force;
+    job.road_settings = a.network.road_settings();
+    job.mst = a.network.mst();
+    a.sites.apply(&mut job);
+    job.sites = a.sites.sites.clone().map(Source::File);
     let summary = run_plan(&job, &progress)?;
     print_result(&summary, &job.out, &progress);
     Ok(ExitCode::SUCCESS)

@@ -12,8 +12,10 @@ pub enum Prop<'a> {
     Int(i64),
     /// A number printed with 3 decimals (metres, repair-metres).
     Fixed3(f64),
-    /// A number printed with up to 6 significant decimals, trailing zeros trimmed.
+    /// A number printed with up to 6 decimals, trailing zeros trimmed.
     Num(f64),
+    /// A coordinate printed with up to 7 decimals, trailing zeros trimmed.
+    Num7(f64),
     /// A string.
     Str(&'a str),
     /// A boolean.
@@ -106,6 +108,7 @@ fn push_prop(buf: &mut String, v: &Prop) {
         }
         Prop::Fixed3(x) => push_decimal(buf, *x, 3, false),
         Prop::Num(x) => push_decimal(buf, *x, 6, true),
+        Prop::Num7(x) => push_decimal(buf, *x, 7, true),
         Prop::Str(s) => push_json_str(buf, s),
         Prop::Bool(b) => buf.push_str(if *b { "true" } else { "false" }),
         Prop::Json(Value::String(s)) => push_json_str(buf, s),

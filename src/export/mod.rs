@@ -4,6 +4,7 @@
 //! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
 
 pub mod geojson;
+pub mod sites;
 pub mod staging;
 pub mod summary;
 
@@ -38,16 +39,21 @@ pub enum ExportError {
     },
 }
 
-/// Writes `network.geojson`, `plan.geojson` and `summary.json` into `out` as one set.
+/// Writes `network.geojson`, `plan.geojson`, `sites.geojson` (when there are sites) and
+/// `summary.json` into `out` as one set.
 pub fn write_outputs(
     out: &Path,
     force: bool,
     net: &Network,
     comps: &Components,
     plan: &Plan,
+    sites: Option<&[sites::SiteRow]>,
     summary: &Summary,
 ) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
+    if let Some(rows) = sites {
+        st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
+    }
     let (a, b) = rayon::join(
         || st.write("network.geojson", |w| write_edges(w, net, comps, None)),
         || {

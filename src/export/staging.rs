@@ -10,7 +10,12 @@ use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 
 /// Every file name reknit may write into an output folder, `summary.json` last.
-pub const OUTPUT_NAMES: &[&str] = &["network.geojson", "plan.geojson", "summary.json"];
+pub const OUTPUT_NAMES: &[&str] = &[
+    "network.geojson",
+    "plan.geojson",
+    "sites.geojson",
+    "summary.json",
+];
 
 /// The file whose presence marks a complete output set.
 pub const COMPLETE_MARKER: &str = "summary.json";

@@ -85,6 +85,55 @@ pub struct PlanFigures {
     pub trees: usize,
     /// Plan edges that need repair (cost above 0).
     pub repair_edges: usize,
+    /// False when the lower bound stopped at its work budget (it still holds, but may be weak).
+    pub bound_complete: bool,
+}
+
+/// A site the plan cannot connect, and why.
+#[derive(Debug, Clone, Serialize)]
+pub struct UnconnectedSite {
+    /// The site's id.
+    pub id: String,
+    /// Its name, when it has one.
+    pub name: Option<String>,
+    /// Why it is not connected.
+    pub reason: String,
+    /// Distance to the nearest road (not attached) or attachment distance, metres.
+    pub distance_m: Option<f64>,
+}
+
+/// One group of sites that can reach each other over usable roads.
+#[derive(Debug, Clone, Serialize)]
+pub struct GroupFigures {
+    /// Site ids in the group.
+    pub sites: Vec<String>,
+    /// Repair cost of the group's tree, repair-metres.
+    pub cost: f64,
+    /// Proven lower bound for the group, repair-metres.
+    pub lower_bound: f64,
+    /// (cost − bound) / bound; null when only the bound is 0.
+    pub gap: Option<f64>,
+    /// Vertices and edges of the reduced graph searched.
+    pub reduced_graph: [usize; 2],
+}
+
+/// Figures about the critical sites.
+#[derive(Debug, Clone, Serialize)]
+pub struct SitesFigures {
+    /// Sites read.
+    pub total: usize,
+    /// Sites attached to a usable road.
+    pub attached: usize,
+    /// Sites joined to at least one other site by the plan.
+    pub connected: usize,
+    /// The hub (depot) site's id.
+    pub hub: Option<String>,
+    /// Groups of sites that can reach each other, with their trees' figures.
+    pub groups: Vec<GroupFigures>,
+    /// Sites that cannot be connected, with the reason.
+    pub unconnected: Vec<UnconnectedSite>,
+    /// A note on trivial cases (no sites, one site).
+    pub note: Option<String>,
 }
 
 /// The whole `summary.json`.
@@ -102,8 +151,16 @@ pub struct Summary {
     pub counts: Counts,
     /// Plan description.
     pub plan: PlanFigures,
+    /// Figures about the critical sites (null for a whole-network plan without sites).
+    pub sites: Option<SitesFigures>,
     /// Total repair cost of the plan, repair-metres.
     pub total_cost: f64,
+    /// Proven lower bound on the cost of any plan connecting the same things, repair-metres.
+    pub lower_bound: f64,
+    /// (total_cost − lower_bound) / lower_bound; 0 when both are 0; null when only the bound is 0.
+    pub gap: Option<f64>,
+    /// True when the plan is proven optimal (gap 0).
+    pub optimal: bool,
     /// Unit of every cost: one metre of road at damage factor 1.0.
     pub cost_unit: &'static str,
     /// Length of road to repair in the plan, metres.

@@ -12,6 +12,9 @@ use serde_json::Value;
 use std::fmt;
 use std::io::Read;
 
+/// Pass this as the only wanted property name to keep every property.
+pub const ALL_PROPERTIES: &str = "*";
+
 /// One feature as read: geometry type and coordinates, its `id` member and the wanted properties.
 #[derive(Debug, Default)]
 pub struct RawFeature {
@@ -392,7 +395,9 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
     }
     fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<bool, A::Error> {
         while let Some(key) = map.next_key::<String>()? {
-            if self.wanted.contains(&key) {
+            if self.wanted.contains(&key)
+                || self.wanted.first().is_some_and(|w| w == ALL_PROPERTIES)
+            {
                 let v: Value = map.next_value()?;
                 self.out.push((key, v));
             } else {

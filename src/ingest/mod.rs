@@ -4,6 +4,7 @@
 //! vertices within the snapping tolerance, splits lines at shared vertices, drops zero-length pieces
 //! and duplicates, and measures every edge on the ellipsoid. Nothing after this stage touches files.
 
+pub mod attach;
 pub mod coords;
 pub mod damage;
 pub mod geodesy;
@@ -11,6 +12,7 @@ pub mod geojson;
 pub mod noding;
 pub mod roads;
 pub mod scan;
+pub mod sites;
 pub mod source;
 
 use crate::network::Network;

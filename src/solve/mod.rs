@@ -10,6 +10,7 @@ pub mod graph;
 pub mod kruskal;
 pub mod prim;
 pub mod radix;
+pub mod site_plan;
 pub mod steiner;
 pub mod stp;
 pub mod verify;
@@ -55,6 +56,8 @@ impl MstAlgorithm {
 pub enum PlanKind {
     /// Every junction to every other junction of its component (minimum spanning forest).
     WholeNetwork,
+    /// The critical sites of each group to each other (Steiner trees).
+    Sites,
 }
 
 impl PlanKind {
@@ -62,11 +65,12 @@ impl PlanKind {
     pub fn describe(self) -> &'static str {
         match self {
             PlanKind::WholeNetwork => "minimum spanning forest of the whole usable network",
+            PlanKind::Sites => "Steiner tree joining the critical sites of each reachable group",
         }
     }
 }
 
-/// The chosen edges and their total cost.
+/// The chosen edges, their total cost and a lower bound on the best possible cost.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Plan {
     /// What the plan connects.
@@ -77,6 +81,10 @@ pub struct Plan {
     pub total_cost: Cost,
     /// Number of trees with at least one edge.
     pub trees: usize,
+    /// A proven lower bound on the cost of any plan connecting the same things.
+    pub lower_bound: Cost,
+    /// False when the bound computation stopped at its work budget.
+    pub bound_complete: bool,
 }
 
 /// Minimum spanning forest of the usable edges, verified before it is returned.
@@ -94,11 +102,15 @@ pub fn minimum_spanning_forest(g: &EdgeList, alg: MstAlgorithm) -> Result<Plan, 
     for &c in &comps.of {
         size[c as usize] += 1;
     }
+    let total_cost = g.total(&edges);
     Ok(Plan {
         kind: PlanKind::WholeNetwork,
-        total_cost: g.total(&edges),
+        total_cost,
         trees: size.iter().filter(|&&s| s > 1).count(),
         edges,
+        // A minimum spanning forest is optimal: its own cost is the bound.
+        lower_bound: total_cost,
+        bound_complete: true,
     })
 }
 

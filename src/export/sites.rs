@@ -1,0 +1,99 @@
+//! The sites layer: every site with its attributes, where it joined the network, and its status.
+
+use super::geojson::{GeoJsonWriter, Prop};
+use serde_json::{Map, Value};
+use std::io::Write;
+
+/// One site as written to `sites.geojson`.
+#[derive(Debug, Clone)]
+pub struct SiteRow {
+    /// The site's id.
+    pub id: String,
+    /// Display name.
+    pub name: Option<String>,
+    /// Priority.
+    pub priority: f64,
+    /// Site position, lon/lat.
+    pub pos: [f64; 2],
+    /// The input attributes.
+    pub attributes: Map<String, Value>,
+    /// True for the hub (depot).
+    pub hub: bool,
+    /// Junction it joined.
+    pub junction: Option<u32>,
+    /// Point on the road where it joined, lon/lat.
+    pub attach_point: Option<[f64; 2]>,
+    /// Distance from the site to that point (or to the nearest road), metres.
+    pub attach_distance_m: Option<f64>,
+    /// `connected`, `alone` (no other site reachable) or `not attached`.
+    pub status: &'static str,
+    /// Why it is not connected.
+    pub reason: Option<String>,
+    /// Index of its group in summary.json.
+    pub group: Option<usize>,
+}
+
+/// Writes the sites as Point features; reknit's own properties first, the input's after them
+/// (an input property with the same name as one of reknit's is prefixed with `input_`).
+pub fn write_sites<W: Write>(w: W, rows: &[SiteRow]) -> std::io::Result<()> {
+    const OWN: [&str; 11] = [
+        "site_id",
+        "name",
+        "priority",
+        "hub",
+        "status",
+        "connected",
+        "reason",
+        "group",
+        "junction",
+        "attach_distance_m",
+        "attach_lon",
+    ];
+    let mut gj = GeoJsonWriter::new(w)?;
+    for r in rows {
+        let renamed: Vec<(String, &Value)> = r
+            .attributes
+            .iter()
+            .map(|(k, v)| {
+                let k = if OWN.contains(&k.as_str()) || k == "attach_lat" {
+                    format!("input_{k}")
+                } else {
+                    k.clone()
+                };
+                (k, v)
+            })
+            .collect();
+        let mut props: Vec<(&str, Prop)> = vec![
+            ("site_id", Prop::Str(&r.id)),
+            ("name", r.name.as_deref().map_or(Prop::Null, Prop::Str)),
+            ("priority", Prop::Num(r.priority)),
+            ("hub", Prop::Bool(r.hub)),
+            ("status", Prop::Str(r.status)),
+            ("connected", Prop::Bool(r.status == "connected")),
+            ("reason", r.reason.as_deref().map_or(Prop::Null, Prop::Str)),
+            ("group", r.group.map_or(Prop::Null, |g| Prop::Int(g as i64))),
+            (
+                "junction",
+                r.junction.map_or(Prop::Null, |j| Prop::Int(j as i64)),
+            ),
+            (
+                "attach_distance_m",
+                r.attach_distance_m.map_or(Prop::Null, Prop::Fixed3),
+            ),
+            (
+                "attach_lon",
+                r.attach_point.map_or(Prop::Null, |p| Prop::Num7(p[0])),
+            ),
+            (
+                "attach_lat",
+                r.attach_point.map_or(Prop::Null, |p| Prop::Num7(p[1])),
+            ),
+        ];
+        for (k, v) in &renamed {
+            props.push((k.as_str(), Prop::Json(v)));
+        }
+        gj.point(&props, r.pos)?;
+    }
+    gj.finish()?;
+    Ok(())
+}

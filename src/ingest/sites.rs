@@ -1,0 +1,365 @@
+//! Critical sites (hospitals, shelters, depots, water plants): points from GeoJSON or CSV.
+
+use super::IngestError;
+use super::geojson::{ReadFailure, read_collection};
+use super::source::{HashingReader, InputRecord, Source};
+use serde_json::{Map, Value};
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+/// Property names tried for a site's id when no `--site-id-field` is given (after the GeoJSON `id`).
+pub const SITE_ID_FIELDS: &[&str] = &["site_id", "id", "ID", "fid", "FID", "name", "NAME"];
+/// Column names tried for longitude in CSV files.
+pub const LON_COLUMNS: &[&str] = &[
+    "lon",
+    "lng",
+    "long",
+    "longitude",
+    "x",
+    "LON",
+    "Longitude",
+    "X",
+];
+/// Column names tried for latitude in CSV files.
+pub const LAT_COLUMNS: &[&str] = &["lat", "latitude", "y", "LAT", "Latitude", "Y"];
+
+/// How sites are read.
+#[derive(Debug, Clone, Default)]
+pub struct SiteSettings {
+    /// Field holding each site's id (default: the GeoJSON id, then `site_id`, `id`, `fid`, `name`).
+    pub id_field: Option<String>,
+    /// Field holding a display name (default `name`).
+    pub name_field: Option<String>,
+    /// Field holding a numeric priority, higher first (default `priority`; absent means 1).
+    pub priority_field: Option<String>,
+    /// CSV column with longitudes (default: `lon`, `lng`, `longitude` or `x`).
+    pub lon_column: Option<String>,
+    /// CSV column with latitudes (default: `lat`, `latitude` or `y`).
+    pub lat_column: Option<String>,
+}
+
+/// One critical site.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Site {
+    /// 0-based position in the input.
+    pub index: usize,
+    /// The site's id (unique in the layer).
+    pub id: String,
+    /// Display name, when the layer has one.
+    pub name: Option<String>,
+    /// Priority: higher sites matter more (default 1).
+    pub priority: f64,
+    /// Position, lon/lat WGS84.
+    pub pos: [f64; 2],
+    /// All attributes of the input feature or row, carried through to the outputs.
+    pub attributes: Map<String, Value>,
+}
+
+/// The sites of a layer with the input's fingerprint.
+#[derive(Debug, Clone)]
+pub struct SiteLayer {
+    /// Sites in input order.
+    pub sites: Vec<Site>,
+    /// Path, size and SHA-256 of the input.
+    pub input: InputRecord,
+}
+
+/// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by extension.
+pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
+    let path = source.display_path();
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(|e| e.to_ascii_lowercase());
+    let mut reader = source.open()?;
+    let sites = match ext.as_deref() {
+        Some("csv") | Some("txt") => read_csv(&mut reader, &path, settings)?,
+        _ => read_geojson(&mut reader, &path, settings)?,
+    };
+    let (sha256, bytes) =
+        HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
+            path: path.clone(),
+            source,
+        })?;
+    check_unique(&path, &sites)?;
+    Ok(SiteLayer {
+        sites,
+        input: InputRecord {
+            role: "sites".into(),
+            path: path.display().to_string(),
+            bytes,
+            sha256,
+        },
+    })
+}
+
+fn feature_err(path: &Path, feature: usize, field: Option<&str>, message: String) -> IngestError {
+    IngestError::Feature {
+        path: path.to_path_buf(),
+        feature,
+        field: field.map(str::to_string),
+        message,
+    }
+}
+
+fn read_geojson<R: std::io::Read>(
+    reader: R,
+    path: &PathBuf,
+    s: &SiteSettings,
+) -> Result<Vec<Site>, IngestError> {
+    let mut sites = Vec::new();
+    // Keep every property: sites are few, and their attributes go to the outputs.
+    read_collection_all(reader, |index, f, props| {
+        match f.geometry_type.as_deref() {
+            Some("Point") if f.coords.height == 1 => {}
+            Some(other) => {
+                return Err(feature_err(
+                    path,
+                    index,
+                    Some("geometry"),
+                    format!("sites must be Points, found {other}"),
+                ));
+            }
+            None => {
+                return Err(feature_err(
+                    path,
+                    index,
+                    Some("geometry"),
+                    "the site has no geometry".into(),
+                ));
+            }
+        }
+        let pos = f.coords.pos[0];
+        check_lonlat(path, index, pos)?;
+        let id = match &s.id_field {
+            Some(field) => props.get(field).and_then(text),
+            None => f.id.as_ref().and_then(text).or_else(|| {
+                SITE_ID_FIELDS
+                    .iter()
+                    .find_map(|k| props.get(*k).and_then(text))
+            }),
+        }
+        .unwrap_or_else(|| format!("site-{}", index + 1));
+        let name_field = s.name_field.as_deref().unwrap_or("name");
+        let priority = priority(path, index, &props, s)?;
+        sites.push(Site {
+            index,
+            id,
+            name: props.get(name_field).and_then(text),
+            priority,
+            pos,
+            attributes: props,
+        });
+        Ok(())
+    })
+    .map_err(|e| match e {
+        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
+            path: path.clone(),
+            feature,
+            message,
+        },
+        ReadFailure::NotCollection(message) => IngestError::NotCollection {
+            path: path.clone(),
+            message,
+        },
+        ReadFailure::Io(source) => IngestError::Io {
+            path: path.clone(),
+            source,
+        },
+        ReadFailure::Callback(e) => e,
+    })?;
+    Ok(sites)
+}
+
+/// Like [`read_collection`] but hands every feature's full property map to the callback.
+fn read_collection_all<R, F>(reader: R, mut sink: F) -> Result<(), ReadFailure<IngestError>>
+where
+    R: std::io::Read,
+    F: FnMut(usize, super::geojson::RawFeature, Map<String, Value>) -> Result<(), IngestError>,
+{
+    read_collection(
+        reader,
+        &[super::geojson::ALL_PROPERTIES.to_string()],
+        |i, mut f| {
+            let props: Map<String, Value> = std::mem::take(&mut f.props).into_iter().collect();
+            sink(i, f, props)
+        },
+    )
+    .map(|_| ())
+}
+
+fn read_csv<R: std::io::Read>(
+    reader: R,
+    path: &Path,
+    s: &SiteSettings,
+) -> Result<Vec<Site>, IngestError> {
+    let mut rdr = csv::ReaderBuilder::new()
+        .flexible(false)
+        .from_reader(reader);
+    let csv_err = |e: csv::Error| {
+        let line = e.position().map(|p| p.line()).unwrap_or(0);
+        IngestError::Syntax {
+            path: path.to_path_buf(),
+            feature: None,
+            message: format!("not valid CSV at line {line}: {e}"),
+        }
+    };
+    let headers = rdr.headers().map_err(csv_err)?.clone();
+    let find =
+        |given: &Option<String>, defaults: &[&str], what: &str| -> Result<usize, IngestError> {
+            let names: Vec<&str> = match given {
+                Some(g) => vec![g.as_str()],
+                None => defaults.to_vec(),
+            };
+            names
+                .iter()
+                .find_map(|n| headers.iter().position(|h| h.trim() == *n))
+                .ok_or_else(|| IngestError::Feature {
+                    path: path.to_path_buf(),
+                    feature: 0,
+                    field: Some(names.join("|")),
+                    message: format!(
+                        "no {what} column; the columns are: {}",
+                        headers.iter().collect::<Vec<_>>().join(", ")
+                    ),
+                })
+        };
+    let lon_i = find(&s.lon_column, LON_COLUMNS, "longitude")?;
+    let lat_i = find(&s.lat_column, LAT_COLUMNS, "latitude")?;
+    let mut sites = Vec::new();
+    for (index, rec) in rdr.records().enumerate() {
+        let rec = rec.map_err(csv_err)?;
+        let num = |i: usize| -> Result<f64, IngestError> {
+            let v = rec.get(i).unwrap_or("").trim();
+            v.parse::<f64>()
+                .ok()
+                .filter(|x| x.is_finite())
+                .ok_or_else(|| {
+                    feature_err(
+                        path,
+                        index,
+                        Some(&headers[i]),
+                        format!("{v:?} is not a number"),
+                    )
+                })
+        };
+        let pos = [num(lon_i)?, num(lat_i)?];
+        check_lonlat(path, index, pos)?;
+        let mut attributes = Map::new();
+        for (h, v) in headers.iter().zip(rec.iter()) {
+            let value = match v.trim().parse::<f64>() {
+                Ok(x) if x.is_finite() && !v.trim().is_empty() => serde_json::Number::from_f64(x)
+                    .map(Value::Number)
+                    .unwrap_or_else(|| Value::from(v)),
+                _ => Value::from(v),
+            };
+            attributes.insert(h.to_string(), value);
+        }
+        let id = match &s.id_field {
+            Some(f) => attributes.get(f).and_then(text),
+            None => SITE_ID_FIELDS
+                .iter()
+                .find_map(|k| attributes.get(*k).and_then(text)),
+        }
+        .unwrap_or_else(|| format!("site-{}", index + 1));
+        let name_field = s.name_field.as_deref().unwrap_or("name");
+        let priority = priority(path, index, &attributes, s)?;
+        sites.push(Site {
+            index,
+            id,
+            name: attributes.get(name_field).and_then(text),
+            priority,
+            pos,
+            attributes,
+        });
+    }
+    Ok(sites)
+}
+
+fn text(v: &Value) -> Option<String> {
+    match v {
+        Value::String(s) if !s.trim().is_empty() => Some(s.trim().to_string()),
+        Value::Number(n) => Some(match n.as_i64() {
+            Some(i) => i.to_string(),
+            None => n.to_string(),
+        }),
+        _ => None,
+    }
+}
+
+fn priority(
+    path: &Path,
+    index: usize,
+    props: &Map<String, Value>,
+    s: &SiteSettings,
+) -> Result<f64, IngestError> {
+    let field = s.priority_field.as_deref().unwrap_or("priority");
+    match props.get(field) {
+        None | Some(Value::Null) => Ok(1.0),
+        Some(Value::Number(n)) => n
+            .as_f64()
+            .filter(|x| x.is_finite() && *x >= 0.0)
+            .ok_or_else(|| {
+                feature_err(
+                    path,
+                    index,
+                    Some(field),
+                    format!("priority {n} is not a number ≥ 0"),
+                )
+            }),
+        Some(Value::String(t)) if t.trim().is_empty() => Ok(1.0),
+        Some(Value::String(t)) => t
+            .trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|x| x.is_finite() && *x >= 0.0)
+            .ok_or_else(|| {
+                feature_err(
+                    path,
+                    index,
+                    Some(field),
+                    format!("priority {t:?} is not a number ≥ 0"),
+                )
+            }),
+        Some(other) => Err(feature_err(
+            path,
+            index,
+            Some(field),
+            format!("priority {other} is not a number ≥ 0"),
+        )),
+    }
+}
+
+fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(), IngestError> {
+    if p[0].is_finite() && p[1].is_finite() && p[0].abs() <= 180.0 && p[1].abs() <= 90.0 {
+        Ok(())
+    } else {
+        Err(feature_err(
+            path,
+            index,
+            Some("geometry"),
+            format!(
+                "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90)",
+                p[0], p[1]
+            ),
+        ))
+    }
+}
+
+fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
+    let mut seen: HashMap<&str, usize> = HashMap::new();
+    for s in sites {
+        if let Some(first) = seen.insert(&s.id, s.index) {
+            return Err(feature_err(
+                path,
+                s.index,
+                None,
+                format!(
+                    "site id {:?} is used twice (also by feature {first}); site ids must be unique",
+                    s.id
+                ),
+            ));
+        }
+    }
+    Ok(())
+}

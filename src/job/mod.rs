@@ -1,0 +1,309 @@
+//! One district's run from inputs to outputs: ingest → network → plan → layers.
+//!
+//! The command line (and the batch runner) call [`run_plan`]; it owns the order of the stages.
+//! [`summary`] turns the stages' results into `summary.json`.
+
+pub mod summary;
+
+use crate::export::sites::SiteRow;
+use crate::export::{self, ExportError, Summary};
+use crate::ingest::attach::{Attachment, attach_sites};
+use crate::ingest::sites::{SiteLayer, SiteSettings, read_sites};
+use crate::ingest::source::Source;
+use crate::ingest::{self, IngestError, RoadSettings};
+use crate::progress::Progress;
+use crate::solve::site_plan::{SitePlan, plan_sites};
+use crate::solve::steiner::Effort;
+use crate::solve::{self, MstAlgorithm, Plan, PlanKind, SolveError};
+use std::path::PathBuf;
+
+/// Largest attachment distance accepted, metres.
+pub const MAX_ATTACH_LIMIT_M: f64 = 10_000.0;
+
+/// Everything one planning run needs.
+#[derive(Debug, Clone)]
+pub struct PlanJob {
+    /// The road centerline layer.
+    pub roads: Source,
+    /// The critical sites, when the plan should join sites rather than the whole network.
+    pub sites: Option<Source>,
+    /// Output folder.
+    pub out: PathBuf,
+    /// Replace outputs already in `out`.
+    pub force: bool,
+    /// Reading and noding settings.
+    pub road_settings: RoadSettings,
+    /// Reading settings for sites.
+    pub site_settings: SiteSettings,
+    /// Largest distance from a site to the road it attaches to, metres.
+    pub max_attach_m: f64,
+    /// The hub (depot) site's id; default the site with the highest priority.
+    pub hub: Option<String>,
+    /// Plan the whole network even when sites are given.
+    pub whole_network: bool,
+    /// Minimum spanning forest algorithm.
+    pub mst: MstAlgorithm,
+    /// Effort spent on the sites plan.
+    pub effort: Effort,
+}
+
+impl PlanJob {
+    /// A job with default settings for the given roads and output folder.
+    pub fn new(roads: Source, out: PathBuf) -> PlanJob {
+        PlanJob {
+            roads,
+            sites: None,
+            out,
+            force: false,
+            road_settings: RoadSettings::default(),
+            site_settings: SiteSettings::default(),
+            max_attach_m: 250.0,
+            hub: None,
+            whole_network: false,
+            mst: MstAlgorithm::Kruskal,
+            effort: Effort::Normal,
+        }
+    }
+}
+
+/// Any error of a run, by stage.
+#[derive(Debug, thiserror::Error)]
+pub enum JobError {
+    /// Reading or noding failed.
+    #[error(transparent)]
+    Ingest(#[from] IngestError),
+    /// Solving failed.
+    #[error(transparent)]
+    Solve(#[from] SolveError),
+    /// Writing outputs failed.
+    #[error(transparent)]
+    Export(#[from] ExportError),
+}
+
+/// What the sites stage produced, for the summary and the sites layer.
+pub struct SitesResult {
+    /// The sites read.
+    pub layer: SiteLayer,
+    /// One attachment per site.
+    pub attachments: Vec<Attachment>,
+    /// Index of the hub site.
+    pub hub: Option<usize>,
+    /// The sites plan (None for a whole-network plan).
+    pub plan: Option<SitePlan>,
+}
+
+/// Runs the whole pipeline and returns the summary that was written.
+pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError> {
+    export::staging::preflight(&job.out, job.force)?;
+    job.road_settings.validate()?;
+    if !(job.max_attach_m.is_finite()
+        && job.max_attach_m >= 0.0
+        && job.max_attach_m <= MAX_ATTACH_LIMIT_M)
+    {
+        return Err(IngestError::Setting {
+            name: "--max-attach",
+            message: format!(
+                "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
+                job.max_attach_m
+            ),
+        }
+        .into());
+    }
+
+    let layer = {
+        let _s = progress.stage("reading roads");
+        ingest::roads::read_geojson_roads(&job.roads, &job.road_settings)?
+    };
+    let site_layer = match &job.sites {
+        Some(src) => {
+            let _s = progress.stage("reading sites");
+            Some(read_sites(src, &job.site_settings)?)
+        }
+        None => None,
+    };
+    let hub = match &site_layer {
+        Some(sl) => pick_hub(sl, job.hub.as_deref(), &job.sites)?,
+        None => None,
+    };
+    for (reason, n) in &layer.stats.features_skipped {
+        progress.note(&format!(
+            "{}: skipped {n} feature(s): {reason}",
+            job.roads.display_path().display()
+        ));
+    }
+    let read_stats = layer.stats.clone();
+    let mut inputs: Vec<_> = layer.input.clone().into_iter().collect();
+
+    let (mut net, noding) = {
+        let _s = progress.stage("noding");
+        ingest::build_network(layer, &job.road_settings)?
+    };
+    let attachments = match &site_layer {
+        Some(sl) => {
+            let _s = progress.stage("attaching sites");
+            attach_sites(&mut net, &sl.sites, job.max_attach_m)
+        }
+        None => Vec::new(),
+    };
+    let graph = net.weighted_edges();
+    let comps = solve::components::components(&graph);
+    let (plan, site_plan) = {
+        let _s = progress.stage("solving");
+        match &site_layer {
+            Some(_) if !job.whole_network => {
+                let junctions: Vec<Option<u32>> = attachments.iter().map(|a| a.junction).collect();
+                let sp = plan_sites(&graph, &comps, &junctions, job.effort)?;
+                let plan = Plan {
+                    kind: PlanKind::Sites,
+                    edges: sp.edges.clone(),
+                    total_cost: sp.cost,
+                    trees: sp
+                        .groups
+                        .iter()
+                        .filter(|g| !g.tree.edges.is_empty())
+                        .count(),
+                    lower_bound: sp.lower_bound,
+                    bound_complete: sp.bound_complete,
+                };
+                (plan, Some(sp))
+            }
+            _ => (solve::minimum_spanning_forest(&graph, job.mst)?, None),
+        }
+    };
+    let sites = site_layer.map(|layer| {
+        inputs.push(layer.input.clone());
+        SitesResult {
+            layer,
+            attachments,
+            hub,
+            plan: site_plan,
+        }
+    });
+    let rows = sites.as_ref().map(site_rows);
+    let summary = summary::build(
+        job,
+        inputs,
+        &read_stats,
+        &noding,
+        &net,
+        &comps,
+        &plan,
+        sites.as_ref(),
+    );
+    {
+        let _s = progress.stage("writing outputs");
+        export::write_outputs(
+            &job.out,
+            job.force,
+            &net,
+            &comps,
+            &plan,
+            rows.as_deref(),
+            &summary,
+        )?;
+    }
+    Ok(summary)
+}
+
+/// The hub: the named site, or the one with the highest priority (first in the file on ties).
+fn pick_hub(
+    sl: &SiteLayer,
+    named: Option<&str>,
+    src: &Option<Source>,
+) -> Result<Option<usize>, IngestError> {
+    match named {
+        Some(id) => sl
+            .sites
+            .iter()
+            .position(|s| s.id == id)
+            .map(Some)
+            .ok_or_else(|| IngestError::Setting {
+                name: "--hub",
+                message: format!(
+                    "no site with id {id:?} in {} (site ids: {})",
+                    src.as_ref()
+                        .map(|s| s.display_path().display().to_string())
+                        .unwrap_or_default(),
+                    sl.sites
+                        .iter()
+                        .take(20)
+                        .map(|s| s.id.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            }),
+        None => Ok(sl
+            .sites
+            .iter()
+            .enumerate()
+            .fold(None, |best: Option<(usize, f64)>, (i, s)| match best {
+                Some((_, p)) if p >= s.priority => best,
+                _ => Some((i, s.priority)),
+            })
+            .map(|(i, _)| i)),
+    }
+}
+
+/// The rows of `sites.geojson`.
+fn site_rows(r: &SitesResult) -> Vec<SiteRow> {
+    let group_of = group_index(r);
+    r.layer
+        .sites
+        .iter()
+        .zip(&r.attachments)
+        .enumerate()
+        .map(|(i, (s, a))| {
+            let (status, reason) = status(r, i, &group_of);
+            SiteRow {
+                id: s.id.clone(),
+                name: s.name.clone(),
+                priority: s.priority,
+                pos: s.pos,
+                attributes: s.attributes.clone(),
+                hub: r.hub == Some(i),
+                junction: a.junction,
+                attach_point: a.point,
+                attach_distance_m: a.distance_m,
+                status,
+                reason,
+                group: group_of[i],
+            }
+        })
+        .collect()
+}
+
+/// Group index of every site (None when not attached).
+pub fn group_index(r: &SitesResult) -> Vec<Option<usize>> {
+    let mut g = vec![None; r.layer.sites.len()];
+    if let Some(p) = &r.plan {
+        for (gi, group) in p.groups.iter().enumerate() {
+            for &s in &group.sites {
+                g[s] = Some(gi);
+            }
+        }
+    }
+    g
+}
+
+/// A site's status and, when not connected, the reason.
+pub fn status(
+    r: &SitesResult,
+    i: usize,
+    group_of: &[Option<usize>],
+) -> (&'static str, Option<String>) {
+    let a = &r.attachments[i];
+    if let Some(f) = &a.failure {
+        return ("not attached", Some(f.clone()));
+    }
+    match (&r.plan, group_of[i]) {
+        (Some(p), Some(g)) if p.groups[g].sites.len() > 1 => ("connected", None),
+        (Some(_), _) => (
+            "alone",
+            Some(
+                "no other site can be reached over usable roads (impassable roads cut it off)"
+                    .into(),
+            ),
+        ),
+        (None, _) => ("attached", None),
+    }
+}

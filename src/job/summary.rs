@@ -1,0 +1,152 @@
+//! Builds `summary.json` from the results of the stages.
+
+use super::{PlanJob, SitesResult, group_index, status};
+use crate::export::summary::*;
+use crate::ingest::NodingStats;
+use crate::ingest::ReadStats;
+use crate::ingest::source::InputRecord;
+use crate::network::{Network, cost_to_repair_metres};
+use crate::solve::components::Components;
+use crate::solve::site_plan::gap;
+use crate::solve::{Plan, PlanKind};
+
+/// Collects every figure of the run.
+#[allow(clippy::too_many_arguments)]
+pub fn build(
+    job: &PlanJob,
+    inputs: Vec<InputRecord>,
+    read: &ReadStats,
+    noding: &NodingStats,
+    net: &Network,
+    comps: &Components,
+    plan: &Plan,
+    sites: Option<&SitesResult>,
+) -> Summary {
+    let mut counts = Counts {
+        features_read: read.features_read,
+        features_used: read.features_used,
+        features_skipped: read.features_skipped.clone(),
+        line_parts: read.line_parts,
+        vertices: read.vertices,
+        vertices_moved: noding.vertices_moved,
+        max_move_m: round3(noding.max_move_m),
+        zero_length_parts_dropped: noding.zero_length_parts_dropped,
+        duplicate_edges_dropped: noding.duplicate_edges_dropped,
+        junctions: net.junctions.len(),
+        edges: net.edges.len(),
+        components: comps.count,
+        ..Default::default()
+    };
+    let mut network_length = 0.0;
+    for e in &net.edges {
+        network_length += e.length_m;
+        match e.damage.factor() {
+            None => counts.edges_closed += 1,
+            Some(0.0) => counts.edges_intact += 1,
+            Some(_) => counts.edges_damaged += 1,
+        }
+    }
+    counts.network_length_m = round3(network_length);
+    let repair: Vec<&crate::network::Edge> = plan
+        .edges
+        .iter()
+        .map(|&e| &net.edges[e as usize])
+        .filter(|e| e.cost > 0)
+        .collect();
+    let s = &job.road_settings;
+    let g = gap(plan.total_cost, plan.lower_bound);
+    Summary {
+        tool: Tool::default(),
+        inputs,
+        settings: serde_json::json!({
+            "snap_m": s.snap_m,
+            "damage_field": s.damage.field,
+            "default_damage": s.damage.default,
+            "closed_value": s.damage.closed_value,
+            "id_field": s.id_field,
+            "mst": job.mst.name(),
+            "max_attach_m": job.max_attach_m,
+            "hub": job.hub,
+            "whole_network": job.whole_network,
+            "effort": job.effort.name(),
+        }),
+        geodesy: Geodesy {
+            input_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
+            length_method: "geodesic on the WGS84 ellipsoid (Karney; mid-latitude formula for steps under 1 km, within 0.1 mm of it)".into(),
+            output_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
+            length_unit: "metre",
+        },
+        counts,
+        plan: PlanFigures {
+            kind: plan.kind.describe(),
+            algorithm: match plan.kind {
+                PlanKind::WholeNetwork => job.mst.name(),
+                PlanKind::Sites => "reductions, Mehlhorn, shortest-path multistart, local search; Wong dual ascent bound",
+            },
+            trees: plan.trees,
+            repair_edges: repair.len(),
+            bound_complete: plan.bound_complete,
+        },
+        sites: sites.map(sites_figures),
+        total_cost: cost_to_repair_metres(plan.total_cost),
+        lower_bound: cost_to_repair_metres(plan.lower_bound),
+        gap: g.map(|x| (x * 1e6).round() / 1e6),
+        optimal: g == Some(0.0),
+        cost_unit: "repair-metre",
+        repair_length_m: round3(repair.iter().map(|e| e.length_m).sum()),
+        plan_edges: plan.edges.len(),
+        cautions: crate::cautions::CAUTIONS.to_vec(),
+    }
+}
+
+fn sites_figures(r: &SitesResult) -> SitesFigures {
+    let sites = &r.layer.sites;
+    let group_of = group_index(r);
+    let mut unconnected = Vec::new();
+    let mut connected = 0;
+    for (i, s) in sites.iter().enumerate() {
+        match status(r, i, &group_of) {
+            ("connected", _) => connected += 1,
+            (_, reason) => unconnected.push(UnconnectedSite {
+                id: s.id.clone(),
+                name: s.name.clone(),
+                reason: reason.unwrap_or_else(|| "not part of a sites plan".into()),
+                distance_m: r.attachments[i].distance_m.map(round3),
+            }),
+        }
+    }
+    let groups = r
+        .plan
+        .as_ref()
+        .map(|p| {
+            p.groups
+                .iter()
+                .map(|g| GroupFigures {
+                    sites: g.sites.iter().map(|&i| sites[i].id.clone()).collect(),
+                    cost: cost_to_repair_metres(g.tree.cost),
+                    lower_bound: cost_to_repair_metres(g.tree.lower_bound),
+                    gap: gap(g.tree.cost, g.tree.lower_bound).map(|x| (x * 1e6).round() / 1e6),
+                    reduced_graph: [g.tree.reduced_size.0, g.tree.reduced_size.1],
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    let note = match sites.len() {
+        0 => Some("the sites layer holds no sites: there is nothing to connect".to_string()),
+        1 => Some("the sites layer holds one site: there is nothing to connect it to".to_string()),
+        _ => None,
+    };
+    SitesFigures {
+        total: sites.len(),
+        attached: r
+            .attachments
+            .iter()
+            .filter(|a| a.junction.is_some())
+            .count(),
+        connected,
+        hub: r.hub.map(|h| sites[h].id.clone()),
+        groups,
+        unconnected,
+        note,
+    }
+}
