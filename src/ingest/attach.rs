@@ -27,6 +27,10 @@ const SAME_POINT_M: f64 = 0.01;
 
 type Seg = GeomWithData<Line<[f64; 2]>, (u32, u32)>;
 
+/// A cut point: distance along the edge, the vertex it falls on (if any), its coordinate, and the
+/// sites attached there.
+type CutPoint = (f64, Option<usize>, [f64; 2], Vec<usize>);
+
 /// One cut of an edge: segment index and fraction along it.
 #[derive(Debug, Clone, Copy)]
 struct Cut {
@@ -161,13 +165,13 @@ fn split_edges(net: &mut Network, cuts: BTreeMap<u32, Vec<Cut>>, out: &mut [Atta
             .collect();
         cs.sort_by(|x, y| x.0.total_cmp(&y.0).then(x.1.site.cmp(&y.1.site)));
         // Cut points: (distance along, vertex index if it falls on one, coordinate).
-        let mut points: Vec<(f64, Option<usize>, [f64; 2], Vec<usize>)> = Vec::new();
+        let mut points: Vec<CutPoint> = Vec::new();
         for (s, c) in cs {
-            if let Some(last) = points.last_mut() {
-                if s - last.0 < SAME_POINT_M {
-                    last.3.push(c.site);
-                    continue;
-                }
+            if let Some(last) = points.last_mut()
+                && s - last.0 < SAME_POINT_M
+            {
+                last.3.push(c.site);
+                continue;
             }
             let at_vertex = (0..g.len()).find(|&i| (along[i] - s).abs() < SAME_POINT_M);
             let coord = match at_vertex {

@@ -5,7 +5,7 @@ use super::geojson::{ReadFailure, read_collection};
 use super::source::{HashingReader, InputRecord, Source};
 use serde_json::{Map, Value};
 use std::collections::HashMap;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 /// Property names tried for a site's id when no `--site-id-field` is given (after the GeoJSON `id`).
 pub const SITE_ID_FIELDS: &[&str] = &["site_id", "id", "ID", "fid", "FID", "name", "NAME"];
@@ -104,7 +104,7 @@ fn feature_err(path: &Path, feature: usize, field: Option<&str>, message: String
 
 fn read_geojson<R: std::io::Read>(
     reader: R,
-    path: &PathBuf,
+    path: &Path,
     s: &SiteSettings,
 ) -> Result<Vec<Site>, IngestError> {
     let mut sites = Vec::new();
@@ -154,16 +154,16 @@ fn read_geojson<R: std::io::Read>(
     })
     .map_err(|e| match e {
         ReadFailure::Syntax { message, feature } => IngestError::Syntax {
-            path: path.clone(),
+            path: path.to_path_buf(),
             feature,
             message,
         },
         ReadFailure::NotCollection(message) => IngestError::NotCollection {
-            path: path.clone(),
+            path: path.to_path_buf(),
             message,
         },
         ReadFailure::Io(source) => IngestError::Io {
-            path: path.clone(),
+            path: path.to_path_buf(),
             source,
         },
         ReadFailure::Callback(e) => e,
