@@ -192,7 +192,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             s.total,
             summary.lower_bound,
             match summary.gap {
-                Some(g) if g == 0.0 => "the plan is optimal".to_string(),
+                Some(0.0) => "the plan is optimal".to_string(),
                 Some(g) => format!("the plan is at most {:.2} % above optimal", 100.0 * g),
                 None => "no gap: the bound is 0".to_string(),
             }

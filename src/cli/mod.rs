@@ -21,14 +21,14 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 enum Command {
-    Plan(plan::PlanArgs),
+    Plan(Box<plan::PlanArgs>),
     Demo(demo::DemoArgs),
 }
 
 /// Runs the chosen subcommand.
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
-        Command::Plan(a) => plan::run(a),
+        Command::Plan(a) => plan::run(*a),
         Command::Demo(a) => demo::run(a),
     }
 }
