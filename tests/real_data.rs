@@ -187,3 +187,73 @@ fn demo_layers_open_in_ogrinfo() {
         assert!(text.contains("WGS 84"), "{file}: {text}");
     }
 }
+
+/// Random junctions of the largest component of the Liechtenstein network as sites (fixed seed).
+fn random_sites(d: &Path, net: &Path, count: usize, seed: u64) -> PathBuf {
+    let fc = read_fc(net);
+    let mut size: HashMap<i64, usize> = HashMap::new();
+    for f in &fc.features {
+        if let Some(c) = f.property("component").and_then(|c| c.as_i64()) {
+            *size.entry(c).or_default() += 1;
+        }
+    }
+    let biggest = size.iter().max_by_key(|(c, n)| (**n, -**c)).map(|(c, _)| *c).unwrap();
+    let mut points: Vec<[f64; 2]> = Vec::new();
+    for f in &fc.features {
+        if f.property("component").and_then(|c| c.as_i64()) == Some(biggest) {
+            if let Some(geojson::GeometryValue::LineString { coordinates }) = f.geometry.as_ref().map(|g| &g.value) {
+                points.push([coordinates[0][0], coordinates[0][1]]);
+            }
+        }
+    }
+    points.sort_by(|a, b| a.partial_cmp(b).unwrap());
+    points.dedup();
+    let mut rng = reknit::synthetic::Rng::new(seed);
+    let mut chosen = Vec::new();
+    while chosen.len() < count {
+        let p = points[rng.below(points.len() as u64) as usize];
+        if !chosen.contains(&p) {
+            chosen.push(p);
+        }
+    }
+    let feats: Vec<String> = chosen
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            format!(
+                r#"{{"type":"Feature","properties":{{"site_id":"r{i}"}},"geometry":{{"type":"Point","coordinates":[{},{}]}}}}"#,
+                p[0], p[1]
+            )
+        })
+        .collect();
+    write_collection(d, &format!("sites-{count}.geojson"), &feats)
+}
+
+#[test]
+fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
+    // Reference library: networkx.algorithms.approximation.steiner_tree (method "mehlhorn").
+    let d = tmp();
+    let Some(whole) = plan_liechtenstein(d.path(), "whole", &["--whole-network"]) else { return };
+    let Some(py) = python_with(&["networkx"]) else { return };
+    for (count, seed) in [(10, 11), (50, 12), (200, 13)] {
+        let sites = random_sites(d.path(), &whole.join("network.geojson"), count, seed);
+        let name = format!("sites-{count}");
+        let out = plan_liechtenstein(d.path(), &name, &["--sites", sites.to_str().unwrap()]).unwrap();
+        let s = read_json(&out.join("summary.json"));
+        assert_eq!(s["sites"]["connected"].as_u64().unwrap(), count as u64);
+        let ours = milli(&s["total_cost"]);
+        let o = Command::new(&py)
+            .arg(script("peer_steiner_networkx.py"))
+            .arg(out.join("network.geojson"))
+            .arg(out.join("sites.geojson"))
+            .arg("mehlhorn")
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        let nx: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        let theirs = nx["cost_milli"].as_u64().unwrap();
+        eprintln!("{count} sites: reknit {ours}, networkx mehlhorn {theirs} (milli-repair-metres)");
+        assert!(ours <= theirs, "{count} sites: ours {ours} > networkx {theirs}");
+        assert!(milli(&s["lower_bound"]) <= ours);
+    }
+}
