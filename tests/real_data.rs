@@ -197,13 +197,18 @@ fn random_sites(d: &Path, net: &Path, count: usize, seed: u64) -> PathBuf {
             *size.entry(c).or_default() += 1;
         }
     }
-    let biggest = size.iter().max_by_key(|(c, n)| (**n, -**c)).map(|(c, _)| *c).unwrap();
+    let biggest = size
+        .iter()
+        .max_by_key(|(c, n)| (**n, -**c))
+        .map(|(c, _)| *c)
+        .unwrap();
     let mut points: Vec<[f64; 2]> = Vec::new();
     for f in &fc.features {
-        if f.property("component").and_then(|c| c.as_i64()) == Some(biggest) {
-            if let Some(geojson::GeometryValue::LineString { coordinates }) = f.geometry.as_ref().map(|g| &g.value) {
-                points.push([coordinates[0][0], coordinates[0][1]]);
-            }
+        if f.property("component").and_then(|c| c.as_i64()) == Some(biggest)
+            && let Some(geojson::GeometryValue::LineString { coordinates }) =
+                f.geometry.as_ref().map(|g| &g.value)
+        {
+            points.push([coordinates[0][0], coordinates[0][1]]);
         }
     }
     points.sort_by(|a, b| a.partial_cmp(b).unwrap());
@@ -233,12 +238,17 @@ fn random_sites(d: &Path, net: &Path, count: usize, seed: u64) -> PathBuf {
 fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
     // Reference library: networkx.algorithms.approximation.steiner_tree (method "mehlhorn").
     let d = tmp();
-    let Some(whole) = plan_liechtenstein(d.path(), "whole", &["--whole-network"]) else { return };
-    let Some(py) = python_with(&["networkx"]) else { return };
+    let Some(whole) = plan_liechtenstein(d.path(), "whole", &["--whole-network"]) else {
+        return;
+    };
+    let Some(py) = python_with(&["networkx"]) else {
+        return;
+    };
     for (count, seed) in [(10, 11), (50, 12), (200, 13)] {
         let sites = random_sites(d.path(), &whole.join("network.geojson"), count, seed);
         let name = format!("sites-{count}");
-        let out = plan_liechtenstein(d.path(), &name, &["--sites", sites.to_str().unwrap()]).unwrap();
+        let out =
+            plan_liechtenstein(d.path(), &name, &["--sites", sites.to_str().unwrap()]).unwrap();
         let s = read_json(&out.join("summary.json"));
         assert_eq!(s["sites"]["connected"].as_u64().unwrap(), count as u64);
         let ours = milli(&s["total_cost"]);
@@ -253,7 +263,10 @@ fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
         let nx: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
         let theirs = nx["cost_milli"].as_u64().unwrap();
         eprintln!("{count} sites: reknit {ours}, networkx mehlhorn {theirs} (milli-repair-metres)");
-        assert!(ours <= theirs, "{count} sites: ours {ours} > networkx {theirs}");
+        assert!(
+            ours <= theirs,
+            "{count} sites: ours {ours} > networkx {theirs}"
+        );
         assert!(milli(&s["lower_bound"]) <= ours);
     }
 }

@@ -50,8 +50,16 @@ fn site_beside_the_middle_splits_the_edge_and_keeps_the_cost() {
     assert_eq!(net.edges.len(), 2);
     assert_eq!(net.junctions.len(), 3);
     assert_eq!(a[0].junction, Some(2));
-    assert!((a[0].distance_m.unwrap() - 30.0).abs() < 0.05, "{:?}", a[0].distance_m);
-    assert_eq!(net.edges[0].cost + net.edges[1].cost, cost, "halves share the cost exactly");
+    assert!(
+        (a[0].distance_m.unwrap() - 30.0).abs() < 0.05,
+        "{:?}",
+        a[0].distance_m
+    );
+    assert_eq!(
+        net.edges[0].cost + net.edges[1].cost,
+        cost,
+        "halves share the cost exactly"
+    );
     assert!((net.edges[0].length_m - 100.0).abs() < 0.1);
     assert!((net.edges[0].length_m + net.edges[1].length_m - 200.0).abs() < 0.05);
 }
@@ -82,15 +90,25 @@ fn site_on_a_junction_uses_it_without_splitting() {
 
 #[test]
 fn two_sites_on_one_edge_cut_it_in_three() {
-    let mut net = network(&[(vec![pt(0., 0.), pt(100., 0.), pt(300., 0.)], Damage::Factor(1.0))]);
+    let mut net = network(&[(
+        vec![pt(0., 0.), pt(100., 0.), pt(300., 0.)],
+        Damage::Factor(1.0),
+    )]);
     let cost = net.edges[0].cost;
-    let a = attach_sites(&mut net, &[site(0, pt(250., -20.)), site(1, pt(50., 10.))], 250.0);
+    let a = attach_sites(
+        &mut net,
+        &[site(0, pt(250., -20.)), site(1, pt(50., 10.))],
+        250.0,
+    );
     net.validate().unwrap();
     assert_eq!(net.edges.len(), 3);
     assert_ne!(a[0].junction, a[1].junction);
     assert_eq!(net.edges.iter().map(|e| e.cost).sum::<u64>(), cost);
     let lengths: Vec<f64> = net.edges.iter().map(|e| e.length_m).collect();
-    assert!((lengths[0] - 50.0).abs() < 0.1 && (lengths[1] - 200.0).abs() < 0.1, "{lengths:?}");
+    assert!(
+        (lengths[0] - 50.0).abs() < 0.1 && (lengths[1] - 200.0).abs() < 0.1,
+        "{lengths:?}"
+    );
 }
 
 #[test]
@@ -101,10 +119,18 @@ fn only_impassable_roads_nearby_is_its_own_reason() {
     ]);
     let a = attach_sites(&mut net, &[site(0, pt(100., 20.))], 250.0);
     assert_eq!(a[0].junction, None);
-    assert!(a[0].failure.as_ref().unwrap().contains("only impassable"), "{:?}", a[0].failure);
+    assert!(
+        a[0].failure.as_ref().unwrap().contains("only impassable"),
+        "{:?}",
+        a[0].failure
+    );
 }
 
-fn sites_fc(d: &std::path::Path, name: &str, points: &[(&str, [f64; 2], f64)]) -> std::path::PathBuf {
+fn sites_fc(
+    d: &std::path::Path,
+    name: &str,
+    points: &[(&str, [f64; 2], f64)],
+) -> std::path::PathBuf {
     let f: Vec<String> = points
         .iter()
         .map(|(id, p, prio)| {
@@ -143,30 +169,58 @@ fn groups_unreachable_and_far_sites_are_reported_not_fatal() {
         ],
     );
     let out = d.path().join("out");
-    let o = run(&["plan", "--roads", roads.to_str().unwrap(), "--sites", sites.to_str().unwrap(), "--out", out.to_str().unwrap()]);
+    let o = run(&[
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--sites",
+        sites.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let s = read_json(&out.join("summary.json"));
-    assert_eq!(s["sites"]["hub"], "east", "highest priority is the default hub");
+    assert_eq!(
+        s["sites"]["hub"], "east",
+        "highest priority is the default hub"
+    );
     assert_eq!(s["sites"]["connected"], 2);
     let groups = s["sites"]["groups"].as_array().unwrap();
     assert_eq!(groups.len(), 2);
     assert_eq!(groups[0]["sites"], serde_json::json!(["west"]));
     assert_eq!(groups[1]["sites"], serde_json::json!(["east", "north"]));
     // east → north: from x=700 to x=1100 at factor 1 (400 m) then intact: 400 repair-metres.
-    assert!((s["total_cost"].as_f64().unwrap() - 400.0).abs() < 0.5, "{}", s["total_cost"]);
+    assert!(
+        (s["total_cost"].as_f64().unwrap() - 400.0).abs() < 0.5,
+        "{}",
+        s["total_cost"]
+    );
     assert_eq!(s["gap"], 0.0);
     assert_eq!(s["optimal"], true);
     let reasons: Vec<String> = s["sites"]["unconnected"]
         .as_array()
         .unwrap()
         .iter()
-        .map(|u| format!("{}: {}", u["id"].as_str().unwrap(), u["reason"].as_str().unwrap()))
+        .map(|u| {
+            format!(
+                "{}: {}",
+                u["id"].as_str().unwrap(),
+                u["reason"].as_str().unwrap()
+            )
+        })
         .collect();
     assert_eq!(reasons.len(), 2, "{reasons:?}");
     assert!(reasons[0].starts_with("west: no other site"), "{reasons:?}");
-    assert!(reasons[1].starts_with("far: no road within 250 m"), "{reasons:?}");
+    assert!(
+        reasons[1].starts_with("far: no road within 250 m"),
+        "{reasons:?}"
+    );
     let layer = read_fc(&out.join("sites.geojson"));
-    let status: Vec<&str> = layer.features.iter().map(|f| f.property("status").unwrap().as_str().unwrap()).collect();
+    let status: Vec<&str> = layer
+        .features
+        .iter()
+        .map(|f| f.property("status").unwrap().as_str().unwrap())
+        .collect();
     assert_eq!(status, ["alone", "connected", "connected", "not attached"]);
 }
 
@@ -176,11 +230,31 @@ fn csv_sites_with_named_columns_and_an_explicit_hub() {
     let roads = two_towns(d.path());
     let csv = d.path().join("sites.csv");
     let (a, b) = (pt(700., 5.), pt(1100., 390.));
-    std::fs::write(&csv, format!("code,X_DEG,Y_DEG\nA,{},{}\nB,{},{}\n", a[0], a[1], b[0], b[1])).unwrap();
+    std::fs::write(
+        &csv,
+        format!(
+            "code,X_DEG,Y_DEG\nA,{},{}\nB,{},{}\n",
+            a[0], a[1], b[0], b[1]
+        ),
+    )
+    .unwrap();
     let out = d.path().join("out");
     let o = run(&[
-        "plan", "--roads", roads.to_str().unwrap(), "--sites", csv.to_str().unwrap(), "--out", out.to_str().unwrap(),
-        "--lon-column", "X_DEG", "--lat-column", "Y_DEG", "--site-id-field", "code", "--hub", "B",
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--sites",
+        csv.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--lon-column",
+        "X_DEG",
+        "--lat-column",
+        "Y_DEG",
+        "--site-id-field",
+        "code",
+        "--hub",
+        "B",
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
     let s = read_json(&out.join("summary.json"));
@@ -192,15 +266,31 @@ fn csv_sites_with_named_columns_and_an_explicit_hub() {
 fn no_sites_and_one_site_are_trivial_plans() {
     let d = tmp();
     let roads = two_towns(d.path());
-    for (name, pts) in [("none.geojson", vec![]), ("one.geojson", vec![("only", pt(10., 10.), 1.)])] {
+    for (name, pts) in [
+        ("none.geojson", vec![]),
+        ("one.geojson", vec![("only", pt(10., 10.), 1.)]),
+    ] {
         let sites = sites_fc(d.path(), name, &pts);
         let out = d.path().join(format!("out-{name}"));
-        let o = run(&["plan", "--roads", roads.to_str().unwrap(), "--sites", sites.to_str().unwrap(), "--out", out.to_str().unwrap()]);
+        let o = run(&[
+            "plan",
+            "--roads",
+            roads.to_str().unwrap(),
+            "--sites",
+            sites.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ]);
         assert!(o.status.success(), "{}", stderr(&o));
         let s = read_json(&out.join("summary.json"));
         assert_eq!(s["plan_edges"], 0);
         assert_eq!(s["total_cost"], 0.0);
-        assert!(s["sites"]["note"].as_str().unwrap().contains("nothing to connect"));
+        assert!(
+            s["sites"]["note"]
+                .as_str()
+                .unwrap()
+                .contains("nothing to connect")
+        );
     }
 }
 
@@ -209,7 +299,15 @@ fn site_fails(sites: &std::path::Path, extra: &[&str], needles: &[&str]) {
     let d = tmp();
     let roads = two_towns(d.path());
     let out = d.path().join("out");
-    let mut args = vec!["plan", "--roads", roads.to_str().unwrap(), "--sites", sites.to_str().unwrap(), "--out", out.to_str().unwrap()];
+    let mut args = vec![
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--sites",
+        sites.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
     args.extend_from_slice(extra);
     let o = run(&args);
     let msg = stderr(&o);
@@ -223,12 +321,24 @@ fn site_fails(sites: &std::path::Path, extra: &[&str], needles: &[&str]) {
 #[test]
 fn bad_site_inputs() {
     let d = tmp();
-    let dup = sites_fc(d.path(), "dup.geojson", &[("a", pt(0., 0.), 1.), ("a", pt(10., 0.), 1.)]);
+    let dup = sites_fc(
+        d.path(),
+        "dup.geojson",
+        &[("a", pt(0., 0.), 1.), ("a", pt(10., 0.), 1.)],
+    );
     site_fails(&dup, &[], &["dup.geojson", "feature 1", "\"a\"", "twice"]);
     let ok = sites_fc(d.path(), "ok.geojson", &[("a", pt(0., 0.), 1.)]);
     site_fails(&ok, &["--hub", "nope"], &["--hub", "nope", "site ids: a"]);
-    let lines = write_collection(d.path(), "lines.geojson", &[line(&[pt(0., 0.), pt(1., 1.)], "{}")]);
-    site_fails(&lines, &[], &["lines.geojson", "feature 0", "Points", "LineString"]);
+    let lines = write_collection(
+        d.path(),
+        "lines.geojson",
+        &[line(&[pt(0., 0.), pt(1., 1.)], "{}")],
+    );
+    site_fails(
+        &lines,
+        &[],
+        &["lines.geojson", "feature 0", "Points", "LineString"],
+    );
     let csv = d.path().join("nocols.csv");
     std::fs::write(&csv, "name,east,north\nx,1,2\n").unwrap();
     site_fails(&csv, &[], &["nocols.csv", "longitude", "name, east, north"]);

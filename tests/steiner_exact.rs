@@ -71,7 +71,8 @@ fn dreyfus_wagner(g: &EdgeList, terminals: &[u32]) -> u64 {
 fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
     (4usize..22, 2usize..9).prop_flat_map(|(n, k)| {
         let tree_parents = proptest::collection::vec(any::<proptest::sample::Index>(), n - 1);
-        let extra = proptest::collection::vec((0..n as u32, 0..n as u32, 0u64..25, 0u8..10), 0..3 * n);
+        let extra =
+            proptest::collection::vec((0..n as u32, 0..n as u32, 0u64..25, 0u8..10), 0..3 * n);
         let tree_costs = proptest::collection::vec(0u64..25, n - 1);
         let terms = proptest::sample::subsequence((0..n as u32).collect::<Vec<_>>(), k.min(n));
         (tree_parents, tree_costs, extra, terms).prop_map(move |(parents, costs, extra, terms)| {
@@ -129,5 +130,8 @@ fn normal_effort_is_usually_optimal_on_small_graphs() {
         }
     }
     eprintln!("normal effort optimal on {optimal} of {total} small instances");
-    assert!(optimal * 100 >= total * 95, "only {optimal} of {total} optimal");
+    assert!(
+        optimal * 100 >= total * 95,
+        "only {optimal} of {total} optimal"
+    );
 }

@@ -4,24 +4,42 @@
 //!   degree 2), which splits the tree in two, and reconnect the halves by the cheapest path between
 //!   them if that is cheaper;
 //! - **key-vertex elimination**: remove a Steiner vertex of tree degree ≥ 3 with its key paths and
-//!   reconnect the pieces by a minimum spanning tree of shortest paths between them (Voronoi regions
-//!   of the pieces), if cheaper.
+//!   reconnect the pieces by a minimum spanning tree of shortest paths between them, if cheaper.
 //!
-//! Each search from the pieces is bounded by the cost removed, so it only explores nearby.
+//! Which piece a tree vertex belongs to is answered in constant time from a depth-first numbering of
+//! the tree (a piece is a subtree or the rest of the tree), so a move never has to label whole pieces.
+//! Searches start from at most [`Reach::seeds`] vertices of a piece near the removed part and are
+//! bounded by the cost removed, so each move only explores nearby.
 
 use super::paths::{NONE, Workspace};
 use super::reduce::prune_leaves;
 use super::tree::cost;
 use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList};
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
+/// How wide the moves search.
+#[derive(Debug, Clone, Copy)]
+pub struct Reach {
+    /// Largest number of vertices of one piece used as search sources.
+    pub seeds: usize,
+    /// Whether key-vertex elimination is tried (key-path exchange always is).
+    pub eliminate: bool,
+}
 
 struct State<'a> {
+    reach: Reach,
     g: &'a EdgeList,
     csr: &'a Csr,
     is_terminal: &'a [bool],
     in_tree: Vec<bool>,
     tdeg: Vec<u32>,
     edges: Vec<u32>,
+    /// Depth-first entry number of each tree vertex and the largest number in its subtree.
+    tin: Vec<u32>,
+    tout: Vec<u32>,
+    size: usize,
 }
 
 /// A path between key vertices through inner vertices of tree degree 2.
@@ -32,6 +50,20 @@ struct KeyPath {
     cost: u64,
 }
 
+/// A way to join a searched piece to another: its cost, the vertex where the search stopped (or the
+/// bridging edge between two searched regions) and the two pieces.
+struct Link {
+    cost: u64,
+    via: Via,
+    from: u32,
+    to: u32,
+}
+
+enum Via {
+    Target(u32),
+    Bridge(u32),
+}
+
 /// Improves `tree` by local search until no move helps or `rounds` passes are done.
 pub fn improve(
     g: &EdgeList,
@@ -40,26 +72,34 @@ pub fn improve(
     tree: Vec<u32>,
     ws: &mut Workspace,
     rounds: usize,
+    reach: Reach,
 ) -> Vec<u32> {
     if tree.is_empty() {
         return tree;
     }
     let mut st = State {
+        reach,
         g,
         csr,
         is_terminal,
         in_tree: vec![false; g.len()],
         tdeg: vec![0; g.vertices],
         edges: Vec::new(),
+        tin: vec![0; g.vertices],
+        tout: vec![0; g.vertices],
+        size: 0,
     };
     st.set(tree);
     for _ in 0..rounds {
         let mut improved = false;
-        let steiner_keys: Vec<u32> = st
-            .vertices()
-            .into_iter()
-            .filter(|&v| !is_terminal[v as usize] && st.tdeg[v as usize] >= 3)
-            .collect();
+        let steiner_keys: Vec<u32> = if reach.eliminate {
+            st.vertices()
+                .into_iter()
+                .filter(|&v| !is_terminal[v as usize] && st.tdeg[v as usize] >= 3)
+                .collect()
+        } else {
+            Vec::new()
+        };
         for v in steiner_keys {
             if !is_terminal[v as usize] && st.tdeg[v as usize] >= 3 && st.eliminate(v, ws) {
                 improved = true;
@@ -93,6 +133,45 @@ impl State<'_> {
             }
         }
         self.edges = edges;
+        self.renumber();
+    }
+
+    /// Depth-first numbering of the tree from its smallest vertex (iterative).
+    fn renumber(&mut self) {
+        let Some(root) = self.edges.iter().map(|&e| self.g.ends[e as usize][0]).min() else {
+            self.size = 0;
+            return;
+        };
+        let mut counter = 0u32;
+        let mut stack: Vec<(u32, u32, bool)> = vec![(root, NONE, false)];
+        while let Some((v, parent, done)) = stack.pop() {
+            if done {
+                self.tout[v as usize] = counter - 1;
+                continue;
+            }
+            self.tin[v as usize] = counter;
+            counter += 1;
+            stack.push((v, parent, true));
+            for (w, _) in self.tree_neighbours(v) {
+                if w != parent {
+                    stack.push((w, v, false));
+                }
+            }
+        }
+        self.size = counter as usize;
+    }
+
+    fn in_subtree(&self, root: u32, x: u32) -> bool {
+        let t = self.tin[x as usize];
+        self.tin[root as usize] <= t && t <= self.tout[root as usize]
+    }
+
+    fn subtree_size(&self, v: u32) -> usize {
+        (self.tout[v as usize] - self.tin[v as usize] + 1) as usize
+    }
+
+    fn is_tree_vertex(&self, v: u32) -> bool {
+        self.tdeg[v as usize] > 0 || self.is_terminal[v as usize]
     }
 
     fn vertices(&self) -> Vec<u32> {
@@ -116,7 +195,7 @@ impl State<'_> {
             .filter(move |&(_, e)| self.in_tree[e as usize])
     }
 
-    /// Walks from key vertex `k` along tree edge `e` to the next key vertex.
+    /// Walks from key vertex `k` along tree edge `first` to the next key vertex.
     fn walk(&self, k: u32, first: (u32, u32)) -> KeyPath {
         let (mut cur, mut e) = first;
         let mut p = KeyPath {
@@ -185,100 +264,197 @@ impl State<'_> {
         }
     }
 
-    /// Seeds every vertex of the tree piece holding `start` with `label`.
-    fn seed_piece(&self, start: u32, label: u32, ws: &mut Workspace) {
-        if ws.label[start as usize] != NONE {
-            return;
-        }
-        ws.seed(start, label);
-        let mut stack = vec![start];
-        while let Some(v) = stack.pop() {
-            for (w, _) in self.tree_neighbours(v) {
-                if ws.label[w as usize] == NONE {
-                    ws.seed(w, label);
-                    stack.push(w);
+    /// Vertices of the piece holding `start` within tree distance `reach` of it, at most `cap`,
+    /// nearest in tree hops first. An improving link rarely starts far from the removed part.
+    fn seeds(&self, start: u32, reach: u64, cap: usize) -> Vec<u32> {
+        let mut list = vec![(start, 0u64, NONE)];
+        let mut i = 0;
+        while i < list.len() && list.len() < cap {
+            let (v, d, parent) = list[i];
+            i += 1;
+            for (w, e) in self.tree_neighbours(v) {
+                let dw = d + self.g.cost[e as usize];
+                if w != parent && dw <= reach && list.len() < cap {
+                    list.push((w, dw, v));
                 }
             }
         }
+        list.into_iter().map(|(v, _, _)| v).collect()
     }
 
-    /// Bridging edges between differently labelled regions, cheaper than `bound`, sorted.
-    fn bridges(&self, ws: &Workspace, bound: u64) -> Vec<(u64, u32)> {
+    /// Multi-source search from labelled seeds, bounded by `bound`. A tree vertex of another piece
+    /// (`piece_of`) ends a path there (a target); tree vertices of the seed's own piece are not
+    /// crossed; freed vertices (removed inner vertices) are crossed like any other. With `first`, the
+    /// search stops at the first target settled.
+    fn search<P>(
+        &self,
+        ws: &mut Workspace,
+        seeds: &[(u32, u32)],
+        bound: u64,
+        piece_of: P,
+        first: bool,
+    ) -> Vec<Link>
+    where
+        P: Fn(u32) -> Option<u32>,
+    {
+        ws.reset();
+        let mut heap = BinaryHeap::new();
+        for &(v, l) in seeds {
+            ws.seed(v, l);
+            heap.push(Reverse((0u64, v)));
+        }
+        let mut links = Vec::new();
+        while let Some(Reverse((d, u))) = heap.pop() {
+            if d > ws.dist[u as usize] {
+                continue;
+            }
+            if d >= bound {
+                break;
+            }
+            let lu = ws.label[u as usize];
+            if ws.pred[u as usize] != NONE && self.is_tree_vertex(u) {
+                if let Some(j) = piece_of(u) {
+                    links.push(Link {
+                        cost: d,
+                        via: Via::Target(u),
+                        from: lu,
+                        to: j,
+                    });
+                    if first {
+                        break;
+                    }
+                }
+                continue;
+            }
+            for (w, e) in self.csr.neighbours(u) {
+                if self.in_tree[e as usize] {
+                    continue;
+                }
+                let nd = d + self.g.cost[e as usize];
+                if nd >= bound {
+                    continue;
+                }
+                if self.is_tree_vertex(w) {
+                    match piece_of(w) {
+                        // The seed's own piece is never crossed.
+                        Some(j) if j == lu => continue,
+                        // A seed of another piece: the link ends here.
+                        Some(j) if ws.label[w as usize] == j && ws.dist[w as usize] == 0 => {
+                            links.push(Link {
+                                cost: nd,
+                                via: Via::Bridge(e),
+                                from: lu,
+                                to: j,
+                            });
+                            continue;
+                        }
+                        _ => {}
+                    }
+                }
+                if nd < ws.dist[w as usize] {
+                    if ws.dist[w as usize] == u64::MAX {
+                        ws.touched.push(w);
+                    }
+                    ws.dist[w as usize] = nd;
+                    ws.label[w as usize] = lu;
+                    ws.pred[w as usize] = e;
+                    heap.push(Reverse((nd, w)));
+                }
+            }
+        }
+        links
+    }
+
+    /// Edges between two searched regions of different pieces (neither end a tree vertex).
+    fn region_bridges(&self, ws: &Workspace, bound: u64) -> Vec<Link> {
         let mut out = Vec::new();
         for &u in &ws.touched {
+            if self.is_tree_vertex(u) {
+                continue;
+            }
             for (w, e) in self.csr.neighbours(u) {
                 let (lu, lw) = (ws.label[u as usize], ws.label[w as usize]);
-                if u < w && lw != NONE && lu != lw && !self.in_tree[e as usize] {
+                if u < w
+                    && lw != NONE
+                    && lu != lw
+                    && !self.in_tree[e as usize]
+                    && !self.is_tree_vertex(w)
+                {
                     let c = ws.dist[u as usize] + self.g.cost[e as usize] + ws.dist[w as usize];
                     if c < bound {
-                        out.push((c, e));
+                        out.push(Link {
+                            cost: c,
+                            via: Via::Bridge(e),
+                            from: lu,
+                            to: lw,
+                        });
                     }
                 }
             }
         }
-        out.sort_unstable();
         out
     }
 
-    /// Key-path exchange: the cheapest path from the smaller piece to the rest of the tree replaces
-    /// the key path when it costs less.
-    fn exchange(&mut self, p: &KeyPath, ws: &mut Workspace) -> bool {
-        self.detach(&p.edges);
-        ws.reset();
-        let small = self.smaller_piece(p.ends[0], p.ends[1]);
-        for &v in &small {
-            ws.seed(v, 0);
+    fn link_edges(&self, ws: &Workspace, l: &Link, out: &mut Vec<u32>) {
+        match l.via {
+            Via::Target(v) => ws.path_to_source(self.g, v, out),
+            Via::Bridge(e) => {
+                out.push(e);
+                let [u, w] = self.g.ends[e as usize];
+                ws.path_to_source(self.g, u, out);
+                ws.path_to_source(self.g, w, out);
+            }
         }
-        // Any tree vertex outside the small piece belongs to the other piece.
-        let target = |ws: &Workspace, v: u32| {
-            ws.label[v as usize] == NONE
-                && (self.tdeg[v as usize] > 0 || self.is_terminal[v as usize])
+    }
+
+    /// Key-path exchange: the cheapest path from one piece to the other replaces the key path when
+    /// it costs less.
+    fn exchange(&mut self, p: &KeyPath, ws: &mut Workspace) -> bool {
+        let [a, b] = p.ends;
+        let low = if self.in_subtree(a, b) { b } else { a };
+        let high = if low == a { b } else { a };
+        let low_size = self.subtree_size(low);
+        let high_size = self.size - low_size - p.inner.len();
+        self.detach(&p.edges);
+        let (start, label) = if low_size <= high_size {
+            (low, 0)
+        } else {
+            (high, 1)
         };
-        let hit = ws.run_until(self.g, self.csr, p.cost, |ws, v| target(ws, v));
-        match hit {
-            Some(v) => {
+        let seeds: Vec<(u32, u32)> = self
+            .seeds(start, p.cost, self.reach.seeds)
+            .into_iter()
+            .map(|v| (v, label))
+            .collect();
+        let piece_of = |x: u32| Some(if self.in_subtree(low, x) { 0 } else { 1 });
+        let links = self.search(ws, &seeds, p.cost, piece_of, true);
+        match links.first() {
+            Some(l) if l.cost < p.cost => {
                 let mut add = Vec::new();
-                ws.path_to_source(self.g, v, &mut add);
-                self.attach(&add);
+                self.link_edges(ws, l, &mut add);
                 let removed: std::collections::HashSet<u32> = p.edges.iter().copied().collect();
                 let mut edges: Vec<u32> = self
                     .edges
                     .iter()
                     .copied()
-                    .filter(|e| !removed.contains(e) || add.contains(e))
+                    .filter(|e| !removed.contains(e))
                     .collect();
-                edges.extend(add.iter().copied().filter(|e| !removed.contains(e)));
-                self.edges = edges;
+                edges.extend(add.iter().copied());
+                edges.sort_unstable();
+                edges.dedup();
+                self.attach(&p.edges);
+                self.set(edges);
                 true
             }
-            None => {
+            _ => {
                 self.attach(&p.edges);
                 false
             }
         }
     }
 
-    /// The vertices of the smaller of the two tree pieces holding `a` and `b`, found by searching
-    /// both at once and stopping when one is exhausted.
-    fn smaller_piece(&self, a: u32, b: u32) -> Vec<u32> {
-        let mut seen: std::collections::HashSet<u32> = [a, b].into_iter().collect();
-        let mut sides = [(vec![a], 0usize), (vec![b], 0usize)];
-        loop {
-            for (list, next) in sides.iter_mut() {
-                if *next == list.len() {
-                    return std::mem::take(list);
-                }
-                let v = list[*next];
-                *next += 1;
-                for (w, _) in self.tree_neighbours(v) {
-                    if seen.insert(w) {
-                        list.push(w);
-                    }
-                }
-            }
-        }
-    }
-
+    /// Key-vertex elimination: drop a Steiner vertex with its key paths and rejoin the pieces by a
+    /// minimum spanning tree over the cheapest links found between them, when that costs less.
     fn eliminate(&mut self, v: u32, ws: &mut Workspace) -> bool {
         let paths: Vec<KeyPath> = self
             .tree_neighbours(v)
@@ -287,36 +463,53 @@ impl State<'_> {
             .map(|first| self.walk(v, first))
             .collect();
         let removed_cost: u64 = paths.iter().map(|p| p.cost).sum();
+        let mut costs: Vec<u64> = paths.iter().map(|p| p.cost).collect();
+        costs.sort_unstable_by(|x, y| y.cmp(x));
+        let radius = (costs[0] + costs.get(1).copied().unwrap_or(0)).min(removed_cost);
+        let far: Vec<u32> = paths.iter().map(|p| p.ends[1]).collect();
+        let child: Vec<bool> = far.iter().map(|&f| self.in_subtree(v, f)).collect();
+        let parent_piece = child.iter().position(|c| !c).map(|i| i as u32);
         let removed: Vec<u32> = paths.iter().flat_map(|p| p.edges.iter().copied()).collect();
         self.detach(&removed);
-        ws.reset();
-        for (i, p) in paths.iter().enumerate() {
-            self.seed_piece(p.ends[1], i as u32, ws);
-        }
-        ws.run(self.g, self.csr, removed_cost);
+        let piece_of = |x: u32| -> Option<u32> {
+            if !self.in_subtree(v, x) {
+                return parent_piece;
+            }
+            (0..far.len())
+                .find(|&i| child[i] && self.in_subtree(far[i], x))
+                .map(|i| i as u32)
+        };
+        let seeds: Vec<(u32, u32)> = far
+            .iter()
+            .enumerate()
+            .flat_map(|(i, &f)| {
+                self.seeds(f, radius / 2, (self.reach.seeds / 8).max(8))
+                    .into_iter()
+                    .map(move |s| (s, i as u32))
+            })
+            .collect();
+        let mut links = self.search(ws, &seeds, radius, piece_of, false);
+        links.extend(self.region_bridges(ws, radius));
+        links.sort_by_key(|l| l.cost);
         let mut ds = DisjointSets::new(paths.len());
         let mut add = Vec::new();
         let mut total = 0;
         let mut joined = 1;
-        for (c, e) in self.bridges(ws, removed_cost) {
-            let [u, w] = self.g.ends[e as usize];
-            if ds.union(ws.label[u as usize], ws.label[w as usize]) {
-                total += c;
-                add.push(e);
-                ws.path_to_source(self.g, u, &mut add);
-                ws.path_to_source(self.g, w, &mut add);
+        for l in &links {
+            if ds.union(l.from, l.to) {
+                total += l.cost;
+                self.link_edges(ws, l, &mut add);
                 joined += 1;
                 if joined == paths.len() || total >= removed_cost {
                     break;
                 }
             }
         }
+        self.attach(&removed);
         if joined < paths.len() || total >= removed_cost {
-            self.attach(&removed);
             return false;
         }
-        // Paths found for different pairs may share vertices: rebuild a tree from the union.
-        let before = cost(self.g, &self.edges);
+        // Links found for different pairs may share vertices: rebuild a tree from the union.
         let removed_set: std::collections::HashSet<u32> = removed.iter().copied().collect();
         let mut cand: Vec<u32> = self
             .edges
@@ -328,25 +521,28 @@ impl State<'_> {
         cand.sort_unstable();
         cand.dedup();
         let tree = self.spanning_tree_of(cand);
-        if cost(self.g, &tree) < before {
-            self.attach(&removed);
+        if cost(self.g, &tree) < cost(self.g, &self.edges) {
             self.set(tree);
             true
         } else {
-            self.attach(&removed);
             false
         }
     }
 
-    /// Minimum spanning forest of the given edges, pruned of non-terminal leaves.
+    /// Minimum spanning forest of the given edges, pruned of non-terminal leaves (vertices numbered
+    /// locally, so the cost follows the tree's size, not the graph's).
     fn spanning_tree_of(&self, mut cand: Vec<u32>) -> Vec<u32> {
+        let mut verts: Vec<u32> = cand.iter().flat_map(|&e| self.g.ends[e as usize]).collect();
+        verts.sort_unstable();
+        verts.dedup();
+        let local = |v: u32| verts.binary_search(&v).unwrap_or(0) as u32;
         cand.sort_by_key(|&e| (self.g.cost[e as usize], e));
-        let mut ds = DisjointSets::new(self.g.vertices);
+        let mut ds = DisjointSets::new(verts.len());
         let mut out: Vec<u32> = cand
             .into_iter()
             .filter(|&e| {
                 let [a, b] = self.g.ends[e as usize];
-                ds.union(a, b)
+                ds.union(local(a), local(b))
             })
             .collect();
         prune_leaves(self.g, &mut out, self.is_terminal);

@@ -58,18 +58,46 @@ impl Effort {
         }
     }
 
-    /// How many of the best shortest-path trees get the full local search.
-    fn polished(self) -> usize {
+    /// How many of the best shortest-path trees get the full local search (fewer on big graphs).
+    fn polished(self, size: usize) -> usize {
         match self {
             Effort::Quick => 1,
+            Effort::Normal if size > 500_000 => 2,
             Effort::Normal => 4,
             Effort::Thorough => usize::MAX,
         }
     }
 
+    fn reach(self) -> local::Reach {
+        match self {
+            Effort::Quick => local::Reach {
+                seeds: 64,
+                eliminate: false,
+            },
+            Effort::Normal => local::Reach {
+                seeds: 512,
+                eliminate: true,
+            },
+            Effort::Thorough => local::Reach {
+                seeds: 4096,
+                eliminate: true,
+            },
+        }
+    }
+
+    /// Trees with more vertices than this skip vertex insertion and elimination (each try costs time
+    /// proportional to the tree).
+    fn vertex_moves_limit(self) -> usize {
+        match self {
+            Effort::Quick => 0,
+            Effort::Normal => 3_000,
+            Effort::Thorough => 20_000,
+        }
+    }
+
     fn rounds(self) -> usize {
         match self {
-            Effort::Quick => 2,
+            Effort::Quick => 1,
             Effort::Normal => 25,
             Effort::Thorough => 100,
         }
@@ -78,7 +106,7 @@ impl Effort {
     fn bound_budget(self) -> u64 {
         match self {
             Effort::Quick => 5_000_000,
-            Effort::Normal => 400_000_000,
+            Effort::Normal => 1_200_000_000,
             Effort::Thorough => u64::MAX,
         }
     }
@@ -118,13 +146,19 @@ pub fn steiner_tree(
     };
     if red.terminals.len() >= 2 {
         let csr = Csr::from_edges(rg);
-        let mut ws = Workspace::new(rg.vertices);
-        let it = &red.is_terminal;
-        bound = dual_ascent::dual_ascent(rg, &csr, &red.terminals, effort.bound_budget());
-        best = mehlhorn::mehlhorn(rg, &csr, &red.terminals, it, &mut ws);
-        let mut best_cost = tree::cost(rg, &best);
+        // The bound and the heuristics are independent: compute them side by side.
+        let (b, (heuristic, mut ws)) = rayon::join(
+            || dual_ascent::dual_ascent(rg, &csr, &red.terminals, effort.bound_budget()),
+            || {
+                let mut ws = Workspace::new(rg.vertices);
+                (heuristics(rg, &csr, &red, effort, &mut ws), ws)
+            },
+        );
+        bound = b;
+        best = heuristic;
         if bound.complete {
             // The saturated edges join every terminal to the root: a tree there is a strong start.
+            let it = &red.is_terminal;
             let sat = EdgeList {
                 vertices: rg.vertices,
                 ends: rg.ends.clone(),
@@ -136,47 +170,14 @@ pub fn steiner_tree(
                     .collect(),
             };
             let sat_csr = Csr::from_edges(&sat);
-            let t = sph::sph(
-                &sat,
-                &sat_csr,
-                &red.terminals,
-                it,
-                red.terminals[0],
-                &mut ws,
-            );
+            let root = red.terminals[0];
+            let t = sph::sph(&sat, &sat_csr, &red.terminals, it, root, &mut ws);
             let t = tree::mst_prune(rg, &csr, &t, it);
             let t = polish(rg, &csr, it, t, &mut ws, effort);
-            let c = tree::cost(rg, &t);
-            if c < best_cost {
+            if tree::cost(rg, &t) < tree::cost(rg, &best) {
                 best = t;
-                best_cost = c;
             }
         }
-        let k = red.terminals.len();
-        // Shortest-path trees from spread-out roots; the cheapest few are polished.
-        let roots = effort.starts(rg.vertices + rg.len()).min(k);
-        let mut starts: Vec<(u64, Vec<u32>)> = (0..roots)
-            .map(|r| {
-                let root = red.terminals[r * k / roots];
-                let t = sph::sph(rg, &csr, &red.terminals, it, root, &mut ws);
-                (tree::cost(rg, &t), t)
-            })
-            .collect();
-        starts.sort();
-        starts.dedup();
-        for (_, t) in starts.into_iter().take(effort.polished()) {
-            let t = if effort == Effort::Quick {
-                t
-            } else {
-                polish(rg, &csr, it, t, &mut ws, effort)
-            };
-            let c = tree::cost(rg, &t);
-            if c < best_cost {
-                best = t;
-                best_cost = c;
-            }
-        }
-        best = polish(rg, &csr, it, best, &mut ws, effort);
     }
     let edges = reduce::expand(g, &red, &best, &terms);
     tree::check_steiner_tree(g, &edges, &terms).map_err(|detail| SolveError::Verification {
@@ -199,6 +200,45 @@ pub fn steiner_tree(
     })
 }
 
+/// Mehlhorn, then shortest-path trees from spread-out roots; the cheapest few are polished by local
+/// search and the best tree is returned (reduced edge ids).
+fn heuristics(
+    rg: &EdgeList,
+    csr: &Csr,
+    red: &reduce::Reduced,
+    effort: Effort,
+    ws: &mut Workspace,
+) -> Vec<u32> {
+    let it = &red.is_terminal;
+    let mut best = mehlhorn::mehlhorn(rg, csr, &red.terminals, it, ws);
+    let mut best_cost = tree::cost(rg, &best);
+    let k = red.terminals.len();
+    let size = rg.vertices + rg.len();
+    let roots = effort.starts(size).min(k);
+    let mut starts: Vec<(u64, Vec<u32>)> = (0..roots)
+        .map(|r| {
+            let root = red.terminals[r * k / roots];
+            let t = sph::sph(rg, csr, &red.terminals, it, root, ws);
+            (tree::cost(rg, &t), t)
+        })
+        .collect();
+    starts.sort();
+    starts.dedup();
+    for (_, t) in starts.into_iter().take(effort.polished(size)) {
+        let t = if effort == Effort::Quick {
+            t
+        } else {
+            polish(rg, csr, it, t, ws, effort)
+        };
+        let c = tree::cost(rg, &t);
+        if c < best_cost {
+            best = t;
+            best_cost = c;
+        }
+    }
+    polish(rg, csr, it, best, ws, effort)
+}
+
 /// Alternates path-based and vertex-based local search until neither improves the tree.
 fn polish(
     g: &EdgeList,
@@ -210,9 +250,9 @@ fn polish(
 ) -> Vec<u32> {
     let mut c = tree::cost(g, &t);
     for _ in 0..effort.rounds() {
-        t = local::improve(g, csr, is_terminal, t, ws, effort.rounds());
+        t = local::improve(g, csr, is_terminal, t, ws, effort.rounds(), effort.reach());
         t = tree::mst_prune(g, csr, &t, is_terminal);
-        if effort != Effort::Quick {
+        if t.len() < effort.vertex_moves_limit() {
             t = vertex_moves::improve(g, csr, is_terminal, t, effort.rounds());
         }
         let c2 = tree::cost(g, &t);

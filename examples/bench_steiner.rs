@@ -1,0 +1,70 @@
+//! Steiner plan on a synthetic road-like lattice:
+//! `bench_steiner SIDE SITES EFFORT INTACT_SHARE [EDGELIST_OUT]`.
+//! Prints time, cost, bound and gap as JSON; with EDGELIST_OUT also writes "u v w" lines and a
+//! "terminals" line for the Python peers (scripts/bench-steiner.sh).
+
+use reknit::solve::steiner::{Effort, steiner_tree};
+use reknit::synthetic::{Rng, grid_graph};
+use std::io::Write;
+use std::time::Instant;
+
+fn main() -> std::io::Result<()> {
+    let a: Vec<String> = std::env::args().collect();
+    if a.len() < 5 {
+        eprintln!(
+            "usage: bench_steiner SIDE SITES quick|normal|thorough INTACT_SHARE [EDGELIST_OUT]"
+        );
+        std::process::exit(2);
+    }
+    let side: usize = a[1].parse().expect("SIDE");
+    let sites: usize = a[2].parse().expect("SITES");
+    let effort = match a[3].as_str() {
+        "quick" => Effort::Quick,
+        "thorough" => Effort::Thorough,
+        _ => Effort::Normal,
+    };
+    let intact: f64 = a[4].parse().expect("INTACT_SHARE");
+    let g = grid_graph(side, intact, 42);
+    let mut rng = Rng::new(7);
+    let mut terms: Vec<u32> = Vec::new();
+    // Sites on the lattice's largest component: the lattice is connected except for closed edges,
+    // so pick junctions and keep those reachable from the first.
+    let comps = reknit::solve::components::components(&g);
+    let mut size = vec![0usize; comps.count];
+    for &c in &comps.of {
+        size[c as usize] += 1;
+    }
+    let big = (0..comps.count).max_by_key(|&c| size[c]).unwrap() as u32;
+    while terms.len() < sites {
+        let v = rng.below(g.vertices as u64) as u32;
+        if comps.of[v as usize] == big && !terms.contains(&v) {
+            terms.push(v);
+        }
+    }
+    let t0 = Instant::now();
+    let t = steiner_tree(&g, &terms, effort).expect("solve");
+    let secs = t0.elapsed().as_secs_f64();
+    println!(
+        "{{\"vertices\":{},\"edges\":{},\"sites\":{},\"effort\":\"{}\",\"seconds\":{secs:.3},\"cost_milli\":{},\"bound_milli\":{},\"bound_complete\":{},\"reduced\":[{},{}]}}",
+        g.vertices,
+        g.len(),
+        sites,
+        effort.name(),
+        t.cost,
+        t.lower_bound,
+        t.bound_complete,
+        t.reduced_size.0,
+        t.reduced_size.1
+    );
+    if let Some(path) = a.get(5) {
+        let mut w = std::io::BufWriter::new(std::fs::File::create(path)?);
+        for e in 0..g.len() {
+            if g.usable(e) {
+                writeln!(w, "{} {} {}", g.ends[e][0], g.ends[e][1], g.cost[e])?;
+            }
+        }
+        let ts: Vec<String> = terms.iter().map(|t| t.to_string()).collect();
+        writeln!(w, "terminals {}", ts.join(" "))?;
+    }
+    Ok(())
+}
