@@ -97,3 +97,15 @@ fn series_d_normal() {
 fn series_b_quick_is_still_a_two_approximation() {
     run_series("B/", Effort::Quick);
 }
+
+/// Thorough effort on series C and D: slower, so run on request (`cargo test --release --test
+/// steinlib -- --ignored --nocapture`); the figures go to docs/benchmarks.md.
+#[test]
+#[ignore]
+fn series_c_and_d_thorough() {
+    for series in ["B/", "C/", "D/"] {
+        if let Some((mean, _, _)) = run_series(series, Effort::Thorough) {
+            assert!(mean <= 0.01, "{series}: mean {mean}");
+        }
+    }
+}

@@ -53,10 +53,16 @@ pub struct Csr {
 impl Csr {
     /// Builds the adjacency of the usable, non-loop edges, each neighbour list in edge-id order.
     pub fn from_edges(g: &EdgeList) -> Csr {
+        Self::from_edges_where(g, |_| true)
+    }
+
+    /// Builds the adjacency of the usable, non-loop edges for which `keep(edge id)` holds.
+    pub fn from_edges_where<F: Fn(usize) -> bool>(g: &EdgeList, keep: F) -> Csr {
         let n = g.vertices;
+        let use_edge = |e: usize| g.usable(e) && keep(e);
         let mut deg = vec![0usize; n + 1];
         for e in 0..g.len() {
-            if g.usable(e) {
+            if use_edge(e) {
                 let [a, b] = g.ends[e];
                 deg[a as usize] += 1;
                 deg[b as usize] += 1;
@@ -71,7 +77,7 @@ impl Csr {
         let mut target = vec![0u32; m2];
         let mut edge = vec![0u32; m2];
         for e in 0..g.len() {
-            if g.usable(e) {
+            if use_edge(e) {
                 let [a, b] = g.ends[e];
                 for (u, w) in [(a, b), (b, a)] {
                     let slot = &mut fill[u as usize];

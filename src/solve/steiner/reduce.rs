@@ -72,7 +72,7 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
             (sa != sb).then(|| (sa.min(sb), sa.max(sb), g.cost[e], e as u32))
         })
         .collect();
-    se.sort_unstable();
+    rayon::slice::ParallelSliceMut::par_sort_unstable(&mut se[..]);
     se.dedup_by(|later, first| later.0 == first.0 && later.1 == first.1);
     let sg = EdgeList {
         vertices: ns,
