@@ -23,6 +23,7 @@ pub mod ingest;
 pub mod job;
 pub mod network;
 pub mod progress;
+pub mod rng;
 pub mod sample;
 pub mod solve;
 pub mod synthetic;

@@ -58,6 +58,16 @@ impl Effort {
         }
     }
 
+    /// Restarts on perturbed costs: many on small graphs, none on big ones.
+    fn perturbed(self, size: usize) -> usize {
+        let size = size.max(1);
+        match self {
+            Effort::Quick => 0,
+            Effort::Normal => (1_000_000 / size).min(16),
+            Effort::Thorough => (40_000_000 / size).clamp(8, 400),
+        }
+    }
+
     /// How many of the best shortest-path trees get the full local search (fewer on big graphs).
     fn polished(self, size: usize) -> usize {
         match self {
@@ -230,6 +240,24 @@ fn heuristics(
         } else {
             polish(rg, csr, it, t, ws, effort)
         };
+        let c = tree::cost(rg, &t);
+        if c < best_cost {
+            best = t;
+            best_cost = c;
+        }
+    }
+    // Restarts from shortest-path trees on randomly perturbed costs (fixed seed), each polished
+    // with the true costs: they escape the local optima the plain starts share.
+    let mut rng = crate::rng::Rng::new(0x5EED_0000 ^ k as u64);
+    let mut noisy = rg.clone();
+    for _ in 0..effort.perturbed(size) {
+        for (c, &orig) in noisy.cost.iter_mut().zip(&rg.cost) {
+            *c = orig * (1000 + rng.below(250)) / 1000;
+        }
+        let root = red.terminals[rng.below(k as u64) as usize];
+        let t = sph::sph(&noisy, csr, &red.terminals, it, root, ws);
+        let t = tree::mst_prune(rg, csr, &t, it);
+        let t = polish(rg, csr, it, t, ws, effort);
         let c = tree::cost(rg, &t);
         if c < best_cost {
             best = t;
