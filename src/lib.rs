@@ -16,6 +16,7 @@
 //! [`job`] strings the stages together for one district; the `reknit` binary is a thin command line
 //! over it.
 
+pub mod batch;
 pub mod cautions;
 pub mod export;
 mod fxhash;

@@ -118,3 +118,21 @@ pub fn write_grid_layer<W: std::io::Write>(
     gj.finish()?;
     Ok(written)
 }
+
+/// `count` site positions near junctions of the layer [`write_grid_layer`] makes for `features`
+/// (lon/lat, within a few metres of a junction), deterministic for a given seed.
+pub fn grid_layer_sites(features: usize, count: usize, seed: u64) -> Vec<[f64; 2]> {
+    let side = (((features as f64) * 1.06).sqrt().ceil() as usize + 2).max(3);
+    let rows = (features / (side / 2).max(1)).clamp(1, side);
+    let mut rng = Rng::new(seed ^ 0xA5A5);
+    let (lon0, lat0) = (10.0, 45.0);
+    let (my, mx) = crate::ingest::geodesy::metres_per_degree(lat0);
+    (0..count)
+        .map(|_| {
+            // Rows are laid out first, so stay within the rows that hold streets.
+            let x = rng.below(side as u64 - 1) as f64;
+            let y = rng.below(rows as u64) as f64;
+            [lon0 + x * 100.0 / mx, lat0 + y * 100.0 / my]
+        })
+        .collect()
+}

@@ -1,5 +1,6 @@
 //! Flag definitions (their doc comments are the `--help` text) and dispatch to subcommands.
 
+mod batch;
 mod common;
 mod demo;
 mod plan;
@@ -23,6 +24,8 @@ pub struct Cli {
 enum Command {
     Plan(Box<plan::PlanArgs>),
     Demo(demo::DemoArgs),
+    Batch(batch::BatchArgs),
+    Merge(batch::MergeArgs),
 }
 
 /// Runs the chosen subcommand.
@@ -30,5 +33,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Plan(a) => plan::run(*a),
         Command::Demo(a) => demo::run(a),
+        Command::Batch(a) => batch::run(a),
+        Command::Merge(a) => batch::merge(a),
     }
 }

@@ -143,6 +143,8 @@ pub struct Summary {
     pub tool: Tool,
     /// Input files with their SHA-256.
     pub inputs: Vec<InputRecord>,
+    /// SHA-256 of the inputs' digests and the settings: unchanged inputs and settings, same value.
+    pub fingerprint: String,
     /// Settings in force.
     pub settings: serde_json::Value,
     /// Coordinate handling.

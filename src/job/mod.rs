@@ -205,6 +205,71 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     Ok(summary)
 }
 
+/// Every setting of a job that can change its outputs, as recorded in `summary.json`.
+pub fn settings_json(job: &PlanJob) -> serde_json::Value {
+    let s = &job.road_settings;
+    let ss = &job.site_settings;
+    serde_json::json!({
+        "snap_m": s.snap_m,
+        "damage_field": s.damage.field,
+        "default_damage": s.damage.default,
+        "closed_value": s.damage.closed_value,
+        "id_field": s.id_field,
+        "mst": job.mst.name(),
+        "max_attach_m": job.max_attach_m,
+        "hub": job.hub,
+        "whole_network": job.whole_network,
+        "effort": job.effort.name(),
+        "site_id_field": ss.id_field,
+        "site_name_field": ss.name_field,
+        "priority_field": ss.priority_field,
+        "lon_column": ss.lon_column,
+        "lat_column": ss.lat_column,
+    })
+}
+
+/// SHA-256 over the inputs' roles and digests and the settings: equal fingerprints mean equal
+/// outputs, which is how `batch --resume` knows a district is up to date.
+pub fn fingerprint(
+    inputs: &[crate::ingest::source::InputRecord],
+    settings: &serde_json::Value,
+) -> String {
+    use sha2::{Digest, Sha256};
+    let mut h = Sha256::new();
+    h.update(env!("CARGO_PKG_VERSION").as_bytes());
+    for i in inputs {
+        h.update(format!("\n{}\t{}", i.role, i.sha256).as_bytes());
+    }
+    h.update(b"\n");
+    h.update(settings.to_string().as_bytes());
+    h.finalize().iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// The fingerprint a job would record, computed by reading (and hashing) its inputs only.
+pub fn job_fingerprint(job: &PlanJob) -> Result<String, IngestError> {
+    let mut inputs = Vec::new();
+    for (role, src) in
+        std::iter::once(("roads", &job.roads)).chain(job.sites.iter().map(|s| ("sites", s)))
+    {
+        let path = src.display_path();
+        let r = src.open()?;
+        let (sha256, bytes) =
+            crate::ingest::source::HashingReader::finish_buffered(r).map_err(|source| {
+                IngestError::Io {
+                    path: path.clone(),
+                    source,
+                }
+            })?;
+        inputs.push(crate::ingest::source::InputRecord {
+            role: role.into(),
+            path: path.display().to_string(),
+            bytes,
+            sha256,
+        });
+    }
+    Ok(fingerprint(&inputs, &settings_json(job)))
+}
+
 /// The hub: the named site, or the one with the highest priority (first in the file on ties).
 fn pick_hub(
     sl: &SiteLayer,

@@ -53,23 +53,13 @@ pub fn build(
         .map(|&e| &net.edges[e as usize])
         .filter(|e| e.cost > 0)
         .collect();
-    let s = &job.road_settings;
+    let fingerprint = super::fingerprint(&inputs, &super::settings_json(job));
     let g = gap(plan.total_cost, plan.lower_bound);
     Summary {
         tool: Tool::default(),
         inputs,
-        settings: serde_json::json!({
-            "snap_m": s.snap_m,
-            "damage_field": s.damage.field,
-            "default_damage": s.damage.default,
-            "closed_value": s.damage.closed_value,
-            "id_field": s.id_field,
-            "mst": job.mst.name(),
-            "max_attach_m": job.max_attach_m,
-            "hub": job.hub,
-            "whole_network": job.whole_network,
-            "effort": job.effort.name(),
-        }),
+        fingerprint,
+        settings: super::settings_json(job),
         geodesy: Geodesy {
             input_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
             length_method: "geodesic on the WGS84 ellipsoid (Karney; mid-latitude formula for steps under 1 km, within 0.1 mm of it)".into(),
