@@ -139,7 +139,13 @@ fn check_keys(table: &BTreeMap<String, Val>, extra: &[&str]) -> Result<(), Strin
     Ok(())
 }
 
-fn read_toml(text: &str) -> Result<(BTreeMap<String, Val>, Vec<BTreeMap<String, Val>>), String> {
+/// Settings by key.
+type Table = BTreeMap<String, Val>;
+
+/// The defaults and one table per district.
+type Parsed = (Table, Vec<Table>);
+
+fn read_toml(text: &str) -> Result<Parsed, String> {
     let doc: toml::Table = text
         .parse()
         .map_err(|e: toml::de::Error| format!("not valid TOML: {e}"))?;
@@ -187,7 +193,7 @@ fn read_toml(text: &str) -> Result<(BTreeMap<String, Val>, Vec<BTreeMap<String, 
     Ok((defaults, entries))
 }
 
-fn read_csv(text: &str) -> Result<(BTreeMap<String, Val>, Vec<BTreeMap<String, Val>>), String> {
+fn read_csv(text: &str) -> Result<Parsed, String> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let headers: Vec<String> = r
         .headers()
