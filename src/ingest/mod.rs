@@ -6,6 +6,7 @@
 
 pub mod attach;
 pub mod coords;
+pub mod crs;
 pub mod damage;
 pub mod geodesy;
 pub mod geojson;
