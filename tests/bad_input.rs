@@ -200,10 +200,23 @@ fn unknown_geometry_and_crs() {
         d.path(),
         "crs.geojson",
         &format!(
-            r#"{{"type":"FeatureCollection","crs":{{"type":"name","properties":{{"name":"urn:ogc:def:crs:EPSG::27700"}}}},"features":[{OK_LINE}]}}"#
+            r#"{{"type":"FeatureCollection","crs":{{"type":"name","properties":{{"name":"LOCAL_GRID_7"}}}},"features":[{OK_LINE}]}}"#
         ),
     );
-    fails(&p, &[], &["crs.geojson", "27700", "not WGS84"]);
+    fails(
+        &p,
+        &[],
+        &["crs.geojson", "LOCAL_GRID_7", "no EPSG code", "--crs"],
+    );
+    fails(&p, &["--crs", "EPSG:99999"], &["EPSG:99999"]);
+    // A projected layer read as longitude/latitude: the message suggests --crs.
+    let proj = r#"{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[530000,180000],[530100,180000]]}}"#;
+    let p = file(d.path(), "projected.geojson", &fc(&[proj]));
+    fails(
+        &p,
+        &[],
+        &["projected.geojson", "feature 0", "530000", "--crs"],
+    );
 }
 
 #[test]

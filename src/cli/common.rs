@@ -44,6 +44,11 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "FIELD")]
     pub id_field: Option<String>,
 
+    /// The road layer's coordinate reference system as EPSG:NNNN, overriding its .prj or GeoJSON
+    /// crs member (GeoJSON is WGS84 longitude/latitude otherwise).
+    #[arg(long, value_name = "EPSG:CODE")]
+    pub crs: Option<String>,
+
     /// Algorithm for the whole-network plan; both give a forest of the same minimum total.
     #[arg(long, value_enum, default_value = "kruskal")]
     pub mst: MstChoice,
@@ -59,6 +64,7 @@ impl NetworkArgs {
                 closed_value: self.closed_value.clone(),
             },
             id_field: self.id_field.clone(),
+            crs: self.crs.clone(),
         }
     }
 
@@ -123,6 +129,10 @@ pub struct SiteArgs {
     /// CSV column with latitudes (default: lat, latitude or y).
     #[arg(long, value_name = "COLUMN")]
     pub lat_column: Option<String>,
+
+    /// The sites layer's CRS as EPSG:NNNN (default: its .prj, or WGS84 longitude/latitude).
+    #[arg(long, value_name = "EPSG:CODE")]
+    pub sites_crs: Option<String>,
 }
 
 impl SiteArgs {
@@ -134,6 +144,7 @@ impl SiteArgs {
             priority_field: self.priority_field.clone(),
             lon_column: self.lon_column.clone(),
             lat_column: self.lat_column.clone(),
+            crs: self.sites_crs.clone(),
         };
         job.max_attach_m = self.max_attach;
         job.hub = self.hub.clone();

@@ -14,7 +14,8 @@ use std::process::ExitCode;
 /// --sites) and summary.json into the output folder; nothing is written when the run fails.
 #[derive(Debug, Args)]
 pub struct PlanArgs {
-    /// Road centerline layer: GeoJSON FeatureCollection of LineString/MultiLineString in lon/lat.
+    /// Road centerline layer: GeoJSON (LineString/MultiLineString, WGS84 lon/lat unless --crs or a
+    /// crs member says otherwise) or an ESRI Shapefile (.shp with .shx, .dbf and .prj).
     #[arg(long, value_name = "FILE")]
     roads: PathBuf,
 

@@ -35,6 +35,8 @@ pub struct Geodesy {
     pub output_crs: String,
     /// Unit of every length in the outputs.
     pub length_unit: &'static str,
+    /// Accuracy notes about the conversion to WGS84 (datum shifts without grids, and the like).
+    pub note: Option<String>,
 }
 
 /// Counts from reading and noding.

@@ -44,14 +44,20 @@ impl std::fmt::Debug for Crs {
 
 /// Conformal projections used for national and zone grids: planar lengths are ground lengths to
 /// within the grid's scale error.
-const CONFORMAL: &[&str] = &["tmerc", "etmerc", "utm", "lcc", "sterea", "stere", "somerc", "omerc"];
+const CONFORMAL: &[&str] = &[
+    "tmerc", "etmerc", "utm", "lcc", "sterea", "stere", "somerc", "omerc",
+];
 
 /// Datum shifts to WGS84 (Helmert, PROJ `towgs84` form) keyed by spellings of the datum name in ESRI
 /// and GDAL WKT. Values are the common published transformations (from memory; each carries the
 /// metre-level accuracy of a grid-free shift).
 const DATUM_SHIFTS: &[(&[&str], &str, &str)] = &[
     (
-        &["D_North_American_1927", "North_American_Datum_1927", "NAD27"],
+        &[
+            "D_North_American_1927",
+            "North_American_Datum_1927",
+            "NAD27",
+        ],
         "-8,160,176,0,0,0,0",
         "NAD27 shifted without grids (metre-level, as PROJ does without grid files)",
     ),
@@ -79,22 +85,43 @@ const DATUM_SHIFTS: &[(&[&str], &str, &str)] = &[
 
 /// Datums that coincide with WGS84 at the metre level (no shift applied).
 const WGS84_LIKE: &[&str] = &[
-    "WGS_1984", "D_WGS_1984", "WGS84", "World Geodetic System 1984",
-    "North_American_Datum_1983", "D_North_American_1983", "NAD83",
-    "European_Terrestrial_Reference_System_1989", "D_ETRS_1989", "ETRS89",
-    "Geocentric_Datum_of_Australia_1994", "D_GDA_1994", "GDA94",
-    "Geocentric_Datum_of_Australia_2020", "D_GDA2020", "GDA2020",
-    "New_Zealand_Geodetic_Datum_2000", "D_NZGD_2000", "NZGD2000",
-    "Sistema_de_Referencia_Geocentrico_para_las_AmericaS_2000", "D_SIRGAS_2000", "SIRGAS2000",
-    "D_North_American_1983_HARN", "NAD83_High_Accuracy_Reference_Network",
-    "D_NAD_1983_2011", "NAD83_National_Spatial_Reference_System_2011",
+    "WGS_1984",
+    "D_WGS_1984",
+    "WGS84",
+    "World Geodetic System 1984",
+    "North_American_Datum_1983",
+    "D_North_American_1983",
+    "NAD83",
+    "European_Terrestrial_Reference_System_1989",
+    "D_ETRS_1989",
+    "ETRS89",
+    "Geocentric_Datum_of_Australia_1994",
+    "D_GDA_1994",
+    "GDA94",
+    "Geocentric_Datum_of_Australia_2020",
+    "D_GDA2020",
+    "GDA2020",
+    "New_Zealand_Geodetic_Datum_2000",
+    "D_NZGD_2000",
+    "NZGD2000",
+    "Sistema_de_Referencia_Geocentrico_para_las_AmericaS_2000",
+    "D_SIRGAS_2000",
+    "SIRGAS2000",
+    "D_North_American_1983_HARN",
+    "NAD83_High_Accuracy_Reference_Network",
+    "D_NAD_1983_2011",
+    "NAD83_National_Spatial_Reference_System_2011",
 ];
 
 impl Crs {
     /// WGS84 longitude/latitude (EPSG:4326), as RFC 7946 GeoJSON uses.
     pub fn wgs84() -> Crs {
-        Crs::from_proj_string("EPSG:4326".into(), "+proj=longlat +datum=WGS84 +no_defs", None)
-            .expect("WGS84 is always available")
+        Crs::from_proj_string(
+            "EPSG:4326".into(),
+            "+proj=longlat +datum=WGS84 +no_defs",
+            None,
+        )
+        .expect("WGS84 is always available")
     }
 
     /// A CRS from an EPSG code.
@@ -117,7 +144,9 @@ impl Crs {
                 .filter(|p| !p.starts_with("+nadgrids"))
                 .collect::<Vec<_>>()
                 .join(" ");
-            note = Some("NAD27 shifted without grids (metre-level, as PROJ does without grid files)".into());
+            note = Some(
+                "NAD27 shifted without grids (metre-level, as PROJ does without grid files)".into(),
+            );
         }
         Crs::from_proj_string(name, &proj, note)
     }
@@ -144,13 +173,18 @@ impl Crs {
             return Ok(c);
         }
         let name = wkt_name(wkt).unwrap_or_else(|| "the .prj's CRS".into());
-        let proj = proj4wkt::wkt_to_projstring(wkt)
-            .map_err(|e| format!("cannot read the CRS {name:?}: {e}; give the CRS as --crs EPSG:NNNN"))?;
+        let proj = proj4wkt::wkt_to_projstring(wkt).map_err(|e| {
+            format!("cannot read the CRS {name:?}: {e}; give the CRS as --crs EPSG:NNNN")
+        })?;
         let datum = wkt_datum(wkt).unwrap_or_default();
         let mut note = None;
-        let proj = if WGS84_LIKE.iter().any(|d| d.eq_ignore_ascii_case(&datum)) || datum.is_empty() {
+        let proj = if WGS84_LIKE.iter().any(|d| d.eq_ignore_ascii_case(&datum)) || datum.is_empty()
+        {
             if datum.contains("1983") || datum.contains("NAD83") {
-                note = Some("NAD83 treated as WGS84 (no shift, as PROJ does; about 1–2 m in reality)".into());
+                note = Some(
+                    "NAD83 treated as WGS84 (no shift, as PROJ does; about 1–2 m in reality)"
+                        .into(),
+                );
             }
             proj
         } else if let Some((_, shift, why)) = DATUM_SHIFTS
@@ -175,7 +209,8 @@ impl Crs {
             .map_err(|e| format!("WGS84: {e}"))?;
         let geographic = src.is_latlong();
         let projname = src.projname();
-        let web_mercator = projname == "merc" && proj.contains("+a=6378137") && proj.contains("+b=6378137");
+        let web_mercator =
+            projname == "merc" && proj.contains("+a=6378137") && proj.contains("+b=6378137");
         let lengths = if !geographic && CONFORMAL.contains(&projname) && !web_mercator {
             LengthRule::Planar
         } else {
@@ -210,14 +245,27 @@ impl Crs {
         };
         let (lon, lat) = proj4rs::adaptors::transform_xy(&self.src, &self.dst, x, y).ok()?;
         let (lon, lat) = (lon.to_degrees(), lat.to_degrees());
-        (lon.is_finite() && lat.is_finite() && lon.abs() <= 180.0 + 1e-9 && lat.abs() <= 90.0 + 1e-9)
+        (lon.is_finite()
+            && lat.is_finite()
+            && lon.abs() <= 180.0 + 1e-9
+            && lat.abs() <= 90.0 + 1e-9)
             .then_some([lon.clamp(-180.0, 180.0), lat.clamp(-90.0, 90.0)])
     }
 
     /// Converts WGS84 longitude/latitude to this CRS (for tests and checks).
     pub fn from_lonlat(&self, p: [f64; 2]) -> Option<[f64; 2]> {
-        let (x, y) = proj4rs::adaptors::transform_xy(&self.dst, &self.src, p[0].to_radians(), p[1].to_radians()).ok()?;
-        let out = if self.geographic { [x.to_degrees(), y.to_degrees()] } else { [x, y] };
+        let (x, y) = proj4rs::adaptors::transform_xy(
+            &self.dst,
+            &self.src,
+            p[0].to_radians(),
+            p[1].to_radians(),
+        )
+        .ok()?;
+        let out = if self.geographic {
+            [x.to_degrees(), y.to_degrees()]
+        } else {
+            [x, y]
+        };
         (out[0].is_finite() && out[1].is_finite()).then_some(out)
     }
 
@@ -266,7 +314,10 @@ fn top_level_epsg(wkt: &str) -> Option<u32> {
                     if rest.len() >= key.len() && rest[..key.len()].eq_ignore_ascii_case(key) {
                         let inner = &rest[key.len()..];
                         let end = inner.find(']').unwrap_or(inner.len());
-                        let fields: Vec<&str> = inner[..end].split(',').map(|s| s.trim().trim_matches('"')).collect();
+                        let fields: Vec<&str> = inner[..end]
+                            .split(',')
+                            .map(|s| s.trim().trim_matches('"'))
+                            .collect();
                         if fields.len() >= 2 && fields[0].eq_ignore_ascii_case("EPSG") {
                             found = fields[1].parse().ok();
                         }
@@ -316,8 +367,19 @@ mod tests {
             None,
         )
         .unwrap();
-        let local = Crs::from_proj_string("Airy lon/lat".into(), "+proj=longlat +ellps=airy +towgs84=0,0,0,0,0,0,0", None).unwrap();
-        let (x, y) = proj4rs::adaptors::transform_xy(&local.src, &c.src, 0.5f64.to_radians(), 50.5f64.to_radians()).unwrap();
+        let local = Crs::from_proj_string(
+            "Airy lon/lat".into(),
+            "+proj=longlat +ellps=airy +towgs84=0,0,0,0,0,0,0",
+            None,
+        )
+        .unwrap();
+        let (x, y) = proj4rs::adaptors::transform_xy(
+            &local.src,
+            &c.src,
+            0.5f64.to_radians(),
+            50.5f64.to_radians(),
+        )
+        .unwrap();
         assert!(close([x, y], [577_274.99, 69_740.50], 0.01), "{x} {y}");
         assert_eq!(c.lengths, LengthRule::Planar);
     }
@@ -330,8 +392,19 @@ mod tests {
         let proj = "+proj=lcc +lat_1=28.38333333333333 +lat_2=30.28333333333333 +lat_0=27.83333333333333 \
                     +lon_0=-99 +x_0=609601.2192024384 +y_0=0 +ellps=clrk66 +towgs84=0,0,0,0,0,0,0 +units=us-ft";
         let c = Crs::from_proj_string("TX SC".into(), proj, None).unwrap();
-        let local = Crs::from_proj_string("Clarke lon/lat".into(), "+proj=longlat +ellps=clrk66 +towgs84=0,0,0,0,0,0,0", None).unwrap();
-        let (x, y) = proj4rs::adaptors::transform_xy(&local.src, &c.src, (-96f64).to_radians(), 28.5f64.to_radians()).unwrap();
+        let local = Crs::from_proj_string(
+            "Clarke lon/lat".into(),
+            "+proj=longlat +ellps=clrk66 +towgs84=0,0,0,0,0,0,0",
+            None,
+        )
+        .unwrap();
+        let (x, y) = proj4rs::adaptors::transform_xy(
+            &local.src,
+            &c.src,
+            (-96f64).to_radians(),
+            28.5f64.to_radians(),
+        )
+        .unwrap();
         // proj4rs works in the CRS's own unit (US survey feet here).
         assert!(close([x, y], [2_963_503.91, 254_759.80], 0.02), "{x} {y}");
         assert!((c.to_meter - 0.304_800_609_601_219_2).abs() < 1e-12);

@@ -13,6 +13,7 @@ pub mod geojson;
 pub mod noding;
 pub mod roads;
 pub mod scan;
+pub mod shapefile;
 pub mod sites;
 pub mod source;
 

@@ -39,7 +39,8 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
         snap_m,
         ..Default::default()
     };
-    let (cid, centres) = cluster(&layer.coords, snap_m);
+    let (cid, founders) = cluster(&layer.coords, snap_m);
+    let centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
     for (i, &c) in cid.iter().enumerate() {
         let centre = centres[c as usize];
         if centre != layer.coords[i] {
@@ -128,10 +129,29 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
     drop(seen);
     drop(seen_exact);
 
-    // Edges with geometry, lengths measured in parallel.
+    // Edges with geometry, lengths measured in parallel: planar × unit in the source's conformal
+    // projection when it kept its native coordinates, geodesic otherwise.
+    let native = &layer.native;
+    let to_meter = layer.to_meter;
     let lengths: Vec<f64> = pieces
         .par_iter()
-        .map(|&(a, b, _)| polyline_length_m(seq[a..b].iter().map(|&c| centres[c as usize])))
+        .map(|&(a, b, _)| {
+            if native.is_empty() {
+                polyline_length_m(seq[a..b].iter().map(|&c| centres[c as usize]))
+            } else {
+                seq[a..b]
+                    .windows(2)
+                    .map(|w| {
+                        let (p, q) = (
+                            native[founders[w[0] as usize] as usize],
+                            native[founders[w[1] as usize] as usize],
+                        );
+                        (q[0] - p[0]).hypot(q[1] - p[1])
+                    })
+                    .sum::<f64>()
+                    * to_meter
+            }
+        })
         .collect();
     let mut geom_offsets = Vec::with_capacity(pieces.len() + 1);
     geom_offsets.push(0);
@@ -222,7 +242,8 @@ fn hash_canonical(piece: &[u32]) -> u64 {
     h.finish()
 }
 
-/// Assigns every vertex a cluster; returns (cluster per vertex, cluster centres).
+/// Assigns every vertex a cluster; returns (cluster per vertex, the vertex founding each cluster,
+/// whose position is the cluster's centre).
 ///
 /// With `snap_m == 0` only bit-identical coordinates share a cluster. Otherwise the result is that of
 /// one pass in input order where each vertex joins the nearest existing centre within `snap_m` metres
@@ -231,7 +252,7 @@ fn hash_canonical(piece: &[u32]) -> u64 {
 ///
 /// Most vertices have no other position within the tolerance; those are found in parallel on a sorted
 /// grid, and only the rest ("contested" vertices) go through the sequential pass.
-pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<[f64; 2]>) {
+pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
     let n = coords.len();
     let grid = Grid::new(coords, snap_m);
     let mut keyed: Vec<(u64, u32)> = coords
@@ -306,17 +327,17 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<[f64; 2]>) {
     }
     // Number clusters by first appearance: a representative always precedes its members.
     let mut cid = vec![0u32; n];
-    let mut centres = Vec::new();
+    let mut founders = Vec::new();
     for i in 0..n {
         let r = rep[i] as usize;
         if r == i {
-            cid[i] = centres.len() as u32;
-            centres.push(coords[i]);
+            cid[i] = founders.len() as u32;
+            founders.push(i as u32);
         } else {
             cid[i] = cid[r];
         }
     }
-    (cid, centres)
+    (cid, founders)
 }
 
 /// Grid cells eight times the tolerance wide, in degrees, conservative over the data's latitudes.

@@ -1,5 +1,6 @@
 //! Reading a road centerline layer into flat arrays of line parts.
 
+use super::crs::{Crs, LengthRule};
 use super::damage::DamageRule;
 use super::geojson::{ReadFailure, read_collection};
 use super::source::{InputRecord, Source};
@@ -7,6 +8,7 @@ use super::{IngestError, MAX_SNAP_M};
 use crate::network::FeatureMeta;
 use serde_json::Value;
 use std::collections::BTreeMap;
+use std::path::Path;
 
 /// Property names taken as a feature's id when no `--id-field` is given and it has no `id` member.
 pub const ID_FIELDS: &[&str] = &[
@@ -22,6 +24,8 @@ pub struct RoadSettings {
     pub damage: DamageRule,
     /// Property holding each feature's id; `None` looks for the `id` member, then common id fields.
     pub id_field: Option<String>,
+    /// The layer's CRS as `EPSG:NNNN`, overriding the `.prj` or GeoJSON `crs` member.
+    pub crs: Option<String>,
 }
 
 impl Default for RoadSettings {
@@ -30,6 +34,7 @@ impl Default for RoadSettings {
             snap_m: 0.5,
             damage: DamageRule::default(),
             id_field: None,
+            crs: None,
         }
     }
 }
@@ -78,8 +83,19 @@ pub struct ReadStats {
 /// Road lines as flat arrays: the vertices of part `p` are `coords[part_start(p)..part_ends[p]]`.
 #[derive(Debug, Clone, Default)]
 pub struct LineLayer {
-    /// Lon/lat of every vertex of every part.
+    /// Lon/lat (WGS84) of every vertex of every part.
     pub coords: Vec<[f64; 2]>,
+    /// The same vertices in the source's projected CRS, when lengths are measured there (planar
+    /// length × unit); empty otherwise.
+    pub native: Vec<[f64; 2]>,
+    /// Metres per native unit.
+    pub to_meter: f64,
+    /// The source CRS, described for summaries.
+    pub crs_name: String,
+    /// How lengths were measured, described for summaries.
+    pub length_method: String,
+    /// Accuracy notes about the CRS conversion.
+    pub crs_note: Option<String>,
     /// End offset of each part in `coords`.
     pub part_ends: Vec<usize>,
     /// Index into `features` of each part.
@@ -97,6 +113,16 @@ impl LineLayer {
     pub fn part(&self, p: usize) -> &[[f64; 2]] {
         let start = if p == 0 { 0 } else { self.part_ends[p - 1] };
         &self.coords[start..self.part_ends[p]]
+    }
+}
+
+/// Reads a road layer: an ESRI Shapefile by its `.shp` extension, GeoJSON otherwise.
+pub fn read_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
+    match source.path() {
+        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("shp")) => {
+            super::shapefile::read_shapefile_roads(p, settings)
+        }
+        _ => read_geojson_roads(source, settings),
     }
 }
 
@@ -133,7 +159,13 @@ pub fn read_geojson_roads(
         },
         ReadFailure::Callback(e) => e,
     })?;
-    check_crs_member(&path, info.crs.as_ref())?;
+    let crs = match &settings.crs {
+        Some(c) => Crs::from_user(c).map_err(|message| IngestError::Crs {
+            path: path.clone(),
+            message,
+        })?,
+        None => crs_member(&path, info.crs.as_ref())?,
+    };
     let (sha256, bytes) =
         super::source::HashingReader::finish_buffered(reader).map_err(|source| {
             IngestError::Io {
@@ -148,8 +180,16 @@ pub fn read_geojson_roads(
         bytes,
         sha256,
     });
+    check_empty(&layer, &path, info.features)?;
+    finish_coordinates(&mut layer, &path, &crs)?;
+    Ok(layer)
+}
+
+/// Fails when a layer holds no lines, saying what it held instead.
+pub fn check_empty(layer: &LineLayer, path: &Path, features: usize) -> Result<(), IngestError> {
     if layer.part_ends.is_empty() {
-        let detail = if info.features == 0 {
+        let path = path.to_path_buf();
+        let detail = if features == 0 {
             "the FeatureCollection is empty".to_string()
         } else {
             let reasons: Vec<String> = layer
@@ -158,20 +198,94 @@ pub fn read_geojson_roads(
                 .iter()
                 .map(|(k, v)| format!("{v} × {k}"))
                 .collect();
-            format!(
-                "{} features, all skipped: {}",
-                info.features,
-                reasons.join(", ")
-            )
+            format!("{features} features, all skipped: {}", reasons.join(", "))
         };
         return Err(IngestError::Empty { path, detail });
     }
-    Ok(layer)
+    Ok(())
 }
 
-fn add_feature(
+/// Checks or converts every vertex to WGS84 longitude/latitude, keeping the native coordinates when
+/// lengths are planar; errors name the feature and vertex.
+pub fn finish_coordinates(
     layer: &mut LineLayer,
-    path: &std::path::Path,
+    path: &Path,
+    crs: &Crs,
+) -> Result<(), IngestError> {
+    use rayon::prelude::*;
+    layer.crs_name = crs.describe();
+    layer.crs_note = crs.note.clone();
+    layer.to_meter = crs.to_meter;
+    let bad = |layer: &LineLayer, i: usize, what: String| {
+        let part = layer.part_ends.partition_point(|&e| e <= i);
+        let start = if part == 0 {
+            0
+        } else {
+            layer.part_ends[part - 1]
+        };
+        let f = &layer.features[layer.part_feature[part] as usize];
+        IngestError::Feature {
+            path: path.to_path_buf(),
+            feature: f.source_index as usize,
+            field: Some("geometry".into()),
+            message: format!("vertex {} {what}", i - start),
+        }
+    };
+    if crs.is_wgs84() {
+        layer.length_method = "geodesic on the WGS84 ellipsoid (Karney; mid-latitude formula for steps under 1 km, within 0.1 mm of it)".into();
+        if let Some(i) = layer
+            .coords
+            .iter()
+            .position(|p| !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0))
+        {
+            let p = layer.coords[i];
+            return Err(bad(
+                layer,
+                i,
+                format!(
+                    "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, give its CRS with --crs EPSG:NNNN",
+                    p[0], p[1]
+                ),
+            ));
+        }
+        return Ok(());
+    }
+    let converted: Vec<Option<[f64; 2]>> =
+        layer.coords.par_iter().map(|&p| crs.to_lonlat(p)).collect();
+    if let Some(i) = converted.iter().position(Option::is_none) {
+        let p = layer.coords[i];
+        return Err(bad(
+            layer,
+            i,
+            format!(
+                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS",
+                p[0], p[1], crs.name
+            ),
+        ));
+    }
+    let lonlat: Vec<[f64; 2]> = converted.into_iter().flatten().collect();
+    let native = std::mem::replace(&mut layer.coords, lonlat);
+    match crs.lengths {
+        LengthRule::Planar => {
+            layer.native = native;
+            layer.length_method = format!(
+                "planar in {} × {} m per unit (conformal projection)",
+                crs.name, crs.to_meter
+            );
+        }
+        LengthRule::Geodesic => {
+            layer.length_method = format!(
+                "geodesic on the WGS84 ellipsoid after converting from {} (its planar distances are not ground distances)",
+                crs.name
+            );
+        }
+    }
+    Ok(())
+}
+
+pub(super) fn add_feature(
+    layer: &mut LineLayer,
+    path: &Path,
     settings: &RoadSettings,
     index: usize,
     f: super::geojson::RawFeature,
@@ -232,11 +346,11 @@ fn add_feature(
             ));
         }
         for (vi, p) in part.iter().enumerate() {
-            if !(p[0].is_finite() && p[1].is_finite()) || p[0].abs() > 180.0 || p[1].abs() > 90.0 {
+            if !(p[0].is_finite() && p[1].is_finite()) {
                 return Err(fail(
                     Some("geometry"),
                     format!(
-                        "line {pi} vertex {vi} ({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90)",
+                        "line {pi} vertex {vi} ({}, {}) is not a finite number",
                         p[0], p[1]
                     ),
                 ));
@@ -266,7 +380,7 @@ fn add_feature(
     Ok(())
 }
 
-fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings) -> Option<Value> {
+pub(super) fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings) -> Option<Value> {
     let usable = |v: &Value| matches!(v, Value::String(_) | Value::Number(_));
     if let Some(field) = &settings.id_field {
         return f.prop(field).filter(|v| usable(v)).cloned();
@@ -280,12 +394,12 @@ fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings) -> Option
         .cloned()
 }
 
-/// Accepts a legacy GeoJSON `crs` member only when it names WGS84 lon/lat.
-fn check_crs_member(path: &std::path::Path, crs: Option<&Value>) -> Result<(), IngestError> {
-    let Some(crs) = crs else { return Ok(()) };
-    if crs.is_null() {
-        return Ok(());
-    }
+/// The CRS of a legacy GeoJSON `crs` member: WGS84 when absent, the named EPSG code when it names
+/// one, an error otherwise.
+pub fn crs_member(path: &Path, crs: Option<&Value>) -> Result<Crs, IngestError> {
+    let Some(crs) = crs.filter(|c| !c.is_null()) else {
+        return Ok(Crs::wgs84());
+    };
     let name = crs
         .pointer("/properties/name")
         .and_then(Value::as_str)
@@ -293,18 +407,27 @@ fn check_crs_member(path: &std::path::Path, crs: Option<&Value>) -> Result<(), I
     let lonlat = [
         "urn:ogc:def:crs:OGC:1.3:CRS84",
         "urn:ogc:def:crs:OGC::CRS84",
-        "urn:ogc:def:crs:EPSG::4326",
-        "EPSG:4326",
         "CRS84",
     ];
     if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
-        return Ok(());
+        return Ok(Crs::wgs84());
     }
-    Err(IngestError::Crs {
-        path: path.to_path_buf(),
-        message: format!(
-            "the layer declares the coordinate reference system {crs}, which is not WGS84 longitude/latitude; \
-             reproject it to EPSG:4326 (RFC 7946 GeoJSON is always WGS84 lon/lat)"
-        ),
-    })
+    let code = name
+        .rsplit([':', '/'])
+        .next()
+        .filter(|_| name.to_ascii_uppercase().contains("EPSG"))
+        .and_then(|c| c.parse::<u32>().ok());
+    match code {
+        Some(c) => Crs::from_epsg(c).map_err(|message| IngestError::Crs {
+            path: path.to_path_buf(),
+            message: format!("the layer's crs member names {name}: {message}"),
+        }),
+        None => Err(IngestError::Crs {
+            path: path.to_path_buf(),
+            message: format!(
+                "the layer declares the coordinate reference system {crs}, which names no EPSG code; \
+                 give it with --crs EPSG:NNNN or reproject the layer to WGS84 longitude/latitude (RFC 7946)"
+            ),
+        }),
+    }
 }

@@ -36,6 +36,8 @@ pub struct SiteSettings {
     pub lon_column: Option<String>,
     /// CSV column with latitudes (default: `lat`, `latitude` or `y`).
     pub lat_column: Option<String>,
+    /// The layer's CRS as `EPSG:NNNN` (default: the Shapefile's .prj, or WGS84 lon/lat).
+    pub crs: Option<String>,
 }
 
 /// One critical site.
@@ -71,8 +73,11 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
         .extension()
         .and_then(|e| e.to_str())
         .map(|e| e.to_ascii_lowercase());
+    if ext.as_deref() == Some("shp") {
+        return read_shapefile_sites(&path, settings);
+    }
     let mut reader = source.open()?;
-    let sites = match ext.as_deref() {
+    let mut sites = match ext.as_deref() {
         Some("csv") | Some("txt") => read_csv(&mut reader, &path, settings)?,
         _ => read_geojson(&mut reader, &path, settings)?,
     };
@@ -81,6 +86,17 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
             path: path.clone(),
             source,
         })?;
+    if let Some(c) = &settings.crs {
+        let crs = super::crs::Crs::from_user(c).map_err(|message| IngestError::Crs {
+            path: path.clone(),
+            message,
+        })?;
+        convert(&path, &crs, &mut sites)?;
+    } else {
+        for s in &sites {
+            check_lonlat(&path, s.index, s.pos)?;
+        }
+    }
     check_unique(&path, &sites)?;
     Ok(SiteLayer {
         sites,
@@ -130,7 +146,6 @@ fn read_geojson<R: std::io::Read>(
             }
         }
         let pos = f.coords.pos[0];
-        check_lonlat(path, index, pos)?;
         let id = match &s.id_field {
             Some(field) => props.get(field).and_then(text),
             None => f.id.as_ref().and_then(text).or_else(|| {
@@ -244,7 +259,6 @@ fn read_csv<R: std::io::Read>(
                 })
         };
         let pos = [num(lon_i)?, num(lat_i)?];
-        check_lonlat(path, index, pos)?;
         let mut attributes = Map::new();
         for (h, v) in headers.iter().zip(rec.iter()) {
             let value = match v.trim().parse::<f64>() {
@@ -362,4 +376,86 @@ fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
         }
     }
     Ok(())
+}
+
+/// Converts site positions from `crs` to WGS84 longitude/latitude.
+fn convert(path: &Path, crs: &super::crs::Crs, sites: &mut [Site]) -> Result<(), IngestError> {
+    for s in sites.iter_mut() {
+        s.pos = crs.to_lonlat(s.pos).ok_or_else(|| {
+            feature_err(
+                path,
+                s.index,
+                Some("geometry"),
+                format!(
+                    "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS",
+                    s.pos[0], s.pos[1], crs.name
+                ),
+            )
+        })?;
+    }
+    Ok(())
+}
+
+/// Sites from a point Shapefile, in the CRS of its `.prj` (or `--sites-crs`).
+fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, IngestError> {
+    use shapefile::Shape;
+    let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
+    let mut reader = shapefile::Reader::from_path(path).map_err(|e| IngestError::Io {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(e.to_string()),
+    })?;
+    let mut sites = Vec::new();
+    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+        let (shape, record) =
+            item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
+        let pos = match shape {
+            Shape::Point(p) => [p.x, p.y],
+            Shape::PointM(p) => [p.x, p.y],
+            Shape::PointZ(p) => [p.x, p.y],
+            other => {
+                return Err(feature_err(
+                    path,
+                    index,
+                    Some("geometry"),
+                    format!("sites must be Points, found {}", other.shapetype()),
+                ));
+            }
+        };
+        let attributes: Map<String, Value> = record
+            .into_iter()
+            .map(|(k, v)| (k, super::shapefile::field_json(&v)))
+            .collect();
+        let id = match &s.id_field {
+            Some(f) => attributes.get(f).and_then(text),
+            None => SITE_ID_FIELDS
+                .iter()
+                .find_map(|k| attributes.get(*k).and_then(text)),
+        }
+        .unwrap_or_else(|| format!("site-{}", index + 1));
+        let name_field = s.name_field.as_deref().unwrap_or("name");
+        sites.push(Site {
+            index,
+            id,
+            name: attributes.get(name_field).and_then(text),
+            priority: priority(path, index, &attributes, s)?,
+            pos,
+            attributes,
+        });
+    }
+    convert(path, &crs, &mut sites)?;
+    check_unique(path, &sites)?;
+    let r = Source::File(path.to_path_buf()).open()?;
+    let (sha256, bytes) = HashingReader::finish_buffered(r).map_err(|source| IngestError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    Ok(SiteLayer {
+        sites,
+        input: InputRecord {
+            role: "sites".into(),
+            path: path.display().to_string(),
+            bytes,
+            sha256,
+        },
+    })
 }

@@ -112,7 +112,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
 
     let layer = {
         let _s = progress.stage("reading roads");
-        ingest::roads::read_geojson_roads(&job.roads, &job.road_settings)?
+        ingest::roads::read_roads(&job.roads, &job.road_settings)?
     };
     let site_layer = match &job.sites {
         Some(src) => {
@@ -132,6 +132,13 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         ));
     }
     let read_stats = layer.stats.clone();
+    let geodesy = crate::export::summary::Geodesy {
+        input_crs: layer.crs_name.clone(),
+        length_method: layer.length_method.clone(),
+        output_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
+        length_unit: "metre",
+        note: layer.crs_note.clone(),
+    };
     let mut inputs: Vec<_> = layer.input.clone().into_iter().collect();
 
     let (mut net, noding) = {
@@ -183,6 +190,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let summary = summary::build(
         job,
         inputs,
+        geodesy,
         &read_stats,
         &noding,
         &net,
@@ -225,6 +233,8 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "priority_field": ss.priority_field,
         "lon_column": ss.lon_column,
         "lat_column": ss.lat_column,
+        "crs": s.crs,
+        "sites_crs": ss.crs,
     })
 }
 

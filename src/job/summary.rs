@@ -15,6 +15,7 @@ use crate::solve::{Plan, PlanKind};
 pub fn build(
     job: &PlanJob,
     inputs: Vec<InputRecord>,
+    geodesy: Geodesy,
     read: &ReadStats,
     noding: &NodingStats,
     net: &Network,
@@ -60,18 +61,15 @@ pub fn build(
         inputs,
         fingerprint,
         settings: super::settings_json(job),
-        geodesy: Geodesy {
-            input_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
-            length_method: "geodesic on the WGS84 ellipsoid (Karney; mid-latitude formula for steps under 1 km, within 0.1 mm of it)".into(),
-            output_crs: "EPSG:4326 (WGS84 longitude/latitude, RFC 7946)".into(),
-            length_unit: "metre",
-        },
+        geodesy,
         counts,
         plan: PlanFigures {
             kind: plan.kind.describe(),
             algorithm: match plan.kind {
                 PlanKind::WholeNetwork => job.mst.name(),
-                PlanKind::Sites => "reductions, Mehlhorn, shortest-path multistart, local search; Wong dual ascent bound",
+                PlanKind::Sites => {
+                    "reductions, Mehlhorn, shortest-path multistart, local search; Wong dual ascent bound"
+                }
             },
             trees: plan.trees,
             repair_edges: repair.len(),

@@ -1,0 +1,235 @@
+//! ESRI Shapefile road layers (.shp + .shx + .dbf, with the CRS from the .prj).
+//!
+//! PolyLine, PolyLineZ and PolyLineM shapes, multipart included, go through the same validation and
+//! damage reading as GeoJSON features (attributes from the .dbf); null shapes and shapes of other
+//! types are skipped and counted.
+
+use super::IngestError;
+use super::coords::Coords;
+use super::crs::Crs;
+use super::geojson::RawFeature;
+use super::roads::{
+    ID_FIELDS, LineLayer, RoadSettings, add_feature, check_empty, finish_coordinates,
+};
+use super::source::{HashingReader, InputRecord, Source};
+use serde_json::Value;
+use shapefile::Shape;
+use shapefile::dbase::FieldValue;
+use std::path::Path;
+
+/// Reads a `.shp` road layer with its `.dbf` attributes and `.prj` CRS (or `--crs`).
+pub fn read_shapefile_roads(
+    path: &Path,
+    settings: &RoadSettings,
+) -> Result<LineLayer, IngestError> {
+    settings.validate()?;
+    let crs = layer_crs(path, settings.crs.as_deref())?;
+    let fail = |message: String| IngestError::Io {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(message),
+    };
+    // A Shapefile is a set: without its index or attributes it is incomplete (and may be truncated).
+    for (ext, what) in [("shx", "index"), ("dbf", "attribute table")] {
+        let p = path.with_extension(ext);
+        if !p.exists() && !path.with_extension(ext.to_uppercase()).exists() {
+            return Err(fail(format!(
+                "the {what} file {} of the Shapefile set is missing",
+                p.display()
+            )));
+        }
+    }
+    let mut reader =
+        shapefile::Reader::from_path(path).map_err(|e| fail(shapefile_error(path, e)))?;
+    let fields: Vec<String> = shapefile::dbase::Reader::from_path(path.with_extension("dbf"))
+        .map(|r| r.fields().iter().map(|f| f.name().to_string()).collect())
+        .unwrap_or_default();
+    let damage_field = &settings.damage.field;
+    if !fields.iter().any(|f| f == damage_field) && damage_field != "damage" {
+        return Err(IngestError::Feature {
+            path: path.with_extension("dbf"),
+            feature: 0,
+            field: Some(damage_field.clone()),
+            message: format!(
+                "the .dbf has no such field; its fields are: {}",
+                fields.join(", ")
+            ),
+        });
+    }
+    if let Some(id) = &settings.id_field
+        && !fields.iter().any(|f| f == id)
+    {
+        return Err(IngestError::Feature {
+            path: path.with_extension("dbf"),
+            feature: 0,
+            field: Some(id.clone()),
+            message: format!(
+                "the .dbf has no such field; its fields are: {}",
+                fields.join(", ")
+            ),
+        });
+    }
+    let mut wanted = vec![damage_field.clone()];
+    match &settings.id_field {
+        Some(f) => wanted.push(f.clone()),
+        None => wanted.extend(ID_FIELDS.iter().map(|s| s.to_string())),
+    }
+    let mut layer = LineLayer::default();
+    let mut count = 0;
+    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+        count = index + 1;
+        let (shape, record) = item.map_err(|e| IngestError::Feature {
+            path: path.to_path_buf(),
+            feature: index,
+            field: None,
+            message: format!(
+                "unreadable shape or attribute record: {}",
+                shapefile_error(path, e)
+            ),
+        })?;
+        let mut f = RawFeature::default();
+        let parts: Vec<Vec<[f64; 2]>> = match &shape {
+            Shape::Polyline(p) => p
+                .parts()
+                .iter()
+                .map(|pt| pt.iter().map(|q| [q.x, q.y]).collect())
+                .collect(),
+            Shape::PolylineM(p) => p
+                .parts()
+                .iter()
+                .map(|pt| pt.iter().map(|q| [q.x, q.y]).collect())
+                .collect(),
+            Shape::PolylineZ(p) => p
+                .parts()
+                .iter()
+                .map(|pt| pt.iter().map(|q| [q.x, q.y]).collect())
+                .collect(),
+            Shape::NullShape => {
+                *layer
+                    .stats
+                    .features_skipped
+                    .entry("null geometry".into())
+                    .or_default() += 1;
+                continue;
+            }
+            other => {
+                let kind = format!("{}", other.shapetype());
+                *layer
+                    .stats
+                    .features_skipped
+                    .entry(format!("not a line ({kind})"))
+                    .or_default() += 1;
+                continue;
+            }
+        };
+        let mut coords = Coords {
+            height: 3,
+            ..Default::default()
+        };
+        for part in parts {
+            coords.pos.extend(part);
+            coords.parts.push(coords.pos.len());
+        }
+        coords.groups.push(coords.parts.len());
+        if coords.parts.is_empty() {
+            coords.height = 0;
+        }
+        f.geometry_type = Some("MultiLineString".into());
+        f.coords = coords;
+        f.has_properties = true;
+        for name in &wanted {
+            if let Some(v) = record.get(name) {
+                f.props.push((name.clone(), field_json(v)));
+            }
+        }
+        add_feature(&mut layer, path, settings, index, f)?;
+    }
+    layer.stats.features_read = count;
+    layer.input = Some(fingerprint(path, "roads")?);
+    check_empty(&layer, path, count)?;
+    finish_coordinates(&mut layer, path, &crs)?;
+    Ok(layer)
+}
+
+/// The layer's CRS: `--crs`, else its `.prj`; a Shapefile without either is an error.
+pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
+    let crs_err = |message: String| IngestError::Crs {
+        path: path.to_path_buf(),
+        message,
+    };
+    if let Some(c) = user {
+        return Crs::from_user(c).map_err(crs_err);
+    }
+    let prj = ["prj", "PRJ"]
+        .iter()
+        .map(|e| path.with_extension(e))
+        .find(|p| p.exists())
+        .ok_or_else(|| {
+            crs_err("has no .prj file beside it: give the layer's CRS with --crs EPSG:NNNN".into())
+        })?;
+    let wkt = std::fs::read_to_string(&prj).map_err(|source| IngestError::Io {
+        path: prj.clone(),
+        source,
+    })?;
+    Crs::from_wkt(&wkt).map_err(|m| IngestError::Crs {
+        path: prj.clone(),
+        message: m,
+    })
+}
+
+/// Path, size and SHA-256 of a Shapefile's `.shp`, covering its `.dbf` and `.prj` in the digest.
+fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> {
+    use sha2::{Digest, Sha256};
+    let mut h = Sha256::new();
+    let mut bytes = 0;
+    for ext in ["shp", "dbf", "prj"] {
+        let p = path.with_extension(ext);
+        if !p.exists() {
+            continue;
+        }
+        let r = Source::File(p.clone()).open()?;
+        let (sha, n) = HashingReader::finish_buffered(r)
+            .map_err(|source| IngestError::Io { path: p, source })?;
+        h.update(format!("{ext}:{sha}\n").as_bytes());
+        bytes += n;
+    }
+    Ok(InputRecord {
+        role: role.into(),
+        path: path.display().to_string(),
+        bytes,
+        sha256: h.finalize().iter().map(|b| format!("{b:02x}")).collect(),
+    })
+}
+
+/// A .dbf value as JSON.
+pub fn field_json(v: &FieldValue) -> Value {
+    match v {
+        FieldValue::Character(Some(s)) => Value::from(s.trim()),
+        FieldValue::Numeric(Some(x)) | FieldValue::Double(x) | FieldValue::Currency(x) => {
+            serde_json::Number::from_f64(*x).map_or(Value::Null, Value::Number)
+        }
+        FieldValue::Float(Some(x)) => {
+            serde_json::Number::from_f64(*x as f64).map_or(Value::Null, Value::Number)
+        }
+        FieldValue::Integer(i) => Value::from(*i),
+        FieldValue::Logical(Some(b)) => Value::from(*b),
+        FieldValue::Memo(s) => Value::from(s.trim()),
+        _ => Value::Null,
+    }
+}
+
+/// A plain message for the shapefile crate's errors.
+fn shapefile_error(path: &Path, e: shapefile::Error) -> String {
+    match e {
+        shapefile::Error::MissingDbf => format!(
+            "the .dbf file ({}) is missing",
+            path.with_extension("dbf").display()
+        ),
+        shapefile::Error::MissingIndexFile => {
+            format!(
+                "the .shx file ({}) is missing",
+                path.with_extension("shx").display()
+            )
+        }
+        other => other.to_string(),
+    }
+}
