@@ -121,7 +121,7 @@ impl Staging {
         fill(&mut w).map_err(err)?;
         w.flush().map_err(err)?;
         let f = w.into_inner().map_err(|e| err(e.into_error()))?;
-        f.sync_all().map_err(err)?;
+        f.sync_data().map_err(err)?;
         self.written
             .lock()
             .unwrap_or_else(|p| p.into_inner())
