@@ -178,7 +178,7 @@ fn split_edges(net: &mut Network, cuts: BTreeMap<u32, Vec<Cut>>, out: &mut [Atta
                 Some(i) => g[i],
                 None => {
                     let (a, b) = (g[c.seg], g[c.seg + 1]);
-                    [a[0] + c.t * (b[0] - a[0]), a[1] + c.t * (b[1] - a[1])]
+                    super::geodesy::round7([a[0] + c.t * (b[0] - a[0]), a[1] + c.t * (b[1] - a[1])])
                 }
             };
             points.push((s, at_vertex, coord, vec![c.site]));

@@ -62,6 +62,12 @@ pub fn distance_m(a: [f64; 2], b: [f64; 2]) -> f64 {
     }
 }
 
+/// A new point rounded to 7 decimals (about 1 cm), the precision of every output layer, so the
+/// geometry measured is the geometry written.
+pub fn round7(p: [f64; 2]) -> [f64; 2] {
+    [(p[0] * 1e7).round() / 1e7, (p[1] * 1e7).round() / 1e7]
+}
+
 /// Length in metres of a lon/lat polyline given as a sequence of positions.
 pub fn polyline_length_m<I: IntoIterator<Item = [f64; 2]>>(points: I) -> f64 {
     let mut it = points.into_iter();

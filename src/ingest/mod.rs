@@ -5,12 +5,15 @@
 //! and duplicates, and measures every edge on the ellipsoid. Nothing after this stage touches files.
 
 pub mod attach;
+pub mod cleanup;
 pub mod coords;
 pub mod crs;
 pub mod damage;
 pub mod geodesy;
 pub mod geojson;
 pub mod noding;
+pub mod qa;
+pub mod repair;
 pub mod roads;
 pub mod scan;
 pub mod shapefile;

@@ -9,6 +9,7 @@
 //! 4. Edge lengths are measured on the ellipsoid, in parallel.
 
 use super::geodesy::{distance_m, metres_per_degree, polyline_length_m};
+use super::qa::{QaKind, QaPoint};
 use super::roads::LineLayer;
 use crate::fxhash::FxHashMap;
 use crate::network::{Edge, Network, cost_of};
@@ -27,26 +28,82 @@ pub struct NodingStats {
     pub zero_length_parts_dropped: usize,
     /// Edges identical to an earlier edge (same vertices, either direction), dropped.
     pub duplicate_edges_dropped: usize,
+    /// Dangling ends joined to a nearby line (undershoots).
+    pub undershoots_joined: usize,
+    /// Short dangling pieces past a junction removed (overshoots).
+    pub overshoots_trimmed: usize,
+    /// Edges within the tolerance of another between the same junctions, removed.
+    pub near_duplicates_dropped: usize,
+    /// Crossings without a shared vertex found (joined with `--node-crossings`).
+    pub crossings: usize,
+    /// QA points by kind.
+    pub qa: std::collections::BTreeMap<String, usize>,
+    /// The QA points themselves (written to qa.geojson).
+    #[serde(skip)]
+    pub qa_points: Vec<QaPoint>,
     /// Junctions in the network.
     pub junctions: usize,
     /// Edges in the network.
     pub edges: usize,
 }
 
+/// How lines are noded.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct NodingOptions {
+    /// Snapping tolerance in metres (0: identical coordinates only, no repairs).
+    pub snap_m: f64,
+    /// Join lines where they cross without a shared vertex.
+    pub node_crossings: bool,
+    /// Report crossings without a shared vertex even when they are not joined (slower).
+    pub report_crossings: bool,
+}
+
 /// Builds the network from a line layer with the given snapping tolerance in metres.
 pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
+    node_with(
+        layer,
+        NodingOptions {
+            snap_m,
+            ..Default::default()
+        },
+    )
+}
+
+/// Builds the network with all options; QA points go into the stats.
+pub fn node_with(layer: LineLayer, opts: NodingOptions) -> (Network, NodingStats) {
+    let snap_m = opts.snap_m;
     let mut stats = NodingStats {
         snap_m,
         ..Default::default()
     };
+    let mut qa: Vec<QaPoint> = Vec::new();
     let (cid, founders) = cluster(&layer.coords, snap_m);
-    let centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
+    let mut centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
+    let mut centres_native: Vec<[f64; 2]> = if layer.native.is_empty() {
+        Vec::new()
+    } else {
+        founders.iter().map(|&f| layer.native[f as usize]).collect()
+    };
+    let mut moved: std::collections::BTreeMap<u32, (f64, u32)> = Default::default();
     for (i, &c) in cid.iter().enumerate() {
         let centre = centres[c as usize];
         if centre != layer.coords[i] {
             stats.vertices_moved += 1;
-            stats.max_move_m = stats.max_move_m.max(distance_m(layer.coords[i], centre));
+            let d = distance_m(layer.coords[i], centre);
+            stats.max_move_m = stats.max_move_m.max(d);
+            let part = layer.part_ends.partition_point(|&e| e <= i);
+            let f = layer.features[layer.part_feature[part] as usize].source_index;
+            let m = moved.entry(c).or_insert((0.0, f));
+            m.0 = m.0.max(d);
         }
+    }
+    for (c, (d, f)) in moved {
+        qa.push(QaPoint {
+            kind: QaKind::MergedVertices,
+            pos: centres[c as usize],
+            distance_m: d,
+            feature: Some(f),
+        });
     }
 
     // Cluster sequences per part, consecutive repeats removed.
@@ -63,6 +120,14 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
         }
         start = end;
         if seq.len() - before < 2 {
+            if let Some(&c) = seq.get(before) {
+                qa.push(QaPoint {
+                    kind: QaKind::RemovedZeroLength,
+                    pos: centres[c as usize],
+                    distance_m: 0.0,
+                    feature: Some(layer.features[layer.part_feature[p] as usize].source_index),
+                });
+            }
             seq.truncate(before);
             stats.zero_length_parts_dropped += 1;
             continue;
@@ -72,29 +137,28 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
     }
     drop(cid);
 
+    // Repairs of digitising errors: undershoots joined, crossings joined or reported.
+    {
+        let mut parts = super::repair::Parts {
+            seq: &mut seq,
+            ends: &mut seq_ends,
+            feature: &seq_feature,
+            centres: &mut centres,
+            native: &mut centres_native,
+        };
+        let joined = super::repair::join_undershoots(&mut parts, snap_m);
+        stats.undershoots_joined = joined.len();
+        qa.extend(joined);
+        if opts.node_crossings || opts.report_crossings {
+            let crossed = super::repair::crossings(&mut parts, opts.node_crossings);
+            stats.crossings = crossed.len();
+            qa.extend(crossed);
+        }
+    }
+
     // Junctions: line ends, and clusters where the distinct road segments meeting there are not
     // exactly two (so duplicated or overlapping lines do not turn their shared vertices into junctions).
-    let mut segs: Vec<u64> = Vec::with_capacity(seq.len());
-    let mut is_end = vec![false; centres.len()];
-    let mut s0 = 0;
-    for &e in &seq_ends {
-        for w in seq[s0..e].windows(2) {
-            let (a, b) = (w[0].min(w[1]) as u64, w[0].max(w[1]) as u64);
-            segs.push(a << 32 | b);
-        }
-        is_end[seq[s0] as usize] = true;
-        is_end[seq[e - 1] as usize] = true;
-        s0 = e;
-    }
-    segs.par_sort_unstable();
-    segs.dedup();
-    let mut degree = vec![0u8; centres.len()];
-    for &k in &segs {
-        for c in [k >> 32, k & 0xFFFF_FFFF] {
-            degree[c as usize] = degree[c as usize].saturating_add(1);
-        }
-    }
-    drop(segs);
+    let (degree, is_end) = super::repair::segment_degrees(&seq, &seq_ends, centres.len());
     let mut junction_of = vec![u32::MAX; centres.len()];
     let mut junctions = Vec::new();
     for c in 0..centres.len() {
@@ -120,6 +184,12 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
                     pieces.push((a, i + 1, seq_feature[k]));
                 } else {
                     stats.duplicate_edges_dropped += 1;
+                    qa.push(QaPoint {
+                        kind: QaKind::RemovedDuplicate,
+                        pos: centres[piece[piece.len() / 2] as usize],
+                        distance_m: 0.0,
+                        feature: Some(layer.features[seq_feature[k] as usize].source_index),
+                    });
                 }
                 a = i;
             }
@@ -131,7 +201,7 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
 
     // Edges with geometry, lengths measured in parallel: planar × unit in the source's conformal
     // projection when it kept its native coordinates, geodesic otherwise.
-    let native = &layer.native;
+    let native = &centres_native;
     let to_meter = layer.to_meter;
     let lengths: Vec<f64> = pieces
         .par_iter()
@@ -142,10 +212,7 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
                 seq[a..b]
                     .windows(2)
                     .map(|w| {
-                        let (p, q) = (
-                            native[founders[w[0] as usize] as usize],
-                            native[founders[w[1] as usize] as usize],
-                        );
+                        let (p, q) = (native[w[0] as usize], native[w[1] as usize]);
                         (q[0] - p[0]).hypot(q[1] - p[1])
                     })
                     .sum::<f64>()
@@ -170,15 +237,38 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
             feature: f,
         });
     }
-    stats.junctions = junctions.len();
-    stats.edges = edges.len();
-    let net = Network {
+    let mut net = Network {
         junctions,
         edges,
         geom_offsets,
         geom,
         features: layer.features,
     };
+    let (trimmed, near) = super::cleanup::clean(&mut net, snap_m, &mut qa);
+    stats.overshoots_trimmed = trimmed;
+    stats.near_duplicates_dropped = near;
+    // Dead ends, as suspicions for the analyst.
+    let mut degree = vec![0u32; net.junctions.len()];
+    for e in &net.edges {
+        degree[e.from as usize] += 1;
+        degree[e.to as usize] += 1;
+    }
+    for (j, &d) in degree.iter().enumerate() {
+        if d == 1 {
+            qa.push(QaPoint {
+                kind: QaKind::DanglingEnd,
+                pos: net.junctions[j],
+                distance_m: 0.0,
+                feature: None,
+            });
+        }
+    }
+    stats.junctions = net.junctions.len();
+    stats.edges = net.edges.len();
+    for q in &qa {
+        *stats.qa.entry(q.kind.label().to_string()).or_default() += 1;
+    }
+    stats.qa_points = qa;
     (net, stats)
 }
 

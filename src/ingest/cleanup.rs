@@ -1,0 +1,135 @@
+//! Edge-level clean-up after splitting: trimming overshoots and removing near-duplicates.
+
+use super::geodesy::metres_per_degree;
+use super::qa::{QaKind, QaPoint};
+use crate::network::Network;
+
+/// Removes short dangling pieces past a junction and edges that run within `snap_m` of another edge
+/// between the same junctions; renumbers junctions and edges in their original order.
+pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, usize) {
+    if snap_m <= 0.0 || net.edges.is_empty() {
+        return (0, 0);
+    }
+    let n = net.junctions.len();
+    let mut degree = vec![0u32; n];
+    for e in &net.edges {
+        degree[e.from as usize] += 1;
+        degree[e.to as usize] += 1;
+    }
+    let mut keep = vec![true; net.edges.len()];
+    let mut trimmed = 0;
+    for (i, e) in net.edges.iter().enumerate() {
+        if e.length_m >= snap_m || e.from == e.to {
+            continue;
+        }
+        let (df, dt) = (degree[e.from as usize], degree[e.to as usize]);
+        if (df == 1 && dt >= 3) || (dt == 1 && df >= 3) {
+            keep[i] = false;
+            trimmed += 1;
+            let tip = if df == 1 { e.from } else { e.to };
+            qa.push(QaPoint {
+                kind: QaKind::TrimmedOvershoot,
+                pos: net.junctions[tip as usize],
+                distance_m: e.length_m,
+                feature: Some(net.features[e.feature as usize].source_index),
+            });
+        }
+    }
+    // Near-duplicates: edges between the same two junctions, each within the tolerance of the other.
+    let mut pairs: Vec<(u32, u32, usize)> = net
+        .edges
+        .iter()
+        .enumerate()
+        .filter(|(i, e)| keep[*i] && e.from != e.to)
+        .map(|(i, e)| (e.from.min(e.to), e.from.max(e.to), i))
+        .collect();
+    pairs.sort_unstable();
+    let mut near = 0;
+    let mut g = 0;
+    while g < pairs.len() {
+        let mut h = g + 1;
+        while h < pairs.len() && pairs[h].0 == pairs[g].0 && pairs[h].1 == pairs[g].1 {
+            h += 1;
+        }
+        for x in g..h {
+            if !keep[pairs[x].2] {
+                continue;
+            }
+            for y in x + 1..h {
+                let (a, b) = (pairs[x].2, pairs[y].2);
+                if keep[b] && within(net.edge_geometry(a), net.edge_geometry(b), snap_m) {
+                    keep[b] = false;
+                    near += 1;
+                    let gb = net.edge_geometry(b);
+                    qa.push(QaPoint {
+                        kind: QaKind::RemovedNearDuplicate,
+                        pos: gb[gb.len() / 2],
+                        distance_m: 0.0,
+                        feature: Some(net.features[net.edges[b].feature as usize].source_index),
+                    });
+                }
+            }
+        }
+        g = h;
+    }
+    if trimmed + near > 0 {
+        compact(net, &keep);
+    }
+    (trimmed, near)
+}
+
+/// True when every vertex of each polyline lies within `tol` metres of the other.
+fn within(a: &[[f64; 2]], b: &[[f64; 2]], tol: f64) -> bool {
+    let near = |p: [f64; 2], line: &[[f64; 2]]| {
+        let (my, mx) = metres_per_degree(p[1]);
+        line.windows(2).any(|w| {
+            let (ax, ay) = ((w[0][0] - p[0]) * mx, (w[0][1] - p[1]) * my);
+            let (bx, by) = ((w[1][0] - p[0]) * mx, (w[1][1] - p[1]) * my);
+            let (dx, dy) = (bx - ax, by - ay);
+            let l2 = dx * dx + dy * dy;
+            let t = if l2 > 0.0 {
+                (-(ax * dx + ay * dy) / l2).clamp(0.0, 1.0)
+            } else {
+                0.0
+            };
+            (ax + t * dx).hypot(ay + t * dy) <= tol
+        })
+    };
+    a.iter().all(|&p| near(p, b)) && b.iter().all(|&p| near(p, a))
+}
+
+/// Keeps the flagged edges and the junctions they use, renumbered in order.
+fn compact(net: &mut Network, keep: &[bool]) {
+    let mut used = vec![false; net.junctions.len()];
+    for (i, e) in net.edges.iter().enumerate() {
+        if keep[i] {
+            used[e.from as usize] = true;
+            used[e.to as usize] = true;
+        }
+    }
+    let mut new_id = vec![u32::MAX; net.junctions.len()];
+    let mut junctions = Vec::new();
+    for (j, &u) in used.iter().enumerate() {
+        if u {
+            new_id[j] = junctions.len() as u32;
+            junctions.push(net.junctions[j]);
+        }
+    }
+    let mut edges = Vec::new();
+    let mut geom = Vec::new();
+    let mut offsets = vec![0];
+    for (i, e) in net.edges.iter().enumerate() {
+        if keep[i] {
+            let mut e = e.clone();
+            e.from = new_id[e.from as usize];
+            e.to = new_id[e.to as usize];
+            edges.push(e);
+            geom.extend_from_slice(net.edge_geometry(i));
+            offsets.push(geom.len());
+        }
+    }
+    net.junctions = junctions;
+    net.edges = edges;
+    net.geom = geom;
+    net.geom_offsets = offsets;
+}

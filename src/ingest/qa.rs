@@ -1,0 +1,56 @@
+//! Quality-assurance points: every change reknit makes to the geometry, and every suspicion, so an
+//! analyst can see and check them (`qa.geojson`).
+
+/// What a QA point records.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum QaKind {
+    /// Vertices within the snapping tolerance were merged into one junction or vertex.
+    MergedVertices,
+    /// A dangling line end near another line's interior was joined to it.
+    JoinedUndershoot,
+    /// A short dangling piece past a junction was removed.
+    TrimmedOvershoot,
+    /// An edge identical to another (same vertices) was removed.
+    RemovedDuplicate,
+    /// An edge running within the tolerance of another between the same junctions was removed.
+    RemovedNearDuplicate,
+    /// A line that collapsed to a point was removed.
+    RemovedZeroLength,
+    /// Two lines cross without a shared vertex and were joined there (`--node-crossings`).
+    NodedCrossing,
+    /// Two lines cross without a shared vertex and were left apart (an overpass, or a missing
+    /// junction).
+    CrossingLeftApart,
+    /// A line end touching nothing (a dead end, or a gap wider than the tolerance).
+    DanglingEnd,
+}
+
+impl QaKind {
+    /// The label written to `qa.geojson` and counted in `summary.json`.
+    pub fn label(self) -> &'static str {
+        match self {
+            QaKind::MergedVertices => "merged vertices",
+            QaKind::JoinedUndershoot => "joined undershoot",
+            QaKind::TrimmedOvershoot => "trimmed overshoot",
+            QaKind::RemovedDuplicate => "removed duplicate",
+            QaKind::RemovedNearDuplicate => "removed near-duplicate",
+            QaKind::RemovedZeroLength => "removed zero-length line",
+            QaKind::NodedCrossing => "crossing joined",
+            QaKind::CrossingLeftApart => "crossing left apart",
+            QaKind::DanglingEnd => "dangling end",
+        }
+    }
+}
+
+/// One QA point.
+#[derive(Debug, Clone, PartialEq)]
+pub struct QaPoint {
+    /// What happened.
+    pub kind: QaKind,
+    /// Where, lon/lat.
+    pub pos: [f64; 2],
+    /// How far geometry moved (or the gap), metres.
+    pub distance_m: f64,
+    /// The input feature concerned (0-based position), when one is.
+    pub feature: Option<u32>,
+}

@@ -1,0 +1,386 @@
+//! Repairs of digitising errors on the clustered line sequences, before they are split into edges:
+//!
+//! - **undershoots**: a dangling line end within the tolerance of another line's interior is moved
+//!   to the foot of the perpendicular and joined into that line;
+//! - **crossings** (opt-in): lines that cross without a shared vertex get one there.
+//!
+//! Segments are found through a grid keyed by each segment's midpoint (cells wider than a short
+//! segment plus the tolerance, sorted in parallel); the few long segments go to an R-tree.
+
+use super::geodesy::metres_per_degree;
+use super::qa::{QaKind, QaPoint};
+use rayon::prelude::*;
+use rstar::primitives::{GeomWithData, Line};
+use rstar::{AABB, RTree};
+
+/// Clustered line parts: `seq[seq_ends[p-1]..seq_ends[p]]` are part p's clusters.
+pub struct Parts<'a> {
+    /// Cluster ids of every part, concatenated.
+    pub seq: &'a mut Vec<u32>,
+    /// End offsets of the parts.
+    pub ends: &'a mut Vec<usize>,
+    /// The feature (index into the layer's features) of each part.
+    pub feature: &'a [u32],
+    /// Cluster positions, lon/lat.
+    pub centres: &'a mut Vec<[f64; 2]>,
+    /// Cluster positions in the native projected CRS (empty when lengths are geodesic).
+    pub native: &'a mut Vec<[f64; 2]>,
+}
+
+/// Segment-degree (distinct neighbouring clusters, saturating) and line-end flag of every cluster.
+pub fn segment_degrees(seq: &[u32], ends: &[usize], n: usize) -> (Vec<u8>, Vec<bool>) {
+    let mut segs: Vec<u64> = Vec::with_capacity(seq.len());
+    let mut is_end = vec![false; n];
+    let mut s0 = 0;
+    for &e in ends {
+        for w in seq[s0..e].windows(2) {
+            let (a, b) = (w[0].min(w[1]) as u64, w[0].max(w[1]) as u64);
+            segs.push(a << 32 | b);
+        }
+        is_end[seq[s0] as usize] = true;
+        is_end[seq[e - 1] as usize] = true;
+        s0 = e;
+    }
+    segs.par_sort_unstable();
+    segs.dedup();
+    let mut degree = vec![0u8; n];
+    for &k in &segs {
+        for c in [k >> 32, k & 0xFFFF_FFFF] {
+            degree[c as usize] = degree[c as usize].saturating_add(1);
+        }
+    }
+    (degree, is_end)
+}
+
+/// A vertex to insert into part `part` after position `after` (within the part), ordered by `t`.
+#[derive(Debug, Clone, Copy)]
+struct Insert {
+    part: usize,
+    after: usize,
+    t: f64,
+    cluster: u32,
+}
+
+/// Distance (m) from `p` to segment a–b and the fraction along it, in a plane tangent at `p`.
+fn foot(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> (f64, f64) {
+    let (my, mx) = metres_per_degree(p[1]);
+    let (ax, ay) = ((a[0] - p[0]) * mx, (a[1] - p[1]) * my);
+    let (bx, by) = ((b[0] - p[0]) * mx, (b[1] - p[1]) * my);
+    let (dx, dy) = (bx - ax, by - ay);
+    let len2 = dx * dx + dy * dy;
+    let t = if len2 > 0.0 {
+        (-(ax * dx + ay * dy) / len2).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    ((ax + t * dx).hypot(ay + t * dy), t)
+}
+
+/// (part, position) of every segment, with its end clusters.
+fn all_segments(seq: &[u32], ends: &[usize]) -> Vec<(u32, u32)> {
+    let mut out = Vec::with_capacity(seq.len());
+    let mut s0 = 0;
+    for (p, &e) in ends.iter().enumerate() {
+        for k in 0..(e - s0 - 1) {
+            out.push((p as u32, k as u32));
+        }
+        s0 = e;
+    }
+    out
+}
+
+/// Joins dangling ends to lines within `snap_m`; returns QA points for every join.
+pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
+    if snap_m <= 0.0 {
+        return Vec::new();
+    }
+    let n = parts.centres.len();
+    let (degree, is_end) = segment_degrees(parts.seq, parts.ends, n);
+    let dangling: Vec<u32> = (0..n as u32)
+        .filter(|&c| is_end[c as usize] && degree[c as usize] == 1)
+        .collect();
+    if dangling.is_empty() {
+        return Vec::new();
+    }
+    let seq = &*parts.seq;
+    let ends = &*parts.ends;
+    let centres = &*parts.centres;
+    let starts: Vec<usize> = std::iter::once(0).chain(ends.iter().copied()).collect();
+    let seg_clusters = |p: u32, k: u32| {
+        let i = starts[p as usize] + k as usize;
+        (seq[i], seq[i + 1])
+    };
+    // Segments by midpoint cell; long ones in an R-tree.
+    let max_lat = centres
+        .iter()
+        .fold(0.0f64, |m, p| m.max(p[1].abs()))
+        .min(89.0);
+    let (my, _) = metres_per_degree(0.0);
+    let (_, mx) = metres_per_degree(max_lat);
+    let cell_m = (8.0 * snap_m).max(200.0);
+    let cell = [cell_m / mx, cell_m / my];
+    let key = |p: [f64; 2]| {
+        let cx = (p[0] / cell[0]).floor() as i64 + (1 << 31);
+        let cy = (p[1] / cell[1]).floor() as i64 + (1 << 31);
+        ((cx as u64) << 32) | (cy as u64 & 0xFFFF_FFFF)
+    };
+    let segs = all_segments(seq, ends);
+    let short_limit_m = cell_m / 2.0 - snap_m;
+    let (short, long): (Vec<(u32, u32)>, Vec<(u32, u32)>) =
+        segs.into_par_iter().partition(|&(p, k)| {
+            let (a, b) = seg_clusters(p, k);
+            super::geodesy::local_distance_m(centres[a as usize], centres[b as usize]) / 2.0
+                <= short_limit_m
+        });
+    let mut keyed: Vec<(u64, u32, u32)> = short
+        .par_iter()
+        .map(|&(p, k)| {
+            let (a, b) = seg_clusters(p, k);
+            let (pa, pb) = (centres[a as usize], centres[b as usize]);
+            (key([(pa[0] + pb[0]) / 2.0, (pa[1] + pb[1]) / 2.0]), p, k)
+        })
+        .collect();
+    keyed.par_sort_unstable();
+    let long_tree: RTree<GeomWithData<Line<[f64; 2]>, (u32, u32)>> = RTree::bulk_load(
+        long.iter()
+            .map(|&(p, k)| {
+                let (a, b) = seg_clusters(p, k);
+                GeomWithData::new(Line::new(centres[a as usize], centres[b as usize]), (p, k))
+            })
+            .collect(),
+    );
+    // Nearest segment within the tolerance for every dangling end (not one touching it).
+    let found: Vec<Option<(f64, u32, u32, f64, u32)>> = dangling
+        .par_iter()
+        .map(|&c| {
+            let p = centres[c as usize];
+            let mut best: Option<(f64, u32, u32, f64, u32)> = None;
+            let mut consider = |sp: u32, sk: u32| {
+                let (a, b) = seg_clusters(sp, sk);
+                if a == c || b == c {
+                    return;
+                }
+                let (d, t) = foot(p, centres[a as usize], centres[b as usize]);
+                if d <= snap_m && best.is_none_or(|(bd, bp, bk, _, _)| (d, sp, sk) < (bd, bp, bk)) {
+                    best = Some((d, sp, sk, t, c));
+                }
+            };
+            let k0 = key(p);
+            let (cx, cy) = ((k0 >> 32) as i64, (k0 & 0xFFFF_FFFF) as i64);
+            for dx in -1..=1 {
+                for dy in -1..=1 {
+                    let k = (((cx + dx) as u64) << 32) | ((cy + dy) as u64 & 0xFFFF_FFFF);
+                    let lo = keyed.partition_point(|e| e.0 < k);
+                    for e in keyed[lo..].iter().take_while(|e| e.0 == k) {
+                        consider(e.1, e.2);
+                    }
+                }
+            }
+            let (pmy, pmx) = metres_per_degree(p[1]);
+            let env = AABB::from_corners(
+                [p[0] - snap_m / pmx, p[1] - snap_m / pmy],
+                [p[0] + snap_m / pmx, p[1] + snap_m / pmy],
+            );
+            for s in long_tree.locate_in_envelope_intersecting(&env) {
+                consider(s.data.0, s.data.1);
+            }
+            best
+        })
+        .collect();
+    let resolved: Vec<(f64, u32, u32, f64, u32, u32, u32)> = found
+        .into_iter()
+        .flatten()
+        .map(|(d, p, k, t, c)| {
+            let (a, b) = seg_clusters(p, k);
+            (d, p, k, t, c, a, b)
+        })
+        .collect();
+    let mut inserts = Vec::new();
+    let mut qa = Vec::new();
+    for (d, p, k, t, c, a, b) in resolved {
+        let (pa, pb) = (parts.centres[a as usize], parts.centres[b as usize]);
+        let f = super::geodesy::round7([pa[0] + t * (pb[0] - pa[0]), pa[1] + t * (pb[1] - pa[1])]);
+        qa.push(QaPoint {
+            kind: QaKind::JoinedUndershoot,
+            pos: f,
+            distance_m: d,
+            feature: None,
+        });
+        if t <= 1e-9 || t >= 1.0 - 1e-9 {
+            // The nearest point is the segment's own end vertex: the end joins that vertex.
+            let target = if t <= 1e-9 { a } else { b };
+            for x in parts.seq.iter_mut() {
+                if *x == c {
+                    *x = target;
+                }
+            }
+            continue;
+        }
+        parts.centres[c as usize] = f;
+        if !parts.native.is_empty() {
+            let (na, nb) = (parts.native[a as usize], parts.native[b as usize]);
+            parts.native[c as usize] = [na[0] + t * (nb[0] - na[0]), na[1] + t * (nb[1] - na[1])];
+        }
+        inserts.push(Insert {
+            part: p as usize,
+            after: k as usize,
+            t,
+            cluster: c,
+        });
+    }
+    apply(parts, inserts);
+    qa
+}
+
+/// Joins lines where they cross without a shared vertex (`apply`), or only reports the crossings.
+pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
+    let seq = &*parts.seq;
+    let ends = &*parts.ends;
+    let centres = &*parts.centres;
+    let starts: Vec<usize> = std::iter::once(0).chain(ends.iter().copied()).collect();
+    let seg_clusters = |p: u32, k: u32| {
+        let i = starts[p as usize] + k as usize;
+        (seq[i], seq[i + 1])
+    };
+    let segs = all_segments(seq, ends);
+    let tree: RTree<GeomWithData<Line<[f64; 2]>, (u32, u32)>> = RTree::bulk_load(
+        segs.iter()
+            .map(|&(p, k)| {
+                let (a, b) = seg_clusters(p, k);
+                GeomWithData::new(Line::new(centres[a as usize], centres[b as usize]), (p, k))
+            })
+            .collect(),
+    );
+    let hits: Vec<(u32, u32, f64, u32, u32, f64, [f64; 2])> = segs
+        .par_iter()
+        .flat_map_iter(|&(p, k)| {
+            let (a, b) = seg_clusters(p, k);
+            let (pa, pb) = (centres[a as usize], centres[b as usize]);
+            let env = AABB::from_corners(
+                [pa[0].min(pb[0]), pa[1].min(pb[1])],
+                [pa[0].max(pb[0]), pa[1].max(pb[1])],
+            );
+            let mut out = Vec::new();
+            for s in tree.locate_in_envelope_intersecting(&env) {
+                let (p2, k2) = s.data;
+                if (p2, k2) <= (p, k) {
+                    continue;
+                }
+                let (c, d) = seg_clusters(p2, k2);
+                if a == c || a == d || b == c || b == d {
+                    continue;
+                }
+                if let Some((t, u, x)) = intersect(pa, pb, centres[c as usize], centres[d as usize])
+                {
+                    out.push((p, k, t, p2, k2, u, x));
+                }
+            }
+            out
+        })
+        .collect();
+    let kind = if apply_them {
+        QaKind::NodedCrossing
+    } else {
+        QaKind::CrossingLeftApart
+    };
+    let qa: Vec<QaPoint> = hits
+        .iter()
+        .map(|h| QaPoint {
+            kind,
+            pos: h.6,
+            distance_m: 0.0,
+            feature: None,
+        })
+        .collect();
+    if apply_them {
+        let mut inserts = Vec::new();
+        for (p, k, t, p2, k2, u, x) in hits {
+            let c = parts.centres.len() as u32;
+            parts.centres.push(x);
+            if !parts.native.is_empty() {
+                let starts2: Vec<usize> = std::iter::once(0)
+                    .chain(parts.ends.iter().copied())
+                    .collect();
+                let i = starts2[p as usize] + k as usize;
+                let (na, nb) = (
+                    parts.native[parts.seq[i] as usize],
+                    parts.native[parts.seq[i + 1] as usize],
+                );
+                parts
+                    .native
+                    .push([na[0] + t * (nb[0] - na[0]), na[1] + t * (nb[1] - na[1])]);
+            }
+            inserts.push(Insert {
+                part: p as usize,
+                after: k as usize,
+                t,
+                cluster: c,
+            });
+            inserts.push(Insert {
+                part: p2 as usize,
+                after: k2 as usize,
+                t: u,
+                cluster: c,
+            });
+        }
+        apply(parts, inserts);
+    }
+    qa
+}
+
+/// Proper crossing of segments a–b and c–d (not at their ends): fractions along each and the point.
+fn intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) -> Option<(f64, f64, [f64; 2])> {
+    let (my, mx) = metres_per_degree(a[1]);
+    let to = |p: [f64; 2]| [(p[0] - a[0]) * mx, (p[1] - a[1]) * my];
+    let (b2, c2, d2) = (to(b), to(c), to(d));
+    let r = b2;
+    let s = [d2[0] - c2[0], d2[1] - c2[1]];
+    let den = r[0] * s[1] - r[1] * s[0];
+    if den.abs() < 1e-12 {
+        return None;
+    }
+    let t = (c2[0] * s[1] - c2[1] * s[0]) / den;
+    let u = (c2[0] * r[1] - c2[1] * r[0]) / den;
+    const EPS: f64 = 1e-9;
+    if t <= EPS || t >= 1.0 - EPS || u <= EPS || u >= 1.0 - EPS {
+        return None;
+    }
+    Some((
+        t,
+        u,
+        super::geodesy::round7([a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])]),
+    ))
+}
+
+/// Rebuilds the sequences with the insertions in place (ordered along each segment).
+fn apply(parts: &mut Parts, mut inserts: Vec<Insert>) {
+    if inserts.is_empty() {
+        return;
+    }
+    inserts.sort_by(|x, y| {
+        (x.part, x.after)
+            .cmp(&(y.part, y.after))
+            .then(x.t.total_cmp(&y.t))
+    });
+    let mut out = Vec::with_capacity(parts.seq.len() + inserts.len());
+    let mut new_ends = Vec::with_capacity(parts.ends.len());
+    let mut it = inserts.into_iter().peekable();
+    let mut s0 = 0;
+    for (p, &e) in parts.ends.iter().enumerate() {
+        for (k, &c) in parts.seq[s0..e].iter().enumerate() {
+            if out.last() != Some(&c) || out.len() == new_ends.last().copied().unwrap_or(0) {
+                out.push(c);
+            }
+            while let Some(ins) = it.peek().filter(|i| i.part == p && i.after == k) {
+                if out.last() != Some(&ins.cluster) {
+                    out.push(ins.cluster);
+                }
+                it.next();
+            }
+        }
+        new_ends.push(out.len());
+        s0 = e;
+    }
+    *parts.seq = out;
+    *parts.ends = new_ends;
+}
