@@ -27,6 +27,18 @@ pub struct Parts<'a> {
     pub native: &'a mut Vec<[f64; 2]>,
 }
 
+/// A segment: (part, position in the part).
+type SegRef = (u32, u32);
+
+/// An R-tree of segments.
+type SegTree = RTree<GeomWithData<Line<[f64; 2]>, SegRef>>;
+
+/// A crossing: (part, position, fraction) of both segments and the point.
+type Crossing = (u32, u32, f64, u32, u32, f64, [f64; 2]);
+
+/// A join candidate: (distance m, part, position, fraction along, dangling cluster).
+type Candidate = (f64, u32, u32, f64, u32);
+
 /// Segment-degree (distinct neighbouring clusters, saturating) and line-end flag of every cluster.
 pub fn segment_degrees(seq: &[u32], ends: &[usize], n: usize) -> (Vec<u8>, Vec<bool>) {
     let mut segs: Vec<u64> = Vec::with_capacity(seq.len());
@@ -124,24 +136,50 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
         let cy = (p[1] / cell[1]).floor() as i64 + (1 << 31);
         ((cx as u64) << 32) | (cy as u64 & 0xFFFF_FFFF)
     };
+    // Only cells around dangling ends matter: index just the segments whose midpoint falls there.
+    let mut wanted: crate::fxhash::FxHashMap<u64, ()> = Default::default();
+    for &c in &dangling {
+        let k0 = key(centres[c as usize]);
+        let (cx, cy) = ((k0 >> 32) as i64, (k0 & 0xFFFF_FFFF) as i64);
+        for dx in -1..=1 {
+            for dy in -1..=1 {
+                wanted.insert(
+                    (((cx + dx) as u64) << 32) | ((cy + dy) as u64 & 0xFFFF_FFFF),
+                    (),
+                );
+            }
+        }
+    }
     let segs = all_segments(seq, ends);
+    // Upper bound of a segment's half-length from degree differences (a degree is at most 111.7 km
+    // along a meridian and 111.4 km along the equator).
     let short_limit_m = cell_m / 2.0 - snap_m;
-    let (short, long): (Vec<(u32, u32)>, Vec<(u32, u32)>) =
-        segs.into_par_iter().partition(|&(p, k)| {
-            let (a, b) = seg_clusters(p, k);
-            super::geodesy::local_distance_m(centres[a as usize], centres[b as usize]) / 2.0
-                <= short_limit_m
-        });
-    let mut keyed: Vec<(u64, u32, u32)> = short
+    let half_len = |pa: [f64; 2], pb: [f64; 2]| {
+        ((pa[0] - pb[0]).abs() * 111_400.0).hypot((pa[1] - pb[1]).abs() * 111_700.0) / 2.0
+    };
+    let long: Vec<SegRef> = segs
         .par_iter()
-        .map(|&(p, k)| {
+        .copied()
+        .filter(|&(p, k)| {
             let (a, b) = seg_clusters(p, k);
-            let (pa, pb) = (centres[a as usize], centres[b as usize]);
-            (key([(pa[0] + pb[0]) / 2.0, (pa[1] + pb[1]) / 2.0]), p, k)
+            half_len(centres[a as usize], centres[b as usize]) > short_limit_m
         })
         .collect();
+    let mut keyed: Vec<(u64, u32, u32)> = segs
+        .par_iter()
+        .filter_map(|&(p, k)| {
+            let (a, b) = seg_clusters(p, k);
+            let (pa, pb) = (centres[a as usize], centres[b as usize]);
+            if half_len(pa, pb) > short_limit_m {
+                return None;
+            }
+            let kk = key([(pa[0] + pb[0]) / 2.0, (pa[1] + pb[1]) / 2.0]);
+            wanted.contains_key(&kk).then_some((kk, p, k))
+        })
+        .collect();
+    drop(segs);
     keyed.par_sort_unstable();
-    let long_tree: RTree<GeomWithData<Line<[f64; 2]>, (u32, u32)>> = RTree::bulk_load(
+    let long_tree: SegTree = RTree::bulk_load(
         long.iter()
             .map(|&(p, k)| {
                 let (a, b) = seg_clusters(p, k);
@@ -150,11 +188,11 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
             .collect(),
     );
     // Nearest segment within the tolerance for every dangling end (not one touching it).
-    let found: Vec<Option<(f64, u32, u32, f64, u32)>> = dangling
+    let found: Vec<Option<Candidate>> = dangling
         .par_iter()
         .map(|&c| {
             let p = centres[c as usize];
-            let mut best: Option<(f64, u32, u32, f64, u32)> = None;
+            let mut best: Option<Candidate> = None;
             let mut consider = |sp: u32, sk: u32| {
                 let (a, b) = seg_clusters(sp, sk);
                 if a == c || b == c {
@@ -187,17 +225,17 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
             best
         })
         .collect();
-    let resolved: Vec<(f64, u32, u32, f64, u32, u32, u32)> = found
+    let resolved: Vec<(Candidate, u32, u32)> = found
         .into_iter()
         .flatten()
-        .map(|(d, p, k, t, c)| {
-            let (a, b) = seg_clusters(p, k);
-            (d, p, k, t, c, a, b)
+        .map(|cand| {
+            let (a, b) = seg_clusters(cand.1, cand.2);
+            (cand, a, b)
         })
         .collect();
     let mut inserts = Vec::new();
     let mut qa = Vec::new();
-    for (d, p, k, t, c, a, b) in resolved {
+    for ((d, p, k, t, c), a, b) in resolved {
         let (pa, pb) = (parts.centres[a as usize], parts.centres[b as usize]);
         let f = super::geodesy::round7([pa[0] + t * (pb[0] - pa[0]), pa[1] + t * (pb[1] - pa[1])]);
         qa.push(QaPoint {
@@ -243,7 +281,7 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
         (seq[i], seq[i + 1])
     };
     let segs = all_segments(seq, ends);
-    let tree: RTree<GeomWithData<Line<[f64; 2]>, (u32, u32)>> = RTree::bulk_load(
+    let tree: SegTree = RTree::bulk_load(
         segs.iter()
             .map(|&(p, k)| {
                 let (a, b) = seg_clusters(p, k);
@@ -251,7 +289,7 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
             })
             .collect(),
     );
-    let hits: Vec<(u32, u32, f64, u32, u32, f64, [f64; 2])> = segs
+    let hits: Vec<Crossing> = segs
         .par_iter()
         .flat_map_iter(|&(p, k)| {
             let (a, b) = seg_clusters(p, k);
