@@ -16,6 +16,7 @@ fn demo_joins_the_sites_and_reports_them() {
         [
             "network.geojson",
             "plan.geojson",
+            "qa.geojson",
             "sites.geojson",
             "summary.json"
         ],
@@ -58,7 +59,12 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
     assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(
         listing(&out),
-        ["network.geojson", "plan.geojson", "summary.json"],
+        [
+            "network.geojson",
+            "plan.geojson",
+            "qa.geojson",
+            "summary.json"
+        ],
         "no staging folder may remain"
     );
     let net = read_fc(&out.join("network.geojson"));
@@ -125,16 +131,22 @@ fn outputs_are_byte_identical_across_runs_and_thread_counts() {
         let out = d.path().join(format!("t{}", sets.len()));
         let o = reknit()
             .env("RAYON_NUM_THREADS", threads)
-            .args(["plan", "--roads", sample_roads().to_str().unwrap(), "--out"])
+            .args(["demo", "--out"])
             .arg(&out)
             .arg("--quiet")
             .output()
             .unwrap();
         assert!(o.status.success(), "{}", stderr(&o));
-        let files: Vec<Vec<u8>> = ["network.geojson", "plan.geojson", "summary.json"]
-            .iter()
-            .map(|n| fs::read(out.join(n)).unwrap())
-            .collect();
+        let files: Vec<Vec<u8>> = [
+            "network.geojson",
+            "plan.geojson",
+            "qa.geojson",
+            "sites.geojson",
+            "summary.json",
+        ]
+        .iter()
+        .map(|n| fs::read(out.join(n)).unwrap())
+        .collect();
         sets.push(files);
     }
     assert_eq!(sets[0], sets[1], "1 thread vs 2 threads");
@@ -172,7 +184,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 4);
+    assert_eq!(listing(&out).len(), 5);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -197,7 +209,12 @@ fn existing_outputs_need_force() {
     assert_eq!(s["settings"]["snap_m"], 1.0);
     assert_eq!(
         listing(&out),
-        ["network.geojson", "plan.geojson", "summary.json"]
+        [
+            "network.geojson",
+            "plan.geojson",
+            "qa.geojson",
+            "summary.json"
+        ]
     );
 }
 
@@ -260,4 +277,49 @@ fn readme_carries_the_cautions() {
     for c in reknit::cautions::CAUTIONS {
         assert!(readme.contains(c), "README lacks caution: {c}");
     }
+}
+
+#[test]
+fn check_reports_topology_and_every_repair() {
+    let d = tmp();
+    let out = d.path().join("check");
+    let o = run(&[
+        "check",
+        "--roads",
+        sample_roads().to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(
+        listing(&out),
+        ["network.geojson", "qa.geojson", "summary.json"]
+    );
+    let s = read_json(&out.join("summary.json"));
+    let comps = s["components"].as_array().unwrap();
+    assert_eq!(
+        comps.len() as u64,
+        s["component_count"].as_u64().unwrap().min(100)
+    );
+    let qa = read_fc(&out.join("qa.geojson"));
+    let counted: u64 = s["counts"]["qa"]
+        .as_object()
+        .unwrap()
+        .values()
+        .map(|v| v.as_u64().unwrap())
+        .sum();
+    assert_eq!(qa.features.len() as u64, counted);
+    // The sample map has digitised gaps at junctions and an overpass: both are on record.
+    assert!(s["counts"]["qa"]["merged vertices"].as_u64().unwrap_or(0) >= 1);
+    assert!(
+        s["counts"]["qa"]["crossing left apart"]
+            .as_u64()
+            .unwrap_or(0)
+            >= 1
+    );
+    assert_eq!(
+        s["dangles"].as_u64().unwrap(),
+        s["counts"]["qa"]["dangling end"].as_u64().unwrap()
+    );
 }

@@ -156,3 +156,105 @@ proptest! {
         prop_assert_eq!(s.junctions, n.junctions.len());
     }
 }
+
+mod repairs {
+    use super::*;
+    use reknit::ingest::noding::{NodingOptions, node_with};
+
+    fn opts(snap_m: f64, node_crossings: bool) -> NodingOptions {
+        NodingOptions {
+            snap_m,
+            node_crossings,
+            report_crossings: true,
+        }
+    }
+
+    fn count(s: &reknit::ingest::NodingStats, kind: &str) -> usize {
+        s.qa.get(kind).copied().unwrap_or(0)
+    }
+
+    #[test]
+    fn undershoot_is_joined_into_the_through_road() {
+        // A side road stops 0.3 m short of the main road's interior (no vertex there).
+        let (n, s) = node_with(
+            layer(&[
+                vec![pt(0., 0.), pt(400., 0.)],
+                vec![pt(200., 0.3), pt(200., 200.)],
+            ]),
+            opts(0.5, false),
+        );
+        n.validate().unwrap();
+        assert_eq!(s.undershoots_joined, 1);
+        assert_eq!(count(&s, "joined undershoot"), 1);
+        assert_eq!(n.edges.len(), 3, "main road split at the join");
+        assert_eq!(degree_sequence(&n), vec![1, 1, 1, 3]);
+        // Beyond the tolerance it stays a dangling end.
+        let (n, s) = node_with(
+            layer(&[
+                vec![pt(0., 0.), pt(400., 0.)],
+                vec![pt(200., 0.8), pt(200., 200.)],
+            ]),
+            opts(0.5, false),
+        );
+        assert_eq!(s.undershoots_joined, 0);
+        assert_eq!(n.edges.len(), 2);
+    }
+
+    #[test]
+    fn overshoot_is_trimmed() {
+        // The side road runs 0.3 m past the main road (a vertex shared at the crossing).
+        let (n, s) = node_with(
+            layer(&[
+                vec![pt(0., 0.), pt(200., 0.), pt(400., 0.)],
+                vec![pt(200., -0.3), pt(200., 0.), pt(200., 200.)],
+            ]),
+            opts(0.5, false),
+        );
+        n.validate().unwrap();
+        // The stub is gone, and the change is on record (merged into the junction, or trimmed).
+        assert_eq!(
+            count(&s, "trimmed overshoot") + count(&s, "merged vertices"),
+            1
+        );
+        assert_eq!(n.edges.len(), 3);
+        assert_eq!(n.junctions.len(), 4);
+        assert_eq!(degree_sequence(&n), vec![1, 1, 1, 3]);
+    }
+
+    #[test]
+    fn near_duplicate_is_removed() {
+        // The same road digitised twice, 0.2 m apart between the same junctions.
+        let (n, s) = node_with(
+            layer(&[
+                vec![pt(0., 0.), pt(100., 10.), pt(200., 0.)],
+                vec![pt(0., 0.), pt(100., 10.2), pt(200., 0.)],
+            ]),
+            opts(0.5, false),
+        );
+        assert_eq!(s.near_duplicates_dropped + s.duplicate_edges_dropped, 1);
+        assert_eq!(n.edges.len(), 1);
+        assert_eq!(n.edges[0].feature, 0);
+    }
+
+    #[test]
+    fn crossings_are_reported_or_joined() {
+        let lines = vec![
+            vec![pt(0., 0.), pt(200., 0.)],
+            vec![pt(100., -100.), pt(100., 100.)],
+        ];
+        let (n, s) = node_with(layer(&lines), opts(0.5, false));
+        assert_eq!(n.edges.len(), 2, "left apart by default (an overpass)");
+        assert_eq!(count(&s, "crossing left apart"), 1);
+        let (n, s) = node_with(layer(&lines), opts(0.5, true));
+        n.validate().unwrap();
+        assert_eq!(count(&s, "crossing joined"), 1);
+        assert_eq!(n.edges.len(), 4);
+        assert_eq!(degree_sequence(&n), vec![1, 1, 1, 1, 4]);
+        let total: f64 = n.edges.iter().map(|e| e.length_m).sum();
+        let input: f64 = lines
+            .iter()
+            .map(|l| reknit::ingest::geodesy::polyline_length_m(l.iter().copied()))
+            .sum();
+        assert!((total - input).abs() < 0.02, "{total} vs {input}");
+    }
+}

@@ -164,9 +164,29 @@ fn demo_layers_open_in_ogrinfo() {
             .success()
     );
     let s = read_json(&out.join("summary.json"));
-    for (file, count) in [
-        ("network.geojson", s["counts"]["edges"].as_u64().unwrap()),
-        ("plan.geojson", s["plan_edges"].as_u64().unwrap()),
+    let qa: u64 = s["counts"]["qa"]
+        .as_object()
+        .unwrap()
+        .values()
+        .map(|v| v.as_u64().unwrap())
+        .sum();
+    for (file, count, geometry) in [
+        (
+            "network.geojson",
+            s["counts"]["edges"].as_u64().unwrap(),
+            "Line String",
+        ),
+        (
+            "plan.geojson",
+            s["plan_edges"].as_u64().unwrap(),
+            "Line String",
+        ),
+        (
+            "sites.geojson",
+            s["sites"]["total"].as_u64().unwrap(),
+            "Point",
+        ),
+        ("qa.geojson", qa, "Point"),
     ] {
         let o = Command::new("ogrinfo")
             .args(["-ro", "-so", "-al"])
@@ -183,7 +203,10 @@ fn demo_layers_open_in_ogrinfo() {
             text.contains(&format!("Feature Count: {count}")),
             "{file}: {text}"
         );
-        assert!(text.contains("Geometry: Line String"), "{file}: {text}");
+        assert!(
+            text.contains(&format!("Geometry: {geometry}")),
+            "{file}: {text}"
+        );
         assert!(text.contains("WGS 84"), "{file}: {text}");
     }
 }

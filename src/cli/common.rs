@@ -49,6 +49,11 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
+    /// Join lines where they cross without a shared vertex (for data digitised without junction
+    /// vertices). Off by default: such crossings are usually overpasses.
+    #[arg(long)]
+    pub node_crossings: bool,
+
     /// Algorithm for the whole-network plan; both give a forest of the same minimum total.
     #[arg(long, value_enum, default_value = "kruskal")]
     pub mst: MstChoice,
@@ -65,6 +70,7 @@ impl NetworkArgs {
             },
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
+            node_crossings: self.node_crossings,
         }
     }
 

@@ -1,6 +1,7 @@
 //! Flag definitions (their doc comments are the `--help` text) and dispatch to subcommands.
 
 mod batch;
+mod check;
 mod common;
 mod demo;
 mod plan;
@@ -24,6 +25,7 @@ pub struct Cli {
 enum Command {
     Plan(Box<plan::PlanArgs>),
     Demo(demo::DemoArgs),
+    Check(Box<check::CheckArgs>),
     Batch(batch::BatchArgs),
     Merge(batch::MergeArgs),
 }
@@ -33,6 +35,7 @@ pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Plan(a) => plan::run(*a),
         Command::Demo(a) => demo::run(a),
+        Command::Check(a) => check::run(*a),
         Command::Batch(a) => batch::run(a),
         Command::Merge(a) => batch::merge(a),
     }

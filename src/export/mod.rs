@@ -39,33 +39,42 @@ pub enum ExportError {
     },
 }
 
-/// Writes `network.geojson`, `plan.geojson`, `sites.geojson` (when there are sites) and
-/// `summary.json` into `out` as one set.
-pub fn write_outputs(
-    out: &Path,
-    force: bool,
-    net: &Network,
-    comps: &Components,
-    plan: &Plan,
-    sites: Option<&[sites::SiteRow]>,
-    summary: &Summary,
-) -> Result<(), ExportError> {
+/// Everything one planning run writes.
+pub struct Outputs<'a> {
+    /// The network.
+    pub net: &'a Network,
+    /// Its components.
+    pub comps: &'a Components,
+    /// The plan.
+    pub plan: &'a Plan,
+    /// The sites layer rows, when there are sites.
+    pub sites: Option<&'a [sites::SiteRow]>,
+    /// QA points.
+    pub qa: &'a [crate::ingest::qa::QaPoint],
+    /// The summary.
+    pub summary: &'a Summary,
+}
+
+/// Writes `network.geojson`, `plan.geojson`, `qa.geojson`, `sites.geojson` (when there are sites)
+/// and `summary.json` into `out` as one set.
+pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
-    if let Some(rows) = sites {
+    st.write("qa.geojson", |w| write_qa(w, o.qa))?;
+    if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
     }
     let (a, b) = rayon::join(
-        || st.write("network.geojson", |w| write_edges(w, net, comps, None)),
+        || st.write("network.geojson", |w| write_edges(w, o.net, o.comps, None)),
         || {
             st.write("plan.geojson", |w| {
-                write_edges(w, net, comps, Some(&plan.edges))
+                write_edges(w, o.net, o.comps, Some(&o.plan.edges))
             })
         },
     );
     a?;
     b?;
     st.write("summary.json", |w| {
-        serde_json::to_writer_pretty(&mut *w, summary)?;
+        serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")
     })?;
     st.commit()
@@ -126,4 +135,33 @@ fn write_edges<W: std::io::Write>(
     }
     gj.finish()?;
     Ok(())
+}
+
+/// Writes QA points: kind, distance moved (or gap), and the input feature where known.
+pub fn write_qa<W: std::io::Write>(w: W, qa: &[crate::ingest::qa::QaPoint]) -> std::io::Result<()> {
+    let mut gj = GeoJsonWriter::new(w)?;
+    for q in qa {
+        gj.point(
+            &[
+                ("kind", Prop::Str(q.kind.label())),
+                ("distance_m", Prop::Fixed3(q.distance_m)),
+                (
+                    "source_index",
+                    q.feature.map_or(Prop::Null, |f| Prop::Int(f as i64)),
+                ),
+            ],
+            q.pos,
+        )?;
+    }
+    gj.finish()?;
+    Ok(())
+}
+
+/// Writes every edge of the network (as `network.geojson`).
+pub fn write_network<W: std::io::Write>(
+    w: W,
+    net: &Network,
+    comps: &Components,
+) -> std::io::Result<()> {
+    write_edges(w, net, comps, None)
 }

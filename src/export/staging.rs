@@ -14,6 +14,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "network.geojson",
     "plan.geojson",
     "sites.geojson",
+    "qa.geojson",
     "summary.json",
 ];
 

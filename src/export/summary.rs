@@ -60,6 +60,16 @@ pub struct Counts {
     pub zero_length_parts_dropped: usize,
     /// Duplicate edges dropped.
     pub duplicate_edges_dropped: usize,
+    /// Dangling ends joined to a nearby line (undershoots).
+    pub undershoots_joined: usize,
+    /// Short dangling pieces past a junction removed (overshoots).
+    pub overshoots_trimmed: usize,
+    /// Edges within the tolerance of another between the same junctions, removed.
+    pub near_duplicates_dropped: usize,
+    /// Crossings without a shared vertex found (joined with --node-crossings).
+    pub crossings: usize,
+    /// QA points in qa.geojson, by kind.
+    pub qa: BTreeMap<String, usize>,
     /// Junctions in the network.
     pub junctions: usize,
     /// Edges in the network.

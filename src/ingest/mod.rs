@@ -96,11 +96,19 @@ pub enum IngestError {
     },
 }
 
-/// Reads a road layer and builds its network, returning the statistics of both steps.
+/// Builds the network of a road layer; `report_crossings` also lists crossings left apart (slower).
 pub fn build_network(
     layer: LineLayer,
     settings: &RoadSettings,
+    report_crossings: bool,
 ) -> Result<(Network, NodingStats), IngestError> {
     settings.validate()?;
-    Ok(noding::node(layer, settings.snap_m))
+    Ok(noding::node_with(
+        layer,
+        noding::NodingOptions {
+            snap_m: settings.snap_m,
+            node_crossings: settings.node_crossings,
+            report_crossings,
+        },
+    ))
 }

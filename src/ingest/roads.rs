@@ -26,6 +26,8 @@ pub struct RoadSettings {
     pub id_field: Option<String>,
     /// The layer's CRS as `EPSG:NNNN`, overriding the `.prj` or GeoJSON `crs` member.
     pub crs: Option<String>,
+    /// Join lines where they cross without a shared vertex (data digitised without junctions).
+    pub node_crossings: bool,
 }
 
 impl Default for RoadSettings {
@@ -35,6 +37,7 @@ impl Default for RoadSettings {
             damage: DamageRule::default(),
             id_field: None,
             crs: None,
+            node_crossings: false,
         }
     }
 }

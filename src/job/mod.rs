@@ -3,6 +3,7 @@
 //! The command line (and the batch runner) call [`run_plan`]; it owns the order of the stages.
 //! [`summary`] turns the stages' results into `summary.json`.
 
+pub mod check;
 pub mod summary;
 
 use crate::export::sites::SiteRow;
@@ -143,7 +144,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
 
     let (mut net, noding) = {
         let _s = progress.stage("noding");
-        ingest::build_network(layer, &job.road_settings)?
+        ingest::build_network(layer, &job.road_settings, false)?
     };
     let attachments = match &site_layer {
         Some(sl) => {
@@ -203,11 +204,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         export::write_outputs(
             &job.out,
             job.force,
-            &net,
-            &comps,
-            &plan,
-            rows.as_deref(),
-            &summary,
+            &export::Outputs {
+                net: &net,
+                comps: &comps,
+                plan: &plan,
+                sites: rows.as_deref(),
+                qa: &noding.qa_points,
+                summary: &summary,
+            },
         )?;
     }
     Ok(summary)
@@ -234,6 +238,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "lon_column": ss.lon_column,
         "lat_column": ss.lat_column,
         "crs": s.crs,
+        "node_crossings": s.node_crossings,
         "sites_crs": ss.crs,
     })
 }

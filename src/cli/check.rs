@@ -1,0 +1,50 @@
+//! `reknit check`: ingest only, to see every repair and suspicion before planning.
+
+use super::common::{NetworkArgs, OutputArgs};
+use clap::Args;
+use reknit::ingest::source::Source;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+/// Check a road layer's topology: writes qa.geojson (every change reknit makes to the geometry and
+/// every suspicion: merged vertices, joined undershoots, trimmed overshoots, removed duplicates,
+/// crossings left apart, dangling ends), network.geojson and summary.json (components with their
+/// sizes, dangles, counts).
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// Road centerline layer (GeoJSON or Shapefile).
+    #[arg(long, value_name = "FILE")]
+    roads: PathBuf,
+
+    /// Output folder (created if absent).
+    #[arg(long, value_name = "DIR")]
+    out: PathBuf,
+
+    #[command(flatten)]
+    network: NetworkArgs,
+
+    #[command(flatten)]
+    output: OutputArgs,
+}
+
+pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
+    let progress = a.output.progress();
+    let r = reknit::job::check::run_check(
+        &Source::File(a.roads),
+        &a.network.road_settings(),
+        &a.out,
+        a.output.force,
+        &progress,
+    )?;
+    if !progress.quiet {
+        eprintln!(
+            "{} junctions, {} edges in {} component(s); {} dangling ends",
+            r.counts.junctions, r.counts.edges, r.component_count, r.dangles
+        );
+        for (kind, n) in &r.counts.qa {
+            eprintln!("  {n:>8}  {kind}");
+        }
+        eprintln!("outputs written to {}", a.out.display());
+    }
+    Ok(ExitCode::SUCCESS)
+}
