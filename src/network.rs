@@ -31,8 +31,10 @@ pub struct FeatureMeta {
     pub source_index: u32,
     /// The feature's own id (GeoJSON `id` member or an id-like property), when it has one.
     pub source_id: Option<Value>,
-    /// The damage read from the feature's attributes.
+    /// The damage read from the feature's attributes (factor × class rate).
     pub damage: Damage,
+    /// The damage category, when damage comes from a category field.
+    pub category: Option<String>,
 }
 
 /// One road piece between two junctions.

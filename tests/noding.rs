@@ -19,6 +19,7 @@ fn layer(lines: &[Vec<[f64; 2]>]) -> LineLayer {
             source_index: i as u32,
             source_id: None,
             damage: Damage::Factor(1.0),
+            category: None,
         });
     }
     l

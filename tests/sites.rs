@@ -25,6 +25,7 @@ fn network(lines: &[(Vec<[f64; 2]>, Damage)]) -> Network {
             source_index: i as u32,
             source_id: None,
             damage: *damage,
+            category: None,
         });
     }
     node(l, 0.0).0

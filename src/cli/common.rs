@@ -3,6 +3,7 @@
 use clap::{Args, ValueEnum};
 use reknit::export::Summary;
 use reknit::ingest::RoadSettings;
+use reknit::ingest::cost_table::{CostTable, RoadFilter};
 use reknit::ingest::damage::DamageRule;
 use reknit::ingest::sites::SiteSettings;
 use reknit::job::PlanJob;
@@ -49,6 +50,24 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
+    /// Road property holding a damage category (e.g. debris, washed-out, collapsed) instead of a
+    /// numeric factor; categories map to factors through --cost-table (or the documented default).
+    #[arg(long, value_name = "FIELD")]
+    pub category_field: Option<String>,
+
+    /// TOML cost table: [categories] (name = factor or "closed") and optional [classes] (field =
+    /// "NAME" and a rate per road class, multiplying the repair effort per metre).
+    #[arg(long, value_name = "FILE")]
+    pub cost_table: Option<std::path::PathBuf>,
+
+    /// Keep only roads whose FIELD has one of the values, e.g. highway=primary,secondary (repeatable).
+    #[arg(long, value_name = "FIELD=V1,V2")]
+    pub keep_where: Vec<String>,
+
+    /// Leave out roads whose FIELD has one of the values, e.g. highway=footway,path,steps (repeatable).
+    #[arg(long, value_name = "FIELD=V1,V2")]
+    pub drop_where: Vec<String>,
+
     /// Join lines where they cross without a shared vertex (for data digitised without junction
     /// vertices). Off by default: such crossings are usually overpasses.
     #[arg(long)]
@@ -60,8 +79,27 @@ pub struct NetworkArgs {
 }
 
 impl NetworkArgs {
-    pub fn road_settings(&self) -> RoadSettings {
-        RoadSettings {
+    pub fn road_settings(&self) -> anyhow::Result<RoadSettings> {
+        let cost_table = match &self.cost_table {
+            Some(p) => {
+                let text = std::fs::read_to_string(p)
+                    .map_err(|e| anyhow::anyhow!("{}: cannot read: {e}", p.display()))?;
+                CostTable::from_toml(&text).map_err(|e| anyhow::anyhow!("{}: {e}", p.display()))?
+            }
+            None => CostTable::default(),
+        };
+        let mut filters = Vec::new();
+        for (list, keep) in [(&self.keep_where, true), (&self.drop_where, false)] {
+            for f in list {
+                filters.push(RoadFilter::parse(f, keep).map_err(|e| {
+                    anyhow::anyhow!(
+                        "invalid setting --{}-where: {e}",
+                        if keep { "keep" } else { "drop" }
+                    )
+                })?);
+            }
+        }
+        Ok(RoadSettings {
             snap_m: self.snap,
             damage: DamageRule {
                 field: self.damage_field.clone(),
@@ -71,7 +109,10 @@ impl NetworkArgs {
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
             node_crossings: self.node_crossings,
-        }
+            category_field: self.category_field.clone(),
+            cost_table,
+            filters,
+        })
     }
 
     pub fn mst(&self) -> MstAlgorithm {

@@ -37,7 +37,7 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
     };
     let mut job = PlanJob::new(roads, a.out);
     job.force = a.output.force;
-    job.road_settings = a.network.road_settings();
+    job.road_settings = a.network.road_settings()?;
     job.mst = a.network.mst();
     job.whole_network = a.whole_network;
     if !a.whole_network {

@@ -37,7 +37,7 @@ pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
     let mut job = PlanJob::new(Source::File(a.roads), a.out);
     job.force = a.output.force;
-    job.road_settings = a.network.road_settings();
+    job.road_settings = a.network.road_settings()?;
     job.mst = a.network.mst();
     a.sites.apply(&mut job);
     job.sites = a.sites.sites.clone().map(Source::File);

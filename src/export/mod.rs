@@ -124,12 +124,16 @@ fn write_edges<W: std::io::Write>(
             ("component", component),
             ("source_index", Prop::Int(meta.source_index as i64)),
             ("source_id", source_id),
+            (
+                "category",
+                meta.category.as_deref().map_or(Prop::Null, Prop::Str),
+            ),
             ("repair", Prop::Bool(edge.cost > 0)),
         ];
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..9]
+            &props[..10]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }

@@ -20,6 +20,14 @@ impl Damage {
         matches!(self, Damage::Closed)
     }
 
+    /// A default factor as a damage: negative means closed.
+    pub fn normalised(self) -> Damage {
+        match self {
+            Damage::Factor(f) if f < 0.0 => Damage::Closed,
+            d => d,
+        }
+    }
+
     /// The factor, or `None` for a closed piece.
     pub fn factor(self) -> Option<f64> {
         match self {

@@ -7,6 +7,7 @@
 pub mod attach;
 pub mod cleanup;
 pub mod coords;
+pub mod cost_table;
 pub mod crs;
 pub mod damage;
 pub mod geodesy;

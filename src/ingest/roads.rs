@@ -1,7 +1,7 @@
 //! Reading a road centerline layer into flat arrays of line parts.
 
 use super::crs::{Crs, LengthRule};
-use super::damage::DamageRule;
+use super::damage::{Damage, DamageRule};
 use super::geojson::{ReadFailure, read_collection};
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
@@ -28,6 +28,27 @@ pub struct RoadSettings {
     pub crs: Option<String>,
     /// Join lines where they cross without a shared vertex (data digitised without junctions).
     pub node_crossings: bool,
+    /// Property holding a damage category (looked up in `cost_table`) instead of a factor.
+    pub category_field: Option<String>,
+    /// Damage categories and road-class rates.
+    pub cost_table: super::cost_table::CostTable,
+    /// Features kept or dropped by field values, applied in order.
+    pub filters: Vec<super::cost_table::RoadFilter>,
+}
+
+impl RoadSettings {
+    /// Every property the readers must keep for these settings.
+    pub fn wanted_fields(&self) -> Vec<String> {
+        let mut w = vec![self.damage.field.clone()];
+        match &self.id_field {
+            Some(f) => w.push(f.clone()),
+            None => w.extend(ID_FIELDS.iter().map(|s| s.to_string())),
+        }
+        w.extend(self.category_field.clone());
+        w.extend(self.cost_table.class_field.clone());
+        w.extend(self.filters.iter().map(|f| f.field.clone()));
+        w
+    }
 }
 
 impl Default for RoadSettings {
@@ -38,6 +59,9 @@ impl Default for RoadSettings {
             id_field: None,
             crs: None,
             node_crossings: false,
+            category_field: None,
+            cost_table: Default::default(),
+            filters: Vec::new(),
         }
     }
 }
@@ -137,11 +161,7 @@ pub fn read_geojson_roads(
     settings.validate()?;
     let path = source.display_path();
     let mut reader = source.open()?;
-    let mut wanted = vec![settings.damage.field.clone()];
-    match &settings.id_field {
-        Some(f) => wanted.push(f.clone()),
-        None => wanted.extend(ID_FIELDS.iter().map(|s| s.to_string())),
-    }
+    let wanted = settings.wanted_fields();
     let mut layer = LineLayer::default();
     let info = read_collection(&mut reader, &wanted, |index, f| {
         add_feature(&mut layer, &path, settings, index, f)
@@ -360,17 +380,61 @@ pub(super) fn add_feature(
             }
         }
     }
-    let field = &settings.damage.field;
-    let damage = settings
-        .damage
-        .interpret(f.prop(field))
-        .map_err(|m| fail(Some(field), m))?;
+    let text = |v: &Value| match v {
+        Value::String(s) => Some(s.trim().to_string()),
+        Value::Number(n) => Some(n.to_string()),
+        _ => None,
+    };
+    for filter in &settings.filters {
+        let v = f.prop(&filter.field).and_then(text);
+        if !filter.passes(v.as_deref()) {
+            let how = if filter.keep {
+                "not kept by"
+            } else {
+                "dropped by"
+            };
+            skip(
+                layer,
+                format!("{how} {}={}", filter.field, filter.values.join(",")),
+            );
+            return Ok(());
+        }
+    }
+    let (mut damage, category) = match &settings.category_field {
+        Some(cf) => match f.prop(cf).and_then(text).filter(|c| !c.is_empty()) {
+            Some(c) => (
+                settings
+                    .cost_table
+                    .category(&c)
+                    .map_err(|m| fail(Some(cf), m))?,
+                Some(c),
+            ),
+            None => (Damage::Factor(settings.damage.default).normalised(), None),
+        },
+        None => {
+            let field = &settings.damage.field;
+            let d = settings
+                .damage
+                .interpret(f.prop(field))
+                .map_err(|m| fail(Some(field), m))?;
+            (d, None)
+        }
+    };
+    if let Some(cf) = &settings.cost_table.class_field {
+        let rate = settings
+            .cost_table
+            .rate(f.prop(cf).and_then(text).as_deref());
+        if let Damage::Factor(x) = damage {
+            damage = Damage::Factor(x * rate);
+        }
+    }
     let source_id = feature_id(&f, settings);
     let fi = layer.features.len() as u32;
     layer.features.push(FeatureMeta {
         source_index: index as u32,
         source_id,
         damage,
+        category,
     });
     for part in c.part_slices() {
         layer.coords.extend_from_slice(part);

@@ -8,9 +8,7 @@ use super::IngestError;
 use super::coords::Coords;
 use super::crs::Crs;
 use super::geojson::RawFeature;
-use super::roads::{
-    ID_FIELDS, LineLayer, RoadSettings, add_feature, check_empty, finish_coordinates,
-};
+use super::roads::{LineLayer, RoadSettings, add_feature, check_empty, finish_coordinates};
 use super::source::{HashingReader, InputRecord, Source};
 use serde_json::Value;
 use shapefile::Shape;
@@ -68,10 +66,24 @@ pub fn read_shapefile_roads(
             ),
         });
     }
-    let mut wanted = vec![damage_field.clone()];
-    match &settings.id_field {
-        Some(f) => wanted.push(f.clone()),
-        None => wanted.extend(ID_FIELDS.iter().map(|s| s.to_string())),
+    let wanted = settings.wanted_fields();
+    for f in settings
+        .category_field
+        .iter()
+        .chain(settings.filters.iter().map(|f| &f.field))
+        .chain(settings.cost_table.class_field.iter())
+    {
+        if !fields.iter().any(|x| x == f) {
+            return Err(IngestError::Feature {
+                path: path.with_extension("dbf"),
+                feature: 0,
+                field: Some(f.clone()),
+                message: format!(
+                    "the .dbf has no such field; its fields are: {}",
+                    fields.join(", ")
+                ),
+            });
+        }
     }
     let mut layer = LineLayer::default();
     let mut count = 0;

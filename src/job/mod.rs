@@ -239,6 +239,17 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "lat_column": ss.lat_column,
         "crs": s.crs,
         "node_crossings": s.node_crossings,
+        "category_field": s.category_field,
+        "cost_table": {
+            "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
+                Some(f) => serde_json::json!(f),
+                None => serde_json::json!("closed"),
+            })).collect::<serde_json::Map<_, _>>(),
+            "class_field": s.cost_table.class_field,
+            "class_rates": s.cost_table.class_rates,
+            "class_default": s.cost_table.class_default,
+        },
+        "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
         "sites_crs": ss.crs,
     })
 }
