@@ -111,3 +111,139 @@ fn road_filters_drop_and_keep() {
     let (o, _) = plan(d.path(), &["--drop-where", "nonsense"]);
     assert_eq!(o.status.code(), Some(2));
 }
+
+fn zone(d: &std::path::Path, name: &str, ring: &[[f64; 2]], props: &str) -> std::path::PathBuf {
+    let c: Vec<String> = ring
+        .iter()
+        .map(|p| format!("[{},{}]", p[0], p[1]))
+        .collect();
+    let f = format!(
+        r#"{{"type":"Feature","properties":{props},"geometry":{{"type":"Polygon","coordinates":[[{}]]}}}}"#,
+        c.join(",")
+    );
+    write_collection(d, name, &[f])
+}
+
+#[test]
+fn damage_zones_cost_the_pieces_inside_them() {
+    let d = tmp();
+    // One intact 100 m road; a flood zone covers its second half with factor 0.8 (by hand: 40).
+    let r = write_collection(
+        d.path(),
+        "r.geojson",
+        &[line(&[[0.0, 0.0], [100.0 * M, 0.0]], r#"{"damage":0}"#)],
+    );
+    let z = zone(
+        d.path(),
+        "z.geojson",
+        &[
+            [50.0 * M, -0.001],
+            [0.01, -0.001],
+            [0.01, 0.001],
+            [50.0 * M, 0.001],
+            [50.0 * M, -0.001],
+        ],
+        r#"{"damage":0.8}"#,
+    );
+    let out = d.path().join("o1");
+    let o = run(&[
+        "plan",
+        "--roads",
+        r.to_str().unwrap(),
+        "--damage-zones",
+        z.to_str().unwrap(),
+        "--whole-network",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    assert!(
+        (s["total_cost"].as_f64().unwrap() - 40.0).abs() < 0.05,
+        "{}",
+        s["total_cost"]
+    );
+    assert_eq!(s["counts"]["edges_in_zones"], 1);
+    assert_eq!(s["inputs"][1]["role"], "damage zones");
+    // A closed zone makes the road impassable.
+    let z = zone(
+        d.path(),
+        "closed.geojson",
+        &[
+            [50.0 * M, -0.001],
+            [0.01, -0.001],
+            [0.01, 0.001],
+            [50.0 * M, 0.001],
+            [50.0 * M, -0.001],
+        ],
+        r#"{"damage":"closed"}"#,
+    );
+    let out = d.path().join("o2");
+    let o = run(&[
+        "plan",
+        "--roads",
+        r.to_str().unwrap(),
+        "--damage-zones",
+        z.to_str().unwrap(),
+        "--whole-network",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["counts"]["edges_closed"], 1);
+}
+
+#[test]
+fn invalid_zones_are_refused() {
+    let d = tmp();
+    let r = write_collection(
+        d.path(),
+        "r.geojson",
+        &[line(&[[0.0, 0.0], [100.0 * M, 0.0]], "{}")],
+    );
+    for (name, ring, needle) in [
+        (
+            "open.geojson",
+            vec![[0.0, 0.0], [0.001, 0.0], [0.001, 0.001], [0.0, 0.001]],
+            "not closed",
+        ),
+        (
+            "bowtie.geojson",
+            vec![
+                [0.0, 0.0],
+                [0.001, 0.001],
+                [0.001, 0.0],
+                [0.0, 0.001],
+                [0.0, 0.0],
+            ],
+            "not valid",
+        ),
+        (
+            "flat.geojson",
+            vec![[0.0, 0.0], [0.001, 0.0], [0.002, 0.0], [0.0, 0.0]],
+            "zero area",
+        ),
+    ] {
+        let z = zone(d.path(), name, &ring, "{}");
+        let out = d.path().join(format!("o-{name}"));
+        let o = run(&[
+            "plan",
+            "--roads",
+            r.to_str().unwrap(),
+            "--damage-zones",
+            z.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+        ]);
+        assert_eq!(o.status.code(), Some(2), "{name}: {}", stderr(&o));
+        let msg = stderr(&o);
+        assert!(
+            msg.contains(name) && msg.contains("feature 0") && msg.contains(needle),
+            "{name}: {msg}"
+        );
+        assert!(!out.exists());
+    }
+}

@@ -40,6 +40,9 @@ pub const SETTING_KEYS: &[&str] = &[
     "priority_field",
     "lon_column",
     "lat_column",
+    "damage_zones",
+    "zone_damage_field",
+    "category_field",
 ];
 
 /// One district of a manifest, ready to run.
@@ -111,8 +114,14 @@ pub fn read_manifest(path: &Path) -> Result<Vec<District>, BatchError> {
             Some(Val::Text(_)) => None,
             Some(_) => return Err(at("\"sites\" must be a path".into())),
         };
+        let zones = match e.remove("damage_zones") {
+            Some(Val::Text(p)) if !p.trim().is_empty() => Some(base.join(p.trim())),
+            None => None,
+            Some(_) => return Err(at("\"damage_zones\" must be a path".into())),
+        };
         let mut job = PlanJob::new(Source::File(roads), PathBuf::new());
         job.sites = sites.map(Source::File);
+        job.zones = zones.map(Source::File);
         apply(&mut job, &defaults).map_err(|m| err(format!("[defaults]: {m}")))?;
         apply(&mut job, &e).map_err(at)?;
         out.push(District {
@@ -277,6 +286,8 @@ fn apply(job: &mut PlanJob, t: &BTreeMap<String, Val>) -> Result<(), String> {
             "priority_field" => job.site_settings.priority_field = Some(text(k, v)?),
             "lon_column" => job.site_settings.lon_column = Some(text(k, v)?),
             "lat_column" => job.site_settings.lat_column = Some(text(k, v)?),
+            "zone_damage_field" => job.zone_damage.field = text(k, v)?,
+            "category_field" => job.road_settings.category_field = Some(text(k, v)?),
             _ => {}
         }
     }

@@ -68,6 +68,19 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "FIELD=V1,V2")]
     pub drop_where: Vec<String>,
 
+    /// Damage zones (flood extents, landslide areas): GeoJSON polygons with a damage factor each; a
+    /// road's cost inside a zone uses the zone's factor when larger than its own.
+    #[arg(long, value_name = "FILE")]
+    pub damage_zones: Option<std::path::PathBuf>,
+
+    /// Zone property holding the damage factor (or "closed"); a zone without one counts as 1.0.
+    #[arg(long, value_name = "FIELD", default_value = "damage")]
+    pub zone_damage_field: String,
+
+    /// The damage zones' CRS as EPSG:NNNN (default WGS84 longitude/latitude).
+    #[arg(long, value_name = "EPSG:CODE")]
+    pub zones_crs: Option<String>,
+
     /// Join lines where they cross without a shared vertex (for data digitised without junction
     /// vertices). Off by default: such crossings are usually overpasses.
     #[arg(long)]
@@ -113,6 +126,20 @@ impl NetworkArgs {
             cost_table,
             filters,
         })
+    }
+
+    /// Copies the damage-zone settings into a job.
+    pub fn apply_zones(&self, job: &mut PlanJob) {
+        job.zones = self
+            .damage_zones
+            .clone()
+            .map(reknit::ingest::source::Source::File);
+        job.zone_damage = DamageRule {
+            field: self.zone_damage_field.clone(),
+            default: 1.0,
+            closed_value: self.closed_value.clone(),
+        };
+        job.zones_crs = self.zones_crs.clone();
     }
 
     pub fn mst(&self) -> MstAlgorithm {

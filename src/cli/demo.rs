@@ -39,6 +39,7 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
     job.force = a.output.force;
     job.road_settings = a.network.road_settings()?;
     job.mst = a.network.mst();
+    a.network.apply_zones(&mut job);
     job.whole_network = a.whole_network;
     if !a.whole_network {
         job.sites = Some(Source::Bundled {

@@ -24,9 +24,9 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 enum Command {
     Plan(Box<plan::PlanArgs>),
-    Demo(demo::DemoArgs),
+    Demo(Box<demo::DemoArgs>),
     Check(Box<check::CheckArgs>),
-    Batch(batch::BatchArgs),
+    Batch(Box<batch::BatchArgs>),
     Merge(batch::MergeArgs),
 }
 
@@ -34,9 +34,9 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Plan(a) => plan::run(*a),
-        Command::Demo(a) => demo::run(a),
+        Command::Demo(a) => demo::run(*a),
         Command::Check(a) => check::run(*a),
-        Command::Batch(a) => batch::run(a),
+        Command::Batch(a) => batch::run(*a),
         Command::Merge(a) => batch::merge(a),
     }
 }

@@ -39,6 +39,7 @@ pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     job.force = a.output.force;
     job.road_settings = a.network.road_settings()?;
     job.mst = a.network.mst();
+    a.network.apply_zones(&mut job);
     a.sites.apply(&mut job);
     job.sites = a.sites.sites.clone().map(Source::File);
     let summary = run_plan(&job, &progress)?;

@@ -80,6 +80,10 @@ pub struct Counts {
     pub edges_damaged: usize,
     /// Edges marked impassable.
     pub edges_closed: usize,
+    /// Damage zone polygons read.
+    pub damage_zones: usize,
+    /// Edges whose cost the zones changed.
+    pub edges_in_zones: usize,
     /// Connected components of the usable network (isolated junctions included).
     pub components: usize,
     /// Total length of all edges, metres.

@@ -20,6 +20,7 @@ pub mod scan;
 pub mod shapefile;
 pub mod sites;
 pub mod source;
+pub mod zones;
 
 use crate::network::Network;
 use std::path::PathBuf;

@@ -46,6 +46,12 @@ pub struct PlanJob {
     pub mst: MstAlgorithm,
     /// Effort spent on the sites plan.
     pub effort: Effort,
+    /// Damage zones (polygons with a damage each).
+    pub zones: Option<Source>,
+    /// How a zone's damage is read.
+    pub zone_damage: crate::ingest::damage::DamageRule,
+    /// The zones layer's CRS as EPSG:NNNN (default WGS84 lon/lat).
+    pub zones_crs: Option<String>,
 }
 
 impl PlanJob {
@@ -63,6 +69,9 @@ impl PlanJob {
             whole_network: false,
             mst: MstAlgorithm::Kruskal,
             effort: Effort::Normal,
+            zones: None,
+            zone_damage: Default::default(),
+            zones_crs: None,
         }
     }
 }
@@ -142,10 +151,20 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     };
     let mut inputs: Vec<_> = layer.input.clone().into_iter().collect();
 
+    let mut zone_figures = (0usize, 0usize);
     let (mut net, noding) = {
         let _s = progress.stage("noding");
         ingest::build_network(layer, &job.road_settings, false)?
     };
+    if let Some(src) = &job.zones {
+        let _s = progress.stage("applying damage zones");
+        let zl = crate::ingest::zones::read_zones(src, &job.zone_damage, job.zones_crs.as_deref())?;
+        zone_figures = (
+            zl.zones.len(),
+            crate::ingest::zones::apply_zones(&mut net, &zl),
+        );
+        inputs.push(zl.input);
+    }
     let attachments = match &site_layer {
         Some(sl) => {
             let _s = progress.stage("attaching sites");
@@ -188,7 +207,13 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         }
     });
     let rows = sites.as_ref().map(site_rows);
-    let summary = summary::build(
+    // Inputs are recorded in the order roads, damage zones, sites.
+    inputs.sort_by_key(|i| match i.role.as_str() {
+        "roads" => 0,
+        "damage zones" => 1,
+        _ => 2,
+    });
+    let mut summary = summary::build(
         job,
         inputs,
         geodesy,
@@ -199,6 +224,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         &plan,
         sites.as_ref(),
     );
+    summary.counts.damage_zones = zone_figures.0;
+    summary.counts.edges_in_zones = zone_figures.1;
     {
         let _s = progress.stage("writing outputs");
         export::write_outputs(
@@ -239,6 +266,8 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "lat_column": ss.lat_column,
         "crs": s.crs,
         "node_crossings": s.node_crossings,
+        "zone_damage_field": job.zone_damage.field,
+        "zones_crs": job.zones_crs,
         "category_field": s.category_field,
         "cost_table": {
             "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
