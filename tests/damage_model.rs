@@ -247,3 +247,54 @@ fn invalid_zones_are_refused() {
         assert!(!out.exists());
     }
 }
+
+#[test]
+fn field_reports_apply_to_the_nearest_road_and_unmatched_are_listed() {
+    let d = tmp();
+    let r = write_collection(
+        d.path(),
+        "r.geojson",
+        &[
+            line(&[[0.0, 0.0], [100.0 * M, 0.0]], r#"{"damage":0}"#),
+            line(&[[100.0 * M, 0.0], [200.0 * M, 0.0]], r#"{"damage":0}"#),
+        ],
+    );
+    let pt = |x: f64, y: f64, props: &str| {
+        format!(
+            r#"{{"type":"Feature","properties":{props},"geometry":{{"type":"Point","coordinates":[{},{}]}}}}"#,
+            x * M,
+            y * M
+        )
+    };
+    let reports = write_collection(
+        d.path(),
+        "reports.geojson",
+        &[
+            pt(50.0, 10.0, r#"{"damage":0.7}"#),
+            pt(50.0, -5.0, r#"{"damage":0.2}"#),
+            pt(150.0, 900.0, r#"{"damage":1}"#),
+        ],
+    );
+    let out = d.path().join("o");
+    let o = run(&[
+        "plan",
+        "--roads",
+        r.to_str().unwrap(),
+        "--damage-points",
+        reports.to_str().unwrap(),
+        "--whole-network",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    // The worst report on the first road wins: 100 m × 0.7 = 70 repair-metres.
+    assert!(
+        (s["total_cost"].as_f64().unwrap() - 70.0).abs() < 0.1,
+        "{}",
+        s["total_cost"]
+    );
+    assert_eq!(s["damage_reports"]["applied"], 2);
+    assert_eq!(s["damage_reports"]["unmatched"][0][0], 2);
+}

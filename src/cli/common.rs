@@ -81,6 +81,15 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub zones_crs: Option<String>,
 
+    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in --zone-damage-field,
+    /// each applied to the nearest road within --report-distance (the worst report wins).
+    #[arg(long, value_name = "FILE")]
+    pub damage_points: Option<std::path::PathBuf>,
+
+    /// Largest distance in metres from a damage report to its road; farther reports are listed.
+    #[arg(long, value_name = "METRES", default_value_t = 50.0)]
+    pub report_distance: f64,
+
     /// Join lines where they cross without a shared vertex (for data digitised without junction
     /// vertices). Off by default: such crossings are usually overpasses.
     #[arg(long)]
@@ -140,6 +149,11 @@ impl NetworkArgs {
             closed_value: self.closed_value.clone(),
         };
         job.zones_crs = self.zones_crs.clone();
+        job.reports = self
+            .damage_points
+            .clone()
+            .map(reknit::ingest::source::Source::File);
+        job.report_distance_m = self.report_distance;
     }
 
     pub fn mst(&self) -> MstAlgorithm {

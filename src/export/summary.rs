@@ -169,6 +169,8 @@ pub struct Summary {
     pub counts: Counts,
     /// Plan description.
     pub plan: PlanFigures,
+    /// Field damage reports: read, applied, and the ones with no road near enough.
+    pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
     /// Figures about the critical sites (null for a whole-network plan without sites).
     pub sites: Option<SitesFigures>,
     /// Total repair cost of the plan, repair-metres.

@@ -15,6 +15,7 @@ pub mod geojson;
 pub mod noding;
 pub mod qa;
 pub mod repair;
+pub mod reports;
 pub mod roads;
 pub mod scan;
 pub mod shapefile;

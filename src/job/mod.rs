@@ -52,6 +52,10 @@ pub struct PlanJob {
     pub zone_damage: crate::ingest::damage::DamageRule,
     /// The zones layer's CRS as EPSG:NNNN (default WGS84 lon/lat).
     pub zones_crs: Option<String>,
+    /// Field damage reports (points), each applied to the nearest road.
+    pub reports: Option<Source>,
+    /// Largest distance from a report to its road, metres.
+    pub report_distance_m: f64,
 }
 
 impl PlanJob {
@@ -72,6 +76,8 @@ impl PlanJob {
             zones: None,
             zone_damage: Default::default(),
             zones_crs: None,
+            reports: None,
+            report_distance_m: 50.0,
         }
     }
 }
@@ -120,6 +126,18 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         .into());
     }
 
+    if !(job.report_distance_m.is_finite()
+        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
+    {
+        return Err(IngestError::Setting {
+            name: "--report-distance",
+            message: format!(
+                "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
+                job.report_distance_m
+            ),
+        }
+        .into());
+    }
     let layer = {
         let _s = progress.stage("reading roads");
         ingest::roads::read_roads(&job.roads, &job.road_settings)?
@@ -164,6 +182,17 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             crate::ingest::zones::apply_zones(&mut net, &zl),
         );
         inputs.push(zl.input);
+    }
+    let mut report_figures = None;
+    if let Some(src) = &job.reports {
+        let _s = progress.stage("applying damage reports");
+        let (reports, rec) = crate::ingest::reports::read_reports(src, &job.zone_damage)?;
+        report_figures = Some(crate::ingest::reports::apply_reports(
+            &mut net,
+            &reports,
+            job.report_distance_m,
+        ));
+        inputs.push(rec);
     }
     let attachments = match &site_layer {
         Some(sl) => {
@@ -211,7 +240,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     inputs.sort_by_key(|i| match i.role.as_str() {
         "roads" => 0,
         "damage zones" => 1,
-        _ => 2,
+        "damage reports" => 2,
+        _ => 3,
     });
     let mut summary = summary::build(
         job,
@@ -226,6 +256,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     );
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
+    summary.damage_reports = report_figures;
     {
         let _s = progress.stage("writing outputs");
         export::write_outputs(
@@ -268,6 +299,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "node_crossings": s.node_crossings,
         "zone_damage_field": job.zone_damage.field,
         "zones_crs": job.zones_crs,
+        "report_distance_m": job.report_distance_m,
         "category_field": s.category_field,
         "cost_table": {
             "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {

@@ -80,6 +80,7 @@ pub fn build(
             repair_edges: repair.len(),
             bound_complete: plan.bound_complete,
         },
+        damage_reports: None,
         sites: sites.map(sites_figures),
         total_cost: cost_to_repair_metres(plan.total_cost),
         lower_bound: cost_to_repair_metres(plan.lower_bound),

@@ -1,0 +1,194 @@
+//! Field damage reports: points with a factor (or "closed"), each applied to the nearest road within
+//! a distance. The worst report on a road wins; reports that find no road are listed.
+
+use super::IngestError;
+use super::damage::{Damage, DamageRule};
+use super::geojson::{ReadFailure, read_collection};
+use super::source::{HashingReader, InputRecord, Source};
+use crate::network::{Network, cost_of};
+use rstar::primitives::{GeomWithData, Line};
+use rstar::{AABB, RTree};
+
+/// One field report.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Report {
+    /// 0-based position in the input.
+    pub index: usize,
+    /// Position, lon/lat.
+    pub pos: [f64; 2],
+    /// Reported damage.
+    pub damage: Damage,
+}
+
+/// What applying the reports did.
+#[derive(Debug, Clone, Default, serde::Serialize)]
+pub struct ReportFigures {
+    /// Reports read.
+    pub read: usize,
+    /// Reports applied to a road.
+    pub applied: usize,
+    /// Reports with no road within the distance: (feature index, distance to the nearest road, m).
+    pub unmatched: Vec<(usize, Option<f64>)>,
+}
+
+/// Reads point reports from GeoJSON (lon/lat).
+pub fn read_reports(
+    source: &Source,
+    rule: &DamageRule,
+) -> Result<(Vec<Report>, InputRecord), IngestError> {
+    let path = source.display_path();
+    let mut reader = source.open()?;
+    let mut out = Vec::new();
+    read_collection(
+        &mut reader,
+        std::slice::from_ref(&rule.field),
+        |index, f| {
+            let fail = |field: &str, message: String| IngestError::Feature {
+                path: path.clone(),
+                feature: index,
+                field: Some(field.into()),
+                message,
+            };
+            if f.geometry_type.as_deref() != Some("Point") || f.coords.height != 1 {
+                return Err(fail("geometry", "damage reports must be Points".into()));
+            }
+            let p = f.coords.pos[0];
+            if !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0) {
+                return Err(fail(
+                    "geometry",
+                    format!("({}, {}) is not a longitude/latitude", p[0], p[1]),
+                ));
+            }
+            let damage = rule
+                .interpret(f.prop(&rule.field))
+                .map_err(|m| fail(&rule.field, m))?;
+            out.push(Report {
+                index,
+                pos: p,
+                damage,
+            });
+            Ok(())
+        },
+    )
+    .map_err(|e| match e {
+        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
+            path: path.clone(),
+            feature,
+            message,
+        },
+        ReadFailure::NotCollection(message) => IngestError::NotCollection {
+            path: path.clone(),
+            message,
+        },
+        ReadFailure::Io(source) => IngestError::Io {
+            path: path.clone(),
+            source,
+        },
+        ReadFailure::Callback(e) => e,
+    })?;
+    let (sha256, bytes) =
+        HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
+            path: path.clone(),
+            source,
+        })?;
+    let rec = InputRecord {
+        role: "damage reports".into(),
+        path: path.display().to_string(),
+        bytes,
+        sha256,
+    };
+    Ok((out, rec))
+}
+
+/// Applies each report to the nearest road within `max_m` metres.
+pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> ReportFigures {
+    let mut fig = ReportFigures {
+        read: reports.len(),
+        ..Default::default()
+    };
+    if reports.is_empty() {
+        return fig;
+    }
+    // Only segments near some report go into the tree.
+    let (my, _) = super::geodesy::metres_per_degree(0.0);
+    let pad_lat = max_m / my;
+    let max_lat = reports
+        .iter()
+        .fold(0.0f64, |m, r| m.max(r.pos[1].abs()))
+        .min(89.0)
+        + pad_lat;
+    let (_, mx) = super::geodesy::metres_per_degree(max_lat.min(89.9));
+    let pad_lon = max_m / mx;
+    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+    for r in reports {
+        lo = [lo[0].min(r.pos[0] - pad_lon), lo[1].min(r.pos[1] - pad_lat)];
+        hi = [hi[0].max(r.pos[0] + pad_lon), hi[1].max(r.pos[1] + pad_lat)];
+    }
+    let mut segs = Vec::new();
+    for e in 0..net.edges.len() {
+        let g = net.edge_geometry(e);
+        for k in 0..g.len() - 1 {
+            let (a, b) = (g[k], g[k + 1]);
+            if a[0].max(b[0]) >= lo[0]
+                && a[0].min(b[0]) <= hi[0]
+                && a[1].max(b[1]) >= lo[1]
+                && a[1].min(b[1]) <= hi[1]
+            {
+                segs.push(GeomWithData::new(Line::new(a, b), e as u32));
+            }
+        }
+    }
+    let tree = RTree::bulk_load(segs);
+    let mut worst: std::collections::BTreeMap<u32, Damage> = Default::default();
+    for r in reports {
+        let p = r.pos;
+        let (pmy, pmx) = super::geodesy::metres_per_degree(p[1]);
+        let env = AABB::from_corners(
+            [p[0] - max_m / pmx, p[1] - max_m / pmy],
+            [p[0] + max_m / pmx, p[1] + max_m / pmy],
+        );
+        let mut best: Option<(f64, u32)> = None;
+        for s in tree.locate_in_envelope_intersecting(&env) {
+            let d = foot_distance(p, s.geom().from, s.geom().to, pmy, pmx);
+            if d <= max_m && best.is_none_or(|(bd, be)| (d, s.data) < (bd, be)) {
+                best = Some((d, s.data));
+            }
+        }
+        match best {
+            Some((_, e)) => {
+                fig.applied += 1;
+                let w = worst.entry(e).or_insert(r.damage);
+                let rank = |d: Damage| d.factor().unwrap_or(f64::INFINITY);
+                if rank(r.damage) > rank(*w) {
+                    *w = r.damage;
+                }
+            }
+            None => {
+                let near = tree
+                    .nearest_neighbor(&p)
+                    .map(|s| foot_distance(p, s.geom().from, s.geom().to, pmy, pmx));
+                fig.unmatched
+                    .push((r.index, near.map(|d| (d * 1000.0).round() / 1000.0)));
+            }
+        }
+    }
+    for (e, d) in worst {
+        let edge = &mut net.edges[e as usize];
+        edge.damage = d;
+        edge.cost = cost_of(edge.length_m, d);
+    }
+    fig
+}
+
+fn foot_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2], my: f64, mx: f64) -> f64 {
+    let (ax, ay) = ((a[0] - p[0]) * mx, (a[1] - p[1]) * my);
+    let (bx, by) = ((b[0] - p[0]) * mx, (b[1] - p[1]) * my);
+    let (dx, dy) = (bx - ax, by - ay);
+    let l2 = dx * dx + dy * dy;
+    let t = if l2 > 0.0 {
+        (-(ax * dx + ay * dy) / l2).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    (ax + t * dx).hypot(ay + t * dy)
+}
