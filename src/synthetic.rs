@@ -136,3 +136,30 @@ pub fn grid_layer_sites(features: usize, count: usize, seed: u64) -> Vec<[f64; 2
         })
         .collect()
 }
+
+/// Writes `count` square damage zones (100–800 m across, factor 0.2–1.0, one in twenty closed)
+/// scattered over the area of the layer [`write_grid_layer`] makes for `features`.
+pub fn write_grid_zones<W: std::io::Write>(w: W, count: usize, features: usize, seed: u64) -> std::io::Result<()> {
+    use crate::export::geojson::{GeoJsonWriter, Prop};
+    let side = (((features as f64) * 1.06).sqrt().ceil() as usize + 2).max(3);
+    let rows = (features / (side / 2).max(1)).clamp(1, side) as f64;
+    let mut rng = Rng::new(seed ^ 0x2011E5);
+    let (lon0, lat0) = (10.0, 45.0);
+    let (my, mx) = crate::ingest::geodesy::metres_per_degree(lat0);
+    let mut gj = GeoJsonWriter::new(w)?;
+    for _ in 0..count {
+        let x = rng.unit() * side as f64 * 100.0;
+        let y = rng.unit() * rows * 100.0;
+        let s = 100.0 + rng.unit() * 700.0;
+        let p = |dx: f64, dy: f64| [lon0 + (x + dx) / mx, lat0 + (y + dy) / my];
+        let ring = [p(0.0, 0.0), p(s, 0.0), p(s, s), p(0.0, s), p(0.0, 0.0)];
+        let damage = if rng.unit() < 0.05 {
+            Prop::Str("closed")
+        } else {
+            Prop::Num((0.2 + rng.unit() * 0.8 * 100.0).round() / 100.0)
+        };
+        gj.polygon(&[("damage", damage)], &[&ring])?;
+    }
+    gj.finish()?;
+    Ok(())
+}

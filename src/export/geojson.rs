@@ -67,6 +67,27 @@ impl<W: Write> GeoJsonWriter<W> {
         self.flush_feature()
     }
 
+    /// Writes a Polygon feature (outer ring first).
+    pub fn polygon(&mut self, props: &[(&str, Prop)], rings: &[&[[f64; 2]]]) -> io::Result<()> {
+        self.start(props);
+        self.buf.push_str("\"geometry\":{\"type\":\"Polygon\",\"coordinates\":[");
+        for (r, ring) in rings.iter().enumerate() {
+            if r > 0 {
+                self.buf.push(',');
+            }
+            self.buf.push('[');
+            for (i, c) in ring.iter().enumerate() {
+                if i > 0 {
+                    self.buf.push(',');
+                }
+                push_position(&mut self.buf, *c);
+            }
+            self.buf.push(']');
+        }
+        self.buf.push_str("]}}");
+        self.flush_feature()
+    }
+
     /// Closes the collection and returns the inner writer.
     pub fn finish(mut self) -> io::Result<W> {
         self.w.write_all(b"\n]}\n")?;
