@@ -139,7 +139,12 @@ pub fn grid_layer_sites(features: usize, count: usize, seed: u64) -> Vec<[f64; 2
 
 /// Writes `count` square damage zones (100–800 m across, factor 0.2–1.0, one in twenty closed)
 /// scattered over the area of the layer [`write_grid_layer`] makes for `features`.
-pub fn write_grid_zones<W: std::io::Write>(w: W, count: usize, features: usize, seed: u64) -> std::io::Result<()> {
+pub fn write_grid_zones<W: std::io::Write>(
+    w: W,
+    count: usize,
+    features: usize,
+    seed: u64,
+) -> std::io::Result<()> {
     use crate::export::geojson::{GeoJsonWriter, Prop};
     let side = (((features as f64) * 1.06).sqrt().ceil() as usize + 2).max(3);
     let rows = (features / (side / 2).max(1)).clamp(1, side) as f64;

@@ -242,3 +242,66 @@ fn broken_shapefile_sets_are_clear_errors() {
     );
     assert!(!out.exists());
 }
+
+#[test]
+fn shapefile_damage_zones_in_state_plane_feet() {
+    // A polygon Shapefile written here in the streets' own CRS (copied .prj): a square over the
+    // western half of the GeoDaNet streets with damage 0.5; roads themselves intact.
+    let Some(shp) = shared(STREETS) else { return };
+    let layer = read_roads(&Source::File(shp.clone()), &RoadSettings::default()).unwrap();
+    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+    for p in &layer.native {
+        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+    }
+    let mid = (lo[0] + hi[0]) / 2.0;
+    let d = tmp();
+    let zones = d.path().join("flood.shp");
+    let table = shapefile::dbase::TableWriterBuilder::new().add_numeric_field(
+        shapefile::dbase::FieldName::try_from("damage").unwrap(),
+        10,
+        3,
+    );
+    let mut w = shapefile::Writer::from_path(&zones, table).unwrap();
+    // Outer rings run clockwise in Shapefiles.
+    let ring = vec![
+        shapefile::Point::new(lo[0] - 10.0, lo[1] - 10.0),
+        shapefile::Point::new(lo[0] - 10.0, hi[1] + 10.0),
+        shapefile::Point::new(mid, hi[1] + 10.0),
+        shapefile::Point::new(mid, lo[1] - 10.0),
+        shapefile::Point::new(lo[0] - 10.0, lo[1] - 10.0),
+    ];
+    let poly = shapefile::Polygon::new(shapefile::PolygonRing::Outer(ring));
+    let mut rec = shapefile::dbase::Record::default();
+    rec.insert(
+        "damage".to_string(),
+        shapefile::dbase::FieldValue::Numeric(Some(0.5)),
+    );
+    w.write_shape_and_record(&poly, &rec).unwrap();
+    drop(w);
+    std::fs::copy(shp.with_extension("prj"), zones.with_extension("prj")).unwrap();
+    let out = d.path().join("out");
+    let o = run(&[
+        "plan",
+        "--roads",
+        shp.to_str().unwrap(),
+        "--damage-zones",
+        zones.to_str().unwrap(),
+        "--default-damage",
+        "0",
+        "--whole-network",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["counts"]["damage_zones"], 1);
+    let touched = s["counts"]["edges_in_zones"].as_u64().unwrap();
+    let edges = s["counts"]["edges"].as_u64().unwrap();
+    assert!(
+        touched > edges / 5 && touched < edges,
+        "{touched} of {edges}"
+    );
+    assert!(s["total_cost"].as_f64().unwrap() > 0.0);
+}

@@ -70,7 +70,8 @@ impl<W: Write> GeoJsonWriter<W> {
     /// Writes a Polygon feature (outer ring first).
     pub fn polygon(&mut self, props: &[(&str, Prop)], rings: &[&[[f64; 2]]]) -> io::Result<()> {
         self.start(props);
-        self.buf.push_str("\"geometry\":{\"type\":\"Polygon\",\"coordinates\":[");
+        self.buf
+            .push_str("\"geometry\":{\"type\":\"Polygon\",\"coordinates\":[");
         for (r, ring) in rings.iter().enumerate() {
             if r > 0 {
                 self.buf.push(',');

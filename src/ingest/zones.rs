@@ -40,6 +40,12 @@ pub fn read_zones(
     crs: Option<&str>,
 ) -> Result<ZoneLayer, IngestError> {
     let path = source.display_path();
+    if path
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("shp"))
+    {
+        return read_shapefile_zones(&path, rule, crs);
+    }
     let conv = match crs {
         Some(c) => Some(
             super::crs::Crs::from_user(c).map_err(|message| IngestError::Crs {
@@ -123,6 +129,160 @@ pub fn read_zones(
             path: path.clone(),
             source,
         })?;
+    Ok(ZoneLayer {
+        zones,
+        input: InputRecord {
+            role: "damage zones".into(),
+            path: path.display().to_string(),
+            bytes,
+            sha256,
+        },
+    })
+}
+
+/// Builds a validated zone from rings in lon/lat (outer first); errors name the feature.
+fn make_zone(
+    path: &std::path::Path,
+    index: usize,
+    rings: Vec<Vec<[f64; 2]>>,
+    damage: Damage,
+) -> Result<Option<Zone>, IngestError> {
+    let fail = |message: String| IngestError::Feature {
+        path: path.to_path_buf(),
+        feature: index,
+        field: Some("geometry".into()),
+        message,
+    };
+    let mut ls: Vec<LineString<f64>> = Vec::new();
+    for (r, ring) in rings.into_iter().enumerate() {
+        if ring.len() < 4 || ring.first() != ring.last() {
+            return Err(fail(format!(
+                "ring {r} is not closed (at least 4 positions, first = last)"
+            )));
+        }
+        ls.push(LineString::from(
+            ring.iter()
+                .map(|p| Coord { x: p[0], y: p[1] })
+                .collect::<Vec<_>>(),
+        ));
+    }
+    let mut it = ls.into_iter();
+    let Some(outer) = it.next() else {
+        return Ok(None);
+    };
+    let polygon = Polygon::new(outer, it.collect());
+    if let Err(e) = polygon.check_validation() {
+        return Err(fail(format!(
+            "the polygon is not valid ({e}); fix it before use"
+        )));
+    }
+    if geo::Area::unsigned_area(&polygon) <= 0.0 {
+        return Err(fail("the polygon has zero area".into()));
+    }
+    Ok(Some(Zone {
+        polygon,
+        damage,
+        feature: index,
+    }))
+}
+
+/// Zones from a polygon Shapefile, in the CRS of its `.prj` (or `crs`). Each outer ring (clockwise
+/// in Shapefiles) starts a polygon; the holes that follow belong to it.
+fn read_shapefile_zones(
+    path: &std::path::Path,
+    rule: &DamageRule,
+    crs: Option<&str>,
+) -> Result<ZoneLayer, IngestError> {
+    use shapefile::Shape;
+    let conv = super::shapefile::layer_crs(path, crs)?;
+    let mut reader = shapefile::Reader::from_path(path).map_err(|e| IngestError::Io {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(e.to_string()),
+    })?;
+    let mut zones = Vec::new();
+    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+        let fail = |field: &str, message: String| IngestError::Feature {
+            path: path.to_path_buf(),
+            feature: index,
+            field: Some(field.into()),
+            message,
+        };
+        let (shape, record) =
+            item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
+        let value = record.get(&rule.field).map(super::shapefile::field_json);
+        let damage = rule
+            .interpret(value.as_ref())
+            .map_err(|m| fail(&rule.field, m))?;
+        let rings: Vec<(bool, Vec<[f64; 2]>)> = match &shape {
+            Shape::Polygon(p) => p
+                .rings()
+                .iter()
+                .map(|r| {
+                    (
+                        matches!(r, shapefile::PolygonRing::Outer(_)),
+                        r.points().iter().map(|q| [q.x, q.y]).collect(),
+                    )
+                })
+                .collect(),
+            Shape::PolygonZ(p) => p
+                .rings()
+                .iter()
+                .map(|r| {
+                    (
+                        matches!(r, shapefile::PolygonRing::Outer(_)),
+                        r.points().iter().map(|q| [q.x, q.y]).collect(),
+                    )
+                })
+                .collect(),
+            Shape::PolygonM(p) => p
+                .rings()
+                .iter()
+                .map(|r| {
+                    (
+                        matches!(r, shapefile::PolygonRing::Outer(_)),
+                        r.points().iter().map(|q| [q.x, q.y]).collect(),
+                    )
+                })
+                .collect(),
+            Shape::NullShape => continue,
+            other => {
+                return Err(fail(
+                    "geometry",
+                    format!("damage zones must be Polygons, found {}", other.shapetype()),
+                ));
+            }
+        };
+        let mut current: Vec<Vec<[f64; 2]>> = Vec::new();
+        for (outer, ring) in rings {
+            let mut ll = Vec::with_capacity(ring.len());
+            for p in ring {
+                ll.push(conv.to_lonlat(p).ok_or_else(|| {
+                    fail(
+                        "geometry",
+                        format!(
+                            "({}, {}) cannot be converted from {}",
+                            p[0], p[1], conv.name
+                        ),
+                    )
+                })?);
+            }
+            if outer && !current.is_empty() {
+                zones.extend(make_zone(
+                    path,
+                    index,
+                    std::mem::take(&mut current),
+                    damage,
+                )?);
+            }
+            current.push(ll);
+        }
+        zones.extend(make_zone(path, index, current, damage)?);
+    }
+    let r = Source::File(path.to_path_buf()).open()?;
+    let (sha256, bytes) = HashingReader::finish_buffered(r).map_err(|source| IngestError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
     Ok(ZoneLayer {
         zones,
         input: InputRecord {
