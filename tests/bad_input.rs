@@ -281,3 +281,25 @@ fn skippable_oddities_are_counted_not_fatal() {
     assert_eq!(s["counts"]["features_skipped"]["not a line (Point)"], 1);
     assert_eq!(s["counts"]["features_skipped"]["null geometry"], 1);
 }
+
+#[test]
+fn named_field_missing_lists_the_fields() {
+    let d = tmp();
+    let f = r#"{"type":"Feature","properties":{"state":"debris","highway":"primary"},"geometry":{"type":"LineString","coordinates":[[0,0],[0.001,0]]}}"#;
+    let p = file(d.path(), "fields.geojson", &fc(&[f]));
+    fails(
+        &p,
+        &["--damage-field", "dmg"],
+        &[
+            "fields.geojson",
+            "\"dmg\"",
+            "no feature has this property",
+            "state, highway",
+        ],
+    );
+    fails(
+        &p,
+        &["--drop-where", "kind=path"],
+        &["\"kind\"", "state, highway"],
+    );
+}

@@ -28,6 +28,8 @@ pub struct RawFeature {
     pub props: Vec<(String, Value)>,
     /// Whether the feature had a `properties` object at all.
     pub has_properties: bool,
+    /// Every property name, collected for the first feature only (for messages about field names).
+    pub keys: Vec<String>,
 }
 
 impl RawFeature {
@@ -209,10 +211,13 @@ where
             });
         };
         let mut de = serde_json::Deserializer::from_slice(text);
-        let feature = FeatureSeed { wanted }
-            .deserialize(&mut de)
-            .and_then(|f| de.end().map(|_| f))
-            .map_err(|e| syntax(&e, pos, Some(index)))?;
+        let feature = FeatureSeed {
+            wanted,
+            collect_keys: index == 0,
+        }
+        .deserialize(&mut de)
+        .and_then(|f| de.end().map(|_| f))
+        .map_err(|e| syntax(&e, pos, Some(index)))?;
         sink(index, feature).map_err(ReadFailure::Callback)?;
         index += 1;
         match sc.peek().map_err(io)? {
@@ -277,6 +282,7 @@ fn json_kind(v: &Value) -> &'static str {
 
 struct FeatureSeed<'a> {
     wanted: &'a [String],
+    collect_keys: bool,
 }
 
 impl<'de> DeserializeSeed<'de> for FeatureSeed<'_> {
@@ -306,6 +312,7 @@ impl<'de> Visitor<'de> for FeatureSeed<'_> {
                     f.has_properties = map.next_value_seed(PropsSeed {
                         wanted: self.wanted,
                         out: &mut f.props,
+                        keys: self.collect_keys.then_some(&mut f.keys),
                     })?
                 }
                 "id" => f.id = Some(map.next_value()?),
@@ -370,6 +377,7 @@ impl<'de> Visitor<'de> for GeometrySeed<'_> {
 struct PropsSeed<'a> {
     wanted: &'a [String],
     out: &'a mut Vec<(String, Value)>,
+    keys: Option<&'a mut Vec<String>>,
 }
 
 impl<'de> DeserializeSeed<'de> for PropsSeed<'_> {
@@ -393,8 +401,11 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
     fn visit_some<D: de::Deserializer<'de>>(self, d: D) -> Result<bool, D::Error> {
         d.deserialize_map(self)
     }
-    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<bool, A::Error> {
+    fn visit_map<A: MapAccess<'de>>(mut self, mut map: A) -> Result<bool, A::Error> {
         while let Some(key) = map.next_key::<String>()? {
+            if let Some(k) = self.keys.as_mut() {
+                k.push(key.clone());
+            }
             if self.wanted.contains(&key)
                 || self.wanted.first().is_some_and(|w| w == ALL_PROPERTIES)
             {

@@ -163,7 +163,17 @@ pub fn read_geojson_roads(
     let mut reader = source.open()?;
     let wanted = settings.wanted_fields();
     let mut layer = LineLayer::default();
-    let info = read_collection(&mut reader, &wanted, |index, f| {
+    let mut first_keys: Vec<String> = Vec::new();
+    let mut seen: std::collections::BTreeSet<String> = Default::default();
+    let info = read_collection(&mut reader, &wanted, |index, mut f| {
+        if index == 0 {
+            first_keys = std::mem::take(&mut f.keys);
+        }
+        for (k, _) in &f.props {
+            if !seen.contains(k) {
+                seen.insert(k.clone());
+            }
+        }
         add_feature(&mut layer, &path, settings, index, f)
     })
     .map_err(|e| match e {
@@ -204,8 +214,43 @@ pub fn read_geojson_roads(
         sha256,
     });
     check_empty(&layer, &path, info.features)?;
+    check_fields(&path, settings, &seen, &first_keys)?;
     finish_coordinates(&mut layer, &path, &crs)?;
     Ok(layer)
+}
+
+/// Fails when a field the user named explicitly appears in no feature, listing the fields the first
+/// feature has.
+fn check_fields(
+    path: &Path,
+    settings: &RoadSettings,
+    seen: &std::collections::BTreeSet<String>,
+    first_keys: &[String],
+) -> Result<(), IngestError> {
+    let mut named: Vec<&String> = Vec::new();
+    if settings.damage.field != "damage" && settings.category_field.is_none() {
+        named.push(&settings.damage.field);
+    }
+    named.extend(settings.id_field.iter());
+    named.extend(settings.category_field.iter());
+    named.extend(settings.cost_table.class_field.iter());
+    named.extend(settings.filters.iter().map(|f| &f.field));
+    match named.into_iter().find(|n| !seen.contains(*n)) {
+        Some(missing) => Err(IngestError::Feature {
+            path: path.to_path_buf(),
+            feature: 0,
+            field: Some(missing.clone()),
+            message: format!(
+                "no feature has this property; the first feature's properties are: {}",
+                if first_keys.is_empty() {
+                    "(none)".to_string()
+                } else {
+                    first_keys.join(", ")
+                }
+            ),
+        }),
+        None => Ok(()),
+    }
 }
 
 /// Fails when a layer holds no lines, saying what it held instead.
