@@ -35,6 +35,8 @@ pub struct FeatureMeta {
     pub damage: Damage,
     /// The damage category, when damage comes from a category field.
     pub category: Option<String>,
+    /// Road name and reference number (`name (ref)`), when the input has them.
+    pub label: Option<String>,
 }
 
 /// One road piece between two junctions.

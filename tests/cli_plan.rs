@@ -18,7 +18,8 @@ fn demo_joins_the_sites_and_reports_them() {
             "plan.geojson",
             "qa.geojson",
             "sites.geojson",
-            "summary.json"
+            "summary.json",
+            "work-orders.csv"
         ],
         "no staging folder may remain"
     );
@@ -63,7 +64,8 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
             "network.geojson",
             "plan.geojson",
             "qa.geojson",
-            "summary.json"
+            "summary.json",
+            "work-orders.csv"
         ],
         "no staging folder may remain"
     );
@@ -184,7 +186,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 5);
+    assert_eq!(listing(&out).len(), 6);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -213,7 +215,8 @@ fn existing_outputs_need_force() {
             "network.geojson",
             "plan.geojson",
             "qa.geojson",
-            "summary.json"
+            "summary.json",
+            "work-orders.csv"
         ]
     );
 }

@@ -20,6 +20,7 @@ fn layer(lines: &[Vec<[f64; 2]>]) -> LineLayer {
             source_id: None,
             damage: Damage::Factor(1.0),
             category: None,
+            label: None,
         });
     }
     l

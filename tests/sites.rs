@@ -26,6 +26,7 @@ fn network(lines: &[(Vec<[f64; 2]>, Damage)]) -> Network {
             source_id: None,
             damage: *damage,
             category: None,
+            label: None,
         });
     }
     node(l, 0.0).0

@@ -90,6 +90,10 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "METRES", default_value_t = 50.0)]
     pub report_distance: f64,
 
+    /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
+    #[arg(long, value_name = "REPAIR_METRES")]
+    pub crew_capacity: Option<f64>,
+
     /// Join lines where they cross without a shared vertex (for data digitised without junction
     /// vertices). Off by default: such crossings are usually overpasses.
     #[arg(long)]
@@ -154,6 +158,7 @@ impl NetworkArgs {
             .clone()
             .map(reknit::ingest::source::Source::File);
         job.report_distance_m = self.report_distance;
+        job.crew_capacity = self.crew_capacity;
     }
 
     pub fn mst(&self) -> MstAlgorithm {

@@ -7,6 +7,7 @@ pub mod geojson;
 pub mod sites;
 pub mod staging;
 pub mod summary;
+pub mod work_orders;
 
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::Plan;
@@ -51,6 +52,10 @@ pub struct Outputs<'a> {
     pub sites: Option<&'a [sites::SiteRow]>,
     /// QA points.
     pub qa: &'a [crate::ingest::qa::QaPoint],
+    /// The plan's repairs in order, with their phases.
+    pub steps: &'a [crate::solve::order::Step],
+    /// Site ids by site index (empty without sites).
+    pub site_ids: &'a [String],
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -60,14 +65,26 @@ pub struct Outputs<'a> {
 pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
     st.write("qa.geojson", |w| write_qa(w, o.qa))?;
+    st.write("work-orders.csv", |w| {
+        work_orders::write_work_orders(w, o.net, o.steps, o.site_ids)
+    })?;
+    let order_of: std::collections::HashMap<u32, (u32, u32)> = o
+        .steps
+        .iter()
+        .map(|s| (s.edge, (s.order, s.phase)))
+        .collect();
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
     }
     let (a, b) = rayon::join(
-        || st.write("network.geojson", |w| write_edges(w, o.net, o.comps, None)),
+        || {
+            st.write("network.geojson", |w| {
+                write_edges(w, o.net, o.comps, None, None)
+            })
+        },
         || {
             st.write("plan.geojson", |w| {
-                write_edges(w, o.net, o.comps, Some(&o.plan.edges))
+                write_edges(w, o.net, o.comps, Some(&o.plan.edges), Some(&order_of))
             })
         },
     );
@@ -86,6 +103,7 @@ fn write_edges<W: std::io::Write>(
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
+    order_of: Option<&std::collections::HashMap<u32, (u32, u32)>>,
 ) -> std::io::Result<()> {
     let mut gj = GeoJsonWriter::new(w)?;
     let all: Vec<u32>;
@@ -129,6 +147,18 @@ fn write_edges<W: std::io::Write>(
                 meta.category.as_deref().map_or(Prop::Null, Prop::Str),
             ),
             ("repair", Prop::Bool(edge.cost > 0)),
+            (
+                "order",
+                order_of
+                    .and_then(|m| m.get(&e))
+                    .map_or(Prop::Null, |o| Prop::Int(o.0 as i64)),
+            ),
+            (
+                "phase",
+                order_of
+                    .and_then(|m| m.get(&e))
+                    .map_or(Prop::Null, |o| Prop::Int(o.1 as i64)),
+            ),
         ];
         let props = if only.is_some() {
             &props[..]
@@ -167,5 +197,5 @@ pub fn write_network<W: std::io::Write>(
     net: &Network,
     comps: &Components,
 ) -> std::io::Result<()> {
-    write_edges(w, net, comps, None)
+    write_edges(w, net, comps, None, None)
 }

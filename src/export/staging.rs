@@ -15,6 +15,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "plan.geojson",
     "sites.geojson",
     "qa.geojson",
+    "work-orders.csv",
     "summary.json",
 ];
 

@@ -152,6 +152,23 @@ pub struct SitesFigures {
     pub note: Option<String>,
 }
 
+/// One day-phase of the repair order.
+#[derive(Debug, Clone, Serialize)]
+pub struct PhaseFigures {
+    /// Phase number (1-based).
+    pub phase: u32,
+    /// Repairs in the phase.
+    pub repairs: usize,
+    /// Their cost, repair-metres.
+    pub cost: f64,
+    /// True when the phase is a single repair larger than the crew capacity.
+    pub over_capacity: bool,
+    /// Sites joined to their group's root (the hub first) in this phase.
+    pub sites_connected: Vec<String>,
+    /// Share of all sites connected by the end of the phase (null for whole-network plans).
+    pub cumulative_share_of_sites: Option<f64>,
+}
+
 /// The whole `summary.json`.
 #[derive(Debug, Clone, Serialize)]
 pub struct Summary {
@@ -171,6 +188,8 @@ pub struct Summary {
     pub plan: PlanFigures,
     /// Field damage reports: read, applied, and the ones with no road near enough.
     pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
+    /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
+    pub phases: Vec<PhaseFigures>,
     /// Figures about the critical sites (null for a whole-network plan without sites).
     pub sites: Option<SitesFigures>,
     /// Total repair cost of the plan, repair-metres.

@@ -15,6 +15,9 @@ pub const ID_FIELDS: &[&str] = &[
     "id", "ID", "Id", "osm_id", "fid", "FID", "objectid", "OBJECTID", "ObjectID", "gid", "GID",
 ];
 
+/// Property names read for a road's name and reference number (work orders show them).
+pub const LABEL_FIELDS: &[&str] = &["name", "NAME", "Name", "ref", "REF", "Ref"];
+
 /// How road features are read and noded.
 #[derive(Debug, Clone)]
 pub struct RoadSettings {
@@ -47,6 +50,7 @@ impl RoadSettings {
         w.extend(self.category_field.clone());
         w.extend(self.cost_table.class_field.clone());
         w.extend(self.filters.iter().map(|f| f.field.clone()));
+        w.extend(LABEL_FIELDS.iter().map(|s| s.to_string()));
         w
     }
 }
@@ -475,11 +479,23 @@ pub(super) fn add_feature(
     }
     let source_id = feature_id(&f, settings);
     let fi = layer.features.len() as u32;
+    let find = |keys: &[&str]| {
+        keys.iter()
+            .find_map(|k| f.prop(k).and_then(text))
+            .filter(|s| !s.is_empty())
+    };
+    let label = match (find(&LABEL_FIELDS[..3]), find(&LABEL_FIELDS[3..])) {
+        (Some(n), Some(r)) => Some(format!("{n} ({r})")),
+        (Some(n), None) => Some(n),
+        (None, Some(r)) => Some(r),
+        (None, None) => None,
+    };
     layer.features.push(FeatureMeta {
         source_index: index as u32,
         source_id,
         damage,
         category,
+        label,
     });
     for part in c.part_slices() {
         layer.coords.extend_from_slice(part);

@@ -56,6 +56,8 @@ pub struct PlanJob {
     pub reports: Option<Source>,
     /// Largest distance from a report to its road, metres.
     pub report_distance_m: f64,
+    /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
+    pub crew_capacity: Option<f64>,
 }
 
 impl PlanJob {
@@ -78,6 +80,7 @@ impl PlanJob {
             zones_crs: None,
             reports: None,
             report_distance_m: 50.0,
+            crew_capacity: None,
         }
     }
 }
@@ -126,6 +129,15 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         .into());
     }
 
+    if let Some(c) = job.crew_capacity
+        && !(c.is_finite() && c > 0.0)
+    {
+        return Err(IngestError::Setting {
+            name: "--crew-capacity",
+            message: format!("{c} repair-metres per day is not a positive number"),
+        }
+        .into());
+    }
     if !(job.report_distance_m.is_finite()
         && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
     {
@@ -226,6 +238,20 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             _ => (solve::minimum_spanning_forest(&graph, job.mst)?, None),
         }
     };
+    let steps = {
+        let _s = progress.stage("ordering repairs");
+        schedule(
+            job,
+            &graph,
+            &net,
+            &comps,
+            &plan,
+            site_layer.as_ref(),
+            &attachments,
+            hub,
+            site_plan.as_ref(),
+        )
+    };
     let sites = site_layer.map(|layer| {
         inputs.push(layer.input.clone());
         SitesResult {
@@ -254,6 +280,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         &plan,
         sites.as_ref(),
     );
+    summary.phases = summary::phases(&graph, &steps, sites.as_ref());
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
@@ -268,6 +295,17 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 plan: &plan,
                 sites: rows.as_deref(),
                 qa: &noding.qa_points,
+                steps: &steps,
+                site_ids: &sites
+                    .as_ref()
+                    .map(|r| {
+                        r.layer
+                            .sites
+                            .iter()
+                            .map(|s| s.id.clone())
+                            .collect::<Vec<_>>()
+                    })
+                    .unwrap_or_default(),
                 summary: &summary,
             },
         )?;
@@ -300,6 +338,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "zone_damage_field": job.zone_damage.field,
         "zones_crs": job.zones_crs,
         "report_distance_m": job.report_distance_m,
+        "crew_capacity": job.crew_capacity,
         "category_field": s.category_field,
         "cost_table": {
             "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
@@ -355,6 +394,74 @@ pub fn job_fingerprint(job: &PlanJob) -> Result<String, IngestError> {
         });
     }
     Ok(fingerprint(&inputs, &settings_json(job)))
+}
+
+/// Orders the plan's repairs (hub's group first) and groups them into day-phases.
+#[allow(clippy::too_many_arguments)]
+fn schedule(
+    job: &PlanJob,
+    graph: &crate::solve::graph::EdgeList,
+    net: &crate::network::Network,
+    comps: &crate::solve::components::Components,
+    plan: &Plan,
+    sites: Option<&SiteLayer>,
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    site_plan: Option<&SitePlan>,
+) -> Vec<crate::solve::order::Step> {
+    use crate::solve::order::{Target, assign_phases, order_for_targets, order_whole_network};
+    let mut steps = match (sites, site_plan) {
+        (Some(sl), Some(sp)) => {
+            let mut roots = Vec::new();
+            if let Some(j) = hub.and_then(|h| attachments[h].junction) {
+                roots.push(j);
+            }
+            for g in &sp.groups {
+                // Each other group grows from its highest-priority site (first on ties).
+                let best = g
+                    .sites
+                    .iter()
+                    .copied()
+                    .fold(None, |b: Option<usize>, i| match b {
+                        Some(k) if sl.sites[k].priority >= sl.sites[i].priority => Some(k),
+                        _ => Some(i),
+                    });
+                if let Some(j) = best.and_then(|i| attachments[i].junction) {
+                    roots.push(j);
+                }
+            }
+            let targets: Vec<Target> = sl
+                .sites
+                .iter()
+                .enumerate()
+                .filter_map(|(i, s)| {
+                    attachments[i].junction.map(|j| Target {
+                        junction: j,
+                        weight: s.priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
+                        id: i,
+                    })
+                })
+                .collect();
+            order_for_targets(graph, &plan.edges, &roots, &targets)
+        }
+        _ => {
+            let mut first = vec![u32::MAX; comps.count];
+            for &e in &plan.edges {
+                let v = graph.ends[e as usize][0];
+                let c = comps.of[v as usize] as usize;
+                first[c] = first[c].min(v);
+            }
+            let roots: Vec<u32> = first.into_iter().filter(|&v| v != u32::MAX).collect();
+            let lengths: Vec<f64> = net.edges.iter().map(|e| e.length_m).collect();
+            order_whole_network(graph, &plan.edges, &roots, &lengths)
+        }
+    };
+    assign_phases(
+        graph,
+        &mut steps,
+        job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
+    );
+    steps
 }
 
 /// The hub: the named site, or the one with the highest priority (first in the file on ties).

@@ -81,6 +81,7 @@ pub fn build(
             bound_complete: plan.bound_complete,
         },
         damage_reports: None,
+        phases: Vec::new(),
         sites: sites.map(sites_figures),
         total_cost: cost_to_repair_metres(plan.total_cost),
         lower_bound: cost_to_repair_metres(plan.lower_bound),
@@ -143,4 +144,51 @@ fn sites_figures(r: &SitesResult) -> SitesFigures {
         unconnected,
         note,
     }
+}
+
+/// Per phase: repairs, cost, sites newly joined to the hub's tree, cumulative share of sites.
+pub fn phases(
+    g: &crate::solve::graph::EdgeList,
+    steps: &[crate::solve::order::Step],
+    sites: Option<&SitesResult>,
+) -> Vec<PhaseFigures> {
+    let total_sites = sites.map_or(0, |s| s.layer.sites.len());
+    let mut out: Vec<PhaseFigures> = Vec::new();
+    // Sites joined before any repair (the roots, and sites reached over intact roads).
+    let completed: usize = steps.iter().map(|s| s.completes.len()).sum();
+    let mut cumulative = sites.map_or(0, |r| {
+        let group_of = group_index(r);
+        (0..r.layer.sites.len())
+            .filter(|&i| status(r, i, &group_of).0 == "connected")
+            .count()
+            .saturating_sub(completed)
+    });
+    for s in steps {
+        if out.last().is_none_or(|p| p.phase != s.phase) {
+            out.push(PhaseFigures {
+                phase: s.phase,
+                repairs: 0,
+                cost: 0.0,
+                over_capacity: false,
+                sites_connected: Vec::new(),
+                cumulative_share_of_sites: None,
+            });
+        }
+        let p = out.last_mut().expect("a phase was just pushed");
+        p.repairs += 1;
+        p.cost += g.cost[s.edge as usize] as f64 / 1000.0;
+        p.over_capacity |= s.over_capacity;
+        if let Some(sr) = sites {
+            for &i in &s.completes {
+                p.sites_connected.push(sr.layer.sites[i].id.clone());
+            }
+            cumulative += s.completes.len();
+            p.cumulative_share_of_sites =
+                Some(round3(cumulative as f64 / total_sites.max(1) as f64));
+        }
+    }
+    for p in &mut out {
+        p.cost = round3(p.cost);
+    }
+    out
 }

@@ -8,6 +8,7 @@ pub mod components;
 pub mod disjoint;
 pub mod graph;
 pub mod kruskal;
+pub mod order;
 pub mod prim;
 pub mod radix;
 pub mod site_plan;

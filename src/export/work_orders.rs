@@ -1,0 +1,76 @@
+//! `work-orders.csv`: one row per repair in order, for crews (RFC 4180 CSV, opens in any
+//! spreadsheet).
+
+use crate::network::{Network, cost_to_repair_metres};
+use crate::solve::order::Step;
+use std::io::Write;
+
+/// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends and
+/// the sites each repair completes.
+pub fn write_work_orders<W: Write>(
+    w: W,
+    net: &Network,
+    steps: &[Step],
+    site_ids: &[String],
+) -> std::io::Result<()> {
+    let mut c = csv::Writer::from_writer(w);
+    let io = |e: csv::Error| std::io::Error::other(e.to_string());
+    c.write_record([
+        "order",
+        "phase",
+        "edge",
+        "source_index",
+        "source_id",
+        "road",
+        "length_m",
+        "damage",
+        "category",
+        "cost",
+        "from_lon",
+        "from_lat",
+        "to_lon",
+        "to_lat",
+        "completes_sites",
+        "over_capacity",
+    ])
+    .map_err(io)?;
+    for s in steps {
+        let e = &net.edges[s.edge as usize];
+        let meta = &net.features[e.feature as usize];
+        let g = net.edge_geometry(s.edge as usize);
+        let (a, b) = (g[0], g[g.len() - 1]);
+        let f7 = |x: f64| super::geojson::trimmed(x, 7);
+        let id = match &meta.source_id {
+            Some(serde_json::Value::String(s)) => s.clone(),
+            Some(v) => v.to_string(),
+            None => String::new(),
+        };
+        let completes: Vec<&str> = s
+            .completes
+            .iter()
+            .filter_map(|&i| site_ids.get(i).map(String::as_str))
+            .collect();
+        c.write_record([
+            s.order.to_string(),
+            s.phase.to_string(),
+            s.edge.to_string(),
+            meta.source_index.to_string(),
+            id,
+            meta.label.clone().unwrap_or_default(),
+            super::geojson::fixed(e.length_m, 3),
+            e.damage
+                .factor()
+                .map_or("closed".to_string(), |f| super::geojson::trimmed(f, 6)),
+            meta.category.clone().unwrap_or_default(),
+            super::geojson::fixed(cost_to_repair_metres(e.cost), 3),
+            f7(a[0]),
+            f7(a[1]),
+            f7(b[0]),
+            f7(b[1]),
+            completes.join(";"),
+            s.over_capacity.to_string(),
+        ])
+        .map_err(io)?;
+    }
+    c.flush()
+}

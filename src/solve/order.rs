@@ -1,0 +1,306 @@
+//! Order of repairs: crews work over days, so the plan's repairs are ordered for the sites (or the
+//! road length) they bring back to the hub soonest, and grouped into day-phases by crew capacity.
+//!
+//! An edge helps only once its path back to the root (the hub) is complete, so repairs are always
+//! taken as whole paths from the connected part outward. Sites plans: repeatedly repair the path to
+//! the unconnected site with the most priority per repair-metre still needed (sites reached on the way
+//! count when their own path is complete). Whole-network plans: grow each tree from its root,
+//! cheapest repair per metre of road reconnected first (Prim-like, O(n log n)).
+
+use super::graph::EdgeList;
+use std::cmp::Reverse;
+use std::collections::BinaryHeap;
+
+/// One repair in order.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Step {
+    /// The edge repaired.
+    pub edge: u32,
+    /// 1-based position in the order.
+    pub order: u32,
+    /// 1-based day-phase.
+    pub phase: u32,
+    /// Targets (sites) joined to their root by this repair.
+    pub completes: Vec<usize>,
+    /// True when this single repair exceeds the crew capacity (it stands alone in its phase).
+    pub over_capacity: bool,
+}
+
+/// A thing to reconnect: its junction, its weight (priority), and the caller's index.
+#[derive(Debug, Clone, Copy)]
+pub struct Target {
+    /// Junction.
+    pub junction: u32,
+    /// Weight (site priority, or length reconnected).
+    pub weight: f64,
+    /// The caller's index (site index).
+    pub id: usize,
+}
+
+/// The rooted trees of a plan: parent edge of every vertex reached from the roots.
+struct Rooted {
+    parent_edge: Vec<u32>,
+    parent: Vec<u32>,
+}
+
+const NONE: u32 = u32::MAX;
+
+fn root_trees(g: &EdgeList, plan: &[u32], roots: &[u32]) -> Rooted {
+    let n = g.vertices;
+    let mut adj: Vec<Vec<(u32, u32)>> = vec![Vec::new(); 0];
+    let mut slot = vec![NONE; n];
+    for &e in plan {
+        for v in g.ends[e as usize] {
+            if slot[v as usize] == NONE {
+                slot[v as usize] = adj.len() as u32;
+                adj.push(Vec::new());
+            }
+        }
+        let [a, b] = g.ends[e as usize];
+        adj[slot[a as usize] as usize].push((b, e));
+        adj[slot[b as usize] as usize].push((a, e));
+    }
+    let mut parent_edge = vec![NONE; n];
+    let mut parent = vec![NONE; n];
+    let mut seen = vec![false; n];
+    for &r in roots {
+        if seen[r as usize] {
+            continue;
+        }
+        seen[r as usize] = true;
+        let mut stack = vec![r];
+        while let Some(v) = stack.pop() {
+            if slot[v as usize] == NONE {
+                continue;
+            }
+            for &(w, e) in &adj[slot[v as usize] as usize] {
+                if !seen[w as usize] {
+                    seen[w as usize] = true;
+                    parent[w as usize] = v;
+                    parent_edge[w as usize] = e;
+                    stack.push(w);
+                }
+            }
+        }
+    }
+    Rooted {
+        parent_edge,
+        parent,
+    }
+}
+
+/// Orders the repairs (cost > 0) of a sites plan from the roots (hub first) outward.
+pub fn order_for_targets(
+    g: &EdgeList,
+    plan: &[u32],
+    roots: &[u32],
+    targets: &[Target],
+) -> Vec<Step> {
+    let t = root_trees(g, plan, roots);
+    let mut repaired = vec![false; g.len()];
+    let mut connected = vec![false; targets.len()];
+    let path = |v: u32| {
+        let mut out = Vec::new();
+        let mut x = v;
+        while t.parent_edge[x as usize] != NONE {
+            out.push(t.parent_edge[x as usize]);
+            x = t.parent[x as usize];
+        }
+        out
+    };
+    let paths: Vec<Vec<u32>> = targets.iter().map(|tg| path(tg.junction)).collect();
+    let mut steps: Vec<Step> = Vec::new();
+    let mark_connected = |repaired: &Vec<bool>, connected: &mut Vec<bool>| -> Vec<usize> {
+        let mut done = Vec::new();
+        for (i, p) in paths.iter().enumerate() {
+            if !connected[i]
+                && p.iter()
+                    .all(|&e| repaired[e as usize] || g.cost[e as usize] == 0)
+            {
+                connected[i] = true;
+                done.push(targets[i].id);
+            }
+        }
+        done
+    };
+    mark_connected(&repaired, &mut connected);
+    loop {
+        // The unconnected target with the most weight per repair-metre still needed.
+        let mut best: Option<(f64, usize)> = None;
+        for (i, p) in paths.iter().enumerate() {
+            if connected[i] {
+                continue;
+            }
+            let need: u64 = p
+                .iter()
+                .filter(|&&e| !repaired[e as usize])
+                .map(|&e| g.cost[e as usize])
+                .sum();
+            let score = targets[i].weight.max(1e-9) / (need.max(1) as f64);
+            if best.is_none_or(|(s, j)| score > s || (score == s && i < j)) {
+                best = Some((score, i));
+            }
+        }
+        let Some((_, i)) = best else { break };
+        // Repair its path from the root outward.
+        for &e in paths[i].iter().rev() {
+            if repaired[e as usize] || g.cost[e as usize] == 0 {
+                continue;
+            }
+            repaired[e as usize] = true;
+            let completes = mark_connected(&repaired, &mut connected);
+            steps.push(Step {
+                edge: e,
+                order: steps.len() as u32 + 1,
+                phase: 1,
+                completes,
+                over_capacity: false,
+            });
+        }
+        // A target whose path needs nothing more but was not marked (cannot happen) ends the loop.
+        connected[i] = true;
+    }
+    steps
+}
+
+/// Orders the repairs of a whole-network plan: each tree grows from its root, the repair with the
+/// least cost per metre of road it reconnects first.
+pub fn order_whole_network(
+    g: &EdgeList,
+    plan: &[u32],
+    roots: &[u32],
+    length_m: &[f64],
+) -> Vec<Step> {
+    let t = root_trees(g, plan, roots);
+    // Children of every vertex in the rooted forest.
+    let mut children: std::collections::HashMap<u32, Vec<(u32, u32)>> = Default::default();
+    for &e in plan {
+        let [a, b] = g.ends[e as usize];
+        let (p, c) = if t.parent[b as usize] == a && t.parent_edge[b as usize] == e {
+            (a, b)
+        } else {
+            (b, a)
+        };
+        children.entry(p).or_default().push((c, e));
+    }
+    let key = |e: u32| {
+        let c = g.cost[e as usize] as f64;
+        let l = length_m[e as usize].max(1e-3);
+        (c / l * 1e6) as u64
+    };
+    let mut heap: BinaryHeap<Reverse<(u64, u32, u32)>> = BinaryHeap::new();
+    let mut steps = Vec::new();
+    for &r in roots {
+        if let Some(ch) = children.get(&r) {
+            for &(c, e) in ch {
+                heap.push(Reverse((key(e), e, c)));
+            }
+        }
+    }
+    while let Some(Reverse((_, e, c))) = heap.pop() {
+        if g.cost[e as usize] > 0 {
+            steps.push(Step {
+                edge: e,
+                order: steps.len() as u32 + 1,
+                phase: 1,
+                completes: Vec::new(),
+                over_capacity: false,
+            });
+        }
+        if let Some(ch) = children.get(&c) {
+            for &(c2, e2) in ch {
+                heap.push(Reverse((key(e2), e2, c2)));
+            }
+        }
+    }
+    steps
+}
+
+/// Groups ordered steps into day-phases of at most `capacity` (milli-repair-metres); a single repair
+/// over capacity stands alone in its phase and is flagged. Without a capacity, one phase.
+pub fn assign_phases(g: &EdgeList, steps: &mut [Step], capacity: Option<u64>) {
+    let Some(cap) = capacity.filter(|&c| c > 0) else {
+        steps.iter_mut().for_each(|s| s.phase = 1);
+        return;
+    };
+    let mut phase = 1;
+    let mut used = 0u64;
+    for s in steps.iter_mut() {
+        let c = g.cost[s.edge as usize];
+        if used > 0 && used + c > cap {
+            phase += 1;
+            used = 0;
+        }
+        s.phase = phase;
+        s.over_capacity = c > cap;
+        used += c;
+        if s.over_capacity {
+            phase += 1;
+            used = 0;
+        }
+    }
+    // A phase opened after an over-capacity repair but never used is not counted.
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A star: hub 0; a cheap edge to site A (1), an expensive one to site B (2) through 3.
+    fn star() -> (EdgeList, Vec<u32>) {
+        let g = EdgeList {
+            vertices: 4,
+            ends: vec![[0, 1], [0, 3], [3, 2]],
+            cost: vec![10, 100, 0],
+        };
+        (g, vec![0, 1, 2])
+    }
+
+    #[test]
+    fn cheap_high_value_first_and_prefixes_connected() {
+        let (g, plan) = star();
+        let targets = [
+            Target {
+                junction: 1,
+                weight: 1.0,
+                id: 0,
+            },
+            Target {
+                junction: 2,
+                weight: 1.0,
+                id: 1,
+            },
+        ];
+        let mut steps = order_for_targets(&g, &plan, &[0], &targets);
+        assert_eq!(steps.iter().map(|s| s.edge).collect::<Vec<_>>(), vec![0, 1]);
+        assert_eq!(steps[0].completes, vec![0]);
+        assert_eq!(
+            steps[1].completes,
+            vec![1],
+            "the intact edge beyond completes site B"
+        );
+        assign_phases(&g, &mut steps, Some(50));
+        assert_eq!(steps[0].phase, 1);
+        assert_eq!(steps[1].phase, 2);
+        assert!(steps[1].over_capacity);
+    }
+
+    #[test]
+    fn priority_changes_the_order() {
+        let (g, plan) = star();
+        let targets = [
+            Target {
+                junction: 1,
+                weight: 1.0,
+                id: 0,
+            },
+            Target {
+                junction: 2,
+                weight: 100.0,
+                id: 1,
+            },
+        ];
+        let steps = order_for_targets(&g, &plan, &[0], &targets);
+        assert_eq!(steps[0].edge, 1);
+    }
+}

@@ -1,0 +1,120 @@
+//! Repair order, phases and work orders on the demo district (invariants: common practice, no source).
+
+mod common;
+use common::*;
+use std::collections::HashMap;
+
+fn find(p: &mut HashMap<i64, i64>, x: i64) -> i64 {
+    let mut r = x;
+    while let Some(&q) = p.get(&r) {
+        if q == r {
+            break;
+        }
+        r = q;
+    }
+    r
+}
+
+#[test]
+fn every_prefix_of_the_order_reaches_the_hub_and_phases_respect_capacity() {
+    let d = tmp();
+    let out = d.path().join("o");
+    let o = run(&[
+        "demo",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+        "--crew-capacity",
+        "2500",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    let plan = read_fc(&out.join("plan.geojson"));
+    let sites = read_fc(&out.join("sites.geojson"));
+    let hub = sites
+        .features
+        .iter()
+        .find(|f| f.property("hub").unwrap().as_bool().unwrap())
+        .and_then(|f| f.property("junction").unwrap().as_i64())
+        .unwrap();
+    // Edges: (from, to, cost, order).
+    let edges: Vec<(i64, i64, f64, Option<i64>)> = plan
+        .features
+        .iter()
+        .map(|f| {
+            (
+                f.property("from").unwrap().as_i64().unwrap(),
+                f.property("to").unwrap().as_i64().unwrap(),
+                f.property("cost").unwrap().as_f64().unwrap(),
+                f.property("order").unwrap().as_i64(),
+            )
+        })
+        .collect();
+    // Components of the plan's intact edges plus repairs done so far; the hub's grows one repair at
+    // a time, and every repair in it touches what is already joined to the hub.
+    let mut parent: HashMap<i64, i64> = HashMap::new();
+    let union = |p: &mut HashMap<i64, i64>, a: i64, b: i64| {
+        let (ra, rb) = (find(p, a), find(p, b));
+        p.insert(ra, rb);
+        p.entry(rb).or_insert(rb);
+    };
+    for &(a, b, c, _) in &edges {
+        parent.entry(a).or_insert(a);
+        parent.entry(b).or_insert(b);
+        if c == 0.0 {
+            union(&mut parent, a, b);
+        }
+    }
+    let mut ordered: Vec<&(i64, i64, f64, Option<i64>)> =
+        edges.iter().filter(|e| e.3.is_some()).collect();
+    ordered.sort_by_key(|e| e.3);
+    let mut hub_total = 0;
+    // The whole plan's component of the hub, to know which repairs belong to the hub's tree.
+    let mut full = parent.clone();
+    for &(a, b, _, _) in &edges {
+        union(&mut full, a, b);
+    }
+    let hub_root = find(&mut full, hub);
+    for (k, &&(a, b, _, order)) in ordered.iter().enumerate() {
+        assert_eq!(order, Some(k as i64 + 1), "orders are 1, 2, …");
+        if find(&mut full, a) == hub_root {
+            hub_total += 1;
+            let h = find(&mut parent, hub);
+            assert!(
+                find(&mut parent, a) == h || find(&mut parent, b) == h,
+                "repair {k} is not joined to the hub yet"
+            );
+        }
+        union(&mut parent, a, b);
+    }
+    assert!(hub_total > 0);
+    // Phases: costs add up to the plan; none over capacity unless one repair alone, flagged.
+    let phases = s["phases"].as_array().unwrap();
+    let sum: f64 = phases.iter().map(|p| p["cost"].as_f64().unwrap()).sum();
+    assert!(
+        (sum - s["total_cost"].as_f64().unwrap()).abs() < 0.01,
+        "{sum}"
+    );
+    for p in phases {
+        if p["cost"].as_f64().unwrap() > 2500.0 {
+            assert_eq!(p["repairs"], 1);
+            assert_eq!(p["over_capacity"], true);
+        }
+    }
+    assert_eq!(phases.last().unwrap()["cumulative_share_of_sites"], 1.0);
+    // Work orders parse as CSV (csv crate) and their total equals the summary's.
+    let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
+    let cost_col = r
+        .headers()
+        .unwrap()
+        .iter()
+        .position(|h| h == "cost")
+        .unwrap();
+    let rows: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();
+    assert_eq!(rows.len(), ordered.len());
+    let total: f64 = rows
+        .iter()
+        .map(|x| x[cost_col].parse::<f64>().unwrap())
+        .sum();
+    assert!((total - s["total_cost"].as_f64().unwrap()).abs() < 0.01);
+}
