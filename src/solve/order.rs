@@ -47,7 +47,7 @@ const NONE: u32 = u32::MAX;
 
 fn root_trees(g: &EdgeList, plan: &[u32], roots: &[u32]) -> Rooted {
     let n = g.vertices;
-    let mut adj: Vec<Vec<(u32, u32)>> = vec![Vec::new(); 0];
+    let mut adj: Vec<Vec<(u32, u32)>> = Vec::new();
     let mut slot = vec![NONE; n];
     for &e in plan {
         for v in g.ends[e as usize] {
