@@ -14,6 +14,7 @@ fn demo_joins_the_sites_and_reports_them() {
     assert_eq!(
         listing(&out),
         [
+            "fragility.geojson",
             "network.geojson",
             "plan.geojson",
             "qa.geojson",
@@ -186,7 +187,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 6);
+    assert_eq!(listing(&out).len(), 7);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));

@@ -293,3 +293,40 @@ fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
         assert!(milli(&s["lower_bound"]) <= ours);
     }
 }
+
+#[test]
+fn bridges_and_cut_vertices_match_networkx_on_liechtenstein() {
+    // Reference library: networkx bridges() and articulation_points(), on the noded Liechtenstein
+    // network with every road usable.
+    use reknit::ingest::roads::{RoadSettings, read_roads};
+    use reknit::ingest::source::Source;
+    let Some(roads) = shared(LI_GEOJSON) else {
+        return;
+    };
+    let Some(py) = python_with(&["networkx"]) else {
+        return;
+    };
+    let layer = read_roads(&Source::File(roads), &RoadSettings::default()).unwrap();
+    let (net, _) = reknit::ingest::build_network(layer, &RoadSettings::default(), false).unwrap();
+    let g = net.weighted_edges();
+    let f = reknit::solve::fragility::fragility(&g, &[]);
+    let d = tmp();
+    let list = d.path().join("edges.txt");
+    let text: String = g.ends.iter().map(|[a, b]| format!("{a} {b}\n")).collect();
+    std::fs::write(&list, text).unwrap();
+    let out = python_json(&py, "peer_bridges_networkx.py", &list);
+    let mut ours: Vec<[u32; 2]> = f
+        .bridges
+        .iter()
+        .map(|&e| {
+            let [a, b] = g.ends[e as usize];
+            [a.min(b), a.max(b)]
+        })
+        .collect();
+    ours.sort();
+    let theirs: Vec<[u32; 2]> = serde_json::from_value(out["bridges"].clone()).unwrap();
+    assert_eq!(ours.len(), theirs.len(), "bridge count");
+    assert_eq!(ours, theirs);
+    let cuts: Vec<u32> = serde_json::from_value(out["articulation_points"].clone()).unwrap();
+    assert_eq!(f.cut_vertices, cuts);
+}

@@ -3,6 +3,7 @@
 //! Layers are RFC 7946 GeoJSON in WGS84 lon/lat with at most 7 decimals; every file is staged and
 //! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
 
+pub mod fragility;
 pub mod geojson;
 pub mod sites;
 pub mod staging;
@@ -56,6 +57,8 @@ pub struct Outputs<'a> {
     pub steps: &'a [crate::solve::order::Step],
     /// Site ids by site index (empty without sites).
     pub site_ids: &'a [String],
+    /// Single points of failure (plans with sites).
+    pub fragility: Option<&'a fragility::FragilityLayer>,
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -73,6 +76,11 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
+    if let Some(f) = o.fragility {
+        st.write("fragility.geojson", |w| {
+            fragility::write_fragility(w, o.net, f)
+        })?;
+    }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
     }

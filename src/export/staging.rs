@@ -16,6 +16,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "sites.geojson",
     "qa.geojson",
     "work-orders.csv",
+    "fragility.geojson",
     "summary.json",
 ];
 

@@ -188,6 +188,8 @@ pub struct Summary {
     pub plan: PlanFigures,
     /// Field damage reports: read, applied, and the ones with no road near enough.
     pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
+    /// Single points of failure after the plan (plans with sites; null otherwise).
+    pub fragility: Option<super::fragility::FragilityFigures>,
     /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
     pub phases: Vec<PhaseFigures>,
     /// Figures about the critical sites (null for a whole-network plan without sites).

@@ -252,6 +252,20 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             site_plan.as_ref(),
         )
     };
+    let fragile = match (&site_layer, &site_plan) {
+        (Some(sl), Some(_)) => {
+            let _s = progress.stage("finding single points of failure");
+            Some(fragility_report(
+                &graph,
+                &plan,
+                sl,
+                &attachments,
+                hub,
+                &steps,
+            ))
+        }
+        _ => None,
+    };
     let sites = site_layer.map(|layer| {
         inputs.push(layer.input.clone());
         SitesResult {
@@ -281,6 +295,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         sites.as_ref(),
     );
     summary.phases = summary::phases(&graph, &steps, sites.as_ref());
+    summary.fragility = fragile.as_ref().map(|f| f.figures.clone());
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
@@ -296,6 +311,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 sites: rows.as_deref(),
                 qa: &noding.qa_points,
                 steps: &steps,
+                fragility: fragile.as_ref(),
                 site_ids: &sites
                     .as_ref()
                     .map(|r| {
@@ -462,6 +478,63 @@ fn schedule(
         job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
     );
     steps
+}
+
+/// The network after the plan (intact roads plus planned repairs) and its single points of failure
+/// for the sites.
+fn fragility_report(
+    graph: &crate::solve::graph::EdgeList,
+    plan: &Plan,
+    sl: &SiteLayer,
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    steps: &[crate::solve::order::Step],
+) -> crate::export::fragility::FragilityLayer {
+    use crate::solve::graph::UNUSABLE;
+    let mut in_plan = vec![false; graph.len()];
+    for &e in &plan.edges {
+        in_plan[e as usize] = true;
+    }
+    let after = crate::solve::graph::EdgeList {
+        vertices: graph.vertices,
+        ends: graph.ends.clone(),
+        cost: (0..graph.len())
+            .map(|e| {
+                let c = graph.cost[e];
+                if c == UNUSABLE || (c > 0 && !in_plan[e]) {
+                    UNUSABLE
+                } else {
+                    c
+                }
+            })
+            .collect(),
+    };
+    let roots: Vec<u32> = hub
+        .and_then(|h| attachments[h].junction)
+        .into_iter()
+        .collect();
+    let _ = steps;
+    let f = crate::solve::fragility::fragility(&after, &roots);
+    let mut protects: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
+    let mut per_site: Vec<(usize, Vec<u32>)> = Vec::new();
+    for (i, a) in attachments.iter().enumerate() {
+        let Some(j) = a.junction else { continue };
+        // Only sites that reach the hub at all can be cut off from it.
+        if Some(i) == hub || !roots.iter().any(|&r| f.in_subtree(r, j)) {
+            continue;
+        }
+        let mut failures = Vec::new();
+        for (b, &child) in f.bridge_child.iter().enumerate() {
+            if f.in_subtree(child, j) && roots.iter().all(|&r| !f.in_subtree(child, r)) {
+                protects[b].push(i);
+                failures.push(f.bridges[b]);
+            }
+        }
+        if !failures.is_empty() {
+            per_site.push((i, failures));
+        }
+    }
+    crate::export::fragility::FragilityLayer::new(&f, protects, per_site, sl)
 }
 
 /// The hub: the named site, or the one with the highest priority (first in the file on ties).

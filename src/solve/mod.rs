@@ -6,6 +6,7 @@
 
 pub mod components;
 pub mod disjoint;
+pub mod fragility;
 pub mod graph;
 pub mod kruskal;
 pub mod order;
