@@ -118,3 +118,63 @@ fn every_prefix_of_the_order_reaches_the_hub_and_phases_respect_capacity() {
         .sum();
     assert!((total - s["total_cost"].as_f64().unwrap()).abs() < 0.01);
 }
+
+#[test]
+fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
+    let d = tmp();
+    let full = d.path().join("full");
+    assert!(
+        run(&["demo", "--out", full.to_str().unwrap(), "-q"])
+            .status
+            .success()
+    );
+    let s = read_json(&full.join("summary.json"));
+    let full_cost = s["total_cost"].as_f64().unwrap();
+    for budget in [0.0, 1000.0, 5000.0, 9000.0] {
+        let out = d.path().join(format!("b{budget}"));
+        let o = run(&[
+            "demo",
+            "--out",
+            out.to_str().unwrap(),
+            "-q",
+            "--budget",
+            &budget.to_string(),
+        ]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        let b = read_json(&out.join("summary.json"));
+        let cost = b["total_cost"].as_f64().unwrap();
+        assert!(cost <= budget + 1e-6, "budget {budget}: spent {cost}");
+        let plan = read_fc(&out.join("plan.geojson"));
+        let sum: f64 = plan
+            .features
+            .iter()
+            .map(|f| f.property("cost").unwrap().as_f64().unwrap())
+            .sum();
+        assert!((sum - cost).abs() < 0.01);
+        if cost < full_cost {
+            let left: Vec<_> = b["sites"]["unconnected"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .filter(|u| u["reason"].as_str().unwrap().contains("budget"))
+                .collect();
+            assert!(
+                !left.is_empty(),
+                "budget {budget}: sites left out are listed"
+            );
+        }
+    }
+    let out = d.path().join("big");
+    let o = run(&[
+        "demo",
+        "--out",
+        out.to_str().unwrap(),
+        "-q",
+        "--budget",
+        &(full_cost + 1.0).to_string(),
+    ]);
+    assert!(o.status.success());
+    let b = read_json(&out.join("summary.json"));
+    assert_eq!(b["sites"]["connected"], s["sites"]["connected"]);
+    assert!(b["total_cost"].as_f64().unwrap() <= full_cost + 1e-6);
+}

@@ -90,6 +90,12 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "METRES", default_value_t = 50.0)]
     pub report_distance: f64,
 
+    /// Most repair-metres to spend: when joining every site costs more, the sites giving the most
+    /// priority per repair-metre join first, within the budget; the rest are listed with the cost to
+    /// add each.
+    #[arg(long, value_name = "REPAIR_METRES")]
+    pub budget: Option<f64>,
+
     /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
@@ -159,6 +165,7 @@ impl NetworkArgs {
             .map(reknit::ingest::source::Source::File);
         job.report_distance_m = self.report_distance;
         job.crew_capacity = self.crew_capacity;
+        job.budget = self.budget;
     }
 
     pub fn mst(&self) -> MstAlgorithm {

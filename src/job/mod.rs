@@ -58,6 +58,9 @@ pub struct PlanJob {
     pub report_distance_m: f64,
     /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
     pub crew_capacity: Option<f64>,
+    /// Most repair-metres to spend: when the sites plan costs more, the sites giving the most
+    /// priority per repair-metre are joined first, within the budget.
+    pub budget: Option<f64>,
 }
 
 impl PlanJob {
@@ -81,6 +84,7 @@ impl PlanJob {
             reports: None,
             report_distance_m: 50.0,
             crew_capacity: None,
+            budget: None,
         }
     }
 }
@@ -109,6 +113,8 @@ pub struct SitesResult {
     pub hub: Option<usize>,
     /// The sites plan (None for a whole-network plan).
     pub plan: Option<SitePlan>,
+    /// Sites left out by `--budget`, with the repair-metres (milli) still needed to join each.
+    pub left_out: Vec<(usize, u64)>,
 }
 
 /// Runs the whole pipeline and returns the summary that was written.
@@ -129,6 +135,15 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         .into());
     }
 
+    if let Some(b) = job.budget
+        && !(b.is_finite() && b >= 0.0)
+    {
+        return Err(IngestError::Setting {
+            name: "--budget",
+            message: format!("{b} repair-metres is not a number ≥ 0"),
+        }
+        .into());
+    }
     if let Some(c) = job.crew_capacity
         && !(c.is_finite() && c > 0.0)
     {
@@ -238,6 +253,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             _ => (solve::minimum_spanning_forest(&graph, job.mst)?, None),
         }
     };
+    let mut left_out = Vec::new();
     let steps = {
         let _s = progress.stage("ordering repairs");
         schedule(
@@ -250,8 +266,19 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             &attachments,
             hub,
             site_plan.as_ref(),
+            &mut left_out,
         )
     };
+    // Within a budget, the plan is what the budgeted order repairs (and the intact roads on it).
+    let mut plan = plan;
+    if job.budget.is_some() && !left_out.is_empty() {
+        let repaired: std::collections::HashSet<u32> = steps.iter().map(|s| s.edge).collect();
+        plan.edges
+            .retain(|&e| graph.cost[e as usize] == 0 || repaired.contains(&e));
+        plan.total_cost = steps.iter().map(|s| graph.cost[s.edge as usize]).sum();
+        plan.lower_bound = 0;
+        plan.bound_complete = false;
+    }
     let fragile = match (&site_layer, &site_plan) {
         (Some(sl), Some(_)) => {
             let _s = progress.stage("finding single points of failure");
@@ -273,6 +300,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             attachments,
             hub,
             plan: site_plan,
+            left_out,
         }
     });
     let rows = sites.as_ref().map(site_rows);
@@ -355,6 +383,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "zones_crs": job.zones_crs,
         "report_distance_m": job.report_distance_m,
         "crew_capacity": job.crew_capacity,
+        "budget": job.budget,
         "category_field": s.category_field,
         "cost_table": {
             "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
@@ -424,8 +453,9 @@ fn schedule(
     attachments: &[Attachment],
     hub: Option<usize>,
     site_plan: Option<&SitePlan>,
+    left_out: &mut Vec<(usize, u64)>,
 ) -> Vec<crate::solve::order::Step> {
-    use crate::solve::order::{Target, assign_phases, order_for_targets, order_whole_network};
+    use crate::solve::order::{Target, assign_phases, order_whole_network};
     let mut steps = match (sites, site_plan) {
         (Some(sl), Some(sp)) => {
             let mut roots = Vec::new();
@@ -458,7 +488,11 @@ fn schedule(
                     })
                 })
                 .collect();
-            order_for_targets(graph, &plan.edges, &roots, &targets)
+            let budget = job.budget.map(|b| (b * 1000.0).round() as u64);
+            let (steps, left) =
+                crate::solve::order::order_within(graph, &plan.edges, &roots, &targets, budget);
+            left_out.extend(left);
+            steps
         }
         _ => {
             let mut first = vec![u32::MAX; comps.count];
@@ -626,6 +660,15 @@ pub fn status(
     let a = &r.attachments[i];
     if let Some(f) = &a.failure {
         return ("not attached", Some(f.clone()));
+    }
+    if let Some((_, need)) = r.left_out.iter().find(|(k, _)| *k == i) {
+        return (
+            "left out by budget",
+            Some(format!(
+                "outside the budget: {:.3} more repair-metres would join it",
+                *need as f64 / 1000.0
+            )),
+        );
     }
     match (&r.plan, group_of[i]) {
         (Some(p), Some(g)) if p.groups[g].sites.len() > 1 => ("connected", None),

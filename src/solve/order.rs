@@ -96,6 +96,19 @@ pub fn order_for_targets(
     roots: &[u32],
     targets: &[Target],
 ) -> Vec<Step> {
+    order_within(g, plan, roots, targets, None).0
+}
+
+/// The greedy order, but only for targets whose remaining path fits in what is left of `budget`
+/// (milli-repair-metres): the repairs never exceed it. Returns the steps and, for each target left
+/// out, the cost still needed to join it along the plan.
+pub fn order_within(
+    g: &EdgeList,
+    plan: &[u32],
+    roots: &[u32],
+    targets: &[Target],
+    budget: Option<u64>,
+) -> (Vec<Step>, Vec<(usize, u64)>) {
     let t = root_trees(g, plan, roots);
     let mut repaired = vec![false; g.len()];
     let mut connected = vec![false; targets.len()];
@@ -124,18 +137,24 @@ pub fn order_for_targets(
         done
     };
     mark_connected(&repaired, &mut connected);
+    let mut spent = 0u64;
+    let need_of = |p: &Vec<u32>, repaired: &Vec<bool>| -> u64 {
+        p.iter()
+            .filter(|&&e| !repaired[e as usize])
+            .map(|&e| g.cost[e as usize])
+            .sum()
+    };
     loop {
-        // The unconnected target with the most weight per repair-metre still needed.
+        // The unconnected target with the most weight per repair-metre still needed (that fits).
         let mut best: Option<(f64, usize)> = None;
         for (i, p) in paths.iter().enumerate() {
             if connected[i] {
                 continue;
             }
-            let need: u64 = p
-                .iter()
-                .filter(|&&e| !repaired[e as usize])
-                .map(|&e| g.cost[e as usize])
-                .sum();
+            let need: u64 = need_of(p, &repaired);
+            if budget.is_some_and(|b| spent + need > b) {
+                continue;
+            }
             let score = targets[i].weight.max(1e-9) / (need.max(1) as f64);
             if best.is_none_or(|(s, j)| score > s || (score == s && i < j)) {
                 best = Some((score, i));
@@ -148,6 +167,7 @@ pub fn order_for_targets(
                 continue;
             }
             repaired[e as usize] = true;
+            spent += g.cost[e as usize];
             let completes = mark_connected(&repaired, &mut connected);
             steps.push(Step {
                 edge: e,
@@ -160,7 +180,22 @@ pub fn order_for_targets(
         // A target whose path needs nothing more but was not marked (cannot happen) ends the loop.
         connected[i] = true;
     }
-    steps
+    let left: Vec<(usize, u64)> = paths
+        .iter()
+        .enumerate()
+        .filter(|(i, p)| {
+            !p.iter()
+                .all(|&e| repaired[e as usize] || g.cost[e as usize] == 0)
+                && !connected_by_root(*i, targets, roots)
+        })
+        .map(|(i, p)| (targets[i].id, need_of(p, &repaired)))
+        .collect();
+    (steps, left)
+}
+
+/// Roots themselves are joined from the start.
+fn connected_by_root(i: usize, targets: &[Target], roots: &[u32]) -> bool {
+    roots.contains(&targets[i].junction)
 }
 
 /// Orders the repairs of a whole-network plan: each tree grows from its root, the repair with the
