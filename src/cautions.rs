@@ -7,3 +7,6 @@ pub const CAUTIONS: &[&str] = &[
     "Bridges, culverts and slopes need inspection by qualified engineers before they are reopened to traffic.",
     "Local codes and licensed practice decide how, and whether, any repair is carried out.",
 ];
+
+/// The one-line caution printed on pictures.
+pub const SHORT: &str = "Decision support only: field-verify every segment; bridges, culverts and slopes need inspection by qualified engineers before reopening; local codes decide.";

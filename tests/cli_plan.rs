@@ -17,6 +17,7 @@ fn demo_joins_the_sites_and_reports_them() {
             "fragility.geojson",
             "network.geojson",
             "plan.geojson",
+            "plan.svg",
             "qa.geojson",
             "sites.geojson",
             "summary.json",
@@ -64,6 +65,7 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
         [
             "network.geojson",
             "plan.geojson",
+            "plan.svg",
             "qa.geojson",
             "summary.json",
             "work-orders.csv"
@@ -187,7 +189,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 7);
+    assert_eq!(listing(&out).len(), 8);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -215,6 +217,7 @@ fn existing_outputs_need_force() {
         [
             "network.geojson",
             "plan.geojson",
+            "plan.svg",
             "qa.geojson",
             "summary.json",
             "work-orders.csv"

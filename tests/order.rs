@@ -178,3 +178,50 @@ fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
     assert_eq!(b["sites"]["connected"], s["sites"]["connected"]);
     assert!(b["total_cost"].as_f64().unwrap() <= full_cost + 1e-6);
 }
+
+#[test]
+fn picture_is_well_formed_svg_with_legend_scale_bar_and_caution() {
+    let d = tmp();
+    let out = d.path().join("o");
+    assert!(
+        run(&[
+            "demo",
+            "--out",
+            out.to_str().unwrap(),
+            "-q",
+            "--crew-capacity",
+            "3000"
+        ])
+        .status
+        .success()
+    );
+    let text = std::fs::read_to_string(out.join("plan.svg")).unwrap();
+    // Well-formed XML: parsed by roxmltree, a general-purpose XML parser.
+    let doc = roxmltree::Document::parse(&text).unwrap();
+    let ids: Vec<&str> = doc
+        .descendants()
+        .filter_map(|n| n.attribute("id"))
+        .collect();
+    for id in [
+        "network",
+        "repairs",
+        "sites",
+        "legend",
+        "scale-bar",
+        "north-arrow",
+        "title",
+        "caution",
+    ] {
+        assert!(ids.contains(&id), "no element {id}");
+    }
+    let repairs = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("repairs"))
+        .unwrap();
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(
+        repairs.children().filter(|c| c.is_element()).count() as u64,
+        s["plan"]["repair_edges"].as_u64().unwrap()
+    );
+    assert!(text.contains("Kestrel Vale"));
+}

@@ -153,6 +153,7 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
     let out = opts.out.join(&d.folder);
     let mut job = d.job.clone();
     job.out = out.clone();
+    job.name = Some(d.name.clone());
     job.force = opts.force || opts.resume;
     let failed = |message: String| Row {
         index: d.index,

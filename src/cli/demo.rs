@@ -41,6 +41,7 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
     job.mst = a.network.mst();
     a.network.apply_zones(&mut job);
     job.whole_network = a.whole_network;
+    job.name = Some(format!("{} (invented demo district)", sample::DISTRICT));
     if !a.whole_network {
         job.sites = Some(Source::Bundled {
             name: sample::SITES_NAME.into(),

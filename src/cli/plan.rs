@@ -23,6 +23,10 @@ pub struct PlanArgs {
     #[arg(long, value_name = "DIR")]
     out: PathBuf,
 
+    /// The district's name, shown on the picture (default: the road file's name).
+    #[arg(long, value_name = "TEXT")]
+    name: Option<String>,
+
     #[command(flatten)]
     network: NetworkArgs,
 
@@ -37,6 +41,7 @@ pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
     let mut job = PlanJob::new(Source::File(a.roads), a.out);
     job.force = a.output.force;
+    job.name = a.name.clone();
     job.road_settings = a.network.road_settings()?;
     job.mst = a.network.mst();
     a.network.apply_zones(&mut job);

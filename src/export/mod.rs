@@ -5,6 +5,7 @@
 
 pub mod fragility;
 pub mod geojson;
+pub mod picture;
 pub mod sites;
 pub mod staging;
 pub mod summary;
@@ -59,6 +60,10 @@ pub struct Outputs<'a> {
     pub site_ids: &'a [String],
     /// Single points of failure (plans with sites).
     pub fragility: Option<&'a fragility::FragilityLayer>,
+    /// The district's name, for the picture.
+    pub title: &'a str,
+    /// Sites to draw.
+    pub marks: &'a [picture::SiteMark<'a>],
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -76,6 +81,17 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
+    st.write("plan.svg", |w| {
+        picture::write_svg(
+            w,
+            o.title,
+            o.net,
+            &o.plan.edges,
+            o.steps,
+            o.marks,
+            crate::cautions::SHORT,
+        )
+    })?;
     if let Some(f) = o.fragility {
         st.write("fragility.geojson", |w| {
             fragility::write_fragility(w, o.net, f)

@@ -58,6 +58,8 @@ pub struct PlanJob {
     pub report_distance_m: f64,
     /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
     pub crew_capacity: Option<f64>,
+    /// The district's name (pictures and reports); default: the road file's name.
+    pub name: Option<String>,
     /// Most repair-metres to spend: when the sites plan costs more, the sites giving the most
     /// priority per repair-metre are joined first, within the budget.
     pub budget: Option<f64>,
@@ -85,6 +87,7 @@ impl PlanJob {
             report_distance_m: 50.0,
             crew_capacity: None,
             budget: None,
+            name: None,
         }
     }
 }
@@ -327,6 +330,25 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
+    let title = job.name.clone().unwrap_or_else(|| {
+        job.roads
+            .display_path()
+            .file_stem()
+            .map(|s| s.to_string_lossy().into_owned())
+            .unwrap_or_default()
+    });
+    let marks: Vec<crate::export::picture::SiteMark> = rows
+        .as_deref()
+        .unwrap_or_default()
+        .iter()
+        .map(|r| crate::export::picture::SiteMark {
+            pos: r.pos,
+            label: r.name.as_deref().unwrap_or(&r.id),
+            hub: r.hub,
+            connected: r.status == "connected",
+            priority: r.priority,
+        })
+        .collect();
     {
         let _s = progress.stage("writing outputs");
         export::write_outputs(
@@ -340,6 +362,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 qa: &noding.qa_points,
                 steps: &steps,
                 fragility: fragile.as_ref(),
+                title: &title,
+                marks: &marks,
                 site_ids: &sites
                     .as_ref()
                     .map(|r| {

@@ -1,0 +1,299 @@
+//! `plan.svg`: a picture of the plan for coordinators without GIS software.
+//!
+//! A local equirectangular frame around the district's centre (x scaled by the cosine of the mean
+//! latitude, so shapes and the scale bar hold), the network in light grey, impassable roads dashed,
+//! repairs coloured by day-phase on a ramp of our own that keeps its order in lightness for
+//! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
+//! north arrow, the district name and the caution line. Line widths shrink as the network grows.
+
+use crate::network::Network;
+use crate::solve::order::Step;
+use std::io::{self, Write};
+
+const W: f64 = 1600.0;
+const H: f64 = 1200.0;
+const MARGIN: f64 = 60.0;
+
+/// Phase colours, dark to light (distinct in lightness as well as hue).
+const RAMP: [&str; 6] = [
+    "#3b1f5c", "#2c5d8a", "#1f8a8a", "#4fae5b", "#b7c83a", "#f2d64b",
+];
+
+/// A site to draw.
+pub struct SiteMark<'a> {
+    /// Position, lon/lat.
+    pub pos: [f64; 2],
+    /// Label.
+    pub label: &'a str,
+    /// True for the hub.
+    pub hub: bool,
+    /// True when the plan connects it.
+    pub connected: bool,
+    /// Priority (higher sites keep their label when labels are thinned).
+    pub priority: f64,
+}
+
+/// Writes the picture.
+pub fn write_svg<W2: Write>(
+    w: W2,
+    title: &str,
+    net: &Network,
+    plan_edges: &[u32],
+    steps: &[Step],
+    sites: &[SiteMark],
+    caution: &str,
+) -> io::Result<()> {
+    let mut w = io::BufWriter::new(w);
+    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+    for p in &net.geom {
+        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+    }
+    for s in sites {
+        lo = [lo[0].min(s.pos[0]), lo[1].min(s.pos[1])];
+        hi = [hi[0].max(s.pos[0]), hi[1].max(s.pos[1])];
+    }
+    if lo[0] > hi[0] {
+        lo = [0.0, 0.0];
+        hi = [1e-3, 1e-3];
+    }
+    let lat0 = 0.5 * (lo[1] + hi[1]);
+    let (my, mx) = crate::ingest::geodesy::metres_per_degree(lat0);
+    // Metres east/north of the lower-left corner, then one scale for both axes.
+    let span = [
+        ((hi[0] - lo[0]) * mx).max(1.0),
+        ((hi[1] - lo[1]) * my).max(1.0),
+    ];
+    // The legend keeps the right-hand 280 px.
+    let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0) / span[1]);
+    let px = |p: [f64; 2]| {
+        (
+            MARGIN + (p[0] - lo[0]) * mx * scale,
+            H - MARGIN - 40.0 - (p[1] - lo[1]) * my * scale,
+        )
+    };
+    let n = net.edges.len().max(1) as f64;
+    let base = (2.0 / (1.0 + n.log10() / 2.0)).clamp(0.3, 1.6);
+    writeln!(w, r#"<?xml version="1.0" encoding="UTF-8"?>"#)?;
+    writeln!(
+        w,
+        r#"<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="DejaVu Sans, Arial, sans-serif">"#
+    )?;
+    writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
+    let path = |w: &mut io::BufWriter<W2>, e: usize, style: &str| -> io::Result<()> {
+        write!(w, r#"<path d=""#)?;
+        for (i, p) in net.edge_geometry(e).iter().enumerate() {
+            let (x, y) = px(*p);
+            write!(w, "{}{:.1} {:.1}", if i == 0 { "M" } else { " L" }, x, y)?;
+        }
+        writeln!(w, r#"" {style}/>"#)
+    };
+    writeln!(w, r#"<g id="network" fill="none" stroke-linecap="round">"#)?;
+    for (e, edge) in net.edges.iter().enumerate() {
+        if edge.usable() {
+            path(
+                &mut w,
+                e,
+                &format!(r##"stroke="#c8c8c8" stroke-width="{base:.2}""##),
+            )?;
+        }
+    }
+    writeln!(w, "</g>")?;
+    writeln!(w, r#"<g id="impassable" fill="none">"#)?;
+    for (e, edge) in net.edges.iter().enumerate() {
+        if !edge.usable() {
+            path(
+                &mut w,
+                e,
+                &format!(
+                    r##"stroke="#8c2d04" stroke-width="{:.2}" stroke-dasharray="4 3""##,
+                    base * 1.2
+                ),
+            )?;
+        }
+    }
+    writeln!(w, "</g>")?;
+    writeln!(
+        w,
+        r#"<g id="plan-intact" fill="none" stroke-linecap="round">"#
+    )?;
+    for &e in plan_edges {
+        if net.edges[e as usize].cost == 0 {
+            path(
+                &mut w,
+                e as usize,
+                &format!(r##"stroke="#6e6e6e" stroke-width="{:.2}""##, base * 1.8),
+            )?;
+        }
+    }
+    writeln!(w, "</g>")?;
+    let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
+    let colour = |phase: u32| {
+        let i = if phases <= 1 {
+            0
+        } else {
+            ((phase - 1) as f64 / (phases - 1) as f64 * (RAMP.len() - 1) as f64).round() as usize
+        };
+        RAMP[i.min(RAMP.len() - 1)]
+    };
+    writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round">"#)?;
+    for s in steps {
+        path(
+            &mut w,
+            s.edge as usize,
+            &format!(
+                r#"stroke="{}" stroke-width="{:.2}""#,
+                colour(s.phase),
+                base * 3.0
+            ),
+        )?;
+    }
+    writeln!(w, "</g>")?;
+    // Sites: labels thinned to the highest priorities when there are many.
+    let mut order: Vec<usize> = (0..sites.len()).collect();
+    order.sort_by(|&a, &b| {
+        sites[b]
+            .priority
+            .total_cmp(&sites[a].priority)
+            .then(a.cmp(&b))
+    });
+    let labelled: std::collections::HashSet<usize> = order.into_iter().take(60).collect();
+    writeln!(w, r#"<g id="sites" font-size="13">"#)?;
+    for (i, s) in sites.iter().enumerate() {
+        let (x, y) = px(s.pos);
+        let fill = if s.connected { "#000000" } else { "#ffffff" };
+        if s.hub {
+            writeln!(
+                w,
+                r##"<rect x="{:.1}" y="{:.1}" width="12" height="12" fill="#000000" stroke="#ffffff"/>"##,
+                x - 6.0,
+                y - 6.0
+            )?;
+        } else {
+            writeln!(
+                w,
+                r##"<circle cx="{x:.1}" cy="{y:.1}" r="5" fill="{fill}" stroke="#000000" stroke-width="1.5"/>"##
+            )?;
+        }
+        if labelled.contains(&i) {
+            writeln!(
+                w,
+                r##"<text x="{:.1}" y="{:.1}" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
+                x + 8.0,
+                y - 6.0,
+                xml(s.label)
+            )?;
+        }
+    }
+    writeln!(w, "</g>")?;
+    // Title, legend, scale bar, north arrow, caution.
+    writeln!(
+        w,
+        r#"<text id="title" x="{MARGIN}" y="38" font-size="24" font-weight="bold">{}</text>"#,
+        xml(title)
+    )?;
+    writeln!(
+        w,
+        r##"<g id="legend" font-size="13"><rect x="{:.0}" y="60" width="230" height="{:.0}" fill="#ffffff" stroke="#888888"/>"##,
+        W - 290.0,
+        120.0 + 20.0 * phases.min(6) as f64
+    )?;
+    let lx = W - 280.0;
+    let mut ly = 82.0;
+    for (label, style) in [
+        ("road (usable)", r##"stroke="#c8c8c8" stroke-width="2""##),
+        (
+            "road impassable",
+            r##"stroke="#8c2d04" stroke-width="2" stroke-dasharray="4 3""##,
+        ),
+        (
+            "intact road in plan",
+            r##"stroke="#6e6e6e" stroke-width="3""##,
+        ),
+    ] {
+        writeln!(
+            w,
+            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" {style}/><text x="{}" y="{}">{label}</text>"#,
+            lx + 30.0,
+            lx + 40.0,
+            ly + 4.0
+        )?;
+        ly += 20.0;
+    }
+    let shown: Vec<u32> = if phases <= 6 {
+        (1..=phases).collect()
+    } else {
+        vec![1, phases / 2, phases]
+    };
+    for p in shown {
+        writeln!(
+            w,
+            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" stroke="{}" stroke-width="5"/><text x="{}" y="{}">repair, day {p}</text>"#,
+            lx + 30.0,
+            colour(p),
+            lx + 40.0,
+            ly + 4.0
+        )?;
+        ly += 20.0;
+    }
+    writeln!(
+        w,
+        r##"<rect x="{}" y="{}" width="10" height="10" fill="#000000"/><text x="{}" y="{}">hub · ● site joined · ○ not joined</text>"##,
+        lx + 10.0,
+        ly - 5.0,
+        lx + 40.0,
+        ly + 4.0
+    )?;
+    writeln!(w, "</g>")?;
+    // Scale bar: a round length near a fifth of the width.
+    let target_m = (W - 2.0 * MARGIN) / 5.0 / scale;
+    let pow = 10f64.powf(target_m.log10().floor());
+    let nice = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|k| k * pow)
+        .rfind(|&v| v <= target_m)
+        .unwrap_or(pow);
+    let bar = nice * scale;
+    let (bx, by) = (MARGIN, H - 40.0);
+    let label = if nice >= 1000.0 {
+        format!("{} km", nice / 1000.0)
+    } else {
+        format!("{nice} m")
+    };
+    writeln!(
+        w,
+        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{bar:.1}" height="6" fill="#000000"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{:.1}" y="{}" font-size="13">{label}</text></g>"##,
+        by - 6.0,
+        by - 10.0,
+        bx + bar - 20.0,
+        by - 10.0
+    )?;
+    writeln!(
+        w,
+        r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="#000000"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
+        W - 60.0,
+        H - 110.0,
+        W - 50.0,
+        H - 70.0,
+        H - 80.0,
+        W - 70.0,
+        W - 66.0,
+        H - 116.0
+    )?;
+    writeln!(
+        w,
+        r##"<text id="caution" x="{}" y="{}" font-size="13" fill="#8c2d04">{}</text>"##,
+        MARGIN + bar + 40.0,
+        H - 40.0,
+        xml(caution)
+    )?;
+    writeln!(w, "</svg>")?;
+    w.flush()
+}
+
+fn xml(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
