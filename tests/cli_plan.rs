@@ -19,6 +19,7 @@ fn demo_joins_the_sites_and_reports_them() {
             "plan.geojson",
             "plan.svg",
             "qa.geojson",
+            "report.html",
             "sites.geojson",
             "summary.json",
             "work-orders.csv"
@@ -67,6 +68,7 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
             "plan.geojson",
             "plan.svg",
             "qa.geojson",
+            "report.html",
             "summary.json",
             "work-orders.csv"
         ],
@@ -189,7 +191,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 8);
+    assert_eq!(listing(&out).len(), 9);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -219,6 +221,7 @@ fn existing_outputs_need_force() {
             "plan.geojson",
             "plan.svg",
             "qa.geojson",
+            "report.html",
             "summary.json",
             "work-orders.csv"
         ]

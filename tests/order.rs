@@ -225,3 +225,84 @@ fn picture_is_well_formed_svg_with_legend_scale_bar_and_caution() {
     );
     assert!(text.contains("Kestrel Vale"));
 }
+
+#[test]
+fn report_is_self_contained_and_carries_the_figures() {
+    let d = tmp();
+    let out = d.path().join("o");
+    assert!(
+        run(&[
+            "demo",
+            "--out",
+            out.to_str().unwrap(),
+            "-q",
+            "--crew-capacity",
+            "3000"
+        ])
+        .status
+        .success()
+    );
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    for c in reknit::cautions::CAUTIONS {
+        assert!(html.contains(&c.replace('&', "&amp;")), "lacks caution {c}");
+    }
+    for needle in [
+        "<svg",
+        "Phases",
+        "Total repair cost",
+        "Geometry checks",
+        "SHA-256",
+    ] {
+        assert!(html.contains(needle), "lacks {needle}");
+    }
+    // Self-contained: no scripts, no external resources.
+    for banned in ["<script", " src=", " href=", "@import", "url("] {
+        assert!(!html.contains(banned), "contains {banned}");
+    }
+    // In headless Chromium (Debian package), when installed: it loads without console errors and
+    // renders a screenshot.
+    let chromium = ["chromium", "chromium-browser"].into_iter().find(|c| {
+        std::process::Command::new(c)
+            .arg("--version")
+            .output()
+            .is_ok_and(|o| o.status.success())
+    });
+    let Some(chromium) = chromium else {
+        eprintln!("SKIP: chromium is absent (apt-get install chromium)");
+        return;
+    };
+    let shot = d.path().join("shot.png");
+    let profile = d.path().join("profile");
+    let o = std::process::Command::new(chromium)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--disable-quic",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--enable-logging=stderr",
+            "--v=0",
+            "--window-size=1200,1600",
+        ])
+        .arg(format!("--user-data-dir={}", profile.display()))
+        .arg(format!("--screenshot={}", shot.display()))
+        .arg(format!("file://{}", out.join("report.html").display()))
+        .output()
+        .unwrap();
+    let log = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        !log.lines()
+            .any(|l| l.contains("CONSOLE") && l.to_lowercase().contains("error")),
+        "{log}"
+    );
+    let png = std::fs::read(&shot).unwrap_or_default();
+    assert!(png.starts_with(b"\x89PNG"), "no screenshot: {log}");
+    assert!(
+        png.len() > 20_000,
+        "the screenshot looks blank ({} bytes)",
+        png.len()
+    );
+}

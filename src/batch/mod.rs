@@ -173,6 +173,7 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
     if opts.resume
         && let Some(existing) = up_to_date(&out, &job)
     {
+        crate::export::staging::remove_stale(&out);
         return Row::from_summary(d.index, &d.name, &d.folder, "unchanged", &existing);
     }
     let quiet = Progress {

@@ -6,6 +6,7 @@
 pub mod fragility;
 pub mod geojson;
 pub mod picture;
+pub mod report;
 pub mod sites;
 pub mod staging;
 pub mod summary;
@@ -81,16 +82,23 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
-    st.write("plan.svg", |w| {
-        picture::write_svg(
-            w,
-            o.title,
-            o.net,
-            &o.plan.edges,
-            o.steps,
-            o.marks,
-            crate::cautions::SHORT,
-        )
+    let mut svg = Vec::new();
+    picture::write_svg(
+        &mut svg,
+        o.title,
+        o.net,
+        &o.plan.edges,
+        o.steps,
+        o.marks,
+        crate::cautions::SHORT,
+    )
+    .map_err(|source| ExportError::Io {
+        path: out.join("plan.svg"),
+        source,
+    })?;
+    st.write("plan.svg", |w| std::io::Write::write_all(w, &svg))?;
+    st.write("report.html", |w| {
+        report::write_report(w, o.title, &String::from_utf8_lossy(&svg), o.summary)
     })?;
     if let Some(f) = o.fragility {
         st.write("fragility.geojson", |w| {

@@ -18,6 +18,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "work-orders.csv",
     "fragility.geojson",
     "plan.svg",
+    "report.html",
     "summary.json",
 ];
 
@@ -58,6 +59,21 @@ pub fn preflight(out: &Path, force: bool) -> Result<(), ExportError> {
         }
     }
     Ok(())
+}
+
+/// Removes staging folders left by interrupted runs (a complete set beside them is untouched).
+pub fn remove_stale(out: &Path) {
+    if let Ok(rd) = fs::read_dir(out) {
+        for entry in rd.flatten() {
+            if entry
+                .file_name()
+                .to_string_lossy()
+                .starts_with(STAGING_PREFIX)
+            {
+                let _ = fs::remove_dir_all(entry.path());
+            }
+        }
+    }
 }
 
 /// A staging folder collecting one output set.

@@ -1,0 +1,167 @@
+//! `report.html`: one self-contained page (no scripts, no network) with the picture, the figures,
+//! the phases, the unconnected sites and why, the QA counts, the inputs and settings, and the
+//! cautions, for coordinators without GIS software.
+
+use super::summary::Summary;
+use std::io::{self, Write};
+
+fn esc(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+/// Writes the report around the already drawn SVG picture.
+pub fn write_report<W: Write>(mut w: W, title: &str, svg: &str, s: &Summary) -> io::Result<()> {
+    let svg = svg.trim_start_matches(r#"<?xml version="1.0" encoding="UTF-8"?>"#);
+    writeln!(
+        w,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+    )?;
+    writeln!(
+        w,
+        "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
+    )?;
+    writeln!(w, "<title>{} — repair plan</title>", esc(title))?;
+    writeln!(
+        w,
+        "<style>body{{font-family:'DejaVu Sans',Arial,sans-serif;margin:24px;color:#111}}\
+         table{{border-collapse:collapse;margin:8px 0 20px}}td,th{{border:1px solid #bbb;padding:4px 8px;text-align:left}}\
+         .caution{{border:2px solid #8c2d04;background:#fff4ec;padding:8px 12px}}svg{{max-width:100%;height:auto;border:1px solid #ddd}}\
+         pre{{background:#f6f6f6;padding:8px;overflow:auto}}</style></head><body>"
+    )?;
+    writeln!(w, "<h1>{} — repair plan</h1>", esc(title))?;
+    writeln!(w, "<div class=\"caution\"><strong>Cautions</strong><ul>")?;
+    for c in &s.cautions {
+        writeln!(w, "<li>{}</li>", esc(c))?;
+    }
+    writeln!(w, "</ul></div>")?;
+    writeln!(w, "<h2>Map</h2>{svg}")?;
+    writeln!(w, "<h2>Figures</h2><table>")?;
+    let gap = match s.gap {
+        Some(g) => format!(
+            "{:.2} %{}",
+            100.0 * g,
+            if s.optimal { " (proven optimal)" } else { "" }
+        ),
+        None => "not available (the bound is 0)".into(),
+    };
+    let rows = [
+        ("Plan", s.plan.kind.to_string()),
+        (
+            "Total repair cost",
+            format!("{:.3} repair-metres", s.total_cost),
+        ),
+        (
+            "Lower bound on any plan",
+            format!("{:.3} repair-metres", s.lower_bound),
+        ),
+        ("At most above optimal", gap),
+        (
+            "Road to repair",
+            format!(
+                "{:.3} m in {} repairs",
+                s.repair_length_m, s.plan.repair_edges
+            ),
+        ),
+        ("Plan edges", s.plan_edges.to_string()),
+        (
+            "Network",
+            format!(
+                "{} junctions, {} edges, {} components",
+                s.counts.junctions, s.counts.edges, s.counts.components
+            ),
+        ),
+        (
+            "Coordinates",
+            format!(
+                "{}; lengths {}",
+                s.geodesy.input_crs, s.geodesy.length_method
+            ),
+        ),
+    ];
+    for (k, v) in rows {
+        writeln!(w, "<tr><th>{}</th><td>{}</td></tr>", esc(k), esc(&v))?;
+    }
+    if let Some(st) = &s.sites {
+        writeln!(
+            w,
+            "<tr><th>Sites</th><td>{} of {} connected (hub {})</td></tr>",
+            st.connected,
+            st.total,
+            esc(st.hub.as_deref().unwrap_or("none"))
+        )?;
+    }
+    writeln!(w, "</table>")?;
+    writeln!(
+        w,
+        "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined</th><th>Share of sites joined</th></tr>"
+    )?;
+    for p in &s.phases {
+        writeln!(
+            w,
+            "<tr><td>{}{}</td><td>{}</td><td>{:.3}</td><td>{}</td><td>{}</td></tr>",
+            p.phase,
+            if p.over_capacity {
+                " (over capacity)"
+            } else {
+                ""
+            },
+            p.repairs,
+            p.cost,
+            esc(&p.sites_connected.join(", ")),
+            p.cumulative_share_of_sites
+                .map_or("—".to_string(), |x| format!("{:.0} %", 100.0 * x))
+        )?;
+    }
+    writeln!(w, "</table>")?;
+    if let Some(st) = &s.sites {
+        writeln!(w, "<h2>Sites not connected</h2>")?;
+        if st.unconnected.is_empty() {
+            writeln!(w, "<p>Every site is connected.</p>")?;
+        } else {
+            writeln!(w, "<table><tr><th>Site</th><th>Name</th><th>Why</th></tr>")?;
+            for u in &st.unconnected {
+                writeln!(
+                    w,
+                    "<tr><td>{}</td><td>{}</td><td>{}</td></tr>",
+                    esc(&u.id),
+                    esc(u.name.as_deref().unwrap_or("")),
+                    esc(&u.reason)
+                )?;
+            }
+            writeln!(w, "</table>")?;
+        }
+    }
+    writeln!(w, "<h2>Geometry checks (qa.geojson)</h2><table>")?;
+    for (k, v) in &s.counts.qa {
+        writeln!(w, "<tr><th>{}</th><td>{v}</td></tr>", esc(k))?;
+    }
+    writeln!(w, "</table>")?;
+    writeln!(
+        w,
+        "<h2>Inputs</h2><table><tr><th>Role</th><th>Path</th><th>SHA-256</th></tr>"
+    )?;
+    for i in &s.inputs {
+        writeln!(
+            w,
+            "<tr><td>{}</td><td>{}</td><td><code>{}</code></td></tr>",
+            esc(&i.role),
+            esc(&i.path),
+            esc(&i.sha256)
+        )?;
+    }
+    writeln!(
+        w,
+        "</table><h2>Settings</h2><pre>{}</pre>",
+        esc(&serde_json::to_string_pretty(&s.settings).unwrap_or_default())
+    )?;
+    writeln!(
+        w,
+        "<p>{} {}</p></body></html>",
+        esc(s.tool.name),
+        esc(s.tool.version)
+    )?;
+    Ok(())
+}
