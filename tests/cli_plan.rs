@@ -17,6 +17,7 @@ fn demo_joins_the_sites_and_reports_them() {
             "fragility.geojson",
             "network.geojson",
             "plan.geojson",
+            "plan.png",
             "plan.svg",
             "qa.geojson",
             "report.html",
@@ -66,6 +67,7 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
         [
             "network.geojson",
             "plan.geojson",
+            "plan.png",
             "plan.svg",
             "qa.geojson",
             "report.html",
@@ -191,7 +193,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 9);
+    assert_eq!(listing(&out).len(), 10);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -219,6 +221,7 @@ fn existing_outputs_need_force() {
         [
             "network.geojson",
             "plan.geojson",
+            "plan.png",
             "plan.svg",
             "qa.geojson",
             "report.html",

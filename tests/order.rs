@@ -224,6 +224,12 @@ fn picture_is_well_formed_svg_with_legend_scale_bar_and_caution() {
         s["plan"]["repair_edges"].as_u64().unwrap()
     );
     assert!(text.contains("Kestrel Vale"));
+    // The PNG (PNG signature, IHDR width and height, ISO/IEC 15948) has the picture's size.
+    let png = std::fs::read(out.join("plan.png")).unwrap();
+    assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");
+    assert_eq!(&png[12..16], b"IHDR");
+    let dim = |i: usize| u32::from_be_bytes([png[i], png[i + 1], png[i + 2], png[i + 3]]);
+    assert_eq!((dim(16), dim(20)), (1600, 1200));
 }
 
 #[test]

@@ -6,6 +6,7 @@
 pub mod fragility;
 pub mod geojson;
 pub mod picture;
+pub mod raster;
 pub mod report;
 pub mod sites;
 pub mod staging;
@@ -97,6 +98,11 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         source,
     })?;
     st.write("plan.svg", |w| std::io::Write::write_all(w, &svg))?;
+    let png = raster::svg_to_png(&svg).map_err(|e| ExportError::Io {
+        path: out.join("plan.png"),
+        source: std::io::Error::other(e),
+    })?;
+    st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
         report::write_report(w, o.title, &String::from_utf8_lossy(&svg), o.summary)
     })?;

@@ -18,6 +18,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "work-orders.csv",
     "fragility.geojson",
     "plan.svg",
+    "plan.png",
     "report.html",
     "summary.json",
 ];
