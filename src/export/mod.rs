@@ -92,13 +92,22 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         o.steps,
         o.marks,
         crate::cautions::SHORT,
+        true,
     )
     .map_err(|source| ExportError::Io {
         path: out.join("plan.svg"),
         source,
     })?;
     st.write("plan.svg", |w| std::io::Write::write_all(w, &svg))?;
-    let png = raster::svg_to_png(&svg).map_err(|e| ExportError::Io {
+    let png = raster::render_png(
+        o.title,
+        o.net,
+        &o.plan.edges,
+        o.steps,
+        o.marks,
+        crate::cautions::SHORT,
+    )
+    .map_err(|e| ExportError::Io {
         path: out.join("plan.png"),
         source: std::io::Error::other(e),
     })?;

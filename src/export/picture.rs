@@ -33,17 +33,31 @@ pub struct SiteMark<'a> {
     pub priority: f64,
 }
 
-/// Writes the picture.
-pub fn write_svg<W2: Write>(
-    w: W2,
-    title: &str,
-    net: &Network,
-    plan_edges: &[u32],
-    steps: &[Step],
-    sites: &[SiteMark],
-    caution: &str,
-) -> io::Result<()> {
-    let mut w = io::BufWriter::new(w);
+/// Picture size in pixels.
+pub const SIZE: (u32, u32) = (W as u32, H as u32);
+
+/// The local frame: lon/lat to picture pixels, and line widths for the network's size.
+pub struct Frame {
+    lo: [f64; 2],
+    mx: f64,
+    my: f64,
+    scale: f64,
+    /// Base line width in pixels.
+    pub base: f64,
+}
+
+impl Frame {
+    /// Pixel position of a lon/lat point.
+    pub fn px(&self, p: [f64; 2]) -> (f64, f64) {
+        (
+            MARGIN + (p[0] - self.lo[0]) * self.mx * self.scale,
+            H - MARGIN - 40.0 - (p[1] - self.lo[1]) * self.my * self.scale,
+        )
+    }
+}
+
+/// The frame that fits the network and the sites, leaving room for the legend.
+pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
     let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
     for p in &net.geom {
         lo = [lo[0].min(p[0]), lo[1].min(p[1])];
@@ -66,20 +80,52 @@ pub fn write_svg<W2: Write>(
     ];
     // The legend keeps the right-hand 280 px.
     let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0) / span[1]);
-    let px = |p: [f64; 2]| {
-        (
-            MARGIN + (p[0] - lo[0]) * mx * scale,
-            H - MARGIN - 40.0 - (p[1] - lo[1]) * my * scale,
-        )
-    };
     let n = net.edges.len().max(1) as f64;
-    let base = (2.0 / (1.0 + n.log10() / 2.0)).clamp(0.3, 1.6);
+    Frame {
+        lo,
+        mx,
+        my,
+        scale,
+        base: (2.0 / (1.0 + n.log10() / 2.0)).clamp(0.3, 1.6),
+    }
+}
+
+/// Colour of a day-phase out of `phases`.
+pub fn phase_colour(phase: u32, phases: u32) -> &'static str {
+    let i = if phases <= 1 {
+        0
+    } else {
+        ((phase - 1) as f64 / (phases - 1) as f64 * (RAMP.len() - 1) as f64).round() as usize
+    };
+    RAMP[i.min(RAMP.len() - 1)]
+}
+
+/// Writes the picture; with `lines` false only the overlay (sites, labels, legend, scale bar,
+/// north arrow, title, caution) on a transparent background, for the raster renderer.
+#[allow(clippy::too_many_arguments)]
+pub fn write_svg<W2: Write>(
+    w: W2,
+    title: &str,
+    net: &Network,
+    plan_edges: &[u32],
+    steps: &[Step],
+    sites: &[SiteMark],
+    caution: &str,
+    lines: bool,
+) -> io::Result<()> {
+    let mut w = io::BufWriter::new(w);
+    let fr = frame(net, sites);
+    let px = |p: [f64; 2]| fr.px(p);
+    let scale = fr.scale;
+    let base = fr.base;
     writeln!(w, r#"<?xml version="1.0" encoding="UTF-8"?>"#)?;
     writeln!(
         w,
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="DejaVu Sans, Arial, sans-serif">"#
     )?;
-    writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
+    if lines {
+        writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
+    }
     let path = |w: &mut io::BufWriter<W2>, e: usize, style: &str| -> io::Result<()> {
         write!(w, r#"<path d=""#)?;
         for (i, p) in net.edge_geometry(e).iter().enumerate() {
@@ -88,9 +134,15 @@ pub fn write_svg<W2: Write>(
         }
         writeln!(w, r#"" {style}/>"#)
     };
+    let empty: [u32; 0] = [];
+    let (plan_edges, steps_drawn): (&[u32], &[Step]) = if lines {
+        (plan_edges, steps)
+    } else {
+        (&empty, &[])
+    };
     writeln!(w, r#"<g id="network" fill="none" stroke-linecap="round">"#)?;
     for (e, edge) in net.edges.iter().enumerate() {
-        if edge.usable() {
+        if lines && edge.usable() {
             path(
                 &mut w,
                 e,
@@ -101,7 +153,7 @@ pub fn write_svg<W2: Write>(
     writeln!(w, "</g>")?;
     writeln!(w, r#"<g id="impassable" fill="none">"#)?;
     for (e, edge) in net.edges.iter().enumerate() {
-        if !edge.usable() {
+        if lines && !edge.usable() {
             path(
                 &mut w,
                 e,
@@ -128,16 +180,9 @@ pub fn write_svg<W2: Write>(
     }
     writeln!(w, "</g>")?;
     let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
-    let colour = |phase: u32| {
-        let i = if phases <= 1 {
-            0
-        } else {
-            ((phase - 1) as f64 / (phases - 1) as f64 * (RAMP.len() - 1) as f64).round() as usize
-        };
-        RAMP[i.min(RAMP.len() - 1)]
-    };
+    let colour = |phase: u32| phase_colour(phase, phases);
     writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round">"#)?;
-    for s in steps {
+    for s in steps_drawn {
         path(
             &mut w,
             s.edge as usize,
