@@ -83,22 +83,18 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
-    let mut svg = Vec::new();
-    picture::write_svg(
-        &mut svg,
-        o.title,
-        o.net,
-        &o.plan.edges,
-        o.steps,
-        o.marks,
-        crate::cautions::SHORT,
-        true,
-    )
-    .map_err(|source| ExportError::Io {
-        path: out.join("plan.svg"),
-        source,
+    st.write("plan.svg", |w| {
+        picture::write_svg(
+            w,
+            o.title,
+            o.net,
+            &o.plan.edges,
+            o.steps,
+            o.marks,
+            crate::cautions::SHORT,
+            true,
+        )
     })?;
-    st.write("plan.svg", |w| std::io::Write::write_all(w, &svg))?;
     let png = raster::render_png(
         o.title,
         o.net,
@@ -113,7 +109,7 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
     })?;
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
-        report::write_report(w, o.title, &String::from_utf8_lossy(&svg), o.summary)
+        report::write_report(w, o.title, &png, o.summary)
     })?;
     if let Some(f) = o.fragility {
         st.write("fragility.geojson", |w| {

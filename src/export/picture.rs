@@ -127,12 +127,15 @@ pub fn write_svg<W2: Write>(
         writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
     }
     let path = |w: &mut io::BufWriter<W2>, e: usize, style: &str| -> io::Result<()> {
-        write!(w, r#"<path d=""#)?;
+        let mut d = String::with_capacity(64);
         for (i, p) in net.edge_geometry(e).iter().enumerate() {
             let (x, y) = px(*p);
-            write!(w, "{}{:.1} {:.1}", if i == 0 { "M" } else { " L" }, x, y)?;
+            d.push_str(if i == 0 { "M" } else { " L" });
+            super::geojson::push_decimal(&mut d, x, 1, true);
+            d.push(' ');
+            super::geojson::push_decimal(&mut d, y, 1, true);
         }
-        writeln!(w, r#"" {style}/>"#)
+        writeln!(w, r#"<path d="{d}" {style}/>"#)
     };
     let empty: [u32; 0] = [];
     let (plan_edges, steps_drawn): (&[u32], &[Step]) = if lines {

@@ -12,9 +12,37 @@ fn esc(s: &str) -> String {
         .replace('"', "&quot;")
 }
 
-/// Writes the report around the already drawn SVG picture.
-pub fn write_report<W: Write>(mut w: W, title: &str, svg: &str, s: &Summary) -> io::Result<()> {
-    let svg = svg.trim_start_matches(r#"<?xml version="1.0" encoding="UTF-8"?>"#);
+/// Standard base64 (RFC 4648 §4) of `data`.
+fn base64(data: &[u8]) -> String {
+    const T: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+    let mut out = String::with_capacity(data.len().div_ceil(3) * 4);
+    for c in data.chunks(3) {
+        let n = (c[0] as u32) << 16
+            | (*c.get(1).unwrap_or(&0) as u32) << 8
+            | *c.get(2).unwrap_or(&0) as u32;
+        out.push(T[(n >> 18) as usize & 63] as char);
+        out.push(T[(n >> 12) as usize & 63] as char);
+        out.push(if c.len() > 1 {
+            T[(n >> 6) as usize & 63] as char
+        } else {
+            '='
+        });
+        out.push(if c.len() > 2 {
+            T[n as usize & 63] as char
+        } else {
+            '='
+        });
+    }
+    out
+}
+
+/// Writes the report around the drawn picture (PNG, embedded as a data URI so the page needs
+/// nothing else).
+pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) -> io::Result<()> {
+    let svg = format!(
+        r#"<img alt="map of the plan" style="max-width:100%;border:1px solid #ddd" src="data:image/png;base64,{}">"#,
+        base64(png)
+    );
     writeln!(
         w,
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
@@ -164,4 +192,23 @@ pub fn write_report<W: Write>(mut w: W, title: &str, svg: &str, s: &Summary) -> 
         esc(s.tool.version)
     )?;
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn base64_matches_rfc_4648_test_vectors() {
+        // RFC 4648 §10 test vectors.
+        for (i, o) in [
+            ("", ""),
+            ("f", "Zg=="),
+            ("fo", "Zm8="),
+            ("foo", "Zm9v"),
+            ("foob", "Zm9vYg=="),
+            ("fooba", "Zm9vYmE="),
+            ("foobar", "Zm9vYmFy"),
+        ] {
+            assert_eq!(super::base64(i.as_bytes()), o);
+        }
+    }
 }
