@@ -143,15 +143,34 @@ pub fn write_svg<W2: Write>(
     } else {
         (&empty, &[])
     };
-    writeln!(w, r#"<g id="network" fill="none" stroke-linecap="round">"#)?;
-    for (e, edge) in net.edges.iter().enumerate() {
-        if lines && edge.usable() {
-            path(
-                &mut w,
-                e,
-                &format!(r##"stroke="#c8c8c8" stroke-width="{base:.2}""##),
-            )?;
+    // The background network as a few long paths (one element per 5,000 edges), so a million
+    // edges do not become a million elements.
+    writeln!(
+        w,
+        r##"<g id="network" fill="none" stroke-linecap="round" stroke="#c8c8c8" stroke-width="{base:.2}">"##
+    )?;
+    let usable: Vec<usize> = if lines {
+        (0..net.edges.len())
+            .filter(|&e| net.edges[e].usable())
+            .collect()
+    } else {
+        Vec::new()
+    };
+    for chunk in usable.chunks(5000) {
+        write!(w, r#"<path d=""#)?;
+        let mut d = String::with_capacity(64);
+        for &e in chunk {
+            d.clear();
+            for (i, p) in net.edge_geometry(e).iter().enumerate() {
+                let (x, y) = px(*p);
+                d.push_str(if i == 0 { "M" } else { "L" });
+                super::geojson::push_decimal(&mut d, x, 1, true);
+                d.push(' ');
+                super::geojson::push_decimal(&mut d, y, 1, true);
+            }
+            w.write_all(d.as_bytes())?;
         }
+        writeln!(w, r#""/>"#)?;
     }
     writeln!(w, "</g>")?;
     writeln!(w, r#"<g id="impassable" fill="none">"#)?;
