@@ -8,7 +8,9 @@ use reknit::ingest::source::Source;
 use std::time::Instant;
 
 fn main() {
-    let path = std::env::args().nth(1).expect("usage: draw_bench ROADS.geojson");
+    let path = std::env::args()
+        .nth(1)
+        .expect("usage: draw_bench ROADS.geojson");
     let s = RoadSettings::default();
     let layer = read_roads(&Source::File(path.into()), &s).expect("read");
     let (net, _) = reknit::ingest::build_network(layer, &s, false).expect("node");
@@ -16,10 +18,24 @@ fn main() {
     let plan = reknit::solve::minimum_spanning_forest(&g, Default::default()).expect("plan");
     let t = Instant::now();
     let mut svg = std::io::sink();
-    write_svg(&mut svg, "bench", &net, &plan.edges, &[], &[], "caution", true).expect("svg");
+    write_svg(
+        &mut svg,
+        "bench",
+        &net,
+        &plan.edges,
+        &[],
+        &[],
+        "caution",
+        true,
+    )
+    .expect("svg");
     let svg_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
     let png = render_png("bench", &net, &plan.edges, &[], &[], "caution").expect("png");
     let png_s = t.elapsed().as_secs_f64();
-    println!("{} edges: SVG {svg_s:.2} s, PNG {png_s:.2} s ({} bytes)", net.edges.len(), png.len());
+    println!(
+        "{} edges: SVG {svg_s:.2} s, PNG {png_s:.2} s ({} bytes)",
+        net.edges.len(),
+        png.len()
+    );
 }
