@@ -99,6 +99,25 @@ pub enum IngestError {
     },
 }
 
+impl IngestError {
+    /// The error for a failed GeoJSON read of `path` (the callback's own errors pass through).
+    pub fn from_read(path: &std::path::Path, e: geojson::ReadFailure<IngestError>) -> IngestError {
+        let path = path.to_path_buf();
+        match e {
+            geojson::ReadFailure::Syntax { message, feature } => IngestError::Syntax {
+                path,
+                feature,
+                message,
+            },
+            geojson::ReadFailure::NotCollection(message) => {
+                IngestError::NotCollection { path, message }
+            }
+            geojson::ReadFailure::Io(source) => IngestError::Io { path, source },
+            geojson::ReadFailure::Callback(e) => e,
+        }
+    }
+}
+
 /// Builds the network of a road layer; `report_crossings` also lists crossings left apart (slower).
 pub fn build_network(
     layer: LineLayer,

@@ -3,7 +3,7 @@
 
 use super::IngestError;
 use super::damage::{Damage, DamageRule};
-use super::geojson::{ReadFailure, read_collection};
+use super::geojson::read_collection;
 use super::source::{HashingReader, InputRecord, Source};
 use crate::network::{Network, cost_of};
 use rstar::primitives::{GeomWithData, Line};
@@ -70,22 +70,7 @@ pub fn read_reports(
             Ok(())
         },
     )
-    .map_err(|e| match e {
-        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
-            path: path.clone(),
-            feature,
-            message,
-        },
-        ReadFailure::NotCollection(message) => IngestError::NotCollection {
-            path: path.clone(),
-            message,
-        },
-        ReadFailure::Io(source) => IngestError::Io {
-            path: path.clone(),
-            source,
-        },
-        ReadFailure::Callback(e) => e,
-    })?;
+    .map_err(|e| IngestError::from_read(&path, e))?;
     let (sha256, bytes) =
         HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
             path: path.clone(),

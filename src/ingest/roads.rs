@@ -2,7 +2,7 @@
 
 use super::crs::{Crs, LengthRule};
 use super::damage::{Damage, DamageRule};
-use super::geojson::{ReadFailure, read_collection};
+use super::geojson::read_collection;
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
 use crate::network::FeatureMeta;
@@ -180,22 +180,7 @@ pub fn read_geojson_roads(
         }
         add_feature(&mut layer, &path, settings, index, f)
     })
-    .map_err(|e| match e {
-        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
-            path: path.clone(),
-            feature,
-            message,
-        },
-        ReadFailure::NotCollection(message) => IngestError::NotCollection {
-            path: path.clone(),
-            message,
-        },
-        ReadFailure::Io(source) => IngestError::Io {
-            path: path.clone(),
-            source,
-        },
-        ReadFailure::Callback(e) => e,
-    })?;
+    .map_err(|e| IngestError::from_read(&path, e))?;
     let crs = match &settings.crs {
         Some(c) => Crs::from_user(c).map_err(|message| IngestError::Crs {
             path: path.clone(),

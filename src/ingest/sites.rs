@@ -167,22 +167,7 @@ fn read_geojson<R: std::io::Read>(
         });
         Ok(())
     })
-    .map_err(|e| match e {
-        ReadFailure::Syntax { message, feature } => IngestError::Syntax {
-            path: path.to_path_buf(),
-            feature,
-            message,
-        },
-        ReadFailure::NotCollection(message) => IngestError::NotCollection {
-            path: path.to_path_buf(),
-            message,
-        },
-        ReadFailure::Io(source) => IngestError::Io {
-            path: path.to_path_buf(),
-            source,
-        },
-        ReadFailure::Callback(e) => e,
-    })?;
+    .map_err(|e| IngestError::from_read(&path, e))?;
     Ok(sites)
 }
 

@@ -4,7 +4,10 @@
 //! [`summary`] turns the stages' results into `summary.json`.
 
 pub mod check;
+mod schedule;
 pub mod summary;
+
+use schedule::{fragility_report, schedule};
 
 use crate::export::sites::SiteRow;
 use crate::export::{self, ExportError, Summary};
@@ -463,136 +466,6 @@ pub fn job_fingerprint(job: &PlanJob) -> Result<String, IngestError> {
         });
     }
     Ok(fingerprint(&inputs, &settings_json(job)))
-}
-
-/// Orders the plan's repairs (hub's group first) and groups them into day-phases.
-#[allow(clippy::too_many_arguments)]
-fn schedule(
-    job: &PlanJob,
-    graph: &crate::solve::graph::EdgeList,
-    net: &crate::network::Network,
-    comps: &crate::solve::components::Components,
-    plan: &Plan,
-    sites: Option<&SiteLayer>,
-    attachments: &[Attachment],
-    hub: Option<usize>,
-    site_plan: Option<&SitePlan>,
-    left_out: &mut Vec<(usize, u64)>,
-) -> Vec<crate::solve::order::Step> {
-    use crate::solve::order::{Target, assign_phases, order_whole_network};
-    let mut steps = match (sites, site_plan) {
-        (Some(sl), Some(sp)) => {
-            let mut roots = Vec::new();
-            if let Some(j) = hub.and_then(|h| attachments[h].junction) {
-                roots.push(j);
-            }
-            for g in &sp.groups {
-                // Each other group grows from its highest-priority site (first on ties).
-                let best = g
-                    .sites
-                    .iter()
-                    .copied()
-                    .fold(None, |b: Option<usize>, i| match b {
-                        Some(k) if sl.sites[k].priority >= sl.sites[i].priority => Some(k),
-                        _ => Some(i),
-                    });
-                if let Some(j) = best.and_then(|i| attachments[i].junction) {
-                    roots.push(j);
-                }
-            }
-            let targets: Vec<Target> = sl
-                .sites
-                .iter()
-                .enumerate()
-                .filter_map(|(i, s)| {
-                    attachments[i].junction.map(|j| Target {
-                        junction: j,
-                        weight: s.priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
-                        id: i,
-                    })
-                })
-                .collect();
-            let budget = job.budget.map(|b| (b * 1000.0).round() as u64);
-            let (steps, left) =
-                crate::solve::order::order_within(graph, &plan.edges, &roots, &targets, budget);
-            left_out.extend(left);
-            steps
-        }
-        _ => {
-            let mut first = vec![u32::MAX; comps.count];
-            for &e in &plan.edges {
-                let v = graph.ends[e as usize][0];
-                let c = comps.of[v as usize] as usize;
-                first[c] = first[c].min(v);
-            }
-            let roots: Vec<u32> = first.into_iter().filter(|&v| v != u32::MAX).collect();
-            let lengths: Vec<f64> = net.edges.iter().map(|e| e.length_m).collect();
-            order_whole_network(graph, &plan.edges, &roots, &lengths)
-        }
-    };
-    assign_phases(
-        graph,
-        &mut steps,
-        job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
-    );
-    steps
-}
-
-/// The network after the plan (intact roads plus planned repairs) and its single points of failure
-/// for the sites.
-fn fragility_report(
-    graph: &crate::solve::graph::EdgeList,
-    plan: &Plan,
-    sl: &SiteLayer,
-    attachments: &[Attachment],
-    hub: Option<usize>,
-    steps: &[crate::solve::order::Step],
-) -> crate::export::fragility::FragilityLayer {
-    use crate::solve::graph::UNUSABLE;
-    let mut in_plan = vec![false; graph.len()];
-    for &e in &plan.edges {
-        in_plan[e as usize] = true;
-    }
-    let after = crate::solve::graph::EdgeList {
-        vertices: graph.vertices,
-        ends: graph.ends.clone(),
-        cost: (0..graph.len())
-            .map(|e| {
-                let c = graph.cost[e];
-                if c == UNUSABLE || (c > 0 && !in_plan[e]) {
-                    UNUSABLE
-                } else {
-                    c
-                }
-            })
-            .collect(),
-    };
-    let roots: Vec<u32> = hub
-        .and_then(|h| attachments[h].junction)
-        .into_iter()
-        .collect();
-    let _ = steps;
-    let f = crate::solve::fragility::fragility(&after, &roots);
-    let mut protects: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
-    let mut per_site: Vec<(usize, Vec<u32>)> = Vec::new();
-    for (i, a) in attachments.iter().enumerate() {
-        let Some(j) = a.junction else { continue };
-        // Only sites that reach the hub at all can be cut off from it.
-        if Some(i) == hub || !roots.iter().any(|&r| f.in_subtree(r, j)) {
-            continue;
-        }
-        let mut failures = Vec::new();
-        for (b, &child) in f.bridge_child.iter().enumerate() {
-            if f.in_subtree(child, j) && roots.iter().all(|&r| !f.in_subtree(child, r)) {
-                protects[b].push(i);
-                failures.push(f.bridges[b]);
-            }
-        }
-        if !failures.is_empty() {
-            per_site.push((i, failures));
-        }
-    }
-    crate::export::fragility::FragilityLayer::new(&f, protects, per_site, sl)
 }
 
 /// The hub: the named site, or the one with the highest priority (first in the file on ties).
