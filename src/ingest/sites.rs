@@ -167,7 +167,7 @@ fn read_geojson<R: std::io::Read>(
         });
         Ok(())
     })
-    .map_err(|e| IngestError::from_read(&path, e))?;
+    .map_err(|e| IngestError::from_read(path, e))?;
     Ok(sites)
 }
 
