@@ -209,36 +209,9 @@ fn read_shapefile_zones(
             .interpret(value.as_ref())
             .map_err(|m| fail(&rule.field, m))?;
         let rings: Vec<(bool, Vec<[f64; 2]>)> = match &shape {
-            Shape::Polygon(p) => p
-                .rings()
-                .iter()
-                .map(|r| {
-                    (
-                        matches!(r, shapefile::PolygonRing::Outer(_)),
-                        r.points().iter().map(|q| [q.x, q.y]).collect(),
-                    )
-                })
-                .collect(),
-            Shape::PolygonZ(p) => p
-                .rings()
-                .iter()
-                .map(|r| {
-                    (
-                        matches!(r, shapefile::PolygonRing::Outer(_)),
-                        r.points().iter().map(|q| [q.x, q.y]).collect(),
-                    )
-                })
-                .collect(),
-            Shape::PolygonM(p) => p
-                .rings()
-                .iter()
-                .map(|r| {
-                    (
-                        matches!(r, shapefile::PolygonRing::Outer(_)),
-                        r.points().iter().map(|q| [q.x, q.y]).collect(),
-                    )
-                })
-                .collect(),
+            Shape::Polygon(p) => ring_list(p.rings(), |q| [q.x, q.y]),
+            Shape::PolygonZ(p) => ring_list(p.rings(), |q| [q.x, q.y]),
+            Shape::PolygonM(p) => ring_list(p.rings(), |q| [q.x, q.y]),
             Shape::NullShape => continue,
             other => {
                 return Err(fail(
@@ -287,6 +260,22 @@ fn read_shapefile_zones(
             sha256,
         },
     })
+}
+
+/// A Shapefile polygon's rings as (is outer, positions).
+fn ring_list<P>(
+    rings: &[shapefile::PolygonRing<P>],
+    xy: impl Fn(&P) -> [f64; 2],
+) -> Vec<(bool, Vec<[f64; 2]>)> {
+    rings
+        .iter()
+        .map(|r| {
+            (
+                matches!(r, shapefile::PolygonRing::Outer(_)),
+                r.points().iter().map(&xy).collect(),
+            )
+        })
+        .collect()
 }
 
 /// The pieces of a lon/lat polyline by zone cover: (length share of the whole line, index of the
