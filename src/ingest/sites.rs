@@ -146,25 +146,7 @@ fn read_geojson<R: std::io::Read>(
             }
         }
         let pos = f.coords.pos[0];
-        let id = match &s.id_field {
-            Some(field) => props.get(field).and_then(text),
-            None => f.id.as_ref().and_then(text).or_else(|| {
-                SITE_ID_FIELDS
-                    .iter()
-                    .find_map(|k| props.get(*k).and_then(text))
-            }),
-        }
-        .unwrap_or_else(|| format!("site-{}", index + 1));
-        let name_field = s.name_field.as_deref().unwrap_or("name");
-        let priority = priority(path, index, &props, s)?;
-        sites.push(Site {
-            index,
-            id,
-            name: props.get(name_field).and_then(text),
-            priority,
-            pos,
-            attributes: props,
-        });
+        sites.push(make_site(path, index, pos, props, f.id.as_ref(), s)?);
         Ok(())
     })
     .map_err(|e| IngestError::from_read(path, e))?;
@@ -254,25 +236,39 @@ fn read_csv<R: std::io::Read>(
             };
             attributes.insert(h.to_string(), value);
         }
-        let id = match &s.id_field {
-            Some(f) => attributes.get(f).and_then(text),
-            None => SITE_ID_FIELDS
-                .iter()
-                .find_map(|k| attributes.get(*k).and_then(text)),
-        }
-        .unwrap_or_else(|| format!("site-{}", index + 1));
-        let name_field = s.name_field.as_deref().unwrap_or("name");
-        let priority = priority(path, index, &attributes, s)?;
-        sites.push(Site {
-            index,
-            id,
-            name: attributes.get(name_field).and_then(text),
-            priority,
-            pos,
-            attributes,
-        });
+        sites.push(make_site(path, index, pos, attributes, None, s)?);
     }
     Ok(sites)
+}
+
+/// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
+/// such as `site_id` or `name`, else `site-N`; the display name and the priority likewise.
+fn make_site(
+    path: &Path,
+    index: usize,
+    pos: [f64; 2],
+    attributes: Map<String, Value>,
+    member_id: Option<&Value>,
+    s: &SiteSettings,
+) -> Result<Site, IngestError> {
+    let id = match &s.id_field {
+        Some(f) => attributes.get(f).and_then(text),
+        None => member_id.and_then(text).or_else(|| {
+            SITE_ID_FIELDS
+                .iter()
+                .find_map(|k| attributes.get(*k).and_then(text))
+        }),
+    }
+    .unwrap_or_else(|| format!("site-{}", index + 1));
+    let name_field = s.name_field.as_deref().unwrap_or("name");
+    Ok(Site {
+        index,
+        id,
+        name: attributes.get(name_field).and_then(text),
+        priority: priority(path, index, &attributes, s)?,
+        pos,
+        attributes,
+    })
 }
 
 fn text(v: &Value) -> Option<String> {
@@ -410,22 +406,7 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
             .into_iter()
             .map(|(k, v)| (k, super::shapefile::field_json(&v)))
             .collect();
-        let id = match &s.id_field {
-            Some(f) => attributes.get(f).and_then(text),
-            None => SITE_ID_FIELDS
-                .iter()
-                .find_map(|k| attributes.get(*k).and_then(text)),
-        }
-        .unwrap_or_else(|| format!("site-{}", index + 1));
-        let name_field = s.name_field.as_deref().unwrap_or("name");
-        sites.push(Site {
-            index,
-            id,
-            name: attributes.get(name_field).and_then(text),
-            priority: priority(path, index, &attributes, s)?,
-            pos,
-            attributes,
-        });
+        sites.push(make_site(path, index, pos, attributes, None, s)?);
     }
     convert(path, &crs, &mut sites)?;
     check_unique(path, &sites)?;

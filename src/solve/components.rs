@@ -14,9 +14,14 @@ pub struct Components {
 
 /// Labels the connected components formed by the usable edges of `g`.
 pub fn components(g: &EdgeList) -> Components {
+    components_where(g, |_| true)
+}
+
+/// Labels the connected components formed by the usable edges of `g` for which `keep(edge)` holds.
+pub fn components_where<F: Fn(usize) -> bool>(g: &EdgeList, keep: F) -> Components {
     let mut ds = DisjointSets::new(g.vertices);
     for e in 0..g.len() {
-        if g.usable(e) {
+        if g.usable(e) && keep(e) {
             let [a, b] = g.ends[e];
             ds.union(a, b);
         }

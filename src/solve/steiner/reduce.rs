@@ -8,7 +8,6 @@
 //! Each step keeps the optimal cost, so bounds and gaps computed on the reduced graph hold for the
 //! original one.
 
-use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList};
 
 /// The reduced graph and the maps back to the original.
@@ -38,26 +37,9 @@ impl Reduced {
 /// Reduces `g` for the terminal set `terminals` (original vertex ids, all mutually reachable).
 pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     // 1. Zero-cost components.
-    let mut ds = DisjointSets::new(g.vertices);
-    for e in 0..g.len() {
-        if g.cost[e] == 0 && g.usable(e) {
-            let [a, b] = g.ends[e];
-            ds.union(a, b);
-        }
-    }
-    let mut label = vec![u32::MAX; g.vertices];
-    let mut super_of = vec![0u32; g.vertices];
-    let mut supers = 0u32;
-    for v in 0..g.vertices as u32 {
-        let r = ds.find(v) as usize;
-        if label[r] == u32::MAX {
-            label[r] = supers;
-            supers += 1;
-        }
-        super_of[v as usize] = label[r];
-    }
-    drop(label);
-    let ns = supers as usize;
+    let zero = crate::solve::components::components_where(g, |e| g.cost[e] == 0);
+    let super_of = zero.of;
+    let ns = zero.count;
     let mut term = vec![false; ns];
     for &t in terminals {
         term[super_of[t as usize] as usize] = true;
