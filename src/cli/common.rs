@@ -96,6 +96,11 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "REPAIR_METRES")]
     pub budget: Option<f64>,
 
+    /// Also plan backup links: the cheapest further repairs after which every site stays joined
+    /// to the hub when any one road fails (written to backup.geojson, after the plan's repairs).
+    #[arg(long)]
+    pub redundancy: bool,
+
     /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
@@ -166,6 +171,7 @@ impl NetworkArgs {
         job.report_distance_m = self.report_distance;
         job.crew_capacity = self.crew_capacity;
         job.budget = self.budget;
+        job.redundancy = self.redundancy;
     }
 
     pub fn mst(&self) -> MstAlgorithm {

@@ -3,6 +3,7 @@
 //! Layers are RFC 7946 GeoJSON in WGS84 lon/lat with at most 7 decimals; every file is staged and
 //! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
 
+pub mod backup;
 pub mod fragility;
 pub mod geojson;
 pub mod picture;
@@ -62,6 +63,8 @@ pub struct Outputs<'a> {
     pub site_ids: &'a [String],
     /// Single points of failure (plans with sites).
     pub fragility: Option<&'a fragility::FragilityLayer>,
+    /// Backup links (with --redundancy).
+    pub backup: Option<&'a backup::BackupLayer>,
     /// The district's name, for the picture.
     pub title: &'a str,
     /// Sites to draw.
@@ -76,7 +79,13 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
     let st = staging::Staging::begin(out, force)?;
     st.write("qa.geojson", |w| write_qa(w, o.qa))?;
     st.write("work-orders.csv", |w| {
-        work_orders::write_work_orders(w, o.net, o.steps, o.site_ids)
+        work_orders::write_work_orders(
+            w,
+            o.net,
+            o.steps,
+            o.backup.map_or(&[][..], |b| &b.rows[..]),
+            o.site_ids,
+        )
     })?;
     let order_of: std::collections::HashMap<u32, (u32, u32)> = o
         .steps
@@ -115,6 +124,9 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         st.write("fragility.geojson", |w| {
             fragility::write_fragility(w, o.net, f)
         })?;
+    }
+    if let Some(b) = o.backup {
+        st.write("backup.geojson", |w| backup::write_backup(w, o.net, b))?;
     }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| sites::write_sites(w, rows))?;

@@ -162,6 +162,68 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             writeln!(w, "</table>")?;
         }
     }
+    if let Some(f) = &s.fragility {
+        writeln!(w, "<h2>Single road failures</h2><table>")?;
+        let after = s.backup.as_ref().and_then(|b| b.fragility_after.as_ref());
+        let row = |label: &str, before: usize, after: Option<usize>| {
+            format!(
+                "<tr><th>{}</th><td>{before}</td>{}</tr>",
+                esc(label),
+                after.map_or(String::new(), |a| format!("<td>{a}</td>"))
+            )
+        };
+        if after.is_some() {
+            writeln!(
+                w,
+                "<tr><th></th><th>After the plan</th><th>With backup links</th></tr>"
+            )?;
+        }
+        for (label, b, a) in [
+            (
+                "Roads whose loss cuts a site off",
+                f.critical_edges,
+                after.map(|a| a.critical_edges),
+            ),
+            (
+                "Sites a single road failure cuts off",
+                f.sites_with_single_points_of_failure,
+                after.map(|a| a.sites_with_single_points_of_failure),
+            ),
+            ("Bridges (any)", f.bridges, after.map(|a| a.bridges)),
+            (
+                "Cut junctions",
+                f.cut_vertices,
+                after.map(|a| a.cut_vertices),
+            ),
+        ] {
+            writeln!(w, "{}", row(label, b, a))?;
+        }
+        writeln!(w, "</table>")?;
+        if let Some(b) = &s.backup {
+            writeln!(
+                w,
+                "<p>Backup links (backup.geojson, work orders after the plan's): {} repairs in {} \
+                 ways round, {:.3} repair-metres.</p>",
+                b.repairs, b.links, b.cost
+            )?;
+            if !b.sites_without_possible_backup.is_empty() {
+                writeln!(
+                    w,
+                    "<table><tr><th>Site with no possible backup</th><th>Roads (edges) with no way round</th></tr>"
+                )?;
+                for sf in &b.sites_without_possible_backup {
+                    let list: Vec<String> = sf.failures.iter().map(|e| e.to_string()).collect();
+                    writeln!(
+                        w,
+                        "<tr><td>{}</td><td>{}</td></tr>",
+                        esc(&sf.site),
+                        list.join(", ")
+                    )?;
+                }
+                writeln!(w, "</table>")?;
+            }
+        }
+    }
     writeln!(w, "<h2>Geometry checks (qa.geojson)</h2><table>")?;
     for (k, v) in &s.counts.qa {
         writeln!(w, "<tr><th>{}</th><td>{v}</td></tr>", esc(k))?;

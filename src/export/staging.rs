@@ -17,6 +17,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "qa.geojson",
     "work-orders.csv",
     "fragility.geojson",
+    "backup.geojson",
     "plan.svg",
     "plan.png",
     "report.html",

@@ -190,6 +190,8 @@ pub struct Summary {
     pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
     /// Single points of failure after the plan (plans with sites; null otherwise).
     pub fragility: Option<super::fragility::FragilityFigures>,
+    /// Backup links (with --redundancy; null otherwise): cost, repairs and the fragility after.
+    pub backup: Option<super::backup::BackupFigures>,
     /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
     pub phases: Vec<PhaseFigures>,
     /// Figures about the critical sites (null for a whole-network plan without sites).

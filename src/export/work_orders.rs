@@ -1,16 +1,19 @@
 //! `work-orders.csv`: one row per repair in order, for crews (RFC 4180 CSV, opens in any
-//! spreadsheet).
+//! spreadsheet): the plan's repairs, then any backup links' repairs.
 
+use super::backup::BackupRow;
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::order::Step;
 use std::io::Write;
 
-/// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends and
-/// the sites each repair completes.
+/// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends,
+/// the sites each repair completes, and its purpose (`plan`, or `backup` for backup links, which
+/// have no phase).
 pub fn write_work_orders<W: Write>(
     w: W,
     net: &Network,
     steps: &[Step],
+    backup: &[BackupRow],
     site_ids: &[String],
 ) -> std::io::Result<()> {
     let mut c = csv::Writer::from_writer(w);
@@ -32,12 +35,40 @@ pub fn write_work_orders<W: Write>(
         "to_lat",
         "completes_sites",
         "over_capacity",
+        "purpose",
     ])
     .map_err(io)?;
-    for s in steps {
-        let e = &net.edges[s.edge as usize];
+    let rows = steps
+        .iter()
+        .map(|s| {
+            let completes: Vec<&str> = s
+                .completes
+                .iter()
+                .filter_map(|&i| site_ids.get(i).map(String::as_str))
+                .collect();
+            (
+                s.edge,
+                s.order,
+                s.phase.to_string(),
+                completes.join(";"),
+                s.over_capacity,
+                "plan",
+            )
+        })
+        .chain(backup.iter().map(|b| {
+            (
+                b.edge,
+                b.order,
+                String::new(),
+                String::new(),
+                false,
+                "backup",
+            )
+        }));
+    for (edge, order, phase, completes, over, purpose) in rows {
+        let e = &net.edges[edge as usize];
         let meta = &net.features[e.feature as usize];
-        let g = net.edge_geometry(s.edge as usize);
+        let g = net.edge_geometry(edge as usize);
         let (a, b) = (g[0], g[g.len() - 1]);
         let f7 = |x: f64| super::geojson::trimmed(x, 7);
         let id = match &meta.source_id {
@@ -45,15 +76,10 @@ pub fn write_work_orders<W: Write>(
             Some(v) => v.to_string(),
             None => String::new(),
         };
-        let completes: Vec<&str> = s
-            .completes
-            .iter()
-            .filter_map(|&i| site_ids.get(i).map(String::as_str))
-            .collect();
         c.write_record([
-            s.order.to_string(),
-            s.phase.to_string(),
-            s.edge.to_string(),
+            order.to_string(),
+            phase,
+            edge.to_string(),
             meta.source_index.to_string(),
             id,
             meta.label.clone().unwrap_or_default(),
@@ -67,8 +93,9 @@ pub fn write_work_orders<W: Write>(
             f7(a[1]),
             f7(b[0]),
             f7(b[1]),
-            completes.join(";"),
-            s.over_capacity.to_string(),
+            completes,
+            over.to_string(),
+            purpose.to_string(),
         ])
         .map_err(io)?;
     }

@@ -4,10 +4,12 @@
 //! [`summary`] turns the stages' results into `summary.json`.
 
 pub mod check;
+mod resilience;
 mod schedule;
 pub mod summary;
 
-use schedule::{fragility_report, schedule};
+use resilience::{backup_plan, fragility_report};
+use schedule::schedule;
 
 use crate::export::sites::SiteRow;
 use crate::export::{self, ExportError, Summary};
@@ -66,6 +68,8 @@ pub struct PlanJob {
     /// Most repair-metres to spend: when the sites plan costs more, the sites giving the most
     /// priority per repair-metre are joined first, within the budget.
     pub budget: Option<f64>,
+    /// Plan backup links so every site survives any single road failure (sites plans only).
+    pub redundancy: bool,
 }
 
 impl PlanJob {
@@ -90,6 +94,7 @@ impl PlanJob {
             report_distance_m: 50.0,
             crew_capacity: None,
             budget: None,
+            redundancy: false,
             name: None,
         }
     }
@@ -147,6 +152,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         return Err(IngestError::Setting {
             name: "--budget",
             message: format!("{b} repair-metres is not a number ≥ 0"),
+        }
+        .into());
+    }
+    if job.redundancy && (job.sites.is_none() || job.whole_network) {
+        return Err(IngestError::Setting {
+            name: "--redundancy",
+            message: "backup links join sites to the hub: give --sites (and not --whole-network)"
+                .into(),
         }
         .into());
     }
@@ -288,14 +301,21 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let fragile = match (&site_layer, &site_plan) {
         (Some(sl), Some(_)) => {
             let _s = progress.stage("finding single points of failure");
-            Some(fragility_report(
+            Some(fragility_report(&graph, &plan.edges, sl, &attachments, hub))
+        }
+        _ => None,
+    };
+    let backup = match (&site_layer, &site_plan) {
+        (Some(sl), Some(_)) if job.redundancy => {
+            let _s = progress.stage("planning backup links");
+            Some(backup_plan(
                 &graph,
-                &plan,
+                &plan.edges,
                 sl,
                 &attachments,
                 hub,
-                &steps,
-            ))
+                steps.len(),
+            )?)
         }
         _ => None,
     };
@@ -330,6 +350,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     );
     summary.phases = summary::phases(&graph, &steps, sites.as_ref());
     summary.fragility = fragile.as_ref().map(|f| f.figures.clone());
+    summary.backup = backup.as_ref().map(|b| b.figures.clone());
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
@@ -365,6 +386,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 qa: &noding.qa_points,
                 steps: &steps,
                 fragility: fragile.as_ref(),
+                backup: backup.as_ref(),
                 title: &title,
                 marks: &marks,
                 site_ids: &sites
@@ -411,6 +433,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "report_distance_m": job.report_distance_m,
         "crew_capacity": job.crew_capacity,
         "budget": job.budget,
+        "redundancy": job.redundancy,
         "category_field": s.category_field,
         "cost_table": {
             "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {

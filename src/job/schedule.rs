@@ -1,4 +1,4 @@
-//! After the plan: the order of repairs and their day-phases, and the single points of failure.
+//! After the plan: the order of repairs and their day-phases.
 
 use super::PlanJob;
 use crate::ingest::attach::Attachment;
@@ -77,61 +77,4 @@ pub(super) fn schedule(
         job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
     );
     steps
-}
-
-/// The network after the plan (intact roads plus planned repairs) and its single points of failure
-/// for the sites.
-pub(super) fn fragility_report(
-    graph: &crate::solve::graph::EdgeList,
-    plan: &Plan,
-    sl: &SiteLayer,
-    attachments: &[Attachment],
-    hub: Option<usize>,
-    steps: &[crate::solve::order::Step],
-) -> crate::export::fragility::FragilityLayer {
-    use crate::solve::graph::UNUSABLE;
-    let mut in_plan = vec![false; graph.len()];
-    for &e in &plan.edges {
-        in_plan[e as usize] = true;
-    }
-    let after = crate::solve::graph::EdgeList {
-        vertices: graph.vertices,
-        ends: graph.ends.clone(),
-        cost: (0..graph.len())
-            .map(|e| {
-                let c = graph.cost[e];
-                if c == UNUSABLE || (c > 0 && !in_plan[e]) {
-                    UNUSABLE
-                } else {
-                    c
-                }
-            })
-            .collect(),
-    };
-    let roots: Vec<u32> = hub
-        .and_then(|h| attachments[h].junction)
-        .into_iter()
-        .collect();
-    let _ = steps;
-    let f = crate::solve::fragility::fragility(&after, &roots);
-    let mut protects: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
-    let mut per_site: Vec<(usize, Vec<u32>)> = Vec::new();
-    for (i, a) in attachments.iter().enumerate() {
-        let Some(j) = a.junction else { continue };
-        // Only sites that reach the hub at all can be cut off from it.
-        if Some(i) == hub || !roots.iter().any(|&r| f.in_subtree(r, j)) {
-            continue;
-        }
-        let mut failures = Vec::new();
-        for (b, &child) in f.bridge_child.iter().enumerate() {
-            if f.in_subtree(child, j) && roots.iter().all(|&r| !f.in_subtree(child, r)) {
-                protects[b].push(i);
-                failures.push(f.bridges[b]);
-            }
-        }
-        if !failures.is_empty() {
-            per_site.push((i, failures));
-        }
-    }
-    crate::export::fragility::FragilityLayer::new(&f, protects, per_site, sl)
 }

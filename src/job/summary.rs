@@ -83,6 +83,7 @@ pub fn build(
         damage_reports: None,
         phases: Vec::new(),
         fragility: None,
+        backup: None,
         sites: sites.map(sites_figures),
         total_cost: cost_to_repair_metres(plan.total_cost),
         lower_bound: cost_to_repair_metres(plan.lower_bound),

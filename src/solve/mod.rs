@@ -4,6 +4,8 @@
 //!   usable network, two independent implementations that must agree on total cost.
 //! - [`components`](components::components): which junctions can reach each other at all.
 
+pub mod arborescence;
+pub mod backup;
 pub mod components;
 pub mod disjoint;
 pub mod fragility;

@@ -1,0 +1,112 @@
+//! `backup.geojson` and the backup figures: the further repairs that keep every site joined to the
+//! hub after any single road failure, numbered after the plan's repairs.
+
+use super::fragility::{FragilityFigures, SiteFailures};
+use super::geojson::{GeoJsonWriter, Prop};
+use crate::network::{Network, cost_to_repair_metres};
+use crate::solve::backup::Backup;
+use serde::Serialize;
+
+/// One added repair.
+#[derive(Debug, Clone)]
+pub struct BackupRow {
+    /// The edge to repair.
+    pub edge: u32,
+    /// Position in the repair order, after every repair of the plan.
+    pub order: u32,
+    /// The backup link (way round) it belongs to, 1-based.
+    pub link: u32,
+    /// Ids of the sites whose single points of failure that link removes (some or all of them).
+    pub protects: Vec<String>,
+}
+
+/// Backup figures for summary.json.
+#[derive(Debug, Clone, Serialize, Default)]
+pub struct BackupFigures {
+    /// Total cost of the added repairs, repair-metres.
+    pub cost: f64,
+    /// Number of added repairs (edges).
+    pub repairs: usize,
+    /// Number of ways round (links) they form.
+    pub links: usize,
+    /// Bridges on a hub-to-site path before the backup (each needs a way round).
+    pub bridges_needing_backup: usize,
+    /// Fragility once the plan and the backup are both repaired.
+    pub fragility_after: Option<FragilityFigures>,
+    /// Sites still cut off by some single failure that no repair can avoid (one road in).
+    pub sites_without_possible_backup: Vec<SiteFailures>,
+}
+
+/// The rows of `backup.geojson` and the figures.
+#[derive(Debug, Clone, Default)]
+pub struct BackupLayer {
+    /// Added repairs in order.
+    pub rows: Vec<BackupRow>,
+    /// The figures.
+    pub figures: BackupFigures,
+}
+
+impl BackupLayer {
+    /// Builds the layer from the solver's result, the fragility after it, and the sites (by id)
+    /// with failures no backup can avoid.
+    pub fn new(
+        rows: Vec<BackupRow>,
+        b: &Backup,
+        after: FragilityFigures,
+        no_backup: Vec<(String, Vec<u32>)>,
+    ) -> Self {
+        BackupLayer {
+            figures: BackupFigures {
+                cost: cost_to_repair_metres(b.cost),
+                repairs: rows.len(),
+                links: b.links.len(),
+                bridges_needing_backup: b.needed,
+                fragility_after: Some(after),
+                sites_without_possible_backup: no_backup
+                    .into_iter()
+                    .map(|(site, failures)| SiteFailures { site, failures })
+                    .collect(),
+            },
+            rows,
+        }
+    }
+}
+
+/// Writes the added repairs as LineStrings in order: order, link, edge, road, length, damage,
+/// cost and the sites the link protects.
+pub fn write_backup<W: std::io::Write>(
+    w: W,
+    net: &Network,
+    layer: &BackupLayer,
+) -> std::io::Result<()> {
+    let mut gj = GeoJsonWriter::new(w)?;
+    for r in &layer.rows {
+        let edge = &net.edges[r.edge as usize];
+        let meta = &net.features[edge.feature as usize];
+        let joined = r.protects.join(";");
+        let damage = match edge.damage.factor() {
+            Some(f) => Prop::Num(f),
+            None => Prop::Str("closed"),
+        };
+        gj.line(
+            &[
+                ("order", Prop::Int(r.order as i64)),
+                ("link", Prop::Int(r.link as i64)),
+                ("edge", Prop::Int(r.edge as i64)),
+                ("source_index", Prop::Int(meta.source_index as i64)),
+                (
+                    "source_id",
+                    meta.source_id.as_ref().map_or(Prop::Null, Prop::Json),
+                ),
+                ("road", meta.label.as_deref().map_or(Prop::Null, Prop::Str)),
+                ("length_m", Prop::Fixed3(edge.length_m)),
+                ("damage", damage),
+                ("cost", Prop::Fixed3(cost_to_repair_metres(edge.cost))),
+                ("sites_protected", Prop::Str(&joined)),
+            ],
+            net.edge_geometry(r.edge as usize),
+        )?;
+    }
+    gj.finish()?;
+    Ok(())
+}
