@@ -1,72 +1,12 @@
 //! The Steiner solver against an exact Dreyfus–Wagner dynamic program (Networks 1, 1971) on small
 //! random graphs with up to 8 terminals, zero-cost and closed edges included.
 
+mod common;
+use common::exact::dreyfus_wagner;
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
 use reknit::solve::graph::{EdgeList, UNUSABLE};
 use reknit::solve::steiner::{Effort, steiner_tree, tree::check_steiner_tree};
-
-/// Exact optimum by Dreyfus–Wagner over all-pairs shortest paths (Floyd–Warshall).
-fn dreyfus_wagner(g: &EdgeList, terminals: &[u32]) -> u64 {
-    let n = g.vertices;
-    const INF: u64 = u64::MAX / 4;
-    let mut d = vec![vec![INF; n]; n];
-    for (v, row) in d.iter_mut().enumerate() {
-        row[v] = 0;
-    }
-    for e in 0..g.len() {
-        if g.usable(e) {
-            let [a, b] = g.ends[e];
-            let (a, b) = (a as usize, b as usize);
-            d[a][b] = d[a][b].min(g.cost[e]);
-            d[b][a] = d[b][a].min(g.cost[e]);
-        }
-    }
-    for k in 0..n {
-        for i in 0..n {
-            for j in 0..n {
-                let via = d[i][k] + d[k][j];
-                if via < d[i][j] {
-                    d[i][j] = via;
-                }
-            }
-        }
-    }
-    let k = terminals.len();
-    if k <= 1 {
-        return 0;
-    }
-    // dp[S][v]: cheapest tree spanning terminal subset S plus vertex v.
-    let full = 1usize << k;
-    let mut dp = vec![vec![INF; n]; full];
-    for (i, &t) in terminals.iter().enumerate() {
-        for v in 0..n {
-            dp[1 << i][v] = d[t as usize][v];
-        }
-    }
-    for s in 1..full {
-        if s.count_ones() < 2 {
-            continue;
-        }
-        let mut best = vec![INF; n];
-        let mut sub = (s - 1) & s;
-        while sub > 0 {
-            {
-                for (v, b) in best.iter_mut().enumerate() {
-                    let c = dp[sub][v] + dp[s ^ sub][v];
-                    if c < *b {
-                        *b = c;
-                    }
-                }
-            }
-            sub = (sub - 1) & s;
-        }
-        for v in 0..n {
-            dp[s][v] = (0..n).map(|u| best[u] + d[u][v]).min().unwrap();
-        }
-    }
-    dp[full - 1][terminals[0] as usize]
-}
 
 fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
     (4usize..22, 2usize..9).prop_flat_map(|(n, k)| {

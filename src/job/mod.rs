@@ -9,7 +9,7 @@ mod schedule;
 pub mod summary;
 
 use resilience::{backup_plan, fragility_report};
-use schedule::schedule;
+use schedule::{roots_and_targets, schedule};
 
 use crate::export::sites::SiteRow;
 use crate::export::{self, ExportError, Summary};
@@ -272,7 +272,34 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             _ => (solve::minimum_spanning_forest(&graph, job.mst)?, None),
         }
     };
+    // Within a budget smaller than the plan, choose which sites to join.
     let mut left_out = Vec::new();
+    let mut plan = plan;
+    if let (Some(b), Some(sl), Some(sp)) = (job.budget, &site_layer, &site_plan) {
+        let budget = (b * 1000.0).round() as u64;
+        if plan.total_cost > budget {
+            let _s = progress.stage("choosing sites within the budget");
+            let (roots, targets) = roots_and_targets(sl, &attachments, hub, sp);
+            let bp = solve::budget::within_budget(&graph, &plan.edges, &roots, &targets, budget);
+            left_out = bp
+                .left_out
+                .iter()
+                .filter_map(|&(k, need)| need.map(|n| (targets[k].id, n)))
+                .collect();
+            plan.edges = bp.edges;
+            plan.total_cost = bp.cost;
+            let mut trees: Vec<u32> = plan
+                .edges
+                .iter()
+                .map(|&e| comps.of[graph.ends[e as usize][0] as usize])
+                .collect();
+            trees.sort_unstable();
+            trees.dedup();
+            plan.trees = trees.len();
+            plan.lower_bound = 0;
+            plan.bound_complete = false;
+        }
+    }
     let steps = {
         let _s = progress.stage("ordering repairs");
         schedule(
@@ -285,19 +312,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             &attachments,
             hub,
             site_plan.as_ref(),
-            &mut left_out,
         )
     };
-    // Within a budget, the plan is what the budgeted order repairs (and the intact roads on it).
-    let mut plan = plan;
-    if job.budget.is_some() && !left_out.is_empty() {
-        let repaired: std::collections::HashSet<u32> = steps.iter().map(|s| s.edge).collect();
-        plan.edges
-            .retain(|&e| graph.cost[e as usize] == 0 || repaired.contains(&e));
-        plan.total_cost = steps.iter().map(|s| graph.cost[s.edge as usize]).sum();
-        plan.lower_bound = 0;
-        plan.bound_complete = false;
-    }
     let fragile = match (&site_layer, &site_plan) {
         (Some(sl), Some(_)) => {
             let _s = progress.stage("finding single points of failure");

@@ -4,6 +4,7 @@ use super::PlanJob;
 use crate::ingest::attach::Attachment;
 use crate::ingest::sites::SiteLayer;
 use crate::solve::Plan;
+use crate::solve::order::Target;
 use crate::solve::site_plan::SitePlan;
 
 /// Orders the plan's repairs (hub's group first) and groups them into day-phases.
@@ -18,46 +19,12 @@ pub(super) fn schedule(
     attachments: &[Attachment],
     hub: Option<usize>,
     site_plan: Option<&SitePlan>,
-    left_out: &mut Vec<(usize, u64)>,
 ) -> Vec<crate::solve::order::Step> {
-    use crate::solve::order::{Target, assign_phases, order_whole_network};
+    use crate::solve::order::{assign_phases, order_whole_network};
     let mut steps = match (sites, site_plan) {
         (Some(sl), Some(sp)) => {
-            let mut roots = Vec::new();
-            if let Some(j) = hub.and_then(|h| attachments[h].junction) {
-                roots.push(j);
-            }
-            for g in &sp.groups {
-                // Each other group grows from its highest-priority site (first on ties).
-                let best = g
-                    .sites
-                    .iter()
-                    .copied()
-                    .fold(None, |b: Option<usize>, i| match b {
-                        Some(k) if sl.sites[k].priority >= sl.sites[i].priority => Some(k),
-                        _ => Some(i),
-                    });
-                if let Some(j) = best.and_then(|i| attachments[i].junction) {
-                    roots.push(j);
-                }
-            }
-            let targets: Vec<Target> = sl
-                .sites
-                .iter()
-                .enumerate()
-                .filter_map(|(i, s)| {
-                    attachments[i].junction.map(|j| Target {
-                        junction: j,
-                        weight: s.priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
-                        id: i,
-                    })
-                })
-                .collect();
-            let budget = job.budget.map(|b| (b * 1000.0).round() as u64);
-            let (steps, left) =
-                crate::solve::order::order_within(graph, &plan.edges, &roots, &targets, budget);
-            left_out.extend(left);
-            steps
+            let (roots, targets) = roots_and_targets(sl, attachments, hub, sp);
+            crate::solve::order::order_for_targets(graph, &plan.edges, &roots, &targets)
         }
         _ => {
             let mut first = vec![u32::MAX; comps.count];
@@ -77,4 +44,45 @@ pub(super) fn schedule(
         job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
     );
     steps
+}
+
+/// The roots of a sites plan (the hub, then each other group's highest-priority site) and the
+/// sites as targets weighted by priority (the hub above all).
+pub(super) fn roots_and_targets(
+    sl: &SiteLayer,
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    sp: &SitePlan,
+) -> (Vec<u32>, Vec<Target>) {
+    let mut roots = Vec::new();
+    if let Some(j) = hub.and_then(|h| attachments[h].junction) {
+        roots.push(j);
+    }
+    for g in &sp.groups {
+        // Each other group grows from its highest-priority site (first on ties).
+        let best = g
+            .sites
+            .iter()
+            .copied()
+            .fold(None, |b: Option<usize>, i| match b {
+                Some(k) if sl.sites[k].priority >= sl.sites[i].priority => Some(k),
+                _ => Some(i),
+            });
+        if let Some(j) = best.and_then(|i| attachments[i].junction) {
+            roots.push(j);
+        }
+    }
+    let targets: Vec<Target> = sl
+        .sites
+        .iter()
+        .enumerate()
+        .filter_map(|(i, s)| {
+            attachments[i].junction.map(|j| Target {
+                junction: j,
+                weight: s.priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
+                id: i,
+            })
+        })
+        .collect();
+    (roots, targets)
 }

@@ -6,6 +6,7 @@
 
 pub mod arborescence;
 pub mod backup;
+pub mod budget;
 pub mod components;
 pub mod disjoint;
 pub mod fragility;

@@ -1,6 +1,8 @@
 //! One harness for the end-to-end tests: runs the binary, makes fixtures, finds shared data and peers.
 #![allow(dead_code)]
 
+pub mod exact;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
