@@ -294,27 +294,17 @@ fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
     }
 }
 
-#[test]
-fn bridges_and_cut_vertices_match_networkx_on_liechtenstein() {
-    // Reference library: networkx bridges() and articulation_points(), on the noded Liechtenstein
-    // network with every road usable.
-    use reknit::ingest::roads::{RoadSettings, read_roads};
-    use reknit::ingest::source::Source;
-    let Some(roads) = shared(LI_GEOJSON) else {
-        return;
-    };
-    let Some(py) = python_with(&["networkx"]) else {
-        return;
-    };
-    let layer = read_roads(&Source::File(roads), &RoadSettings::default()).unwrap();
-    let (net, _) = reknit::ingest::build_network(layer, &RoadSettings::default(), false).unwrap();
-    let g = net.weighted_edges();
-    let f = reknit::solve::fragility::fragility(&g, &[]);
+/// Our bridges and cut vertices of `g` equal networkx's bridges() and articulation_points().
+fn compare_bridges(py: &std::path::Path, g: &reknit::solve::graph::EdgeList, what: &str) {
+    let f = reknit::solve::fragility::fragility(g, &[]);
     let d = tmp();
     let list = d.path().join("edges.txt");
-    let text: String = g.ends.iter().map(|[a, b]| format!("{a} {b}\n")).collect();
+    let text: String = (0..g.len())
+        .filter(|&e| g.usable(e) || g.ends[e][0] == g.ends[e][1])
+        .map(|e| format!("{} {}\n", g.ends[e][0], g.ends[e][1]))
+        .collect();
     std::fs::write(&list, text).unwrap();
-    let out = python_json(&py, "peer_bridges_networkx.py", &list);
+    let out = python_json(py, "peer_bridges_networkx.py", &list);
     let mut ours: Vec<[u32; 2]> = f
         .bridges
         .iter()
@@ -325,8 +315,58 @@ fn bridges_and_cut_vertices_match_networkx_on_liechtenstein() {
         .collect();
     ours.sort();
     let theirs: Vec<[u32; 2]> = serde_json::from_value(out["bridges"].clone()).unwrap();
-    assert_eq!(ours.len(), theirs.len(), "bridge count");
-    assert_eq!(ours, theirs);
+    assert_eq!(ours.len(), theirs.len(), "{what}: bridge count");
+    assert_eq!(ours, theirs, "{what}");
     let cuts: Vec<u32> = serde_json::from_value(out["articulation_points"].clone()).unwrap();
-    assert_eq!(f.cut_vertices, cuts);
+    assert_eq!(f.cut_vertices, cuts, "{what}");
+    eprintln!(
+        "{what}: {} bridges, {} cut vertices, equal to networkx",
+        ours.len(),
+        cuts.len()
+    );
+}
+
+#[test]
+fn bridges_and_cut_vertices_match_networkx_on_real_and_random_networks() {
+    // Reference library: networkx bridges() and articulation_points(), on the noded Liechtenstein
+    // network and the GeoDaNet streets (open data, licences beside them in ../shared) with every
+    // road usable, and on random sparse multigraphs with closed edges.
+    use reknit::ingest::roads::{RoadSettings, read_roads};
+    use reknit::ingest::source::Source;
+    let Some(py) = python_with(&["networkx"]) else {
+        return;
+    };
+    for rel in [LI_GEOJSON, "data/roads/geodanet-streets/streets.shp"] {
+        let Some(roads) = shared(rel) else {
+            continue;
+        };
+        let layer = read_roads(&Source::File(roads), &RoadSettings::default()).unwrap();
+        let (net, _) =
+            reknit::ingest::build_network(layer, &RoadSettings::default(), false).unwrap();
+        compare_bridges(&py, &net.weighted_edges(), rel);
+    }
+    let mut rng = reknit::rng::Rng::new(31);
+    for k in 0..6 {
+        let n = 500 + 500 * k;
+        let mut ends = Vec::new();
+        for _ in 0..(n * 6 / 5) {
+            ends.push([rng.below(n as u64) as u32, rng.below(n as u64) as u32]);
+        }
+        let cost = ends
+            .iter()
+            .map(|_| {
+                if rng.below(8) == 0 {
+                    reknit::solve::graph::UNUSABLE
+                } else {
+                    rng.below(3)
+                }
+            })
+            .collect();
+        let g = reknit::solve::graph::EdgeList {
+            vertices: n,
+            ends,
+            cost,
+        };
+        compare_bridges(&py, &g, &format!("random multigraph {k} ({n} vertices)"));
+    }
 }
