@@ -19,6 +19,7 @@
 pub mod batch;
 pub mod cautions;
 pub mod export;
+pub mod fuzzing;
 mod fxhash;
 pub mod ingest;
 pub mod job;

@@ -18,6 +18,13 @@ pub enum Source {
         /// The content.
         bytes: &'static [u8],
     },
+    /// Bytes held in memory (fuzzing, embedding), with the name shown in messages.
+    Memory {
+        /// Display name (its extension chooses the format where that matters).
+        name: String,
+        /// The content.
+        bytes: std::sync::Arc<[u8]>,
+    },
 }
 
 impl Source {
@@ -25,7 +32,7 @@ impl Source {
     pub fn display_path(&self) -> PathBuf {
         match self {
             Source::File(p) => p.clone(),
-            Source::Bundled { name, .. } => PathBuf::from(name),
+            Source::Bundled { name, .. } | Source::Memory { name, .. } => PathBuf::from(name),
         }
     }
 
@@ -46,6 +53,7 @@ impl Source {
                 Box::new(f)
             }
             Source::Bundled { bytes, .. } => Box::new(*bytes),
+            Source::Memory { bytes, .. } => Box::new(std::io::Cursor::new(bytes.clone())),
         };
         // Hash whole buffer refills, not the single bytes a parser asks for.
         Ok(BufReader::with_capacity(
@@ -62,7 +70,7 @@ impl Source {
     pub fn path(&self) -> Option<&Path> {
         match self {
             Source::File(p) => Some(p),
-            Source::Bundled { .. } => None,
+            Source::Bundled { .. } | Source::Memory { .. } => None,
         }
     }
 }
