@@ -10,8 +10,11 @@ use crate::solve::graph::{EdgeList, UNUSABLE};
 use std::io::Write;
 use std::sync::Arc;
 
+/// A fuzz target: arbitrary bytes in, no panic out.
+pub type Target = fn(&[u8]);
+
 /// Every fuzz target by name, for the replay test.
-pub const TARGETS: &[(&str, fn(&[u8]))] = &[
+pub const TARGETS: &[(&str, Target)] = &[
     ("roads_geojson", roads_geojson),
     ("plan_pieces", plan_pieces),
     ("sites_csv", sites_csv),
@@ -117,11 +120,9 @@ pub fn sites_geojson(data: &[u8]) {
 
 /// Damage zones (GeoJSON polygons), applied to a small fixed network.
 pub fn zones(data: &[u8]) {
-    let Ok(zl) = crate::ingest::zones::read_zones(
-        &memory("zones.geojson", data),
-        &Default::default(),
-        None,
-    ) else {
+    let Ok(zl) =
+        crate::ingest::zones::read_zones(&memory("zones.geojson", data), &Default::default(), None)
+    else {
         return;
     };
     let roads = br#"{"type":"FeatureCollection","features":[
@@ -135,7 +136,8 @@ pub fn zones(data: &[u8]) {
 
 /// Field damage reports (GeoJSON points).
 pub fn reports(data: &[u8]) {
-    let _ = crate::ingest::reports::read_reports(&memory("reports.geojson", data), &Default::default());
+    let _ =
+        crate::ingest::reports::read_reports(&memory("reports.geojson", data), &Default::default());
 }
 
 /// The cost table (TOML) and lookups in it.

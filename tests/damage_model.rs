@@ -197,58 +197,6 @@ fn damage_zones_cost_the_pieces_inside_them() {
 }
 
 #[test]
-fn invalid_zones_are_refused() {
-    let d = tmp();
-    let r = write_collection(
-        d.path(),
-        "r.geojson",
-        &[line(&[[0.0, 0.0], [100.0 * M, 0.0]], "{}")],
-    );
-    for (name, ring, needle) in [
-        (
-            "open.geojson",
-            vec![[0.0, 0.0], [0.001, 0.0], [0.001, 0.001], [0.0, 0.001]],
-            "not closed",
-        ),
-        (
-            "bowtie.geojson",
-            vec![
-                [0.0, 0.0],
-                [0.001, 0.001],
-                [0.001, 0.0],
-                [0.0, 0.001],
-                [0.0, 0.0],
-            ],
-            "not valid",
-        ),
-        (
-            "flat.geojson",
-            vec![[0.0, 0.0], [0.001, 0.0], [0.002, 0.0], [0.0, 0.0]],
-            "zero area",
-        ),
-    ] {
-        let z = zone(d.path(), name, &ring, "{}");
-        let out = d.path().join(format!("o-{name}"));
-        let o = run(&[
-            "plan",
-            "--roads",
-            r.to_str().unwrap(),
-            "--damage-zones",
-            z.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-        ]);
-        assert_eq!(o.status.code(), Some(2), "{name}: {}", stderr(&o));
-        let msg = stderr(&o);
-        assert!(
-            msg.contains(name) && msg.contains("feature 0") && msg.contains(needle),
-            "{name}: {msg}"
-        );
-        assert!(!out.exists());
-    }
-}
-
-#[test]
 fn field_reports_apply_to_the_nearest_road_and_unmatched_are_listed() {
     let d = tmp();
     let r = write_collection(

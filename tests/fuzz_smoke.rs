@@ -68,7 +68,8 @@ fn mutate(rng: &mut Rng, seed: &[u8], other: &[u8]) -> Vec<u8> {
                     while e < d.len() && (d[e].is_ascii_digit() || d[e] == b'.') {
                         e += 1;
                     }
-                    let t: &[u8] = [&b"1e300"[..], b"0", b"99999999999", b"-1"][rng.below(4) as usize];
+                    let t: &[u8] =
+                        [&b"1e300"[..], b"0", b"99999999999", b"-1"][rng.below(4) as usize];
                     d.splice(s..e, t.iter().copied());
                 }
             }

@@ -35,6 +35,21 @@ pub enum ExportError {
     /// The output path exists and is not a folder.
     #[error("{0}: the output path exists and is not a folder")]
     NotAFolder(PathBuf),
+    /// The output path is a symbolic link.
+    #[error(
+        "{0}: the output folder is a symbolic link; give the folder it points to (outputs are never written through a link)"
+    )]
+    Symlink(PathBuf),
+    /// The output folder is an input's folder or a folder above an input.
+    #[error(
+        "{out}: --out is the folder of, or a folder above, the input {input}; choose a folder of its own so outputs never mix with or replace inputs"
+    )]
+    OverInputs {
+        /// The output folder.
+        out: PathBuf,
+        /// The input it would hold.
+        input: PathBuf,
+    },
     /// The output folder already holds outputs and `--force` was not given.
     #[error("{dir}: already holds outputs ({files}); pass --force to replace them")]
     WouldReplace {

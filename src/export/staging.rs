@@ -29,14 +29,51 @@ pub const COMPLETE_MARKER: &str = "summary.json";
 
 const STAGING_PREFIX: &str = ".reknit-staging-";
 
+/// The absolute form of `p` with symbolic links resolved, for the part that exists.
+fn resolved(p: &Path) -> std::path::PathBuf {
+    let abs = std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
+    let mut head = abs.as_path();
+    let mut tail = Vec::new();
+    loop {
+        if let Ok(c) = fs::canonicalize(head) {
+            let mut r = c;
+            for t in tail.iter().rev() {
+                r.push(t);
+            }
+            return r;
+        }
+        match (head.parent(), head.file_name()) {
+            (Some(parent), Some(name)) => {
+                tail.push(name.to_os_string());
+                head = parent;
+            }
+            _ => return abs,
+        }
+    }
+}
+
+/// Refuses an output folder that is an input's own folder or lies above an input: an output set
+/// must never mix with or replace the files it was made from.
+pub fn check_apart(out: &Path, inputs: &[&Path]) -> Result<(), ExportError> {
+    let o = resolved(out);
+    for &input in inputs {
+        let i = resolved(input);
+        if i.parent() == Some(o.as_path()) || i.starts_with(&o) {
+            return Err(ExportError::OverInputs {
+                out: out.to_path_buf(),
+                input: input.to_path_buf(),
+            });
+        }
+    }
+    Ok(())
+}
+
 /// Checks, before any work is done, that `out` can take an output set (nothing is written).
 pub fn preflight(out: &Path, force: bool) -> Result<(), ExportError> {
     match fs::symlink_metadata(out) {
         Ok(m) if m.is_dir() => {}
         Ok(m) if m.file_type().is_symlink() => {
-            if !out.is_dir() {
-                return Err(ExportError::NotAFolder(out.to_path_buf()));
-            }
+            return Err(ExportError::Symlink(out.to_path_buf()));
         }
         Ok(_) => return Err(ExportError::NotAFolder(out.to_path_buf())),
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(()),

@@ -107,7 +107,11 @@ impl IngestError {
             geojson::ReadFailure::Syntax { message, feature } => IngestError::Syntax {
                 path,
                 feature,
-                message,
+                message: if message.contains("unicode") || message.contains("UTF-8") {
+                    format!("{message} (the text is not UTF-8; GeoJSON must be, RFC 8259 §8.1)")
+                } else {
+                    message
+                },
             },
             geojson::ReadFailure::NotCollection(message) => {
                 IngestError::NotCollection { path, message }

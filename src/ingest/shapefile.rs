@@ -13,6 +13,8 @@ use super::source::{HashingReader, InputRecord, Source};
 use serde_json::Value;
 use shapefile::Shape;
 use shapefile::dbase::FieldValue;
+use std::fs::File;
+use std::io::BufReader;
 use std::path::Path;
 
 /// Reads a `.shp` road layer with its `.dbf` attributes and `.prj` CRS (or `--crs`).
@@ -36,11 +38,8 @@ pub fn read_shapefile_roads(
             )));
         }
     }
-    let mut reader =
-        shapefile::Reader::from_path(path).map_err(|e| fail(shapefile_error(path, e)))?;
-    let fields: Vec<String> = shapefile::dbase::Reader::from_path(path.with_extension("dbf"))
-        .map(|r| r.fields().iter().map(|f| f.name().to_string()).collect())
-        .unwrap_or_default();
+    let mut reader = open_set(path)?;
+    let fields = reader_fields(path);
     let damage_field = &settings.damage.field;
     if !fields.iter().any(|f| f == damage_field) && damage_field != "damage" {
         return Err(IngestError::Feature {
@@ -230,6 +229,89 @@ pub fn field_json(v: &FieldValue) -> Value {
 }
 
 /// A plain message for the shapefile crate's errors.
+/// An open Shapefile set: shapes from the .shp (with its .shx) and records from the .dbf.
+pub type SetReader = shapefile::Reader<BufReader<File>, BufReader<File>>;
+
+/// The .dbf beside `path`, in either letter case.
+fn sibling(path: &Path, ext: &str) -> std::path::PathBuf {
+    let lower = path.with_extension(ext);
+    let upper = path.with_extension(ext.to_uppercase());
+    if !lower.exists() && upper.exists() {
+        upper
+    } else {
+        lower
+    }
+}
+
+/// Opens a Shapefile set for reading. The .dbf text is decoded by its declared code page (a .cpg
+/// file, else the dBASE language driver byte); a table declared or assumed UTF-8 is read lossily
+/// (undecodable bytes become U+FFFD) rather than refused. A .dbf whose record count differs from
+/// the number of shapes is refused: rows would pair with the wrong roads or be lost.
+pub fn open_set(path: &Path) -> Result<SetReader, IngestError> {
+    use shapefile::dbase;
+    let fail = |message: String| IngestError::Io {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(message),
+    };
+    let shapes =
+        shapefile::ShapeReader::from_path(path).map_err(|e| fail(shapefile_error(path, e)))?;
+    let dbf = sibling(path, "dbf");
+    let open_dbf = || {
+        File::open(&dbf)
+            .map(BufReader::new)
+            .map_err(|e| IngestError::Io {
+                path: dbf.clone(),
+                source: e,
+            })
+    };
+    let declared = std::fs::read_to_string(sibling(path, "cpg"))
+        .ok()
+        .and_then(|label| dbase::encoding::DynEncoding::from_name(&label));
+    let dbf_fail = |e: dbase::Error| IngestError::Io {
+        path: dbf.clone(),
+        source: std::io::Error::other(format!("not a readable dBASE table: {e}")),
+    };
+    let table = match declared {
+        Some(enc) => dbase::ReaderBuilder::new()
+            .with_encoding(enc)
+            .build(open_dbf()?)
+            .map_err(dbf_fail)?,
+        None => {
+            let t = dbase::Reader::new(open_dbf()?).map_err(dbf_fail)?;
+            if t.header().code_page_mark == dbase::CodePageMark::Utf8 {
+                dbase::ReaderBuilder::new()
+                    .with_encoding(dbase::UnicodeLossy)
+                    .build(open_dbf()?)
+                    .map_err(dbf_fail)?
+            } else {
+                t
+            }
+        }
+    };
+    let rows = table.header().num_records as usize;
+    let count = shapes
+        .shape_count()
+        .map_err(|e| fail(shapefile_error(path, e)))?;
+    if rows != count {
+        return Err(IngestError::Io {
+            path: dbf.clone(),
+            source: std::io::Error::other(format!(
+                "the attribute table has {rows} record(s) but {} has {count} shape(s); the set is \
+                 inconsistent (a file from another version of the layer?)",
+                path.display()
+            )),
+        });
+    }
+    Ok(shapefile::Reader::new(shapes, table))
+}
+
+/// Field names of an open set's attribute table.
+fn reader_fields(path: &Path) -> Vec<String> {
+    shapefile::dbase::Reader::from_path(sibling(path, "dbf"))
+        .map(|r| r.fields().iter().map(|f| f.name().to_string()).collect())
+        .unwrap_or_default()
+}
+
 fn shapefile_error(path: &Path, e: shapefile::Error) -> String {
     match e {
         shapefile::Error::MissingDbf => format!(

@@ -381,10 +381,7 @@ fn convert(path: &Path, crs: &super::crs::Crs, sites: &mut [Site]) -> Result<(),
 fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, IngestError> {
     use shapefile::Shape;
     let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
-    let mut reader = shapefile::Reader::from_path(path).map_err(|e| IngestError::Io {
-        path: path.to_path_buf(),
-        source: std::io::Error::other(e.to_string()),
-    })?;
+    let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
     for (index, item) in reader.iter_shapes_and_records().enumerate() {
         let (shape, record) =

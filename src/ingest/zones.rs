@@ -190,10 +190,7 @@ fn read_shapefile_zones(
 ) -> Result<ZoneLayer, IngestError> {
     use shapefile::Shape;
     let conv = super::shapefile::layer_crs(path, crs)?;
-    let mut reader = shapefile::Reader::from_path(path).map_err(|e| IngestError::Io {
-        path: path.to_path_buf(),
-        source: std::io::Error::other(e.to_string()),
-    })?;
+    let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
     for (index, item) in reader.iter_shapes_and_records().enumerate() {
         let fail = |field: &str, message: String| IngestError::Feature {

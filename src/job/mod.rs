@@ -131,6 +131,11 @@ pub struct SitesResult {
 /// Runs the whole pipeline and returns the summary that was written.
 pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError> {
     export::staging::preflight(&job.out, job.force)?;
+    let input_paths: Vec<&std::path::Path> = std::iter::once(&job.roads)
+        .chain([&job.sites, &job.zones, &job.reports].into_iter().flatten())
+        .filter_map(|s| s.path())
+        .collect();
+    export::staging::check_apart(&job.out, &input_paths)?;
     job.road_settings.validate()?;
     if !(job.max_attach_m.is_finite()
         && job.max_attach_m >= 0.0
