@@ -295,4 +295,3 @@ fn no_sites_and_one_site_are_trivial_plans() {
         );
     }
 }
-

@@ -1,8 +1,13 @@
 //! All-or-nothing output folders.
 //!
-//! Files are written into a hidden staging folder inside the output folder and moved into place only
-//! when every one is complete, `summary.json` last. A folder holding a `summary.json` therefore holds
-//! a complete, consistent output set; a run killed at any point leaves at worst a folder without one.
+//! Files are written into a hidden staging folder beside the output folder, each synced to disk.
+//! When every one is complete the staging folder becomes the output folder by renames: a new
+//! folder is renamed into place; an earlier set is first renamed aside, then the staged one takes
+//! its name, then the old one is deleted. A run killed at any moment therefore leaves the previous
+//! complete set, or no output folder, or the new complete set — never a mix, never a half-written
+//! file. Only when the output folder also holds files reknit did not write are the outputs
+//! replaced one by one (the old `summary.json` removed first, the new one moved in last), so a
+//! folder holding a `summary.json` always holds a complete, consistent set.
 
 use super::ExportError;
 use std::fs::{self, File};
@@ -28,6 +33,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
 pub const COMPLETE_MARKER: &str = "summary.json";
 
 const STAGING_PREFIX: &str = ".reknit-staging-";
+const RETIRED_PREFIX: &str = ".reknit-retired-";
 
 /// The absolute form of `p` with symbolic links resolved, for the part that exists.
 fn resolved(p: &Path) -> std::path::PathBuf {
@@ -100,16 +106,41 @@ pub fn preflight(out: &Path, force: bool) -> Result<(), ExportError> {
     Ok(())
 }
 
-/// Removes staging folders left by interrupted runs (a complete set beside them is untouched).
+/// The folder that holds `out`, and `out`'s own name.
+fn parent_and_name(out: &Path) -> (PathBuf, String) {
+    let parent = match out.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let name = out
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "out".into());
+    (parent, name)
+}
+
+/// Removes staging and retired folders left beside (or, from older versions, inside) `out` by
+/// interrupted runs; a complete set is untouched.
 pub fn remove_stale(out: &Path) {
-    if let Ok(rd) = fs::read_dir(out) {
-        for entry in rd.flatten() {
-            if entry
-                .file_name()
-                .to_string_lossy()
-                .starts_with(STAGING_PREFIX)
-            {
-                let _ = fs::remove_dir_all(entry.path());
+    let (parent, name) = parent_and_name(out);
+    let mine = |n: &str| {
+        [STAGING_PREFIX, RETIRED_PREFIX].iter().any(|p| {
+            n.strip_prefix(p)
+                .is_some_and(|rest| rest.starts_with(&format!("{name}-")))
+        })
+    };
+    for (dir, pick) in [(&parent, true), (&out.to_path_buf(), false)] {
+        if let Ok(rd) = fs::read_dir(dir) {
+            for entry in rd.flatten() {
+                let n = entry.file_name().to_string_lossy().into_owned();
+                let stale = if pick {
+                    mine(&n)
+                } else {
+                    n.starts_with(STAGING_PREFIX)
+                };
+                if stale {
+                    let _ = fs::remove_dir_all(entry.path());
+                }
             }
         }
     }
@@ -121,43 +152,30 @@ pub struct Staging {
     dir: PathBuf,
     written: std::sync::Mutex<Vec<String>>,
     committed: bool,
-    created_out: bool,
 }
 
 impl Staging {
-    /// Creates `out` if needed and a fresh staging folder inside it, clearing stale ones.
+    /// Creates a fresh staging folder beside `out` (and `out`'s parent folders if needed),
+    /// clearing stale ones.
     pub fn begin(out: &Path, force: bool) -> Result<Staging, ExportError> {
         preflight(out, force)?;
         let io = |path: &Path| {
             let path = path.to_path_buf();
             move |source| ExportError::Io { path, source }
         };
-        let created_out = !out.exists();
-        fs::create_dir_all(out).map_err(io(out))?;
-        if let Ok(rd) = fs::read_dir(out) {
-            for entry in rd.flatten() {
-                if entry
-                    .file_name()
-                    .to_string_lossy()
-                    .starts_with(STAGING_PREFIX)
-                {
-                    let _ = fs::remove_dir_all(entry.path());
-                }
-            }
-        }
-        let dir = out.join(format!("{STAGING_PREFIX}{}", std::process::id()));
-        if let Err(e) = fs::create_dir(&dir) {
-            if created_out {
-                let _ = fs::remove_dir(out);
-            }
-            return Err(io(&dir)(e));
-        }
+        // Renames need a real name: "." or "a/.." become the folder they stand for.
+        let out = &fs::canonicalize(out)
+            .unwrap_or_else(|_| std::path::absolute(out).unwrap_or(out.to_path_buf()));
+        let (parent, name) = parent_and_name(out);
+        fs::create_dir_all(&parent).map_err(io(out))?;
+        remove_stale(out);
+        let dir = parent.join(format!("{STAGING_PREFIX}{name}-{}", std::process::id()));
+        fs::create_dir(&dir).map_err(io(out))?;
         Ok(Staging {
             out: out.to_path_buf(),
             dir,
             written: Default::default(),
             committed: false,
-            created_out,
         })
     }
 
@@ -188,26 +206,59 @@ impl Staging {
         Ok(())
     }
 
-    /// Moves the staged files into the output folder, replacing any earlier set, `summary.json` last.
+    /// Puts the staged set in place of any earlier one (see the module notes).
     pub fn commit(mut self) -> Result<(), ExportError> {
         let err = |path: PathBuf| move |source| ExportError::Io { path, source };
-        // Retire the old set first: without its marker it no longer looks complete.
-        for name in std::iter::once(&COMPLETE_MARKER).chain(OUTPUT_NAMES.iter()) {
-            let p = self.out.join(name);
-            if p.exists() {
-                fs::remove_file(&p).map_err(err(p.clone()))?;
+        let (parent, name) = parent_and_name(&self.out);
+        let sync_parent = || {
+            if let Ok(d) = File::open(&parent) {
+                let _ = d.sync_all();
             }
-        }
-        let mut names = std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
-        names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
-        for name in &names {
-            let to = self.out.join(name);
-            fs::rename(self.dir.join(name), &to).map_err(err(to.clone()))?;
-        }
-        if let Ok(d) = File::open(&self.out) {
+        };
+        if let Ok(d) = File::open(&self.dir) {
             let _ = d.sync_all();
         }
-        let _ = fs::remove_dir(&self.dir);
+        let only_ours = |dir: &Path| {
+            fs::read_dir(dir).is_ok_and(|rd| {
+                rd.flatten().all(|e| {
+                    let n = e.file_name().to_string_lossy().into_owned();
+                    OUTPUT_NAMES.contains(&n.as_str()) || n.starts_with(STAGING_PREFIX)
+                })
+            })
+        };
+        if !self.out.exists() {
+            fs::rename(&self.dir, &self.out).map_err(err(self.out.clone()))?;
+            sync_parent();
+        } else if only_ours(&self.out) {
+            let retired = parent.join(format!("{RETIRED_PREFIX}{name}-{}", std::process::id()));
+            fs::rename(&self.out, &retired).map_err(err(self.out.clone()))?;
+            if let Err(e) = fs::rename(&self.dir, &self.out) {
+                // Put the earlier set back rather than leave nothing.
+                let _ = fs::rename(&retired, &self.out);
+                return Err(err(self.out.clone())(e));
+            }
+            sync_parent();
+            let _ = fs::remove_dir_all(&retired);
+        } else {
+            // The folder holds other files too: replace ours one by one, marker out first, in last.
+            for n in std::iter::once(&COMPLETE_MARKER).chain(OUTPUT_NAMES.iter()) {
+                let p = self.out.join(n);
+                if p.exists() {
+                    fs::remove_file(&p).map_err(err(p.clone()))?;
+                }
+            }
+            let mut names =
+                std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
+            names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
+            for n in &names {
+                let to = self.out.join(n);
+                fs::rename(self.dir.join(n), &to).map_err(err(to.clone()))?;
+            }
+            if let Ok(d) = File::open(&self.out) {
+                let _ = d.sync_all();
+            }
+            let _ = fs::remove_dir(&self.dir);
+        }
         self.committed = true;
         Ok(())
     }
@@ -217,10 +268,6 @@ impl Drop for Staging {
     fn drop(&mut self) {
         if !self.committed {
             let _ = fs::remove_dir_all(&self.dir);
-            if self.created_out {
-                // Only succeeds when empty: a failed run leaves no trace of a folder it made.
-                let _ = fs::remove_dir(&self.out);
-            }
         }
     }
 }
