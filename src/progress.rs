@@ -65,10 +65,21 @@ impl Drop for Stage {
         self.bar.finish_and_clear();
         if self.verbose {
             eprintln!(
-                "{:>10.3} s  {}",
+                "{:>10.3} s  {}{}",
                 self.start.elapsed().as_secs_f64(),
-                self.name
+                self.name,
+                peak_memory_mb()
+                    .map(|m| format!("  (peak memory so far {m} MB)"))
+                    .unwrap_or_default()
             );
         }
     }
+}
+
+/// The process's peak resident memory so far in MB, where the system tells (Linux /proc).
+pub fn peak_memory_mb() -> Option<u64> {
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let line = status.lines().find(|l| l.starts_with("VmHWM:"))?;
+    let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb / 1024)
 }

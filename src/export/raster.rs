@@ -32,23 +32,14 @@ pub fn render_png(
     let mut pixmap = Pixmap::new(w, h).ok_or("the picture has no area")?;
     pixmap.fill(Color::WHITE);
     let fr = picture::frame(net, sites);
+    // Roads are stroked in batches of about 64k points: one path for a million roads would make
+    // tiny-skia hold its whole stroked outline at once (hundreds of MB); batches keep it small.
+    const BATCH_POINTS: usize = 1 << 16;
     let stroke_edges = |pixmap: &mut Pixmap,
                         edges: &mut dyn Iterator<Item = usize>,
                         hex: &str,
                         width: f64,
                         dash: bool| {
-        let mut pb = PathBuilder::new();
-        for e in edges {
-            for (i, p) in net.edge_geometry(e).iter().enumerate() {
-                let (x, y) = fr.px(*p);
-                if i == 0 {
-                    pb.move_to(x as f32, y as f32);
-                } else {
-                    pb.line_to(x as f32, y as f32);
-                }
-            }
-        }
-        let Some(path) = pb.finish() else { return };
         let mut paint = Paint::default();
         paint.set_color(colour(hex));
         paint.anti_alias = true;
@@ -62,7 +53,30 @@ pub fn render_png(
             stroke.dash = StrokeDash::new(vec![4.0, 3.0], 0.0);
             stroke.line_cap = tiny_skia::LineCap::Butt;
         }
-        pixmap.stroke_path(&path, &paint, &stroke, Transform::identity(), None);
+        let mut pb = PathBuilder::new();
+        let mut points = 0usize;
+        let flush = |pb: PathBuilder, pixmap: &mut Pixmap| {
+            if let Some(path) = pb.finish() {
+                pixmap.stroke_path(&path, &paint, &stroke, Transform::identity(), None);
+            }
+        };
+        for e in edges {
+            let g = net.edge_geometry(e);
+            for (i, p) in g.iter().enumerate() {
+                let (x, y) = fr.px(*p);
+                if i == 0 {
+                    pb.move_to(x as f32, y as f32);
+                } else {
+                    pb.line_to(x as f32, y as f32);
+                }
+            }
+            points += g.len();
+            if points >= BATCH_POINTS {
+                flush(std::mem::replace(&mut pb, PathBuilder::new()), pixmap);
+                points = 0;
+            }
+        }
+        flush(pb, pixmap);
     };
     let b = fr.base;
     stroke_edges(

@@ -70,7 +70,7 @@ pub fn node(layer: LineLayer, snap_m: f64) -> (Network, NodingStats) {
 }
 
 /// Builds the network with all options; QA points go into the stats.
-pub fn node_with(layer: LineLayer, opts: NodingOptions) -> (Network, NodingStats) {
+pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingStats) {
     let snap_m = opts.snap_m;
     let mut stats = NodingStats {
         snap_m,
@@ -136,6 +136,10 @@ pub fn node_with(layer: LineLayer, opts: NodingOptions) -> (Network, NodingStats
         seq_feature.push(layer.part_feature[p]);
     }
     drop(cid);
+    // From here on only cluster centres are used: free the input's vertices (the largest arrays).
+    layer.coords = Vec::new();
+    layer.native = Vec::new();
+    layer.part_ends = Vec::new();
 
     // Repairs of digitising errors: undershoots joined, crossings joined or reported.
     {
@@ -352,66 +356,70 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
         .collect();
     keyed.par_sort_unstable();
     // Start of every run of equal cell keys.
-    let mut starts: Vec<usize> = Vec::new();
+    let mut starts: Vec<u32> = Vec::new();
     for i in 0..keyed.len() {
         if i == 0 || keyed[i].0 != keyed[i - 1].0 {
-            starts.push(i);
+            starts.push(i as u32);
         }
     }
-    starts.push(keyed.len());
+    starts.push(keyed.len() as u32);
     let cell_keys: Vec<u64> = starts[..starts.len() - 1]
         .iter()
-        .map(|&s| keyed[s].0)
+        .map(|&s| keyed[s as usize].0)
         .collect();
 
     // Per cell: the first vertex at each exact position, and whether another position lies within
-    // the tolerance (in this cell or a neighbouring one). Cells are taken in chunks to keep tasks large.
-    let cells: Vec<usize> = (0..cell_keys.len()).collect();
-    let per_chunk: Vec<Vec<(u32, u32, bool)>> = cells
-        .par_chunks(4096)
-        .map(|chunk| {
-            let mut out = Vec::with_capacity(chunk.len() * 2);
-            let mut local: Vec<(u64, u64, u32)> = Vec::new();
-            for &ci in chunk {
-                let cell = &keyed[starts[ci]..starts[ci + 1]];
-                let bits = |i: u32| {
-                    let p = coords[i as usize];
-                    ((p[0] + 0.0).to_bits(), (p[1] + 0.0).to_bits(), i)
-                };
-                local.clear();
-                local.extend(cell.iter().map(|&(_, i)| bits(i)));
-                if local.len() > 1 {
-                    local.sort_unstable();
-                }
-                let mut k = 0;
-                while k < local.len() {
-                    let (x, y, first) = local[k];
-                    let contested = snap_m > 0.0
-                        && grid.has_other_within(
-                            coords,
-                            coords[first as usize],
-                            &cell_keys,
-                            &starts,
-                            &keyed,
-                        );
-                    while k < local.len() && local[k].0 == x && local[k].1 == y {
-                        out.push((local[k].2, first, contested));
-                        k += 1;
-                    }
+    // the tolerance (in this cell or a neighbouring one). Cells are taken in chunks to keep tasks
+    // large; results go straight into per-vertex arrays (each vertex is written by one task only).
+    use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
+    const CONTESTED: u32 = 1 << 31;
+    let slots: Vec<AtomicU32> = (0..n).map(|_| AtomicU32::new(0)).collect();
+    let cells = cell_keys.len();
+    (0..cells.div_ceil(4096)).into_par_iter().for_each(|chunk| {
+        let mut local: Vec<(u64, u64, u32)> = Vec::new();
+        for ci in chunk * 4096..((chunk + 1) * 4096).min(cells) {
+            let cell = &keyed[starts[ci] as usize..starts[ci + 1] as usize];
+            let bits = |i: u32| {
+                let p = coords[i as usize];
+                ((p[0] + 0.0).to_bits(), (p[1] + 0.0).to_bits(), i)
+            };
+            local.clear();
+            local.extend(cell.iter().map(|&(_, i)| bits(i)));
+            if local.len() > 1 {
+                local.sort_unstable();
+            }
+            let mut k = 0;
+            while k < local.len() {
+                let (x, y, first) = local[k];
+                let contested = snap_m > 0.0
+                    && grid.has_other_within(
+                        coords,
+                        coords[first as usize],
+                        &cell_keys,
+                        &starts,
+                        &keyed,
+                    );
+                let value = first | if contested { CONTESTED } else { 0 };
+                while k < local.len() && local[k].0 == x && local[k].1 == y {
+                    slots[local[k].2 as usize].store(value, Relaxed);
+                    k += 1;
                 }
             }
-            out
+        }
+    });
+    drop(keyed);
+    drop(starts);
+    drop(cell_keys);
+    let mut contested = vec![false; n];
+    let mut rep: Vec<u32> = slots
+        .into_iter()
+        .zip(contested.iter_mut())
+        .map(|(v, c)| {
+            let v = v.into_inner();
+            *c = v & CONTESTED != 0;
+            v & !CONTESTED
         })
         .collect();
-    drop(cells);
-    let mut rep = vec![0u32; n];
-    let mut contested = vec![false; n];
-    for chunk in per_chunk {
-        for (i, first, c) in chunk {
-            rep[i as usize] = first;
-            contested[i as usize] = c;
-        }
-    }
     if snap_m > 0.0 {
         greedy_snap(coords, snap_m, &contested, &mut rep);
     }
@@ -505,7 +513,7 @@ impl Grid {
         coords: &[[f64; 2]],
         p: [f64; 2],
         cell_keys: &[u64],
-        starts: &[usize],
+        starts: &[u32],
         keyed: &[(u64, u32)],
     ) -> bool {
         let (my, mx) = metres_per_degree(p[1]);
@@ -513,7 +521,7 @@ impl Grid {
             let Ok(ci) = cell_keys.binary_search(&Self::pack(c)) else {
                 continue;
             };
-            for &(_, j) in &keyed[starts[ci]..starts[ci + 1]] {
+            for &(_, j) in &keyed[starts[ci] as usize..starts[ci + 1] as usize] {
                 let q = coords[j as usize];
                 if q != p && scaled_distance(p, q, my, mx) <= self.snap_m {
                     return true;
