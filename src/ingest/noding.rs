@@ -175,7 +175,8 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     drop(is_end);
 
     // Split at junctions into pieces (ranges of `seq`), dropping duplicates.
-    let mut pieces: Vec<(usize, usize, u32)> = Vec::new();
+    // (start, end, feature) as u32: a third of the memory of usize ranges on big layers.
+    let mut pieces: Vec<(u32, u32, u32)> = Vec::new();
     let mut seen: FxHashMap<u64, u32> = FxHashMap::default();
     let mut seen_exact: std::collections::HashMap<Vec<u32>, u32> = Default::default();
     let mut s0 = 0;
@@ -185,7 +186,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
             if junction_of[seq[i] as usize] != u32::MAX {
                 let piece = &seq[a..=i];
                 if is_new_piece(piece, &seq, &pieces, &mut seen, &mut seen_exact) {
-                    pieces.push((a, i + 1, seq_feature[k]));
+                    pieces.push((a as u32, (i + 1) as u32, seq_feature[k]));
                 } else {
                     stats.duplicate_edges_dropped += 1;
                     qa.push(QaPoint {
@@ -210,6 +211,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     let lengths: Vec<f64> = pieces
         .par_iter()
         .map(|&(a, b, _)| {
+            let (a, b) = (a as usize, b as usize);
             if native.is_empty() {
                 polyline_length_m(seq[a..b].iter().map(|&c| centres[c as usize]))
             } else {
@@ -226,9 +228,10 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         .collect();
     let mut geom_offsets = Vec::with_capacity(pieces.len() + 1);
     geom_offsets.push(0);
-    let mut geom = Vec::with_capacity(pieces.iter().map(|p| p.1 - p.0).sum());
+    let mut geom = Vec::with_capacity(pieces.iter().map(|p| (p.1 - p.0) as usize).sum());
     let mut edges = Vec::with_capacity(pieces.len());
     for (&(a, b, f), &length_m) in pieces.iter().zip(&lengths) {
+        let (a, b) = (a as usize, b as usize);
         geom.extend(seq[a..b].iter().map(|&c| centres[c as usize]));
         geom_offsets.push(geom.len());
         let damage = layer.features[f as usize].damage;
@@ -241,6 +244,17 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
             feature: f,
         });
     }
+    // The working arrays are not needed by the clean-up: free them before it allocates.
+    drop((
+        lengths,
+        pieces,
+        seq,
+        seq_ends,
+        seq_feature,
+        junction_of,
+        centres,
+        centres_native,
+    ));
     let mut net = Network {
         junctions,
         edges,
@@ -280,7 +294,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
 fn is_new_piece(
     piece: &[u32],
     seq: &[u32],
-    pieces: &[(usize, usize, u32)],
+    pieces: &[(u32, u32, u32)],
     seen: &mut FxHashMap<u64, u32>,
     seen_exact: &mut std::collections::HashMap<Vec<u32>, u32>,
 ) -> bool {
@@ -293,6 +307,7 @@ fn is_new_piece(
         }
         Some(&other) => {
             let (a, b, _) = pieces[other as usize];
+            let (a, b) = (a as usize, b as usize);
             if same_piece(&seq[a..b], piece) {
                 return false;
             }
