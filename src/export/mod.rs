@@ -107,30 +107,59 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
-    st.write("plan.svg", |w| {
-        picture::write_svg(
-            w,
-            o.title,
-            o.net,
-            &o.plan.edges,
-            o.steps,
-            o.marks,
-            crate::cautions::SHORT,
-            true,
+    // The picture and the two big layers are independent: write them side by side.
+    let pictures = || -> Result<Vec<u8>, ExportError> {
+        let (svg, png) = rayon::join(
+            || {
+                st.write("plan.svg", |w| {
+                    picture::write_svg(
+                        w,
+                        o.title,
+                        o.net,
+                        &o.plan.edges,
+                        o.steps,
+                        o.marks,
+                        crate::cautions::SHORT,
+                        true,
+                    )
+                })
+            },
+            || {
+                raster::render_png(
+                    o.title,
+                    o.net,
+                    &o.plan.edges,
+                    o.steps,
+                    o.marks,
+                    crate::cautions::SHORT,
+                )
+                .map_err(|e| ExportError::Io {
+                    path: out.join("plan.png"),
+                    source: std::io::Error::other(e),
+                })
+            },
+        );
+        svg?;
+        png
+    };
+    let layers = || {
+        rayon::join(
+            || {
+                st.write("network.geojson", |w| {
+                    write_edges(w, o.net, o.comps, None, None)
+                })
+            },
+            || {
+                st.write("plan.geojson", |w| {
+                    write_edges(w, o.net, o.comps, Some(&o.plan.edges), Some(&order_of))
+                })
+            },
         )
-    })?;
-    let png = raster::render_png(
-        o.title,
-        o.net,
-        &o.plan.edges,
-        o.steps,
-        o.marks,
-        crate::cautions::SHORT,
-    )
-    .map_err(|e| ExportError::Io {
-        path: out.join("plan.png"),
-        source: std::io::Error::other(e),
-    })?;
+    };
+    let (png, (a, b)) = rayon::join(pictures, layers);
+    let png = png?;
+    a?;
+    b?;
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
         report::write_report(w, o.title, &png, o.summary)
@@ -146,20 +175,6 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
     }
-    let (a, b) = rayon::join(
-        || {
-            st.write("network.geojson", |w| {
-                write_edges(w, o.net, o.comps, None, None)
-            })
-        },
-        || {
-            st.write("plan.geojson", |w| {
-                write_edges(w, o.net, o.comps, Some(&o.plan.edges), Some(&order_of))
-            })
-        },
-    );
-    a?;
-    b?;
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")

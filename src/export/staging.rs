@@ -197,8 +197,8 @@ impl Staging {
         let mut w = BufWriter::with_capacity(1 << 20, f);
         fill(&mut w).map_err(err)?;
         w.flush().map_err(err)?;
-        let f = w.into_inner().map_err(|e| err(e.into_error()))?;
-        f.sync_data().map_err(err)?;
+        // Synced in commit, all together: the kernel writes this one back meanwhile.
+        drop(w.into_inner().map_err(|e| err(e.into_error()))?);
         self.written
             .lock()
             .unwrap_or_else(|p| p.into_inner())
@@ -209,6 +209,15 @@ impl Staging {
     /// Puts the staged set in place of any earlier one (see the module notes).
     pub fn commit(mut self) -> Result<(), ExportError> {
         let err = |path: PathBuf| move |source| ExportError::Io { path, source };
+        // Every file on disk before any becomes visible (power loss must not leave empty files
+        // behind complete-looking names).
+        let names = self.written.get_mut().unwrap_or_else(|p| p.into_inner()).clone();
+        for n in &names {
+            let p = self.dir.join(n);
+            File::open(&p)
+                .and_then(|f| f.sync_data())
+                .map_err(err(self.out.join(n)))?;
+        }
         let (parent, name) = parent_and_name(&self.out);
         let sync_parent = || {
             if let Ok(d) = File::open(&parent) {
