@@ -211,7 +211,11 @@ impl Staging {
         let err = |path: PathBuf| move |source| ExportError::Io { path, source };
         // Every file on disk before any becomes visible (power loss must not leave empty files
         // behind complete-looking names).
-        let names = self.written.get_mut().unwrap_or_else(|p| p.into_inner()).clone();
+        let names = self
+            .written
+            .get_mut()
+            .unwrap_or_else(|p| p.into_inner())
+            .clone();
         for n in &names {
             let p = self.dir.join(n);
             File::open(&p)
