@@ -108,9 +108,9 @@ fn steiner(side: usize, sites: usize) {
     // petgraph's steiner_tree needs one connected graph: the largest component, renumbered.
     let mut id = vec![u32::MAX; g.vertices];
     let mut pg: UnGraph<(), u64> = UnGraph::default();
-    for v in 0..g.vertices {
+    for (v, slot) in id.iter_mut().enumerate() {
         if comps.of[v] == big {
-            id[v] = pg.add_node(()).index() as u32;
+            *slot = pg.add_node(()).index() as u32;
         }
     }
     for e in 0..g.len() {
