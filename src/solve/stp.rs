@@ -43,6 +43,10 @@ pub fn parse(text: &str) -> Result<Instance, String> {
         };
         match (section.as_str(), head.to_ascii_lowercase().as_str()) {
             ("graph", "nodes") => {
+                if nodes.is_some() {
+                    // A second count would leave earlier edges pointing past the new end.
+                    return Err(err("a second Nodes line"));
+                }
                 let n = num(it.next())? as usize;
                 if n > u32::MAX as usize / 2 {
                     return Err(err("too many nodes"));
@@ -96,5 +100,7 @@ mod tests {
         assert_eq!(inst.terminals, vec![0, 2]);
         assert!(super::parse("SECTION Graph\nNodes 2\nE 1 5 3\n").is_err());
         assert!(super::parse("garbage").is_err());
+        // Found by fuzzing: a second, smaller Nodes count after the edges.
+        assert!(super::parse("SECTION Graph\nNodes 6\nE 1 5 7\nEND\nSECTION Graph\nNodes 2\n").is_err());
     }
 }
