@@ -34,9 +34,9 @@ pub struct FeatureMeta {
     /// The damage read from the feature's attributes (factor × class rate).
     pub damage: Damage,
     /// The damage category, when damage comes from a category field.
-    pub category: Option<String>,
+    pub category: Option<Box<str>>,
     /// Road name and reference number (`name (ref)`), when the input has them.
-    pub label: Option<String>,
+    pub label: Option<Box<str>>,
 }
 
 /// One road piece between two junctions.

@@ -82,12 +82,12 @@ pub fn write_work_orders<W: Write>(
             edge.to_string(),
             meta.source_index.to_string(),
             id,
-            meta.label.clone().unwrap_or_default(),
+            meta.label.as_deref().unwrap_or_default().to_string(),
             super::geojson::fixed(e.length_m, 3),
             e.damage
                 .factor()
                 .map_or("closed".to_string(), |f| super::geojson::trimmed(f, 6)),
-            meta.category.clone().unwrap_or_default(),
+            meta.category.as_deref().unwrap_or_default().to_string(),
             super::geojson::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),
             f7(a[1]),

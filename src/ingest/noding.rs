@@ -203,16 +203,18 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     }
     drop(seen);
     drop(seen_exact);
+    drop((seq_ends, seq_feature));
 
     // Edges with geometry, lengths measured in parallel: planar × unit in the source's conformal
     // projection when it kept its native coordinates, geodesic otherwise.
     let native = &centres_native;
     let to_meter = layer.to_meter;
-    let lengths: Vec<f64> = pieces
+    let feats = &layer.features;
+    let edges: Vec<Edge> = pieces
         .par_iter()
-        .map(|&(a, b, _)| {
+        .map(|&(a, b, f)| {
             let (a, b) = (a as usize, b as usize);
-            if native.is_empty() {
+            let length_m = if native.is_empty() {
                 polyline_length_m(seq[a..b].iter().map(|&c| centres[c as usize]))
             } else {
                 seq[a..b]
@@ -223,38 +225,32 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
                     })
                     .sum::<f64>()
                     * to_meter
+            };
+            let damage = feats[f as usize].damage;
+            Edge {
+                from: junction_of[seq[a] as usize],
+                to: junction_of[seq[b - 1] as usize],
+                length_m,
+                damage,
+                cost: cost_of(length_m, damage),
+                feature: f,
             }
         })
         .collect();
+    drop(junction_of);
     let mut geom_offsets = Vec::with_capacity(pieces.len() + 1);
     geom_offsets.push(0);
     let mut geom = Vec::with_capacity(pieces.iter().map(|p| (p.1 - p.0) as usize).sum());
-    let mut edges = Vec::with_capacity(pieces.len());
-    for (&(a, b, f), &length_m) in pieces.iter().zip(&lengths) {
-        let (a, b) = (a as usize, b as usize);
-        geom.extend(seq[a..b].iter().map(|&c| centres[c as usize]));
+    for &(a, b, _) in &pieces {
+        geom.extend(
+            seq[a as usize..b as usize]
+                .iter()
+                .map(|&c| centres[c as usize]),
+        );
         geom_offsets.push(geom.len());
-        let damage = layer.features[f as usize].damage;
-        edges.push(Edge {
-            from: junction_of[seq[a] as usize],
-            to: junction_of[seq[b - 1] as usize],
-            length_m,
-            damage,
-            cost: cost_of(length_m, damage),
-            feature: f,
-        });
     }
     // The working arrays are not needed by the clean-up: free them before it allocates.
-    drop((
-        lengths,
-        pieces,
-        seq,
-        seq_ends,
-        seq_feature,
-        junction_of,
-        centres,
-        centres_native,
-    ));
+    drop((pieces, seq, centres, centres_native));
     let mut net = Network {
         junctions,
         edges,

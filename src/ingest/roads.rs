@@ -479,8 +479,8 @@ pub(super) fn add_feature(
         source_index: index as u32,
         source_id,
         damage,
-        category,
-        label,
+        category: category.map(String::into_boxed_str),
+        label: label.map(String::into_boxed_str),
     });
     for part in c.part_slices() {
         layer.coords.extend_from_slice(part);

@@ -101,6 +101,8 @@ mod tests {
         assert!(super::parse("SECTION Graph\nNodes 2\nE 1 5 3\n").is_err());
         assert!(super::parse("garbage").is_err());
         // Found by fuzzing: a second, smaller Nodes count after the edges.
-        assert!(super::parse("SECTION Graph\nNodes 6\nE 1 5 7\nEND\nSECTION Graph\nNodes 2\n").is_err());
+        assert!(
+            super::parse("SECTION Graph\nNodes 6\nE 1 5 7\nEND\nSECTION Graph\nNodes 2\n").is_err()
+        );
     }
 }
