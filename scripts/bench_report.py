@@ -25,7 +25,10 @@ def fmt_s(x):
 
 
 def ratio(a, b):
-    return f"{a / b:.1f}×" if a and b else "—"
+    if not (a and b):
+        return "—"
+    x = a / b
+    return f"{x:.2f}×" if x < 10 else f"{x:.1f}×"
 
 
 def main(path, doc):
@@ -139,6 +142,33 @@ def main(path, doc):
                    f"Backup links: {fmt_s(b['backup_seconds'])} for {b['bridges_needing_backup']:,} bridges needing a way round, "
                    f"{b['backup_repairs']:,} added repairs.")
         out.append("")
+    out.append("### Against the targets")
+    out.append("")
+    fr = {r["weights"]: r for r in by("forest")}
+    checks = []
+    if "own costs" in fr:
+        x = fr["own costs"]["petgraph_s"] / fr["own costs"]["reknit_s"]
+        checks.append(f"forest vs petgraph ≥ 10×: {x:.2f}× — {'met' if x >= 10 else 'not met'}")
+    if "costs + 1" in fr and pyf.get("scipy_s"):
+        x = pyf["scipy_s"] / fr["costs + 1"]["reknit_s"]
+        checks.append(f"forest vs scipy ≥ 2.5×: {x:.2f}× — {'met' if x >= 2.5 else 'not met'}")
+    for q in [r for r in by("steiner_reknit") if r["effort"] == "quick"]:
+        meh = next((r for r in by("steiner_networkx") if r.get("side") == q["side"] and r.get("method") == "mehlhorn" and "seconds" in r), None)
+        if meh:
+            x = meh["seconds"] / q["seconds"]
+            ok = x >= 50 and q["cost_milli"] <= meh["cost_milli"]
+            checks.append(f"Steiner quick vs networkx mehlhorn ≥ 50× at equal or lower cost ({q['side']}×{q['side']}): "
+                          f"{x:.1f}×, cost {q['cost_milli'] / meh['cost_milli']:.4f} of networkx's — {'met' if ok else 'not met'}")
+    pipe = {r["features"]: r for r in by("pipeline")}
+    if 100000 in pipe and 4000000 in pipe:
+        t = secs(pipe[4000000]["wall"]) / secs(pipe[100000]["wall"])
+        nl = (4e6 * math.log(4e6)) / (1e5 * math.log(1e5))
+        checks.append(f"pipeline time 100k → 4M no worse than n log n: {t:.1f}× against {nl:.1f}× — {'met' if t <= nl else 'not met'}")
+        b = pipe[4000000]["peak_kb"] * 1024 / 4e6
+        checks.append(f"peak memory at 4M ≤ 600 bytes per feature: {b:.0f} — {'met' if b <= 600 else 'not met'}")
+    for c in checks:
+        out.append(f"- {c}")
+    out.append("")
     out.append(END)
     text = open(doc).read()
     section = "\n".join(out)
