@@ -8,7 +8,7 @@ use reknit::solve::backup::backup_links;
 use reknit::solve::fragility::fragility;
 use reknit::solve::graph::{EdgeList, UNUSABLE};
 use reknit::solve::steiner::{Effort, steiner_tree};
-use reknit::synthetic::{Rng, grid_graph};
+use reknit::synthetic::grid_graph;
 use std::io::Write;
 use std::time::Instant;
 
@@ -22,20 +22,7 @@ fn main() -> std::io::Result<()> {
     let sites: usize = a[2].parse().expect("SITES");
     let intact: f64 = a[3].parse().expect("INTACT_SHARE");
     let g = grid_graph(side, intact, 42);
-    let comps = reknit::solve::components::components(&g);
-    let mut size = vec![0usize; comps.count];
-    for &c in &comps.of {
-        size[c as usize] += 1;
-    }
-    let big = (0..comps.count).max_by_key(|&c| size[c]).unwrap() as u32;
-    let mut rng = Rng::new(7);
-    let mut terms: Vec<u32> = Vec::new();
-    while terms.len() < sites {
-        let v = rng.below(g.vertices as u64) as u32;
-        if comps.of[v as usize] == big && !terms.contains(&v) {
-            terms.push(v);
-        }
-    }
+    let (terms, _, _) = reknit::synthetic::sites_on_largest_component(&g, sites);
     let t0 = Instant::now();
     let tree = steiner_tree(&g, &terms, Effort::Quick).expect("plan");
     let plan_s = t0.elapsed().as_secs_f64();

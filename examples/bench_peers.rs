@@ -11,7 +11,7 @@ use petgraph::graph::{NodeIndex, UnGraph};
 use reknit::solve::graph::EdgeList;
 use reknit::solve::steiner::{Effort, steiner_tree};
 use reknit::solve::{MstAlgorithm, kruskal, minimum_spanning_forest};
-use reknit::synthetic::{Rng, grid_graph};
+use reknit::synthetic::grid_graph;
 use std::io::Write;
 use std::time::Instant;
 
@@ -92,20 +92,7 @@ fn forest(side: usize, intact: f64, out: &str) -> std::io::Result<()> {
 
 fn steiner(side: usize, sites: usize) {
     let g = grid_graph(side, 0.3, 42);
-    let comps = reknit::solve::components::components(&g);
-    let mut size = vec![0usize; comps.count];
-    for &c in &comps.of {
-        size[c as usize] += 1;
-    }
-    let big = (0..comps.count).max_by_key(|&c| size[c]).unwrap() as u32;
-    let mut rng = Rng::new(7);
-    let mut terms: Vec<u32> = Vec::new();
-    while terms.len() < sites {
-        let v = rng.below(g.vertices as u64) as u32;
-        if comps.of[v as usize] == big && !terms.contains(&v) {
-            terms.push(v);
-        }
-    }
+    let (terms, comps, big) = reknit::synthetic::sites_on_largest_component(&g, sites);
     // petgraph's steiner_tree needs one connected graph: the largest component, renumbered.
     let mut id = vec![u32::MAX; g.vertices];
     let mut pg: UnGraph<(), u64> = UnGraph::default();

@@ -5,7 +5,7 @@
 //! (scripts/bench-steiner.sh).
 
 use reknit::solve::steiner::{Effort, steiner_tree};
-use reknit::synthetic::{Rng, grid_graph};
+use reknit::synthetic::grid_graph;
 use std::io::Write;
 use std::time::Instant;
 
@@ -26,22 +26,8 @@ fn main() -> std::io::Result<()> {
     };
     let intact: f64 = a[4].parse().expect("INTACT_SHARE");
     let g = grid_graph(side, intact, 42);
-    let mut rng = Rng::new(7);
-    let mut terms: Vec<u32> = Vec::new();
-    // Sites on the lattice's largest component: the lattice is connected except for closed edges,
-    // so pick junctions and keep those reachable from the first.
-    let comps = reknit::solve::components::components(&g);
-    let mut size = vec![0usize; comps.count];
-    for &c in &comps.of {
-        size[c as usize] += 1;
-    }
-    let big = (0..comps.count).max_by_key(|&c| size[c]).unwrap() as u32;
-    while terms.len() < sites {
-        let v = rng.below(g.vertices as u64) as u32;
-        if comps.of[v as usize] == big && !terms.contains(&v) {
-            terms.push(v);
-        }
-    }
+    // Sites on the lattice's largest component (it is connected except for closed edges).
+    let (terms, _, _) = reknit::synthetic::sites_on_largest_component(&g, sites);
     // Short runs are noisy on a shared machine: quick effort reports the median of five.
     let runs = if effort == Effort::Quick { 5 } else { 1 };
     let mut times = Vec::new();

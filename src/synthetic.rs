@@ -168,3 +168,28 @@ pub fn write_grid_zones<W: std::io::Write>(
     gj.finish()?;
     Ok(())
 }
+
+/// `count` distinct random junctions (fixed seed 7) on the largest component of `g`, for benchmark
+/// sites; also returns the components and the largest one's label.
+pub fn sites_on_largest_component(
+    g: &EdgeList,
+    count: usize,
+) -> (Vec<u32>, crate::solve::components::Components, u32) {
+    let comps = crate::solve::components::components(g);
+    let mut size = vec![0usize; comps.count];
+    for &c in &comps.of {
+        size[c as usize] += 1;
+    }
+    let big = (0..comps.count).max_by_key(|&c| size[c]).unwrap_or(0) as u32;
+    let count = count.min(size.get(big as usize).copied().unwrap_or(0));
+    let mut rng = Rng::new(7);
+    let mut terms: Vec<u32> = Vec::new();
+    let mut taken = std::collections::HashSet::new();
+    while terms.len() < count {
+        let v = rng.below(g.vertices as u64) as u32;
+        if comps.of[v as usize] == big && taken.insert(v) {
+            terms.push(v);
+        }
+    }
+    (terms, comps, big)
+}
