@@ -1,6 +1,7 @@
 //! One harness for the end-to-end tests: runs the binary, makes fixtures, finds shared data and peers.
 #![allow(dead_code)]
 
+pub mod bad;
 pub mod exact;
 
 use std::path::{Path, PathBuf};

@@ -71,4 +71,3 @@ pub(super) fn path_nodes(parent: &[u32], lca: &Lca, a: u32, b: u32) -> Vec<u32> 
     }
     out
 }
-

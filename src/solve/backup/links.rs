@@ -176,4 +176,3 @@ pub(super) fn links(g: &EdgeList, free: &[bool], tree: &Tree) -> Vec<Link> {
     out.sort_by_key(|x| (x.a.min(x.b), x.a.max(x.b)));
     out
 }
-

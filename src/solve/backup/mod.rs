@@ -32,7 +32,6 @@ use tree::build_tree;
 
 const NONE: u32 = u32::MAX;
 
-
 /// Single-repair local search runs when edges × added repairs stays under this.
 const PRUNE_WORK: usize = 20_000_000;
 

@@ -126,4 +126,3 @@ pub(super) fn build_tree(g: &EdgeList, free: &[bool], root: u32, terminals: &[u3
         terminal_node,
     }
 }
-

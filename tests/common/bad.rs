@@ -1,0 +1,167 @@
+//! Shared harness of the bad-input catalogue (tests/bad_input.rs, tests/bad_input_more.rs):
+//! each case runs reknit end to end and checks exit code, message, no panic, no output left behind
+//! and inputs unchanged (content and modification time).
+
+use super::*;
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+pub const OK_LINE: &str = r#"{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[0,0],[0.001,0]]}}"#;
+
+pub fn fc(features: &[&str]) -> String {
+    format!(
+        r#"{{"type":"FeatureCollection","features":[{}]}}"#,
+        features.join(",")
+    )
+}
+
+pub fn file(d: &Path, name: &str, bytes: impl AsRef<[u8]>) -> PathBuf {
+    let p = d.join(name);
+    std::fs::write(&p, bytes).unwrap();
+    p
+}
+
+pub fn s(p: &Path) -> String {
+    p.to_str().unwrap().to_string()
+}
+
+/// Content and modification time of every file under `d` except the folder `skip`.
+pub fn snapshot(d: &Path, skip: &Path) -> BTreeMap<PathBuf, (Vec<u8>, std::time::SystemTime)> {
+    let mut out = BTreeMap::new();
+    let mut stack = vec![d.to_path_buf()];
+    while let Some(x) = stack.pop() {
+        let Ok(rd) = std::fs::read_dir(&x) else {
+            continue;
+        };
+        for e in rd.flatten() {
+            let p = e.path();
+            if p == skip {
+                continue;
+            }
+            let m = std::fs::symlink_metadata(&p).unwrap();
+            if m.is_dir() {
+                stack.push(p);
+            } else if m.is_file() {
+                out.insert(
+                    p.clone(),
+                    (std::fs::read(&p).unwrap(), m.modified().unwrap()),
+                );
+            }
+        }
+    }
+    out
+}
+
+/// Runs reknit with `args` in the case folder `d` (output folder `out`) and checks: exit code 2,
+/// every needle in the message, no panic, no output folder left (or, when `out` existed before,
+/// the same entries as before), inputs unchanged.
+pub fn fails_with(d: &Path, out: &Path, args: &[String], needles: &[&str]) {
+    let before_out = out.exists().then(|| listing(out));
+    let before = snapshot(d, out);
+    let o = reknit().args(args).output().expect("run reknit");
+    let msg = stderr(&o);
+    assert_eq!(o.status.code(), Some(2), "exit code; stderr: {msg}");
+    assert!(!msg.contains("panicked"), "{msg}");
+    for n in needles {
+        assert!(msg.contains(n), "message lacks {n:?}: {msg}");
+    }
+    match before_out {
+        None => assert!(!out.exists(), "output left behind: {:?}", listing(out)),
+        Some(l) => assert_eq!(listing(out), l, "output folder changed"),
+    }
+    assert!(before == snapshot(d, out), "an input was modified");
+}
+
+/// `plan --roads ROADS --out OUT EXTRA…` fails with the needles.
+pub fn plan_fails(roads: &Path, extra: &[&str], needles: &[&str]) {
+    let d = roads.parent().unwrap();
+    let out = d.join("out");
+    let mut args = vec![
+        "plan".into(),
+        "--roads".into(),
+        s(roads),
+        "--out".into(),
+        s(&out),
+    ];
+    args.extend(extra.iter().map(|x| x.to_string()));
+    fails_with(d, &out, &args, needles);
+}
+
+/// Runs `plan` expecting success; returns the output folder.
+pub fn plan_ok(d: &Path, args: &[&str]) -> PathBuf {
+    let out = d.join("out");
+    let before = snapshot(d, &out);
+    let mut all = vec!["plan", "--out", out.to_str().unwrap(), "-q"];
+    all.extend_from_slice(args);
+    let o = run(&all);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(before == snapshot(d, &out), "an input was modified");
+    out
+}
+
+pub fn roads_ok(d: &Path) -> PathBuf {
+    file(d, "roads.geojson", fc(&[OK_LINE]))
+}
+
+pub fn site_feature(id: &str, lon: f64, lat: f64) -> String {
+    format!(
+        r#"{{"type":"Feature","properties":{{"site_id":"{id}","priority":1}},"geometry":{{"type":"Point","coordinates":[{lon},{lat}]}}}}"#
+    )
+}
+
+/// A polyline Shapefile set (WGS84 .prj) with a `name` field.
+pub fn shapefile_roads(d: &Path, name: &str, lines: &[Vec<[f64; 2]>]) -> PathBuf {
+    use shapefile::dbase::{FieldName, FieldValue, Record, TableWriterBuilder};
+    let p = d.join(name);
+    let table =
+        TableWriterBuilder::new().add_character_field(FieldName::try_from("name").unwrap(), 20);
+    let mut w = shapefile::Writer::from_path(&p, table).unwrap();
+    for (i, l) in lines.iter().enumerate() {
+        let pl = shapefile::Polyline::new(
+            l.iter()
+                .map(|c| shapefile::Point::new(c[0], c[1]))
+                .collect(),
+        );
+        let mut r = Record::default();
+        r.insert(
+            "name".into(),
+            FieldValue::Character(Some(format!("Road {i}"))),
+        );
+        w.write_shape_and_record(&pl, &r).unwrap();
+    }
+    drop(w);
+    std::fs::write(
+        p.with_extension("prj"),
+        r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#,
+    )
+    .unwrap();
+    p
+}
+
+pub fn two_roads() -> Vec<Vec<[f64; 2]>> {
+    vec![
+        vec![[0.0, 0.0], [0.001, 0.0]],
+        vec![[0.001, 0.0], [0.002, 0.0]],
+    ]
+}
+
+#[macro_export]
+macro_rules! case {
+    ($name:ident, |$d:ident| $body:block) => {
+        #[test]
+        fn $name() {
+            let tmp = $crate::common::tmp();
+            let $d: &Path = tmp.path();
+            $body
+        }
+    };
+}
+
+/// Every case name declared with `case!` in a test file, for the docs check.
+pub fn case_names(source: &str) -> Vec<String> {
+    source
+        .lines()
+        .filter_map(|l| l.strip_prefix("case!("))
+        .map(|l| l.split(',').next().unwrap().to_string())
+        .collect()
+}
