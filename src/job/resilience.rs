@@ -45,15 +45,16 @@ pub(super) fn fragility_report(
     for (i, a) in attachments.iter().enumerate() {
         let Some(j) = a.junction else { continue };
         // Only sites that reach the hub at all can be cut off from it.
-        if Some(i) == hub || !roots.iter().any(|&r| f.in_subtree(r, j)) {
+        if Some(i) == hub {
             continue;
         }
+        let Some(cut) = f.cutting_off(&roots, j) else {
+            continue;
+        };
         let mut failures = Vec::new();
-        for (b, &child) in f.bridge_child.iter().enumerate() {
-            if f.in_subtree(child, j) && roots.iter().all(|&r| !f.in_subtree(child, r)) {
-                protects[b].push(i);
-                failures.push(f.bridges[b]);
-            }
+        for b in cut {
+            protects[b].push(i);
+            failures.push(f.bridges[b]);
         }
         if !failures.is_empty() {
             per_site.push((i, failures));

@@ -96,6 +96,22 @@ impl Fragility {
         let t = self.tin[x as usize];
         t != u32::MAX && self.tin[v as usize] <= t && t <= self.tout[v as usize]
     }
+
+    /// Positions (into [`bridges`](Self::bridges)) of the bridges whose loss cuts `x` off from
+    /// every one of `roots` (the search's first roots); `None` when `x` reaches none of them.
+    pub fn cutting_off(&self, roots: &[u32], x: u32) -> Option<Vec<usize>> {
+        if !roots.iter().any(|&r| self.in_subtree(r, x)) {
+            return None;
+        }
+        Some(
+            (0..self.bridges.len())
+                .filter(|&b| {
+                    let c = self.bridge_child[b];
+                    self.in_subtree(c, x) && roots.iter().all(|&r| !self.in_subtree(c, r))
+                })
+                .collect(),
+        )
+    }
 }
 
 #[cfg(test)]

@@ -82,17 +82,8 @@ pub fn single_failures(
     terminals
         .iter()
         .map(|&t| {
-            if !f.in_subtree(root, t) {
-                return None;
-            }
-            Some(
-                f.bridge_child
-                    .iter()
-                    .zip(&f.bridges)
-                    .filter(|&(&c, _)| f.in_subtree(c, t) && !f.in_subtree(c, root))
-                    .map(|(_, &b)| b)
-                    .collect(),
-            )
+            f.cutting_off(&[root], t)
+                .map(|cut| cut.into_iter().map(|b| f.bridges[b]).collect())
         })
         .collect()
 }
