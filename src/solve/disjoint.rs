@@ -3,6 +3,8 @@
 //! One array: a non-negative entry is the parent, a negative entry marks a root and holds minus the
 //! set's size, so a lookup touches one cache line per step.
 
+use rayon::prelude::*;
+
 /// A partition of `0..n` into disjoint sets.
 #[derive(Debug, Clone)]
 pub struct DisjointSets {
@@ -52,6 +54,24 @@ impl DisjointSets {
         }
     }
 
+    /// Writes every element's representative into `out`, in parallel (the sets are only read).
+    pub fn roots_into(&self, out: &mut Vec<u32>) {
+        out.clear();
+        out.par_extend(
+            (0..self.link.len() as u32)
+                .into_par_iter()
+                .map(|x| self.root(x)),
+        );
+    }
+
+    /// Points every element straight at its representative, given all of them (from
+    /// [`roots_into`](Self::roots_into)): a streaming pass, cheaper than [`flatten`](Self::flatten).
+    pub fn flatten_to(&mut self, roots: &[u32]) {
+        for (link, &r) in self.link.iter_mut().zip(roots) {
+            *link = if *link >= 0 { r as i32 } else { *link };
+        }
+    }
+
     /// Representative of `x`'s set without compressing paths (safe to call from many threads).
     #[inline]
     pub fn root(&self, mut x: u32) -> u32 {
@@ -59,6 +79,12 @@ impl DisjointSets {
             x = self.link[x as usize] as u32;
         }
         x
+    }
+
+    /// The raw entry of `x` (parent, or minus the set size): reading it early warms the cache.
+    #[inline]
+    pub fn peek(&self, x: u32) -> i32 {
+        self.link[x as usize]
     }
 
     /// Joins the sets of `a` and `b`; false when they were already one set.
@@ -91,5 +117,11 @@ mod tests {
         assert_ne!(d.find(0), d.find(3));
         assert!(d.union(1, 4));
         assert_eq!(d.find(0), d.find(3));
+        let mut roots = Vec::new();
+        d.roots_into(&mut roots);
+        let want: Vec<u32> = (0..5).map(|x| d.find(x)).collect();
+        assert_eq!(roots, want);
+        d.flatten_to(&roots);
+        assert!((0..5).all(|x| d.peek(x) < 0 || d.peek(x) as u32 == want[x as usize]));
     }
 }

@@ -1,30 +1,64 @@
-//! LSD radix sort for u64 keys: only as many passes as the largest key has significant bits.
+//! LSD radix sort for u64 keys: only as many passes as the sorted bits need.
 //!
 //! Kruskal's keys pack (cost, edge id) into few significant bits, so two to four passes of 8 bytes
-//! per key beat a comparison sort several-fold.
+//! per key beat a comparison sort several-fold. The sort is stable, so keys already in id order need
+//! only their cost bits sorted.
 
 /// Sorts `keys` ascending.
 pub fn sort_u64(keys: &mut Vec<u64>) {
-    let n = keys.len();
-    if n < 256 {
-        keys.sort_unstable();
-        return;
-    }
     let max = keys.iter().copied().max().unwrap_or(0);
     let bits = 64 - max.leading_zeros();
-    if bits == 0 {
+    sort_u64_by_bits(keys, 0, bits);
+}
+
+/// Stable sort of `keys` by the bit field `lo..hi` alone (keys equal there keep their order).
+pub fn sort_u64_by_bits(keys: &mut Vec<u64>, lo: u32, hi: u32) {
+    let mut out = Vec::new();
+    sort_parts_by_bits(&[keys], lo, hi, &mut out, &mut Vec::new());
+    *keys = out;
+}
+
+/// Stable sort of the concatenation of `parts` by the bit field `lo..hi` alone, into `out`.
+///
+/// `out` and `scratch` are cleared and reused, so a caller sorting again and again touches no
+/// fresh memory (on large arrays, first touches of fresh pages cost as much as the sort).
+pub fn sort_parts_by_bits(
+    parts: &[&[u64]],
+    lo: u32,
+    hi: u32,
+    out: &mut Vec<u64>,
+    scratch: &mut Vec<u64>,
+) {
+    let n: usize = parts.iter().map(|p| p.len()).sum();
+    out.clear();
+    let bits = hi.saturating_sub(lo);
+    if bits == 0 || n < 256 {
+        for p in parts {
+            out.extend_from_slice(p);
+        }
+        if bits > 0 {
+            let mask = u64::MAX >> (64 - bits);
+            out.sort_by_key(|&k| (k >> lo) & mask);
+        }
         return;
     }
-    let passes = bits.div_ceil(12);
+    let passes = bits.div_ceil(11);
     let width = bits.div_ceil(passes);
-    let mask = (1u64 << width) - 1;
-    let mut buf = vec![0u64; n];
     let mut counts = vec![0usize; 1 << width];
-    for pass in 0..passes {
-        let shift = pass * width;
+    out.resize(n, 0);
+    scratch.clear();
+    scratch.resize(if passes > 1 { n } else { 0 }, 0);
+    let scatter = |src: &[&[u64]], dst: &mut [u64], shift: u32, counts: &mut [usize]| -> bool {
+        // The last digit may be narrower: bits at or above `hi` must not take part.
+        let mask = (1u64 << width.min(hi - shift)) - 1;
         counts.iter_mut().for_each(|c| *c = 0);
-        for &k in keys.iter() {
-            counts[((k >> shift) & mask) as usize] += 1;
+        for p in src {
+            for &k in p.iter() {
+                counts[((k >> shift) & mask) as usize] += 1;
+            }
+        }
+        if src.len() == 1 && counts.contains(&n) {
+            return false; // every key has the same digit: nothing would move
         }
         let mut sum = 0;
         for c in counts.iter_mut() {
@@ -32,12 +66,28 @@ pub fn sort_u64(keys: &mut Vec<u64>) {
             *c = sum;
             sum += here;
         }
-        for &k in keys.iter() {
-            let d = ((k >> shift) & mask) as usize;
-            buf[counts[d]] = k;
-            counts[d] += 1;
+        for p in src {
+            for &k in p.iter() {
+                let d = ((k >> shift) & mask) as usize;
+                dst[counts[d]] = k;
+                counts[d] += 1;
+            }
         }
-        std::mem::swap(keys, &mut buf);
+        true
+    };
+    scatter(parts, &mut out[..], lo, &mut counts);
+    let mut in_out = true; // which buffer holds the keys sorted so far
+    for pass in 1..passes {
+        let shift = lo + pass * width;
+        let moved = if in_out {
+            scatter(&[&out[..]], &mut scratch[..], shift, &mut counts)
+        } else {
+            scatter(&[&scratch[..]], &mut out[..], shift, &mut counts)
+        };
+        in_out ^= moved;
+    }
+    if !in_out {
+        std::mem::swap(out, scratch);
     }
 }
 
@@ -54,6 +104,27 @@ mod tests {
             want.sort_unstable();
             sort_u64(&mut v);
             prop_assert_eq!(v, want);
+        }
+
+        #[test]
+        fn field_sort_is_stable(mut v in proptest::collection::vec(any::<u64>(), 0..2000), lo in 0u32..40, width in 1u32..24) {
+            let hi = (lo + width).min(64);
+            let field = |k: u64| (k >> lo) & (u64::MAX >> (64 - (hi - lo)));
+            let mut want = v.clone();
+            want.sort_by_key(|&k| field(k)); // the standard library's sort_by_key is stable
+            sort_u64_by_bits(&mut v, lo, hi);
+            prop_assert_eq!(v, want);
+        }
+
+        #[test]
+        fn parts_sort_as_one(a in proptest::collection::vec(any::<u64>(), 0..700), b in proptest::collection::vec(any::<u64>(), 0..700), lo in 0u32..40, width in 1u32..30) {
+            let hi = (lo + width).min(64);
+            let field = |k: u64| (k >> lo) & (u64::MAX >> (64 - (hi - lo)));
+            let mut want: Vec<u64> = a.iter().chain(&b).copied().collect();
+            want.sort_by_key(|&k| field(k));
+            let (mut out, mut scratch) = (vec![7], vec![9, 9]);
+            sort_parts_by_bits(&[&a, &b], lo, hi, &mut out, &mut scratch);
+            prop_assert_eq!(out, want);
         }
     }
 }
