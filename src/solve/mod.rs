@@ -11,6 +11,7 @@ pub mod components;
 pub mod disjoint;
 pub mod fragility;
 pub mod graph;
+pub mod heap;
 pub mod kruskal;
 pub mod order;
 pub mod prim;

@@ -16,8 +16,7 @@ use super::reduce::prune_leaves;
 use super::tree::cost;
 use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList};
-use std::cmp::Reverse;
-use std::collections::BinaryHeap;
+use crate::solve::heap::MinHeap;
 
 /// How wide the moves search.
 #[derive(Debug, Clone, Copy)]
@@ -298,13 +297,13 @@ impl State<'_> {
         P: Fn(u32) -> Option<u32>,
     {
         ws.reset();
-        let mut heap = BinaryHeap::new();
+        let mut heap = MinHeap::new();
         for &(v, l) in seeds {
             ws.seed(v, l);
-            heap.push(Reverse((0u64, v)));
+            heap.push(0, v);
         }
         let mut links = Vec::new();
-        while let Some(Reverse((d, u))) = heap.pop() {
+        while let Some((d, u)) = heap.pop() {
             if d > ws.dist[u as usize] {
                 continue;
             }
@@ -358,7 +357,7 @@ impl State<'_> {
                     ws.dist[w as usize] = nd;
                     ws.label[w as usize] = lu;
                     ws.pred[w as usize] = e;
-                    heap.push(Reverse((nd, w)));
+                    heap.push(nd, w);
                 }
             }
         }

@@ -113,9 +113,12 @@ impl Effort {
         }
     }
 
-    fn bound_budget(self) -> u64 {
+    /// Arc visits the lower bound may spend on a reduced graph of `size` vertices plus edges. Quick
+    /// effort scales it with the graph so that the bound, computed beside the heuristics, takes
+    /// about as long as they do.
+    fn bound_budget(self, size: usize) -> u64 {
         match self {
-            Effort::Quick => 5_000_000,
+            Effort::Quick => (10 * size as u64).clamp(1_000_000, 20_000_000),
             Effort::Normal => 1_200_000_000,
             Effort::Thorough => u64::MAX,
         }
@@ -156,9 +159,17 @@ pub fn steiner_tree(
     };
     if red.terminals.len() >= 2 {
         let csr = Csr::from_edges(rg);
-        // The bound and the heuristics are independent: compute them side by side.
-        let (b, (heuristic, mut ws)) = rayon::join(
-            || dual_ascent::dual_ascent(rg, &csr, &red.terminals, effort.bound_budget()),
+        let size = rg.vertices + rg.len();
+        // The bound and the heuristics are independent: compute them side by side, with
+        // Mehlhorn's tree on the bound's side to even out the two.
+        let ((b, first), (heuristic, mut ws)) = rayon::join(
+            || {
+                let b =
+                    dual_ascent::dual_ascent(rg, &csr, &red.terminals, effort.bound_budget(size));
+                let mut ws = Workspace::new(rg.vertices);
+                let it = &red.is_terminal;
+                (b, mehlhorn::mehlhorn(rg, &csr, &red.terminals, it, &mut ws))
+            },
             || {
                 let mut ws = Workspace::new(rg.vertices);
                 (heuristics(rg, &csr, &red, effort, &mut ws), ws)
@@ -166,6 +177,10 @@ pub fn steiner_tree(
         );
         bound = b;
         best = heuristic;
+        // Mehlhorn's 2-approximation rarely wins, but when it does the plan must not be worse.
+        if tree::cost(rg, &first) < tree::cost(rg, &best) {
+            best = polish(rg, &csr, &red.is_terminal, first, &mut ws, effort);
+        }
         if bound.complete {
             // The saturated edges join every terminal to the root: a tree there is a strong start.
             let it = &red.is_terminal;
@@ -210,8 +225,8 @@ pub fn steiner_tree(
     })
 }
 
-/// Mehlhorn, then shortest-path trees from spread-out roots; the cheapest few are polished by local
-/// search and the best tree is returned (reduced edge ids).
+/// Shortest-path trees from spread-out roots; the cheapest few are polished by local search and the
+/// best tree is returned (reduced edge ids).
 fn heuristics(
     rg: &EdgeList,
     csr: &Csr,
@@ -220,8 +235,8 @@ fn heuristics(
     ws: &mut Workspace,
 ) -> Vec<u32> {
     let it = &red.is_terminal;
-    let mut best = mehlhorn::mehlhorn(rg, csr, &red.terminals, it, ws);
-    let mut best_cost = tree::cost(rg, &best);
+    let mut best = Vec::new();
+    let mut best_cost = u64::MAX;
     let k = red.terminals.len();
     let size = rg.vertices + rg.len();
     let roots = effort.starts(size).min(k);

@@ -1,8 +1,7 @@
 //! Multi-source shortest paths with labels (Voronoi regions), reusable without full resets.
 
 use crate::solve::graph::{Csr, EdgeList};
-use std::cmp::Reverse;
-use std::collections::BinaryHeap;
+use crate::solve::heap::MinHeap;
 
 /// Marks "no predecessor" (a source) and "no label".
 pub const NONE: u32 = u32::MAX;
@@ -18,7 +17,7 @@ pub struct Workspace {
     pub pred: Vec<u32>,
     /// Vertices with a finite distance.
     pub touched: Vec<u32>,
-    heap: BinaryHeap<Reverse<(u64, u32)>>,
+    heap: MinHeap,
 }
 
 impl Workspace {
@@ -29,7 +28,7 @@ impl Workspace {
             label: vec![NONE; n],
             pred: vec![NONE; n],
             touched: Vec::new(),
-            heap: BinaryHeap::new(),
+            heap: MinHeap::new(),
         }
     }
 
@@ -52,12 +51,12 @@ impl Workspace {
         self.dist[v as usize] = 0;
         self.label[v as usize] = label;
         self.pred[v as usize] = NONE;
-        self.heap.push(Reverse((0, v)));
+        self.heap.push(0, v);
     }
 
     /// Dijkstra from the seeds, settling vertices closer than `bound`. Ties go to the lower vertex id.
     pub fn run(&mut self, g: &EdgeList, csr: &Csr, bound: u64) {
-        while let Some(Reverse((d, v))) = self.heap.pop() {
+        while let Some((d, v)) = self.heap.pop() {
             if d > self.dist[v as usize] {
                 continue;
             }
@@ -73,7 +72,7 @@ impl Workspace {
                     self.dist[w as usize] = nd;
                     self.label[w as usize] = self.label[v as usize];
                     self.pred[w as usize] = e;
-                    self.heap.push(Reverse((nd, w)));
+                    self.heap.push(nd, w);
                 }
             }
         }
@@ -86,7 +85,7 @@ impl Workspace {
     where
         F: Fn(&Workspace, u32) -> bool,
     {
-        while let Some(Reverse((d, v))) = self.heap.pop() {
+        while let Some((d, v)) = self.heap.pop() {
             if d > self.dist[v as usize] {
                 continue;
             }
@@ -106,7 +105,7 @@ impl Workspace {
                     self.dist[w as usize] = nd;
                     self.label[w as usize] = self.label[v as usize];
                     self.pred[w as usize] = e;
-                    self.heap.push(Reverse((nd, w)));
+                    self.heap.push(nd, w);
                 }
             }
         }

@@ -46,23 +46,29 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     }
 
     // 2. Positive edges between distinct super vertices; cheapest of parallel edges.
-    let mut se: Vec<(u32, u32, u64, u32)> = (0..g.len())
-        .filter(|&e| g.usable(e) && g.cost[e] > 0)
-        .filter_map(|e| {
+    let mut cand: Vec<u32> = Vec::new();
+    let mut cand_pair: Vec<[u32; 2]> = Vec::new();
+    for e in 0..g.len() {
+        if g.usable(e) && g.cost[e] > 0 {
             let [a, b] = g.ends[e];
             let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
-            (sa != sb).then(|| (sa.min(sb), sa.max(sb), g.cost[e], e as u32))
-        })
-        .collect();
-    rayon::slice::ParallelSliceMut::par_sort_unstable(&mut se[..]);
-    se.dedup_by(|later, first| later.0 == first.0 && later.1 == first.1);
+            if sa != sb {
+                cand.push(e as u32);
+                cand_pair.push([sa.min(sb), sa.max(sb)]);
+            }
+        }
+    }
+    let kept = cheapest_per_pair(ns, &cand_pair, |i| (g.cost[cand[i] as usize], cand[i]));
     let sg = EdgeList {
         vertices: ns,
-        ends: se.iter().map(|s| [s.0, s.1]).collect(),
-        cost: se.iter().map(|s| s.2).collect(),
+        ends: kept.iter().map(|&i| cand_pair[i as usize]).collect(),
+        cost: kept
+            .iter()
+            .map(|&i| g.cost[cand[i as usize] as usize])
+            .collect(),
     };
-    let sorig: Vec<u32> = se.iter().map(|s| s.3).collect();
-    drop(se);
+    let sorig: Vec<u32> = kept.iter().map(|&i| cand[i as usize]).collect();
+    drop((cand, cand_pair, kept));
     let csr = Csr::from_edges(&sg);
 
     // Keep what the terminals reach.
@@ -120,7 +126,11 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         }
     }
     let mut used = vec![false; sg.len()];
-    let mut chains: Vec<(u32, u32, u64, Vec<u32>)> = Vec::new();
+    // Chains found, flat: key-vertex pair, cost, and the original edges in `path[start..end]`.
+    let mut chain_pair: Vec<[u32; 2]> = Vec::new();
+    let mut chain_cost: Vec<u64> = Vec::new();
+    let mut chain_start: Vec<usize> = vec![0];
+    let mut path: Vec<u32> = Vec::new();
     for k in 0..ns as u32 {
         if key_id[k as usize] == u32::MAX {
             continue;
@@ -129,8 +139,8 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
             if !alive_e[first_e as usize] || used[first_e as usize] {
                 continue;
             }
+            let start = path.len();
             let mut cost = 0u64;
-            let mut path = Vec::new();
             let (mut cur, mut e) = (first_w, first_e);
             loop {
                 used[e as usize] = true;
@@ -153,24 +163,31 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
             }
             if key_id[cur as usize] != u32::MAX && cur != k {
                 let (a, b) = (key_id[k as usize], key_id[cur as usize]);
-                chains.push((a.min(b), a.max(b), cost, path));
+                chain_pair.push([a.min(b), a.max(b)]);
+                chain_cost.push(cost);
+                chain_start.push(path.len());
+            } else {
+                path.truncate(start); // a dead end or a loop back to k: never part of a tree
             }
         }
     }
-    chains.sort_by(|x, y| (x.0, x.1, x.2, x.3.first()).cmp(&(y.0, y.1, y.2, y.3.first())));
-    chains.dedup_by(|later, first| later.0 == first.0 && later.1 == first.1);
+    // Of parallel chains, the cheapest (ties to the one whose first road edge has the lower id).
+    let first = |i: usize| path[chain_start[i]];
+    let kept = cheapest_per_pair(keys as usize, &chain_pair, |i| (chain_cost[i], first(i)));
 
     let mut graph = EdgeList {
         vertices: keys as usize,
-        ends: Vec::with_capacity(chains.len()),
-        cost: Vec::with_capacity(chains.len()),
+        ends: Vec::with_capacity(kept.len()),
+        cost: Vec::with_capacity(kept.len()),
     };
     let mut orig = Vec::new();
-    let mut orig_offsets = vec![0];
-    for (a, b, c, path) in chains {
-        graph.ends.push([a, b]);
-        graph.cost.push(c);
-        orig.extend(path);
+    let mut orig_offsets = Vec::with_capacity(kept.len() + 1);
+    orig_offsets.push(0);
+    for &i in &kept {
+        let i = i as usize;
+        graph.ends.push(chain_pair[i]);
+        graph.cost.push(chain_cost[i]);
+        orig.extend_from_slice(&path[chain_start[i]..chain_start[i + 1]]);
         orig_offsets.push(orig.len());
     }
     let mut is_terminal = vec![false; keys as usize];
@@ -189,6 +206,48 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         orig_offsets,
         super_of,
     }
+}
+
+/// Of the items with vertex pairs `pairs` (each `[a, b]` with a < b < n), the one of least `rank`
+/// per pair, as item indices in (a, b) order: the result of sorting by (a, b, rank) and keeping the
+/// first of each pair, in linear time plus a sort of each vertex's own few pairs.
+fn cheapest_per_pair<R: Ord>(n: usize, pairs: &[[u32; 2]], rank: impl Fn(usize) -> R) -> Vec<u32> {
+    let mut offsets = vec![0usize; n + 1];
+    for &[a, _] in pairs {
+        offsets[a as usize + 1] += 1;
+    }
+    for v in 0..n {
+        offsets[v + 1] += offsets[v];
+    }
+    let mut fill = offsets.clone();
+    let mut by_first = vec![0u32; pairs.len()];
+    for (i, &[a, _]) in pairs.iter().enumerate() {
+        by_first[fill[a as usize]] = i as u32;
+        fill[a as usize] += 1;
+    }
+    drop(fill);
+    let mut best = vec![u32::MAX; n];
+    let mut seconds: Vec<u32> = Vec::new();
+    let mut out = Vec::with_capacity(pairs.len());
+    for a in 0..n {
+        seconds.clear();
+        for &i in &by_first[offsets[a]..offsets[a + 1]] {
+            let b = pairs[i as usize][1] as usize;
+            let cur = best[b];
+            if cur == u32::MAX {
+                best[b] = i;
+                seconds.push(b as u32);
+            } else if rank(i as usize) < rank(cur as usize) {
+                best[b] = i;
+            }
+        }
+        seconds.sort_unstable();
+        for &b in &seconds {
+            out.push(best[b as usize]);
+            best[b as usize] = u32::MAX;
+        }
+    }
+    out
 }
 
 /// Original edges of a solution: the road edges behind the chosen reduced edges, plus the intact
@@ -223,22 +282,7 @@ pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) ->
         }
     }
     // A BFS spanning forest over intact edges of the touched components.
-    let zero = EdgeList {
-        vertices: n,
-        ends: g.ends.clone(),
-        cost: g
-            .cost
-            .iter()
-            .map(|&c| {
-                if c == 0 {
-                    0
-                } else {
-                    crate::solve::graph::UNUSABLE
-                }
-            })
-            .collect(),
-    };
-    let csr = Csr::from_edges(&zero);
+    let csr = Csr::from_edges_where(g, |e| g.cost[e] == 0);
     let mut seen = vec![false; n];
     let mut queue = std::collections::VecDeque::new();
     for s in 0..n as u32 {
@@ -332,4 +376,30 @@ where
         i += 1;
         keep
     });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        /// The linear-time choice equals sorting by (a, b, rank) and keeping the first of each pair.
+        #[test]
+        fn cheapest_per_pair_equals_sort_and_dedup(
+            items in proptest::collection::vec((0u32..12, 0u32..12, 0u64..5), 0..200)
+        ) {
+            let pairs: Vec<[u32; 2]> = items
+                .iter()
+                .map(|&(a, b, _)| [a.min(b), a.max(b) + 1])
+                .collect();
+            let rank = |i: usize| (items[i].2, i);
+            let got = cheapest_per_pair(13, &pairs, rank);
+            let mut want: Vec<usize> = (0..pairs.len()).collect();
+            want.sort_by_key(|&i| (pairs[i], rank(i)));
+            want.dedup_by_key(|i| pairs[*i]);
+            let want: Vec<u32> = want.into_iter().map(|i| i as u32).collect();
+            prop_assert_eq!(got, want);
+        }
+    }
 }

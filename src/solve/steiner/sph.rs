@@ -5,8 +5,7 @@
 use super::paths::Workspace;
 use super::tree::mst_prune;
 use crate::solve::graph::{Csr, EdgeList};
-use std::cmp::Reverse;
-use std::collections::BinaryHeap;
+use crate::solve::heap::MinHeap;
 
 /// Steiner tree edges (ascending) grown from `root`.
 pub fn sph(
@@ -23,13 +22,13 @@ pub fn sph(
     ws.reset();
     let mut in_tree = vec![false; g.vertices];
     let mut edges = Vec::new();
-    let mut heap = BinaryHeap::new();
+    let mut heap = MinHeap::new();
     ws.seed(root, 0);
     in_tree[root as usize] = true;
-    heap.push(Reverse((0u64, root)));
+    heap.push(0, root);
     let mut count = 1;
     let mut path = Vec::new();
-    while let Some(Reverse((d, v))) = heap.pop() {
+    while let Some((d, v)) = heap.pop() {
         if d > ws.dist[v as usize] {
             continue;
         }
@@ -42,7 +41,7 @@ pub fn sph(
                 path.push(e);
                 ws.dist[x as usize] = 0;
                 ws.pred[x as usize] = super::paths::NONE;
-                heap.push(Reverse((0, x)));
+                heap.push(0, x);
                 let [a, b] = g.ends[e as usize];
                 x = if a == x { b } else { a };
             }
@@ -61,7 +60,7 @@ pub fn sph(
                 }
                 ws.dist[w as usize] = nd;
                 ws.pred[w as usize] = e;
-                heap.push(Reverse((nd, w)));
+                heap.push(nd, w);
             }
         }
     }
