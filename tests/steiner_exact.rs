@@ -5,7 +5,10 @@ mod common;
 use common::exact::dreyfus_wagner;
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
+use reknit::solve::graph::Csr;
 use reknit::solve::graph::{EdgeList, UNUSABLE};
+use reknit::solve::steiner::mehlhorn::mehlhorn;
+use reknit::solve::steiner::paths::Workspace;
 use reknit::solve::steiner::{Effort, steiner_tree, tree::check_steiner_tree};
 
 fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
@@ -51,6 +54,30 @@ proptest! {
             prop_assert!(t.cost <= 2 * opt, "cost {} above 2 × {opt}", t.cost);
             prop_assert!(t.lower_bound <= opt, "bound {} above optimum {opt}", t.lower_bound);
         }
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    /// Mehlhorn's tree against the exact optimum (Dreyfus–Wagner): a tree over the terminals of cost
+    /// at most 2(1 − 1/k) times the optimum (Kou, Markowsky & Berman 1981), and the lower bound drawn
+    /// from that guarantee never above the optimum.
+    #[test]
+    fn mehlhorn_keeps_its_guarantee_and_its_bound_holds((g, terms) in arb_instance()) {
+        let opt = dreyfus_wagner(&g, &terms);
+        let csr = Csr::from_edges(&g);
+        let mut is_terminal = vec![false; g.vertices];
+        for &t in &terms {
+            is_terminal[t as usize] = true;
+        }
+        let mut ws = Workspace::new(g.vertices);
+        let m = mehlhorn(&g, &csr, &terms, &is_terminal, &mut ws);
+        check_steiner_tree(&g, &m.edges, &terms).map_err(TestCaseError::fail)?;
+        let k = terms.len() as u64;
+        let cost = g.total(&m.edges);
+        prop_assert!(cost * k <= 2 * (k - 1) * opt, "cost {cost} above 2(1 - 1/{k}) × {opt}");
+        prop_assert!(m.lower_bound <= opt, "bound {} above optimum {opt}", m.lower_bound);
     }
 }
 

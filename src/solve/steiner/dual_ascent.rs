@@ -74,8 +74,12 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         if reached_root {
             continue;
         }
-        if w_set.len() > size {
-            // Grown since it was queued: requeue by its true size (smallest first).
+        if w_set.len() > size
+            && heap
+                .peek()
+                .is_some_and(|&Reverse((next, _))| next < w_set.len())
+        {
+            // Grown since it was queued and no longer the smallest: requeue by its true size.
             heap.push(Reverse((w_set.len(), t)));
             continue;
         }

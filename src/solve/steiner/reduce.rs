@@ -9,6 +9,7 @@
 //! original one.
 
 use crate::solve::graph::{Csr, EdgeList};
+use rayon::prelude::*;
 
 /// The reduced graph and the maps back to the original.
 #[derive(Debug, Clone)]
@@ -46,18 +47,15 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     }
 
     // 2. Positive edges between distinct super vertices; cheapest of parallel edges.
-    let mut cand: Vec<u32> = Vec::new();
-    let mut cand_pair: Vec<[u32; 2]> = Vec::new();
-    for e in 0..g.len() {
-        if g.usable(e) && g.cost[e] > 0 {
+    let (cand, cand_pair): (Vec<u32>, Vec<[u32; 2]>) = (0..g.len())
+        .into_par_iter()
+        .filter_map(|e| {
             let [a, b] = g.ends[e];
             let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
-            if sa != sb {
-                cand.push(e as u32);
-                cand_pair.push([sa.min(sb), sa.max(sb)]);
-            }
-        }
-    }
+            (g.usable(e) && g.cost[e] > 0 && sa != sb)
+                .then_some((e as u32, [sa.min(sb), sa.max(sb)]))
+        })
+        .unzip();
     let kept = cheapest_per_pair(ns, &cand_pair, |i| (g.cost[cand[i] as usize], cand[i]));
     let sg = EdgeList {
         vertices: ns,
@@ -125,51 +123,59 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
             keys += 1;
         }
     }
-    let mut used = vec![false; sg.len()];
-    // Chains found, flat: key-vertex pair, cost, and the original edges in `path[start..end]`.
+    // Chains are walked from both ends in parallel and kept from the end with the lower id (loops
+    // back to their start never help a tree); concatenated in that end's order, the list is the
+    // same as a sequential walk would give.
+    let key_vertices: Vec<u32> = (0..ns as u32)
+        .filter(|&v| key_id[v as usize] != u32::MAX)
+        .collect();
+    let walk_from = |ks: &[u32]| {
+        let mut out = Chains::default();
+        for &k in ks {
+            for (first_w, first_e) in csr.neighbours(k) {
+                if !alive_e[first_e as usize] {
+                    continue;
+                }
+                let start = out.path.len();
+                let mut cost = 0u64;
+                let (mut cur, mut e) = (first_w, first_e);
+                loop {
+                    cost += sg.cost[e as usize];
+                    out.path.push(sorig[e as usize]);
+                    if key_id[cur as usize] != u32::MAX || cur == k {
+                        break;
+                    }
+                    // A degree-2 non-terminal: continue along its other live edge.
+                    match csr
+                        .neighbours(cur)
+                        .find(|&(_, e2)| e2 != e && alive_e[e2 as usize])
+                    {
+                        Some((w2, e2)) => (cur, e) = (w2, e2),
+                        None => break,
+                    }
+                }
+                if key_id[cur as usize] != u32::MAX && cur > k {
+                    out.pair.push([key_id[k as usize], key_id[cur as usize]]);
+                    out.cost.push(cost);
+                    out.end.push(out.path.len());
+                } else {
+                    out.path.truncate(start);
+                }
+            }
+        }
+        out
+    };
+    let parts: Vec<Chains> = key_vertices.par_chunks(1024).map(walk_from).collect();
     let mut chain_pair: Vec<[u32; 2]> = Vec::new();
     let mut chain_cost: Vec<u64> = Vec::new();
     let mut chain_start: Vec<usize> = vec![0];
     let mut path: Vec<u32> = Vec::new();
-    for k in 0..ns as u32 {
-        if key_id[k as usize] == u32::MAX {
-            continue;
-        }
-        for (first_w, first_e) in csr.neighbours(k) {
-            if !alive_e[first_e as usize] || used[first_e as usize] {
-                continue;
-            }
-            let start = path.len();
-            let mut cost = 0u64;
-            let (mut cur, mut e) = (first_w, first_e);
-            loop {
-                used[e as usize] = true;
-                cost += sg.cost[e as usize];
-                path.push(sorig[e as usize]);
-                if key_id[cur as usize] != u32::MAX {
-                    break;
-                }
-                // A degree-2 non-terminal: continue along its other live edge.
-                let next = csr
-                    .neighbours(cur)
-                    .find(|&(_, e2)| e2 != e && alive_e[e2 as usize] && !used[e2 as usize]);
-                match next {
-                    Some((w2, e2)) => {
-                        cur = w2;
-                        e = e2;
-                    }
-                    None => break,
-                }
-            }
-            if key_id[cur as usize] != u32::MAX && cur != k {
-                let (a, b) = (key_id[k as usize], key_id[cur as usize]);
-                chain_pair.push([a.min(b), a.max(b)]);
-                chain_cost.push(cost);
-                chain_start.push(path.len());
-            } else {
-                path.truncate(start); // a dead end or a loop back to k: never part of a tree
-            }
-        }
+    for part in parts {
+        let base = path.len();
+        chain_pair.extend_from_slice(&part.pair);
+        chain_cost.extend_from_slice(&part.cost);
+        chain_start.extend(part.end.iter().map(|&e| base + e));
+        path.extend_from_slice(&part.path);
     }
     // Of parallel chains, the cheapest (ties to the one whose first road edge has the lower id).
     let first = |i: usize| path[chain_start[i]];
@@ -206,6 +212,16 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         orig_offsets,
         super_of,
     }
+}
+
+/// Chains walked from a run of key vertices: key pairs, costs, and the original edges of chain `i`
+/// ending at `path[end[i]]` (each starts where the previous one ended).
+#[derive(Default)]
+struct Chains {
+    pair: Vec<[u32; 2]>,
+    cost: Vec<u64>,
+    end: Vec<usize>,
+    path: Vec<u32>,
 }
 
 /// Of the items with vertex pairs `pairs` (each `[a, b]` with a < b < n), the one of least `rank`
@@ -282,7 +298,9 @@ pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) ->
         }
     }
     // A BFS spanning forest over intact edges of the touched components.
-    let csr = Csr::from_edges_where(g, |e| g.cost[e] == 0);
+    let csr = Csr::from_edges_where(g, |e| {
+        g.cost[e] == 0 && touched[red.super_of[g.ends[e][0] as usize] as usize]
+    });
     let mut seen = vec![false; n];
     let mut queue = std::collections::VecDeque::new();
     for s in 0..n as u32 {
