@@ -8,7 +8,7 @@
 //! Each step keeps the optimal cost, so bounds and gaps computed on the reduced graph hold for the
 //! original one.
 
-use crate::solve::graph::{Csr, EdgeList};
+use crate::solve::graph::{Csr, EdgeList, UNUSABLE};
 use rayon::prelude::*;
 
 /// The reduced graph and the maps back to the original.
@@ -47,15 +47,18 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     }
 
     // 2. Positive edges between distinct super vertices; cheapest of parallel edges.
-    let (cand, cand_pair): (Vec<u32>, Vec<[u32; 2]>) = (0..g.len())
-        .into_par_iter()
-        .filter_map(|e| {
-            let [a, b] = g.ends[e];
-            let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
-            (g.usable(e) && g.cost[e] > 0 && sa != sb)
-                .then_some((e as u32, [sa.min(sb), sa.max(sb)]))
-        })
-        .unzip();
+    // Picked out without branching: which edges pass is as good as random.
+    let mut cand = vec![0u32; g.len()];
+    let mut cand_pair = vec![[0u32; 2]; g.len()];
+    let mut count = 0;
+    for ((&c, &[a, b]), e) in g.cost.iter().zip(&g.ends).zip(0u32..) {
+        let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
+        cand[count] = e;
+        cand_pair[count] = [sa.min(sb), sa.max(sb)];
+        count += usize::from((c != 0) & (c != UNUSABLE) & (sa != sb));
+    }
+    cand.truncate(count);
+    cand_pair.truncate(count);
     let kept = cheapest_per_pair(ns, &cand_pair, |i| (g.cost[cand[i] as usize], cand[i]));
     let sg = EdgeList {
         vertices: ns,
@@ -166,10 +169,12 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         out
     };
     let parts: Vec<Chains> = key_vertices.par_chunks(1024).map(walk_from).collect();
-    let mut chain_pair: Vec<[u32; 2]> = Vec::new();
-    let mut chain_cost: Vec<u64> = Vec::new();
-    let mut chain_start: Vec<usize> = vec![0];
-    let mut path: Vec<u32> = Vec::new();
+    let chains: usize = parts.iter().map(|p| p.pair.len()).sum();
+    let mut chain_pair: Vec<[u32; 2]> = Vec::with_capacity(chains);
+    let mut chain_cost: Vec<u64> = Vec::with_capacity(chains);
+    let mut chain_start: Vec<usize> = Vec::with_capacity(chains + 1);
+    chain_start.push(0);
+    let mut path: Vec<u32> = Vec::with_capacity(parts.iter().map(|p| p.path.len()).sum());
     for part in parts {
         let base = path.len();
         chain_pair.extend_from_slice(&part.pair);
