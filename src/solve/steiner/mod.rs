@@ -141,7 +141,7 @@ pub struct SteinerTree {
     pub cost: Cost,
     /// A proven lower bound on the cost of any tree connecting the terminals.
     pub lower_bound: Cost,
-    /// False when the bound computation stopped at its work budget (the bound still holds).
+    /// False when the dual ascent stopped at its work budget or was skipped (the bound still holds).
     pub bound_complete: bool,
     /// Vertices and edges of the reduced graph that was searched.
     pub reduced_size: (usize, usize),
