@@ -25,21 +25,7 @@ static GRAPHS: LazyLock<Vec<EdgeList>> = LazyLock::new(|| {
 });
 
 static PETGRAPHS: LazyLock<Vec<UnGraph<(), u64>>> =
-    LazyLock::new(|| GRAPHS.iter().map(to_petgraph).collect());
-
-fn to_petgraph(g: &EdgeList) -> UnGraph<(), u64> {
-    let mut pg = UnGraph::with_capacity(g.vertices, g.len());
-    for _ in 0..g.vertices {
-        pg.add_node(());
-    }
-    for e in 0..g.len() {
-        if g.usable(e) {
-            let [a, b] = g.ends[e];
-            pg.add_edge(a.into(), b.into(), g.cost[e]);
-        }
-    }
-    pg
-}
+    LazyLock::new(|| GRAPHS.iter().map(EdgeList::to_petgraph).collect());
 
 fn main() {
     LazyLock::force(&PETGRAPHS);

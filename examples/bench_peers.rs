@@ -27,20 +27,6 @@ fn median<F: FnMut() -> u64>(runs: usize, mut f: F) -> (f64, u64) {
     (times[runs / 2], out)
 }
 
-fn to_petgraph(g: &EdgeList) -> UnGraph<(), u64> {
-    let mut pg = UnGraph::with_capacity(g.vertices, g.len());
-    for _ in 0..g.vertices {
-        pg.add_node(());
-    }
-    for e in 0..g.len() {
-        if g.usable(e) {
-            let [a, b] = g.ends[e];
-            pg.add_edge(a.into(), b.into(), g.cost[e]);
-        }
-    }
-    pg
-}
-
 fn forest(side: usize, intact: f64, out: &str) -> std::io::Result<()> {
     let g = grid_graph(side, intact, 7);
     let plus_one = EdgeList {
@@ -65,7 +51,7 @@ fn forest(side: usize, intact: f64, out: &str) -> std::io::Result<()> {
             .expect("forest")
             .total_cost;
         assert_eq!(total, checked);
-        let pg = to_petgraph(graph);
+        let pg = graph.to_petgraph();
         let (theirs, ptotal) = median(3, || {
             petgraph::algo::min_spanning_tree(&pg)
                 .filter_map(|el| match el {

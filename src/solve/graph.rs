@@ -37,6 +37,22 @@ impl EdgeList {
     pub fn total(&self, edges: &[u32]) -> Cost {
         edges.iter().map(|&e| self.cost[e as usize]).sum()
     }
+
+    /// The usable, non-loop edges as a petgraph graph with the same vertex ids (for cross-checks and
+    /// benchmarks against petgraph's algorithms).
+    pub fn to_petgraph(&self) -> petgraph::graph::UnGraph<(), Cost> {
+        let mut pg = petgraph::graph::UnGraph::with_capacity(self.vertices, self.len());
+        for _ in 0..self.vertices {
+            pg.add_node(());
+        }
+        for e in 0..self.len() {
+            if self.usable(e) {
+                let [a, b] = self.ends[e];
+                pg.add_edge(a.into(), b.into(), self.cost[e]);
+            }
+        }
+        pg
+    }
 }
 
 /// Compressed sparse row adjacency over the usable edges of an [`EdgeList`].

@@ -183,14 +183,7 @@ mod tests {
             prop_assert_eq!(k.total_cost, p.total_cost);
             prop_assert_eq!(k.edges.len(), p.edges.len());
             // Cross-check against petgraph's own implementation on the same edges.
-            let mut pg = petgraph::graph::UnGraph::<(), u64>::new_undirected();
-            for _ in 0..g.vertices { pg.add_node(()); }
-            for e in 0..g.len() {
-                if g.usable(e) {
-                    let [a, b] = g.ends[e];
-                    pg.add_edge(a.into(), b.into(), g.cost[e]);
-                }
-            }
+            let pg = g.to_petgraph();
             let total: u64 = petgraph::algo::min_spanning_tree(&pg)
                 .filter_map(|el| match el {
                     petgraph::data::Element::Edge { weight, .. } => Some(weight),
