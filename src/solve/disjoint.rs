@@ -44,16 +44,6 @@ impl DisjointSets {
         }
     }
 
-    /// Points every element straight at its representative, so [`root`](Self::root) takes one step.
-    pub fn flatten(&mut self) {
-        for x in 0..self.link.len() as u32 {
-            let r = self.find(x);
-            if r != x {
-                self.link[x as usize] = r as i32;
-            }
-        }
-    }
-
     /// Writes every element's representative into `out`, in parallel (the sets are only read).
     pub fn roots_into(&self, out: &mut Vec<u32>) {
         out.clear();
@@ -65,7 +55,7 @@ impl DisjointSets {
     }
 
     /// Points every element straight at its representative, given all of them (from
-    /// [`roots_into`](Self::roots_into)): a streaming pass, cheaper than [`flatten`](Self::flatten).
+    /// [`roots_into`](Self::roots_into)), so later lookups take one step.
     pub fn flatten_to(&mut self, roots: &[u32]) {
         for (link, &r) in self.link.iter_mut().zip(roots) {
             *link = if *link >= 0 { r as i32 } else { *link };

@@ -204,11 +204,7 @@ impl Chosen {
     #[inline]
     fn take(&mut self, g: &EdgeList, ds: &mut DisjointSets, e: u32) -> bool {
         let [a, b] = g.ends[e as usize];
-        if ds.union(a, b) {
-            self.mark[e as usize / 64] |= 1 << (e % 64);
-            self.count += 1;
-        }
-        self.count == self.limit
+        self.take_pair(ds, e, a, b)
     }
 
     /// Adds edge `e` with ends `a`, `b` when it joins two trees; true once the forest is a spanning tree.
