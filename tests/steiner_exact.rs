@@ -9,6 +9,7 @@ use reknit::solve::graph::Csr;
 use reknit::solve::graph::{EdgeList, UNUSABLE};
 use reknit::solve::steiner::mehlhorn::mehlhorn;
 use reknit::solve::steiner::paths::Workspace;
+use reknit::solve::steiner::reduce::reduce;
 use reknit::solve::steiner::{Effort, steiner_tree, tree::check_steiner_tree};
 
 fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
@@ -78,6 +79,66 @@ proptest! {
         let cost = g.total(&m.edges);
         prop_assert!(cost * k <= 2 * (k - 1) * opt, "cost {cost} above 2(1 - 1/{k}) × {opt}");
         prop_assert!(m.lower_bound <= opt, "bound {} above optimum {opt}", m.lower_bound);
+    }
+}
+
+/// An instance with a second, separate piece of network (a cycle with a chord, zero-cost edges
+/// and a pendant road) that no terminal reaches.
+fn arb_instance_with_stray_piece() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
+    (arb_instance(), proptest::collection::vec(0u64..6, 7)).prop_map(|((mut g, terms), c)| {
+        let b = g.vertices as u32;
+        g.vertices += 5;
+        for (i, [x, y]) in [[0, 1], [1, 2], [2, 3], [3, 0], [0, 2], [3, 4], [4, 4]]
+            .into_iter()
+            .enumerate()
+        {
+            g.ends.push([b + x, b + y]);
+            g.cost.push(c[i]);
+        }
+        (g, terms)
+    })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    /// The reductions keep the optimum (Dreyfus–Wagner on the original and on the reduced graph),
+    /// each reduced edge stands for a path of road edges of the same total cost between the
+    /// zero-cost components of its ends, and pieces no terminal reaches are gone.
+    #[test]
+    fn reductions_keep_the_optimum((g, terms) in arb_instance_with_stray_piece()) {
+        let mut sorted = terms.clone();
+        sorted.sort_unstable();
+        let red = reduce(&g, &sorted);
+        let rg = &red.graph;
+        prop_assert_eq!(red.terminals.len(), {
+            let mut s: Vec<u32> = sorted.iter().map(|&t| red.super_of[t as usize]).collect();
+            s.dedup();
+            s.sort_unstable();
+            s.dedup();
+            s.len()
+        });
+        let opt = dreyfus_wagner(&g, &sorted);
+        let ropt = if red.terminals.len() < 2 { 0 } else { dreyfus_wagner(rg, &red.terminals) };
+        prop_assert_eq!(ropt, opt);
+        for e in 0..rg.len() as u32 {
+            let orig = red.originals(e);
+            prop_assert!(!orig.is_empty());
+            prop_assert_eq!(g.total(orig), rg.cost[e as usize]);
+            prop_assert!(rg.cost[e as usize] > 0);
+            // The road edges form a walk from one end's component to the other's.
+            let ends = rg.ends[e as usize];
+            let stray = g.vertices as u32 - 5;
+            let mut counts = std::collections::BTreeMap::new();
+            for &o in orig {
+                prop_assert!(g.ends[o as usize][0] < stray, "edge {} of the stray piece kept", o);
+                for v in g.ends[o as usize] {
+                    *counts.entry(red.super_of[v as usize]).or_insert(0u32) += 1;
+                }
+            }
+            let odd: Vec<u32> = counts.iter().filter(|&(_, &c)| c % 2 == 1).map(|(&s, _)| s).collect();
+            prop_assert_eq!(odd.len(), 2, "reduced edge {:?} is not a path", ends);
+        }
     }
 }
 

@@ -42,9 +42,9 @@ pub fn fragility(g: &EdgeList, roots: &[u32]) -> Fragility {
         tin[s as usize] = timer;
         low[s as usize] = timer;
         timer += 1;
-        stack.push((s, UN, csr.offsets[s as usize], 0));
+        stack.push((s, UN, csr.offsets[s as usize] as usize, 0));
         while let Some(&mut (v, via, ref mut next, ref mut kids)) = stack.last_mut() {
-            let end = csr.offsets[v as usize + 1];
+            let end = csr.offsets[v as usize + 1] as usize;
             if *next < end {
                 let k = *next;
                 *next += 1;
@@ -57,7 +57,7 @@ pub fn fragility(g: &EdgeList, roots: &[u32]) -> Fragility {
                     tin[w as usize] = timer;
                     low[w as usize] = timer;
                     timer += 1;
-                    stack.push((w, e, csr.offsets[w as usize], 0));
+                    stack.push((w, e, csr.offsets[w as usize] as usize, 0));
                 } else {
                     low[v as usize] = low[v as usize].min(tin[w as usize]);
                 }

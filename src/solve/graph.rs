@@ -59,7 +59,7 @@ impl EdgeList {
 #[derive(Debug, Clone, Default)]
 pub struct Csr {
     /// `offsets[v]..offsets[v + 1]` indexes `v`'s neighbours.
-    pub offsets: Vec<usize>,
+    pub offsets: Vec<u32>,
     /// Neighbour vertex of each adjacency entry.
     pub target: Vec<u32>,
     /// Edge id of each adjacency entry.
@@ -74,35 +74,41 @@ impl Csr {
 
     /// Builds the adjacency of the usable, non-loop edges for which `keep(edge id)` holds.
     pub fn from_edges_where<F: Fn(usize) -> bool>(g: &EdgeList, keep: F) -> Csr {
-        let n = g.vertices;
-        let use_edge = |e: usize| g.usable(e) && keep(e);
-        let mut deg = vec![0usize; n + 1];
-        for e in 0..g.len() {
-            if use_edge(e) {
-                let [a, b] = g.ends[e];
-                deg[a as usize] += 1;
-                deg[b as usize] += 1;
+        Self::from_pairs(g.vertices, g.len(), |e| {
+            (g.usable(e) && keep(e)).then(|| g.ends[e])
+        })
+    }
+
+    /// Builds the adjacency of `n` vertices from edges `0..m`, where `ends(e)` gives an edge's two
+    /// distinct ends or `None` to leave it out; each neighbour list comes in edge-id order.
+    pub fn from_pairs<F: Fn(usize) -> Option<[u32; 2]>>(n: usize, m: usize, ends: F) -> Csr {
+        // Degrees are counted two places up, so that after the prefix sum `offsets[v + 1]` is where
+        // v's list starts; filling advances it to where v's list ends, which is where v + 1's starts.
+        // No other per-vertex array is needed (fresh memory costs page faults).
+        let mut offsets = vec![0u32; n + 2];
+        for e in 0..m {
+            if let Some([a, b]) = ends(e) {
+                offsets[a as usize + 2] += 1;
+                offsets[b as usize + 2] += 1;
             }
         }
-        let mut offsets = vec![0usize; n + 1];
-        for v in 0..n {
-            offsets[v + 1] = offsets[v] + deg[v];
+        for v in 2..n + 2 {
+            offsets[v] += offsets[v - 1];
         }
-        let mut fill = offsets.clone();
-        let m2 = offsets[n];
+        let m2 = offsets[n + 1] as usize;
         let mut target = vec![0u32; m2];
         let mut edge = vec![0u32; m2];
-        for e in 0..g.len() {
-            if use_edge(e) {
-                let [a, b] = g.ends[e];
+        for e in 0..m {
+            if let Some([a, b]) = ends(e) {
                 for (u, w) in [(a, b), (b, a)] {
-                    let slot = &mut fill[u as usize];
-                    target[*slot] = w;
-                    edge[*slot] = e as u32;
+                    let slot = &mut offsets[u as usize + 1];
+                    target[*slot as usize] = w;
+                    edge[*slot as usize] = e as u32;
                     *slot += 1;
                 }
             }
         }
+        offsets.truncate(n + 1);
         Csr {
             offsets,
             target,
@@ -110,10 +116,16 @@ impl Csr {
         }
     }
 
+    /// Positions of `v`'s entries in `target` and `edge`.
+    #[inline]
+    pub fn range(&self, v: u32) -> std::ops::Range<usize> {
+        self.offsets[v as usize] as usize..self.offsets[v as usize + 1] as usize
+    }
+
     /// Neighbours of `v` as (neighbour, edge id) pairs.
     #[inline]
     pub fn neighbours(&self, v: u32) -> impl Iterator<Item = (u32, u32)> + '_ {
-        let r = self.offsets[v as usize]..self.offsets[v as usize + 1];
+        let r = self.range(v);
         self.target[r.clone()]
             .iter()
             .copied()

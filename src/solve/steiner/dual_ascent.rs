@@ -56,7 +56,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         while i < w_set.len() {
             let w = w_set[i];
             i += 1;
-            let r = csr.offsets[w as usize]..csr.offsets[w as usize + 1];
+            let r = csr.range(w);
             work += r.len() as u64;
             for k in r {
                 if rc_in[k] == 0 {
@@ -86,7 +86,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         cut.clear();
         let mut delta = u64::MAX;
         for &w in &w_set {
-            for k in csr.offsets[w as usize]..csr.offsets[w as usize + 1] {
+            for k in csr.range(w) {
                 if stamp[csr.target[k] as usize] != round {
                     cut.push(k);
                     delta = delta.min(rc_in[k]);

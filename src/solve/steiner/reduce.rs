@@ -8,6 +8,7 @@
 //! Each step keeps the optimal cost, so bounds and gaps computed on the reduced graph hold for the
 //! original one.
 
+use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList, UNUSABLE};
 use rayon::prelude::*;
 
@@ -23,7 +24,7 @@ pub struct Reduced {
     /// Original edge ids of reduced edge `e`: `orig[orig_offsets[e]..orig_offsets[e + 1]]`.
     pub orig: Vec<u32>,
     /// Offsets into `orig`.
-    pub orig_offsets: Vec<usize>,
+    pub orig_offsets: Vec<u32>,
     /// Zero-cost component ("super vertex") of every original vertex.
     pub super_of: Vec<u32>,
 }
@@ -31,14 +32,21 @@ pub struct Reduced {
 impl Reduced {
     /// The original edges a reduced edge stands for.
     pub fn originals(&self, e: u32) -> &[u32] {
-        &self.orig[self.orig_offsets[e as usize]..self.orig_offsets[e as usize + 1]]
+        &self.orig
+            [self.orig_offsets[e as usize] as usize..self.orig_offsets[e as usize + 1] as usize]
     }
 }
 
 /// Reduces `g` for the terminal set `terminals` (original vertex ids, all mutually reachable).
+///
+/// The passes are laid out to touch little fresh memory (on large graphs first touches of new pages
+/// cost as much as the work itself) and run on both cores where they can.
 pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
-    // 1. Zero-cost components.
-    let zero = crate::solve::components::components_where(g, |e| g.cost[e] == 0);
+    // 1. Zero-cost components; beside them, which vertices the terminals reach at all.
+    let (zero, reached) = rayon::join(
+        || crate::solve::components::components_where(g, |e| g.cost[e] == 0),
+        || reached_by(g, terminals),
+    );
     let super_of = zero.of;
     let ns = zero.count;
     let mut term = vec![false; ns];
@@ -46,56 +54,18 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         term[super_of[t as usize] as usize] = true;
     }
 
-    // 2. Positive edges between distinct super vertices; cheapest of parallel edges.
-    // Picked out without branching: which edges pass is as good as random.
-    let mut cand = vec![0u32; g.len()];
-    let mut cand_pair = vec![[0u32; 2]; g.len()];
-    let mut count = 0;
-    for ((&c, &[a, b]), e) in g.cost.iter().zip(&g.ends).zip(0u32..) {
-        let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
-        cand[count] = e;
-        cand_pair[count] = [sa.min(sb), sa.max(sb)];
-        count += usize::from((c != 0) & (c != UNUSABLE) & (sa != sb));
-    }
-    cand.truncate(count);
-    cand_pair.truncate(count);
-    let kept = cheapest_per_pair(ns, &cand_pair, |i| (g.cost[cand[i] as usize], cand[i]));
-    let sg = EdgeList {
-        vertices: ns,
-        ends: kept.iter().map(|&i| cand_pair[i as usize]).collect(),
-        cost: kept
-            .iter()
-            .map(|&i| g.cost[cand[i as usize] as usize])
-            .collect(),
-    };
-    let sorig: Vec<u32> = kept.iter().map(|&i| cand[i as usize]).collect();
-    drop((cand, cand_pair, kept));
-    let csr = Csr::from_edges(&sg);
-
-    // Keep what the terminals reach.
-    let mut alive_v = vec![false; ns];
-    let mut stack: Vec<u32> = (0..ns as u32).filter(|&s| term[s as usize]).collect();
-    for &s in &stack {
-        alive_v[s as usize] = true;
-    }
-    while let Some(v) = stack.pop() {
-        for (w, _) in csr.neighbours(v) {
-            if !alive_v[w as usize] {
-                alive_v[w as usize] = true;
-                stack.push(w);
-            }
-        }
-    }
+    // 2. Positive edges between distinct super vertices that the terminals reach; of parallel
+    // edges the cheapest (ties to the lower id), in (lower end, upper end) order.
+    let (sg_ends, sorig) = cheapest_super_edges(g, &super_of, ns, &reached);
+    drop(reached);
+    let cost_of = |e: u32| g.cost[sorig[e as usize] as usize];
+    let csr = Csr::from_pairs(ns, sg_ends.len(), |e| Some(sg_ends[e]));
 
     // 3. Remove non-terminal leaves repeatedly.
-    let mut alive_e: Vec<bool> = sg.ends.iter().map(|&[a, _]| alive_v[a as usize]).collect();
-    let mut deg = vec![0u32; ns];
-    for (e, &[a, b]) in sg.ends.iter().enumerate() {
-        if alive_e[e] {
-            deg[a as usize] += 1;
-            deg[b as usize] += 1;
-        }
-    }
+    let mut deg: Vec<u32> = (0..ns as u32).map(|v| csr.range(v).len() as u32).collect();
+    let mut alive_v: Vec<bool> = (0..ns).map(|v| term[v] || deg[v] > 0).collect();
+    let mut alive_e = vec![true; sg_ends.len()];
+    drop(sg_ends);
     let mut queue: Vec<u32> = (0..ns as u32)
         .filter(|&v| alive_v[v as usize] && !term[v as usize] && deg[v as usize] <= 1)
         .collect();
@@ -119,32 +89,36 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     // 4. Contract degree-2 chains between key vertices (terminals and degree ≠ 2).
     let key = |v: u32| term[v as usize] || deg[v as usize] != 2;
     let mut key_id = vec![u32::MAX; ns];
-    let mut keys = 0u32;
+    let mut key_vertices: Vec<u32> = Vec::new();
     for v in 0..ns as u32 {
         if alive_v[v as usize] && key(v) {
-            key_id[v as usize] = keys;
-            keys += 1;
+            key_id[v as usize] = key_vertices.len() as u32;
+            key_vertices.push(v);
         }
     }
+    drop(alive_v);
+    let keys = key_vertices.len();
     // Chains are walked from both ends in parallel and kept from the end with the lower id (loops
-    // back to their start never help a tree); concatenated in that end's order, the list is the
-    // same as a sequential walk would give.
-    let key_vertices: Vec<u32> = (0..ns as u32)
-        .filter(|&v| key_id[v as usize] != u32::MAX)
-        .collect();
+    // back to their start never help a tree). Parallel chains leave the same lower end, so each
+    // key vertex keeps the cheapest of its own (ties to the lower first road edge) and the parts,
+    // concatenated, list the chains in (lower end, upper end) order.
     let walk_from = |ks: &[u32]| {
         let mut out = Chains::default();
+        let mut found: Vec<Found> = Vec::new();
+        let mut walked: Vec<u32> = Vec::new();
         for &k in ks {
+            found.clear();
+            walked.clear();
             for (first_w, first_e) in csr.neighbours(k) {
                 if !alive_e[first_e as usize] {
                     continue;
                 }
-                let start = out.path.len();
+                let start = walked.len();
                 let mut cost = 0u64;
                 let (mut cur, mut e) = (first_w, first_e);
                 loop {
-                    cost += sg.cost[e as usize];
-                    out.path.push(sorig[e as usize]);
+                    cost += cost_of(e);
+                    walked.push(sorig[e as usize]);
                     if key_id[cur as usize] != u32::MAX || cur == k {
                         break;
                     }
@@ -158,57 +132,51 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
                     }
                 }
                 if key_id[cur as usize] != u32::MAX && cur > k {
-                    out.pair.push([key_id[k as usize], key_id[cur as usize]]);
-                    out.cost.push(cost);
-                    out.end.push(out.path.len());
+                    found.push(Found {
+                        other: key_id[cur as usize],
+                        cost,
+                        first: walked[start],
+                        span: [start, walked.len()],
+                    });
                 } else {
-                    out.path.truncate(start);
+                    walked.truncate(start);
+                }
+            }
+            found.sort_unstable_by_key(|f| (f.other, f.cost, f.first));
+            let mut last = u32::MAX;
+            for f in &found {
+                if f.other != last {
+                    last = f.other;
+                    out.ends.push([key_id[k as usize], f.other]);
+                    out.cost.push(f.cost);
+                    out.path.extend_from_slice(&walked[f.span[0]..f.span[1]]);
+                    out.end.push(out.path.len() as u32);
                 }
             }
         }
         out
     };
     let parts: Vec<Chains> = key_vertices.par_chunks(1024).map(walk_from).collect();
-    let chains: usize = parts.iter().map(|p| p.pair.len()).sum();
-    let mut chain_pair: Vec<[u32; 2]> = Vec::with_capacity(chains);
-    let mut chain_cost: Vec<u64> = Vec::with_capacity(chains);
-    let mut chain_start: Vec<usize> = Vec::with_capacity(chains + 1);
-    chain_start.push(0);
-    let mut path: Vec<u32> = Vec::with_capacity(parts.iter().map(|p| p.path.len()).sum());
-    for part in parts {
-        let base = path.len();
-        chain_pair.extend_from_slice(&part.pair);
-        chain_cost.extend_from_slice(&part.cost);
-        chain_start.extend(part.end.iter().map(|&e| base + e));
-        path.extend_from_slice(&part.path);
-    }
-    // Of parallel chains, the cheapest (ties to the one whose first road edge has the lower id).
-    let first = |i: usize| path[chain_start[i]];
-    let kept = cheapest_per_pair(keys as usize, &chain_pair, |i| (chain_cost[i], first(i)));
-
+    let edges: usize = parts.iter().map(|p| p.ends.len()).sum();
     let mut graph = EdgeList {
-        vertices: keys as usize,
-        ends: Vec::with_capacity(kept.len()),
-        cost: Vec::with_capacity(kept.len()),
+        vertices: keys,
+        ends: Vec::with_capacity(edges),
+        cost: Vec::with_capacity(edges),
     };
-    let mut orig = Vec::new();
-    let mut orig_offsets = Vec::with_capacity(kept.len() + 1);
+    let mut orig = Vec::with_capacity(parts.iter().map(|p| p.path.len()).sum());
+    let mut orig_offsets = Vec::with_capacity(edges + 1);
     orig_offsets.push(0);
-    for &i in &kept {
-        let i = i as usize;
-        graph.ends.push(chain_pair[i]);
-        graph.cost.push(chain_cost[i]);
-        orig.extend_from_slice(&path[chain_start[i]..chain_start[i + 1]]);
-        orig_offsets.push(orig.len());
+    for part in parts {
+        let base = orig.len() as u32;
+        graph.ends.extend_from_slice(&part.ends);
+        graph.cost.extend_from_slice(&part.cost);
+        orig_offsets.extend(part.end.iter().map(|&e| base + e));
+        orig.extend_from_slice(&part.path);
     }
-    let mut is_terminal = vec![false; keys as usize];
-    let mut rterms = Vec::new();
-    for s in 0..ns {
-        if term[s] && key_id[s] != u32::MAX {
-            is_terminal[key_id[s] as usize] = true;
-            rterms.push(key_id[s]);
-        }
-    }
+    let is_terminal: Vec<bool> = key_vertices.iter().map(|&s| term[s as usize]).collect();
+    let rterms: Vec<u32> = (0..keys as u32)
+        .filter(|&k| is_terminal[k as usize])
+        .collect();
     Reduced {
         graph,
         terminals: rterms,
@@ -219,56 +187,108 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
     }
 }
 
-/// Chains walked from a run of key vertices: key pairs, costs, and the original edges of chain `i`
+/// Whether each vertex shares a component (over usable edges) with a terminal.
+fn reached_by(g: &EdgeList, terminals: &[u32]) -> Vec<bool> {
+    let mut ds = DisjointSets::new(g.vertices);
+    for e in 0..g.len() {
+        if g.usable(e) {
+            let [a, b] = g.ends[e];
+            ds.union(a, b);
+        }
+    }
+    let mut hit = vec![false; g.vertices];
+    for &t in terminals {
+        hit[ds.find(t) as usize] = true;
+    }
+    (0..g.vertices as u32)
+        .into_par_iter()
+        .map(|v| hit[ds.root(v) as usize])
+        .collect()
+}
+
+/// The edges of the super graph: for every pair of distinct super vertices joined by positive,
+/// usable edges of reached vertices, the cheapest such edge (ties to the lower id). Returns the
+/// pairs `[a, b]` (a < b) in ascending order and the original edge of each.
+fn cheapest_super_edges(
+    g: &EdgeList,
+    super_of: &[u32],
+    ns: usize,
+    reached: &[bool],
+) -> (Vec<[u32; 2]>, Vec<u32>) {
+    // Group the candidates by lower end with a counting sort, counted two places up (see
+    // Csr::from_pairs). Which edges pass is as good as random, so both passes go without branching:
+    // a failing edge is written to a spare slot at the end.
+    let candidate = |e: usize| {
+        let c = g.cost[e];
+        let [a, b] = g.ends[e];
+        let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
+        let pass = (c != 0) & (c != UNUSABLE) & (sa != sb) & reached[a as usize];
+        (pass, sa.min(sb), sa.max(sb))
+    };
+    let mut offsets = vec![0u32; ns + 2];
+    for e in 0..g.len() {
+        let (pass, lo, _) = candidate(e);
+        offsets[lo as usize + 2] += u32::from(pass);
+    }
+    for v in 2..ns + 2 {
+        offsets[v] += offsets[v - 1];
+    }
+    let count = offsets[ns + 1] as usize;
+    let mut grouped = vec![[0u32; 2]; count + 1];
+    for e in 0..g.len() {
+        let (pass, lo, hi) = candidate(e);
+        let slot = &mut offsets[lo as usize + 1];
+        let at = if pass { *slot as usize } else { count };
+        grouped[at] = [hi, e as u32];
+        *slot += u32::from(pass);
+    }
+    // Per lower end, the cheapest edge to each upper end, upper ends ascending.
+    let mut best = vec![u32::MAX; ns];
+    let mut uppers: Vec<u32> = Vec::new();
+    let mut ends = Vec::with_capacity(count);
+    let mut orig = Vec::with_capacity(count);
+    let mut from = 0usize;
+    for a in 0..ns {
+        let to = offsets[a + 1] as usize;
+        uppers.clear();
+        for i in from..to {
+            let [b, e] = grouped[i];
+            let cur = best[b as usize];
+            if cur == u32::MAX {
+                best[b as usize] = i as u32;
+                uppers.push(b);
+            } else if g.cost[e as usize] < g.cost[grouped[cur as usize][1] as usize] {
+                best[b as usize] = i as u32;
+            }
+        }
+        uppers.sort_unstable();
+        for &b in &uppers {
+            ends.push([a as u32, b]);
+            orig.push(grouped[best[b as usize] as usize][1]);
+            best[b as usize] = u32::MAX;
+        }
+        from = to;
+    }
+    (ends, orig)
+}
+
+/// A chain found from a key vertex: its other end (key id), cost, first road edge, and where its
+/// road edges sit in the walk buffer.
+struct Found {
+    other: u32,
+    cost: u64,
+    first: u32,
+    span: [usize; 2],
+}
+
+/// Chains kept from a run of key vertices: key pairs, costs, and the original edges of chain `i`
 /// ending at `path[end[i]]` (each starts where the previous one ended).
 #[derive(Default)]
 struct Chains {
-    pair: Vec<[u32; 2]>,
+    ends: Vec<[u32; 2]>,
     cost: Vec<u64>,
-    end: Vec<usize>,
+    end: Vec<u32>,
     path: Vec<u32>,
-}
-
-/// Of the items with vertex pairs `pairs` (each `[a, b]` with a < b < n), the one of least `rank`
-/// per pair, as item indices in (a, b) order: the result of sorting by (a, b, rank) and keeping the
-/// first of each pair, in linear time plus a sort of each vertex's own few pairs.
-fn cheapest_per_pair<R: Ord>(n: usize, pairs: &[[u32; 2]], rank: impl Fn(usize) -> R) -> Vec<u32> {
-    let mut offsets = vec![0usize; n + 1];
-    for &[a, _] in pairs {
-        offsets[a as usize + 1] += 1;
-    }
-    for v in 0..n {
-        offsets[v + 1] += offsets[v];
-    }
-    let mut fill = offsets.clone();
-    let mut by_first = vec![0u32; pairs.len()];
-    for (i, &[a, _]) in pairs.iter().enumerate() {
-        by_first[fill[a as usize]] = i as u32;
-        fill[a as usize] += 1;
-    }
-    drop(fill);
-    let mut best = vec![u32::MAX; n];
-    let mut seconds: Vec<u32> = Vec::new();
-    let mut out = Vec::with_capacity(pairs.len());
-    for a in 0..n {
-        seconds.clear();
-        for &i in &by_first[offsets[a]..offsets[a + 1]] {
-            let b = pairs[i as usize][1] as usize;
-            let cur = best[b];
-            if cur == u32::MAX {
-                best[b] = i;
-                seconds.push(b as u32);
-            } else if rank(i as usize) < rank(cur as usize) {
-                best[b] = i;
-            }
-        }
-        seconds.sort_unstable();
-        for &b in &seconds {
-            out.push(best[b as usize]);
-            best[b as usize] = u32::MAX;
-        }
-    }
-    out
 }
 
 /// Original edges of a solution: the road edges behind the chosen reduced edges, plus the intact
@@ -407,22 +427,40 @@ mod tests {
     use proptest::prelude::*;
 
     proptest! {
-        /// The linear-time choice equals sorting by (a, b, rank) and keeping the first of each pair.
+        /// The grouped, linear-time choice equals filtering the candidates, sorting them by
+        /// (lower end, upper end, cost, id) and keeping the first of each pair.
         #[test]
-        fn cheapest_per_pair_equals_sort_and_dedup(
-            items in proptest::collection::vec((0u32..12, 0u32..12, 0u64..5), 0..200)
+        fn cheapest_super_edges_equals_sort_and_dedup(
+            edges in proptest::collection::vec((0u32..14, 0u32..14, 0u64..5), 0..200),
+            supers in proptest::collection::vec(0u32..9, 14),
+            reached in proptest::collection::vec(any::<bool>(), 14),
         ) {
-            let pairs: Vec<[u32; 2]> = items
-                .iter()
-                .map(|&(a, b, _)| [a.min(b), a.max(b) + 1])
+            let g = EdgeList {
+                vertices: 14,
+                ends: edges.iter().map(|&(a, b, _)| [a, b]).collect(),
+                cost: edges
+                    .iter()
+                    .map(|&(_, _, c)| if c == 4 { UNUSABLE } else { c })
+                    .collect(),
+            };
+            let (ends, orig) = cheapest_super_edges(&g, &supers, 9, &reached);
+            let mut want: Vec<([u32; 2], u64, u32)> = (0..g.len())
+                .filter(|&e| {
+                    let [a, b] = g.ends[e];
+                    let c = g.cost[e];
+                    c != 0 && c != UNUSABLE && supers[a as usize] != supers[b as usize]
+                        && reached[a as usize]
+                })
+                .map(|e| {
+                    let [a, b] = g.ends[e];
+                    let (sa, sb) = (supers[a as usize], supers[b as usize]);
+                    ([sa.min(sb), sa.max(sb)], g.cost[e], e as u32)
+                })
                 .collect();
-            let rank = |i: usize| (items[i].2, i);
-            let got = cheapest_per_pair(13, &pairs, rank);
-            let mut want: Vec<usize> = (0..pairs.len()).collect();
-            want.sort_by_key(|&i| (pairs[i], rank(i)));
-            want.dedup_by_key(|i| pairs[*i]);
-            let want: Vec<u32> = want.into_iter().map(|i| i as u32).collect();
-            prop_assert_eq!(got, want);
+            want.sort_unstable();
+            want.dedup_by_key(|w| w.0);
+            prop_assert_eq!(ends, want.iter().map(|w| w.0).collect::<Vec<_>>());
+            prop_assert_eq!(orig, want.iter().map(|w| w.2).collect::<Vec<_>>());
         }
     }
 }
