@@ -322,10 +322,16 @@ pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) ->
             touched[red.super_of[v] as usize] = true;
         }
     }
-    // A BFS spanning forest over intact edges of the touched components.
-    let csr = Csr::from_edges_where(g, |e| {
-        g.cost[e] == 0 && touched[red.super_of[g.ends[e][0] as usize] as usize]
-    });
+    // A BFS spanning forest over intact edges of the touched components. Picking those out means a
+    // look at every road edge, the costly part here, so it runs in parallel (in id order).
+    let intact: Vec<u32> = (0..g.len() as u32)
+        .into_par_iter()
+        .filter(|&e| {
+            let [a, b] = g.ends[e as usize];
+            g.cost[e as usize] == 0 && a != b && touched[red.super_of[a as usize] as usize]
+        })
+        .collect();
+    let csr = Csr::from_pairs(n, intact.len(), |i| Some(g.ends[intact[i] as usize]));
     let mut seen = vec![false; n];
     let mut queue = std::collections::VecDeque::new();
     for s in 0..n as u32 {
@@ -335,10 +341,10 @@ pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) ->
         seen[s as usize] = true;
         queue.push_back(s);
         while let Some(v) = queue.pop_front() {
-            for (w, e) in csr.neighbours(v) {
+            for (w, i) in csr.neighbours(v) {
                 if !seen[w as usize] {
                     seen[w as usize] = true;
-                    edges.push(e);
+                    edges.push(intact[i as usize]);
                     queue.push_back(w);
                 }
             }

@@ -56,27 +56,68 @@ pub fn check_steiner_tree(g: &EdgeList, edges: &[u32], terminals: &[u32]) -> Res
             Err("a single terminal needs no edges".into())
         };
     }
-    let mut ds = DisjointSets::new(g.vertices);
-    let mut verts = std::collections::BTreeSet::new();
+    // Vertices are numbered locally, so the check costs what the tree costs, not the graph.
+    let mut verts = Vec::with_capacity(2 * edges.len());
     for &e in edges {
         if e as usize >= g.len() || !g.usable(e as usize) {
             return Err(format!("edge {e} is not usable"));
         }
+        verts.extend_from_slice(&g.ends[e as usize]);
+    }
+    verts.sort_unstable();
+    verts.dedup();
+    // Position of `v` among the tree's vertices (or where it would be).
+    let local = |v: u32| verts.partition_point(|&x| x < v);
+    let mut ds = DisjointSets::new(verts.len());
+    for &e in edges {
         let [a, b] = g.ends[e as usize];
-        verts.insert(a);
-        verts.insert(b);
-        if !ds.union(a, b) {
+        if !ds.union(local(a) as u32, local(b) as u32) {
             return Err(format!("edge {e} closes a cycle"));
         }
     }
     if edges.len() + 1 != verts.len() {
-        return Err("the edges are not connected".into());
+        return Err("the edges do not form one tree".into());
     }
-    let r = ds.find(terminals[0]);
+    let l0 = local(terminals[0]);
+    if verts.get(l0) != Some(&terminals[0]) {
+        return Err(format!("terminal {} is not connected", terminals[0]));
+    }
+    let r = ds.find(l0 as u32);
     for &t in terminals {
-        if !verts.contains(&t) || ds.find(t) != r {
+        let l = local(t);
+        if verts.get(l) != Some(&t) || ds.find(l as u32) != r {
             return Err(format!("terminal {t} is not connected"));
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn path4() -> EdgeList {
+        // 0 - 1 - 2 - 3, a chord 0 - 2, and a separate edge 4 - 5.
+        EdgeList {
+            vertices: 6,
+            ends: vec![[0, 1], [1, 2], [2, 3], [0, 2], [4, 5]],
+            cost: vec![1, 1, 1, 1, 1],
+        }
+    }
+
+    #[test]
+    fn check_accepts_trees_and_names_what_is_wrong() {
+        let g = path4();
+        assert_eq!(check_steiner_tree(&g, &[0, 1, 2], &[0, 3]), Ok(()));
+        assert_eq!(check_steiner_tree(&g, &[1, 2], &[1, 3]), Ok(()));
+        let cycle = check_steiner_tree(&g, &[0, 1, 3, 2], &[0, 3]).unwrap_err();
+        assert!(cycle.contains("closes a cycle"), "{cycle}");
+        let apart = check_steiner_tree(&g, &[0, 4], &[0, 5]).unwrap_err();
+        assert!(apart.contains("one tree"), "{apart}");
+        let missing = check_steiner_tree(&g, &[0, 1], &[0, 3]).unwrap_err();
+        assert!(missing.contains("terminal 3"), "{missing}");
+        let first_missing = check_steiner_tree(&g, &[1, 2], &[0, 3]).unwrap_err();
+        assert!(first_missing.contains("terminal 0"), "{first_missing}");
+        assert!(check_steiner_tree(&g, &[9], &[0, 3]).is_err());
+    }
 }
