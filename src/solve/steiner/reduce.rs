@@ -157,22 +157,7 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         out
     };
     let parts: Vec<Chains> = key_vertices.par_chunks(1024).map(walk_from).collect();
-    let edges: usize = parts.iter().map(|p| p.ends.len()).sum();
-    let mut graph = EdgeList {
-        vertices: keys,
-        ends: Vec::with_capacity(edges),
-        cost: Vec::with_capacity(edges),
-    };
-    let mut orig = Vec::with_capacity(parts.iter().map(|p| p.path.len()).sum());
-    let mut orig_offsets = Vec::with_capacity(edges + 1);
-    orig_offsets.push(0);
-    for part in parts {
-        let base = orig.len() as u32;
-        graph.ends.extend_from_slice(&part.ends);
-        graph.cost.extend_from_slice(&part.cost);
-        orig_offsets.extend(part.end.iter().map(|&e| base + e));
-        orig.extend_from_slice(&part.path);
-    }
+    let (graph, orig, orig_offsets) = join_parts(keys, &parts);
     let is_terminal: Vec<bool> = key_vertices.iter().map(|&s| term[s as usize]).collect();
     let rterms: Vec<u32> = (0..keys as u32)
         .filter(|&k| is_terminal[k as usize])
@@ -185,6 +170,45 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         orig_offsets,
         super_of,
     }
+}
+
+/// The reduced graph and its map to road edges from the chains of all parts, copied in parallel
+/// into fresh arrays (their first touches, page faults, are then shared by the threads too).
+fn join_parts(keys: usize, parts: &[Chains]) -> (EdgeList, Vec<u32>, Vec<u32>) {
+    let edges: usize = parts.iter().map(|p| p.ends.len()).sum();
+    let paths: usize = parts.iter().map(|p| p.path.len()).sum();
+    let mut ends = vec![[0u32; 2]; edges];
+    let mut cost = vec![0u64; edges];
+    let mut orig = vec![0u32; paths];
+    let mut offsets = vec![0u32; edges + 1];
+    let mut jobs = Vec::with_capacity(parts.len());
+    let (mut e_rest, mut c_rest) = (&mut ends[..], &mut cost[..]);
+    let (mut o_rest, mut f_rest) = (&mut orig[..], &mut offsets[1..]);
+    let mut base = 0u32;
+    for part in parts {
+        let k = part.ends.len();
+        let (e, e_tail) = std::mem::take(&mut e_rest).split_at_mut(k);
+        let (c, c_tail) = std::mem::take(&mut c_rest).split_at_mut(k);
+        let (f, f_tail) = std::mem::take(&mut f_rest).split_at_mut(k);
+        let (o, o_tail) = std::mem::take(&mut o_rest).split_at_mut(part.path.len());
+        (e_rest, c_rest, f_rest, o_rest) = (e_tail, c_tail, f_tail, o_tail);
+        jobs.push((part, e, c, o, f, base));
+        base += part.path.len() as u32;
+    }
+    jobs.into_par_iter().for_each(|(part, e, c, o, f, base)| {
+        e.copy_from_slice(&part.ends);
+        c.copy_from_slice(&part.cost);
+        o.copy_from_slice(&part.path);
+        for (x, &end) in f.iter_mut().zip(&part.end) {
+            *x = base + end;
+        }
+    });
+    let graph = EdgeList {
+        vertices: keys,
+        ends,
+        cost,
+    };
+    (graph, orig, offsets)
 }
 
 /// Whether each vertex shares a component (over usable edges) with a terminal.
@@ -215,59 +239,101 @@ fn cheapest_super_edges(
     ns: usize,
     reached: &[bool],
 ) -> (Vec<[u32; 2]>, Vec<u32>) {
-    // Group the candidates by lower end with a counting sort, counted two places up (see
-    // Csr::from_pairs). Which edges pass is as good as random, so both passes go without branching:
-    // a failing edge is written to a spare slot at the end.
-    let candidate = |e: usize| {
-        let c = g.cost[e];
-        let [a, b] = g.ends[e];
-        let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
-        let pass = (c != 0) & (c != UNUSABLE) & (sa != sb) & reached[a as usize];
-        (pass, sa.min(sb), sa.max(sb))
-    };
-    let mut offsets = vec![0u32; ns + 2];
-    for e in 0..g.len() {
-        let (pass, lo, _) = candidate(e);
-        offsets[lo as usize + 2] += u32::from(pass);
-    }
-    for v in 2..ns + 2 {
-        offsets[v] += offsets[v - 1];
-    }
-    let count = offsets[ns + 1] as usize;
-    let mut grouped = vec![[0u32; 2]; count + 1];
-    for e in 0..g.len() {
-        let (pass, lo, hi) = candidate(e);
-        let slot = &mut offsets[lo as usize + 1];
-        let at = if pass { *slot as usize } else { count };
-        grouped[at] = [hi, e as u32];
-        *slot += u32::from(pass);
-    }
-    // Per lower end, the cheapest edge to each upper end, upper ends ascending.
-    let mut best = vec![u32::MAX; ns];
-    let mut uppers: Vec<u32> = Vec::new();
-    let mut ends = Vec::with_capacity(count);
-    let mut orig = Vec::with_capacity(count);
-    let mut from = 0usize;
-    for a in 0..ns {
-        let to = offsets[a + 1] as usize;
-        uppers.clear();
-        for i in from..to {
-            let [b, e] = grouped[i];
-            let cur = best[b as usize];
-            if cur == u32::MAX {
-                best[b as usize] = i as u32;
-                uppers.push(b);
-            } else if g.cost[e as usize] < g.cost[grouped[cur as usize][1] as usize] {
-                best[b as usize] = i as u32;
+    // Candidates as [lower end, upper end, edge], in edge order, picked out in parallel runs of
+    // edges. Which edges pass is as good as random, so the picking does not branch: every edge is
+    // written and only a passing one advances the count.
+    const RUN: usize = 1 << 16;
+    let runs: Vec<Vec<[u32; 3]>> = g
+        .ends
+        .par_chunks(RUN)
+        .enumerate()
+        .map(|(r, ends)| {
+            let mut out = vec![[0u32; 3]; ends.len()];
+            let mut count = 0;
+            for (i, &[a, b]) in ends.iter().enumerate() {
+                let e = r * RUN + i;
+                let c = g.cost[e];
+                let (sa, sb) = (super_of[a as usize], super_of[b as usize]);
+                out[count] = [sa.min(sb), sa.max(sb), e as u32];
+                count += usize::from((c != 0) & (c != UNUSABLE) & (sa != sb) & reached[a as usize]);
             }
-        }
-        uppers.sort_unstable();
-        for &b in &uppers {
-            ends.push([a as u32, b]);
-            orig.push(grouped[best[b as usize] as usize][1]);
-            best[b as usize] = u32::MAX;
-        }
-        from = to;
+            out.truncate(count);
+            out
+        })
+        .collect();
+    // Group them by lower end with a counting sort; bucket a is `offsets[a]..offsets[a + 1]`.
+    let mut offsets = vec![0u32; ns + 1];
+    for &[lo, _, _] in runs.iter().flatten() {
+        offsets[lo as usize + 1] += 1;
+    }
+    for v in 0..ns {
+        offsets[v + 1] += offsets[v];
+    }
+    let total = offsets[ns] as usize;
+    // Split the buckets into one range per thread of about equal size; each thread fills and
+    // reduces its own part of the grouped array.
+    let parts = rayon::current_num_threads().clamp(1, 8);
+    let mut cuts = vec![0usize];
+    for k in 1..parts {
+        let want = (total * k / parts) as u32;
+        cuts.push(
+            offsets
+                .partition_point(|&o| o < want)
+                .min(ns)
+                .max(cuts[k - 1]),
+        );
+    }
+    cuts.push(ns);
+    let mut grouped = vec![[0u32; 2]; total];
+    let mut pieces = Vec::with_capacity(parts);
+    let mut rest = &mut grouped[..];
+    for k in 0..parts {
+        let (lo, hi) = (cuts[k], cuts[k + 1]);
+        let len = (offsets[hi] - offsets[lo]) as usize;
+        let (head, tail) = rest.split_at_mut(len);
+        pieces.push((lo, hi, head));
+        rest = tail;
+    }
+    let chosen: Vec<(Vec<[u32; 2]>, Vec<u32>)> = pieces
+        .into_par_iter()
+        .map(|(lo, hi, part)| {
+            let base = offsets[lo];
+            let mut fill: Vec<u32> = offsets[lo..hi].iter().map(|&o| o - base).collect();
+            for &[a, b, e] in runs.iter().flatten() {
+                let a = a as usize;
+                if (lo..hi).contains(&a) {
+                    let slot = &mut fill[a - lo];
+                    part[*slot as usize] = [b, e];
+                    *slot += 1;
+                }
+            }
+            // Per lower end, the cheapest edge to each upper end, upper ends ascending.
+            let mut ends = Vec::with_capacity(part.len());
+            let mut orig = Vec::with_capacity(part.len());
+            for a in lo..hi {
+                let bucket =
+                    &mut part[(offsets[a] - base) as usize..(offsets[a + 1] - base) as usize];
+                if bucket.len() > 1 {
+                    bucket.sort_unstable_by_key(|&[b, e]| (b, g.cost[e as usize], e));
+                }
+                let mut last = u32::MAX;
+                for &[b, e] in bucket.iter() {
+                    if b != last {
+                        last = b;
+                        ends.push([a as u32, b]);
+                        orig.push(e);
+                    }
+                }
+            }
+            (ends, orig)
+        })
+        .collect();
+    drop(runs);
+    let mut ends = Vec::with_capacity(chosen.iter().map(|c| c.0.len()).sum());
+    let mut orig = Vec::with_capacity(ends.capacity());
+    for (e, o) in chosen {
+        ends.extend_from_slice(&e);
+        orig.extend_from_slice(&o);
     }
     (ends, orig)
 }
@@ -449,7 +515,17 @@ mod tests {
                     .map(|&(_, _, c)| if c == 4 { UNUSABLE } else { c })
                     .collect(),
             };
-            let (ends, orig) = cheapest_super_edges(&g, &supers, 9, &reached);
+            // Split into one, two or three ranges of buckets, as by the thread count.
+            let runs: Vec<(Vec<[u32; 2]>, Vec<u32>)> = [1, 2, 3]
+                .iter()
+                .map(|&t| {
+                    let pool = rayon::ThreadPoolBuilder::new().num_threads(t).build().unwrap();
+                    pool.install(|| cheapest_super_edges(&g, &supers, 9, &reached))
+                })
+                .collect();
+            prop_assert_eq!(&runs[0], &runs[1]);
+            prop_assert_eq!(&runs[0], &runs[2]);
+            let (ends, orig) = runs[0].clone();
             let mut want: Vec<([u32; 2], u64, u32)> = (0..g.len())
                 .filter(|&e| {
                     let [a, b] = g.ends[e];
