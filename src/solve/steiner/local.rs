@@ -186,9 +186,11 @@ fn exchange_pass(st: &mut State<'_>, paths: &[KeyPath], ws: &mut Workspace) -> b
             let mut v = 0u64;
             let mut i = 0;
             while i < paths.len() {
-                let ready = match &*lock(i) {
-                    Slot::Done(w, o) if *w == v => Some(o.clone()),
-                    Slot::Claimed(w) if *w == v => None,
+                // Read the slot and let it go before any search (the helper may want to store).
+                let seen = lock(i).clone();
+                let ready = match seen {
+                    Slot::Done(w, o) if w == v => Some(o),
+                    Slot::Claimed(w) if w == v => None,
                     _ => {
                         cursor.fetch_max(i + 1, Ordering::AcqRel);
                         Some(st.try_exchange(&paths[i], ws))
