@@ -11,14 +11,16 @@
 //! Searches start from at most [`Reach::seeds`] vertices of a piece near the removed part and are
 //! bounded by the cost removed, so each move only explores nearby.
 
+mod ahead;
+mod numbering;
+
 use super::paths::{NONE, Workspace};
 use super::reduce::prune_leaves;
 use super::tree::cost;
 use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList};
 use crate::solve::heap::MinHeap;
-use std::sync::Mutex;
-use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
+use ahead::exchange_pass;
 
 /// How wide the moves search.
 #[derive(Debug, Clone, Copy)]
@@ -130,123 +132,6 @@ enum Outcome {
     Better(Vec<u32>),
 }
 
-/// A path's result as the helper left it: claimed or done, on which version of the tree.
-#[derive(Clone)]
-enum Slot {
-    Empty,
-    Claimed(u64),
-    Done(u64, Outcome),
-}
-
-/// Trees with fewer edges than this get no helper (a second copy of the search state costs more
-/// than it saves).
-const HELPER_FROM: usize = 256;
-
-/// Tries a key-path exchange for each path in order on the current tree, applying each improving
-/// one; true when any was applied.
-///
-/// With a second thread, a helper holding its own copy of the tree tries the paths ahead. Each
-/// result carries the version of the tree it was found on, and is used only on that same version
-/// (the version changes with every applied move, after which the helper catches up and starts
-/// again from the next path). So the moves made are exactly those of trying one path at a time,
-/// whatever the thread count or timing.
-fn exchange_pass(st: &mut State<'_>, paths: &[KeyPath], ws: &mut Workspace) -> bool {
-    if rayon::current_num_threads() < 2 || st.edges.len() < HELPER_FROM || paths.len() < 2 {
-        let mut improved = false;
-        for p in paths {
-            if let Outcome::Better(edges) = st.try_exchange(p, ws) {
-                st.set(edges);
-                improved = true;
-            }
-        }
-        return improved;
-    }
-    let slots: Vec<Mutex<Slot>> = (0..paths.len()).map(|_| Mutex::new(Slot::Empty)).collect();
-    let version = AtomicU64::new(0);
-    let cursor = AtomicUsize::new(1);
-    let done = AtomicBool::new(false);
-    let latest: Mutex<(u64, Vec<u32>)> = Mutex::new((0, Vec::new()));
-    let lock = |i: usize| slots[i].lock().unwrap_or_else(|e| e.into_inner());
-    // Keeps the result of the newer tree version when two land in one slot.
-    let store = |i: usize, v: u64, o: Outcome| {
-        let mut slot = lock(i);
-        let older = match &*slot {
-            Slot::Done(w, _) | Slot::Claimed(w) => *w <= v,
-            Slot::Empty => true,
-        };
-        if older {
-            *slot = Slot::Done(v, o);
-        }
-    };
-    let mut helper_state = st.clone();
-    let n = st.g.vertices;
-    let (improved, ()) = rayon::join(
-        || {
-            let mut improved = false;
-            let mut v = 0u64;
-            let mut i = 0;
-            while i < paths.len() {
-                // Read the slot and let it go before any search (the helper may want to store).
-                let seen = lock(i).clone();
-                let ready = match seen {
-                    Slot::Done(w, o) if w == v => Some(o),
-                    Slot::Claimed(w) if w == v => None,
-                    _ => {
-                        cursor.fetch_max(i + 1, Ordering::AcqRel);
-                        Some(st.try_exchange(&paths[i], ws))
-                    }
-                };
-                let outcome = match ready {
-                    Some(o) => o,
-                    None => {
-                        // The helper is on this path: try the next unclaimed one meanwhile, or
-                        // this one when none is left.
-                        let j = cursor.fetch_add(1, Ordering::AcqRel);
-                        if j < paths.len() {
-                            let o = st.try_exchange(&paths[j], ws);
-                            store(j, v, o);
-                            continue;
-                        }
-                        st.try_exchange(&paths[i], ws)
-                    }
-                };
-                if let Outcome::Better(edges) = outcome {
-                    improved = true;
-                    v += 1;
-                    *latest.lock().unwrap_or_else(|e| e.into_inner()) = (v, edges.clone());
-                    st.set(edges);
-                    version.store(v, Ordering::Release);
-                    cursor.store(i + 1, Ordering::Release);
-                }
-                i += 1;
-            }
-            done.store(true, Ordering::Release);
-            improved
-        },
-        || {
-            let mut hws = Workspace::new(n);
-            let mut mine = 0u64;
-            while !done.load(Ordering::Acquire) {
-                if version.load(Ordering::Acquire) != mine {
-                    let (w, edges) = latest.lock().unwrap_or_else(|e| e.into_inner()).clone();
-                    helper_state.set(edges);
-                    mine = w;
-                    continue;
-                }
-                let j = cursor.fetch_add(1, Ordering::AcqRel);
-                if j >= paths.len() {
-                    std::thread::yield_now();
-                    continue;
-                }
-                *lock(j) = Slot::Claimed(mine);
-                let o = helper_state.try_exchange(&paths[j], &mut hws);
-                store(j, mine, o);
-            }
-        },
-    );
-    improved
-}
-
 impl State<'_> {
     fn set(&mut self, edges: Vec<u32>) {
         for &e in &self.edges {
@@ -263,108 +148,6 @@ impl State<'_> {
         }
         self.edges = edges;
         self.renumber();
-    }
-
-    /// Depth-first numbering of the tree from the smallest first end of its edges (iterative),
-    /// children in edge-id order.
-    ///
-    /// Runs after every applied move, so it works on the tree's own edges: its vertices get local
-    /// ids (kept in `tout` until the walk is done, checked against the list of vertices so no
-    /// clearing is needed) and a small adjacency, instead of filtering the graph's neighbour lists.
-    fn renumber(&mut self) {
-        let Some(root) = self.edges.iter().map(|&e| self.g.ends[e as usize][0]).min() else {
-            self.size = 0;
-            return;
-        };
-        let mut by_id = std::borrow::Cow::Borrowed(&self.edges[..]);
-        if !by_id.is_sorted() {
-            by_id.to_mut().sort_unstable();
-        }
-        let mut verts: Vec<u32> = Vec::with_capacity(by_id.len() + 1);
-        let mut local = |v: u32, tout: &mut [u32]| {
-            let i = tout[v as usize] as usize;
-            if i < verts.len() && verts[i] == v {
-                i
-            } else {
-                tout[v as usize] = verts.len() as u32;
-                verts.push(v);
-                verts.len() - 1
-            }
-        };
-        let ends: Vec<[usize; 2]> = by_id
-            .iter()
-            .map(|&e| {
-                let [a, b] = self.g.ends[e as usize];
-                [local(a, &mut self.tout), local(b, &mut self.tout)]
-            })
-            .collect();
-        let k = verts.len();
-        let mut off = vec![0usize; k + 2];
-        for &[a, b] in &ends {
-            off[a + 2] += 1;
-            off[b + 2] += 1;
-        }
-        for i in 2..k + 2 {
-            off[i] += off[i - 1];
-        }
-        let mut adj = vec![0u32; 2 * ends.len()];
-        for &[a, b] in &ends {
-            adj[off[a + 1]] = b as u32;
-            off[a + 1] += 1;
-            adj[off[b + 1]] = a as u32;
-            off[b + 1] += 1;
-        }
-        // Every end got a local id above, the root's among them.
-        let root = self.tout[root as usize];
-        let (mut tin, mut tout) = (vec![0u32; k], vec![0u32; k]);
-        let mut counter = 0u32;
-        let mut stack: Vec<(u32, u32, bool)> = vec![(root, NONE, false)];
-        while let Some((v, parent, done)) = stack.pop() {
-            if done {
-                tout[v as usize] = counter - 1;
-                continue;
-            }
-            tin[v as usize] = counter;
-            counter += 1;
-            stack.push((v, parent, true));
-            for &w in &adj[off[v as usize]..off[v as usize + 1]] {
-                if w != parent {
-                    stack.push((w, v, false));
-                }
-            }
-        }
-        for (i, &v) in verts.iter().enumerate() {
-            self.tin[v as usize] = tin[i];
-            self.tout[v as usize] = tout[i];
-        }
-        self.size = counter as usize;
-    }
-
-    /// The numbering of [`renumber`](Self::renumber) found by filtering the graph's neighbour
-    /// lists: the reference it is tested against.
-    #[cfg(test)]
-    fn renumber_by_scan(&mut self) {
-        let Some(root) = self.edges.iter().map(|&e| self.g.ends[e as usize][0]).min() else {
-            self.size = 0;
-            return;
-        };
-        let mut counter = 0u32;
-        let mut stack: Vec<(u32, u32, bool)> = vec![(root, NONE, false)];
-        while let Some((v, parent, done)) = stack.pop() {
-            if done {
-                self.tout[v as usize] = counter - 1;
-                continue;
-            }
-            self.tin[v as usize] = counter;
-            counter += 1;
-            stack.push((v, parent, true));
-            for (w, _) in self.tree_neighbours(v) {
-                if w != parent {
-                    stack.push((w, v, false));
-                }
-            }
-        }
-        self.size = counter as usize;
     }
 
     fn in_subtree(&self, root: u32, x: u32) -> bool {
@@ -755,106 +538,5 @@ impl State<'_> {
             .collect();
         prune_leaves(self.g, &mut out, self.is_terminal);
         out
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::solve::steiner::{reduce, sph, tree};
-
-    /// The numbering from the tree's own adjacency equals the one found by scanning the graph's
-    /// neighbour lists, for trees given in edge order or not, and after moves.
-    #[test]
-    fn renumbering_equals_the_scan() {
-        for seed in 0..6 {
-            let g = crate::synthetic::grid_graph(40, 0.3, seed);
-            let (terms, _, _) = crate::synthetic::sites_on_largest_component(&g, 12);
-            let mut terms = terms;
-            terms.sort_unstable();
-            terms.dedup();
-            let red = reduce::reduce(&g, &terms);
-            let rg = &red.graph;
-            let csr = Csr::from_edges(rg);
-            let it = &red.is_terminal;
-            let mut ws = Workspace::new(rg.vertices);
-            let tree = sph::sph(rg, &csr, &red.terminals, it, red.terminals[0], &mut ws);
-            let reach = Reach {
-                seeds: 64,
-                eliminate: true,
-            };
-            let mut st = State {
-                reach,
-                g: rg,
-                csr: &csr,
-                is_terminal: it,
-                in_tree: vec![false; rg.len()],
-                tdeg: vec![0; rg.vertices],
-                edges: Vec::new(),
-                tin: vec![0; rg.vertices],
-                tout: vec![0; rg.vertices],
-                size: 0,
-            };
-            let mut shuffled = tree.clone();
-            shuffled.reverse();
-            for edges in [tree.clone(), shuffled] {
-                st.set(edges);
-                let got = (st.tin.clone(), st.tout.clone(), st.size);
-                st.renumber_by_scan();
-                let verts = st.vertices();
-                assert!(verts.len() > 10);
-                assert_eq!(got.2, st.size);
-                for v in verts {
-                    let v = v as usize;
-                    assert_eq!((got.0[v], got.1[v]), (st.tin[v], st.tout[v]), "seed {seed}");
-                }
-            }
-        }
-    }
-
-    /// Key-path exchange with a helper thread makes exactly the moves of the one-thread pass, on
-    /// trees large enough to get the helper.
-    #[test]
-    fn helper_thread_changes_nothing() {
-        let one = rayon::ThreadPoolBuilder::new()
-            .num_threads(1)
-            .build()
-            .unwrap();
-        let two = rayon::ThreadPoolBuilder::new()
-            .num_threads(2)
-            .build()
-            .unwrap();
-        for seed in 0..4 {
-            let g = crate::synthetic::grid_graph(120, 0.3, seed);
-            let (terms, _, _) = crate::synthetic::sites_on_largest_component(&g, 60);
-            let mut terms = terms;
-            terms.sort_unstable();
-            terms.dedup();
-            let red = reduce::reduce(&g, &terms);
-            let rg = &red.graph;
-            let csr = Csr::from_edges(rg);
-            let it = &red.is_terminal;
-            let mut ws = Workspace::new(rg.vertices);
-            let start = sph::sph(rg, &csr, &red.terminals, it, red.terminals[0], &mut ws);
-            assert!(start.len() >= HELPER_FROM, "tree of {} edges", start.len());
-            let reach = Reach {
-                seeds: 64,
-                eliminate: false,
-            };
-            let run = |pool: &rayon::ThreadPool| {
-                pool.install(|| {
-                    let mut ws = Workspace::new(rg.vertices);
-                    improve(rg, &csr, it, start.clone(), &mut ws, 3, reach)
-                })
-            };
-            let want = run(&one);
-            assert!(
-                tree::cost(rg, &want) < tree::cost(rg, &start),
-                "no move made"
-            );
-            for _ in 0..5 {
-                assert_eq!(run(&two), want, "seed {seed}");
-            }
-        }
     }
 }
