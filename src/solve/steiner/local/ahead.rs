@@ -125,10 +125,9 @@ pub(super) fn exchange_pass(st: &mut State<'_>, paths: &[KeyPath], ws: &mut Work
 
 #[cfg(test)]
 mod tests {
-    use super::super::{Reach, improve};
+    use super::super::{Fixture, Reach, improve};
     use super::*;
-    use crate::solve::graph::Csr;
-    use crate::solve::steiner::{reduce, sph, tree};
+    use crate::solve::steiner::tree;
 
     /// Key-path exchange with a helper thread makes exactly the moves of the one-thread pass, on
     /// trees large enough to get the helper.
@@ -143,17 +142,8 @@ mod tests {
             .build()
             .unwrap();
         for seed in 0..4 {
-            let g = crate::synthetic::grid_graph(120, 0.3, seed);
-            let (terms, _, _) = crate::synthetic::sites_on_largest_component(&g, 60);
-            let mut terms = terms;
-            terms.sort_unstable();
-            terms.dedup();
-            let red = reduce::reduce(&g, &terms);
-            let rg = &red.graph;
-            let csr = Csr::from_edges(rg);
-            let it = &red.is_terminal;
-            let mut ws = Workspace::new(rg.vertices);
-            let start = sph::sph(rg, &csr, &red.terminals, it, red.terminals[0], &mut ws);
+            let f = Fixture::new(120, 60, seed);
+            let (rg, csr, it, start) = (&f.red.graph, &f.csr, &f.red.is_terminal, &f.tree);
             assert!(start.len() >= HELPER_FROM, "tree of {} edges", start.len());
             let reach = Reach {
                 seeds: 64,
@@ -162,12 +152,12 @@ mod tests {
             let run = |pool: &rayon::ThreadPool| {
                 pool.install(|| {
                     let mut ws = Workspace::new(rg.vertices);
-                    improve(rg, &csr, it, start.clone(), &mut ws, 3, reach)
+                    improve(rg, csr, it, start.clone(), &mut ws, 3, reach)
                 })
             };
             let want = run(&one);
             assert!(
-                tree::cost(rg, &want) < tree::cost(rg, &start),
+                tree::cost(rg, &want) < tree::cost(rg, start),
                 "no move made"
             );
             for _ in 0..5 {

@@ -81,18 +81,7 @@ pub fn improve(
     if tree.is_empty() {
         return tree;
     }
-    let mut st = State {
-        reach,
-        g,
-        csr,
-        is_terminal,
-        in_tree: vec![false; g.len()],
-        tdeg: vec![0; g.vertices],
-        edges: Vec::new(),
-        tin: vec![0; g.vertices],
-        tout: vec![0; g.vertices],
-        size: 0,
-    };
+    let mut st = State::new(g, csr, is_terminal, reach);
     st.set(tree);
     for _ in 0..rounds {
         let mut improved = false;
@@ -132,7 +121,22 @@ enum Outcome {
     Better(Vec<u32>),
 }
 
-impl State<'_> {
+impl<'a> State<'a> {
+    /// A state holding no tree yet.
+    fn new(g: &'a EdgeList, csr: &'a Csr, is_terminal: &'a [bool], reach: Reach) -> Self {
+        State {
+            reach,
+            g,
+            csr,
+            is_terminal,
+            in_tree: vec![false; g.len()],
+            tdeg: vec![0; g.vertices],
+            edges: Vec::new(),
+            tin: vec![0; g.vertices],
+            tout: vec![0; g.vertices],
+            size: 0,
+        }
+    }
     fn set(&mut self, edges: Vec<u32>) {
         for &e in &self.edges {
             self.in_tree[e as usize] = false;
@@ -538,5 +542,30 @@ impl State<'_> {
             .collect();
         prune_leaves(self.g, &mut out, self.is_terminal);
         out
+    }
+}
+
+/// A road-like lattice reduced for random sites, and a shortest-path tree on it: the starting point
+/// of the local-search tests.
+#[cfg(test)]
+struct Fixture {
+    red: super::reduce::Reduced,
+    csr: Csr,
+    tree: Vec<u32>,
+}
+
+#[cfg(test)]
+impl Fixture {
+    fn new(side: usize, sites: usize, seed: u64) -> Self {
+        let g = crate::synthetic::grid_graph(side, 0.3, seed);
+        let (mut terms, _, _) = crate::synthetic::sites_on_largest_component(&g, sites);
+        terms.sort_unstable();
+        terms.dedup();
+        let red = super::reduce::reduce(&g, &terms);
+        let csr = Csr::from_edges(&red.graph);
+        let mut ws = Workspace::new(red.graph.vertices);
+        let (rg, it) = (&red.graph, &red.is_terminal);
+        let tree = super::sph::sph(rg, &csr, &red.terminals, it, red.terminals[0], &mut ws);
+        Fixture { red, csr, tree }
     }
 }

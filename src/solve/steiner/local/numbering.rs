@@ -109,44 +109,21 @@ impl State<'_> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::Reach;
+    use super::super::{Fixture, Reach};
     use super::*;
-    use crate::solve::graph::Csr;
-    use crate::solve::steiner::paths::Workspace;
-    use crate::solve::steiner::{reduce, sph};
 
     /// The numbering from the tree's own adjacency equals the one found by scanning the graph's
     /// neighbour lists, for trees given in edge order or not, and after moves.
     #[test]
     fn renumbering_equals_the_scan() {
         for seed in 0..6 {
-            let g = crate::synthetic::grid_graph(40, 0.3, seed);
-            let (terms, _, _) = crate::synthetic::sites_on_largest_component(&g, 12);
-            let mut terms = terms;
-            terms.sort_unstable();
-            terms.dedup();
-            let red = reduce::reduce(&g, &terms);
-            let rg = &red.graph;
-            let csr = Csr::from_edges(rg);
-            let it = &red.is_terminal;
-            let mut ws = Workspace::new(rg.vertices);
-            let tree = sph::sph(rg, &csr, &red.terminals, it, red.terminals[0], &mut ws);
+            let f = Fixture::new(40, 12, seed);
+            let (rg, tree) = (&f.red.graph, &f.tree);
             let reach = Reach {
                 seeds: 64,
                 eliminate: true,
             };
-            let mut st = State {
-                reach,
-                g: rg,
-                csr: &csr,
-                is_terminal: it,
-                in_tree: vec![false; rg.len()],
-                tdeg: vec![0; rg.vertices],
-                edges: Vec::new(),
-                tin: vec![0; rg.vertices],
-                tout: vec![0; rg.vertices],
-                size: 0,
-            };
+            let mut st = State::new(rg, &f.csr, &f.red.is_terminal, reach);
             let mut shuffled = tree.clone();
             shuffled.reverse();
             for edges in [tree.clone(), shuffled] {
