@@ -33,6 +33,15 @@ impl EdgeList {
         self.ends.is_empty()
     }
 
+    /// The distinct end vertices of the given edges, ascending: the vertex set of a tree or path,
+    /// for numbering its vertices locally.
+    pub fn ends_of(&self, edges: &[u32]) -> Vec<u32> {
+        let mut verts: Vec<u32> = edges.iter().flat_map(|&e| self.ends[e as usize]).collect();
+        verts.sort_unstable();
+        verts.dedup();
+        verts
+    }
+
     /// Sum of the costs of the given edges.
     pub fn total(&self, edges: &[u32]) -> Cost {
         edges.iter().map(|&e| self.cost[e as usize]).sum()

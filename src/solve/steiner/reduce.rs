@@ -426,9 +426,7 @@ pub fn expand(g: &EdgeList, red: &Reduced, chosen: &[u32], terminals: &[u32]) ->
 /// Works in time and memory proportional to the number of edges (vertices are renumbered locally),
 /// so local search can call it on small trees inside a huge graph.
 pub fn prune_leaves(g: &EdgeList, edges: &mut Vec<u32>, need: &[bool]) {
-    let mut verts: Vec<u32> = edges.iter().flat_map(|&e| g.ends[e as usize]).collect();
-    verts.sort_unstable();
-    verts.dedup();
+    let verts = g.ends_of(edges);
     let local = |v: u32| verts.binary_search(&v).unwrap_or(0);
     let k = verts.len();
     prune_leaves_local(g, edges, |v| need[verts[v] as usize], local, k);

@@ -57,15 +57,13 @@ pub fn check_steiner_tree(g: &EdgeList, edges: &[u32], terminals: &[u32]) -> Res
         };
     }
     // Vertices are numbered locally, so the check costs what the tree costs, not the graph.
-    let mut verts = Vec::with_capacity(2 * edges.len());
-    for &e in edges {
-        if e as usize >= g.len() || !g.usable(e as usize) {
-            return Err(format!("edge {e} is not usable"));
-        }
-        verts.extend_from_slice(&g.ends[e as usize]);
+    if let Some(e) = edges
+        .iter()
+        .find(|&&e| e as usize >= g.len() || !g.usable(e as usize))
+    {
+        return Err(format!("edge {e} is not usable"));
     }
-    verts.sort_unstable();
-    verts.dedup();
+    let verts = g.ends_of(edges);
     // Position of `v` among the tree's vertices (or where it would be).
     let local = |v: u32| verts.partition_point(|&x| x < v);
     let mut ds = DisjointSets::new(verts.len());

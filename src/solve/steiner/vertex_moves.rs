@@ -29,9 +29,7 @@ pub fn improve(
     for _ in 0..rounds {
         let mut improved = false;
         // Vertex set and the induced edges, in (cost, id) order.
-        let mut verts: Vec<u32> = tree.iter().flat_map(|&e| g.ends[e as usize]).collect();
-        verts.sort_unstable();
-        verts.dedup();
+        let verts = g.ends_of(&tree);
         for (i, &v) in verts.iter().enumerate() {
             local[v as usize] = i as u32;
         }

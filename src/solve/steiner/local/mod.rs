@@ -168,14 +168,7 @@ impl<'a> State<'a> {
     }
 
     fn vertices(&self) -> Vec<u32> {
-        let mut v: Vec<u32> = self
-            .edges
-            .iter()
-            .flat_map(|&e| self.g.ends[e as usize])
-            .collect();
-        v.sort_unstable();
-        v.dedup();
-        v
+        self.g.ends_of(&self.edges)
     }
 
     fn is_key(&self, v: u32) -> bool {
@@ -527,9 +520,7 @@ impl<'a> State<'a> {
     /// Minimum spanning forest of the given edges, pruned of non-terminal leaves (vertices numbered
     /// locally, so the cost follows the tree's size, not the graph's).
     fn spanning_tree_of(&self, mut cand: Vec<u32>) -> Vec<u32> {
-        let mut verts: Vec<u32> = cand.iter().flat_map(|&e| self.g.ends[e as usize]).collect();
-        verts.sort_unstable();
-        verts.dedup();
+        let verts = self.g.ends_of(&cand);
         let local = |v: u32| verts.binary_search(&v).unwrap_or(0) as u32;
         cand.sort_by_key(|&e| (self.g.cost[e as usize], e));
         let mut ds = DisjointSets::new(verts.len());
