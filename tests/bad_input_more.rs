@@ -209,8 +209,8 @@ case!(output_path_inside_a_file, |d| {
 case!(output_folder_holds_outputs_without_force, |d| {
     let roads = roads_ok(d);
     let out = d.join("out");
-    std::fs::create_dir(&out).unwrap();
-    std::fs::write(out.join("summary.json"), "{}").unwrap();
+    let o = run(&["plan", "--roads", &s(&roads), "--out", &s(&out), "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
     let args = ["plan", "--roads", &s(&roads), "--out", &s(&out)].map(String::from);
     fails_with(d, &out, &args, &["already holds outputs", "--force"]);
 });

@@ -14,6 +14,7 @@ fn demo_joins_the_sites_and_reports_them() {
     assert_eq!(
         listing(&out),
         [
+            ".reknit-outputs",
             "fragility.geojson",
             "network.geojson",
             "plan.geojson",
@@ -27,6 +28,12 @@ fn demo_joins_the_sites_and_reports_them() {
         ],
         "no staging folder may remain"
     );
+    let record = fs::read_to_string(out.join(".reknit-outputs")).unwrap();
+    let recorded: Vec<&str> = record.lines().skip(1).collect();
+    let mut visible = listing(&out);
+    visible.retain(|n| !n.starts_with('.'));
+    visible.sort_by_key(|n| (n == "summary.json", n.clone()));
+    assert_eq!(recorded, visible, "the record lists every output written");
     let s = read_json(&out.join("summary.json"));
     let sites = read_fc(&out.join("sites.geojson"));
     assert_eq!(
@@ -65,6 +72,7 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
     assert_eq!(
         listing(&out),
         [
+            ".reknit-outputs",
             "network.geojson",
             "plan.geojson",
             "plan.png",
@@ -193,7 +201,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 10);
+    assert_eq!(listing(&out).len(), 11);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
@@ -219,6 +227,7 @@ fn existing_outputs_need_force() {
     assert_eq!(
         listing(&out),
         [
+            ".reknit-outputs",
             "network.geojson",
             "plan.geojson",
             "plan.png",
@@ -307,7 +316,12 @@ fn check_reports_topology_and_every_repair() {
     assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(
         listing(&out),
-        ["network.geojson", "qa.geojson", "summary.json"]
+        [
+            ".reknit-outputs",
+            "network.geojson",
+            "qa.geojson",
+            "summary.json"
+        ]
     );
     let s = read_json(&out.join("summary.json"));
     let comps = s["components"].as_array().unwrap();

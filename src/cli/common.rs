@@ -148,6 +148,7 @@ impl NetworkArgs {
             node_crossings: self.node_crossings,
             category_field: self.category_field.clone(),
             cost_table,
+            cost_table_file: self.cost_table.clone(),
             filters,
         })
     }

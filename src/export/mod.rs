@@ -6,6 +6,8 @@
 pub mod backup;
 pub mod fragility;
 pub mod geojson;
+pub mod guard;
+pub mod ownership;
 pub mod picture;
 pub mod raster;
 pub mod report;
@@ -18,7 +20,7 @@ use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::Plan;
 use crate::solve::components::Components;
 use geojson::{GeoJsonWriter, Prop};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 pub use summary::Summary;
 
 /// Errors of the export stage.
@@ -40,15 +42,30 @@ pub enum ExportError {
         "{0}: the output folder is a symbolic link; give the folder it points to (outputs are never written through a link)"
     )]
     Symlink(PathBuf),
-    /// The output folder is an input's folder or a folder above an input.
+    /// The output folder would mix with or replace what the run reads.
     #[error(
-        "{out}: --out is the folder of, or a folder above, the input {input}; choose a folder of its own so outputs never mix with or replace inputs"
+        "{out}: --out {why} {input}; choose a folder of its own so outputs never mix with or replace inputs"
     )]
     OverInputs {
         /// The output folder.
         out: PathBuf,
-        /// The input it would hold.
+        /// The input it would hold or lie in.
         input: PathBuf,
+        /// How the two overlap.
+        why: &'static str,
+    },
+    /// The output folder is the root of the file system.
+    #[error("{0}: --out may not be the root folder; choose a folder of its own")]
+    RootFolder(PathBuf),
+    /// An entry with an output's name that reknit did not write.
+    #[error(
+        "{path}: is {what}; reknit replaces only the outputs it recorded writing, even with --force: move it away or choose another --out"
+    )]
+    NotOurs {
+        /// The entry.
+        path: PathBuf,
+        /// What it is.
+        what: &'static str,
     },
     /// The output folder already holds outputs and `--force` was not given.
     #[error("{dir}: already holds outputs ({files}); pass --force to replace them")]
@@ -90,7 +107,7 @@ pub struct Outputs<'a> {
 
 /// Writes `network.geojson`, `plan.geojson`, `qa.geojson`, `sites.geojson` (when there are sites)
 /// and `summary.json` into `out` as one set.
-pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportError> {
+pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
     st.write("qa.geojson", |w| write_qa(w, o.qa))?;
     st.write("work-orders.csv", |w| {
@@ -134,7 +151,7 @@ pub fn write_outputs(out: &Path, force: bool, o: &Outputs) -> Result<(), ExportE
                     crate::cautions::SHORT,
                 )
                 .map_err(|e| ExportError::Io {
-                    path: out.join("plan.png"),
+                    path: out.given().join("plan.png"),
                     source: std::io::Error::other(e),
                 })
             },

@@ -8,100 +8,36 @@
 //! file. Only when the output folder also holds files reknit did not write are the outputs
 //! replaced one by one (the old `summary.json` removed first, the new one moved in last), so a
 //! folder holding a `summary.json` always holds a complete, consistent set.
+//!
+//! Every output folder carries a record of the files reknit wrote into it ([`RECORD`]); `--force`
+//! replaces only those. A file or folder that merely has an output's name is never touched.
+//! Staging and retired folders carry the output's exact name, the process id and a nonce, and are
+//! locked by their process while it runs, so clean-up removes only abandoned folders of the very
+//! same output, never a running neighbour's.
 
 use super::ExportError;
+use super::guard::CheckedOut;
+use super::ownership::{Survey, write_record};
 use std::fs::{self, File};
 use std::io::{BufWriter, Write};
 use std::path::{Path, PathBuf};
 
-/// Every file name reknit may write into an output folder, `summary.json` last.
-pub const OUTPUT_NAMES: &[&str] = &[
-    "network.geojson",
-    "plan.geojson",
-    "sites.geojson",
-    "qa.geojson",
-    "work-orders.csv",
-    "fragility.geojson",
-    "backup.geojson",
-    "plan.svg",
-    "plan.png",
-    "report.html",
-    "summary.json",
-];
-
-/// The file whose presence marks a complete output set.
-pub const COMPLETE_MARKER: &str = "summary.json";
+pub use super::ownership::{COMPLETE_MARKER, OUTPUT_NAMES, RECORD};
 
 const STAGING_PREFIX: &str = ".reknit-staging-";
 const RETIRED_PREFIX: &str = ".reknit-retired-";
 
-/// The absolute form of `p` with symbolic links resolved, for the part that exists.
-fn resolved(p: &Path) -> std::path::PathBuf {
-    let abs = std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf());
-    let mut head = abs.as_path();
-    let mut tail = Vec::new();
-    loop {
-        if let Ok(c) = fs::canonicalize(head) {
-            let mut r = c;
-            for t in tail.iter().rev() {
-                r.push(t);
-            }
-            return r;
-        }
-        match (head.parent(), head.file_name()) {
-            (Some(parent), Some(name)) => {
-                tail.push(name.to_os_string());
-                head = parent;
-            }
-            _ => return abs,
-        }
-    }
-}
-
-/// Refuses an output folder that is an input's own folder or lies above an input: an output set
-/// must never mix with or replace the files it was made from.
-pub fn check_apart(out: &Path, inputs: &[&Path]) -> Result<(), ExportError> {
-    let o = resolved(out);
-    for &input in inputs {
-        let i = resolved(input);
-        if i.parent() == Some(o.as_path()) || i.starts_with(&o) {
-            return Err(ExportError::OverInputs {
-                out: out.to_path_buf(),
-                input: input.to_path_buf(),
-            });
-        }
-    }
-    Ok(())
-}
-
 /// Checks, before any work is done, that `out` can take an output set (nothing is written).
-pub fn preflight(out: &Path, force: bool) -> Result<(), ExportError> {
-    match fs::symlink_metadata(out) {
-        Ok(m) if m.is_dir() => {}
-        Ok(m) if m.file_type().is_symlink() => {
-            return Err(ExportError::Symlink(out.to_path_buf()));
-        }
-        Ok(_) => return Err(ExportError::NotAFolder(out.to_path_buf())),
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(()),
-        Err(source) => {
-            return Err(ExportError::Io {
-                path: out.to_path_buf(),
-                source,
-            });
-        }
-    }
-    if !force {
-        let existing: Vec<&str> = OUTPUT_NAMES
-            .iter()
-            .copied()
-            .filter(|n| out.join(n).exists())
-            .collect();
-        if !existing.is_empty() {
-            return Err(ExportError::WouldReplace {
-                dir: out.to_path_buf(),
-                files: existing.join(", "),
-            });
-        }
+pub fn preflight(out: &CheckedOut, force: bool) -> Result<(), ExportError> {
+    let Some(survey) = Survey::of(out.given())? else {
+        return Ok(());
+    };
+    survey.refuse_foreign(out.given())?;
+    if !force && !survey.owned.is_empty() {
+        return Err(ExportError::WouldReplace {
+            dir: out.given().to_path_buf(),
+            files: survey.owned.join(", "),
+        });
     }
     Ok(())
 }
@@ -119,63 +55,102 @@ fn parent_and_name(out: &Path) -> (PathBuf, String) {
     (parent, name)
 }
 
-/// Removes staging and retired folders left beside (or, from older versions, inside) `out` by
-/// interrupted runs; a complete set is untouched.
+/// True when `entry` is `prefix` + `name` + `-PID-NONCE` exactly (both decimal).
+fn is_own_temp(entry: &str, prefix: &str, name: &str) -> bool {
+    let Some(rest) = entry
+        .strip_prefix(prefix)
+        .and_then(|r| r.strip_prefix(name))
+        .and_then(|r| r.strip_prefix('-'))
+    else {
+        return false;
+    };
+    let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
+    rest.split_once('-')
+        .is_some_and(|(pid, nonce)| digits(pid) && digits(nonce))
+}
+
+/// Opens a folder and takes its lock without waiting: `Some` when no running process holds it.
+fn lock_if_abandoned(dir: &Path) -> Option<File> {
+    let f = File::open(dir).ok()?;
+    f.try_lock().ok()?;
+    Some(f)
+}
+
+/// Removes the staging and retired folders of `out` (exact name) that interrupted runs left; a
+/// running process's folders are locked and untouched. When `out` itself is missing because a run
+/// died between its two renames, the previous set is put back.
 pub fn remove_stale(out: &Path) {
     let (parent, name) = parent_and_name(out);
-    let mine = |n: &str| {
-        [STAGING_PREFIX, RETIRED_PREFIX].iter().any(|p| {
-            n.strip_prefix(p)
-                .is_some_and(|rest| rest.starts_with(&format!("{name}-")))
-        })
+    let Ok(rd) = fs::read_dir(&parent) else {
+        return;
     };
-    for (dir, pick) in [(&parent, true), (&out.to_path_buf(), false)] {
-        if let Ok(rd) = fs::read_dir(dir) {
-            for entry in rd.flatten() {
-                let n = entry.file_name().to_string_lossy().into_owned();
-                let stale = if pick {
-                    mine(&n)
-                } else {
-                    n.starts_with(STAGING_PREFIX)
-                };
-                if stale {
-                    let _ = fs::remove_dir_all(entry.path());
-                }
-            }
+    let mut entries: Vec<String> = rd
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    entries.sort();
+    for n in entries {
+        let retired = is_own_temp(&n, RETIRED_PREFIX, &name);
+        if !retired && !is_own_temp(&n, STAGING_PREFIX, &name) {
+            continue;
         }
+        let p = parent.join(&n);
+        if fs::symlink_metadata(&p).map_or(true, |m| !m.is_dir()) {
+            continue;
+        }
+        let Some(_lock) = lock_if_abandoned(&p) else {
+            continue;
+        };
+        if retired && fs::symlink_metadata(out).is_err() && fs::rename(&p, out).is_ok() {
+            continue;
+        }
+        let _ = fs::remove_dir_all(&p);
     }
+}
+
+/// A name for a temporary folder of this process that no other run uses.
+fn temp_name(prefix: &str, name: &str) -> String {
+    use std::sync::atomic::{AtomicU64, Ordering};
+    static COUNTER: AtomicU64 = AtomicU64::new(0);
+    let nanos = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.subsec_nanos() as u64);
+    let nonce = COUNTER.fetch_add(1, Ordering::Relaxed) * 1_000_000_000 + nanos;
+    format!("{prefix}{name}-{}-{nonce}", std::process::id())
 }
 
 /// A staging folder collecting one output set.
 pub struct Staging {
     out: PathBuf,
+    given: PathBuf,
     dir: PathBuf,
     written: std::sync::Mutex<Vec<String>>,
     committed: bool,
+    _lock: Option<File>,
 }
 
 impl Staging {
     /// Creates a fresh staging folder beside `out` (and `out`'s parent folders if needed),
-    /// clearing stale ones.
-    pub fn begin(out: &Path, force: bool) -> Result<Staging, ExportError> {
+    /// clearing abandoned ones.
+    pub fn begin(out: &CheckedOut, force: bool) -> Result<Staging, ExportError> {
         preflight(out, force)?;
         let io = |path: &Path| {
             let path = path.to_path_buf();
             move |source| ExportError::Io { path, source }
         };
-        // Renames need a real name: "." or "a/.." become the folder they stand for.
-        let out = &fs::canonicalize(out)
-            .unwrap_or_else(|_| std::path::absolute(out).unwrap_or(out.to_path_buf()));
-        let (parent, name) = parent_and_name(out);
-        fs::create_dir_all(&parent).map_err(io(out))?;
-        remove_stale(out);
-        let dir = parent.join(format!("{STAGING_PREFIX}{name}-{}", std::process::id()));
-        fs::create_dir(&dir).map_err(io(out))?;
+        let (parent, name) = parent_and_name(out.resolved());
+        fs::create_dir_all(&parent).map_err(io(out.given()))?;
+        remove_stale(out.resolved());
+        let dir = parent.join(temp_name(STAGING_PREFIX, &name));
+        fs::create_dir(&dir).map_err(io(out.given()))?;
+        let lock = File::open(&dir).ok().filter(|f| f.lock().is_ok());
         Ok(Staging {
-            out: out.to_path_buf(),
+            out: out.resolved().to_path_buf(),
+            given: out.given().to_path_buf(),
             dir,
             written: Default::default(),
             committed: false,
+            _lock: lock,
         })
     }
 
@@ -190,7 +165,7 @@ impl Staging {
         );
         let path = self.dir.join(name);
         let err = |source| ExportError::Io {
-            path: self.out.join(name),
+            path: self.given.join(name),
             source,
         };
         let f = File::create(&path).map_err(err)?;
@@ -209,18 +184,18 @@ impl Staging {
     /// Puts the staged set in place of any earlier one (see the module notes).
     pub fn commit(mut self) -> Result<(), ExportError> {
         let err = |path: PathBuf| move |source| ExportError::Io { path, source };
+        let mut names = std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
+        names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
+        write_record(&self.dir, &names).map_err(err(self.given.join(RECORD)))?;
         // Every file on disk before any becomes visible (power loss must not leave empty files
         // behind complete-looking names).
-        let names = self
-            .written
-            .get_mut()
-            .unwrap_or_else(|p| p.into_inner())
-            .clone();
-        for n in &names {
-            let p = self.dir.join(n);
-            File::open(&p)
+        for n in names.iter().map(String::as_str).chain([RECORD]) {
+            File::open(self.dir.join(n))
                 .and_then(|f| f.sync_data())
-                .map_err(err(self.out.join(n)))?;
+                .map_err(err(self.given.join(n)))?;
+        }
+        if let Ok(d) = File::open(&self.dir) {
+            let _ = d.sync_all();
         }
         let (parent, name) = parent_and_name(&self.out);
         let sync_parent = || {
@@ -228,49 +203,57 @@ impl Staging {
                 let _ = d.sync_all();
             }
         };
-        if let Ok(d) = File::open(&self.dir) {
-            let _ = d.sync_all();
-        }
-        let only_ours = |dir: &Path| {
-            fs::read_dir(dir).is_ok_and(|rd| {
-                rd.flatten().all(|e| {
-                    let n = e.file_name().to_string_lossy().into_owned();
-                    OUTPUT_NAMES.contains(&n.as_str()) || n.starts_with(STAGING_PREFIX)
-                })
-            })
-        };
-        if !self.out.exists() {
-            fs::rename(&self.dir, &self.out).map_err(err(self.out.clone()))?;
-            sync_parent();
-        } else if only_ours(&self.out) {
-            let retired = parent.join(format!("{RETIRED_PREFIX}{name}-{}", std::process::id()));
-            fs::rename(&self.out, &retired).map_err(err(self.out.clone()))?;
-            if let Err(e) = fs::rename(&self.dir, &self.out) {
-                // Put the earlier set back rather than leave nothing.
-                let _ = fs::rename(&retired, &self.out);
-                return Err(err(self.out.clone())(e));
+        let survey = Survey::of(&self.out)?;
+        match survey {
+            None => {
+                fs::rename(&self.dir, &self.out).map_err(err(self.given.clone()))?;
+                sync_parent();
             }
-            sync_parent();
-            let _ = fs::remove_dir_all(&retired);
-        } else {
-            // The folder holds other files too: replace ours one by one, marker out first, in last.
-            for n in std::iter::once(&COMPLETE_MARKER).chain(OUTPUT_NAMES.iter()) {
-                let p = self.out.join(n);
-                if p.exists() {
-                    fs::remove_file(&p).map_err(err(p.clone()))?;
+            Some(s) if s.only_ours() => {
+                // Wait for any other run swapping this very folder, then swap under its lock.
+                let held = File::open(&self.out).map_err(err(self.given.clone()))?;
+                held.lock().map_err(err(self.given.clone()))?;
+                Survey::of(&self.out)?
+                    .unwrap_or_default()
+                    .refuse_foreign(&self.given)?;
+                let retired = parent.join(temp_name(RETIRED_PREFIX, &name));
+                fs::rename(&self.out, &retired).map_err(err(self.given.clone()))?;
+                if let Err(e) = fs::rename(&self.dir, &self.out) {
+                    // Put the earlier set back rather than leave nothing.
+                    let _ = fs::rename(&retired, &self.out);
+                    return Err(err(self.given.clone())(e));
                 }
+                sync_parent();
+                let _ = fs::remove_dir_all(&retired);
             }
-            let mut names =
-                std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
-            names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
-            for n in &names {
-                let to = self.out.join(n);
-                fs::rename(self.dir.join(n), &to).map_err(err(to.clone()))?;
+            Some(s) => {
+                // The folder holds other files too: replace ours one by one, marker out first,
+                // in last, under a record naming old and new so that a run stopped midway leaves
+                // nothing unaccounted for.
+                s.refuse_foreign(&self.given)?;
+                let mut union = s.owned.clone();
+                union.extend(names.iter().cloned());
+                union.sort();
+                union.dedup();
+                write_record(&self.out, &union).map_err(err(self.given.join(RECORD)))?;
+                let old = s.owned.iter().map(String::as_str);
+                for n in std::iter::once(COMPLETE_MARKER).chain(old) {
+                    let p = self.out.join(n);
+                    if fs::symlink_metadata(&p).is_ok() {
+                        fs::remove_file(&p).map_err(err(self.given.join(n)))?;
+                    }
+                }
+                for n in &names {
+                    fs::rename(self.dir.join(n), self.out.join(n))
+                        .map_err(err(self.given.join(n)))?;
+                }
+                fs::rename(self.dir.join(RECORD), self.out.join(RECORD))
+                    .map_err(err(self.given.join(RECORD)))?;
+                if let Ok(d) = File::open(&self.out) {
+                    let _ = d.sync_all();
+                }
+                let _ = fs::remove_dir(&self.dir);
             }
-            if let Ok(d) = File::open(&self.out) {
-                let _ = d.sync_all();
-            }
-            let _ = fs::remove_dir(&self.dir);
         }
         self.committed = true;
         Ok(())
@@ -282,5 +265,51 @@ impl Drop for Staging {
         if !self.committed {
             let _ = fs::remove_dir_all(&self.dir);
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn temp_names_match_their_own_output_only() {
+        let n = temp_name(STAGING_PREFIX, "cc");
+        assert!(is_own_temp(&n, STAGING_PREFIX, "cc"));
+        assert!(!is_own_temp(&n, RETIRED_PREFIX, "cc"));
+        let n2 = temp_name(STAGING_PREFIX, "cc-2");
+        assert!(!is_own_temp(&n2, STAGING_PREFIX, "cc"), "{n2}");
+        assert!(is_own_temp(&n2, STAGING_PREFIX, "cc-2"));
+        let v = temp_name(STAGING_PREFIX, "north-vale");
+        assert!(!is_own_temp(&v, STAGING_PREFIX, "north"));
+        assert!(!is_own_temp(
+            ".reknit-staging-north-12",
+            STAGING_PREFIX,
+            "north"
+        ));
+        assert!(!is_own_temp(
+            ".reknit-staging-north-1-2-3",
+            STAGING_PREFIX,
+            "north"
+        ));
+        assert_ne!(n, temp_name(STAGING_PREFIX, "cc"));
+    }
+
+    #[test]
+    fn a_running_staging_folder_is_left_alone() {
+        let t = tempfile::tempdir().unwrap();
+        let out = t.path().join("north");
+        let live = t.path().join(temp_name(STAGING_PREFIX, "north"));
+        let dead = t.path().join(temp_name(STAGING_PREFIX, "north"));
+        fs::create_dir(&live).unwrap();
+        fs::create_dir(&dead).unwrap();
+        let held = File::open(&live).unwrap();
+        held.lock().unwrap();
+        remove_stale(&out);
+        assert!(
+            live.exists(),
+            "a locked staging folder belongs to a running process"
+        );
+        assert!(!dead.exists(), "an unlocked one was abandoned");
     }
 }

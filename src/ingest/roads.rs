@@ -35,6 +35,8 @@ pub struct RoadSettings {
     pub category_field: Option<String>,
     /// Damage categories and road-class rates.
     pub cost_table: super::cost_table::CostTable,
+    /// The file the cost table was read from, if any (an input the output guard protects).
+    pub cost_table_file: Option<std::path::PathBuf>,
     /// Features kept or dropped by field values, applied in order.
     pub filters: Vec<super::cost_table::RoadFilter>,
 }
@@ -65,6 +67,7 @@ impl Default for RoadSettings {
             node_crossings: false,
             category_field: None,
             cost_table: Default::default(),
+            cost_table_file: None,
             filters: Vec::new(),
         }
     }

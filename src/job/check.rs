@@ -56,7 +56,14 @@ pub fn run_check(
     force: bool,
     progress: &Progress,
 ) -> Result<CheckReport, JobError> {
-    staging::preflight(out, force)?;
+    let inputs: Vec<_> = roads
+        .path()
+        .into_iter()
+        .chain(settings.cost_table_file.as_deref())
+        .map(crate::export::guard::InputPath::File)
+        .collect();
+    let out = crate::export::guard::check_out(out, &inputs)?;
+    staging::preflight(&out, force)?;
     settings.validate()?;
     let layer = {
         let _s = progress.stage("reading roads");
@@ -124,7 +131,7 @@ pub fn run_check(
     };
     {
         let _s = progress.stage("writing outputs");
-        let st = staging::Staging::begin(out, force)?;
+        let st = staging::Staging::begin(&out, force)?;
         st.write("qa.geojson", |w| export::write_qa(w, &noding.qa_points))?;
         st.write("network.geojson", |w| {
             export::write_network(w, &net, &comps)

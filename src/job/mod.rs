@@ -100,6 +100,22 @@ impl PlanJob {
     }
 }
 
+impl PlanJob {
+    /// Every file the run reads, for the output guard: layers, sidecars' folders and the cost table.
+    pub fn input_paths(&self) -> Vec<export::guard::InputPath<'_>> {
+        std::iter::once(&self.roads)
+            .chain(
+                [&self.sites, &self.zones, &self.reports]
+                    .into_iter()
+                    .flatten(),
+            )
+            .filter_map(|s| s.path())
+            .chain(self.road_settings.cost_table_file.as_deref())
+            .map(export::guard::InputPath::File)
+            .collect()
+    }
+}
+
 /// Any error of a run, by stage.
 #[derive(Debug, thiserror::Error)]
 pub enum JobError {
@@ -130,12 +146,8 @@ pub struct SitesResult {
 
 /// Runs the whole pipeline and returns the summary that was written.
 pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError> {
-    export::staging::preflight(&job.out, job.force)?;
-    let input_paths: Vec<&std::path::Path> = std::iter::once(&job.roads)
-        .chain([&job.sites, &job.zones, &job.reports].into_iter().flatten())
-        .filter_map(|s| s.path())
-        .collect();
-    export::staging::check_apart(&job.out, &input_paths)?;
+    let out = export::guard::check_out(&job.out, &job.input_paths())?;
+    export::staging::preflight(&out, job.force)?;
     job.road_settings.validate()?;
     if !(job.max_attach_m.is_finite()
         && job.max_attach_m >= 0.0
@@ -397,7 +409,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     {
         let _s = progress.stage("writing outputs");
         export::write_outputs(
-            &job.out,
+            &out,
             job.force,
             &export::Outputs {
                 net: &net,
