@@ -126,6 +126,8 @@ pub struct Staging {
     dir: PathBuf,
     written: std::sync::Mutex<Vec<String>>,
     committed: bool,
+    /// Parent folders this run created, deepest first: removed again when it fails.
+    created: Vec<PathBuf>,
     _lock: Option<File>,
 }
 
@@ -139,6 +141,11 @@ impl Staging {
             move |source| ExportError::Io { path, source }
         };
         let (parent, name) = parent_and_name(out.resolved());
+        let created: Vec<PathBuf> = parent
+            .ancestors()
+            .take_while(|a| fs::symlink_metadata(a).is_err())
+            .map(Path::to_path_buf)
+            .collect();
         fs::create_dir_all(&parent).map_err(io(out.given()))?;
         remove_stale(out.resolved());
         let dir = parent.join(temp_name(STAGING_PREFIX, &name));
@@ -150,6 +157,7 @@ impl Staging {
             dir,
             written: Default::default(),
             committed: false,
+            created,
             _lock: lock,
         })
     }
@@ -264,6 +272,10 @@ impl Drop for Staging {
     fn drop(&mut self) {
         if !self.committed {
             let _ = fs::remove_dir_all(&self.dir);
+            for d in &self.created {
+                // Only while empty: another run may have put its own outputs there meanwhile.
+                let _ = fs::remove_dir(d);
+            }
         }
     }
 }
