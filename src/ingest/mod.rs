@@ -89,6 +89,14 @@ pub enum IngestError {
         /// What the layer held instead.
         detail: String,
     },
+    /// The layer's figures cannot be represented exactly (costs too large to add up).
+    #[error("{path}: {message}")]
+    Unrepresentable {
+        /// The input file.
+        path: PathBuf,
+        /// What is too large.
+        message: String,
+    },
     /// A setting is out of its valid range.
     #[error("invalid setting {name}: {message}")]
     Setting {
@@ -129,12 +137,56 @@ pub fn build_network(
     report_crossings: bool,
 ) -> Result<(Network, NodingStats), IngestError> {
     settings.validate()?;
-    Ok(noding::node_with(
+    let path = layer
+        .input
+        .as_ref()
+        .map(|i| PathBuf::from(&i.path))
+        .unwrap_or_default();
+    let (net, stats) = noding::node_with(
         layer,
         noding::NodingOptions {
             snap_m: settings.snap_m,
             node_crossings: settings.node_crossings,
             report_crossings,
         },
-    ))
+    );
+    if net.edges.is_empty() {
+        // Lines were read, yet none is left: a tolerance or unit far too large for the data.
+        return Err(IngestError::Empty {
+            path,
+            detail: format!(
+                "all {} line part(s) collapsed to single points when vertices closer than --snap {} m were merged; \
+                 check --snap, and the layer's CRS and units (--crs)",
+                stats.zero_length_parts_dropped, settings.snap_m
+            ),
+        });
+    }
+    check_cost_total(&net, &path)?;
+    Ok((net, stats))
+}
+
+/// Largest total repair cost of a network, milli-repair-metres: every sum a solver forms (paths,
+/// trees, plans with backup links) stays far below `u64::MAX`, so no total can wrap.
+pub const MAX_TOTAL_COST: u64 = 1 << 60;
+
+/// Refuses a network whose edges' costs together exceed [`MAX_TOTAL_COST`].
+pub fn check_cost_total(net: &Network, path: &std::path::Path) -> Result<(), IngestError> {
+    let total: u128 = net
+        .edges
+        .iter()
+        .filter(|e| e.usable())
+        .map(|e| e.cost as u128)
+        .sum();
+    if total > MAX_TOTAL_COST as u128 {
+        return Err(IngestError::Unrepresentable {
+            path: path.to_path_buf(),
+            message: format!(
+                "the repair costs add up to {:.4e} repair-metres, more than reknit represents exactly ({:.4e}); \
+                 check the layer's CRS and units (--crs) and the damage factors",
+                total as f64 / 1000.0,
+                MAX_TOTAL_COST as f64 / 1000.0
+            ),
+        });
+    }
+    Ok(())
 }

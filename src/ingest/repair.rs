@@ -321,21 +321,25 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
     } else {
         QaKind::CrossingLeftApart
     };
-    let qa: Vec<QaPoint> = hits
+    // k lines through one point cross pairwise k(k-1)/2 times at (nearly) the same spot: they make
+    // one junction, so the points are grouped first.
+    let (point_of, points) = group_points(&hits);
+    let qa: Vec<QaPoint> = points
         .iter()
-        .map(|h| QaPoint {
+        .map(|&(pos, _)| QaPoint {
             kind,
-            pos: h.6,
+            pos,
             distance_m: 0.0,
             feature: None,
         })
         .collect();
     if apply_them {
-        let mut inserts = Vec::new();
-        for (p, k, t, p2, k2, u, x) in hits {
-            let c = parts.centres.len() as u32;
+        let first = parts.centres.len() as u32;
+        for &(x, h) in &points {
             parts.centres.push(x);
             if !parts.native.is_empty() {
+                // The native position of the first crossing found there, on its first segment.
+                let (p, k, t, ..) = hits[h];
                 let starts2: Vec<usize> = std::iter::once(0)
                     .chain(parts.ends.iter().copied())
                     .collect();
@@ -348,6 +352,10 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
                     .native
                     .push([na[0] + t * (nb[0] - na[0]), na[1] + t * (nb[1] - na[1])]);
             }
+        }
+        let mut inserts = Vec::new();
+        for (h, &(p, k, t, p2, k2, u, _)) in hits.iter().enumerate() {
+            let c = first + point_of[h];
             inserts.push(Insert {
                 part: p as usize,
                 after: k as usize,
@@ -364,6 +372,37 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
         apply(parts, inserts);
     }
     qa
+}
+
+/// Crossing points closer than this many degrees (about 0.1 mm) are one point.
+const SAME_POINT_DEG: f64 = 1e-9;
+
+/// Groups the crossings' points: for each crossing, the index of its point; for each point, its
+/// position and its first crossing. Sequential over the crossings in order, so deterministic.
+fn group_points(hits: &[Crossing]) -> (Vec<u32>, Vec<([f64; 2], usize)>) {
+    let cell = |x: f64| (x / SAME_POINT_DEG).floor() as i64;
+    let mut grid: std::collections::HashMap<(i64, i64), u32> = Default::default();
+    let mut points: Vec<([f64; 2], usize)> = Vec::new();
+    let mut of = Vec::with_capacity(hits.len());
+    for (h, hit) in hits.iter().enumerate() {
+        let x = hit.6;
+        let (cx, cy) = (cell(x[0]), cell(x[1]));
+        let near = (-1..=1)
+            .flat_map(|dx| (-1..=1).map(move |dy| (cx + dx, cy + dy)))
+            .filter_map(|k| grid.get(&k).copied())
+            .find(|&i| {
+                let q = points[i as usize].0;
+                (q[0] - x[0]).abs() <= SAME_POINT_DEG && (q[1] - x[1]).abs() <= SAME_POINT_DEG
+            });
+        let i = near.unwrap_or_else(|| {
+            points.push((x, h));
+            let i = (points.len() - 1) as u32;
+            grid.insert((cx, cy), i);
+            i
+        });
+        of.push(i);
+    }
+    (of, points)
 }
 
 /// Proper crossing of segments a–b and c–d (not at their ends): fractions along each and the point.

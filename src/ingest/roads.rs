@@ -462,6 +462,17 @@ pub(super) fn add_feature(
             .cost_table
             .rate(f.prop(cf).and_then(text).as_deref());
         if let Damage::Factor(x) = damage {
+            // The cap bounds the effort per metre, whatever it is made of.
+            if x * rate > super::damage::MAX_FACTOR {
+                return Err(fail(
+                    Some(cf),
+                    format!(
+                        "damage factor {x} × class rate {rate} = {} exceeds the largest accepted damage factor {}",
+                        x * rate,
+                        super::damage::MAX_FACTOR
+                    ),
+                ));
+            }
             damage = Damage::Factor(x * rate);
         }
     }

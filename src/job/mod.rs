@@ -257,6 +257,9 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         ));
         inputs.push(rec);
     }
+    if job.zones.is_some() || job.reports.is_some() {
+        ingest::check_cost_total(&net, &job.roads.display_path())?;
+    }
     let attachments = match &site_layer {
         Some(sl) => {
             let _s = progress.stage("attaching sites");
