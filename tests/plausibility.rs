@@ -97,3 +97,93 @@ case!(every_line_collapses_under_the_snap_tolerance, |d| {
         &["short.geojson", "collapsed", "--snap 50", "--crs"],
     );
 });
+
+case!(web_mercator_far_beyond_the_globe, |d| {
+    // y = 1e9 m lies far beyond the Web Mercator square (±20,037,508 m, EPSG:3857 from memory):
+    // its inverse lands on a pole and does not come back.
+    let roads = file(
+        d,
+        "mercator.geojson",
+        fc(&[
+            &line(&[[0.0, 0.0], [1000.0, 0.0]], "{}"),
+            &line(&[[0.0, 1e9], [1000.0, 1e9]], "{}"),
+        ]),
+    );
+    plan_fails(
+        &roads,
+        &["--crs", "EPSG:3857"],
+        &["mercator.geojson", "feature 1", "implausible", "EPSG:3857"],
+    );
+});
+
+case!(utm_far_outside_its_zone, |d| {
+    // 30,000 km east of zone 33's central meridian: a grid that far out means nothing.
+    let roads = file(
+        d,
+        "utm.geojson",
+        fc(&[&line(
+            &[[3e7, 5_000_000.0], [3e7 + 1000.0, 5_000_000.0]],
+            "{}",
+        )]),
+    );
+    plan_fails(
+        &roads,
+        &["--crs", "EPSG:32633"],
+        &[
+            "utm.geojson",
+            "feature 0",
+            "implausible",
+            "EPSG:32633",
+            "--crs",
+        ],
+    );
+});
+
+#[test]
+fn pieces_of_a_projected_road_add_up_to_the_road() {
+    // A straight 1,000 m road in UTM zone 33 (EPSG:32633): lengths there are planar × unit. A site
+    // joining it mid-way splits it; the two pieces must still add up to 1,000 m.
+    let t = tmp();
+    let d = t.path();
+    let roads = write_collection(
+        d,
+        "grid.geojson",
+        &[line(
+            &[[500_000.0, 5_000_000.0], [501_000.0, 5_000_000.0]],
+            "{}",
+        )],
+    );
+    let sites = file(
+        d,
+        "sites.geojson",
+        fc(&[
+            &site_feature("A", 500_000.0, 5_000_005.0),
+            &site_feature("B", 500_400.0, 5_000_005.0),
+            &site_feature("C", 501_000.0, 5_000_005.0),
+        ]),
+    );
+    let out = d.join("out");
+    let o = run(&[
+        "plan",
+        "--roads",
+        &s(&roads),
+        "--crs",
+        "EPSG:32633",
+        "--sites",
+        &s(&sites),
+        "--sites-crs",
+        "EPSG:32633",
+        "--out",
+        &s(&out),
+        "-q",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let net = read_fc(&out.join("network.geojson"));
+    assert!(net.features.len() >= 2, "the site split the road");
+    let total: f64 = net
+        .features
+        .iter()
+        .map(|f| f.property("length_m").unwrap().as_f64().unwrap())
+        .sum();
+    assert!((total - 1000.0).abs() < 0.002, "pieces add up to {total} m");
+}

@@ -218,12 +218,19 @@ fn split_edges(net: &mut Network, cuts: BTreeMap<u32, Vec<Cut>>, out: &mut [Atta
         current.extend_from_slice(&g[next_vertex.min(g.len())..]);
         pieces_geom.push(current);
         piece_ends.push(edge.to);
-        // Pieces share the cost in proportion to their lengths; the last takes the remainder.
-        let lengths: Vec<f64> = pieces_geom
+        // Pieces share the edge's length and cost in proportion to their ground lengths, so they
+        // keep the edge's own length method (planar in a national grid) and add up to it; the
+        // last takes the remainder of the cost.
+        let mut lengths: Vec<f64> = pieces_geom
             .iter()
             .map(|p| polyline_length_m(p.iter().copied()))
             .collect();
         let sum: f64 = lengths.iter().sum();
+        if sum > 0.0 {
+            lengths
+                .iter_mut()
+                .for_each(|l| *l = edge.length_m * *l / sum);
+        }
         let mut cost_left = edge.cost;
         for (i, piece) in pieces_geom.into_iter().enumerate() {
             let last = i + 1 == lengths.len();

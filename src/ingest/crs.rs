@@ -245,11 +245,16 @@ impl Crs {
         };
         let (lon, lat) = proj4rs::adaptors::transform_xy(&self.src, &self.dst, x, y).ok()?;
         let (lon, lat) = (lon.to_degrees(), lat.to_degrees());
-        (lon.is_finite()
+        let ll = (lon.is_finite()
             && lat.is_finite()
             && lon.abs() <= 180.0 + 1e-9
             && lat.abs() <= 90.0 + 1e-9)
-            .then_some([lon.clamp(-180.0, 180.0), lat.clamp(-90.0, 90.0)])
+            .then_some([lon.clamp(-180.0, 180.0), lat.clamp(-90.0, 90.0)])?;
+        // A position far outside the projection's domain can land on the globe while meaning
+        // nothing (a pole, a wrapped longitude): it must come back to where it started.
+        let back = self.from_lonlat(ll)?;
+        let tol = |a: f64| 1e-3 + 1e-9 * a.abs();
+        ((back[0] - p[0]).abs() <= tol(p[0]) && (back[1] - p[1]).abs() <= tol(p[1])).then_some(ll)
     }
 
     /// Converts WGS84 longitude/latitude to this CRS (for tests and checks).

@@ -318,7 +318,7 @@ pub fn finish_coordinates(
             layer,
             i,
             format!(
-                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS",
+                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --crs and the layer's units",
                 p[0], p[1], crs.name
             ),
         ));
@@ -327,6 +327,16 @@ pub fn finish_coordinates(
     let native = std::mem::replace(&mut layer.coords, lonlat);
     match crs.lengths {
         LengthRule::Planar => {
+            if let Some((i, grid, ground)) = implausible_step(layer, &native, crs.to_meter) {
+                return Err(bad(
+                    layer,
+                    i,
+                    format!(
+                        "to the next is {grid:.0} m in {} but {ground:.0} m on the ground: the coordinates are implausible for that CRS; check --crs and the layer's units",
+                        crs.name
+                    ),
+                ));
+            }
             layer.native = native;
             layer.length_method = format!(
                 "planar in {} × {} m per unit (conformal projection)",
@@ -341,6 +351,35 @@ pub fn finish_coordinates(
         }
     }
     Ok(())
+}
+
+/// The first step between consecutive vertices whose grid length and ground length differ more
+/// than any conformal grid allows near its area (a factor of 1.5): (vertex index, grid metres,
+/// ground metres). Steps under a metre are not judged.
+fn implausible_step(
+    layer: &LineLayer,
+    native: &[[f64; 2]],
+    to_meter: f64,
+) -> Option<(usize, f64, f64)> {
+    use rayon::prelude::*;
+    let lonlat = &layer.coords;
+    (0..layer.part_ends.len())
+        .into_par_iter()
+        .filter_map(|part| {
+            let start = if part == 0 {
+                0
+            } else {
+                layer.part_ends[part - 1]
+            };
+            (start + 1..layer.part_ends[part]).find_map(|i| {
+                let (a, b) = (native[i - 1], native[i]);
+                let grid = (b[0] - a[0]).hypot(b[1] - a[1]) * to_meter;
+                let ground = super::geodesy::distance_m(lonlat[i - 1], lonlat[i]);
+                let off = grid.max(ground) > 1.0 && (grid > 1.5 * ground || ground > 1.5 * grid);
+                off.then_some((i - 1, grid, ground))
+            })
+        })
+        .min_by_key(|x| x.0)
 }
 
 pub(super) fn add_feature(

@@ -368,7 +368,7 @@ fn convert(path: &Path, crs: &super::crs::Crs, sites: &mut [Site]) -> Result<(),
                 s.index,
                 Some("geometry"),
                 format!(
-                    "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS",
+                    "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
                     s.pos[0], s.pos[1], crs.name
                 ),
             )
