@@ -33,7 +33,7 @@ pub struct NetworkArgs {
     pub damage_field: String,
 
     /// Damage factor for roads without a damage value (1.0: assume the road needs full repair).
-    #[arg(long, value_name = "FACTOR", default_value_t = 1.0)]
+    #[arg(long, value_name = "FACTOR", default_value_t = 1.0, allow_negative_numbers = true)]
     pub default_damage: f64,
 
     /// Damage value (text) that marks a road impassable: kept on the map, left out of the plan.
@@ -68,6 +68,15 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "FIELD=V1,V2")]
     pub drop_where: Vec<String>,
 
+    /// Join lines where they cross without a shared vertex (for data digitised without junction
+    /// vertices). Off by default: such crossings are usually overpasses.
+    #[arg(long)]
+    pub node_crossings: bool,
+}
+
+/// Damage evidence and planning choices: for the commands that plan (not `check`).
+#[derive(Debug, Args)]
+pub struct PlanningArgs {
     /// Damage zones (flood extents, landslide areas): GeoJSON polygons with a damage factor each; a
     /// road's cost inside a zone uses the zone's factor when larger than its own.
     #[arg(long, value_name = "FILE")]
@@ -104,11 +113,6 @@ pub struct NetworkArgs {
     /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
-
-    /// Join lines where they cross without a shared vertex (for data digitised without junction
-    /// vertices). Off by default: such crossings are usually overpasses.
-    #[arg(long)]
-    pub node_crossings: bool,
 
     /// Algorithm for the whole-network plan; both give a forest of the same minimum total.
     #[arg(long, value_enum, default_value = "kruskal")]
@@ -152,9 +156,12 @@ impl NetworkArgs {
             filters,
         })
     }
+}
 
-    /// Copies the damage-zone settings into a job.
-    pub fn apply_zones(&self, job: &mut PlanJob) {
+impl PlanningArgs {
+    /// Copies the damage evidence and planning settings into a job (zones and reports read
+    /// "closed" as the roads do).
+    pub fn apply(&self, job: &mut PlanJob, closed_value: &str) {
         job.zones = self
             .damage_zones
             .clone()
@@ -162,8 +169,9 @@ impl NetworkArgs {
         job.zone_damage = DamageRule {
             field: self.zone_damage_field.clone(),
             default: 1.0,
-            closed_value: self.closed_value.clone(),
+            closed_value: closed_value.to_string(),
         };
+        job.mst = self.mst();
         job.zones_crs = self.zones_crs.clone();
         job.reports = self
             .damage_points
@@ -175,7 +183,7 @@ impl NetworkArgs {
         job.redundancy = self.redundancy;
     }
 
-    pub fn mst(&self) -> MstAlgorithm {
+    fn mst(&self) -> MstAlgorithm {
         match self.mst {
             MstChoice::Kruskal => MstAlgorithm::Kruskal,
             MstChoice::Prim => MstAlgorithm::Prim,

@@ -1,6 +1,6 @@
 //! `reknit demo`: the whole job on the bundled sample district.
 
-use super::common::{NetworkArgs, OutputArgs, print_result};
+use super::common::{NetworkArgs, OutputArgs, PlanningArgs, print_result};
 use clap::Args;
 use reknit::ingest::source::Source;
 use reknit::{PlanJob, run_plan, sample};
@@ -22,6 +22,9 @@ pub struct DemoArgs {
     network: NetworkArgs,
 
     #[command(flatten)]
+    planning: PlanningArgs,
+
+    #[command(flatten)]
     output: OutputArgs,
 }
 
@@ -38,8 +41,7 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
     let mut job = PlanJob::new(roads, a.out);
     job.force = a.output.force;
     job.road_settings = a.network.road_settings()?;
-    job.mst = a.network.mst();
-    a.network.apply_zones(&mut job);
+    a.planning.apply(&mut job, &a.network.closed_value);
     job.whole_network = a.whole_network;
     job.name = Some(format!("{} (invented demo district)", sample::DISTRICT));
     if !a.whole_network {

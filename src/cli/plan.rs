@@ -1,6 +1,6 @@
 //! `reknit plan`: one district from a road layer to the plan and its map layers.
 
-use super::common::{NetworkArgs, OutputArgs, SiteArgs, print_result};
+use super::common::{NetworkArgs, OutputArgs, PlanningArgs, SiteArgs, print_result};
 use clap::Args;
 use reknit::ingest::source::Source;
 use reknit::{PlanJob, run_plan};
@@ -31,6 +31,9 @@ pub struct PlanArgs {
     network: NetworkArgs,
 
     #[command(flatten)]
+    planning: PlanningArgs,
+
+    #[command(flatten)]
     sites: SiteArgs,
 
     #[command(flatten)]
@@ -43,8 +46,7 @@ pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     job.force = a.output.force;
     job.name = a.name.clone();
     job.road_settings = a.network.road_settings()?;
-    job.mst = a.network.mst();
-    a.network.apply_zones(&mut job);
+    a.planning.apply(&mut job, &a.network.closed_value);
     a.sites.apply(&mut job);
     job.sites = a.sites.sites.clone().map(Source::File);
     let summary = run_plan(&job, &progress)?;

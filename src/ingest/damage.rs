@@ -59,13 +59,19 @@ impl Default for DamageRule {
 }
 
 impl DamageRule {
+    /// The damage of a road without a value: the default factor, negative meaning impassable
+    /// exactly as a negative value in the data does.
+    pub fn missing(&self) -> Damage {
+        Damage::Factor(self.default).normalised()
+    }
+
     /// Interprets one property value; `Err` carries a message naming what is wrong with it.
     ///
     /// Numbers (or numeric text) ≥ 0 are factors, a negative number or the closed value marks the road
     /// impassable, null or absence takes the default.
     pub fn interpret(&self, value: Option<&Value>) -> Result<Damage, String> {
         let factor = match value {
-            None | Some(Value::Null) => return Ok(Damage::Factor(self.default)),
+            None | Some(Value::Null) => return Ok(self.missing()),
             Some(Value::Number(n)) => n.as_f64().unwrap_or(f64::NAN),
             Some(Value::String(s)) => {
                 let t = s.trim();
@@ -73,7 +79,7 @@ impl DamageRule {
                     return Ok(Damage::Closed);
                 }
                 if t.is_empty() {
-                    return Ok(Damage::Factor(self.default));
+                    return Ok(self.missing());
                 }
                 match t.parse::<f64>() {
                     Ok(v) => v,
@@ -130,5 +136,14 @@ mod tests {
         assert!(r.interpret(Some(&json!("bad"))).is_err());
         assert!(r.interpret(Some(&json!(true))).is_err());
         assert!(r.interpret(Some(&json!(1e9))).is_err());
+        let closed_by_default = DamageRule {
+            default: -1.0,
+            ..DamageRule::default()
+        };
+        assert_eq!(closed_by_default.interpret(None), Ok(Damage::Closed));
+        assert_eq!(
+            closed_by_default.interpret(Some(&json!(""))),
+            Ok(Damage::Closed)
+        );
     }
 }

@@ -485,7 +485,7 @@ pub(super) fn add_feature(
                     .map_err(|m| fail(Some(cf), m))?,
                 Some(c),
             ),
-            None => (Damage::Factor(settings.damage.default).normalised(), None),
+            None => (settings.damage.missing(), None),
         },
         None => {
             let field = &settings.damage.field;

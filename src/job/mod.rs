@@ -180,12 +180,23 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         }
         .into());
     }
+    if job.budget.is_some() && (job.sites.is_none() || job.whole_network) {
+        return Err(IngestError::Setting {
+            name: "--budget",
+            message:
+                "a budget chooses which sites to join first: give --sites (and not --whole-network)"
+                    .into(),
+        }
+        .into());
+    }
     if let Some(c) = job.crew_capacity
-        && !(c.is_finite() && c > 0.0)
+        && !(c.is_finite() && c >= 0.0005)
     {
         return Err(IngestError::Setting {
             name: "--crew-capacity",
-            message: format!("{c} repair-metres per day is not a positive number"),
+            message: format!(
+                "{c} repair-metres per day is not a positive number of at least 0.001 (costs are counted in thousandths)"
+            ),
         }
         .into());
     }
@@ -334,6 +345,24 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             site_plan.as_ref(),
         )
     };
+    if let Some(c) = job.crew_capacity {
+        let cap = (c * 1000.0).round() as u64;
+        let smallest = steps
+            .iter()
+            .map(|st| graph.cost[st.edge as usize])
+            .filter(|&x| x > 0)
+            .min();
+        if let Some(m) = smallest.filter(|&m| m > cap) {
+            return Err(IngestError::Setting {
+                name: "--crew-capacity",
+                message: format!(
+                    "{c} repair-metres per day fits no repair of the plan (the smallest needs {} repair-metres)",
+                    crate::network::cost_to_repair_metres(m)
+                ),
+            }
+            .into());
+        }
+    }
     let fragile = match (&site_layer, &site_plan) {
         (Some(sl), Some(_)) => {
             let _s = progress.stage("finding single points of failure");
