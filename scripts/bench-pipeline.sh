@@ -20,8 +20,7 @@ measure() { # name roads
     "$(python3 -c "import json;print(json.load(open('$out/summary.json'))['counts']['features_read'])")" \
     "$(python3 -c "import json;print(json.load(open('$out/summary.json'))['counts']['edges'])")"
 }
-li=../shared/data/roads/liechtenstein/liechtenstein_highways.geojson
-if [ -f "$li" ]; then measure liechtenstein "$li"; else echo "skip: $li is absent"; fi
+measure liechtenstein tests/data/roads/liechtenstein/liechtenstein_highways.geojson
 for n in "${sizes[@]}"; do
   f=target/bench-data/synth-$n.geojson
   [ -f "$f" ] || target/release/examples/synth_roads "$n" "$f"

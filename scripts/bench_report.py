@@ -114,7 +114,7 @@ def main(path, doc):
         prev = (n, t)
     out.append("")
 
-    out.append("### SteinLib (published optima, ZIB SteinLib; instances in ../shared/data/steinlib)")
+    out.append("### SteinLib (published optima, ZIB SteinLib; instances in tests/data/steinlib)")
     out.append("")
     out.append("| series | effort | instances | mean gap | worst gap | optimal | mean time | longest |")
     out.append("|---|---|---|---|---|---|---|---|")

@@ -260,8 +260,13 @@ fn summary_records_input_fingerprint() {
         input["bytes"].as_u64().unwrap(),
         fs::metadata(&roads).unwrap().len()
     );
-    // Independent digest: the sha256sum tool (GNU coreutils), when present.
-    if let Ok(o) = std::process::Command::new("sha256sum").arg(&roads).output() {
+    // Independent digest: the sha256sum tool (GNU coreutils).
+    if let Some(tool) = external::program("sha256sum-input-digest", &["sha256sum"], "coreutils") {
+        let o = std::process::Command::new(tool)
+            .arg(&roads)
+            .output()
+            .unwrap();
+        assert!(o.status.success());
         let text = String::from_utf8_lossy(&o.stdout);
         assert_eq!(
             input["sha256"].as_str().unwrap(),

@@ -276,16 +276,13 @@ fn report_is_self_contained_and_carries_the_figures() {
         html.matches(" src=").count(),
         html.matches(" src=\"data:").count()
     );
-    // In headless Chromium (Debian package), when installed: it loads without console errors and
-    // renders a screenshot.
-    let chromium = ["chromium", "chromium-browser"].into_iter().find(|c| {
-        std::process::Command::new(c)
-            .arg("--version")
-            .output()
-            .is_ok_and(|o| o.status.success())
-    });
-    let Some(chromium) = chromium else {
-        eprintln!("SKIP: chromium is absent (apt-get install chromium)");
+    // In headless Chromium (Debian package chromium): it loads without console errors and renders
+    // a screenshot.
+    let Some(chromium) = external::program(
+        "chromium-report-page",
+        &["chromium", "chromium-browser"],
+        "chromium",
+    ) else {
         return;
     };
     let shot = d.path().join("shot.png");

@@ -1,8 +1,8 @@
 //! Checks against real open data and general-purpose reference tools.
 //!
-//! Data: ../shared/data/roads/liechtenstein (OpenStreetMap extract 2015-10-06, © OpenStreetMap
+//! Data: tests/data/roads/liechtenstein (OpenStreetMap extract 2015-10-06, © OpenStreetMap
 //! contributors, ODbL 1.0). Peers: networkx, pyosmium, geographiclib (PyPI), GDAL's ogrinfo.
-//! Each test skips with a message when its data or peer is absent.
+//! Each peer check records whether it ran (tests/common/external.rs); scripts/test requires them all.
 
 mod common;
 use common::*;
@@ -10,12 +10,12 @@ use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-const LI_GEOJSON: &str = "data/roads/liechtenstein/liechtenstein_highways.geojson";
-const LI_PBF: &str = "data/roads/liechtenstein/liechtenstein-2015-10-06.osm.pbf";
+const LI_GEOJSON: &str = "roads/liechtenstein/liechtenstein_highways.geojson";
+const LI_PBF: &str = "roads/liechtenstein/liechtenstein-2015-10-06.osm.pbf";
 
 /// Plans the Liechtenstein layer into a temporary folder with extra flags.
-fn plan_liechtenstein(d: &Path, name: &str, extra: &[&str]) -> Option<PathBuf> {
-    let roads = shared(LI_GEOJSON)?;
+fn plan_liechtenstein(d: &Path, name: &str, extra: &[&str]) -> PathBuf {
+    let roads = data(LI_GEOJSON);
     let out = d.join(name);
     let mut args = vec![
         "plan",
@@ -28,7 +28,7 @@ fn plan_liechtenstein(d: &Path, name: &str, extra: &[&str]) -> Option<PathBuf> {
     args.extend_from_slice(extra);
     let o = run(&args);
     assert!(o.status.success(), "{}", stderr(&o));
-    Some(out)
+    out
 }
 
 fn python_json(py: &Path, script_name: &str, arg: &Path) -> serde_json::Value {
@@ -52,19 +52,17 @@ fn milli(v: &serde_json::Value) -> u64 {
 #[test]
 fn forest_total_matches_networkx_and_prim_on_liechtenstein() {
     let d = tmp();
-    let Some(out) = plan_liechtenstein(d.path(), "k", &[]) else {
-        return;
-    };
+    let out = plan_liechtenstein(d.path(), "k", &[]);
     let s = read_json(&out.join("summary.json"));
     let ours = milli(&s["total_cost"]);
     // Independent implementation in the same binary.
-    let prim = plan_liechtenstein(d.path(), "p", &["--mst", "prim"]).unwrap();
+    let prim = plan_liechtenstein(d.path(), "p", &["--mst", "prim"]);
     assert_eq!(
         milli(&read_json(&prim.join("summary.json"))["total_cost"]),
         ours
     );
     // Reference library: networkx minimum_spanning_tree (Kruskal) on the same edge list.
-    let Some(py) = python_with(&["networkx"]) else {
+    let Some(py) = external::python_with("networkx-msf-liechtenstein", &["networkx"]) else {
         return;
     };
     let nx = python_json(&py, "peer_msf_networkx.py", &out.join("network.geojson"));
@@ -79,11 +77,9 @@ fn forest_total_matches_networkx_and_prim_on_liechtenstein() {
 fn noding_matches_osm_node_topology() {
     // OSM ways share junctions by node id; pyosmium reads the original .osm.pbf independently.
     let d = tmp();
-    let Some(pbf) = shared(LI_PBF) else { return };
-    let Some(out) = plan_liechtenstein(d.path(), "s0", &["--snap", "0"]) else {
-        return;
-    };
-    let Some(py) = python_with(&["osmium"]) else {
+    let pbf = data(LI_PBF);
+    let out = plan_liechtenstein(d.path(), "s0", &["--snap", "0"]);
+    let Some(py) = external::python_with("pyosmium-topology-liechtenstein", &["osmium"]) else {
         return;
     };
     let osm = python_json(&py, "peer_osm_topology.py", &pbf);
@@ -106,7 +102,7 @@ fn noding_matches_osm_node_topology() {
         .count();
     assert_eq!(not2 as u64, osm["junctions_degree_not_2"].as_u64().unwrap());
     // The default snap merges the extract's near-coincident vertices, so it changes the graph.
-    let def = plan_liechtenstein(d.path(), "s05", &[]).unwrap();
+    let def = plan_liechtenstein(d.path(), "s05", &[]);
     let sd = read_json(&def.join("summary.json"));
     assert!(sd["counts"]["vertices_moved"].as_u64().unwrap() > 0);
 }
@@ -115,10 +111,9 @@ fn noding_matches_osm_node_topology() {
 fn edge_lengths_match_geographiclib_within_a_millimetre() {
     // Reference: geographiclib (Karney's geodesic algorithms, PyPI) on every edge of a real network.
     let d = tmp();
-    let Some(out) = plan_liechtenstein(d.path(), "g", &[]) else {
-        return;
-    };
-    let Some(py) = python_with(&["geographiclib"]) else {
+    let out = plan_liechtenstein(d.path(), "g", &[]);
+    let Some(py) = external::python_with("geographiclib-lengths-liechtenstein", &["geographiclib"])
+    else {
         return;
     };
     let o = Command::new(&py)
@@ -152,8 +147,7 @@ fn edge_lengths_match_geographiclib_within_a_millimetre() {
 #[test]
 fn demo_layers_open_in_ogrinfo() {
     // Reference reader: GDAL's ogrinfo (Debian package gdal-bin).
-    if Command::new("ogrinfo").arg("--version").output().is_err() {
-        eprintln!("SKIP: ogrinfo is absent (apt-get install gdal-bin)");
+    if external::program("ogrinfo-demo-layers", &["ogrinfo"], "gdal-bin").is_none() {
         return;
     }
     let d = tmp();
@@ -261,17 +255,14 @@ fn random_sites(d: &Path, net: &Path, count: usize, seed: u64) -> PathBuf {
 fn steiner_cost_at_most_networkx_mehlhorn_on_liechtenstein() {
     // Reference library: networkx.algorithms.approximation.steiner_tree (method "mehlhorn").
     let d = tmp();
-    let Some(whole) = plan_liechtenstein(d.path(), "whole", &["--whole-network"]) else {
-        return;
-    };
-    let Some(py) = python_with(&["networkx"]) else {
+    let whole = plan_liechtenstein(d.path(), "whole", &["--whole-network"]);
+    let Some(py) = external::python_with("networkx-steiner-liechtenstein", &["networkx"]) else {
         return;
     };
     for (count, seed) in [(10, 11), (50, 12), (200, 13)] {
         let sites = random_sites(d.path(), &whole.join("network.geojson"), count, seed);
         let name = format!("sites-{count}");
-        let out =
-            plan_liechtenstein(d.path(), &name, &["--sites", sites.to_str().unwrap()]).unwrap();
+        let out = plan_liechtenstein(d.path(), &name, &["--sites", sites.to_str().unwrap()]);
         let s = read_json(&out.join("summary.json"));
         assert_eq!(s["sites"]["connected"].as_u64().unwrap(), count as u64);
         let ours = milli(&s["total_cost"]);
@@ -329,17 +320,15 @@ fn compare_bridges(py: &std::path::Path, g: &reknit::solve::graph::EdgeList, wha
 #[test]
 fn bridges_and_cut_vertices_match_networkx_on_real_and_random_networks() {
     // Reference library: networkx bridges() and articulation_points(), on the noded Liechtenstein
-    // network and the GeoDaNet streets (open data, licences beside them in ../shared) with every
+    // network and the GeoDaNet streets (open data, licences beside them in tests/data) with every
     // road usable, and on random sparse multigraphs with closed edges.
     use reknit::ingest::roads::{RoadSettings, read_roads};
     use reknit::ingest::source::Source;
-    let Some(py) = python_with(&["networkx"]) else {
+    let Some(py) = external::python_with("networkx-bridges", &["networkx"]) else {
         return;
     };
-    for rel in [LI_GEOJSON, "data/roads/geodanet-streets/streets.shp"] {
-        let Some(roads) = shared(rel) else {
-            continue;
-        };
+    for rel in [LI_GEOJSON, "roads/geodanet-streets/streets.shp"] {
+        let roads = data(rel);
         let layer = read_roads(&Source::File(roads), &RoadSettings::default()).unwrap();
         let (net, _) =
             reknit::ingest::build_network(layer, &RoadSettings::default(), false).unwrap();

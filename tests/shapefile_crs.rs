@@ -1,6 +1,6 @@
 //! Shapefiles and projected CRSs on real data, against the data's own attributes and pyproj.
 //!
-//! Data: ../shared/data/roads/geodanet-streets (GeoDa Center GeoDaNet sample, shipped with libpysal
+//! Data: tests/data/roads/geodanet-streets (GeoDa Center GeoDaNet sample, shipped with libpysal
 //! 4.14.1, BSD-3-Clause): 293 streets in NAD83 / Arizona State Plane Central (US survey feet) with
 //! the source's own `Length` per street, and 8 schools.
 
@@ -12,14 +12,15 @@ use reknit::ingest::source::Source;
 use std::io::Write;
 use std::process::{Command, Stdio};
 
-const STREETS: &str = "data/roads/geodanet-streets/streets.shp";
-const SCHOOLS: &str = "data/roads/geodanet-streets/schools.shp";
+const STREETS: &str = "roads/geodanet-streets/streets.shp";
+const SCHOOLS: &str = "roads/geodanet-streets/schools.shp";
 
 #[test]
 fn street_lengths_match_the_source_attribute() {
     // Source: the `Length` attribute of the GeoDaNet streets (feet). The .dbf rows are not in the
     // same order as the shapes in this sample, so the sorted lists are compared.
-    let Some(shp) = shared(STREETS) else { return };
+    let shp = data(STREETS);
+    external::ran("geodanet-street-lengths");
     let layer = read_roads(&Source::File(shp.clone()), &RoadSettings::default()).unwrap();
     assert_eq!(layer.stats.features_read, 293);
     assert!(!layer.native.is_empty(), "State Plane lengths are planar");
@@ -61,7 +62,7 @@ fn reknit_dbase_lengths(dbf: &std::path::Path) -> Vec<f64> {
 fn conversions_agree_with_pyproj_to_a_centimetre() {
     // Reference: pyproj (PROJ) on points in UTM zone 33N (EPSG:32633, metres) and Arizona State
     // Plane Central (EPSG:2223, international feet).
-    let Some(py) = python_with(&["pyproj"]) else {
+    let Some(py) = external::python_with("pyproj-conversions", &["pyproj"]) else {
         return;
     };
     for (code, points) in [
@@ -112,9 +113,9 @@ fn conversions_agree_with_pyproj_to_a_centimetre() {
 
 #[test]
 fn shapefile_roads_and_schools_plan_end_to_end() {
-    let (Some(streets), Some(schools)) = (shared(STREETS), shared(SCHOOLS)) else {
-        return;
-    };
+    // Source: the GeoDaNet sample (8 schools in Arizona; its .prj: State Plane, US survey feet).
+    let (streets, schools) = (data(STREETS), data(SCHOOLS));
+    external::ran("geodanet-schools-plan");
     let d = tmp();
     let out = d.path().join("out");
     let o = run(&[
@@ -159,14 +160,14 @@ fn shapefile_roads_and_schools_plan_end_to_end() {
     }
 }
 
-fn copy_streets(dir: &std::path::Path, skip: &[&str]) -> Option<std::path::PathBuf> {
-    let shp = shared(STREETS)?;
+fn copy_streets(dir: &std::path::Path, skip: &[&str]) -> std::path::PathBuf {
+    let shp = data(STREETS);
     for ext in ["shp", "shx", "dbf", "prj"] {
         if !skip.contains(&ext) {
             std::fs::copy(shp.with_extension(ext), dir.join(format!("streets.{ext}"))).unwrap();
         }
     }
-    Some(dir.join("streets.shp"))
+    dir.join("streets.shp")
 }
 
 fn fails(args: &[&str], needles: &[&str]) {
@@ -185,16 +186,14 @@ fn broken_shapefile_sets_are_clear_errors() {
     let o = out.to_str().unwrap();
     let a = d.path().join("a");
     std::fs::create_dir(&a).unwrap();
-    let Some(p) = copy_streets(&a, &["dbf"]) else {
-        return;
-    };
+    let p = copy_streets(&a, &["dbf"]);
     fails(
         &["plan", "--roads", p.to_str().unwrap(), "--out", o],
         &["streets.dbf", "missing"],
     );
     let b = d.path().join("b");
     std::fs::create_dir(&b).unwrap();
-    let p = copy_streets(&b, &["prj"]).unwrap();
+    let p = copy_streets(&b, &["prj"]);
     fails(
         &["plan", "--roads", p.to_str().unwrap(), "--out", o],
         &["streets.shp", ".prj", "--crs"],
@@ -214,13 +213,13 @@ fn broken_shapefile_sets_are_clear_errors() {
     std::fs::remove_dir_all(&out).unwrap();
     let c = d.path().join("c");
     std::fs::create_dir(&c).unwrap();
-    let p = copy_streets(&c, &[]).unwrap();
+    let p = copy_streets(&c, &[]);
     std::fs::write(c.join("streets.prj"), "PROJCS[\"broken\",GEOGCS[").unwrap();
     fails(
         &["plan", "--roads", p.to_str().unwrap(), "--out", o],
         &["streets.prj", "--crs"],
     );
-    let p = copy_streets(&c, &[]).unwrap();
+    let p = copy_streets(&c, &[]);
     fails(
         &[
             "plan",
@@ -235,7 +234,7 @@ fn broken_shapefile_sets_are_clear_errors() {
     );
     let e = d.path().join("e");
     std::fs::create_dir(&e).unwrap();
-    let p = copy_streets(&e, &["shx"]).unwrap();
+    let p = copy_streets(&e, &["shx"]);
     fails(
         &["plan", "--roads", p.to_str().unwrap(), "--out", o],
         &["streets.shx", "missing"],
@@ -247,7 +246,7 @@ fn broken_shapefile_sets_are_clear_errors() {
 fn shapefile_damage_zones_in_state_plane_feet() {
     // A polygon Shapefile written here in the streets' own CRS (copied .prj): a square over the
     // western half of the GeoDaNet streets with damage 0.5; roads themselves intact.
-    let Some(shp) = shared(STREETS) else { return };
+    let shp = data(STREETS);
     let layer = read_roads(&Source::File(shp.clone()), &RoadSettings::default()).unwrap();
     let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
     for p in &layer.native {

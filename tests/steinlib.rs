@@ -1,4 +1,4 @@
-//! Steiner plans on every SteinLib instance of series B, C and D (../shared/data/steinlib).
+//! Steiner plans on every SteinLib instance of series B, C and D (tests/data/steinlib).
 //!
 //! Source of the optima: SteinLib (Koch, Martin & Voß, ZIB-Report 00-37, 2001), from Beasley's
 //! OR-Library (Networks 19, 1989); the values are in optima.tsv beside the instances.
@@ -9,26 +9,28 @@ mod common;
 use reknit::solve::steiner::{Effort, steiner_tree, tree::check_steiner_tree};
 use reknit::solve::stp;
 
-fn optima() -> Option<Vec<(String, u64)>> {
-    let p = common::shared("data/steinlib/optima.tsv")?;
-    let text = std::fs::read_to_string(p).unwrap();
-    Some(
-        text.lines()
-            .skip(1)
-            .filter_map(|l| {
-                let mut it = l.split('\t');
-                Some((it.next()?.to_string(), it.next()?.trim().parse().ok()?))
-            })
-            .collect(),
-    )
+fn optima() -> Vec<(String, u64)> {
+    let text = std::fs::read_to_string(common::data("steinlib/optima.tsv")).unwrap();
+    text.lines()
+        .skip(1)
+        .filter_map(|l| {
+            let mut it = l.split('\t');
+            Some((it.next()?.to_string(), it.next()?.trim().parse().ok()?))
+        })
+        .collect()
 }
 
-fn run_series(series: &str, effort: Effort) -> Option<(f64, f64, f64)> {
-    let optima = optima()?;
+fn run_series(series: &str, effort: Effort) -> (f64, f64, f64) {
+    let optima = optima();
+    common::external::ran(&format!(
+        "steinlib-{}-{}",
+        series.trim_end_matches('/'),
+        effort.name()
+    ));
     let mut gaps = Vec::new();
     let mut certified = Vec::new();
     for (name, opt) in optima.iter().filter(|(n, _)| n.starts_with(series)) {
-        let path = common::shared(&format!("data/steinlib/{name}.stp"))?;
+        let path = common::data(&format!("steinlib/{name}.stp"));
         let inst = stp::parse(&std::fs::read_to_string(path).unwrap()).unwrap();
         let t = steiner_tree(&inst.graph, &inst.terminals, effort).unwrap();
         check_steiner_tree(&inst.graph, &t.edges, &inst.terminals).unwrap();
@@ -58,6 +60,10 @@ fn run_series(series: &str, effort: Effort) -> Option<(f64, f64, f64)> {
             );
         }
     }
+    assert!(
+        !gaps.is_empty(),
+        "no instances of series {series} in optima.tsv"
+    );
     let mean = gaps.iter().sum::<f64>() / gaps.len() as f64;
     let worst = gaps.iter().cloned().fold(0.0, f64::max);
     let cert = certified.iter().sum::<f64>() / certified.len() as f64;
@@ -69,28 +75,25 @@ fn run_series(series: &str, effort: Effort) -> Option<(f64, f64, f64)> {
         100.0 * worst,
         100.0 * cert
     );
-    Some((mean, worst, cert))
+    (mean, worst, cert)
 }
 
 #[test]
 fn series_b_normal() {
-    if let Some((mean, worst, _)) = run_series("B/", Effort::Normal) {
-        assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
-    }
+    let (mean, worst, _) = run_series("B/", Effort::Normal);
+    assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
 }
 
 #[test]
 fn series_c_normal() {
-    if let Some((mean, worst, _)) = run_series("C/", Effort::Normal) {
-        assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
-    }
+    let (mean, worst, _) = run_series("C/", Effort::Normal);
+    assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
 }
 
 #[test]
 fn series_d_normal() {
-    if let Some((mean, worst, _)) = run_series("D/", Effort::Normal) {
-        assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
-    }
+    let (mean, worst, _) = run_series("D/", Effort::Normal);
+    assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
 }
 
 #[test]
@@ -104,8 +107,7 @@ fn series_b_quick_is_still_a_two_approximation() {
 #[ignore]
 fn series_c_and_d_thorough() {
     for series in ["B/", "C/", "D/"] {
-        if let Some((mean, _, _)) = run_series(series, Effort::Thorough) {
-            assert!(mean <= 0.01, "{series}: mean {mean}");
-        }
+        let (mean, _, _) = run_series(series, Effort::Thorough);
+        assert!(mean <= 0.01, "{series}: mean {mean}");
     }
 }

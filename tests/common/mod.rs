@@ -1,8 +1,10 @@
-//! One harness for the end-to-end tests: runs the binary, makes fixtures, finds shared data and peers.
+//! One harness for the end-to-end tests: runs the binary, makes fixtures, finds the real test data;
+//! external checks (peers, tools) record themselves through `external`.
 #![allow(dead_code)]
 
 pub mod bad;
 pub mod exact;
+pub mod external;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -29,43 +31,18 @@ pub fn tmp() -> tempfile::TempDir {
     tempfile::tempdir().expect("tempdir")
 }
 
-/// Path to a file under the shared data folder, or `None` (with a note) when it is absent.
-pub fn shared(rel: &str) -> Option<PathBuf> {
-    let root = std::env::var_os("REKNIT_SHARED")
-        .map(PathBuf::from)
-        .unwrap_or_else(|| Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared"));
-    let p = root.join(rel);
-    if p.exists() {
-        Some(p)
-    } else {
-        eprintln!("SKIP: shared data {} is absent", p.display());
-        None
-    }
-}
-
-/// A Python interpreter that can import every module in `modules`, or `None` (with a note).
-pub fn python_with(modules: &[&str]) -> Option<PathBuf> {
-    let candidates = [
-        std::env::var_os("REKNIT_PYTHON").map(PathBuf::from),
-        Some(Path::new(env!("CARGO_MANIFEST_DIR")).join("target/py-peers/bin/python")),
-        Some(PathBuf::from("python3")),
-    ];
-    let probe = format!("import {}", modules.join(", "));
-    for c in candidates.into_iter().flatten() {
-        let ok = Command::new(&c)
-            .args(["-c", &probe])
-            .output()
-            .map(|o| o.status.success())
-            .unwrap_or(false);
-        if ok {
-            return Some(c);
-        }
-    }
-    eprintln!(
-        "SKIP: no Python with {} (run scripts/test to install the peers)",
-        modules.join(", ")
+/// Path to a file of the real test data in tests/data (licence and attribution beside each copy).
+/// The data belongs to the repository, so a missing file fails the test rather than skipping it.
+pub fn data(rel: &str) -> PathBuf {
+    let p = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data")
+        .join(rel);
+    assert!(
+        p.exists(),
+        "test data {} is missing; it is part of the repository (see tests/data/README.md)",
+        p.display()
     );
-    None
+    p
 }
 
 /// A project script's path.
