@@ -152,8 +152,10 @@ impl NetworkArgs {
         })
     }
 
-    /// Copies the damage-zone settings into a job.
+    /// Copies the settings beyond reading roads (zones, reports, budget, the cost table's file…)
+    /// into a job.
     pub fn apply_zones(&self, job: &mut PlanJob) {
+        job.cost_table_file = self.cost_table.clone();
         job.zones = self
             .damage_zones
             .clone()
