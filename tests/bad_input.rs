@@ -402,7 +402,11 @@ fn every_case_is_listed_in_the_docs() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR"));
     let docs = std::fs::read_to_string(root.join("docs/bad-inputs.md")).unwrap();
     let mut names = Vec::new();
-    for f in ["tests/bad_input.rs", "tests/bad_input_more.rs"] {
+    for f in [
+        "tests/bad_input.rs",
+        "tests/bad_input_more.rs",
+        "tests/batch_integrity.rs",
+    ] {
         names.extend(case_names(&std::fs::read_to_string(root.join(f)).unwrap()));
     }
     assert!(names.len() >= 40, "only {} cases", names.len());

@@ -2,6 +2,7 @@
 #![allow(dead_code)]
 
 pub mod bad;
+pub mod batch;
 pub mod exact;
 
 use std::path::{Path, PathBuf};
