@@ -81,7 +81,7 @@ case!(manifest_setting_out_of_range_in_defaults, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "\"Vale\"", "\"budget\"", "-5"],
+        &["m.toml", "\"Vale\"", "\"budget\" (from [defaults])", "-5"],
     );
 });
 

@@ -134,11 +134,14 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
         }
     }
     crate::job::validate(&job).map_err(|err| match err {
-        crate::ingest::IngestError::Setting { name, message } => format!(
-            "{}: \"{}\": {message}",
-            e.place,
-            name.trim_start_matches('-').replace('-', "_")
-        ),
+        crate::ingest::IngestError::Setting { name, message } => {
+            let key = name.trim_start_matches('-').replace('-', "_");
+            let from = match merged.get(key.as_str()) {
+                Some((_, place)) if *place != e.place => format!(" (from {place})"),
+                _ => String::new(),
+            };
+            format!("{}: \"{key}\"{from}: {message}", e.place)
+        }
         other => format!("{}: {other}", e.place),
     })?;
     Ok(District {
