@@ -174,7 +174,12 @@ case!(forged_record_names_nothing, |d| {
     file(&out, ".reknit-outputs", "network.geojson\n");
     file(&out, "network.geojson", "the analyst's layer");
     let args = strings(&["check", "--roads", &s(&roads), "--out", &s(&out), "--force"]);
-    fails_with(d, &out, &args, &["network.geojson"]);
+    fails_with(
+        d,
+        &out,
+        &args,
+        &[".reknit-outputs", "not a record reknit wrote"],
+    );
 });
 
 #[test]
@@ -257,4 +262,78 @@ fn neighbouring_outputs_run_at_once() {
         .filter(|n| n.starts_with('.'))
         .collect();
     assert!(left.is_empty(), "left behind: {left:?}");
+}
+
+#[test]
+fn every_command_changes_nothing_it_did_not_create() {
+    // The whole tree around the inputs is compared before and after each command, first into new
+    // folders, then replacing with --force; only the command's own output folder may differ.
+    use common::batch::{corner_sites, grid_roads, manifest};
+    let t = tmp();
+    let d = t.path();
+    let data = d.join("data");
+    std::fs::create_dir(&data).unwrap();
+    let roads = grid_roads(&data, "roads.geojson");
+    let sites = corner_sites(&data, "sites.geojson");
+    let table = file(&data, "costs.toml", "[categories]\ndebris = 0.3\n");
+    file(&data, "notes.txt", "the analyst's notes");
+    let m = manifest(
+        &d.join("region"),
+        "region.toml",
+        "[defaults]\ncost_table = \"../data/costs.toml\"\n\n[[district]]\nname = \"north\"\nroads = \"../data/roads.geojson\"\nsites = \"../data/sites.geojson\"\n\n[[district]]\nname = \"south\"\nroads = \"../data/roads.geojson\"\n",
+    );
+    let plan = |out: &Path| {
+        strings(&[
+            "plan",
+            "--roads",
+            &s(&roads),
+            "--sites",
+            &s(&sites),
+            "--cost-table",
+            &s(&table),
+            "--out",
+            &s(out),
+            "-q",
+        ])
+    };
+    let check = |out: &Path| strings(&["check", "--roads", &s(&roads), "--out", &s(out), "-q"]);
+    let demo = |out: &Path| strings(&["demo", "--out", &s(out), "-q"]);
+    let batch = |out: &Path| strings(&["batch", &s(&m), "--out", &s(out), "-q"]);
+    type Cmd<'a> = (&'a str, Box<dyn Fn(&Path) -> Vec<String> + 'a>);
+    let commands: Vec<Cmd> = vec![
+        ("plan", Box::new(plan)),
+        ("check", Box::new(check)),
+        ("demo", Box::new(demo)),
+        ("batch", Box::new(batch)),
+    ];
+    for force in [false, true] {
+        for (name, args) in &commands {
+            let out = d.join(format!("{name}-out"));
+            let mut a = args(&out);
+            if force {
+                a.push("--force".into());
+            }
+            runs_ok(d, &out, &a);
+        }
+    }
+    // Shards into one folder, then merge: merge may add only its own two files there.
+    let shared = d.join("shared");
+    for k in ["1/2", "2/2"] {
+        runs_ok(
+            d,
+            &shared,
+            &strings(&["batch", &s(&m), "--out", &s(&shared), "-q", "--shard", k]),
+        );
+    }
+    let before = snapshot(d, Path::new("/nonexistent"));
+    let o = run(&["merge", &s(&shared)]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let mut after = snapshot(d, Path::new("/nonexistent"));
+    for own in ["batch-summary.json", "batch-summary.csv"] {
+        assert!(
+            after.remove(&shared.join(own)).is_some(),
+            "merge wrote {own}"
+        );
+    }
+    assert_same(&before, &after);
 }

@@ -12,38 +12,17 @@
 //! sites = "north/sites.geojson"
 //! hub = "S1"
 //! ```
-//! CSV: a header with `name`, `roads` and any setting as columns; empty cells take the defaults.
-//! Paths are relative to the manifest's folder.
+//! CSV: a header of key names and one row per district; empty cells take the defaults.
+//! Every key ([`super::keys::KEYS`]) is accepted in `[defaults]` and in a district alike (except
+//! `name`, which is per district); paths in either are relative to the manifest's folder.
 
 use super::BatchError;
+use super::keys::{self, Key};
+use super::values::{self, Value};
 use crate::ingest::source::Source;
 use crate::job::PlanJob;
-use crate::solve::MstAlgorithm;
-use crate::solve::steiner::Effort;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
-
-/// Settings a manifest may give, for all districts (`[defaults]`) or one.
-pub const SETTING_KEYS: &[&str] = &[
-    "snap",
-    "damage_field",
-    "default_damage",
-    "closed_value",
-    "id_field",
-    "mst",
-    "max_attach",
-    "hub",
-    "whole_network",
-    "effort",
-    "site_id_field",
-    "site_name_field",
-    "priority_field",
-    "lon_column",
-    "lat_column",
-    "damage_zones",
-    "zone_damage_field",
-    "category_field",
-];
 
 /// One district of a manifest, ready to run.
 #[derive(Debug, Clone)]
@@ -58,103 +37,146 @@ pub struct District {
     pub job: PlanJob,
 }
 
-/// A setting value as read from TOML or CSV.
+/// A manifest read and checked: its districts and its identity.
 #[derive(Debug, Clone)]
-enum Val {
-    Text(String),
-    Num(f64),
-    Bool(bool),
+pub struct Manifest {
+    /// The districts in manifest order.
+    pub districts: Vec<District>,
+    /// SHA-256 of the reknit version, the manifest's format and its bytes: the shards of one
+    /// batch share it, and `merge` refuses summaries that do not.
+    pub id: String,
 }
 
-/// Reads a TOML (or, by extension, CSV) manifest.
-pub fn read_manifest(path: &Path) -> Result<Vec<District>, BatchError> {
-    let text = std::fs::read_to_string(path).map_err(|e| BatchError::Manifest {
-        path: path.to_path_buf(),
-        message: format!("cannot read: {e}"),
-    })?;
+/// Values given in one place (`[defaults]`, a district table, a CSV row) by key.
+struct Entry {
+    /// Where, for messages: `[defaults]`, `district 3 ("Vale")`, `row 4 ("Vale")`.
+    place: String,
+    values: BTreeMap<&'static str, Value>,
+}
+
+/// Reads a TOML (or, by extension, CSV) manifest and checks every district's settings.
+pub fn read_manifest(path: &Path) -> Result<Manifest, BatchError> {
     let err = |message: String| BatchError::Manifest {
         path: path.to_path_buf(),
         message,
     };
+    let bytes = std::fs::read(path).map_err(|e| err(format!("cannot read: {e}")))?;
+    let text = std::str::from_utf8(&bytes).map_err(|e| err(format!("not UTF-8 text ({e})")))?;
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let is_csv = path
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("csv"));
     let (defaults, entries) = if is_csv {
-        read_csv(&text).map_err(err)?
+        (None, read_csv(text, &base).map_err(err)?)
     } else {
-        read_toml(&text).map_err(err)?
+        read_toml(text, &base).map_err(err)?
     };
     if entries.is_empty() {
         return Err(err("the manifest lists no districts".into()));
     }
     let mut seen: BTreeMap<String, String> = BTreeMap::new();
-    let mut out = Vec::new();
-    for (index, mut e) in entries.into_iter().enumerate() {
-        let at = |m: String| err(format!("district {}: {m}", index + 1));
-        let name = match e.remove("name") {
-            Some(Val::Text(n)) if !n.trim().is_empty() => n,
-            Some(_) => return Err(at("\"name\" must be non-empty text".into())),
-            None => return Err(at("has no \"name\"".into())),
-        };
-        let at = |m: String| err(format!("district {:?}: {m}", name));
-        let folder = super::names::folder_name(&name);
-        if let Some(other) = seen.insert(folder.to_lowercase(), name.clone()) {
-            return Err(at(format!(
-                "its folder name {folder:?} collides with district {other:?}; rename one of them"
+    let mut districts = Vec::with_capacity(entries.len());
+    for (index, e) in entries.iter().enumerate() {
+        let d = district(index, defaults.as_ref(), e).map_err(err)?;
+        if let Some(other) = seen.insert(d.folder.to_lowercase(), d.name.clone()) {
+            return Err(err(format!(
+                "{}: its folder name {:?} collides with district {other:?}; rename one of them",
+                e.place, d.folder
             )));
         }
-        let roads = match e.remove("roads") {
-            Some(Val::Text(p)) if !p.trim().is_empty() => base.join(p.trim()),
-            _ => return Err(at("has no \"roads\" path".into())),
-        };
-        let sites = match e.remove("sites") {
-            Some(Val::Text(p)) if !p.trim().is_empty() => Some(base.join(p.trim())),
-            None => None,
-            Some(Val::Text(_)) => None,
-            Some(_) => return Err(at("\"sites\" must be a path".into())),
-        };
-        let zones = match e.remove("damage_zones") {
-            Some(Val::Text(p)) if !p.trim().is_empty() => Some(base.join(p.trim())),
-            None => None,
-            Some(_) => return Err(at("\"damage_zones\" must be a path".into())),
-        };
-        let mut job = PlanJob::new(Source::File(roads), PathBuf::new());
-        job.sites = sites.map(Source::File);
-        job.zones = zones.map(Source::File);
-        apply(&mut job, &defaults).map_err(|m| err(format!("[defaults]: {m}")))?;
-        apply(&mut job, &e).map_err(at)?;
-        out.push(District {
-            index,
-            name,
-            folder,
-            job,
-        });
+        districts.push(d);
     }
-    Ok(out)
+    Ok(Manifest {
+        districts,
+        id: identity(if is_csv { "csv" } else { "toml" }, &bytes),
+    })
 }
 
-fn check_keys(table: &BTreeMap<String, Val>, extra: &[&str]) -> Result<(), String> {
-    for k in table.keys() {
-        if !SETTING_KEYS.contains(&k.as_str()) && !extra.contains(&k.as_str()) {
-            let mut known: Vec<&str> = extra.to_vec();
-            known.extend_from_slice(SETTING_KEYS);
-            return Err(format!(
-                "unknown key {k:?}; known keys: {}",
-                known.join(", ")
-            ));
+/// SHA-256 of the reknit version, the manifest's format and its bytes.
+fn identity(format: &str, bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    let mut h = Sha256::new();
+    h.update(format!("reknit {}\n{format}\n", env!("CARGO_PKG_VERSION")).as_bytes());
+    h.update(bytes);
+    h.finalize().iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// One district's job: the defaults, then its own values over them, applied key by key through
+/// the one table, then checked as `reknit plan` checks its flags.
+fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<District, String> {
+    let mut merged: BTreeMap<&'static str, (&Value, &str)> = BTreeMap::new();
+    for entry in defaults.into_iter().chain([e]) {
+        for (k, v) in &entry.values {
+            merged.insert(k, (v, &entry.place));
         }
     }
-    Ok(())
+    let Some((Value::Text(name), _)) = merged.get("name").copied() else {
+        return Err(format!("{}: has no \"name\"", e.place));
+    };
+    let name = name.clone();
+    if !merged.contains_key("roads") {
+        return Err(format!(
+            "{}: has no \"roads\" (in the district or in [defaults])",
+            e.place
+        ));
+    }
+    let mut job = PlanJob::new(Source::File(PathBuf::new()), PathBuf::new());
+    for k in keys::KEYS {
+        if let Some((v, place)) = merged.get(k.name) {
+            (k.set)(&mut job, v).map_err(|m| {
+                let from = if *place == e.place {
+                    String::new()
+                } else {
+                    format!(" (from {place})")
+                };
+                format!("{}: \"{}\"{from}: {m}", e.place, k.name)
+            })?;
+        }
+    }
+    crate::job::validate(&job).map_err(|err| match err {
+        crate::ingest::IngestError::Setting { name, message } => {
+            let key = name.trim_start_matches('-').replace('-', "_");
+            let from = match merged.get(key.as_str()) {
+                Some((_, place)) if *place != e.place => format!(" (from {place})"),
+                _ => String::new(),
+            };
+            format!("{}: \"{key}\"{from}: {message}", e.place)
+        }
+        other => format!("{}: {other}", e.place),
+    })?;
+    Ok(District {
+        index,
+        folder: super::names::folder_name(&name),
+        name,
+        job,
+    })
 }
 
-/// Settings by key.
-type Table = BTreeMap<String, Val>;
+/// Checks one key and its value given in `place`.
+fn entry_value(
+    place: &str,
+    name: &str,
+    read: impl FnOnce(&'static Key) -> Result<Value, String>,
+) -> Result<(&'static str, Value), String> {
+    let k = keys::find(name).ok_or_else(|| {
+        format!(
+            "{place}: unknown key {name:?}; known keys: {}",
+            keys::known()
+        )
+    })?;
+    if k.district_only && place == "[defaults]" {
+        return Err(format!(
+            "[defaults]: {name:?} is given per district, not in [defaults]"
+        ));
+    }
+    let v = read(k).map_err(|m| format!("{place}: {name:?} {m}"))?;
+    Ok((k.name, v))
+}
 
-/// The defaults and one table per district.
-type Parsed = (Table, Vec<Table>);
+/// The defaults and one entry per district.
+type Parsed = (Option<Entry>, Vec<Entry>);
 
-fn read_toml(text: &str) -> Result<Parsed, String> {
+fn read_toml(text: &str, base: &Path) -> Result<Parsed, String> {
     let doc: toml::Table = text
         .parse()
         .map_err(|e: toml::de::Error| format!("not valid TOML: {e}"))?;
@@ -165,44 +187,42 @@ fn read_toml(text: &str) -> Result<Parsed, String> {
             ));
         }
     }
-    let table = |v: &toml::Value, what: &str| -> Result<BTreeMap<String, Val>, String> {
+    let entry = |v: &toml::Value, place: String| -> Result<Entry, String> {
         let t = v
             .as_table()
-            .ok_or_else(|| format!("{what} must be a table"))?;
-        t.iter()
-            .map(|(k, v)| {
-                let val = match v {
-                    toml::Value::String(s) => Val::Text(s.clone()),
-                    toml::Value::Integer(i) => Val::Num(*i as f64),
-                    toml::Value::Float(f) => Val::Num(*f),
-                    toml::Value::Boolean(b) => Val::Bool(*b),
-                    other => return Err(format!("{what}: {k:?} has an unsupported value {other}")),
-                };
-                Ok((k.clone(), val))
-            })
-            .collect()
+            .ok_or_else(|| format!("{place} must be a table"))?;
+        let values = t
+            .iter()
+            .map(|(k, v)| entry_value(&place, k, |key| values::from_toml(key.kind, v, base)))
+            .collect::<Result<_, _>>()?;
+        Ok(Entry { place, values })
     };
     let defaults = match doc.get("defaults") {
-        Some(d) => table(d, "[defaults]")?,
-        None => BTreeMap::new(),
+        Some(d) => Some(entry(d, "[defaults]".into())?),
+        None => None,
     };
-    check_keys(&defaults, &[])?;
     let mut entries = Vec::new();
     if let Some(list) = doc.get("district") {
         let arr = list
             .as_array()
             .ok_or("\"district\" must be an array of tables ([[district]])")?;
         for (i, d) in arr.iter().enumerate() {
-            let t = table(d, &format!("district {}", i + 1))?;
-            check_keys(&t, &["name", "roads", "sites"])
-                .map_err(|m| format!("district {}: {m}", i + 1))?;
-            entries.push(t);
+            let name = d.get("name").and_then(|n| n.as_str());
+            entries.push(entry(d, place("district", i + 1, name))?);
         }
     }
     Ok((defaults, entries))
 }
 
-fn read_csv(text: &str) -> Result<Parsed, String> {
+/// `district 3 ("Vale")` or `district 3` for messages.
+fn place(what: &str, n: usize, name: Option<&str>) -> String {
+    match name {
+        Some(name) => format!("{what} {n} ({name:?})"),
+        None => format!("{what} {n}"),
+    }
+}
+
+fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let headers: Vec<String> = r
         .headers()
@@ -210,86 +230,38 @@ fn read_csv(text: &str) -> Result<Parsed, String> {
         .iter()
         .map(|h| h.trim().to_string())
         .collect();
+    let mut columns: Vec<&'static Key> = Vec::with_capacity(headers.len());
+    for h in &headers {
+        let k = keys::find(h).ok_or_else(|| {
+            format!(
+                "the header: unknown column {h:?}; known keys: {}",
+                keys::known()
+            )
+        })?;
+        if columns.iter().any(|c| c.name == k.name) {
+            return Err(format!("the header: column {h:?} appears twice"));
+        }
+        columns.push(k);
+    }
+    let name_col = columns.iter().position(|k| k.name == "name");
     let mut entries = Vec::new();
     for (i, rec) in r.records().enumerate() {
         let rec = rec.map_err(|e| format!("not valid CSV: {e}"))?;
-        let mut t = BTreeMap::new();
-        for (h, v) in headers.iter().zip(rec.iter()) {
-            let v = v.trim();
-            if v.is_empty() {
+        let name = name_col
+            .and_then(|c| rec.get(c))
+            .filter(|n| !n.trim().is_empty());
+        let place = place("row", i + 2, name.map(str::trim));
+        let mut values = BTreeMap::new();
+        for (k, cell) in columns.iter().zip(rec.iter()) {
+            if cell.trim().is_empty() {
                 continue;
             }
-            let val = match (h.as_str(), v) {
-                ("whole_network", "true") => Val::Bool(true),
-                ("whole_network", "false") => Val::Bool(false),
-                (_, v) => match v.parse::<f64>() {
-                    Ok(x) if !["name", "roads", "sites", "hub"].contains(&h.as_str()) => {
-                        Val::Num(x)
-                    }
-                    _ => Val::Text(v.to_string()),
-                },
-            };
-            t.insert(h.clone(), val);
+            let (k, v) = entry_value(&place, k.name, |key| {
+                values::from_cell(key.kind, cell, base)
+            })?;
+            values.insert(k, v);
         }
-        check_keys(&t, &["name", "roads", "sites"]).map_err(|m| format!("row {}: {m}", i + 2))?;
-        entries.push(t);
+        entries.push(Entry { place, values });
     }
-    Ok((BTreeMap::new(), entries))
-}
-
-fn apply(job: &mut PlanJob, t: &BTreeMap<String, Val>) -> Result<(), String> {
-    let num = |k: &str, v: &Val| match v {
-        Val::Num(x) => Ok(*x),
-        _ => Err(format!("{k:?} must be a number")),
-    };
-    let text = |k: &str, v: &Val| match v {
-        Val::Text(s) => Ok(s.clone()),
-        Val::Num(x) => Ok(x.to_string()),
-        Val::Bool(_) => Err(format!("{k:?} must be text")),
-    };
-    for (k, v) in t {
-        match k.as_str() {
-            "snap" => job.road_settings.snap_m = num(k, v)?,
-            "damage_field" => job.road_settings.damage.field = text(k, v)?,
-            "default_damage" => job.road_settings.damage.default = num(k, v)?,
-            "closed_value" => job.road_settings.damage.closed_value = text(k, v)?,
-            "id_field" => job.road_settings.id_field = Some(text(k, v)?),
-            "mst" => {
-                job.mst = match text(k, v)?.as_str() {
-                    "kruskal" => MstAlgorithm::Kruskal,
-                    "prim" => MstAlgorithm::Prim,
-                    o => return Err(format!("\"mst\" is {o:?}; use \"kruskal\" or \"prim\"")),
-                }
-            }
-            "max_attach" => job.max_attach_m = num(k, v)?,
-            "hub" => job.hub = Some(text(k, v)?),
-            "whole_network" => {
-                job.whole_network = match v {
-                    Val::Bool(b) => *b,
-                    _ => return Err("\"whole_network\" must be true or false".into()),
-                }
-            }
-            "effort" => {
-                job.effort = match text(k, v)?.as_str() {
-                    "quick" => Effort::Quick,
-                    "normal" => Effort::Normal,
-                    "thorough" => Effort::Thorough,
-                    o => {
-                        return Err(format!(
-                            "\"effort\" is {o:?}; use quick, normal or thorough"
-                        ));
-                    }
-                }
-            }
-            "site_id_field" => job.site_settings.id_field = Some(text(k, v)?),
-            "site_name_field" => job.site_settings.name_field = Some(text(k, v)?),
-            "priority_field" => job.site_settings.priority_field = Some(text(k, v)?),
-            "lon_column" => job.site_settings.lon_column = Some(text(k, v)?),
-            "lat_column" => job.site_settings.lat_column = Some(text(k, v)?),
-            "zone_damage_field" => job.zone_damage.field = text(k, v)?,
-            "category_field" => job.road_settings.category_field = Some(text(k, v)?),
-            _ => {}
-        }
-    }
-    Ok(())
+    Ok(entries)
 }

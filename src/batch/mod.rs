@@ -4,16 +4,21 @@
 //! A district's failure never stops the others; each writes its own all-or-nothing output set into
 //! its own folder, and the batch summary lists every district with its status.
 
+pub mod keys;
 pub mod manifest;
+pub mod merge;
 pub mod names;
+pub mod preflight;
 pub mod report;
+pub mod resume;
 pub mod shard;
+pub mod values;
 
-use crate::job::{job_fingerprint, run_plan};
+use crate::job::run_plan;
 use crate::progress::Progress;
 use manifest::District;
 use report::{BatchSummary, Row};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
@@ -59,8 +64,16 @@ pub struct BatchOptions {
 
 /// Runs the batch; returns the summary that was written (rows of this shard only when sharded).
 pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
-    let districts = manifest::read_manifest(&opts.manifest)?;
+    let manifest = manifest::read_manifest(&opts.manifest)?;
+    let districts = manifest.districts;
     let total = districts.len();
+    let stem = match opts.shard {
+        Some(s) => format!("batch-summary-{}-of-{}", s.index, s.count),
+        None => "batch-summary".to_string(),
+    };
+    // Every check that can refuse the batch comes before anything is written.
+    preflight::check(&opts.manifest, &opts.out, &districts)?;
+    report::check_replaceable(&opts.out, &stem)?;
     let mine: Vec<District> = match opts.shard {
         Some(s) => {
             let works: Vec<u64> = districts.iter().map(shard::work).collect();
@@ -121,13 +134,10 @@ pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
     rows.sort_by_key(|r| r.index);
     let summary = BatchSummary {
         districts: total,
+        batch_id: manifest.id,
         shard: opts.shard.map(|s| format!("{}/{}", s.index, s.count)),
         failed: rows.iter().filter(|r| r.status == "failed").count(),
         rows,
-    };
-    let stem = match opts.shard {
-        Some(s) => format!("batch-summary-{}-of-{}", s.index, s.count),
-        None => "batch-summary".to_string(),
     };
     report::write(&opts.out, &stem, &summary)?;
     Ok(summary)
@@ -171,7 +181,7 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
         error: Some(message),
     };
     if opts.resume
-        && let Some(existing) = up_to_date(&out, &job)
+        && let Some(existing) = resume::up_to_date(&out, &job)
     {
         crate::export::staging::remove_stale(&out);
         return Row::from_summary(d.index, &d.name, &d.folder, "unchanged", &existing);
@@ -191,13 +201,4 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
             failed("internal error (a bug): the district was abandoned, nothing written".into())
         }
     }
-}
-
-/// The existing summary when the district's outputs are complete and were made from the same inputs
-/// and settings.
-fn up_to_date(out: &Path, job: &crate::job::PlanJob) -> Option<serde_json::Value> {
-    let text = std::fs::read_to_string(out.join(crate::export::staging::COMPLETE_MARKER)).ok()?;
-    let v: serde_json::Value = serde_json::from_str(&text).ok()?;
-    let recorded = v.get("fingerprint")?.as_str()?;
-    (job_fingerprint(job).ok()? == recorded).then_some(v)
 }

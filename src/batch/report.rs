@@ -3,6 +3,7 @@
 use super::BatchError;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
+use std::sync::atomic::{AtomicU64, Ordering};
 
 /// One district's line in the batch summary.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -69,6 +70,8 @@ impl Row {
 pub struct BatchSummary {
     /// Districts in the manifest.
     pub districts: usize,
+    /// The manifest's identity ([`super::manifest::Manifest::id`]): equal in every shard of a batch.
+    pub batch_id: String,
     /// `K/N` for one shard's summary, null for a whole batch (or a merge of all shards).
     pub shard: Option<String>,
     /// Districts that failed.
@@ -126,69 +129,61 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
         .map_err(|e| io(std::io::Error::other(e.to_string())))?;
     for (ext, bytes) in [("json", json.into_bytes()), ("csv", csv_bytes)] {
         let target = dir.join(format!("{stem}.{ext}"));
-        let tmp = dir.join(format!(".{stem}.{ext}.tmp"));
-        std::fs::write(&tmp, bytes).map_err(io)?;
-        std::fs::rename(&tmp, &target).map_err(io)?;
+        // A name no other process (a concurrent shard) and no other write of this one uses.
+        let tmp = dir.join(format!(
+            ".{stem}.{ext}.{}-{}.tmp",
+            std::process::id(),
+            TMP_COUNT.fetch_add(1, Ordering::Relaxed)
+        ));
+        let done = std::fs::write(&tmp, bytes).and_then(|()| std::fs::rename(&tmp, &target));
+        if let Err(e) = done {
+            let _ = std::fs::remove_file(&tmp);
+            return Err(io(e));
+        }
     }
     Ok(())
 }
 
-/// Joins every `batch-summary-K-of-N.json` in `dir` into `batch-summary.{json,csv}`.
-pub fn merge(dir: &Path) -> Result<BatchSummary, BatchError> {
-    let err = |message: String| BatchError::Output {
-        path: dir.to_path_buf(),
-        message,
-    };
-    let mut parts: Vec<(usize, usize, BatchSummary)> = Vec::new();
-    let rd = std::fs::read_dir(dir).map_err(|e| err(format!("cannot read the folder: {e}")))?;
-    for entry in rd.flatten() {
-        let name = entry.file_name().to_string_lossy().into_owned();
-        let Some(mid) = name
-            .strip_prefix("batch-summary-")
-            .and_then(|n| n.strip_suffix(".json"))
-        else {
-            continue;
+static TMP_COUNT: AtomicU64 = AtomicU64::new(0);
+
+/// The CSV header of a batch summary.
+const CSV_HEADER: &str = "index,name,folder,status,";
+
+/// Refuses to write `<stem>.json` or `<stem>.csv` into `dir` when either exists and is not a batch
+/// summary (a file reknit did not write is never replaced).
+pub fn check_replaceable(dir: &Path, stem: &str) -> Result<(), BatchError> {
+    for ext in ["json", "csv"] {
+        let p = dir.join(format!("{stem}.{ext}"));
+        let meta = match std::fs::symlink_metadata(&p) {
+            Ok(m) => m,
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => continue,
+            Err(e) => {
+                return Err(BatchError::Output {
+                    path: p,
+                    message: e.to_string(),
+                });
+            }
         };
-        let Some((k, n)) = mid.split_once("-of-") else {
-            continue;
+        let text = if meta.is_file() {
+            std::fs::read(&p).ok()
+        } else {
+            None
         };
-        let (Ok(k), Ok(n)) = (k.parse::<usize>(), n.parse::<usize>()) else {
-            continue;
-        };
-        let text =
-            std::fs::read_to_string(entry.path()).map_err(|e| err(format!("{name}: {e}")))?;
-        let s: BatchSummary =
-            serde_json::from_str(&text).map_err(|e| err(format!("{name}: {e}")))?;
-        parts.push((k, n, s));
+        let ours = text.is_some_and(|t| match ext {
+            "json" => serde_json::from_slice::<serde_json::Value>(&t).is_ok_and(|v| {
+                v.get("districts").is_some_and(|d| d.is_u64())
+                    && v.get("rows").is_some_and(|r| r.is_array())
+            }),
+            _ => t.starts_with(CSV_HEADER.as_bytes()),
+        });
+        if !ours {
+            return Err(BatchError::Output {
+                path: p,
+                message: "exists and is not a batch summary reknit wrote; it is left as it is: \
+                          move it away or choose another folder"
+                    .into(),
+            });
+        }
     }
-    if parts.is_empty() {
-        return Err(err("no batch-summary-K-of-N.json files to merge".into()));
-    }
-    let n = parts[0].1;
-    if parts.iter().any(|p| p.1 != n) {
-        return Err(err(
-            "shard summaries of different shard counts are mixed".into()
-        ));
-    }
-    let missing: Vec<String> = (1..=n)
-        .filter(|k| !parts.iter().any(|p| p.0 == *k))
-        .map(|k| format!("{k}/{n}"))
-        .collect();
-    if !missing.is_empty() {
-        return Err(err(format!(
-            "shards not yet finished: {}",
-            missing.join(", ")
-        )));
-    }
-    let districts = parts[0].2.districts;
-    let mut rows: Vec<Row> = parts.into_iter().flat_map(|p| p.2.rows).collect();
-    rows.sort_by_key(|r| r.index);
-    let merged = BatchSummary {
-        districts,
-        shard: None,
-        failed: rows.iter().filter(|r| r.status == "failed").count(),
-        rows,
-    };
-    write(dir, "batch-summary", &merged)?;
-    Ok(merged)
+    Ok(())
 }

@@ -6,7 +6,11 @@
 
 use super::manifest::District;
 
-/// A shard `K/N`, K counted from 1.
+/// The largest shard count accepted: array jobs are far smaller, and a larger count is a typing
+/// mistake that would only give empty shards.
+pub const MAX_SHARDS: usize = 100_000;
+
+/// A shard `K/N`, K counted from 1, N at most [`MAX_SHARDS`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct Shard {
     /// This shard, 1..=count.
@@ -25,6 +29,12 @@ impl std::str::FromStr for Shard {
         if k == 0 || n == 0 || k > n {
             return Err(bad());
         }
+        if n > MAX_SHARDS {
+            return Err(format!(
+                "{s:?}: at most {MAX_SHARDS} shards (N); a shard count above the number of \
+                 districts only gives empty shards"
+            ));
+        }
         Ok(Shard { index: k, count: n })
     }
 }
@@ -41,14 +51,20 @@ pub fn work(d: &District) -> u64 {
 
 /// Which shard (0-based) each district belongs to, given its work.
 pub fn assign(works: &[u64], count: usize) -> Vec<usize> {
+    use std::cmp::Reverse;
     let mut order: Vec<usize> = (0..works.len()).collect();
     order.sort_by(|&a, &b| works[b].cmp(&works[a]).then(a.cmp(&b)));
-    let mut load = vec![0u64; count];
+    // Only shards that can receive a district need a place in the heap of (load, shard).
+    let used = count.min(works.len()).max(1);
+    let mut heap: std::collections::BinaryHeap<Reverse<(u64, usize)>> =
+        (0..used).map(|s| Reverse((0, s))).collect();
     let mut out = vec![0; works.len()];
     for i in order {
-        let s = (0..count).min_by_key(|&s| (load[s], s)).unwrap_or(0);
-        load[s] += works[i].max(1);
+        let Some(Reverse((load, s))) = heap.pop() else {
+            break;
+        };
         out[i] = s;
+        heap.push(Reverse((load + works[i].max(1), s)));
     }
     out
 }
@@ -66,6 +82,14 @@ mod tests {
         assert!("0/4".parse::<Shard>().is_err());
         assert!("5/4".parse::<Shard>().is_err());
         assert!("x".parse::<Shard>().is_err());
+        assert!("1/100000".parse::<Shard>().is_ok());
+        let e = "1/100000000000".parse::<Shard>().unwrap_err();
+        assert!(e.contains("at most 100000"), "{e}");
+        assert_eq!(
+            assign(&[3, 2], 100_000),
+            [0, 1],
+            "more shards than districts"
+        );
         let a = assign(&[10, 1, 1, 8, 1, 1], 2);
         let load = |s| {
             (0..6)

@@ -2,17 +2,18 @@
 
 use clap::Args;
 use reknit::batch::shard::Shard;
-use reknit::batch::{BatchOptions, report, run_batch};
+use reknit::batch::{BatchOptions, merge as merge_shards, run_batch};
 use reknit::progress::Progress;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
 /// Plan every district of a manifest, in parallel; one failed district never stops the others.
 ///
-/// The manifest is TOML ([defaults] and one [[district]] table each, with name, roads and optionally
-/// sites and any setting) or CSV with the same column names; paths are relative to the manifest.
-/// Each district writes into OUT/<name>/; OUT/batch-summary.csv and .json list every district.
-/// Exit code 0 when all succeed, 1 when some failed (listed), 2 when the manifest is unusable.
+/// The manifest is TOML ([defaults] and one [[district]] table each, with name, roads and any
+/// `plan` option as a key: --max-attach is max_attach) or CSV with the keys as columns; paths are
+/// relative to the manifest. Each district writes into OUT/<name>/; OUT/batch-summary.csv and .json
+/// list every district. Exit code 0 when all succeed, 1 when some failed (listed), 2 when the batch
+/// cannot run (an unusable manifest, an output folder that would hold an input): nothing is written.
 #[derive(Debug, Args)]
 pub struct BatchArgs {
     /// The manifest (TOML, or CSV by extension).
@@ -26,12 +27,14 @@ pub struct BatchArgs {
     #[arg(long, value_name = "N")]
     jobs: Option<usize>,
 
-    /// Run only shard K of N (K from 1), splitting the districts by input size the same way on
-    /// every machine; each shard writes batch-summary-K-of-N.*; join them with `reknit merge`.
+    /// Run only shard K of N (K from 1, N at most 100000), splitting the districts by input size the
+    /// same way on every machine; each shard writes batch-summary-K-of-N.*; join them with
+    /// `reknit merge`.
     #[arg(long, value_name = "K/N")]
     shard: Option<Shard>,
 
-    /// Skip districts whose outputs are complete and whose inputs and settings are unchanged.
+    /// Skip districts whose outputs are complete (every file their summary.json lists) and whose
+    /// input files (Shapefile sidecars too) and settings are unchanged; run the others.
     #[arg(long)]
     resume: bool,
 
@@ -49,6 +52,9 @@ pub struct BatchArgs {
 }
 
 /// Join the batch-summary-K-of-N files of sharded runs into one batch-summary.csv and .json.
+///
+/// Refused, with nothing written, unless every shard of one batch (same manifest, same shard count)
+/// is there and every district is in exactly one shard summary; the shard summaries are only read.
 #[derive(Debug, Args)]
 pub struct MergeArgs {
     /// The shared output folder of the shards.
@@ -101,7 +107,7 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
 }
 
 pub fn merge(a: MergeArgs) -> anyhow::Result<ExitCode> {
-    let s = report::merge(&a.dir)?;
+    let s = merge_shards::merge(&a.dir)?;
     eprintln!(
         "merged {} district(s) into {}: {} failed",
         s.rows.len(),

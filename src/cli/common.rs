@@ -33,7 +33,12 @@ pub struct NetworkArgs {
     pub damage_field: String,
 
     /// Damage factor for roads without a damage value (1.0: assume the road needs full repair).
-    #[arg(long, value_name = "FACTOR", default_value_t = 1.0, allow_negative_numbers = true)]
+    #[arg(
+        long,
+        value_name = "FACTOR",
+        default_value_t = 1.0,
+        allow_negative_numbers = true
+    )]
     pub default_damage: f64,
 
     /// Damage value (text) that marks a road impassable: kept on the map, left out of the plan.

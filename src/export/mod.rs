@@ -105,6 +105,21 @@ pub struct Outputs<'a> {
     pub summary: &'a Summary,
 }
 
+/// The files of one output set in the order of [`staging::OUTPUT_NAMES`] (`summary.json` last):
+/// the layers every run writes plus the sites, fragility and backup layers when there are any.
+pub fn output_names(sites: bool, fragility: bool, backup: bool) -> Vec<&'static str> {
+    staging::OUTPUT_NAMES
+        .iter()
+        .copied()
+        .filter(|n| match *n {
+            "sites.geojson" => sites,
+            "fragility.geojson" => fragility,
+            "backup.geojson" => backup,
+            _ => true,
+        })
+        .collect()
+}
+
 /// Writes `network.geojson`, `plan.geojson`, `qa.geojson`, `sites.geojson` (when there are sites)
 /// and `summary.json` into `out` as one set.
 pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Result<(), ExportError> {
@@ -196,6 +211,18 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")
     })?;
+    let mut listed = o.summary.outputs.clone();
+    let mut written = st.names();
+    listed.sort_unstable();
+    written.sort_unstable();
+    if listed != written {
+        return Err(ExportError::Io {
+            path: out.given().join(staging::COMPLETE_MARKER),
+            source: std::io::Error::other(format!(
+                "internal error (a bug): summary.json lists {listed:?} but {written:?} were written"
+            )),
+        });
+    }
     st.commit()
 }
 

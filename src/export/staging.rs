@@ -189,6 +189,14 @@ impl Staging {
         Ok(())
     }
 
+    /// The names of the files written so far.
+    pub fn names(&self) -> Vec<String> {
+        self.written
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .clone()
+    }
+
     /// Puts the staged set in place of any earlier one (see the module notes).
     pub fn commit(mut self) -> Result<(), ExportError> {
         let err = |path: PathBuf| move |source| ExportError::Io { path, source };

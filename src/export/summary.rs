@@ -180,6 +180,8 @@ pub struct Summary {
     pub fingerprint: String,
     /// Settings in force.
     pub settings: serde_json::Value,
+    /// Every file of this output set, `summary.json` last: a folder lacking any is incomplete.
+    pub outputs: Vec<&'static str>,
     /// Coordinate handling.
     pub geodesy: Geodesy,
     /// Counts from reading and noding.

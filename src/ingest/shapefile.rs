@@ -187,16 +187,26 @@ pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
     })
 }
 
-/// Path, size and SHA-256 of a Shapefile's `.shp`, covering its `.dbf` and `.prj` in the digest.
-fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> {
+/// The files of a Shapefile set: the `.shp` itself, then those of its `.shx`, `.dbf`, `.prj` and
+/// `.cpg` sidecars that exist (in either letter case), each with its extension in lower case.
+pub fn set_files(path: &Path) -> Vec<(&'static str, std::path::PathBuf)> {
+    let mut v = vec![("shp", path.to_path_buf())];
+    for ext in ["shx", "dbf", "prj", "cpg"] {
+        let p = sibling(path, ext);
+        if p.exists() {
+            v.push((ext, p));
+        }
+    }
+    v
+}
+
+/// Path, size and SHA-256 of a Shapefile set: the digest covers the `.shp` and every sidecar
+/// ([`set_files`]), so a change to any of them changes it.
+pub fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> {
     use sha2::{Digest, Sha256};
     let mut h = Sha256::new();
     let mut bytes = 0;
-    for ext in ["shp", "dbf", "prj"] {
-        let p = path.with_extension(ext);
-        if !p.exists() {
-            continue;
-        }
+    for (ext, p) in set_files(path) {
         let r = Source::File(p.clone()).open()?;
         let (sha, n) = HashingReader::finish_buffered(r)
             .map_err(|source| IngestError::Io { path: p, source })?;

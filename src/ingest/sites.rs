@@ -407,18 +407,8 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     }
     convert(path, &crs, &mut sites)?;
     check_unique(path, &sites)?;
-    let r = Source::File(path.to_path_buf()).open()?;
-    let (sha256, bytes) = HashingReader::finish_buffered(r).map_err(|source| IngestError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
     Ok(SiteLayer {
         sites,
-        input: InputRecord {
-            role: "sites".into(),
-            path: path.display().to_string(),
-            bytes,
-            sha256,
-        },
+        input: super::shapefile::fingerprint(path, "sites")?,
     })
 }

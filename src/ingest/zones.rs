@@ -243,19 +243,9 @@ fn read_shapefile_zones(
         }
         zones.extend(make_zone(path, index, current, damage)?);
     }
-    let r = Source::File(path.to_path_buf()).open()?;
-    let (sha256, bytes) = HashingReader::finish_buffered(r).map_err(|source| IngestError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
     Ok(ZoneLayer {
         zones,
-        input: InputRecord {
-            role: "damage zones".into(),
-            path: path.display().to_string(),
-            bytes,
-            sha256,
-        },
+        input: super::shapefile::fingerprint(path, "damage zones")?,
     })
 }
 

@@ -4,9 +4,14 @@
 //! [`summary`] turns the stages' results into `summary.json`.
 
 pub mod check;
+pub mod fingerprint;
 mod resilience;
 mod schedule;
+pub mod settings;
 pub mod summary;
+
+pub use fingerprint::{fingerprint, job_fingerprint};
+pub use settings::{settings_json, validate};
 
 use resilience::{backup_plan, fragility_report};
 use schedule::{roots_and_targets, schedule};
@@ -148,70 +153,7 @@ pub struct SitesResult {
 pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError> {
     let out = export::guard::check_out(&job.out, &job.input_paths())?;
     export::staging::preflight(&out, job.force)?;
-    job.road_settings.validate()?;
-    if !(job.max_attach_m.is_finite()
-        && job.max_attach_m >= 0.0
-        && job.max_attach_m <= MAX_ATTACH_LIMIT_M)
-    {
-        return Err(IngestError::Setting {
-            name: "--max-attach",
-            message: format!(
-                "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.max_attach_m
-            ),
-        }
-        .into());
-    }
-
-    if let Some(b) = job.budget
-        && !(b.is_finite() && b >= 0.0)
-    {
-        return Err(IngestError::Setting {
-            name: "--budget",
-            message: format!("{b} repair-metres is not a number ≥ 0"),
-        }
-        .into());
-    }
-    if job.redundancy && (job.sites.is_none() || job.whole_network) {
-        return Err(IngestError::Setting {
-            name: "--redundancy",
-            message: "backup links join sites to the hub: give --sites (and not --whole-network)"
-                .into(),
-        }
-        .into());
-    }
-    if job.budget.is_some() && (job.sites.is_none() || job.whole_network) {
-        return Err(IngestError::Setting {
-            name: "--budget",
-            message:
-                "a budget chooses which sites to join first: give --sites (and not --whole-network)"
-                    .into(),
-        }
-        .into());
-    }
-    if let Some(c) = job.crew_capacity
-        && !(c.is_finite() && c >= 0.0005)
-    {
-        return Err(IngestError::Setting {
-            name: "--crew-capacity",
-            message: format!(
-                "{c} repair-metres per day is not a positive number of at least 0.001 (costs are counted in thousandths)"
-            ),
-        }
-        .into());
-    }
-    if !(job.report_distance_m.is_finite()
-        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
-    {
-        return Err(IngestError::Setting {
-            name: "--report-distance",
-            message: format!(
-                "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.report_distance_m
-            ),
-        }
-        .into());
-    }
+    settings::validate(job)?;
     let layer = {
         let _s = progress.stage("reading roads");
         ingest::roads::read_roads(&job.roads, &job.road_settings)?
@@ -395,13 +337,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         }
     });
     let rows = sites.as_ref().map(site_rows);
-    // Inputs are recorded in the order roads, damage zones, sites.
-    inputs.sort_by_key(|i| match i.role.as_str() {
-        "roads" => 0,
-        "damage zones" => 1,
-        "damage reports" => 2,
-        _ => 3,
-    });
+    if let Some(p) = &job.road_settings.cost_table_file {
+        inputs.push(fingerprint::input_record(
+            "cost table",
+            &Source::File(p.clone()),
+        )?);
+    }
+    // Inputs are recorded in one order (roads, zones, reports, sites, cost table).
+    inputs.sort_by_key(|i| fingerprint::role_rank(&i.role));
     let mut summary = summary::build(
         job,
         inputs,
@@ -419,6 +362,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
+    summary.outputs = export::output_names(rows.is_some(), fragile.is_some(), backup.is_some());
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
             .display_path()
@@ -469,91 +413,6 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         )?;
     }
     Ok(summary)
-}
-
-/// Every setting of a job that can change its outputs, as recorded in `summary.json`.
-pub fn settings_json(job: &PlanJob) -> serde_json::Value {
-    let s = &job.road_settings;
-    let ss = &job.site_settings;
-    serde_json::json!({
-        "snap_m": s.snap_m,
-        "damage_field": s.damage.field,
-        "default_damage": s.damage.default,
-        "closed_value": s.damage.closed_value,
-        "id_field": s.id_field,
-        "mst": job.mst.name(),
-        "max_attach_m": job.max_attach_m,
-        "hub": job.hub,
-        "whole_network": job.whole_network,
-        "effort": job.effort.name(),
-        "site_id_field": ss.id_field,
-        "site_name_field": ss.name_field,
-        "priority_field": ss.priority_field,
-        "lon_column": ss.lon_column,
-        "lat_column": ss.lat_column,
-        "crs": s.crs,
-        "node_crossings": s.node_crossings,
-        "zone_damage_field": job.zone_damage.field,
-        "zones_crs": job.zones_crs,
-        "report_distance_m": job.report_distance_m,
-        "crew_capacity": job.crew_capacity,
-        "budget": job.budget,
-        "redundancy": job.redundancy,
-        "category_field": s.category_field,
-        "cost_table": {
-            "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
-                Some(f) => serde_json::json!(f),
-                None => serde_json::json!("closed"),
-            })).collect::<serde_json::Map<_, _>>(),
-            "class_field": s.cost_table.class_field,
-            "class_rates": s.cost_table.class_rates,
-            "class_default": s.cost_table.class_default,
-        },
-        "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
-        "sites_crs": ss.crs,
-    })
-}
-
-/// SHA-256 over the inputs' roles and digests and the settings: equal fingerprints mean equal
-/// outputs, which is how `batch --resume` knows a district is up to date.
-pub fn fingerprint(
-    inputs: &[crate::ingest::source::InputRecord],
-    settings: &serde_json::Value,
-) -> String {
-    use sha2::{Digest, Sha256};
-    let mut h = Sha256::new();
-    h.update(env!("CARGO_PKG_VERSION").as_bytes());
-    for i in inputs {
-        h.update(format!("\n{}\t{}", i.role, i.sha256).as_bytes());
-    }
-    h.update(b"\n");
-    h.update(settings.to_string().as_bytes());
-    h.finalize().iter().map(|b| format!("{b:02x}")).collect()
-}
-
-/// The fingerprint a job would record, computed by reading (and hashing) its inputs only.
-pub fn job_fingerprint(job: &PlanJob) -> Result<String, IngestError> {
-    let mut inputs = Vec::new();
-    for (role, src) in
-        std::iter::once(("roads", &job.roads)).chain(job.sites.iter().map(|s| ("sites", s)))
-    {
-        let path = src.display_path();
-        let r = src.open()?;
-        let (sha256, bytes) =
-            crate::ingest::source::HashingReader::finish_buffered(r).map_err(|source| {
-                IngestError::Io {
-                    path: path.clone(),
-                    source,
-                }
-            })?;
-        inputs.push(crate::ingest::source::InputRecord {
-            role: role.into(),
-            path: path.display().to_string(),
-            bytes,
-            sha256,
-        });
-    }
-    Ok(fingerprint(&inputs, &settings_json(job)))
 }
 
 /// The hub: the named site, or the one with the highest priority (first in the file on ties).

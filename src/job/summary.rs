@@ -66,6 +66,7 @@ pub fn build(
         inputs,
         fingerprint,
         settings: super::settings_json(job),
+        outputs: Vec::new(),
         geodesy,
         counts,
         plan: PlanFigures {

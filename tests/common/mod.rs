@@ -3,6 +3,7 @@
 #![allow(dead_code)]
 
 pub mod bad;
+pub mod batch;
 pub mod exact;
 pub mod external;
 
