@@ -42,18 +42,51 @@ impl<W: Write> GeoJsonWriter<W> {
         })
     }
 
-    /// Writes a LineString feature.
+    /// Writes a LineString feature; a line crossing the ±180° meridian is written as a
+    /// MultiLineString split there, as RFC 7946 §3.1.9 recommends.
     pub fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) -> io::Result<()> {
         self.start(props);
-        self.buf
-            .push_str("\"geometry\":{\"type\":\"LineString\",\"coordinates\":[");
-        for (i, c) in coords.iter().enumerate() {
-            if i > 0 {
+        let crosses = coords.windows(2).any(|w| (w[1][0] - w[0][0]).abs() > 180.0);
+        let parts = if crosses {
+            split_at_antimeridian(coords)
+        } else {
+            Vec::new()
+        };
+        let lines: Vec<&[[f64; 2]]> = if parts.len() > 1 {
+            parts.iter().map(Vec::as_slice).collect()
+        } else if let Some(p) = parts.first() {
+            vec![p.as_slice()]
+        } else {
+            vec![coords]
+        };
+        let kind = if lines.len() > 1 {
+            "MultiLineString"
+        } else {
+            "LineString"
+        };
+        self.buf.push_str("\"geometry\":{\"type\":\"");
+        self.buf.push_str(kind);
+        self.buf.push_str("\",\"coordinates\":");
+        if lines.len() > 1 {
+            self.buf.push('[');
+        }
+        for (k, line) in lines.iter().enumerate() {
+            if k > 0 {
                 self.buf.push(',');
             }
-            push_position(&mut self.buf, *c);
+            self.buf.push('[');
+            for (i, c) in line.iter().enumerate() {
+                if i > 0 {
+                    self.buf.push(',');
+                }
+                push_position(&mut self.buf, *c);
+            }
+            self.buf.push(']');
         }
-        self.buf.push_str("]}}");
+        if lines.len() > 1 {
+            self.buf.push(']');
+        }
+        self.buf.push_str("}}");
         self.flush_feature()
     }
 
@@ -151,6 +184,38 @@ fn push_json_str(buf: &mut String, s: &str) {
     }
 }
 
+/// The parts of a line cut where a step crosses ±180° (the short way round), each ending or
+/// starting on the meridian; parts of a single position (a vertex on the meridian) are dropped.
+fn split_at_antimeridian(coords: &[[f64; 2]]) -> Vec<Vec<[f64; 2]>> {
+    let mut parts = vec![vec![coords[0]]];
+    for w in coords.windows(2) {
+        let (a, b) = (w[0], w[1]);
+        if (b[0] - a[0]).abs() > 180.0 {
+            let (side, other) = if a[0] > 0.0 {
+                (180.0, -180.0)
+            } else {
+                (-180.0, 180.0)
+            };
+            let to_meridian = side - a[0];
+            let span = to_meridian + (b[0] - other);
+            let t = if span == 0.0 { 0.0 } else { to_meridian / span };
+            let lat = a[1] + t * (b[1] - a[1]);
+            let last = parts.last_mut().expect("a part is always open");
+            if a[0] != side {
+                last.push([side, lat]);
+            }
+            parts.push(vec![[other, lat]]);
+            if b[0] != other {
+                parts.last_mut().expect("just opened").push(b);
+            }
+        } else {
+            parts.last_mut().expect("a part is always open").push(b);
+        }
+    }
+    parts.retain(|p| p.len() > 1);
+    parts
+}
+
 fn push_position(buf: &mut String, c: [f64; 2]) {
     buf.push('[');
     push_decimal(buf, c[0], 7, true);
@@ -236,6 +301,21 @@ pub fn trimmed(x: f64, decimals: usize) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn lines_across_the_antimeridian_are_split_there() {
+        // RFC 7946 §3.1.9: a line from 170°E to 170°W is two parts meeting at ±180°.
+        let parts = split_at_antimeridian(&[[170.0, 45.0], [-170.0, 55.0]]);
+        assert_eq!(
+            parts,
+            vec![
+                vec![[170.0, 45.0], [180.0, 50.0]],
+                vec![[-180.0, 50.0], [-170.0, 55.0]]
+            ]
+        );
+        let on = split_at_antimeridian(&[[180.0, 1.0], [-179.0, 1.0]]);
+        assert_eq!(on, vec![vec![[-180.0, 1.0], [-179.0, 1.0]]]);
+    }
 
     #[test]
     fn formats_numbers() {
