@@ -350,3 +350,40 @@ case!(merge_beside_a_batch_summary_not_written_by_reknit, |d| {
         &["batch-summary.csv", "not a batch summary reknit wrote"],
     );
 });
+
+case!(merge_of_a_shard_stopped_after_a_district_changed, |d| {
+    // A shard re-ran a district (new outputs) and was stopped before its summary was rewritten:
+    // the summary's figures no longer match the district's outputs.
+    let out = d.join("out");
+    two_shards(d, &out);
+    let vale = out.join("Vale");
+    let o = run(&[
+        "plan",
+        "--roads",
+        &s(&d.join("roads.geojson")),
+        "--out",
+        &s(&vale),
+        "--force",
+        "-q",
+        "--drop-where",
+        "damage=0.5",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    merge_fails(d, &out, &["Vale", "no longer hold", "--resume"]);
+});
+
+case!(merge_of_a_shard_no_batch_writes, |d| {
+    // A summary named for shard 3 of 2 (or of 10^15 shards) was not written by any batch.
+    let out = d.join("out");
+    two_shards(d, &out);
+    for bad in ["3-of-2", "1-of-1000000000000000"] {
+        let forged = out.join(format!("batch-summary-{bad}.json"));
+        std::fs::copy(out.join("batch-summary-1-of-2.json"), &forged).unwrap();
+        merge_fails(
+            d,
+            &out,
+            &[&format!("batch-summary-{bad}.json"), "1 ≤ K ≤ N"],
+        );
+        std::fs::remove_file(&forged).unwrap();
+    }
+});

@@ -337,3 +337,141 @@ fn every_command_changes_nothing_it_did_not_create() {
     }
     assert_same(&before, &after);
 }
+
+/// Inode and permission bits of a folder.
+fn identity(p: &Path) -> (u64, u32) {
+    use std::os::unix::fs::MetadataExt;
+    let m = std::fs::metadata(p).unwrap();
+    (m.ino(), m.mode())
+}
+
+#[test]
+fn a_folder_the_user_made_is_never_replaced_as_a_whole() {
+    // The user's own folder (its inode, mode and setgid bit) survives every --force run; only the
+    // files reknit recorded are replaced inside it. The same holds for `--out .`.
+    use std::os::unix::fs::PermissionsExt;
+    let t = tmp();
+    let d = t.path();
+    let roads = roads_ok(d);
+    let out = d.join("shared");
+    std::fs::create_dir(&out).unwrap();
+    std::fs::set_permissions(&out, std::fs::Permissions::from_mode(0o2770)).unwrap();
+    let before = identity(&out);
+    for extra in [
+        &[][..],
+        &["--force"],
+        &["--force", "--default-damage", "0.5"],
+    ] {
+        let mut a = vec!["plan", "--roads", &s(&roads), "--out", &s(&out), "-q"]
+            .into_iter()
+            .map(String::from)
+            .collect::<Vec<_>>();
+        a.extend(extra.iter().map(|x| x.to_string()));
+        runs_ok(d, &out, &a);
+        assert_eq!(identity(&out), before);
+    }
+    // A folder reknit made is its own, but not while it is the working folder of the run.
+    let made = d.join("made");
+    earlier_set(&roads, &made);
+    let inode = identity(&made);
+    let o = reknit()
+        .current_dir(&made)
+        .args(["plan", "--roads", &s(&roads), "--out", ".", "--force", "-q"])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(
+        identity(&made),
+        inode,
+        "the working folder was swapped away"
+    );
+}
+
+#[test]
+fn two_runs_into_one_new_folder_never_both_claim_it() {
+    // Without --force, the second of two runs into the same folder must fail, however they
+    // interleave: its outputs would silently replace the first's.
+    let t = tmp();
+    let d = t.path();
+    let roads = d.join("roads.geojson");
+    std::fs::copy(sample_roads(), &roads).unwrap();
+    for round in 0..3 {
+        let out = d.join(format!("out{round}"));
+        let children: Vec<_> = (0..2)
+            .map(|_| {
+                reknit()
+                    .args([
+                        "plan",
+                        "--roads",
+                        &s(&roads),
+                        "--whole-network",
+                        "-q",
+                        "--out",
+                    ])
+                    .arg(&out)
+                    .stderr(std::process::Stdio::piped())
+                    .spawn()
+                    .unwrap()
+            })
+            .collect();
+        let ok = children
+            .into_iter()
+            .map(|c| c.wait_with_output().unwrap())
+            .filter(|o| o.status.success())
+            .count();
+        assert_eq!(ok, 1, "round {round}: exactly one run may write the set");
+    }
+}
+
+case!(an_abandoned_set_put_back_still_needs_force, |d| {
+    // A run killed between its two renames leaves the earlier set aside; the next run puts it
+    // back and, without --force, refuses to replace it.
+    let roads = roads_ok(d);
+    let out = d.join("out");
+    earlier_set(&roads, &out);
+    let aside = d.join(".reknit-retired-out-1-2");
+    std::fs::rename(&out, &aside).unwrap();
+    let args = strings(&["plan", "--roads", &s(&roads), "--out", &s(&out)]);
+    let o = reknit().args(&args).output().unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("--force"), "{}", stderr(&o));
+    assert!(out.join("summary.json").exists(), "the earlier set is back");
+    assert!(!aside.exists());
+});
+
+case!(input_linked_from_the_output_folder, |d| {
+    // The roads are read through a link that sits in --out (its sidecars would be looked for
+    // there): the folder holding the link counts as the input's folder too.
+    let store = d.join("store");
+    std::fs::create_dir(&store).unwrap();
+    let real = file(&store, "roads.geojson", fc(&[OK_LINE]));
+    let data = d.join("data");
+    std::fs::create_dir(&data).unwrap();
+    std::os::unix::fs::symlink(&real, data.join("roads.geojson")).unwrap();
+    let args = strings(&[
+        "plan",
+        "--roads",
+        &s(&data.join("roads.geojson")),
+        "--out",
+        &s(&data),
+        "--force",
+    ]);
+    fails_with(d, &data, &args, &["roads.geojson", "folder holding"]);
+});
+
+case!(output_link_with_a_trailing_slash, |d| {
+    let roads = roads_ok(d);
+    let real = d.join("real");
+    std::fs::create_dir(&real).unwrap();
+    let link = d.join("out");
+    std::os::unix::fs::symlink(&real, &link).unwrap();
+    let args = strings(&[
+        "plan",
+        "--roads",
+        &s(&roads),
+        "--out",
+        &format!("{}/", s(&link)),
+    ]);
+    fails_with(d, &link, &args, &["symbolic link"]);
+    assert!(listing(&real).is_empty());
+});

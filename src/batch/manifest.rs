@@ -88,11 +88,19 @@ pub fn read_manifest(path: &Path) -> Result<Manifest, BatchError> {
     }
     Ok(Manifest {
         districts,
-        id: identity(if is_csv { "csv" } else { "toml" }, &bytes),
+        // The same manifest text in another folder reads other files: its folder is part of it.
+        id: identity(
+            &format!(
+                "{}\n{}",
+                if is_csv { "csv" } else { "toml" },
+                crate::export::guard::resolve(path).display()
+            ),
+            &bytes,
+        ),
     })
 }
 
-/// SHA-256 of the reknit version, the manifest's format and its bytes.
+/// SHA-256 of the reknit version, the manifest's format and place, and its bytes.
 fn identity(format: &str, bytes: &[u8]) -> String {
     use sha2::{Digest, Sha256};
     let mut h = Sha256::new();

@@ -97,6 +97,11 @@ pub fn merge(dir: &Path) -> Result<BatchSummary, BatchError> {
             if absent.len() > 20 { ", …" } else { "" }
         )));
     }
+    for p in &parts {
+        for r in p.summary.rows.iter().filter(|r| r.status != "failed") {
+            check_on_disk(dir, &p.file, r).map_err(err)?;
+        }
+    }
     check_replaceable(dir, "batch-summary")?;
     let mut rows: Vec<Row> = parts.into_iter().flat_map(|p| p.summary.rows).collect();
     rows.sort_by_key(|r| r.index);
@@ -124,6 +129,11 @@ fn read_parts(dir: &Path) -> Result<Vec<Part>, BatchError> {
         let Some((k, n)) = shard_of_name(&file) else {
             continue;
         };
+        check_shard(&file, k, n).map_err(err)?;
+        // Only regular files are read: a pipe would block, a device would never end.
+        if !std::fs::metadata(entry.path()).is_ok_and(|m| m.is_file()) {
+            return Err(err(format!("{file}: not a regular file")));
+        }
         let text =
             std::fs::read_to_string(entry.path()).map_err(|e| err(format!("{file}: {e}")))?;
         let summary: BatchSummary = serde_json::from_str(&text).map_err(|e| {
@@ -156,4 +166,39 @@ fn shard_of_name(name: &str) -> Option<(usize, usize)> {
     let mid = name.strip_prefix("batch-summary-")?.strip_suffix(".json")?;
     let (k, n) = mid.split_once("-of-")?;
     Some((k.parse().ok()?, n.parse().ok()?))
+}
+
+/// Refuses a shard `K/N` no batch can have written: K outside 1..=N, or N beyond the bound.
+fn check_shard(file: &str, k: usize, n: usize) -> Result<(), String> {
+    if n == 0 || n > super::shard::MAX_SHARDS || k == 0 || k > n {
+        return Err(format!(
+            "{file}: shard {k}/{n} is not one a batch writes (1 ≤ K ≤ N ≤ {})",
+            super::shard::MAX_SHARDS
+        ));
+    }
+    Ok(())
+}
+
+/// Checks that a district's outputs on disk are the ones its shard summary reports: a shard
+/// stopped after a district was written but before its summary was would otherwise be merged
+/// with stale figures.
+fn check_on_disk(dir: &Path, file: &str, r: &Row) -> Result<(), String> {
+    let path = dir
+        .join(&r.folder)
+        .join(crate::export::staging::COMPLETE_MARKER);
+    let stale = || {
+        format!(
+            "{file}: district {:?} reports figures that its outputs in {} no longer hold; \
+             run that shard again (with --resume) before merging",
+            r.name,
+            dir.join(&r.folder).display()
+        )
+    };
+    let text = std::fs::read_to_string(&path).map_err(|_| stale())?;
+    let v: serde_json::Value = serde_json::from_str(&text).map_err(|_| stale())?;
+    let disk = Row::from_summary(r.index, &r.name, &r.folder, &r.status, &v);
+    if disk != *r {
+        return Err(stale());
+    }
+    Ok(())
 }

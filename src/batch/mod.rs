@@ -22,6 +22,9 @@ use std::path::PathBuf;
 use std::sync::Mutex;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
+/// Most districts planned at once (`--jobs`).
+pub const MAX_JOBS: usize = 1024;
+
 /// Errors that stop a whole batch (a district's own failure is a row, not an error).
 #[derive(Debug, thiserror::Error)]
 pub enum BatchError {
@@ -85,10 +88,15 @@ pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
         }
         None => districts,
     };
-    std::fs::create_dir_all(&opts.out).map_err(|e| BatchError::Output {
-        path: opts.out.clone(),
-        message: format!("cannot create the output folder: {e}"),
-    })?;
+    if opts.jobs > MAX_JOBS {
+        return Err(BatchError::Output {
+            path: opts.out.clone(),
+            message: format!(
+                "--jobs {} is more than the {MAX_JOBS} districts reknit plans at once",
+                opts.jobs
+            ),
+        });
+    }
     let jobs = opts.jobs.max(1);
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(jobs)
@@ -97,6 +105,11 @@ pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
             path: opts.out.clone(),
             message: format!("cannot start {jobs} threads: {e}"),
         })?;
+    // Made only once the batch can run: a refused batch leaves nothing behind.
+    std::fs::create_dir_all(&opts.out).map_err(|e| BatchError::Output {
+        path: opts.out.clone(),
+        message: format!("cannot create the output folder: {e}"),
+    })?;
     let bar = overall_bar(&opts.progress, mine.len());
     let next = AtomicUsize::new(0);
     let rows: Mutex<Vec<Row>> = Mutex::new(Vec::with_capacity(mine.len()));

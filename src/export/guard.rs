@@ -82,16 +82,33 @@ pub fn check_out(out: &Path, inputs: &[InputPath]) -> Result<CheckedOut, ExportE
     for input in inputs {
         let (given, why) = match *input {
             InputPath::File(f) => {
-                let i = resolve(f);
-                let why = if i == o {
-                    Some("is the input")
-                } else if i.parent() == Some(o.as_path()) {
-                    Some("is the folder holding the input")
-                } else if i.starts_with(&o) {
-                    Some("contains the input")
-                } else {
-                    None
+                // A file given through a link is read where the link points, but its sidecars
+                // (a Shapefile's .dbf, .shx, .prj) are looked for beside the link: both count.
+                let beside = match (f.parent(), f.file_name()) {
+                    (Some(p), Some(n)) => Some(
+                        resolve(if p.as_os_str().is_empty() {
+                            Path::new(".")
+                        } else {
+                            p
+                        })
+                        .join(n),
+                    ),
+                    _ => None,
                 };
+                let why = [Some(resolve(f)), beside]
+                    .into_iter()
+                    .flatten()
+                    .find_map(|i| {
+                        if i == o {
+                            Some("is the input")
+                        } else if i.parent() == Some(o.as_path()) {
+                            Some("is the folder holding the input")
+                        } else if i.starts_with(&o) {
+                            Some("contains the input")
+                        } else {
+                            None
+                        }
+                    });
                 (f, why)
             }
             InputPath::Folder(f) => {
@@ -116,8 +133,9 @@ pub fn check_out(out: &Path, inputs: &[InputPath]) -> Result<CheckedOut, ExportE
             });
         }
     }
+    // `link/` would follow the link where `link` does not: the given path loses trailing slashes.
     Ok(CheckedOut {
-        given: out.to_path_buf(),
+        given: out.components().collect(),
         resolved: o,
     })
 }

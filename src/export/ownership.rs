@@ -29,6 +29,9 @@ pub const RECORD: &str = ".reknit-outputs";
 
 const RECORD_HEADER: &str = "reknit output set: the files below were written by reknit; its next run with --force replaces them";
 
+/// The record's line saying reknit made the folder itself (so it may replace the whole folder).
+const MADE_LINE: &str = "# folder made by reknit";
+
 /// What an existing output folder holds.
 #[derive(Debug, Default)]
 pub struct Survey {
@@ -38,6 +41,8 @@ pub struct Survey {
     pub foreign: Vec<(String, &'static str)>,
     /// The folder holds a valid record.
     pub record: bool,
+    /// The record says reknit made the folder itself (not a folder the user made or chose).
+    pub made_by_reknit: bool,
     /// The folder holds other entries too (the user's own files).
     pub other: bool,
 }
@@ -98,7 +103,8 @@ impl Survey {
             s.record = false;
             s.foreign.push((RECORD.into(), "not a record reknit wrote"));
         }
-        let listed = listed.unwrap_or_default();
+        let (listed, made) = listed.unwrap_or_default();
+        s.made_by_reknit = made;
         named.sort();
         for (n, kind) in named {
             match kind {
@@ -112,9 +118,10 @@ impl Survey {
         Ok(Some(s))
     }
 
-    /// True when the folder holds nothing but reknit's recorded outputs and the record.
+    /// True when reknit made the folder and it holds nothing but reknit's recorded outputs and
+    /// the record: only then may the whole folder be replaced.
     pub fn only_ours(&self) -> bool {
-        self.record && self.foreign.is_empty() && !self.other
+        self.record && self.made_by_reknit && self.foreign.is_empty() && !self.other
     }
 
     /// Refuses a folder holding an entry with an output's name that reknit did not write.
@@ -129,26 +136,38 @@ impl Survey {
     }
 }
 
-/// The names listed in a record, or `None` when the file is not a record.
-fn read_record(p: &Path) -> Option<Vec<String>> {
+/// The names listed in a record and whether reknit made the folder, or `None` when the file is
+/// not a record.
+fn read_record(p: &Path) -> Option<(Vec<String>, bool)> {
     let f = fs::File::open(p).ok()?;
     let mut text = String::new();
     // A record lists at most a dozen short names: read no more than a few kilobytes of it.
     std::io::Read::read_to_string(&mut std::io::Read::take(f, 16 * 1024), &mut text).ok()?;
     let mut lines = text.lines();
-    (lines.next()? == RECORD_HEADER).then(|| {
-        lines
-            .filter(|l| OUTPUT_NAMES.contains(l))
-            .map(String::from)
-            .collect()
-    })
+    if lines.next()? != RECORD_HEADER {
+        return None;
+    }
+    let mut made = false;
+    let mut names = Vec::new();
+    for l in lines {
+        if l == MADE_LINE {
+            made = true;
+        } else if OUTPUT_NAMES.contains(&l) {
+            names.push(l.to_string());
+        }
+    }
+    Some((names, made))
 }
 
-/// Writes the record listing `names` into `dir`, atomically (a temporary file renamed in place).
-pub fn write_record(dir: &Path, names: &[String]) -> std::io::Result<()> {
+/// Writes the record listing `names` into `dir`, atomically (a temporary file renamed in place);
+/// `made` says reknit made the folder itself.
+pub fn write_record(dir: &Path, names: &[String], made: bool) -> std::io::Result<()> {
     let tmp: PathBuf = dir.join(format!("{RECORD}.tmp-{}", std::process::id()));
     let mut f = fs::File::create(&tmp)?;
     writeln!(f, "{RECORD_HEADER}")?;
+    if made {
+        writeln!(f, "{MADE_LINE}")?;
+    }
     for n in names {
         writeln!(f, "{n}")?;
     }
@@ -174,10 +193,11 @@ mod tests {
         assert!(s.owned.is_empty());
         assert_eq!(s.foreign.len(), 2);
         assert!(s.other && !s.record && !s.only_ours());
-        write_record(d, &["plan.geojson".into()]).unwrap();
+        write_record(d, &["plan.geojson".into()], false).unwrap();
         let s = Survey::of(d).unwrap().unwrap();
         assert_eq!(s.owned, vec!["plan.geojson".to_string()]);
         assert_eq!(s.foreign, vec![("network.geojson".into(), "a folder")]);
+        assert!(!s.made_by_reknit, "a folder the user made stays theirs");
         fs::write(d.join(RECORD), "plan.geojson\n").unwrap();
         let s = Survey::of(d).unwrap().unwrap();
         assert!(

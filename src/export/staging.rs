@@ -29,6 +29,8 @@ const RETIRED_PREFIX: &str = ".reknit-retired-";
 
 /// Checks, before any work is done, that `out` can take an output set (nothing is written).
 pub fn preflight(out: &CheckedOut, force: bool) -> Result<(), ExportError> {
+    // An abandoned run may have left the previous set aside: put it back before judging.
+    remove_stale(out.resolved());
     let Some(survey) = Survey::of(out.given())? else {
         return Ok(());
     };
@@ -126,6 +128,7 @@ pub struct Staging {
     dir: PathBuf,
     written: std::sync::Mutex<Vec<String>>,
     committed: bool,
+    force: bool,
     /// Parent folders this run created, deepest first: removed again when it fails.
     created: Vec<PathBuf>,
     _lock: Option<File>,
@@ -135,7 +138,6 @@ impl Staging {
     /// Creates a fresh staging folder beside `out` (and `out`'s parent folders if needed),
     /// clearing abandoned ones.
     pub fn begin(out: &CheckedOut, force: bool) -> Result<Staging, ExportError> {
-        preflight(out, force)?;
         let io = |path: &Path| {
             let path = path.to_path_buf();
             move |source| ExportError::Io { path, source }
@@ -147,7 +149,7 @@ impl Staging {
             .map(Path::to_path_buf)
             .collect();
         fs::create_dir_all(&parent).map_err(io(out.given()))?;
-        remove_stale(out.resolved());
+        preflight(out, force)?;
         let dir = parent.join(temp_name(STAGING_PREFIX, &name));
         fs::create_dir(&dir).map_err(io(out.given()))?;
         let lock = File::open(&dir).ok().filter(|f| f.lock().is_ok());
@@ -157,6 +159,7 @@ impl Staging {
             dir,
             written: Default::default(),
             committed: false,
+            force,
             created,
             _lock: lock,
         })
@@ -199,81 +202,141 @@ impl Staging {
 
     /// Puts the staged set in place of any earlier one (see the module notes).
     pub fn commit(mut self) -> Result<(), ExportError> {
-        let err = |path: PathBuf| move |source| ExportError::Io { path, source };
         let mut names = std::mem::take(self.written.get_mut().unwrap_or_else(|p| p.into_inner()));
         names.sort_by_key(|n| (n == COMPLETE_MARKER, n.clone()));
-        write_record(&self.dir, &names).map_err(err(self.given.join(RECORD)))?;
+        let survey = self.judge(Survey::of(&self.out)?)?;
+        match survey {
+            None => {
+                self.seal(&names, true)?;
+                fs::rename(&self.dir, &self.out).map_err(self.io(&self.given))?;
+                self.sync_parent();
+            }
+            Some(s) if s.only_ours() && !holds_working_folder(&self.out) => {
+                self.seal(&names, true)?;
+                if !self.swap()? {
+                    let again = self.judge(Survey::of(&self.out)?)?.unwrap_or_default();
+                    self.replace_files(&names, &again)?;
+                }
+            }
+            Some(s) => self.replace_files(&names, &s)?,
+        }
+        self.committed = true;
+        Ok(())
+    }
+
+    /// Refuses, at the last moment, what the set may not replace: entries reknit did not write,
+    /// and (without `--force`) outputs another run put there since this one began.
+    fn judge(&self, survey: Option<Survey>) -> Result<Option<Survey>, ExportError> {
+        if let Some(s) = &survey {
+            s.refuse_foreign(&self.given)?;
+            if !self.force && !s.owned.is_empty() {
+                return Err(ExportError::WouldReplace {
+                    dir: self.given.clone(),
+                    files: s.owned.join(", "),
+                });
+            }
+        }
+        Ok(survey)
+    }
+
+    fn io(&self, path: &Path) -> impl Fn(std::io::Error) -> ExportError {
+        let path = path.to_path_buf();
+        move |source| ExportError::Io {
+            path: path.clone(),
+            source,
+        }
+    }
+
+    fn sync_parent(&self) {
+        if let Some(d) = self.out.parent().and_then(|p| File::open(p).ok()) {
+            let _ = d.sync_all();
+        }
+    }
+
+    /// Writes the record into the staging folder and syncs every staged file and the folder.
+    fn seal(&self, names: &[String], made: bool) -> Result<(), ExportError> {
+        write_record(&self.dir, names, made).map_err(self.io(&self.given.join(RECORD)))?;
         // Every file on disk before any becomes visible (power loss must not leave empty files
         // behind complete-looking names).
         for n in names.iter().map(String::as_str).chain([RECORD]) {
             File::open(self.dir.join(n))
                 .and_then(|f| f.sync_data())
-                .map_err(err(self.given.join(n)))?;
+                .map_err(self.io(&self.given.join(n)))?;
         }
         if let Ok(d) = File::open(&self.dir) {
             let _ = d.sync_all();
         }
-        let (parent, name) = parent_and_name(&self.out);
-        let sync_parent = || {
-            if let Ok(d) = File::open(&parent) {
-                let _ = d.sync_all();
-            }
-        };
-        let survey = Survey::of(&self.out)?;
-        match survey {
-            None => {
-                fs::rename(&self.dir, &self.out).map_err(err(self.given.clone()))?;
-                sync_parent();
-            }
-            Some(s) if s.only_ours() => {
-                // Wait for any other run swapping this very folder, then swap under its lock.
-                let held = File::open(&self.out).map_err(err(self.given.clone()))?;
-                held.lock().map_err(err(self.given.clone()))?;
-                Survey::of(&self.out)?
-                    .unwrap_or_default()
-                    .refuse_foreign(&self.given)?;
-                let retired = parent.join(temp_name(RETIRED_PREFIX, &name));
-                fs::rename(&self.out, &retired).map_err(err(self.given.clone()))?;
-                if let Err(e) = fs::rename(&self.dir, &self.out) {
-                    // Put the earlier set back rather than leave nothing.
-                    let _ = fs::rename(&retired, &self.out);
-                    return Err(err(self.given.clone())(e));
-                }
-                sync_parent();
-                let _ = fs::remove_dir_all(&retired);
-            }
-            Some(s) => {
-                // The folder holds other files too: replace ours one by one, marker out first,
-                // in last, under a record naming old and new so that a run stopped midway leaves
-                // nothing unaccounted for.
-                s.refuse_foreign(&self.given)?;
-                let mut union = s.owned.clone();
-                union.extend(names.iter().cloned());
-                union.sort();
-                union.dedup();
-                write_record(&self.out, &union).map_err(err(self.given.join(RECORD)))?;
-                let old = s.owned.iter().map(String::as_str);
-                for n in std::iter::once(COMPLETE_MARKER).chain(old) {
-                    let p = self.out.join(n);
-                    if fs::symlink_metadata(&p).is_ok() {
-                        fs::remove_file(&p).map_err(err(self.given.join(n)))?;
-                    }
-                }
-                for n in &names {
-                    fs::rename(self.dir.join(n), self.out.join(n))
-                        .map_err(err(self.given.join(n)))?;
-                }
-                fs::rename(self.dir.join(RECORD), self.out.join(RECORD))
-                    .map_err(err(self.given.join(RECORD)))?;
-                if let Ok(d) = File::open(&self.out) {
-                    let _ = d.sync_all();
-                }
-                let _ = fs::remove_dir(&self.dir);
-            }
-        }
-        self.committed = true;
         Ok(())
     }
+
+    /// Replaces reknit's own folder by the staged one; `false` (nothing changed) when the folder,
+    /// looked at again under its lock, is no longer reknit's alone.
+    fn swap(&self) -> Result<bool, ExportError> {
+        let (parent, name) = parent_and_name(&self.out);
+        // Wait for any other run swapping this very folder, then look again under its lock.
+        let held = File::open(&self.out).map_err(self.io(&self.given))?;
+        held.lock().map_err(self.io(&self.given))?;
+        if !self
+            .judge(Survey::of(&self.out)?)?
+            .is_some_and(|s| s.only_ours())
+        {
+            return Ok(false);
+        }
+        let retired = parent.join(temp_name(RETIRED_PREFIX, &name));
+        fs::rename(&self.out, &retired).map_err(self.io(&self.given))?;
+        // A file saved into the folder in the meantime makes it the user's again: put it back.
+        if !Survey::of(&retired)?.is_some_and(|s| s.only_ours()) {
+            fs::rename(&retired, &self.out).map_err(self.io(&self.given))?;
+            return Ok(false);
+        }
+        if let Err(e) = fs::rename(&self.dir, &self.out) {
+            // Put the earlier set back rather than leave nothing.
+            let _ = fs::rename(&retired, &self.out);
+            return Err(self.io(&self.given)(e));
+        }
+        self.sync_parent();
+        let _ = fs::remove_dir_all(&retired);
+        Ok(true)
+    }
+
+    /// Replaces reknit's recorded files one by one inside a folder that is not reknit's alone:
+    /// marker out first, in last, under a record naming old and new so that a run stopped
+    /// midway leaves nothing unaccounted for.
+    fn replace_files(&self, names: &[String], s: &Survey) -> Result<(), ExportError> {
+        let made = s.record && s.made_by_reknit;
+        self.seal(names, made)?;
+        let mut union = s.owned.clone();
+        union.extend(names.iter().cloned());
+        union.sort();
+        union.dedup();
+        write_record(&self.out, &union, made).map_err(self.io(&self.given.join(RECORD)))?;
+        let old = s.owned.iter().map(String::as_str);
+        for n in std::iter::once(COMPLETE_MARKER).chain(old) {
+            let p = self.out.join(n);
+            if fs::symlink_metadata(&p).is_ok_and(|m| m.is_file()) {
+                fs::remove_file(&p).map_err(self.io(&self.given.join(n)))?;
+            }
+        }
+        for n in names {
+            fs::rename(self.dir.join(n), self.out.join(n)).map_err(self.io(&self.given.join(n)))?;
+        }
+        fs::rename(self.dir.join(RECORD), self.out.join(RECORD))
+            .map_err(self.io(&self.given.join(RECORD)))?;
+        if let Ok(d) = File::open(&self.out) {
+            let _ = d.sync_all();
+        }
+        let _ = fs::remove_dir(&self.dir);
+        Ok(())
+    }
+}
+
+/// True when `out` is the working folder or holds it: such a folder is never swapped away from
+/// under the user's shell.
+fn holds_working_folder(out: &Path) -> bool {
+    std::env::current_dir()
+        .ok()
+        .and_then(|c| fs::canonicalize(c).ok())
+        .is_some_and(|c| c.starts_with(out))
 }
 
 impl Drop for Staging {

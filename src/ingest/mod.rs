@@ -4,7 +4,6 @@
 //! vertices within the snapping tolerance, splits lines at shared vertices, drops zero-length pieces
 //! and duplicates, and measures every edge on the ellipsoid. Nothing after this stage touches files.
 
-pub mod antimeridian;
 pub mod attach;
 pub mod cleanup;
 pub mod coords;

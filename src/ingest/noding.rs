@@ -77,8 +77,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         ..Default::default()
     };
     let mut qa: Vec<QaPoint> = Vec::new();
-    let (mut cid, mut founders) = cluster(&layer.coords, snap_m);
-    super::antimeridian::join_across(&layer.coords, snap_m, &mut cid, &mut founders);
+    let (cid, founders) = cluster(&layer.coords, snap_m);
     let mut centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
     let mut centres_native: Vec<[f64; 2]> = if layer.native.is_empty() {
         Vec::new()

@@ -72,6 +72,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
     let s = &job.road_settings;
     let ss = &job.site_settings;
     serde_json::json!({
+        "name": job.name,
         "snap_m": s.snap_m,
         "damage_field": s.damage.field,
         "default_damage": s.damage.default,
