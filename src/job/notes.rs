@@ -42,6 +42,11 @@ fn count(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
 }
 
+/// The verb for a count: `has` for one, `have` for more (likewise `lies` / `lie`).
+fn verb(n: usize, one: &'static str, many: &'static str) -> &'static str {
+    if n == 1 { one } else { many }
+}
+
 /// A damage factor in words.
 fn factor_words(f: f64) -> String {
     if f < 0.0 {
@@ -83,10 +88,12 @@ pub(super) fn damage(notes: &mut Notes, read: &ReadStats, s: &RoadSettings, late
         notes.push(
             "damage_defaulted",
             format!(
-                "{} of {} have no value in the {field} and are counted at the default damage, \
+                "{} of {} {} no value in the {field} and {} counted at the default damage, \
                  {f}{after}",
                 count(n, "road", "roads"),
-                read.features_used
+                read.features_used,
+                verb(n, "has", "have"),
+                verb(n, "is", "are")
             ),
         );
     }
@@ -105,8 +112,9 @@ pub(super) fn site_defaults(notes: &mut Notes, sl: &SiteLayer, s: &SiteSettings)
             "no site has an id".to_string()
         } else {
             format!(
-                "{} of {total} have no id",
-                count(d.generated_ids, "site", "sites")
+                "{} of {total} {} no id",
+                count(d.generated_ids, "site", "sites"),
+                verb(d.generated_ids, "has", "have")
             )
         };
         notes.push(
@@ -120,8 +128,9 @@ pub(super) fn site_defaults(notes: &mut Notes, sl: &SiteLayer, s: &SiteSettings)
             "no site has a value".to_string()
         } else {
             format!(
-                "{} of {total} have no value",
-                count(d.default_priority, "site", "sites")
+                "{} of {total} {} no value",
+                count(d.default_priority, "site", "sites"),
+                verb(d.default_priority, "has", "have")
             )
         };
         notes.push(
@@ -139,10 +148,11 @@ pub(super) fn reports(notes: &mut Notes, fig: &ReportFigures, distance_m: f64) {
     notes.push(
         "damage_reports_unmatched",
         format!(
-            "{} of {} lie farther than {distance_m} m from every road and changed nothing \
+            "{} of {} {} farther than {distance_m} m from every road and changed nothing \
              (summary.json damage_reports.unmatched lists them)",
             count(fig.unmatched.len(), "damage report", "damage reports"),
-            fig.read
+            fig.read,
+            verb(fig.unmatched.len(), "lies", "lie")
         ),
     );
 }
@@ -217,6 +227,10 @@ mod tests {
             ..Default::default()
         };
         damage(&mut n, &read, &RoadSettings::default(), false);
-        assert!(n.into_vec()[0].message.starts_with("1 road of 3"));
+        assert!(
+            n.into_vec()[0]
+                .message
+                .starts_with("1 road of 3 has no value")
+        );
     }
 }
