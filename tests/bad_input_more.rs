@@ -51,6 +51,18 @@ case!(backup_links_without_sites, |d| {
     );
 });
 
+case!(budget_without_sites, |d| {
+    plan_fails(
+        &roads_ok(d),
+        &["--budget", "100", "--whole-network"],
+        &["--budget", "--sites"],
+    );
+});
+
+case!(hub_without_sites, |d| {
+    plan_fails(&roads_ok(d), &["--hub", "a"], &["--hub", "--sites"]);
+});
+
 // ---- Sites ----
 
 case!(duplicate_site_ids, |d| {
@@ -72,6 +84,47 @@ case!(hub_not_among_the_sites, |d| {
         &roads_ok(d),
         &["--sites", &s(&p), "--hub", "nope"],
         &["--hub", "nope", "site ids: a"],
+    );
+});
+
+case!(hub_off_the_road_network, |d| {
+    // The road runs from (0, 0) to (0.001, 0); the named hub lies about 1.1 km north of it.
+    let p = file(
+        d,
+        "sites.geojson",
+        fc(&[
+            &site_feature("a", 0.0, 0.0),
+            &site_feature("far", 0.0005, 0.01),
+        ]),
+    );
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p), "--hub", "far"],
+        &[
+            "--hub",
+            "\"far\" is not on the road network",
+            "no road within 250 m",
+        ],
+    );
+});
+
+case!(no_site_near_a_usable_road, |d| {
+    let p = file(
+        d,
+        "sites.geojson",
+        fc(&[
+            &site_feature("x", 0.0, 0.01),
+            &site_feature("y", 0.0, -0.01),
+        ]),
+    );
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "no site lies within --max-attach",
+            "no hub to plan from",
+            "x: no road within",
+        ],
     );
 });
 

@@ -96,6 +96,40 @@ fn within_budget_against_the_exact_best_choice_of_sites() {
                 weight += t.weight;
             }
         }
+        // A site left out names what joining it still costs: its cheapest path from what the plan
+        // joins (intact roads and the plan's edges free), by Bellman–Ford here.
+        let mut on = ours.edges.clone();
+        on.extend((0..g.len() as u32).filter(|&e| g.cost[e as usize] == 0));
+        let joined_part = reach(&g, &on, 0);
+        let mut dist: Vec<Option<Cost>> = joined_part.iter().map(|&j| j.then_some(0)).collect();
+        for _ in 0..g.vertices {
+            for e in 0..g.len() {
+                if !g.usable(e) {
+                    continue;
+                }
+                let c = if ours.edges.contains(&(e as u32)) {
+                    0
+                } else {
+                    g.cost[e]
+                };
+                let [a, b] = g.ends[e];
+                for (x, y) in [(a, b), (b, a)] {
+                    if let Some(dx) = dist[x as usize]
+                        && dist[y as usize].is_none_or(|dy| dx + c < dy)
+                    {
+                        dist[y as usize] = Some(dx + c);
+                    }
+                }
+            }
+        }
+        for &(k, need) in &ours.left_out {
+            assert!(!ours.joined[k]);
+            assert_eq!(need, dist[targets[k].junction as usize], "site {k}");
+        }
+        assert_eq!(
+            ours.left_out.len(),
+            ours.joined.iter().filter(|&&j| !j).count()
+        );
         // At least as good as following the full plan's tree (the repair order's rule).
         let (steps, _) = order_within(&g, &full.edges, &[0], &targets, Some(budget));
         let along: Vec<u32> = steps.iter().map(|s| s.edge).collect();

@@ -318,7 +318,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
     );
     if let Some(s) = &summary.sites {
         eprintln!(
-            "sites: {} of {} connected; lower bound {:.3} repair-metres ({})",
+            "sites: {} of {} joined to the hub; lower bound {:.3} repair-metres ({})",
             s.connected,
             s.total,
             summary.lower_bound,
@@ -329,7 +329,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             }
         );
         for u in &s.unconnected {
-            eprintln!("  {} not connected: {}", u.id, u.reason);
+            eprintln!("  {} {}: {}", u.id, u.status, u.reason);
         }
         if let Some(n) = &s.note {
             eprintln!("  note: {n}");

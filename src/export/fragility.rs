@@ -24,6 +24,9 @@ pub struct FragilityFigures {
     pub cut_vertices: usize,
     /// Bridges that would cut at least one site off the hub.
     pub critical_edges: usize,
+    /// Sites checked: those joined to the hub by the plan, the hub excepted. Sites not joined
+    /// are not counted here; they are listed with their reason under `sites.unconnected`.
+    pub sites_checked: usize,
     /// Sites that a single road failure would cut off.
     pub sites_with_single_points_of_failure: usize,
     /// Per such site, the failures that would cut it off.
@@ -45,6 +48,7 @@ impl FragilityLayer {
         f: &Fragility,
         protects: Vec<Vec<usize>>,
         per_site: Vec<(usize, Vec<u32>)>,
+        sites_checked: usize,
         sl: &SiteLayer,
     ) -> Self {
         let critical: Vec<(u32, Vec<String>)> = f
@@ -59,6 +63,7 @@ impl FragilityLayer {
                 bridges: f.bridges.len(),
                 cut_vertices: f.cut_vertices.len(),
                 critical_edges: critical.len(),
+                sites_checked,
                 sites_with_single_points_of_failure: per_site.len(),
                 per_site: per_site
                     .into_iter()

@@ -65,6 +65,21 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         writeln!(w, "<li>{}</li>", esc(c))?;
     }
     writeln!(w, "</ul></div>")?;
+    if !s.notes.is_empty() {
+        writeln!(
+            w,
+            "<h2>Notes</h2><p>Defaults and choices of this run that change the answer:</p><ul>"
+        )?;
+        for n in &s.notes {
+            writeln!(
+                w,
+                "<li>{} <small>({})</small></li>",
+                esc(&n.message),
+                esc(n.code)
+            )?;
+        }
+        writeln!(w, "</ul>")?;
+    }
     writeln!(w, "<h2>Map</h2>{svg}")?;
     writeln!(w, "<h2>Figures</h2><table>")?;
     let gap = match s.gap {
@@ -115,7 +130,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     if let Some(st) = &s.sites {
         writeln!(
             w,
-            "<tr><th>Sites</th><td>{} of {} connected (hub {})</td></tr>",
+            "<tr><th>Sites</th><td>{} of {} joined to the hub {} (the hub included)</td></tr>",
             st.connected,
             st.total,
             esc(st.hub.as_deref().unwrap_or("none"))
@@ -124,7 +139,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     writeln!(w, "</table>")?;
     writeln!(
         w,
-        "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined</th><th>Share of sites joined</th></tr>"
+        "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined to the hub</th><th>Share of sites joined</th></tr>"
     )?;
     for p in &s.phases {
         writeln!(
@@ -145,17 +160,21 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     }
     writeln!(w, "</table>")?;
     if let Some(st) = &s.sites {
-        writeln!(w, "<h2>Sites not connected</h2>")?;
+        writeln!(w, "<h2>Sites not joined to the hub</h2>")?;
         if st.unconnected.is_empty() {
-            writeln!(w, "<p>Every site is connected.</p>")?;
+            writeln!(w, "<p>Every site is joined to the hub.</p>")?;
         } else {
-            writeln!(w, "<table><tr><th>Site</th><th>Name</th><th>Why</th></tr>")?;
+            writeln!(
+                w,
+                "<table><tr><th>Site</th><th>Name</th><th>Status</th><th>Why</th></tr>"
+            )?;
             for u in &st.unconnected {
                 writeln!(
                     w,
-                    "<tr><td>{}</td><td>{}</td><td>{}</td></tr>",
+                    "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
                     esc(&u.id),
                     esc(u.name.as_deref().unwrap_or("")),
+                    esc(u.status),
                     esc(&u.reason)
                 )?;
             }
@@ -179,6 +198,11 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             )?;
         }
         for (label, b, a) in [
+            (
+                "Sites checked (joined to the hub, the hub excepted)",
+                f.sites_checked,
+                after.map(|a| a.sites_checked),
+            ),
             (
                 "Roads whose loss cuts a site off",
                 f.critical_edges,

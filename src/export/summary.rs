@@ -105,14 +105,16 @@ pub struct PlanFigures {
     pub bound_complete: bool,
 }
 
-/// A site the plan cannot connect, and why.
+/// A site the plan does not join to the hub, and why.
 #[derive(Debug, Clone, Serialize)]
 pub struct UnconnectedSite {
     /// The site's id.
     pub id: String,
     /// Its name, when it has one.
     pub name: Option<String>,
-    /// Why it is not connected.
+    /// Its status in `sites.geojson` (`not attached`, `left out by budget`, `unreachable`).
+    pub status: &'static str,
+    /// Why it is not joined to the hub.
     pub reason: String,
     /// Distance to the nearest road (not attached) or attachment distance, metres.
     pub distance_m: Option<f64>,
@@ -123,8 +125,13 @@ pub struct UnconnectedSite {
 pub struct GroupFigures {
     /// Site ids in the group.
     pub sites: Vec<String>,
-    /// Repair cost of the group's tree, repair-metres.
+    /// True for the group holding the hub: only its sites can be joined to the hub.
+    pub hub: bool,
+    /// Repair cost of the tree joining all the group's sites, repair-metres.
     pub cost: f64,
+    /// Repair cost of the plan's edges in the group's part of the network (less than `cost` when a
+    /// budget left some of the group out), repair-metres.
+    pub cost_in_plan: f64,
     /// Proven lower bound for the group, repair-metres.
     pub lower_bound: f64,
     /// (cost − bound) / bound; null when only the bound is 0.
@@ -140,13 +147,13 @@ pub struct SitesFigures {
     pub total: usize,
     /// Sites attached to a usable road.
     pub attached: usize,
-    /// Sites joined to at least one other site by the plan.
+    /// Sites joined to the hub over intact roads and the plan's repairs, the hub included.
     pub connected: usize,
     /// The hub (depot) site's id.
     pub hub: Option<String>,
     /// Groups of sites that can reach each other, with their trees' figures.
     pub groups: Vec<GroupFigures>,
-    /// Sites that cannot be connected, with the reason.
+    /// Sites not joined to the hub, each with its status and the reason.
     pub unconnected: Vec<UnconnectedSite>,
     /// A note on trivial cases (no sites, one site).
     pub note: Option<String>,
@@ -163,9 +170,9 @@ pub struct PhaseFigures {
     pub cost: f64,
     /// True when the phase is a single repair larger than the crew capacity.
     pub over_capacity: bool,
-    /// Sites joined to their group's root (the hub first) in this phase.
+    /// Sites joined to the hub by this phase's repairs.
     pub sites_connected: Vec<String>,
-    /// Share of all sites connected by the end of the phase (null for whole-network plans).
+    /// Share of all sites joined to the hub by the end of the phase (null without sites).
     pub cumulative_share_of_sites: Option<f64>,
 }
 
@@ -212,8 +219,21 @@ pub struct Summary {
     pub repair_length_m: f64,
     /// Edges in the plan.
     pub plan_edges: usize,
+    /// Defaults and choices of this run that change the answer, each announced.
+    pub notes: Vec<Note>,
     /// Cautions that go with the plan.
     pub cautions: Vec<&'static str>,
+}
+
+/// A default or a choice the run made that changes the answer (a road without a damage value, a
+/// site without an id, the hub picked among equals, …): printed on stderr, written to
+/// `summary.json` and shown in the report.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Note {
+    /// Stable code for programs, such as `damage_defaulted`.
+    pub code: &'static str,
+    /// One plain sentence for people.
+    pub message: String,
 }
 
 /// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing.

@@ -65,6 +65,15 @@ impl DamageRule {
         Damage::Factor(self.default).normalised()
     }
 
+    /// True when a property value carries no damage, so the default applies.
+    pub fn is_missing(value: Option<&Value>) -> bool {
+        match value {
+            None | Some(Value::Null) => true,
+            Some(Value::String(s)) => s.trim().is_empty(),
+            Some(_) => false,
+        }
+    }
+
     /// Interprets one property value; `Err` carries a message naming what is wrong with it.
     ///
     /// Numbers (or numeric text) ≥ 0 are factors, a negative number or the closed value marks the road

@@ -112,6 +112,9 @@ pub struct ReadStats {
     pub line_parts: usize,
     /// Vertices read.
     pub vertices: usize,
+    /// Features used whose damage came from the default (`--default-damage`): no value in the
+    /// damage field, or no category with `--category-field`.
+    pub damage_defaulted: usize,
 }
 
 /// Road lines as flat arrays: the vertices of part `p` are `coords[part_start(p)..part_ends[p]]`.
@@ -485,10 +488,16 @@ pub(super) fn add_feature(
                     .map_err(|m| fail(Some(cf), m))?,
                 Some(c),
             ),
-            None => (settings.damage.missing(), None),
+            None => {
+                layer.stats.damage_defaulted += 1;
+                (settings.damage.missing(), None)
+            }
         },
         None => {
             let field = &settings.damage.field;
+            if DamageRule::is_missing(f.prop(field)) {
+                layer.stats.damage_defaulted += 1;
+            }
             let d = settings
                 .damage
                 .interpret(f.prop(field))

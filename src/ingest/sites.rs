@@ -64,6 +64,25 @@ pub struct SiteLayer {
     pub sites: Vec<Site>,
     /// Path, size and SHA-256 of the input.
     pub input: InputRecord,
+    /// How many sites took a default because their layer lacks the field.
+    pub defaults: SiteDefaults,
+}
+
+/// Counts of sites that took a default for want of a value: such defaults change the plan, so
+/// the run announces them.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct SiteDefaults {
+    /// Sites named `site-N` by position because no id field held a value.
+    pub generated_ids: usize,
+    /// Sites given priority 1 because the priority field held no value.
+    pub default_priority: usize,
+}
+
+impl SiteDefaults {
+    fn add(&mut self, generated_id: bool, default_priority: bool) {
+        self.generated_ids += usize::from(generated_id);
+        self.default_priority += usize::from(default_priority);
+    }
 }
 
 /// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by extension.
@@ -77,7 +96,7 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
         return read_shapefile_sites(&path, settings);
     }
     let mut reader = source.open()?;
-    let mut sites = match ext.as_deref() {
+    let (mut sites, defaults) = match ext.as_deref() {
         Some("csv") | Some("txt") => read_csv(&mut reader, &path, settings)?,
         _ => read_geojson(&mut reader, &path, settings)?,
     };
@@ -106,6 +125,7 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
             bytes,
             sha256,
         },
+        defaults,
     })
 }
 
@@ -122,8 +142,9 @@ fn read_geojson<R: std::io::Read>(
     reader: R,
     path: &Path,
     s: &SiteSettings,
-) -> Result<Vec<Site>, IngestError> {
+) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
     let mut sites = Vec::new();
+    let mut defaults = SiteDefaults::default();
     // Keep every property: sites are few, and their attributes go to the outputs.
     read_collection_all(reader, |index, f, props| {
         match f.geometry_type.as_deref() {
@@ -146,11 +167,19 @@ fn read_geojson<R: std::io::Read>(
             }
         }
         let pos = f.coords.pos[0];
-        sites.push(make_site(path, index, pos, props, f.id.as_ref(), s)?);
+        sites.push(make_site(
+            path,
+            index,
+            pos,
+            props,
+            f.id.as_ref(),
+            s,
+            &mut defaults,
+        )?);
         Ok(())
     })
     .map_err(|e| IngestError::from_read(path, e))?;
-    Ok(sites)
+    Ok((sites, defaults))
 }
 
 /// Like [`read_collection`] but hands every feature's full property map to the callback.
@@ -174,7 +203,8 @@ fn read_csv<R: std::io::Read>(
     reader: R,
     path: &Path,
     s: &SiteSettings,
-) -> Result<Vec<Site>, IngestError> {
+) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
+    let mut defaults = SiteDefaults::default();
     let mut rdr = csv::ReaderBuilder::new()
         .flexible(false)
         .from_reader(reader);
@@ -236,9 +266,17 @@ fn read_csv<R: std::io::Read>(
             };
             attributes.insert(h.to_string(), value);
         }
-        sites.push(make_site(path, index, pos, attributes, None, s)?);
+        sites.push(make_site(
+            path,
+            index,
+            pos,
+            attributes,
+            None,
+            s,
+            &mut defaults,
+        )?);
     }
-    Ok(sites)
+    Ok((sites, defaults))
 }
 
 /// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
@@ -250,16 +288,24 @@ fn make_site(
     attributes: Map<String, Value>,
     member_id: Option<&Value>,
     s: &SiteSettings,
+    defaults: &mut SiteDefaults,
 ) -> Result<Site, IngestError> {
-    let id = match &s.id_field {
+    let found = match &s.id_field {
         Some(f) => attributes.get(f).and_then(text),
         None => member_id.and_then(text).or_else(|| {
             SITE_ID_FIELDS
                 .iter()
                 .find_map(|k| attributes.get(*k).and_then(text))
         }),
-    }
-    .unwrap_or_else(|| format!("site-{}", index + 1));
+    };
+    let field = s.priority_field.as_deref().unwrap_or("priority");
+    let no_priority = match attributes.get(field) {
+        None | Some(Value::Null) => true,
+        Some(Value::String(t)) => t.trim().is_empty(),
+        Some(_) => false,
+    };
+    defaults.add(found.is_none(), no_priority);
+    let id = found.unwrap_or_else(|| format!("site-{}", index + 1));
     let name_field = s.name_field.as_deref().unwrap_or("name");
     Ok(Site {
         index,
@@ -383,6 +429,7 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
+    let mut defaults = SiteDefaults::default();
     for (index, item) in reader.iter_shapes_and_records().enumerate() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
@@ -403,12 +450,21 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
             .into_iter()
             .map(|(k, v)| (k, super::shapefile::field_json(&v)))
             .collect();
-        sites.push(make_site(path, index, pos, attributes, None, s)?);
+        sites.push(make_site(
+            path,
+            index,
+            pos,
+            attributes,
+            None,
+            s,
+            &mut defaults,
+        )?);
     }
     convert(path, &crs, &mut sites)?;
     check_unique(path, &sites)?;
     Ok(SiteLayer {
         sites,
         input: super::shapefile::fingerprint(path, "sites")?,
+        defaults,
     })
 }

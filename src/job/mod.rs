@@ -3,25 +3,34 @@
 //! The command line (and the batch runner) call [`run_plan`]; it owns the order of the stages.
 //! [`summary`] turns the stages' results into `summary.json`.
 
+mod budget;
 pub mod check;
 pub mod fingerprint;
+mod hub;
+mod joined;
+pub mod notes;
 mod resilience;
+mod rows;
 mod schedule;
 pub mod settings;
+pub mod status;
 pub mod summary;
 
 pub use fingerprint::{fingerprint, job_fingerprint};
+pub use joined::SiteReach;
 pub use settings::{settings_json, validate};
+pub use status::SiteStatus;
 
+use notes::Notes;
 use resilience::{backup_plan, fragility_report};
-use schedule::{roots_and_targets, schedule};
+use schedule::schedule;
 
-use crate::export::sites::SiteRow;
 use crate::export::{self, ExportError, Summary};
 use crate::ingest::attach::{Attachment, attach_sites};
 use crate::ingest::sites::{SiteLayer, SiteSettings, read_sites};
 use crate::ingest::source::Source;
 use crate::ingest::{self, IngestError, RoadSettings};
+use crate::network::cost_to_repair_metres;
 use crate::progress::Progress;
 use crate::solve::site_plan::{SitePlan, plan_sites};
 use crate::solve::steiner::Effort;
@@ -141,12 +150,14 @@ pub struct SitesResult {
     pub layer: SiteLayer,
     /// One attachment per site.
     pub attachments: Vec<Attachment>,
-    /// Index of the hub site.
+    /// Index of the hub site (None only when there are no sites).
     pub hub: Option<usize>,
     /// The sites plan (None for a whole-network plan).
     pub plan: Option<SitePlan>,
-    /// Sites left out by `--budget`, with the repair-metres (milli) still needed to join each.
-    pub left_out: Vec<(usize, u64)>,
+    /// What the final plan joins to the hub: the one definition of "joined" every output reads.
+    pub reach: SiteReach,
+    /// Each site's status and, when not joined to the hub, the reason.
+    pub statuses: Vec<SiteStatus>,
 }
 
 /// Runs the whole pipeline and returns the summary that was written.
@@ -154,6 +165,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let out = export::guard::check_out(&job.out, &job.input_paths())?;
     export::staging::preflight(&out, job.force)?;
     settings::validate(job)?;
+    let mut notes = Notes::default();
     let layer = {
         let _s = progress.stage("reading roads");
         ingest::roads::read_roads(&job.roads, &job.road_settings)?
@@ -161,12 +173,10 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let site_layer = match &job.sites {
         Some(src) => {
             let _s = progress.stage("reading sites");
-            Some(read_sites(src, &job.site_settings)?)
+            let sl = read_sites(src, &job.site_settings)?;
+            hub::check_named(&sl, job.hub.as_deref(), &job.sites)?;
+            Some(sl)
         }
-        None => None,
-    };
-    let hub = match &site_layer {
-        Some(sl) => pick_hub(sl, job.hub.as_deref(), &job.sites)?,
         None => None,
     };
     for (reason, n) in &layer.stats.features_skipped {
@@ -174,6 +184,15 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             "{}: skipped {n} feature(s): {reason}",
             job.roads.display_path().display()
         ));
+    }
+    notes::damage(
+        &mut notes,
+        &layer.stats,
+        &job.road_settings,
+        job.zones.is_some() || job.reports.is_some(),
+    );
+    if let Some(sl) = &site_layer {
+        notes::site_defaults(&mut notes, sl, &job.site_settings);
     }
     let read_stats = layer.stats.clone();
     let geodesy = crate::export::summary::Geodesy {
@@ -203,26 +222,27 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     if let Some(src) = &job.reports {
         let _s = progress.stage("applying damage reports");
         let (reports, rec) = crate::ingest::reports::read_reports(src, &job.zone_damage)?;
-        report_figures = Some(crate::ingest::reports::apply_reports(
-            &mut net,
-            &reports,
-            job.report_distance_m,
-        ));
+        let fig = crate::ingest::reports::apply_reports(&mut net, &reports, job.report_distance_m);
+        notes::reports(&mut notes, &fig, job.report_distance_m);
+        report_figures = Some(fig);
         inputs.push(rec);
     }
     if job.zones.is_some() || job.reports.is_some() {
         ingest::check_cost_total(&net, &job.roads.display_path())?;
     }
-    let attachments = match &site_layer {
+    let (attachments, hub) = match &site_layer {
         Some(sl) => {
             let _s = progress.stage("attaching sites");
-            attach_sites(&mut net, &sl.sites, job.max_attach_m)
+            let a = attach_sites(&mut net, &sl.sites, job.max_attach_m);
+            notes::unattached(&mut notes, sl, &a, job.max_attach_m);
+            let hub = hub::choose(sl, &a, job.hub.as_deref(), &mut notes)?;
+            (a, hub)
         }
-        None => Vec::new(),
+        None => (Vec::new(), None),
     };
     let graph = net.weighted_edges();
     let comps = solve::components::components(&graph);
-    let (plan, site_plan) = {
+    let (mut plan, site_plan) = {
         let _s = progress.stage("solving");
         match &site_layer {
             Some(_) if !job.whole_network => {
@@ -246,34 +266,24 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         }
     };
     // Within a budget smaller than the plan, choose which sites to join.
-    let mut left_out = Vec::new();
-    let mut plan = plan;
+    let mut budget_applied = false;
     if let (Some(b), Some(sl), Some(sp)) = (job.budget, &site_layer, &site_plan) {
-        let budget = (b * 1000.0).round() as u64;
-        if plan.total_cost > budget {
-            let _s = progress.stage("choosing sites within the budget");
-            let (roots, targets) = roots_and_targets(sl, &attachments, hub, sp);
-            let bp = solve::budget::within_budget(&graph, &plan.edges, &roots, &targets, budget);
-            left_out = bp
-                .left_out
-                .iter()
-                .filter_map(|&(k, need)| need.map(|n| (targets[k].id, n)))
-                .collect();
-            plan.edges = bp.edges;
-            plan.total_cost = bp.cost;
-            let mut trees: Vec<u32> = plan
-                .edges
-                .iter()
-                .map(|&e| comps.of[graph.ends[e as usize][0] as usize])
-                .collect();
-            trees.sort_unstable();
-            trees.dedup();
-            plan.trees = trees.len();
-            plan.lower_bound = 0;
-            plan.bound_complete = false;
+        let _s = progress.stage("choosing sites within the budget");
+        if let Some(cut) = budget::apply(b, &graph, &comps, &mut plan, sl, &attachments, hub, sp)? {
+            budget_applied = true;
+            notes.push(
+                "budget_limits_plan",
+                format!(
+                    "the full plan would cost {:.3} repair-metres, more than the budget of {b}: \
+                     the plan spends {:.3} on the sites giving the most priority per \
+                     repair-metre, joined to the hub first",
+                    cost_to_repair_metres(cut.full_cost),
+                    cost_to_repair_metres(plan.total_cost)
+                ),
+            );
         }
     }
-    let steps = {
+    let mut steps = {
         let _s = progress.stage("ordering repairs");
         schedule(
             job,
@@ -305,38 +315,46 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             .into());
         }
     }
-    let fragile = match (&site_layer, &site_plan) {
-        (Some(sl), Some(_)) => {
-            let _s = progress.stage("finding single points of failure");
-            Some(fragility_report(&graph, &plan.edges, sl, &attachments, hub))
-        }
-        _ => None,
-    };
-    let backup = match (&site_layer, &site_plan) {
-        (Some(sl), Some(_)) if job.redundancy => {
-            let _s = progress.stage("planning backup links");
-            Some(backup_plan(
-                &graph,
-                &plan.edges,
-                sl,
-                &attachments,
+    let sites = match site_layer {
+        Some(layer) => {
+            inputs.push(layer.input.clone());
+            let reach = joined::site_reach(&graph, &plan.edges, &attachments, hub, &mut steps)?;
+            let statuses = status::statuses(&status::Facts {
+                graph: &graph,
+                comps: &comps,
+                plan: &plan.edges,
+                sites: &layer,
+                attachments: &attachments,
+                reach: &reach,
+                budget_applied,
+            })?;
+            hub::alone_note(&mut notes, &layer, &attachments, hub, &comps);
+            Some(SitesResult {
+                layer,
+                attachments,
                 hub,
-                steps.len(),
-            )?)
+                plan: site_plan,
+                reach,
+                statuses,
+            })
+        }
+        None => None,
+    };
+    let fragile = match &sites {
+        Some(sr) if sr.reach.hub_junction.is_some() => {
+            let _s = progress.stage("finding single points of failure");
+            Some(fragility_report(&graph, &plan.edges, sr)?)
         }
         _ => None,
     };
-    let sites = site_layer.map(|layer| {
-        inputs.push(layer.input.clone());
-        SitesResult {
-            layer,
-            attachments,
-            hub,
-            plan: site_plan,
-            left_out,
+    let backup = match &sites {
+        Some(sr) if job.redundancy && sr.reach.hub_junction.is_some() => {
+            let _s = progress.stage("planning backup links");
+            Some(backup_plan(&graph, &plan.edges, sr, steps.len())?)
         }
-    });
-    let rows = sites.as_ref().map(site_rows);
+        _ => None,
+    };
+    let rows = sites.as_ref().map(rows::site_rows);
     if let Some(p) = &job.road_settings.cost_table_file {
         inputs.push(fingerprint::input_record(
             "cost table",
@@ -362,6 +380,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     summary.counts.damage_zones = zone_figures.0;
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
+    summary.notes = notes.into_vec();
     summary.outputs = export::output_names(rows.is_some(), fragile.is_some(), backup.is_some());
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
@@ -370,18 +389,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or_default()
     });
-    let marks: Vec<crate::export::picture::SiteMark> = rows
-        .as_deref()
-        .unwrap_or_default()
-        .iter()
-        .map(|r| crate::export::picture::SiteMark {
-            pos: r.pos,
-            label: r.name.as_deref().unwrap_or(&r.id),
-            hub: r.hub,
-            connected: r.status == "connected",
-            priority: r.priority,
-        })
-        .collect();
+    let marks = rows::marks(rows.as_deref().unwrap_or_default());
     {
         let _s = progress.stage("writing outputs");
         export::write_outputs(
@@ -412,117 +420,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             },
         )?;
     }
+    for n in &summary.notes {
+        progress.note(&format!("note: {}", n.message));
+    }
     Ok(summary)
-}
-
-/// The hub: the named site, or the one with the highest priority (first in the file on ties).
-fn pick_hub(
-    sl: &SiteLayer,
-    named: Option<&str>,
-    src: &Option<Source>,
-) -> Result<Option<usize>, IngestError> {
-    match named {
-        Some(id) => sl
-            .sites
-            .iter()
-            .position(|s| s.id == id)
-            .map(Some)
-            .ok_or_else(|| IngestError::Setting {
-                name: "--hub",
-                message: format!(
-                    "no site with id {id:?} in {} (site ids: {})",
-                    src.as_ref()
-                        .map(|s| s.display_path().display().to_string())
-                        .unwrap_or_default(),
-                    sl.sites
-                        .iter()
-                        .take(20)
-                        .map(|s| s.id.as_str())
-                        .collect::<Vec<_>>()
-                        .join(", ")
-                ),
-            }),
-        None => Ok(sl
-            .sites
-            .iter()
-            .enumerate()
-            .fold(None, |best: Option<(usize, f64)>, (i, s)| match best {
-                Some((_, p)) if p >= s.priority => best,
-                _ => Some((i, s.priority)),
-            })
-            .map(|(i, _)| i)),
-    }
-}
-
-/// The rows of `sites.geojson`.
-fn site_rows(r: &SitesResult) -> Vec<SiteRow> {
-    let group_of = group_index(r);
-    r.layer
-        .sites
-        .iter()
-        .zip(&r.attachments)
-        .enumerate()
-        .map(|(i, (s, a))| {
-            let (status, reason) = status(r, i, &group_of);
-            SiteRow {
-                id: s.id.clone(),
-                name: s.name.clone(),
-                priority: s.priority,
-                pos: s.pos,
-                attributes: s.attributes.clone(),
-                hub: r.hub == Some(i),
-                junction: a.junction,
-                attach_point: a.point,
-                attach_distance_m: a.distance_m,
-                status,
-                reason,
-                group: group_of[i],
-            }
-        })
-        .collect()
-}
-
-/// Group index of every site (None when not attached).
-pub fn group_index(r: &SitesResult) -> Vec<Option<usize>> {
-    let mut g = vec![None; r.layer.sites.len()];
-    if let Some(p) = &r.plan {
-        for (gi, group) in p.groups.iter().enumerate() {
-            for &s in &group.sites {
-                g[s] = Some(gi);
-            }
-        }
-    }
-    g
-}
-
-/// A site's status and, when not connected, the reason.
-pub fn status(
-    r: &SitesResult,
-    i: usize,
-    group_of: &[Option<usize>],
-) -> (&'static str, Option<String>) {
-    let a = &r.attachments[i];
-    if let Some(f) = &a.failure {
-        return ("not attached", Some(f.clone()));
-    }
-    if let Some((_, need)) = r.left_out.iter().find(|(k, _)| *k == i) {
-        return (
-            "left out by budget",
-            Some(format!(
-                "outside the budget: {:.3} more repair-metres would join it",
-                *need as f64 / 1000.0
-            )),
-        );
-    }
-    match (&r.plan, group_of[i]) {
-        (Some(p), Some(g)) if p.groups[g].sites.len() > 1 => ("connected", None),
-        (Some(_), _) => (
-            "alone",
-            Some(
-                "no other site can be reached over usable roads (impassable roads cut it off)"
-                    .into(),
-            ),
-        ),
-        (None, _) => ("attached", None),
-    }
 }

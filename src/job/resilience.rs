@@ -1,21 +1,20 @@
 //! Resilience after the plan: single points of failure, and backup links that remove them.
 
+use super::SitesResult;
 use crate::export::backup::{BackupLayer, BackupRow};
 use crate::export::fragility::FragilityLayer;
-use crate::ingest::attach::Attachment;
-use crate::ingest::sites::SiteLayer;
 use crate::solve::SolveError;
 use crate::solve::graph::EdgeList;
 
 /// The network after the plan (intact roads plus planned repairs) and its single points of failure
-/// for the sites.
+/// for the sites it joins to the hub (`sr.reach`); every one of them must be found reaching the
+/// hub here too.
 pub(super) fn fragility_report(
     graph: &crate::solve::graph::EdgeList,
     repaired: &[u32],
-    sl: &SiteLayer,
-    attachments: &[Attachment],
-    hub: Option<usize>,
-) -> FragilityLayer {
+    sr: &SitesResult,
+) -> Result<FragilityLayer, SolveError> {
+    let (sl, attachments, hub) = (&sr.layer, &sr.attachments, sr.hub);
     use crate::solve::graph::UNUSABLE;
     let mut in_plan = vec![false; graph.len()];
     for &e in repaired {
@@ -42,14 +41,22 @@ pub(super) fn fragility_report(
     let f = crate::solve::fragility::fragility(&after, &roots);
     let mut protects: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
     let mut per_site: Vec<(usize, Vec<u32>)> = Vec::new();
+    let mut checked = 0;
     for (i, a) in attachments.iter().enumerate() {
         let Some(j) = a.junction else { continue };
-        // Only sites that reach the hub at all can be cut off from it.
-        if Some(i) == hub {
+        // Only sites joined to the hub can be cut off from it.
+        if Some(i) == hub || !sr.reach.joined[i] {
             continue;
         }
+        checked += 1;
         let Some(cut) = f.cutting_off(&roots, j) else {
-            continue;
+            return Err(SolveError::Verification {
+                what: "single-failure report",
+                detail: format!(
+                    "site {} is joined but the search does not reach it",
+                    sl.sites[i].id
+                ),
+            });
         };
         let mut failures = Vec::new();
         for b in cut {
@@ -60,7 +67,7 @@ pub(super) fn fragility_report(
             per_site.push((i, failures));
         }
     }
-    FragilityLayer::new(&f, protects, per_site, sl)
+    Ok(FragilityLayer::new(&f, protects, per_site, checked, sl))
 }
 
 /// Plans backup links for the sites joined to the hub, numbering the added repairs after the
@@ -68,11 +75,10 @@ pub(super) fn fragility_report(
 pub(super) fn backup_plan(
     graph: &EdgeList,
     repaired: &[u32],
-    sl: &SiteLayer,
-    attachments: &[Attachment],
-    hub: Option<usize>,
+    sr: &SitesResult,
     planned: usize,
 ) -> Result<BackupLayer, SolveError> {
+    let (sl, attachments, hub) = (&sr.layer, &sr.attachments, sr.hub);
     let mut free = vec![false; graph.len()];
     for (e, f) in free.iter_mut().enumerate() {
         *f = graph.cost[e] == 0;
@@ -84,7 +90,7 @@ pub(super) fn backup_plan(
         return Ok(BackupLayer::default());
     };
     let sites: Vec<usize> = (0..attachments.len())
-        .filter(|&i| Some(i) != hub && attachments[i].junction.is_some())
+        .filter(|&i| Some(i) != hub && sr.reach.joined[i])
         .collect();
     let terminals: Vec<u32> = sites
         .iter()
@@ -112,7 +118,7 @@ pub(super) fn backup_plan(
     }
     let mut all: Vec<u32> = repaired.to_vec();
     all.extend(b.edges.iter().copied());
-    let after = fragility_report(graph, &all, sl, attachments, hub);
+    let after = fragility_report(graph, &all, sr)?;
     Ok(BackupLayer::new(
         rows,
         &b,

@@ -33,6 +33,13 @@ pub(super) fn schedule(
                 let c = comps.of[v as usize] as usize;
                 first[c] = first[c].min(v);
             }
+            // With sites, the hub's tree grows from the hub, so repairs reach sites from it.
+            if let Some(j) = hub.and_then(|h| attachments[h].junction) {
+                let c = comps.of[j as usize] as usize;
+                if first[c] != u32::MAX {
+                    first[c] = j;
+                }
+            }
             let roots: Vec<u32> = first.into_iter().filter(|&v| v != u32::MAX).collect();
             let lengths: Vec<f64> = net.edges.iter().map(|e| e.length_m).collect();
             order_whole_network(graph, &plan.edges, &roots, &lengths)
@@ -55,10 +62,16 @@ pub(super) fn roots_and_targets(
     sp: &SitePlan,
 ) -> (Vec<u32>, Vec<Target>) {
     let mut roots = Vec::new();
-    if let Some(j) = hub.and_then(|h| attachments[h].junction) {
+    let hub_j = hub.and_then(|h| attachments[h].junction);
+    if let Some(j) = hub_j {
         roots.push(j);
     }
     for g in &sp.groups {
+        // The hub's group grows from the hub alone: a second root there would count sites as
+        // joined that have no way to the hub yet.
+        if hub_j.is_some_and(|j| g.sites.iter().any(|&i| attachments[i].junction == Some(j))) {
+            continue;
+        }
         // Each other group grows from its highest-priority site (first on ties).
         let best = g
             .sites
@@ -72,17 +85,23 @@ pub(super) fn roots_and_targets(
             roots.push(j);
         }
     }
-    let targets: Vec<Target> = sl
-        .sites
-        .iter()
-        .enumerate()
-        .filter_map(|(i, s)| {
-            attachments[i].junction.map(|j| Target {
-                junction: j,
-                weight: s.priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
-                id: i,
-            })
-        })
+    let targets: Vec<Target> = (0..sl.sites.len())
+        .filter_map(|i| target(sl, attachments, hub, i))
         .collect();
     (roots, targets)
+}
+
+/// Site `i` as a target of the repair order, weighted by its priority (the hub above all); None
+/// when it is not attached.
+pub(super) fn target(
+    sl: &SiteLayer,
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    i: usize,
+) -> Option<Target> {
+    attachments[i].junction.map(|j| Target {
+        junction: j,
+        weight: sl.sites[i].priority.max(1e-6) * if Some(i) == hub { 1e6 } else { 1.0 },
+        id: i,
+    })
 }

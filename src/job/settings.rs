@@ -43,6 +43,12 @@ pub fn validate(job: &PlanJob) -> Result<(), IngestError> {
                     .into(),
         });
     }
+    if job.hub.is_some() && job.sites.is_none() {
+        return Err(IngestError::Setting {
+            name: "--hub",
+            message: "the hub is one of the sites: give --sites".into(),
+        });
+    }
     if let Some(c) = job.crew_capacity
         && !(c.is_finite() && c >= 0.0005)
     {

@@ -1,6 +1,7 @@
 //! Builds `summary.json` from the results of the stages.
 
-use super::{PlanJob, SitesResult, group_index, status};
+use super::status::CONNECTED;
+use super::{PlanJob, SitesResult};
 use crate::export::summary::*;
 use crate::ingest::NodingStats;
 use crate::ingest::ReadStats;
@@ -85,7 +86,7 @@ pub fn build(
         phases: Vec::new(),
         fragility: None,
         backup: None,
-        sites: sites.map(sites_figures),
+        sites: sites.map(|r| sites_figures(r, net, comps, plan)),
         total_cost: cost_to_repair_metres(plan.total_cost),
         lower_bound: cost_to_repair_metres(plan.lower_bound),
         gap: g.map(|x| (x * 1e6).round() / 1e6),
@@ -93,26 +94,36 @@ pub fn build(
         cost_unit: "repair-metre",
         repair_length_m: round3(repair.iter().map(|e| e.length_m).sum()),
         plan_edges: plan.edges.len(),
+        notes: Vec::new(),
         cautions: crate::cautions::CAUTIONS.to_vec(),
     }
 }
 
-fn sites_figures(r: &SitesResult) -> SitesFigures {
+fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan) -> SitesFigures {
     let sites = &r.layer.sites;
-    let group_of = group_index(r);
     let mut unconnected = Vec::new();
     let mut connected = 0;
     for (i, s) in sites.iter().enumerate() {
-        match status(r, i, &group_of) {
-            ("connected", _) => connected += 1,
-            (_, reason) => unconnected.push(UnconnectedSite {
+        let st = &r.statuses[i];
+        if st.status == CONNECTED {
+            connected += 1;
+        } else {
+            unconnected.push(UnconnectedSite {
                 id: s.id.clone(),
                 name: s.name.clone(),
-                reason: reason.unwrap_or_else(|| "not part of a sites plan".into()),
+                status: st.status,
+                reason: st.reason.clone().unwrap_or_default(),
                 distance_m: r.attachments[i].distance_m.map(round3),
-            }),
+            });
         }
     }
+    // Repair cost of the plan in each component, for the groups' `cost_in_plan`.
+    let mut in_plan: std::collections::HashMap<u32, u64> = Default::default();
+    for &e in &plan.edges {
+        let edge = &net.edges[e as usize];
+        *in_plan.entry(comps.of[edge.from as usize]).or_default() += edge.cost;
+    }
+    let hub_comp = r.reach.hub_junction.map(|j| comps.of[j as usize]);
     let groups = r
         .plan
         .as_ref()
@@ -121,7 +132,11 @@ fn sites_figures(r: &SitesResult) -> SitesFigures {
                 .iter()
                 .map(|g| GroupFigures {
                     sites: g.sites.iter().map(|&i| sites[i].id.clone()).collect(),
+                    hub: Some(g.component) == hub_comp,
                     cost: cost_to_repair_metres(g.tree.cost),
+                    cost_in_plan: cost_to_repair_metres(
+                        in_plan.get(&g.component).copied().unwrap_or(0),
+                    ),
                     lower_bound: cost_to_repair_metres(g.tree.lower_bound),
                     gap: gap(g.tree.cost, g.tree.lower_bound).map(|x| (x * 1e6).round() / 1e6),
                     reduced_graph: [g.tree.reduced_size.0, g.tree.reduced_size.1],
@@ -149,7 +164,7 @@ fn sites_figures(r: &SitesResult) -> SitesFigures {
     }
 }
 
-/// Per phase: repairs, cost, sites newly joined to the hub's tree, cumulative share of sites.
+/// Per phase: repairs, cost, sites newly joined to the hub, cumulative share of sites joined.
 pub fn phases(
     g: &crate::solve::graph::EdgeList,
     steps: &[crate::solve::order::Step],
@@ -157,15 +172,8 @@ pub fn phases(
 ) -> Vec<PhaseFigures> {
     let total_sites = sites.map_or(0, |s| s.layer.sites.len());
     let mut out: Vec<PhaseFigures> = Vec::new();
-    // Sites joined before any repair (the roots, and sites reached over intact roads).
-    let completed: usize = steps.iter().map(|s| s.completes.len()).sum();
-    let mut cumulative = sites.map_or(0, |r| {
-        let group_of = group_index(r);
-        (0..r.layer.sites.len())
-            .filter(|&i| status(r, i, &group_of).0 == "connected")
-            .count()
-            .saturating_sub(completed)
-    });
+    // Sites joined before any repair: the hub, and sites it reaches over intact roads.
+    let mut cumulative = sites.map_or(0, |r| r.reach.before.iter().filter(|&&b| b).count());
     for s in steps {
         if out.last().is_none_or(|p| p.phase != s.phase) {
             out.push(PhaseFigures {

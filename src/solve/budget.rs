@@ -221,12 +221,28 @@ fn finish(g: &EdgeList, csr: &Csr, roots: &[u32], targets: &[Target], gr: &Growt
     }
     let edges: Vec<u32> = (0..g.len() as u32).filter(|&e| keep[e as usize]).collect();
     let cost = edges.iter().map(|&e| g.cost[e as usize]).sum();
+    // What the left-out targets would still cost is measured from the kept edges, not from the
+    // growth: repairs that joined no target were dropped above.
+    let mut reached = vec![false; n];
+    let mut stack: Vec<u32> = roots.to_vec();
+    for &r in roots {
+        reached[r as usize] = true;
+    }
+    while let Some(v) = stack.pop() {
+        for (w, e) in csr.neighbours(v) {
+            if !reached[w as usize] && (g.cost[e as usize] == 0 || keep[e as usize]) {
+                reached[w as usize] = true;
+                stack.push(w);
+            }
+        }
+    }
+    let dist = super::joined::cost_from(g, &edges, &reached);
     let left_out = targets
         .iter()
         .enumerate()
         .filter(|&(k, _)| !joined[k])
         .map(|(k, t)| {
-            let d = gr.dist[t.junction as usize];
+            let d = dist[t.junction as usize];
             (k, (d != Cost::MAX).then_some(d))
         })
         .collect();

@@ -12,6 +12,7 @@ pub mod disjoint;
 pub mod fragility;
 pub mod graph;
 pub mod heap;
+pub mod joined;
 pub mod kruskal;
 pub mod order;
 pub mod prim;

@@ -6,6 +6,7 @@ pub mod bad;
 pub mod batch;
 pub mod exact;
 pub mod external;
+pub mod joined;
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -113,3 +114,34 @@ pub fn listing(dir: &Path) -> Vec<String> {
 
 /// Metres per degree at latitude 0 (rough, for placing fixtures a few metres apart).
 pub const DEG_PER_M: f64 = 1.0 / 111_320.0;
+
+/// The bundled sample sites layer.
+pub fn sample_sites() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/kestrel-vale/sites.geojson")
+}
+
+/// A point `x` metres east and `y` metres north of (0, 0), near enough for fixtures.
+pub fn at_m(x: f64, y: f64) -> [f64; 2] {
+    [x * DEG_PER_M, y * DEG_PER_M]
+}
+
+/// A Point feature with the given properties (JSON text).
+pub fn point(p: [f64; 2], props: &str) -> String {
+    format!(
+        r#"{{"type":"Feature","properties":{props},"geometry":{{"type":"Point","coordinates":[{},{}]}}}}"#,
+        p[0], p[1]
+    )
+}
+
+/// Runs `plan --roads ROADS --out OUT -q EXTRA…` and returns the output (success not checked).
+pub fn plan_cli(roads: &Path, out: &Path, extra: &[&str]) -> Output {
+    let mut args = vec![
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend_from_slice(extra);
+    run(&args)
+}

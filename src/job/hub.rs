@@ -1,0 +1,145 @@
+//! The hub (depot): the site every other is joined to. It must lie on the road network.
+
+use super::notes::{Notes, list};
+use crate::ingest::IngestError;
+use crate::ingest::attach::Attachment;
+use crate::ingest::sites::SiteLayer;
+use crate::ingest::source::Source;
+
+/// Checks, before any heavy work, that a hub named with `--hub` is among the sites.
+pub(super) fn check_named(
+    sl: &SiteLayer,
+    named: Option<&str>,
+    src: &Option<Source>,
+) -> Result<(), IngestError> {
+    let Some(id) = named else { return Ok(()) };
+    if sl.sites.iter().any(|s| s.id == id) {
+        return Ok(());
+    }
+    Err(IngestError::Setting {
+        name: "--hub",
+        message: format!(
+            "no site with id {id:?} in {} (site ids: {})",
+            src.as_ref()
+                .map(|s| s.display_path().display().to_string())
+                .unwrap_or_default(),
+            list(sl.sites.iter().map(|s| s.id.as_str()))
+        ),
+    })
+}
+
+/// The hub once the sites are attached: the named site, which must reach a usable road; or the
+/// site with the highest priority among those that do (first in the file on ties), with a note
+/// when that choice was not obvious. `None` only when there are no sites.
+pub(super) fn choose(
+    sl: &SiteLayer,
+    attachments: &[Attachment],
+    named: Option<&str>,
+    notes: &mut Notes,
+) -> Result<Option<usize>, IngestError> {
+    if let Some(id) = named {
+        let i = sl
+            .sites
+            .iter()
+            .position(|s| s.id == id)
+            .expect("checked by check_named");
+        if let Some(why) = &attachments[i].failure {
+            return Err(IngestError::Setting {
+                name: "--hub",
+                message: format!(
+                    "the hub {id:?} is not on the road network ({why}): every plan is made from \
+                     the hub; raise --max-attach or name another hub"
+                ),
+            });
+        }
+        return Ok(Some(i));
+    }
+    if sl.sites.is_empty() {
+        return Ok(None);
+    }
+    let on_road: Vec<usize> = (0..sl.sites.len())
+        .filter(|&i| attachments[i].junction.is_some())
+        .collect();
+    let Some(top) = on_road
+        .iter()
+        .map(|&i| sl.sites[i].priority)
+        .max_by(f64::total_cmp)
+    else {
+        return Err(IngestError::Setting {
+            name: "--sites",
+            message: format!(
+                "no site lies within --max-attach of a usable road, so there is no hub to plan \
+                 from ({}: {})",
+                sl.sites[0].id,
+                attachments[0].failure.as_deref().unwrap_or("not attached")
+            ),
+        });
+    };
+    let tied: Vec<usize> = on_road
+        .iter()
+        .copied()
+        .filter(|&i| sl.sites[i].priority == top)
+        .collect();
+    let hub = tied[0];
+    let id = |i: usize| sl.sites[i].id.as_str();
+    let higher: Vec<usize> = (0..sl.sites.len())
+        .filter(|&i| attachments[i].junction.is_none() && sl.sites[i].priority > top)
+        .collect();
+    if !higher.is_empty() {
+        notes.push(
+            "hub_not_on_roads",
+            format!(
+                "{} a higher priority than any site on the road network but no usable road \
+                 within --max-attach, so the hub is {}, the highest-priority site that has one; \
+                 name the hub with --hub",
+                match higher.len() {
+                    1 => format!("{} has", id(higher[0])),
+                    _ => format!("{} have", list(higher.iter().map(|&i| id(i)))),
+                },
+                id(hub)
+            ),
+        );
+    }
+    if tied.len() > 1 {
+        notes.push(
+            "hub_tie",
+            format!(
+                "{} share the highest priority ({top}); the hub is {}, the first of them in the \
+                 file; name another with --hub",
+                list(tied.iter().map(|&i| id(i))),
+                id(hub)
+            ),
+        );
+    }
+    Ok(Some(hub))
+}
+
+/// A note when no other site shares the hub's part of the usable network: nothing can be joined
+/// to the hub, whatever the plan.
+pub(super) fn alone_note(
+    notes: &mut Notes,
+    sl: &SiteLayer,
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    comps: &crate::solve::components::Components,
+) {
+    let Some(h) = hub else { return };
+    let Some(hj) = attachments[h].junction else {
+        return;
+    };
+    let others: Vec<u32> = (0..attachments.len())
+        .filter(|&i| i != h)
+        .filter_map(|i| attachments[i].junction)
+        .collect();
+    let c = comps.of[hj as usize];
+    if !others.is_empty() && others.iter().all(|&j| comps.of[j as usize] != c) {
+        notes.push(
+            "hub_alone",
+            format!(
+                "no other site shares the hub {}'s part of the usable road network: no site can \
+                 be joined to it (see each site's reason)",
+                sl.sites[h].id
+            ),
+        );
+    }
+}

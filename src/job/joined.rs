@@ -1,0 +1,110 @@
+//! Which sites the final plan joins to the hub: computed once, from the final edge set, and read by
+//! every output (sites layer, summary, report, work orders, phases, single-failure report).
+
+use crate::ingest::attach::Attachment;
+use crate::network::Cost;
+use crate::solve::SolveError;
+use crate::solve::graph::EdgeList;
+use crate::solve::joined::{cost_from, joining, reaching};
+use crate::solve::order::Step;
+
+/// Per site: joined to the hub or not, and what joining it would still cost.
+#[derive(Debug, Clone, Default)]
+pub struct SiteReach {
+    /// The hub's junction (None without sites).
+    pub hub_junction: Option<u32>,
+    /// Per site: reaches the hub over intact roads and the plan's edges.
+    pub joined: Vec<bool>,
+    /// Per site: reaches the hub over intact roads alone, before any repair.
+    pub before: Vec<bool>,
+    /// Per site not joined: the cheapest further repairs (milli-repair-metres) that would join it,
+    /// from everything the plan joins; None when joined, or when no usable road leads to it.
+    pub need: Vec<Option<Cost>>,
+}
+
+impl SiteReach {
+    /// How many sites are joined to the hub (the hub included).
+    pub fn joined_count(&self) -> usize {
+        self.joined.iter().filter(|&&j| j).count()
+    }
+}
+
+/// Finds what `plan` joins to the hub and rewrites each repair's `completes` to the sites that
+/// repair joins to the hub, replaying the order over the intact roads. The replay must end where
+/// the plan does (every repair in the order, every site joined by some step or before): anything
+/// else is an internal error, never an output.
+pub(super) fn site_reach(
+    graph: &EdgeList,
+    plan: &[u32],
+    attachments: &[Attachment],
+    hub: Option<usize>,
+    steps: &mut [Step],
+) -> Result<SiteReach, SolveError> {
+    let fail = |detail: String| SolveError::Verification {
+        what: "repair order",
+        detail,
+    };
+    let repairs = plan.iter().filter(|&&e| graph.cost[e as usize] > 0).count();
+    if repairs != steps.len() {
+        return Err(fail(format!(
+            "{} repairs ordered for a plan of {repairs}",
+            steps.len()
+        )));
+    }
+    let n = attachments.len();
+    let Some(hj) = hub.and_then(|h| attachments[h].junction) else {
+        for s in steps.iter_mut() {
+            s.completes.clear();
+        }
+        return Ok(SiteReach {
+            hub_junction: None,
+            joined: vec![false; n],
+            before: vec![false; n],
+            need: vec![None; n],
+        });
+    };
+    let reached = reaching(graph, plan, hj);
+    let at: Vec<(usize, u32)> = attachments
+        .iter()
+        .enumerate()
+        .filter_map(|(i, a)| a.junction.map(|j| (i, j)))
+        .collect();
+    let mut joined = vec![false; n];
+    for &(i, j) in &at {
+        joined[i] = reached[j as usize];
+    }
+    let dist = cost_from(graph, plan, &reached);
+    let need = (0..n)
+        .map(|i| {
+            let j = attachments[i].junction?;
+            (!joined[i] && dist[j as usize] != Cost::MAX).then_some(dist[j as usize])
+        })
+        .collect();
+    let order: Vec<u32> = steps.iter().map(|s| s.edge).collect();
+    let junctions: Vec<u32> = at.iter().map(|&(_, j)| j).collect();
+    let replay = joining(graph, &order, hj, &junctions);
+    let mut before = vec![false; n];
+    for (k, &(i, _)) in at.iter().enumerate() {
+        before[i] = replay.before[k];
+        if replay.after[k] != joined[i] {
+            return Err(fail(format!(
+                "site {i} is {} by the plan but {} by its repairs in order",
+                if joined[i] { "joined" } else { "not joined" },
+                if replay.after[k] {
+                    "joined"
+                } else {
+                    "not joined"
+                }
+            )));
+        }
+    }
+    for (s, done) in steps.iter_mut().zip(replay.per_step) {
+        s.completes = done.into_iter().map(|k| at[k].0).collect();
+    }
+    Ok(SiteReach {
+        hub_junction: Some(hj),
+        joined,
+        before,
+        need,
+    })
+}
