@@ -204,6 +204,7 @@ pub fn read_geojson_roads(
         path: path.display().to_string(),
         bytes,
         sha256,
+        deleted_records: 0,
     });
     check_empty(&layer, &path, info.features)?;
     check_fields(&path, settings, &seen, &first_keys)?;

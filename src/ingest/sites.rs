@@ -105,6 +105,7 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
             path: path.display().to_string(),
             bytes,
             sha256,
+            deleted_records: 0,
         },
     })
 }
@@ -383,7 +384,7 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
-    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+    for (index, item) in reader.records() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
         let pos = match shape {
@@ -409,6 +410,9 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     check_unique(path, &sites)?;
     Ok(SiteLayer {
         sites,
-        input: super::shapefile::fingerprint(path, "sites")?,
+        input: InputRecord {
+            deleted_records: reader.deleted(),
+            ..super::shapefile::fingerprint(path, "sites")?
+        },
     })
 }

@@ -131,6 +131,7 @@ pub fn read_zones(
             path: path.display().to_string(),
             bytes,
             sha256,
+            deleted_records: 0,
         },
     })
 }
@@ -192,7 +193,7 @@ fn read_shapefile_zones(
     let conv = super::shapefile::layer_crs(path, crs)?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
-    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+    for (index, item) in reader.records() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
             feature: index,
@@ -245,7 +246,10 @@ fn read_shapefile_zones(
     }
     Ok(ZoneLayer {
         zones,
-        input: super::shapefile::fingerprint(path, "damage zones")?,
+        input: InputRecord {
+            deleted_records: reader.deleted(),
+            ..super::shapefile::fingerprint(path, "damage zones")?
+        },
     })
 }
 
