@@ -159,3 +159,233 @@ case!(shx_offsets_disagree_with_the_shp, |d| {
     std::fs::write(&shx, b).unwrap();
     plan_fails(&p, &[], &["roads.shx", "feature 1", "rebuild"]);
 });
+
+/// The formats a road rule applies to.
+#[derive(Clone, Copy, Debug)]
+enum Format {
+    GeoJson,
+    Shapefile,
+}
+
+/// Three 100 m roads in a row with `func_class` and `dmg` written as given (GeoJSON number tokens;
+/// in a Shapefile, dBASE Numeric fields).
+fn class_roads(d: &Path, f: Format, values: &[(&str, &str)]) -> PathBuf {
+    let at = |i: usize| {
+        [
+            [i as f64 * 150.0 * M, 0.0],
+            [(i as f64 * 150.0 + 100.0) * M, 0.0],
+        ]
+    };
+    match f {
+        Format::GeoJson => {
+            let feats: Vec<String> = values
+                .iter()
+                .enumerate()
+                .map(|(i, (c, v))| line(&at(i), &format!(r#"{{"func_class":{c},"dmg":{v}}}"#)))
+                .collect();
+            write_collection(d, "roads.geojson", &feats)
+        }
+        Format::Shapefile => {
+            let p = d.join("roads.shp");
+            let table = TableWriterBuilder::new()
+                .add_numeric_field(FieldName::try_from("func_class").unwrap(), 4, 0)
+                .add_numeric_field(FieldName::try_from("dmg").unwrap(), 8, 2);
+            let mut w = shapefile::Writer::from_path(&p, table).unwrap();
+            for (i, (c, v)) in values.iter().enumerate() {
+                let pts = at(i).map(|q| shapefile::Point::new(q[0], q[1])).to_vec();
+                let mut r = Record::default();
+                r.insert("func_class".into(), FieldValue::Numeric(c.parse().ok()));
+                r.insert("dmg".into(), FieldValue::Numeric(v.parse().ok()));
+                w.write_shape_and_record(&shapefile::Polyline::new(pts), &r)
+                    .unwrap();
+            }
+            drop(w);
+            std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+            p
+        }
+    }
+}
+
+/// `plan` on the roads; the damage of each used feature by source index ("closed" as -1).
+fn damages(d: &Path, roads: &Path, extra: &[&str]) -> Vec<(i64, f64)> {
+    let mut args = vec!["--roads", roads.to_str().unwrap(), "--whole-network"];
+    args.extend_from_slice(extra);
+    let out = plan_ok(d, &args);
+    let net = read_json(&out.join("network.geojson"));
+    std::fs::remove_dir_all(&out).unwrap();
+    let mut v: Vec<(i64, f64)> = net["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            let p = &f["properties"];
+            (
+                p["source_index"].as_i64().unwrap(),
+                p["damage"].as_f64().unwrap_or(-1.0),
+            )
+        })
+        .collect();
+    v.sort_by(|a, b| a.partial_cmp(b).unwrap());
+    v.dedup();
+    v
+}
+
+#[test]
+fn numeric_fields_match_what_the_user_types_in_every_format() {
+    for f in [Format::GeoJson, Format::Shapefile] {
+        let d = tmp();
+        let d = d.path();
+        let r = class_roads(d, f, &[("1", "1"), ("3.0", "1"), ("2", "99")]);
+        let dmg = ["--damage-field", "dmg"];
+        let keep = damages(
+            d,
+            &r,
+            &[&dmg[..], &["--keep-where", "func_class=3"]].concat(),
+        );
+        assert_eq!(keep, vec![(1, 1.0)], "{f:?} keep");
+        let drop = damages(
+            d,
+            &r,
+            &[&dmg[..], &["--drop-where", "func_class=1"]].concat(),
+        );
+        assert_eq!(drop, vec![(1, 1.0), (2, 99.0)], "{f:?} drop");
+        let closed = damages(d, &r, &[&dmg[..], &["--closed-value", "99"]].concat());
+        assert_eq!(
+            closed,
+            vec![(0, 1.0), (1, 1.0), (2, -1.0)],
+            "{f:?} closed value"
+        );
+        let table = file(
+            d,
+            "costs.toml",
+            "[classes]\nfield = \"func_class\"\n3 = 2.5\n",
+        );
+        let rated = damages(d, &r, &[&dmg[..], &["--cost-table", &s(&table)]].concat());
+        assert_eq!(
+            rated,
+            vec![(0, 1.0), (1, 2.5), (2, 99.0)],
+            "{f:?} class rate"
+        );
+    }
+}
+
+#[test]
+fn site_ids_stay_as_written_in_every_format() {
+    let ids = ["007", "7", "+1", "12345678901234567"];
+    for ext in ["csv", "geojson", "shp"] {
+        let d = tmp();
+        let d = d.path();
+        let r = three_roads(d);
+        let x = |i: usize| i as f64 * 30.0 * M;
+        let sites = match ext {
+            "csv" => {
+                let rows: Vec<String> = ids
+                    .iter()
+                    .enumerate()
+                    .map(|(i, id)| format!("{id},{},0", x(i)))
+                    .collect();
+                file(
+                    d,
+                    "sites.csv",
+                    format!("site_id,lon,lat\n{}\n", rows.join("\n")),
+                )
+            }
+            "geojson" => {
+                // The 17-digit id as a JSON number: it must not be rounded.
+                let feats: Vec<String> = ids
+                    .iter()
+                    .enumerate()
+                    .map(|(i, id)| {
+                        let v = if i == 3 { id.to_string() } else { format!("\"{id}\"") };
+                        format!(r#"{{"type":"Feature","properties":{{"site_id":{v}}},"geometry":{{"type":"Point","coordinates":[{},0]}}}}"#, x(i))
+                    })
+                    .collect();
+                file(
+                    d,
+                    "sites.geojson",
+                    fc(&feats.iter().map(String::as_str).collect::<Vec<_>>()),
+                )
+            }
+            _ => {
+                let p = d.join("sites.shp");
+                let table = TableWriterBuilder::new()
+                    .add_character_field(FieldName::try_from("site_id").unwrap(), 20);
+                let mut w = shapefile::Writer::from_path(&p, table).unwrap();
+                for (i, id) in ids.iter().enumerate() {
+                    let mut rec = Record::default();
+                    rec.insert(
+                        "site_id".into(),
+                        FieldValue::Character(Some(id.to_string())),
+                    );
+                    w.write_shape_and_record(&shapefile::Point::new(x(i), 0.0), &rec)
+                        .unwrap();
+                }
+                drop(w);
+                std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+                p
+            }
+        };
+        let out = plan_ok(d, &["--roads", &s(&r), "--sites", &s(&sites)]);
+        let layer = read_json(&out.join("sites.geojson"));
+        let got: Vec<String> = layer["features"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|f| f["properties"]["site_id"].as_str().unwrap().to_string())
+            .collect();
+        assert_eq!(got, ids, "{ext}");
+    }
+}
+
+case!(dbf_numeric_overflow_marker, |d| {
+    let p = class_roads(d, Format::Shapefile, &[("1", "1"), ("2", "1")]);
+    // Record 1's dmg field (after the flag byte and the 4-byte func_class) becomes all '*'.
+    let dbf = p.with_extension("dbf");
+    let mut b = std::fs::read(&dbf).unwrap();
+    let header = u16::from_le_bytes([b[8], b[9]]) as usize;
+    let record = u16::from_le_bytes([b[10], b[11]]) as usize;
+    let at = header + record + 1 + 4;
+    b[at..at + 8].copy_from_slice(b"********");
+    std::fs::write(&dbf, b).unwrap();
+    plan_fails(
+        &p,
+        &["--damage-field", "dmg"],
+        &["roads.dbf", "feature 1", "\"dmg\"", "overflow"],
+    );
+});
+
+case!(categories_differing_only_in_case, |d| {
+    let r = write_collection(
+        d,
+        "roads.geojson",
+        &[line(&[[0.0, 0.0], [0.001, 0.0]], r#"{"state":"debris"}"#)],
+    );
+    let t = file(
+        d,
+        "costs.toml",
+        "[categories]\nDebris = 0.3\ndebris = 0.9\n",
+    );
+    plan_fails(
+        &r,
+        &["--category-field", "state", "--cost-table", &s(&t)],
+        &["costs.toml", "debris", "twice"],
+    );
+});
+
+case!(class_rates_differing_only_in_case, |d| {
+    let r = write_collection(
+        d,
+        "roads.geojson",
+        &[line(&[[0.0, 0.0], [0.001, 0.0]], r#"{"kind":"track"}"#)],
+    );
+    let t = file(
+        d,
+        "costs.toml",
+        "[classes]\nfield = \"kind\"\nTrack = 0.5\ntrack = 2\n",
+    );
+    plan_fails(
+        &r,
+        &["--cost-table", &s(&t)],
+        &["costs.toml", "track", "twice"],
+    );
+});

@@ -92,6 +92,7 @@ pub fn read_shapefile_roads(
             .features_skipped
             .insert("flagged deleted in the .dbf".into(), reader.deleted());
     }
+    let overflow = reader.overflow();
     for (index, item) in reader.records() {
         let (shape, record) = item.map_err(|e| IngestError::Feature {
             path: path.to_path_buf(),
@@ -154,6 +155,7 @@ pub fn read_shapefile_roads(
         f.has_properties = true;
         for name in &wanted {
             if let Some(v) = record.get(name) {
+                overflow.check(index, name)?;
                 f.props.push((name.clone(), field_json(v)));
             }
         }
@@ -234,6 +236,10 @@ pub fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> 
 pub fn field_json(v: &FieldValue) -> Value {
     match v {
         FieldValue::Character(Some(s)) => Value::from(s.trim()),
+        // A whole number is kept whole, so a numeric id 7 reads as "7", not "7.0".
+        FieldValue::Numeric(Some(x)) if x.fract() == 0.0 && x.abs() < 9.0e15 => {
+            Value::from(*x as i64)
+        }
         FieldValue::Numeric(Some(x)) | FieldValue::Double(x) | FieldValue::Currency(x) => {
             serde_json::Number::from_f64(*x).map_or(Value::Null, Value::Number)
         }
@@ -253,6 +259,7 @@ pub struct ShapeSet {
     shapes: shapefile::ShapeReader<BufReader<File>>,
     table: shapefile::dbase::Reader<BufReader<File>>,
     deleted: Vec<bool>,
+    overflow: super::shapeset::Overflow,
 }
 
 /// One record of a set: its shape and attributes, or the error reading them.
@@ -262,6 +269,11 @@ impl ShapeSet {
     /// How many records the .dbf flags deleted (skipped with their shapes).
     pub fn deleted(&self) -> usize {
         self.deleted.iter().filter(|&&d| d).count()
+    }
+
+    /// Where the .dbf holds numeric overflow markers (checked field by field as records are read).
+    pub fn overflow(&self) -> super::shapeset::Overflow {
+        self.overflow.clone()
     }
 
     /// How many records the set holds, deleted ones included.
@@ -361,10 +373,15 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
         });
     }
     super::shapeset::check_index(path, &sibling(path, "shx"))?;
+    let scan = super::shapeset::scan_table(&dbf)?;
     Ok(ShapeSet {
         shapes,
         table,
-        deleted: super::shapeset::deleted_records(&dbf)?,
+        deleted: scan.deleted,
+        overflow: super::shapeset::Overflow {
+            dbf,
+            at: scan.overflow,
+        },
     })
 }
 

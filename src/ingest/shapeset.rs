@@ -18,8 +18,18 @@ fn refuse(path: &Path, message: String) -> IngestError {
     }
 }
 
-/// The deletion flag of every record of a `.dbf`, in file order (true: flagged deleted).
-pub fn deleted_records(dbf: &Path) -> Result<Vec<bool>, IngestError> {
+/// What a scan of a `.dbf` finds beside the values the table reader gives.
+#[derive(Debug, Default)]
+pub struct TableScan {
+    /// The deletion flag of every record, in file order (true: flagged deleted).
+    pub deleted: Vec<bool>,
+    /// (record, field) of every numeric field holding the overflow marker (all `*`): a number
+    /// too wide for its field, which the table reader would give as a missing value.
+    pub overflow: Vec<(usize, String)>,
+}
+
+/// Scans a `.dbf` for deletion flags and numeric overflow markers.
+pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
     let bytes = std::fs::read(dbf).map_err(|source| IngestError::Io {
         path: dbf.to_path_buf(),
         source,
@@ -44,9 +54,62 @@ pub fn deleted_records(dbf: &Path) -> Result<Vec<bool>, IngestError> {
             ),
         ));
     }
-    Ok((0..count)
-        .map(|i| bytes[header + i * record] == b'*')
-        .collect())
+    // Field descriptors: 32 bytes each from byte 32 up to the 0x0D terminator.
+    let mut numeric = Vec::new();
+    let mut offset = 1usize;
+    let mut at = 32usize;
+    while at + 32 <= header && bytes[at] != 0x0D {
+        let d = &bytes[at..at + 32];
+        let name_end = d[..11].iter().position(|&b| b == 0).unwrap_or(11);
+        let len = d[16] as usize;
+        if matches!(d[11], b'N' | b'F') && offset + len <= record {
+            numeric.push((
+                String::from_utf8_lossy(&d[..name_end]).into_owned(),
+                offset,
+                len,
+            ));
+        }
+        offset += len;
+        at += 32;
+    }
+    let mut scan = TableScan::default();
+    for i in 0..count {
+        let r = &bytes[header + i * record..header + (i + 1) * record];
+        scan.deleted.push(r[0] == b'*');
+        for (name, off, len) in &numeric {
+            let v = r[*off..off + len].trim_ascii();
+            if r[0] != b'*' && !v.is_empty() && v.iter().all(|&b| b == b'*') {
+                scan.overflow.push((i, name.clone()));
+            }
+        }
+    }
+    Ok(scan)
+}
+
+/// The numeric overflow markers of one `.dbf`: (record, field) pairs.
+#[derive(Debug, Clone, Default)]
+pub struct Overflow {
+    /// The table.
+    pub dbf: std::path::PathBuf,
+    /// (record, field) of each marker.
+    pub at: Vec<(usize, String)>,
+}
+
+impl Overflow {
+    /// Refuses record `feature` when its `field` holds the overflow marker, naming both.
+    pub fn check(&self, feature: usize, field: &str) -> Result<(), IngestError> {
+        if !self.at.iter().any(|(i, f)| *i == feature && f == field) {
+            return Ok(());
+        }
+        Err(IngestError::Feature {
+            path: self.dbf.clone(),
+            feature,
+            field: Some(field.into()),
+            message: "holds the dBASE overflow marker (all '*'): the number was too wide for its \
+                      field when the table was written, so its value is lost; fix or widen the field"
+                .into(),
+        })
+    }
 }
 
 /// Refuses a `.shx` whose record offsets or lengths disagree with the `.shp` record headers
@@ -108,8 +171,8 @@ mod tests {
         b[10] = 2;
         b.extend_from_slice(b" a*b");
         std::fs::write(&p, &b).unwrap();
-        assert_eq!(deleted_records(&p).unwrap(), vec![false, true]);
+        assert_eq!(scan_table(&p).unwrap().deleted, vec![false, true]);
         std::fs::write(&p, &b[..35]).unwrap();
-        assert!(deleted_records(&p).is_err());
+        assert!(scan_table(&p).is_err());
     }
 }

@@ -229,13 +229,7 @@ fn read_csv<R: std::io::Read>(
         let pos = [num(lon_i)?, num(lat_i)?];
         let mut attributes = Map::new();
         for (h, v) in headers.iter().zip(rec.iter()) {
-            let value = match v.trim().parse::<f64>() {
-                Ok(x) if x.is_finite() && !v.trim().is_empty() => serde_json::Number::from_f64(x)
-                    .map(Value::Number)
-                    .unwrap_or_else(|| Value::from(v)),
-                _ => Value::from(v),
-            };
-            attributes.insert(h.to_string(), value);
+            attributes.insert(h.to_string(), super::value::cell(v));
         }
         sites.push(make_site(path, index, pos, attributes, None, s)?);
     }
@@ -272,16 +266,7 @@ fn make_site(
     })
 }
 
-fn text(v: &Value) -> Option<String> {
-    match v {
-        Value::String(s) if !s.trim().is_empty() => Some(s.trim().to_string()),
-        Value::Number(n) => Some(match n.as_i64() {
-            Some(i) => i.to_string(),
-            None => n.to_string(),
-        }),
-        _ => None,
-    }
-}
+use super::value::text;
 
 fn priority(
     path: &Path,
@@ -384,6 +369,7 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
+    let overflow = reader.overflow();
     for (index, item) in reader.records() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
@@ -400,10 +386,11 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
                 ));
             }
         };
-        let attributes: Map<String, Value> = record
-            .into_iter()
-            .map(|(k, v)| (k, super::shapefile::field_json(&v)))
-            .collect();
+        let mut attributes = Map::new();
+        for (k, v) in record {
+            overflow.check(index, &k)?;
+            attributes.insert(k, super::shapefile::field_json(&v));
+        }
         sites.push(make_site(path, index, pos, attributes, None, s)?);
     }
     convert(path, &crs, &mut sites)?;

@@ -193,6 +193,7 @@ fn read_shapefile_zones(
     let conv = super::shapefile::layer_crs(path, crs)?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
+    let overflow = reader.overflow();
     for (index, item) in reader.records() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
@@ -202,6 +203,7 @@ fn read_shapefile_zones(
         };
         let (shape, record) =
             item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
+        overflow.check(index, &rule.field)?;
         let value = record.get(&rule.field).map(super::shapefile::field_json);
         let damage = rule
             .interpret(value.as_ref())
