@@ -188,7 +188,7 @@ fn class_roads(d: &Path, f: Format, values: &[(&str, &str)]) -> PathBuf {
         Format::Shapefile => {
             let p = d.join("roads.shp");
             let table = TableWriterBuilder::new()
-                .add_numeric_field(FieldName::try_from("func_class").unwrap(), 4, 0)
+                .add_numeric_field(FieldName::try_from("func_class").unwrap(), 20, 0)
                 .add_numeric_field(FieldName::try_from("dmg").unwrap(), 8, 2);
             let mut w = shapefile::Writer::from_path(&p, table).unwrap();
             for (i, (c, v)) in values.iter().enumerate() {
@@ -339,12 +339,12 @@ fn site_ids_stay_as_written_in_every_format() {
 
 case!(dbf_numeric_overflow_marker, |d| {
     let p = class_roads(d, Format::Shapefile, &[("1", "1"), ("2", "1")]);
-    // Record 1's dmg field (after the flag byte and the 4-byte func_class) becomes all '*'.
+    // Record 1's dmg field (after the flag byte and the 20-byte func_class) becomes all '*'.
     let dbf = p.with_extension("dbf");
     let mut b = std::fs::read(&dbf).unwrap();
     let header = u16::from_le_bytes([b[8], b[9]]) as usize;
     let record = u16::from_le_bytes([b[10], b[11]]) as usize;
-    let at = header + record + 1 + 4;
+    let at = header + record + 1 + 20;
     b[at..at + 8].copy_from_slice(b"********");
     std::fs::write(&dbf, b).unwrap();
     plan_fails(
@@ -389,3 +389,42 @@ case!(class_rates_differing_only_in_case, |d| {
         &["costs.toml", "track", "twice"],
     );
 });
+
+#[test]
+fn long_numeric_road_ids_are_not_rounded_in_any_format() {
+    let id = "12345678901234567";
+    for f in [Format::GeoJson, Format::Shapefile] {
+        let d = tmp();
+        let d = d.path();
+        // func_class serves as the id field: a number in GeoJSON, a dBASE Numeric field.
+        let r = class_roads(d, f, &[(id, "1"), ("7", "1")]);
+        if let Format::Shapefile = f {
+            // The table writer rounds through a double: put the exact digits in record 0.
+            let dbf = r.with_extension("dbf");
+            let mut b = std::fs::read(&dbf).unwrap();
+            let at = u16::from_le_bytes([b[8], b[9]]) as usize + 1;
+            b[at..at + 20].copy_from_slice(format!("{id:>20}").as_bytes());
+            std::fs::write(&dbf, b).unwrap();
+        }
+        let out = plan_ok(
+            d,
+            &[
+                "--roads",
+                &s(&r),
+                "--whole-network",
+                "--id-field",
+                "func_class",
+            ],
+        );
+        let net = read_json(&out.join("network.geojson"));
+        let mut got: Vec<String> = net["features"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|x| x["properties"]["source_id"].to_string())
+            .collect();
+        got.sort();
+        got.dedup();
+        assert_eq!(got, vec![id.to_string(), "7".to_string()], "{f:?}");
+    }
+}

@@ -92,7 +92,7 @@ pub fn read_shapefile_roads(
             .features_skipped
             .insert("flagged deleted in the .dbf".into(), reader.deleted());
     }
-    let overflow = reader.overflow();
+    let numbers = reader.numeric_text();
     for (index, item) in reader.records() {
         let (shape, record) = item.map_err(|e| IngestError::Feature {
             path: path.to_path_buf(),
@@ -155,8 +155,7 @@ pub fn read_shapefile_roads(
         f.has_properties = true;
         for name in &wanted {
             if let Some(v) = record.get(name) {
-                overflow.check(index, name)?;
-                f.props.push((name.clone(), field_json(v)));
+                f.props.push((name.clone(), numbers.value(index, name, v)?));
             }
         }
         add_feature(&mut layer, path, settings, index, f)?;
@@ -243,8 +242,10 @@ pub fn field_json(v: &FieldValue) -> Value {
         FieldValue::Numeric(Some(x)) | FieldValue::Double(x) | FieldValue::Currency(x) => {
             serde_json::Number::from_f64(*x).map_or(Value::Null, Value::Number)
         }
-        FieldValue::Float(Some(x)) => {
-            serde_json::Number::from_f64(*x as f64).map_or(Value::Null, Value::Number)
+        // A single-precision value by its shortest decimal text, so 0.1 stays 0.1.
+        FieldValue::Float(Some(x)) => super::value::cell(&x.to_string()),
+        FieldValue::Date(Some(d)) => {
+            Value::from(format!("{:04}-{:02}-{:02}", d.year(), d.month(), d.day()))
         }
         FieldValue::Integer(i) => Value::from(*i),
         FieldValue::Logical(Some(b)) => Value::from(*b),
@@ -259,7 +260,7 @@ pub struct ShapeSet {
     shapes: shapefile::ShapeReader<BufReader<File>>,
     table: shapefile::dbase::Reader<BufReader<File>>,
     deleted: Vec<bool>,
-    overflow: super::shapeset::Overflow,
+    overflow: super::shapeset::NumericText,
 }
 
 /// One record of a set: its shape and attributes, or the error reading them.
@@ -271,8 +272,8 @@ impl ShapeSet {
         self.deleted.iter().filter(|&&d| d).count()
     }
 
-    /// Where the .dbf holds numeric overflow markers (checked field by field as records are read).
-    pub fn overflow(&self) -> super::shapeset::Overflow {
+    /// What the .dbf's numeric fields hold beyond the table reader's values (overflow markers, long numbers).
+    pub fn numeric_text(&self) -> super::shapeset::NumericText {
         self.overflow.clone()
     }
 
@@ -378,9 +379,10 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
         shapes,
         table,
         deleted: scan.deleted,
-        overflow: super::shapeset::Overflow {
+        overflow: super::shapeset::NumericText {
             dbf,
             at: scan.overflow,
+            long: scan.long,
         },
     })
 }

@@ -26,6 +26,9 @@ pub struct TableScan {
     /// (record, field) of every numeric field holding the overflow marker (all `*`): a number
     /// too wide for its field, which the table reader would give as a missing value.
     pub overflow: Vec<(usize, String)>,
+    /// (record, field, text) of every numeric value with more digits than a double holds exactly
+    /// (over 15): the text is kept so a long id is not rounded.
+    pub long: Vec<(usize, String, String)>,
 }
 
 /// Scans a `.dbf` for deletion flags and numeric overflow markers.
@@ -80,22 +83,49 @@ pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
             let v = r[*off..off + len].trim_ascii();
             if r[0] != b'*' && !v.is_empty() && v.iter().all(|&b| b == b'*') {
                 scan.overflow.push((i, name.clone()));
+            } else if v.iter().filter(|b| b.is_ascii_digit()).count() > 15 {
+                let text = String::from_utf8_lossy(v).into_owned();
+                scan.long.push((i, name.clone(), text));
             }
         }
     }
     Ok(scan)
 }
 
-/// The numeric overflow markers of one `.dbf`: (record, field) pairs.
+/// What a `.dbf`'s numeric fields hold beyond what the table reader gives: overflow markers and
+/// the exact text of long numbers.
 #[derive(Debug, Clone, Default)]
-pub struct Overflow {
+pub struct NumericText {
     /// The table.
     pub dbf: std::path::PathBuf,
-    /// (record, field) of each marker.
+    /// (record, field) of each overflow marker.
     pub at: Vec<(usize, String)>,
+    /// (record, field, text) of each number longer than a double holds exactly.
+    pub long: Vec<(usize, String, String)>,
 }
 
-impl Overflow {
+impl NumericText {
+    /// The value of record `feature`'s `field` under the typing rule (`super::value`): refused
+    /// when it holds the overflow marker, its own text when it is a long number.
+    pub fn value(
+        &self,
+        feature: usize,
+        field: &str,
+        v: &shapefile::dbase::FieldValue,
+    ) -> Result<serde_json::Value, IngestError> {
+        self.check(feature, field)?;
+        Ok(
+            match self
+                .long
+                .iter()
+                .find(|(i, f, _)| *i == feature && f == field)
+            {
+                Some((_, _, text)) => super::value::cell(text),
+                None => super::shapefile::field_json(v),
+            },
+        )
+    }
+
     /// Refuses record `feature` when its `field` holds the overflow marker, naming both.
     pub fn check(&self, feature: usize, field: &str) -> Result<(), IngestError> {
         if !self.at.iter().any(|(i, f)| *i == feature && f == field) {

@@ -369,7 +369,7 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
-    let overflow = reader.overflow();
+    let numbers = reader.numeric_text();
     for (index, item) in reader.records() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
@@ -388,8 +388,8 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
         };
         let mut attributes = Map::new();
         for (k, v) in record {
-            overflow.check(index, &k)?;
-            attributes.insert(k, super::shapefile::field_json(&v));
+            let value = numbers.value(index, &k, &v)?;
+            attributes.insert(k, value);
         }
         sites.push(make_site(path, index, pos, attributes, None, s)?);
     }

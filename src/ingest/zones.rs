@@ -193,7 +193,7 @@ fn read_shapefile_zones(
     let conv = super::shapefile::layer_crs(path, crs)?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
-    let overflow = reader.overflow();
+    let numbers = reader.numeric_text();
     for (index, item) in reader.records() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
@@ -203,8 +203,10 @@ fn read_shapefile_zones(
         };
         let (shape, record) =
             item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
-        overflow.check(index, &rule.field)?;
-        let value = record.get(&rule.field).map(super::shapefile::field_json);
+        let value = match record.get(&rule.field) {
+            Some(v) => Some(numbers.value(index, &rule.field, v)?),
+            None => None,
+        };
         let damage = rule
             .interpret(value.as_ref())
             .map_err(|m| fail(&rule.field, m))?;
