@@ -140,11 +140,13 @@ impl CostTable {
         Ok(t)
     }
 
-    /// Damage of a category, or an error listing the known ones.
+    /// Damage of a category (the same value: equal numbers, or text ignoring letter case), or an
+    /// error listing the known ones.
     pub fn category(&self, name: &str) -> Result<Damage, String> {
         self.categories
-            .get(&name.trim().to_lowercase())
-            .copied()
+            .iter()
+            .find(|(k, _)| super::value::same(k, name))
+            .map(|(_, d)| *d)
             .ok_or_else(|| {
                 format!(
                     "unknown damage category {name:?}; known categories: {}",
