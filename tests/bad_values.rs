@@ -428,3 +428,42 @@ fn long_numeric_road_ids_are_not_rounded_in_any_format() {
         assert_eq!(got, vec![id.to_string(), "7".to_string()], "{f:?}");
     }
 }
+
+#[test]
+fn geojson_numbers_keep_their_spelling_as_ids() {
+    // RFC 8259 §6 numbers: 1.50 and 1e2 are valid spellings; a double would print 1.5 and 100.0.
+    let d = tmp();
+    let d = d.path();
+    let ids = ["1.50", "1e2", "123456789012345678901", "7"];
+    let feats: Vec<String> = ids
+        .iter()
+        .enumerate()
+        .map(|(i, id)| {
+            let x = i as f64 * 150.0 * M;
+            line(
+                &[[x, 0.0], [x + 100.0 * M, 0.0]],
+                &format!(r#"{{"rid":{id}}}"#),
+            )
+        })
+        .collect();
+    let r = write_collection(d, "roads.geojson", &feats);
+    let out = plan_ok(
+        d,
+        &["--roads", &s(&r), "--whole-network", "--id-field", "rid"],
+    );
+    let net = read_json(&out.join("network.geojson"));
+    let mut got: Vec<String> = net["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| match &x["properties"]["source_id"] {
+            serde_json::Value::String(t) => t.clone(),
+            other => other.to_string(),
+        })
+        .collect();
+    got.sort();
+    got.dedup();
+    let mut want: Vec<String> = ids.iter().map(|x| x.to_string()).collect();
+    want.sort();
+    assert_eq!(got, want);
+}
