@@ -147,7 +147,7 @@ pub fn cost_table(data: &[u8]) {
     };
     if let Ok(t) = crate::ingest::cost_table::CostTable::from_toml(text) {
         let _ = t.category("debris");
-        let _ = t.rate(Some("primary"));
+        let _ = t.rate(Some(&"primary".into()));
         let _ = t.rate(None);
     }
     let _ = crate::ingest::cost_table::RoadFilter::parse(text, true);

@@ -405,6 +405,7 @@ fn every_case_is_listed_in_the_docs() {
     for f in [
         "tests/bad_input.rs",
         "tests/bad_input_more.rs",
+        "tests/bad_values.rs",
         "tests/output_guard.rs",
         "tests/plausibility.rs",
         "tests/settings_meaning.rs",

@@ -92,7 +92,11 @@ impl CostTable {
                         ));
                     }
                 };
-                t.categories.insert(k.to_lowercase(), d);
+                if t.categories.insert(k.to_lowercase(), d).is_some() {
+                    return Err(format!(
+                        "category {k:?} is given twice (names differing only in letter case are the same category)"
+                    ));
+                }
             }
         } else {
             t.categories = CostTable::default().categories;
@@ -114,8 +118,10 @@ impl CostTable {
                         }
                         if k == "default" {
                             t.class_default = r;
-                        } else {
-                            t.class_rates.insert(k.to_lowercase(), r);
+                        } else if t.class_rates.insert(k.to_lowercase(), r).is_some() {
+                            return Err(format!(
+                                "class {k:?} is given twice (names differing only in letter case are the same class)"
+                            ));
                         }
                     }
                     _ => {
@@ -134,11 +140,13 @@ impl CostTable {
         Ok(t)
     }
 
-    /// Damage of a category, or an error listing the known ones.
+    /// Damage of a category (the same value: equal numbers, or text ignoring letter case), or an
+    /// error listing the known ones.
     pub fn category(&self, name: &str) -> Result<Damage, String> {
         self.categories
-            .get(&name.trim().to_lowercase())
-            .copied()
+            .iter()
+            .find(|(k, _)| super::value::same(k, name))
+            .map(|(_, d)| *d)
             .ok_or_else(|| {
                 format!(
                     "unknown damage category {name:?}; known categories: {}",
@@ -151,11 +159,16 @@ impl CostTable {
             })
     }
 
-    /// Rate of a road class.
-    pub fn rate(&self, class: Option<&str>) -> f64 {
+    /// Rate of a road class: the listed class equal to the stored value (by value for numbers,
+    /// ignoring letter case for text), else the default rate.
+    pub fn rate(&self, class: Option<&serde_json::Value>) -> f64 {
         class
-            .and_then(|c| self.class_rates.get(&c.trim().to_lowercase()))
-            .copied()
+            .and_then(|c| {
+                self.class_rates
+                    .iter()
+                    .find(|(k, _)| super::value::matches(c, k))
+            })
+            .map(|(_, r)| *r)
             .unwrap_or(self.class_default)
     }
 }
@@ -187,9 +200,10 @@ impl RoadFilter {
         })
     }
 
-    /// True when a feature with this value passes.
-    pub fn passes(&self, value: Option<&str>) -> bool {
-        let hit = value.is_some_and(|v| self.values.iter().any(|x| x == v));
+    /// True when a feature with this value passes; values compare by value for numbers and
+    /// ignoring letter case for text.
+    pub fn passes(&self, value: Option<&serde_json::Value>) -> bool {
+        let hit = value.is_some_and(|v| self.values.iter().any(|x| super::value::matches(v, x)));
         hit == self.keep
     }
 }
@@ -208,13 +222,13 @@ mod tests {
         assert_eq!(t.category("collapsed"), Ok(Damage::Closed));
         let e = t.category("gone").unwrap_err();
         assert!(e.contains("collapsed, debris, intact"), "{e}");
-        assert_eq!(t.rate(Some("motorway")), 3.0);
-        assert_eq!(t.rate(Some("track")), 1.5);
+        assert_eq!(t.rate(Some(&"motorway".into())), 3.0);
+        assert_eq!(t.rate(Some(&"track".into())), 1.5);
         assert!(CostTable::from_toml("[classes]\nmotorway = 2\n").is_err());
         assert!(CostTable::from_toml("[categories]\nx = \"big\"\n").is_err());
         let f = RoadFilter::parse("highway=footway,path", false).unwrap();
-        assert!(!f.passes(Some("path")));
-        assert!(f.passes(Some("primary")));
+        assert!(!f.passes(Some(&"path".into())));
+        assert!(f.passes(Some(&"primary".into())));
         assert!(f.passes(None));
     }
 }

@@ -81,6 +81,7 @@ impl DamageRule {
     pub fn interpret(&self, value: Option<&Value>) -> Result<Damage, String> {
         let factor = match value {
             None | Some(Value::Null) => return Ok(self.missing()),
+            Some(v) if super::value::matches(v, &self.closed_value) => return Ok(Damage::Closed),
             Some(Value::Number(n)) => n.as_f64().unwrap_or(f64::NAN),
             Some(Value::String(s)) => {
                 let t = s.trim();
@@ -145,6 +146,17 @@ mod tests {
         assert!(r.interpret(Some(&json!("bad"))).is_err());
         assert!(r.interpret(Some(&json!(true))).is_err());
         assert!(r.interpret(Some(&json!(1e9))).is_err());
+        let by_number = DamageRule {
+            closed_value: "99".into(),
+            ..DamageRule::default()
+        };
+        assert_eq!(by_number.interpret(Some(&json!(99))), Ok(Damage::Closed));
+        assert_eq!(by_number.interpret(Some(&json!(99.0))), Ok(Damage::Closed));
+        assert_eq!(by_number.interpret(Some(&json!("99"))), Ok(Damage::Closed));
+        assert_eq!(
+            by_number.interpret(Some(&json!(9))),
+            Ok(Damage::Factor(9.0))
+        );
         let closed_by_default = DamageRule {
             default: -1.0,
             ..DamageRule::default()

@@ -9,6 +9,7 @@ use super::coords::{Coords, CoordsSeed};
 use super::scan::{Position, Scanner};
 use serde::de::{self, DeserializeSeed, IgnoredAny, MapAccess, Visitor};
 use serde_json::Value;
+use serde_json::value::RawValue;
 use std::fmt;
 use std::io::Read;
 
@@ -315,7 +316,7 @@ impl<'de> Visitor<'de> for FeatureSeed<'_> {
                         keys: self.collect_keys.then_some(&mut f.keys),
                     })?
                 }
-                "id" => f.id = Some(map.next_value()?),
+                "id" => f.id = Some(as_written(&map.next_value::<Box<RawValue>>()?)?),
                 _ => {
                     map.next_value::<IgnoredAny>()?;
                 }
@@ -374,6 +375,17 @@ impl<'de> Visitor<'de> for GeometrySeed<'_> {
     }
 }
 
+/// A property or id value under the typing rule (`super::value`): a number whose spelling a double
+/// would not reproduce (`1.50`, `1e2`, digits beyond a 64-bit integer) is kept as its text.
+fn as_written<E: de::Error>(raw: &RawValue) -> Result<Value, E> {
+    let text = raw.get();
+    let v: Value = serde_json::from_str(text).map_err(E::custom)?;
+    Ok(match &v {
+        Value::Number(n) if n.to_string() != text => Value::from(text),
+        _ => v,
+    })
+}
+
 struct PropsSeed<'a> {
     wanted: &'a [String],
     out: &'a mut Vec<(String, Value)>,
@@ -409,7 +421,7 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
             if self.wanted.contains(&key)
                 || self.wanted.first().is_some_and(|w| w == ALL_PROPERTIES)
             {
-                let v: Value = map.next_value()?;
+                let v = as_written(&map.next_value::<Box<RawValue>>()?)?;
                 self.out.push((key, v));
             } else {
                 map.next_value::<IgnoredAny>()?;

@@ -19,8 +19,10 @@ pub mod reports;
 pub mod roads;
 pub mod scan;
 pub mod shapefile;
+pub mod shapeset;
 pub mod sites;
 pub mod source;
+pub mod value;
 pub mod zones;
 
 use crate::network::Network;

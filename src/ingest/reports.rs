@@ -81,6 +81,7 @@ pub fn read_reports(
         path: path.display().to_string(),
         bytes,
         sha256,
+        deleted_records: 0,
     };
     Ok((out, rec))
 }

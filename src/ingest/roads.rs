@@ -207,6 +207,7 @@ pub fn read_geojson_roads(
         path: path.display().to_string(),
         bytes,
         sha256,
+        deleted_records: 0,
     });
     check_empty(&layer, &path, info.features)?;
     check_fields(&path, settings, &seen, &first_keys)?;
@@ -459,14 +460,9 @@ pub(super) fn add_feature(
             }
         }
     }
-    let text = |v: &Value| match v {
-        Value::String(s) => Some(s.trim().to_string()),
-        Value::Number(n) => Some(n.to_string()),
-        _ => None,
-    };
+    let text = super::value::text;
     for filter in &settings.filters {
-        let v = f.prop(&filter.field).and_then(text);
-        if !filter.passes(v.as_deref()) {
+        if !filter.passes(f.prop(&filter.field)) {
             let how = if filter.keep {
                 "not kept by"
             } else {
@@ -506,9 +502,7 @@ pub(super) fn add_feature(
         }
     };
     if let Some(cf) = &settings.cost_table.class_field {
-        let rate = settings
-            .cost_table
-            .rate(f.prop(cf).and_then(text).as_deref());
+        let rate = settings.cost_table.rate(f.prop(cf));
         if let Damage::Factor(x) = damage {
             // The cap bounds the effort per metre, whatever it is made of.
             if x * rate > super::damage::MAX_FACTOR {

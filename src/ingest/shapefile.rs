@@ -85,9 +85,15 @@ pub fn read_shapefile_roads(
         }
     }
     let mut layer = LineLayer::default();
-    let mut count = 0;
-    for (index, item) in reader.iter_shapes_and_records().enumerate() {
-        count = index + 1;
+    let count = reader.record_count();
+    if reader.deleted() > 0 {
+        layer
+            .stats
+            .features_skipped
+            .insert("flagged deleted in the .dbf".into(), reader.deleted());
+    }
+    let numbers = reader.numeric_text();
+    for (index, item) in reader.records() {
         let (shape, record) = item.map_err(|e| IngestError::Feature {
             path: path.to_path_buf(),
             feature: index,
@@ -149,13 +155,16 @@ pub fn read_shapefile_roads(
         f.has_properties = true;
         for name in &wanted {
             if let Some(v) = record.get(name) {
-                f.props.push((name.clone(), field_json(v)));
+                f.props.push((name.clone(), numbers.value(index, name, v)?));
             }
         }
         add_feature(&mut layer, path, settings, index, f)?;
     }
     layer.stats.features_read = count;
-    layer.input = Some(fingerprint(path, "roads")?);
+    layer.input = Some(InputRecord {
+        deleted_records: reader.deleted(),
+        ..fingerprint(path, "roads")?
+    });
     check_empty(&layer, path, count)?;
     finish_coordinates(&mut layer, path, &crs)?;
     Ok(layer)
@@ -218,6 +227,7 @@ pub fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> 
         path: path.display().to_string(),
         bytes,
         sha256: h.finalize().iter().map(|b| format!("{b:02x}")).collect(),
+        deleted_records: 0,
     })
 }
 
@@ -225,11 +235,17 @@ pub fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> 
 pub fn field_json(v: &FieldValue) -> Value {
     match v {
         FieldValue::Character(Some(s)) => Value::from(s.trim()),
+        // A whole number is kept whole, so a numeric id 7 reads as "7", not "7.0".
+        FieldValue::Numeric(Some(x)) if x.fract() == 0.0 && x.abs() < 9.0e15 => {
+            Value::from(*x as i64)
+        }
         FieldValue::Numeric(Some(x)) | FieldValue::Double(x) | FieldValue::Currency(x) => {
             serde_json::Number::from_f64(*x).map_or(Value::Null, Value::Number)
         }
-        FieldValue::Float(Some(x)) => {
-            serde_json::Number::from_f64(*x as f64).map_or(Value::Null, Value::Number)
+        // A single-precision value by its shortest decimal text, so 0.1 stays 0.1.
+        FieldValue::Float(Some(x)) => super::value::cell(&x.to_string()),
+        FieldValue::Date(Some(d)) => {
+            Value::from(format!("{:04}-{:02}-{:02}", d.year(), d.month(), d.day()))
         }
         FieldValue::Integer(i) => Value::from(*i),
         FieldValue::Logical(Some(b)) => Value::from(*b),
@@ -238,9 +254,51 @@ pub fn field_json(v: &FieldValue) -> Value {
     }
 }
 
-/// A plain message for the shapefile crate's errors.
-/// An open Shapefile set: shapes from the .shp (with its .shx) and records from the .dbf.
-pub type SetReader = shapefile::Reader<BufReader<File>, BufReader<File>>;
+/// An open Shapefile set: shapes from the .shp (through its checked .shx), records from the .dbf,
+/// and which records the .dbf flags deleted.
+pub struct ShapeSet {
+    shapes: shapefile::ShapeReader<BufReader<File>>,
+    table: shapefile::dbase::Reader<BufReader<File>>,
+    deleted: Vec<bool>,
+    overflow: super::shapeset::NumericText,
+}
+
+/// One record of a set: its shape and attributes, or the error reading them.
+pub type SetItem = Result<(Shape, shapefile::dbase::Record), shapefile::Error>;
+
+impl ShapeSet {
+    /// How many records the .dbf flags deleted (skipped with their shapes).
+    pub fn deleted(&self) -> usize {
+        self.deleted.iter().filter(|&&d| d).count()
+    }
+
+    /// What the .dbf's numeric fields hold beyond the table reader's values (overflow markers, long numbers).
+    pub fn numeric_text(&self) -> super::shapeset::NumericText {
+        self.overflow.clone()
+    }
+
+    /// How many records the set holds, deleted ones included.
+    pub fn record_count(&self) -> usize {
+        self.deleted.len()
+    }
+
+    /// The records not flagged deleted, each with its 0-based record number in the files.
+    pub fn records(&mut self) -> impl Iterator<Item = (usize, SetItem)> + '_ {
+        let deleted = &self.deleted;
+        let mut rows = self.table.iter_records();
+        self.shapes
+            .iter_shapes()
+            .enumerate()
+            .filter(|(i, _)| !deleted.get(*i).copied().unwrap_or(false))
+            .map(move |(i, shape)| {
+                let row = match rows.next() {
+                    Some(r) => r.map_err(shapefile::Error::DbaseError),
+                    None => Err(shapefile::Error::MissingDbf),
+                };
+                (i, shape.and_then(|s| row.map(|r| (s, r))))
+            })
+    }
+}
 
 /// The .dbf beside `path`, in either letter case.
 fn sibling(path: &Path, ext: &str) -> std::path::PathBuf {
@@ -257,7 +315,10 @@ fn sibling(path: &Path, ext: &str) -> std::path::PathBuf {
 /// file, else the dBASE language driver byte); a table declared or assumed UTF-8 is read lossily
 /// (undecodable bytes become U+FFFD) rather than refused. A .dbf whose record count differs from
 /// the number of shapes is refused: rows would pair with the wrong roads or be lost.
-pub fn open_set(path: &Path) -> Result<SetReader, IngestError> {
+///
+/// A .shx that disagrees with the .shp is refused; records the .dbf flags deleted are skipped
+/// together with their shapes by [`ShapeSet::records`].
+pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
     use shapefile::dbase;
     let fail = |message: String| IngestError::Io {
         path: path.to_path_buf(),
@@ -312,7 +373,18 @@ pub fn open_set(path: &Path) -> Result<SetReader, IngestError> {
             )),
         });
     }
-    Ok(shapefile::Reader::new(shapes, table))
+    super::shapeset::check_index(path, &sibling(path, "shx"))?;
+    let scan = super::shapeset::scan_table(&dbf)?;
+    Ok(ShapeSet {
+        shapes,
+        table,
+        deleted: scan.deleted,
+        overflow: super::shapeset::NumericText {
+            dbf,
+            at: scan.overflow,
+            long: scan.long,
+        },
+    })
 }
 
 /// Field names of an open set's attribute table.

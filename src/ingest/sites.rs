@@ -124,6 +124,7 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
             path: path.display().to_string(),
             bytes,
             sha256,
+            deleted_records: 0,
         },
         defaults,
     })
@@ -258,13 +259,7 @@ fn read_csv<R: std::io::Read>(
         let pos = [num(lon_i)?, num(lat_i)?];
         let mut attributes = Map::new();
         for (h, v) in headers.iter().zip(rec.iter()) {
-            let value = match v.trim().parse::<f64>() {
-                Ok(x) if x.is_finite() && !v.trim().is_empty() => serde_json::Number::from_f64(x)
-                    .map(Value::Number)
-                    .unwrap_or_else(|| Value::from(v)),
-                _ => Value::from(v),
-            };
-            attributes.insert(h.to_string(), value);
+            attributes.insert(h.to_string(), super::value::cell(v));
         }
         sites.push(make_site(
             path,
@@ -317,16 +312,7 @@ fn make_site(
     })
 }
 
-fn text(v: &Value) -> Option<String> {
-    match v {
-        Value::String(s) if !s.trim().is_empty() => Some(s.trim().to_string()),
-        Value::Number(n) => Some(match n.as_i64() {
-            Some(i) => i.to_string(),
-            None => n.to_string(),
-        }),
-        _ => None,
-    }
-}
+use super::value::text;
 
 fn priority(
     path: &Path,
@@ -430,7 +416,8 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
     let mut defaults = SiteDefaults::default();
-    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+    let numbers = reader.numeric_text();
+    for (index, item) in reader.records() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
         let pos = match shape {
@@ -446,10 +433,11 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
                 ));
             }
         };
-        let attributes: Map<String, Value> = record
-            .into_iter()
-            .map(|(k, v)| (k, super::shapefile::field_json(&v)))
-            .collect();
+        let mut attributes = Map::new();
+        for (k, v) in record {
+            let value = numbers.value(index, &k, &v)?;
+            attributes.insert(k, value);
+        }
         sites.push(make_site(
             path,
             index,
@@ -464,7 +452,10 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     check_unique(path, &sites)?;
     Ok(SiteLayer {
         sites,
-        input: super::shapefile::fingerprint(path, "sites")?,
+        input: InputRecord {
+            deleted_records: reader.deleted(),
+            ..super::shapefile::fingerprint(path, "sites")?
+        },
         defaults,
     })
 }

@@ -118,6 +118,13 @@ pub struct InputRecord {
     pub bytes: u64,
     /// SHA-256 of the content, hex.
     pub sha256: String,
+    /// Records a Shapefile's .dbf flags deleted, skipped with their shapes (omitted when none).
+    #[serde(skip_serializing_if = "is_zero")]
+    pub deleted_records: usize,
+}
+
+fn is_zero(n: &usize) -> bool {
+    *n == 0
 }
 
 #[cfg(test)]

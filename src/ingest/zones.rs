@@ -131,6 +131,7 @@ pub fn read_zones(
             path: path.display().to_string(),
             bytes,
             sha256,
+            deleted_records: 0,
         },
     })
 }
@@ -192,7 +193,8 @@ fn read_shapefile_zones(
     let conv = super::shapefile::layer_crs(path, crs)?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
-    for (index, item) in reader.iter_shapes_and_records().enumerate() {
+    let numbers = reader.numeric_text();
+    for (index, item) in reader.records() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
             feature: index,
@@ -201,7 +203,10 @@ fn read_shapefile_zones(
         };
         let (shape, record) =
             item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
-        let value = record.get(&rule.field).map(super::shapefile::field_json);
+        let value = match record.get(&rule.field) {
+            Some(v) => Some(numbers.value(index, &rule.field, v)?),
+            None => None,
+        };
         let damage = rule
             .interpret(value.as_ref())
             .map_err(|m| fail(&rule.field, m))?;
@@ -245,7 +250,10 @@ fn read_shapefile_zones(
     }
     Ok(ZoneLayer {
         zones,
-        input: super::shapefile::fingerprint(path, "damage zones")?,
+        input: InputRecord {
+            deleted_records: reader.deleted(),
+            ..super::shapefile::fingerprint(path, "damage zones")?
+        },
     })
 }
 

@@ -66,6 +66,7 @@ pub fn input_record(role: &str, src: &Source) -> Result<InputRecord, IngestError
         path: path.display().to_string(),
         bytes,
         sha256,
+        deleted_records: 0,
     })
 }
 

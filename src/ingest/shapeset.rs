@@ -1,0 +1,208 @@
+//! Integrity of a Shapefile set: records flagged deleted in the `.dbf`, and a `.shx` index that
+//! must agree with the `.shp` record headers.
+//!
+//! Layouts (ESRI Shapefile Technical Description, 1998; dBASE III file format, common practice):
+//! a `.shp` and `.shx` start with a 100-byte header; each `.shp` record has an 8-byte header
+//! (record number, content length in 16-bit words, big-endian); each `.shx` record is 8 bytes
+//! (offset and content length in 16-bit words, big-endian). A `.dbf` header gives the record count
+//! (u32 at byte 4), the header length (u16 at 8) and the record length (u16 at 10), little-endian;
+//! each record starts with a flag byte, `*` (0x2A) for a deleted record.
+
+use super::IngestError;
+use std::path::Path;
+
+fn refuse(path: &Path, message: String) -> IngestError {
+    IngestError::Io {
+        path: path.to_path_buf(),
+        source: std::io::Error::other(message),
+    }
+}
+
+/// What a scan of a `.dbf` finds beside the values the table reader gives.
+#[derive(Debug, Default)]
+pub struct TableScan {
+    /// The deletion flag of every record, in file order (true: flagged deleted).
+    pub deleted: Vec<bool>,
+    /// (record, field) of every numeric field holding the overflow marker (all `*`): a number
+    /// too wide for its field, which the table reader would give as a missing value.
+    pub overflow: Vec<(usize, String)>,
+    /// (record, field, text) of every numeric value with more digits than a double holds exactly
+    /// (over 15): the text is kept so a long id is not rounded.
+    pub long: Vec<(usize, String, String)>,
+}
+
+/// Scans a `.dbf` for deletion flags and numeric overflow markers.
+pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
+    let bytes = std::fs::read(dbf).map_err(|source| IngestError::Io {
+        path: dbf.to_path_buf(),
+        source,
+    })?;
+    if bytes.len() < 32 {
+        return Err(refuse(
+            dbf,
+            "not a dBASE table: shorter than its header".into(),
+        ));
+    }
+    let count = u32::from_le_bytes([bytes[4], bytes[5], bytes[6], bytes[7]]) as usize;
+    let header = u16::from_le_bytes([bytes[8], bytes[9]]) as usize;
+    let record = u16::from_le_bytes([bytes[10], bytes[11]]) as usize;
+    let needed = (record as u128) * (count as u128) + header as u128;
+    if record == 0 || needed > bytes.len() as u128 {
+        return Err(refuse(
+            dbf,
+            format!(
+                "the dBASE table declares {count} record(s) of {record} bytes after a {header}-byte \
+                 header, more than its {} bytes hold (truncated?)",
+                bytes.len()
+            ),
+        ));
+    }
+    // Field descriptors: 32 bytes each from byte 32 up to the 0x0D terminator.
+    let mut numeric = Vec::new();
+    let mut offset = 1usize;
+    let mut at = 32usize;
+    while at + 32 <= header && bytes[at] != 0x0D {
+        let d = &bytes[at..at + 32];
+        let name_end = d[..11].iter().position(|&b| b == 0).unwrap_or(11);
+        let len = d[16] as usize;
+        if matches!(d[11], b'N' | b'F') && offset + len <= record {
+            numeric.push((
+                String::from_utf8_lossy(&d[..name_end]).into_owned(),
+                offset,
+                len,
+            ));
+        }
+        offset += len;
+        at += 32;
+    }
+    let mut scan = TableScan::default();
+    for i in 0..count {
+        let r = &bytes[header + i * record..header + (i + 1) * record];
+        scan.deleted.push(r[0] == b'*');
+        for (name, off, len) in &numeric {
+            let v = r[*off..off + len].trim_ascii();
+            if r[0] != b'*' && !v.is_empty() && v.iter().all(|&b| b == b'*') {
+                scan.overflow.push((i, name.clone()));
+            } else if v.iter().filter(|b| b.is_ascii_digit()).count() > 15 {
+                let text = String::from_utf8_lossy(v).into_owned();
+                scan.long.push((i, name.clone(), text));
+            }
+        }
+    }
+    Ok(scan)
+}
+
+/// What a `.dbf`'s numeric fields hold beyond what the table reader gives: overflow markers and
+/// the exact text of long numbers.
+#[derive(Debug, Clone, Default)]
+pub struct NumericText {
+    /// The table.
+    pub dbf: std::path::PathBuf,
+    /// (record, field) of each overflow marker.
+    pub at: Vec<(usize, String)>,
+    /// (record, field, text) of each number longer than a double holds exactly.
+    pub long: Vec<(usize, String, String)>,
+}
+
+impl NumericText {
+    /// The value of record `feature`'s `field` under the typing rule (`super::value`): refused
+    /// when it holds the overflow marker, its own text when it is a long number.
+    pub fn value(
+        &self,
+        feature: usize,
+        field: &str,
+        v: &shapefile::dbase::FieldValue,
+    ) -> Result<serde_json::Value, IngestError> {
+        self.check(feature, field)?;
+        Ok(
+            match self
+                .long
+                .iter()
+                .find(|(i, f, _)| *i == feature && f == field)
+            {
+                Some((_, _, text)) => super::value::cell(text),
+                None => super::shapefile::field_json(v),
+            },
+        )
+    }
+
+    /// Refuses record `feature` when its `field` holds the overflow marker, naming both.
+    pub fn check(&self, feature: usize, field: &str) -> Result<(), IngestError> {
+        if !self.at.iter().any(|(i, f)| *i == feature && f == field) {
+            return Ok(());
+        }
+        Err(IngestError::Feature {
+            path: self.dbf.clone(),
+            feature,
+            field: Some(field.into()),
+            message: "holds the dBASE overflow marker (all '*'): the number was too wide for its \
+                      field when the table was written, so its value is lost; fix or widen the field"
+                .into(),
+        })
+    }
+}
+
+/// Refuses a `.shx` whose record offsets or lengths disagree with the `.shp` record headers
+/// (shapes read through it would repeat or go missing); the message names the first record off.
+pub fn check_index(shp: &Path, shx: &Path) -> Result<(), IngestError> {
+    let read = |p: &Path| {
+        std::fs::read(p).map_err(|source| IngestError::Io {
+            path: p.to_path_buf(),
+            source,
+        })
+    };
+    let (s, x) = (read(shp)?, read(shx)?);
+    if x.len() < 100 || (x.len() - 100) % 8 != 0 {
+        return Err(refuse(
+            shx,
+            format!(
+                "the index is {} bytes: not a 100-byte header followed by 8-byte records",
+                x.len()
+            ),
+        ));
+    }
+    let be = |b: &[u8], at: usize| i32::from_be_bytes([b[at], b[at + 1], b[at + 2], b[at + 3]]);
+    let mut at = 100usize;
+    for (i, entry) in x[100..].chunks_exact(8).enumerate() {
+        let (offset, length) = (be(entry, 0) as i64 * 2, be(entry, 4) as i64 * 2);
+        let actual = (at + 8 <= s.len()).then(|| (at as i64, be(&s, at + 4) as i64 * 2));
+        if actual != Some((offset, length)) {
+            let found = match actual {
+                Some((o, l)) => format!("the .shp has record {} at byte {o} ({l} bytes)", i + 1),
+                None => format!("the .shp ends at byte {}", s.len()),
+            };
+            return Err(refuse(
+                shx,
+                format!(
+                    "feature {i}: the index places record {} at byte {offset} ({length} bytes) but \
+                     {found}; the index does not belong to {} (rebuild it)",
+                    i + 1,
+                    shp.display()
+                ),
+            ));
+        }
+        at += 8 + length.max(0) as usize;
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn reads_flags_and_refuses_a_short_table() {
+        let d = tempfile::tempdir().unwrap();
+        let p = d.path().join("t.dbf");
+        // Header of 33 bytes (32 + terminator), two 2-byte records: the second flagged deleted.
+        let mut b = vec![0u8; 33];
+        b[4] = 2;
+        b[8] = 33;
+        b[10] = 2;
+        b.extend_from_slice(b" a*b");
+        std::fs::write(&p, &b).unwrap();
+        assert_eq!(scan_table(&p).unwrap().deleted, vec![false, true]);
+        std::fs::write(&p, &b[..35]).unwrap();
+        assert!(scan_table(&p).is_err());
+    }
+}
