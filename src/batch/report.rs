@@ -165,7 +165,9 @@ pub fn check_replaceable(dir: &Path, stem: &str) -> Result<(), BatchError> {
             }
         };
         let text = if meta.is_file() {
-            std::fs::read(&p).ok()
+            crate::ingest::limits::read_small_text(&p)
+                .ok()
+                .map(String::into_bytes)
         } else {
             None
         };

@@ -128,7 +128,7 @@ impl NetworkArgs {
     pub fn road_settings(&self) -> anyhow::Result<RoadSettings> {
         let cost_table = match &self.cost_table {
             Some(p) => {
-                let text = std::fs::read_to_string(p)
+                let text = reknit::ingest::limits::read_small_text(p)
                     .map_err(|e| anyhow::anyhow!("{}: cannot read: {e}", p.display()))?;
                 CostTable::from_toml(&text).map_err(|e| anyhow::anyhow!("{}: {e}", p.display()))?
             }

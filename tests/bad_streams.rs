@@ -1,0 +1,267 @@
+//! The bad-input catalogue, part 3 (docs/bad-inputs.md lists every case): JSON member names given
+//! twice, endless or oversized inputs, byte-order marks, UTF-16 and files in other formats, each
+//! run through every reader the rule applies to.
+
+mod common;
+use common::bad::*;
+use common::*;
+use std::path::Path;
+
+/// A Point site feature with an extra `name`.
+const SITE: &str = r#"{"type":"Feature","properties":{"site_id":"a"},"geometry":{"type":"Point","coordinates":[0,0]}}"#;
+const ZONE: &str = r#"{"type":"Feature","properties":{"damage":2},"geometry":{"type":"Polygon","coordinates":[[[0,-1],[1,-1],[1,1],[0,-1]]]}}"#;
+const REPORT: &str = r#"{"type":"Feature","properties":{"damage":2},"geometry":{"type":"Point","coordinates":[0.0005,0]}}"#;
+
+/// The GeoJSON readers: (role, the flag that reads it, a valid feature of it).
+const GEOJSON_READERS: [(&str, &str, &str); 4] = [
+    ("roads", "--roads", OK_LINE),
+    ("sites", "--sites", SITE),
+    ("zones", "--damage-zones", ZONE),
+    ("reports", "--damage-points", REPORT),
+];
+
+/// `plan` arguments reading `path` in `role`, with a valid road layer for the other roles.
+fn plan_args(d: &Path, flag: &str, path: &Path) -> Vec<String> {
+    let mut a = vec!["plan".to_string(), "--out".into(), s(&d.join("out"))];
+    if flag != "--roads" {
+        a.extend(["--roads".into(), s(&roads_ok(d))]);
+    }
+    a.extend([flag.to_string(), s(path)]);
+    a
+}
+
+/// A batch manifest's text with one district on a valid road layer (written into `d`).
+fn manifest_text(d: &Path) -> String {
+    roads_ok(d);
+    "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n".to_string()
+}
+
+/// Every text reader, as (file name, valid content, arguments reading the file at the path given).
+fn text_readers(d: &Path) -> Vec<(&'static str, String, Box<dyn Fn(&Path) -> Vec<String> + '_>)> {
+    let mut v: Vec<(&'static str, String, Box<dyn Fn(&Path) -> Vec<String> + '_>)> = Vec::new();
+    for (role, flag, feature) in GEOJSON_READERS {
+        let name = match role {
+            "roads" => "roads.geojson",
+            "sites" => "sites.geojson",
+            "zones" => "zones.geojson",
+            _ => "reports.geojson",
+        };
+        v.push((
+            name,
+            fc(&[feature]),
+            Box::new(move |p| plan_args(d, flag, p)),
+        ));
+    }
+    v.push((
+        "sites.csv",
+        "site_id,lon,lat\na,0,0\n".into(),
+        Box::new(move |p| plan_args(d, "--sites", p)),
+    ));
+    v.push((
+        "costs.toml",
+        "[categories]\n".into(),
+        Box::new(move |p| plan_args(d, "--cost-table", p)),
+    ));
+    v.push((
+        "m.toml",
+        manifest_text(d),
+        Box::new(move |p| vec!["batch".into(), s(p), "--out".into(), s(&d.join("out"))]),
+    ));
+    v
+}
+
+/// Runs reknit under an address-space limit of 1 GiB (util-linux `prlimit`).
+fn bounded(args: &[String]) -> std::process::Output {
+    std::process::Command::new("prlimit")
+        .arg("--as=1073741824")
+        .arg(env!("CARGO_BIN_EXE_reknit"))
+        .args(args)
+        .output()
+        .expect("run prlimit")
+}
+
+// ---- Limits ----
+
+case!(endless_zeros_in_every_reader, |d| {
+    // /dev/zero under each reader's name: each stops at its documented limit within 1 GiB.
+    for (name, _, args) in text_readers(d) {
+        let p = d.join(name);
+        let _ = std::fs::remove_file(&p);
+        std::os::unix::fs::symlink("/dev/zero", &p).unwrap();
+        let o = bounded(&args(&p));
+        let msg = stderr(&o);
+        assert_eq!(o.status.code(), Some(2), "{name}: {msg}");
+        assert!(msg.contains(name) && msg.contains("limit"), "{name}: {msg}");
+        assert!(
+            !msg.contains("panicked") && !msg.contains("memory"),
+            "{name}: {msg}"
+        );
+        std::fs::remove_file(&p).unwrap();
+    }
+});
+
+case!(a_string_beyond_the_limit, |d| {
+    // 65 MiB of name in one string: over the 64 MiB limit of a single string, refused by feature.
+    let mut bytes =
+        br#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":""#
+            .to_vec();
+    bytes.resize(bytes.len() + (65 << 20), b'x');
+    bytes.extend_from_slice(br#""},"geometry":null}]}"#);
+    let p = file(d, "roads.geojson", bytes);
+    let o = bounded(&plan_args(d, "--roads", &p));
+    let msg = stderr(&o);
+    assert_eq!(o.status.code(), Some(2), "{msg}");
+    for n in ["roads.geojson", "feature 0", "64 MiB"] {
+        assert!(msg.contains(n), "{n}: {msg}");
+    }
+});
+
+case!(a_cost_table_beyond_the_limit, |d| {
+    let mut text = "[damage]\n".to_string();
+    text.push_str(&"# padding\n".repeat((17 << 20) / 10));
+    let p = file(d, "costs.toml", text);
+    plan_fails(
+        &roads_ok(d),
+        &["--cost-table", &s(&p)],
+        &["costs.toml", "16 MiB"],
+    );
+});
+
+// ---- Encodings and formats ----
+
+case!(byte_order_mark_in_every_reader, |d| {
+    // RFC 8259 §8.1: a parser may ignore a leading byte-order mark; spreadsheets write one.
+    for (name, text, args) in text_readers(d) {
+        let mut bytes = b"\xEF\xBB\xBF".to_vec();
+        bytes.extend_from_slice(text.as_bytes());
+        let p = file(d, name, bytes);
+        let o = reknit().args(args(&p)).arg("-q").output().unwrap();
+        assert!(o.status.success(), "{name}: {}", stderr(&o));
+        std::fs::remove_dir_all(d.join("out")).unwrap();
+    }
+});
+
+case!(utf16_in_every_reader, |d| {
+    for (name, text, args) in text_readers(d) {
+        for bom in [&b"\xFF\xFE"[..], b""] {
+            let mut bytes = bom.to_vec();
+            bytes.extend(text.encode_utf16().flat_map(u16::to_le_bytes));
+            let p = file(d, name, bytes);
+            fails_with(d, &d.join("out"), &args(&p), &[name, "UTF-16", "iconv"]);
+        }
+        file(d, name, text);
+    }
+});
+
+case!(archives_and_extracts_are_named, |d| {
+    // Magic numbers: ZIP (APPNOTE 4.3.7 local file header), gzip (RFC 1952 §2.3.1), and an
+    // OpenStreetMap PBF file's first BlobHeader (type "OSMHeader").
+    let mut pbf = vec![0, 0, 0, 14, 0x0a, 9];
+    pbf.extend_from_slice(b"OSMHeader\x18\x80\x01");
+    let cases: [(&str, Vec<u8>, &str); 3] = [
+        (
+            "roads.geojson",
+            b"PK\x03\x04\x14\x00\x00\x00".to_vec(),
+            "unzip",
+        ),
+        (
+            "roads.geojson",
+            b"\x1F\x8B\x08\x00\x00\x00".to_vec(),
+            "gunzip",
+        ),
+        ("roads.geojson", pbf, "ogr2ogr -f GeoJSON"),
+    ];
+    for (name, bytes, needle) in cases {
+        let p = file(d, name, bytes);
+        plan_fails(&p, &[], &[name, needle]);
+    }
+});
+
+case!(semicolon_separated_csv, |d| {
+    // RFC 4180 §2: fields are separated by commas.
+    let sites = file(d, "sites.csv", "site_id;lon;lat\na;0;0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&sites)],
+        &["sites.csv", "comma-separated", "';'"],
+    );
+    let m = file(d, "m.csv", "name;roads\nVale;roads.geojson\n");
+    let out = d.join("out");
+    fails_with(
+        d,
+        &out,
+        &["batch".into(), s(&m), "--out".into(), s(&out)],
+        &["m.csv", "comma-separated"],
+    );
+});
+
+// ---- Member names given twice (RFC 8259 §4: names within an object should be unique) ----
+
+/// `feature` with the property `k` given twice.
+fn property_twice(feature: &str) -> String {
+    let once = feature.replace(r#""properties":{}"#, r#""properties":{"k":1,"k":2}"#);
+    if once != feature {
+        return once;
+    }
+    feature.replace(r#""properties":{"#, r#""properties":{"k":1,"k":2,"#)
+}
+
+case!(a_member_given_twice_in_any_geojson_reader, |d| {
+    // A Point geometry followed by a LineString one would join their positions into a phantom road;
+    // a second `properties` would be merged key by key. Every such object is refused, by feature.
+    for (role, flag, feature) in GEOJSON_READERS {
+        let twice = [
+            (
+                "geometry",
+                feature.replace(r#""geometry":"#, r#""geometry":null,"geometry":"#),
+            ),
+            (
+                "coordinates",
+                feature.replace(r#""coordinates":"#, r#""coordinates":[],"coordinates":"#),
+            ),
+            (
+                "properties",
+                feature.replace(r#""properties":"#, r#""properties":{"x":1},"properties":"#),
+            ),
+            (
+                "type",
+                feature.replace(
+                    r#""type":"Feature""#,
+                    r#""type":"Feature","type":"Feature""#,
+                ),
+            ),
+            ("k", property_twice(feature)),
+        ];
+        for (member, text) in twice {
+            assert_ne!(text, feature);
+            let name = format!("{role}.geojson");
+            let p = file(d, &name, fc(&[&text]));
+            let needle = format!("\"{member}\" appears twice");
+            fails_with(
+                d,
+                &d.join("out"),
+                &plan_args(d, flag, &p),
+                &[&name, "feature 0", &needle],
+            );
+        }
+    }
+});
+
+case!(a_collection_member_given_twice, |d| {
+    let text = format!(r#"{{"type":"FeatureCollection","features":[],"features":[{OK_LINE}]}}"#);
+    plan_fails(
+        &file(d, "roads.geojson", text),
+        &[],
+        &["roads.geojson", "\"features\" appears twice"],
+    );
+});
+
+case!(a_point_then_a_line_as_one_geometry, |d| {
+    // Read as one geometry, the two would become a line from the point to the line's far end.
+    let f = r#"{"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[0,0],"type":"LineString","coordinates":[[1,1],[1.001,1]]}}"#;
+    plan_fails(
+        &file(d, "roads.geojson", fc(&[f])),
+        &[],
+        &["roads.geojson", "feature 0", "appears twice"],
+    );
+});
