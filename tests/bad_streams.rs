@@ -36,9 +36,12 @@ fn manifest_text(d: &Path) -> String {
     "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n".to_string()
 }
 
+/// Arguments that read the file at the path given.
+type Args<'a> = Box<dyn Fn(&Path) -> Vec<String> + 'a>;
+
 /// Every text reader, as (file name, valid content, arguments reading the file at the path given).
-fn text_readers(d: &Path) -> Vec<(&'static str, String, Box<dyn Fn(&Path) -> Vec<String> + '_>)> {
-    let mut v: Vec<(&'static str, String, Box<dyn Fn(&Path) -> Vec<String> + '_>)> = Vec::new();
+fn text_readers(d: &Path) -> Vec<(&'static str, String, Args<'_>)> {
+    let mut v: Vec<(&'static str, String, Args<'_>)> = Vec::new();
     for (role, flag, feature) in GEOJSON_READERS {
         let name = match role {
             "roads" => "roads.geojson",

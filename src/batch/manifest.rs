@@ -231,13 +231,13 @@ fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
         .iter()
         .map(|h| h.trim().to_string())
         .collect();
-    if let [h] = headers.as_slice() {
-        if let Some(sep) = [';', '\t', '|'].into_iter().find(|c| h.contains(*c)) {
-            return Err(format!(
-                "not comma-separated CSV: the header is one column holding {sep:?}; reknit reads \
+    if let [h] = headers.as_slice()
+        && let Some(sep) = [';', '\t', '|'].into_iter().find(|c| h.contains(*c))
+    {
+        return Err(format!(
+            "not comma-separated CSV: the header is one column holding {sep:?}; reknit reads \
                  comma-separated CSV (RFC 4180): save it again with commas"
-            ));
-        }
+        ));
     }
     let mut columns: Vec<&'static Key> = Vec::with_capacity(headers.len());
     for h in &headers {
