@@ -13,7 +13,10 @@ fn main() -> ExitCode {
     match cli::run(args) {
         Ok(code) => code,
         Err(e) => {
-            eprintln!("reknit: error: {}", message(&e));
+            eprintln!(
+                "reknit: error: {}",
+                reknit::export::text::terminal(&message(&e))
+            );
             ExitCode::from(2)
         }
     }

@@ -268,3 +268,155 @@ case!(a_point_then_a_line_as_one_geometry, |d| {
         &["roads.geojson", "feature 0", "appears twice"],
     );
 });
+
+// ---- Text that leaves reknit ----
+
+/// Road and site layers whose names and ids hold control characters and formula starts.
+fn hostile_names(d: &Path, sites_name: &str) -> (std::path::PathBuf, std::path::PathBuf) {
+    let roads = serde_json::json!({"type": "FeatureCollection", "features": [
+        {"type": "Feature", "id": "+id\u{7}", "properties": {"name": "=HYPERLINK(\"x\")\u{1}"},
+         "geometry": {"type": "LineString", "coordinates": [[-0.001, 0], [0, 0]]}},
+        {"type": "Feature", "id": "@2", "properties": {"name": "-Main\u{1b}[31m"},
+         "geometry": {"type": "LineString", "coordinates": [[0, 0], [0.001, 0]]}},
+        {"type": "Feature", "properties": {"name": "\tTab road"},
+         "geometry": {"type": "LineString", "coordinates": [[0.001, 0], [0.002, 0]]}}
+    ]});
+    let roads = file(d, "roads.geojson", roads.to_string());
+    let sites = if sites_name.ends_with(".csv") {
+        "site_id,name,lon,lat\n=a,\"Clinic\u{1} A\",-0.001,0\n-b\u{2},B,0.002,0\n".to_string()
+    } else {
+        serde_json::json!({"type": "FeatureCollection", "features": [
+            {"type": "Feature", "properties": {"site_id": "=a", "name": "Clinic\u{1} A"},
+             "geometry": {"type": "Point", "coordinates": [-0.001, 0]}},
+            {"type": "Feature", "properties": {"site_id": "-b\u{2}", "name": "B"},
+             "geometry": {"type": "Point", "coordinates": [0.002, 0]}}
+        ]})
+        .to_string()
+    };
+    (roads, file(d, sites_name, sites))
+}
+
+case!(control_characters_in_names_reach_no_output, |d| {
+    // XML 1.0 §2.2 and the HTML parsing rules allow no C0 controls other than white space; a
+    // spreadsheet or terminal would act on them. The run succeeds and every output is clean.
+    for sites_name in ["sites.geojson", "sites.csv"] {
+        let (roads, sites) = hostile_names(d, sites_name);
+        let out = plan_ok(
+            d,
+            &["--roads", &s(&roads), "--sites", &s(&sites), "--force"],
+        );
+        for name in ["plan.svg", "report.html", "work-orders.csv"] {
+            let text = std::fs::read_to_string(out.join(name)).unwrap();
+            let bad = text
+                .chars()
+                .find(|c| c.is_control() && !"\n\r\t".contains(*c));
+            assert_eq!(bad, None, "{sites_name}: {name} holds a control character");
+            assert!(
+                text.contains('\u{FFFD}'),
+                "{sites_name}: {name} lost the replaced names"
+            );
+        }
+        assert!(out.join("plan.png").exists());
+    }
+    // On the terminal a control character is shown escaped: a duplicate id names itself.
+    let dup = fc(&[
+        &site_feature(r"a\u001b[2J", 0.0, 0.0),
+        &site_feature(r"a\u001b[2J", 0.001, 0.0),
+    ]);
+    let p = file(d, "dup.geojson", dup);
+    std::fs::remove_dir_all(d.join("out")).unwrap();
+    let o = reknit().args(plan_args(d, "--sites", &p)).output().unwrap();
+    let msg = stderr(&o);
+    assert_eq!(o.status.code(), Some(2), "{msg}");
+    assert!(!msg.contains('\u{1b}') && msg.contains("\\u{1b}"), "{msg}");
+});
+
+case!(formula_cells_are_neutralised_in_work_orders, |d| {
+    // OWASP "CSV Injection": a free-text cell starting with = + - @ tab or CR gets a leading
+    // apostrophe; numeric cells (negative longitudes) are never altered. RFC 4180 quoting applies.
+    for sites_name in ["sites.geojson", "sites.csv"] {
+        let (roads, sites) = hostile_names(d, sites_name);
+        let out = plan_ok(
+            d,
+            &["--roads", &s(&roads), "--sites", &s(&sites), "--force"],
+        );
+        let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
+        let h = r.headers().unwrap().clone();
+        let col = |n: &str| h.iter().position(|x| x == n).unwrap();
+        let mut roads_seen = Vec::new();
+        for rec in r.records() {
+            let rec = rec.unwrap();
+            for n in ["source_id", "road", "category", "completes_sites"] {
+                let v = &rec[col(n)];
+                assert!(
+                    !v.starts_with(['=', '+', '-', '@', '\t', '\r']),
+                    "{n}: {v:?}"
+                );
+            }
+            roads_seen.push(reknit::export::text::csv_text(&rec[col("road")]).to_string());
+            if rec[col("source_id")].contains("+id") {
+                assert_eq!(&rec[col("from_lon")], "-0.001");
+            }
+        }
+        assert!(
+            roads_seen.contains(&"-Main\u{FFFD}[31m".to_string()),
+            "{roads_seen:?}"
+        );
+        assert!(
+            roads_seen.contains(&"=HYPERLINK(\"x\")\u{FFFD}".to_string()),
+            "{roads_seen:?}"
+        );
+    }
+});
+
+case!(no_negative_zero_in_any_output, |d| {
+    // Figures that round to zero print as 0, never "-0" or "-0.000" (coordinates a hair west of
+    // Greenwich and south of the equator).
+    let line = r#"{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[-0.00000001,-0.00000001],[-0.00000001,0.001]]}}"#;
+    let roads = file(d, "roads.geojson", fc(&[line]));
+    let sites = file(
+        d,
+        "sites.geojson",
+        fc(&[
+            &site_feature("a", -0.00000001, -0.00000001),
+            &site_feature("b", -0.00000001, 0.001),
+        ]),
+    );
+    let o = reknit()
+        .args([
+            "plan",
+            "--roads",
+            &s(&roads),
+            "--sites",
+            &s(&sites),
+            "--out",
+            &s(&d.join("out")),
+        ])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let negative_zero = regex_free_negative_zero;
+    assert!(negative_zero("a -0.000 b") && negative_zero("[-0,1]") && negative_zero("-0.0%"));
+    assert!(!negative_zero("-0.001") && !negative_zero("x-0") && !negative_zero("-0.5"));
+    assert!(!negative_zero(&stderr(&o)), "terminal: {}", stderr(&o));
+    for e in std::fs::read_dir(d.join("out")).unwrap() {
+        let p = e.unwrap().path();
+        if let Ok(text) = std::fs::read_to_string(&p) {
+            assert!(!negative_zero(&text), "{}", p.display());
+        }
+    }
+});
+
+/// Whether `text` holds a number that is a negative zero ("-0", "-0.0", "-0.000"…).
+fn regex_free_negative_zero(text: &str) -> bool {
+    text.match_indices("-0").any(|(i, _)| {
+        let rest = &text[i + 2..];
+        let digits = rest.strip_prefix('.').map_or(rest, |r| r);
+        let zeros = digits.len() - digits.trim_start_matches('0').len();
+        let after = digits[zeros..].chars().next();
+        let before = text[..i].chars().next_back();
+        !before.is_some_and(|c| c.is_ascii_alphanumeric())
+            && !after.is_some_and(|c| c.is_ascii_digit())
+            && (zeros > 0 || !rest.starts_with('.'))
+    })
+}

@@ -2,6 +2,7 @@
 
 use clap::{Args, ValueEnum};
 use reknit::export::Summary;
+use reknit::export::geojson::fixed;
 use reknit::ingest::RoadSettings;
 use reknit::ingest::cost_table::{CostTable, RoadFilter};
 use reknit::ingest::damage::DamageRule;
@@ -313,18 +314,24 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         c.junctions, c.edges, c.edges_damaged, c.edges_closed, c.components
     );
     eprintln!(
-        "plan: {} edges, {} to repair, {:.3} repair-metres over {:.3} m of road",
-        summary.plan_edges, summary.plan.repair_edges, summary.total_cost, summary.repair_length_m
+        "plan: {} edges, {} to repair, {} repair-metres over {} m of road",
+        summary.plan_edges,
+        summary.plan.repair_edges,
+        fixed(summary.total_cost, 3),
+        fixed(summary.repair_length_m, 3)
     );
     if let Some(s) = &summary.sites {
         eprintln!(
-            "sites: {} of {} connected; lower bound {:.3} repair-metres ({})",
+            "sites: {} of {} connected; lower bound {} repair-metres ({})",
             s.connected,
             s.total,
-            summary.lower_bound,
+            fixed(summary.lower_bound, 3),
             match summary.gap {
                 Some(0.0) => "the plan is optimal".to_string(),
-                Some(g) => format!("the plan is at most {:.2} % above optimal", 100.0 * g),
+                Some(g) => format!(
+                    "the plan is at most {} % above optimal",
+                    fixed(100.0 * g, 2)
+                ),
                 None => "no gap: the bound is 0".to_string(),
             }
         );

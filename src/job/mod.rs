@@ -509,8 +509,8 @@ pub fn status(
         return (
             "left out by budget",
             Some(format!(
-                "outside the budget: {:.3} more repair-metres would join it",
-                *need as f64 / 1000.0
+                "outside the budget: {} more repair-metres would join it",
+                crate::export::geojson::fixed(*need as f64 / 1000.0, 3)
             )),
         );
     }
