@@ -420,3 +420,52 @@ fn regex_free_negative_zero(text: &str) -> bool {
             && (zeros > 0 || !rest.starts_with('.'))
     })
 }
+
+// ---- Shard summaries read by `merge` ----
+
+/// A two-district manifest run as two shards into `out`.
+fn two_shards(d: &Path, out: &Path) {
+    use common::batch::{batch, grid_roads, manifest};
+    grid_roads(d, "roads.geojson");
+    grid_roads(d, "roads-b.geojson");
+    let m = manifest(
+        d,
+        "m.toml",
+        "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Moor\"\nroads = \"roads-b.geojson\"\n",
+    );
+    for k in ["1/2", "2/2"] {
+        let o = batch(&m, out, &["--shard", k]);
+        assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    }
+}
+
+case!(shard_summary_with_a_member_twice_or_endless, |d| {
+    let out = d.join("out");
+    two_shards(d, &out);
+    let p = out.join("batch-summary-2-of-2.json");
+    let text = std::fs::read_to_string(&p).unwrap();
+    // A second "rows" member: which one counts would depend on the reader (RFC 8259 §4).
+    let twice = text.replacen('{', "{\n  \"rows\": [],", 1);
+    std::fs::write(&p, &twice).unwrap();
+    let merge = ["merge".to_string(), s(&out)];
+    fails_with(
+        d,
+        &out,
+        &merge,
+        &["batch-summary-2-of-2.json", "duplicate field `rows`"],
+    );
+    std::fs::remove_file(&p).unwrap();
+    std::os::unix::fs::symlink("/dev/zero", &p).unwrap();
+    let o = bounded(&merge);
+    let msg = stderr(&o);
+    assert_eq!(o.status.code(), Some(2), "{msg}");
+    assert!(
+        msg.contains("batch-summary-2-of-2.json") && msg.contains("16 MiB"),
+        "{msg}"
+    );
+    // With a byte-order mark the summary is read as it is.
+    std::fs::remove_file(&p).unwrap();
+    std::fs::write(&p, format!("\u{feff}{text}")).unwrap();
+    let o = reknit().args(merge).output().unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+});
