@@ -329,6 +329,19 @@ case!(control_characters_in_names_reach_no_output, |d| {
     let msg = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{msg}");
     assert!(!msg.contains('\u{1b}') && msg.contains("\\u{1b}"), "{msg}");
+    // So does a site reported as not connected in the run's own lines.
+    let far = fc(&[
+        &site_feature("near", 0.0, 0.0),
+        &site_feature(r"far\u001b[2J", 10.0, 10.0),
+    ]);
+    let p = file(d, "far.geojson", far);
+    let o = reknit().args(plan_args(d, "--sites", &p)).output().unwrap();
+    let msg = stderr(&o);
+    assert_eq!(o.status.code(), Some(0), "{msg}");
+    assert!(
+        !msg.contains('\u{1b}') && msg.contains("far\\u{1b}[2J"),
+        "{msg}"
+    );
 });
 
 case!(formula_cells_are_neutralised_in_work_orders, |d| {

@@ -3,6 +3,7 @@
 use clap::{Args, ValueEnum};
 use reknit::export::Summary;
 use reknit::export::geojson::fixed;
+use reknit::export::text::terminal;
 use reknit::ingest::RoadSettings;
 use reknit::ingest::cost_table::{CostTable, RoadFilter};
 use reknit::ingest::damage::DamageRule;
@@ -336,10 +337,14 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             }
         );
         for u in &s.unconnected {
-            eprintln!("  {} not connected: {}", u.id, u.reason);
+            eprintln!(
+                "  {} not connected: {}",
+                terminal(&u.id),
+                terminal(&u.reason)
+            );
         }
         if let Some(n) = &s.note {
-            eprintln!("  note: {n}");
+            eprintln!("  note: {}", terminal(n));
         }
     }
     eprintln!("outputs written to {}", out.display());
