@@ -195,10 +195,10 @@ fn read_csv<R: std::io::Read>(
             ));
     let csv_err = |e: csv::Error| {
         let line = e.position().map(|p| p.line()).unwrap_or(0);
-        IngestError::Syntax {
+        // Not `Syntax`, whose message says GeoJSON.
+        IngestError::Io {
             path: path.to_path_buf(),
-            feature: None,
-            message: format!("not valid CSV at line {line}: {e}"),
+            source: std::io::Error::other(format!("not valid CSV at line {line}: {e}")),
         }
     };
     let headers = rdr.headers().map_err(csv_err)?.clone();
