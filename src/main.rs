@@ -13,8 +13,28 @@ fn main() -> ExitCode {
     match cli::run(args) {
         Ok(code) => code,
         Err(e) => {
-            eprintln!("reknit: error: {e:#}");
+            eprintln!(
+                "reknit: error: {}",
+                reknit::export::text::terminal(&message(&e))
+            );
             ExitCode::from(2)
         }
     }
+}
+
+/// The error and its causes, each cause added only when the message does not already say it
+/// (library errors embed their source's text, and the chain would repeat it).
+fn message(e: &anyhow::Error) -> String {
+    let mut out = String::new();
+    for cause in e.chain() {
+        let text = cause.to_string();
+        if out.contains(&text) {
+            continue;
+        }
+        if !out.is_empty() {
+            out.push_str(": ");
+        }
+        out.push_str(&text);
+    }
+    out
 }

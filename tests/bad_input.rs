@@ -410,6 +410,7 @@ fn every_case_is_listed_in_the_docs() {
         "tests/plausibility.rs",
         "tests/settings_meaning.rs",
         "tests/batch_integrity.rs",
+        "tests/bad_streams.rs",
     ] {
         names.extend(case_names(&std::fs::read_to_string(root.join(f)).unwrap()));
     }

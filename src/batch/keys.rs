@@ -92,7 +92,7 @@ pub const KEYS: &[Key] = &[
         let file = v.opt_path()?;
         j.road_settings.cost_table = match &file {
             Some(p) => {
-                let text = std::fs::read_to_string(p)
+                let text = crate::ingest::limits::read_small_text(p)
                     .map_err(|e| format!("{}: cannot read: {e}", p.display()))?;
                 CostTable::from_toml(&text).map_err(|e| format!("{}: {e}", p.display()))?
             }

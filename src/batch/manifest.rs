@@ -60,8 +60,9 @@ pub fn read_manifest(path: &Path) -> Result<Manifest, BatchError> {
         path: path.to_path_buf(),
         message,
     };
-    let bytes = std::fs::read(path).map_err(|e| err(format!("cannot read: {e}")))?;
-    let text = std::str::from_utf8(&bytes).map_err(|e| err(format!("not UTF-8 text ({e})")))?;
+    let text = crate::ingest::limits::read_small_text(path)
+        .map_err(|e| err(format!("cannot read: {e}")))?;
+    let text = text.as_str();
     let base = path.parent().map(Path::to_path_buf).unwrap_or_default();
     let is_csv = path
         .extension()
@@ -95,7 +96,7 @@ pub fn read_manifest(path: &Path) -> Result<Manifest, BatchError> {
                 if is_csv { "csv" } else { "toml" },
                 crate::export::guard::resolve(path).display()
             ),
-            &bytes,
+            text.as_bytes(),
         ),
     })
 }
@@ -238,6 +239,14 @@ fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
         .iter()
         .map(|h| h.trim().to_string())
         .collect();
+    if let [h] = headers.as_slice()
+        && let Some(sep) = [';', '\t', '|'].into_iter().find(|c| h.contains(*c))
+    {
+        return Err(format!(
+            "not comma-separated CSV: the header is one column holding {sep:?}; reknit reads \
+                 comma-separated CSV (RFC 4180): save it again with commas"
+        ));
+    }
     let mut columns: Vec<&'static Key> = Vec::with_capacity(headers.len());
     for h in &headers {
         let k = keys::find(h).ok_or_else(|| {

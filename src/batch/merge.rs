@@ -134,8 +134,8 @@ fn read_parts(dir: &Path) -> Result<Vec<Part>, BatchError> {
         if !std::fs::metadata(entry.path()).is_ok_and(|m| m.is_file()) {
             return Err(err(format!("{file}: not a regular file")));
         }
-        let text =
-            std::fs::read_to_string(entry.path()).map_err(|e| err(format!("{file}: {e}")))?;
+        let text = crate::ingest::limits::read_small_text(&entry.path())
+            .map_err(|e| err(format!("{file}: {e}")))?;
         let summary: BatchSummary = serde_json::from_str(&text).map_err(|e| {
             err(format!(
                 "{file}: not a batch summary of this reknit version: {e}"

@@ -1,6 +1,7 @@
 //! The batch summaries (`batch-summary.csv` and `.json`), per shard and merged.
 
 use super::BatchError;
+use crate::export::text::csv_cell;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
 use std::sync::atomic::{AtomicU64, Ordering};
@@ -105,12 +106,13 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
     ])
     .map_err(|e| io(e.into()))?;
     let opt_u = |v: Option<u64>| v.map(|x| x.to_string()).unwrap_or_default();
-    let opt_f = |v: Option<f64>| v.map(|x| x.to_string()).unwrap_or_default();
+    // A negative zero is written as 0, never "-0".
+    let opt_f = |v: Option<f64>| v.map(|x| (x + 0.0).to_string()).unwrap_or_default();
     for r in &s.rows {
         w.write_record([
             r.index.to_string(),
-            r.name.clone(),
-            r.folder.clone(),
+            csv_cell(&r.name).into_owned(),
+            csv_cell(&r.folder).into_owned(),
             r.status.clone(),
             opt_u(r.junctions),
             opt_u(r.edges),
@@ -120,7 +122,7 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
             opt_f(r.total_cost),
             opt_f(r.lower_bound),
             opt_f(r.gap),
-            r.error.clone().unwrap_or_default(),
+            csv_cell(r.error.as_deref().unwrap_or_default()).into_owned(),
         ])
         .map_err(|e| io(e.into()))?;
     }
@@ -165,7 +167,9 @@ pub fn check_replaceable(dir: &Path, stem: &str) -> Result<(), BatchError> {
             }
         };
         let text = if meta.is_file() {
-            std::fs::read(&p).ok()
+            crate::ingest::limits::read_small_text(&p)
+                .ok()
+                .map(String::into_bytes)
         } else {
             None
         };

@@ -8,7 +8,7 @@ use std::path::Path;
 /// lists is there) and was made from the same inputs (every file, a Shapefile's sidecars too) and
 /// settings; `None` means the district runs again.
 pub fn up_to_date(out: &Path, job: &PlanJob) -> Option<serde_json::Value> {
-    let text = std::fs::read_to_string(out.join(COMPLETE_MARKER)).ok()?;
+    let text = crate::ingest::limits::read_small_text(&out.join(COMPLETE_MARKER)).ok()?;
     let v: serde_json::Value = serde_json::from_str(&text).ok()?;
     let listed = v.get("outputs")?.as_array()?;
     let complete = !listed.is_empty()

@@ -93,7 +93,11 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
             s.failed
         );
         for r in s.rows.iter().filter(|r| r.status == "failed") {
-            eprintln!("  failed: {}: {}", r.name, r.error.as_deref().unwrap_or(""));
+            eprintln!(
+                "  failed: {}: {}",
+                reknit::export::text::terminal(&r.name),
+                reknit::export::text::terminal(r.error.as_deref().unwrap_or(""))
+            );
         }
         eprintln!(
             "caution: decision support only; field-verify every segment before sending crews."

@@ -2,6 +2,8 @@
 
 use clap::{Args, ValueEnum};
 use reknit::export::Summary;
+use reknit::export::geojson::fixed;
+use reknit::export::text::terminal;
 use reknit::ingest::RoadSettings;
 use reknit::ingest::cost_table::{CostTable, RoadFilter};
 use reknit::ingest::damage::DamageRule;
@@ -128,7 +130,7 @@ impl NetworkArgs {
     pub fn road_settings(&self) -> anyhow::Result<RoadSettings> {
         let cost_table = match &self.cost_table {
             Some(p) => {
-                let text = std::fs::read_to_string(p)
+                let text = reknit::ingest::limits::read_small_text(p)
                     .map_err(|e| anyhow::anyhow!("{}: cannot read: {e}", p.display()))?;
                 CostTable::from_toml(&text).map_err(|e| anyhow::anyhow!("{}: {e}", p.display()))?
             }
@@ -313,26 +315,37 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         c.junctions, c.edges, c.edges_damaged, c.edges_closed, c.components
     );
     eprintln!(
-        "plan: {} edges, {} to repair, {:.3} repair-metres over {:.3} m of road",
-        summary.plan_edges, summary.plan.repair_edges, summary.total_cost, summary.repair_length_m
+        "plan: {} edges, {} to repair, {} repair-metres over {} m of road",
+        summary.plan_edges,
+        summary.plan.repair_edges,
+        fixed(summary.total_cost, 3),
+        fixed(summary.repair_length_m, 3)
     );
     if let Some(s) = &summary.sites {
         eprintln!(
-            "sites: {} of {} joined to the hub; lower bound {:.3} repair-metres ({})",
+            "sites: {} of {} joined to the hub; lower bound {} repair-metres ({})",
             s.connected,
             s.total,
-            summary.lower_bound,
+            fixed(summary.lower_bound, 3),
             match summary.gap {
                 Some(0.0) => "the plan is optimal".to_string(),
-                Some(g) => format!("the plan is at most {:.2} % above optimal", 100.0 * g),
+                Some(g) => format!(
+                    "the plan is at most {} % above optimal",
+                    fixed(100.0 * g, 2)
+                ),
                 None => "no gap: the bound is 0".to_string(),
             }
         );
         for u in &s.unconnected {
-            eprintln!("  {} {}: {}", u.id, u.status, u.reason);
+            eprintln!(
+                "  {} {}: {}",
+                terminal(&u.id),
+                u.status,
+                terminal(&u.reason)
+            );
         }
         if let Some(n) = &s.note {
-            eprintln!("  note: {n}");
+            eprintln!("  note: {}", terminal(n));
         }
     }
     eprintln!("outputs written to {}", out.display());

@@ -14,6 +14,7 @@ pub mod report;
 pub mod sites;
 pub mod staging;
 pub mod summary;
+pub mod text;
 pub mod work_orders;
 
 use crate::network::{Network, cost_to_repair_metres};

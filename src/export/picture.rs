@@ -6,6 +6,7 @@
 //! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
 //! north arrow, the district name and the caution line. Line widths shrink as the network grows.
 
+use super::text::xml;
 use crate::network::Network;
 use crate::solve::order::Step;
 use std::io::{self, Write};
@@ -356,11 +357,4 @@ pub fn write_svg<W2: Write>(
     )?;
     writeln!(w, "</svg>")?;
     w.flush()
-}
-
-fn xml(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
 }

@@ -5,12 +5,8 @@
 use super::summary::Summary;
 use std::io::{self, Write};
 
-fn esc(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
-}
+use super::geojson::fixed;
+use super::text::html as esc;
 
 /// Standard base64 (RFC 4648 §4) of `data`.
 fn base64(data: &[u8]) -> String {
@@ -84,8 +80,8 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     writeln!(w, "<h2>Figures</h2><table>")?;
     let gap = match s.gap {
         Some(g) => format!(
-            "{:.2} %{}",
-            100.0 * g,
+            "{} %{}",
+            fixed(100.0 * g, 2),
             if s.optimal { " (proven optimal)" } else { "" }
         ),
         None => "not available (the bound is 0)".into(),
@@ -94,18 +90,19 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         ("Plan", s.plan.kind.to_string()),
         (
             "Total repair cost",
-            format!("{:.3} repair-metres", s.total_cost),
+            format!("{} repair-metres", fixed(s.total_cost, 3)),
         ),
         (
             "Lower bound on any plan",
-            format!("{:.3} repair-metres", s.lower_bound),
+            format!("{} repair-metres", fixed(s.lower_bound, 3)),
         ),
         ("At most above optimal", gap),
         (
             "Road to repair",
             format!(
-                "{:.3} m in {} repairs",
-                s.repair_length_m, s.plan.repair_edges
+                "{} m in {} repairs",
+                fixed(s.repair_length_m, 3),
+                s.plan.repair_edges
             ),
         ),
         ("Plan edges", s.plan_edges.to_string()),
@@ -144,7 +141,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     for p in &s.phases {
         writeln!(
             w,
-            "<tr><td>{}{}</td><td>{}</td><td>{:.3}</td><td>{}</td><td>{}</td></tr>",
+            "<tr><td>{}{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
             p.phase,
             if p.over_capacity {
                 " (over capacity)"
@@ -152,10 +149,10 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
                 ""
             },
             p.repairs,
-            p.cost,
+            fixed(p.cost, 3),
             esc(&p.sites_connected.join(", ")),
             p.cumulative_share_of_sites
-                .map_or("—".to_string(), |x| format!("{:.0} %", 100.0 * x))
+                .map_or("—".to_string(), |x| format!("{} %", fixed(100.0 * x, 0)))
         )?;
     }
     writeln!(w, "</table>")?;
@@ -227,8 +224,10 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             writeln!(
                 w,
                 "<p>Backup links (backup.geojson, work orders after the plan's): {} repairs in {} \
-                 ways round, {:.3} repair-metres.</p>",
-                b.repairs, b.links, b.cost
+                 ways round, {} repair-metres.</p>",
+                b.repairs,
+                b.links,
+                fixed(b.cost, 3)
             )?;
             if !b.sites_without_possible_backup.is_empty() {
                 writeln!(

@@ -236,7 +236,8 @@ pub struct Note {
     pub message: String,
 }
 
-/// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing.
+/// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing; a value that rounds to
+/// zero is +0, so no output shows "-0".
 pub fn round3(x: f64) -> f64 {
-    (x * 1000.0).round() / 1000.0
+    (x * 1000.0).round() / 1000.0 + 0.0
 }

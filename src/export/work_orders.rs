@@ -1,7 +1,9 @@
 //! `work-orders.csv`: one row per repair in order, for crews (RFC 4180 CSV, opens in any
-//! spreadsheet): the plan's repairs, then any backup links' repairs.
+//! spreadsheet): the plan's repairs, then any backup links' repairs. Free-text cells go through
+//! [`csv_cell`] (formula characters neutralised); numeric cells are written as they are.
 
 use super::backup::BackupRow;
+use super::text::csv_cell;
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::order::Step;
 use std::io::Write;
@@ -81,19 +83,19 @@ pub fn write_work_orders<W: Write>(
             phase,
             edge.to_string(),
             meta.source_index.to_string(),
-            id,
-            meta.label.as_deref().unwrap_or_default().to_string(),
+            csv_cell(&id).into_owned(),
+            csv_cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
             super::geojson::fixed(e.length_m, 3),
             e.damage
                 .factor()
                 .map_or("closed".to_string(), |f| super::geojson::trimmed(f, 6)),
-            meta.category.as_deref().unwrap_or_default().to_string(),
+            csv_cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
             super::geojson::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),
             f7(a[1]),
             f7(b[0]),
             f7(b[1]),
-            completes,
+            csv_cell(&completes).into_owned(),
             over.to_string(),
             purpose.to_string(),
         ])

@@ -81,7 +81,7 @@ where
 {
     let mut sc = Scanner::new(reader);
     let mut info = CollectionInfo::default();
-    let io = ReadFailure::Io;
+    let io = |e| io_fail::<E>(e, None);
     let eof = |sc: &Scanner<R>, feature| ReadFailure::Syntax {
         message: at("unexpected end of file", sc.position()),
         feature,
@@ -108,6 +108,7 @@ where
         }
     }
     let mut kind: Option<String> = None;
+    let mut top = std::collections::HashSet::new();
     loop {
         match sc.peek().map_err(io)? {
             Some(b'}') => {
@@ -122,6 +123,17 @@ where
             return Err(eof(&sc, None));
         };
         let key: String = serde_json::from_slice(text).map_err(|e| syntax(&e, pos, None))?;
+        if !top.insert(key.clone()) {
+            return Err(ReadFailure::Syntax {
+                message: at(
+                    &format!(
+                        "the member \"{key}\" appears twice in the collection (RFC 8259 §4: names must be unique)"
+                    ),
+                    pos,
+                ),
+                feature: None,
+            });
+        }
         match sc.peek().map_err(io)? {
             Some(b':') => sc.bump(),
             Some(_) => return Err(unexpected(&sc, "':'")),
@@ -184,7 +196,7 @@ where
     R: Read,
     F: FnMut(usize, RawFeature) -> Result<(), E>,
 {
-    let io = ReadFailure::Io;
+    let io = |e| io_fail::<E>(e, None);
     match sc.peek().map_err(io)? {
         Some(b'[') => sc.bump(),
         Some(_) => return Err(unexpected(sc, "an array of features")),
@@ -205,7 +217,7 @@ where
                 });
             }
         }
-        let Some((text, pos)) = sc.value().map_err(io)? else {
+        let Some((text, pos)) = sc.value().map_err(|e| io_fail(e, Some(index)))? else {
             return Err(ReadFailure::Syntax {
                 message: at("unexpected end of file inside the feature", sc.position()),
                 feature: Some(index),
@@ -240,6 +252,18 @@ where
     }
     info.features = index;
     Ok(())
+}
+
+/// A read error; a value beyond the scanner's size limits (invalid data) is reported as malformed.
+fn io_fail<E>(e: std::io::Error, feature: Option<usize>) -> ReadFailure<E> {
+    if e.kind() == std::io::ErrorKind::InvalidData {
+        ReadFailure::Syntax {
+            message: e.to_string(),
+            feature,
+        }
+    } else {
+        ReadFailure::Io(e)
+    }
 }
 
 fn at(msg: &str, p: Position) -> String {
@@ -301,7 +325,9 @@ impl<'de> Visitor<'de> for FeatureSeed<'_> {
     fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<RawFeature, A::Error> {
         let mut f = RawFeature::default();
         let mut kind: Option<String> = None;
+        let mut seen = Members::default();
         while let Some(key) = map.next_key::<String>()? {
+            seen.check::<A::Error>(&key)?;
             match key.as_str() {
                 "type" => kind = Some(map.next_value()?),
                 "geometry" => {
@@ -328,6 +354,24 @@ impl<'de> Visitor<'de> for FeatureSeed<'_> {
                 "expected \"type\": \"Feature\", found \"{other}\""
             ))),
             None => Err(de::Error::custom("a feature has no \"type\" member")),
+        }
+    }
+}
+
+/// The member names of one object seen so far; a name given twice is refused, since readers
+/// disagree on which value wins (RFC 8259 §4: the names within an object should be unique).
+#[derive(Default)]
+pub(crate) struct Members(std::collections::HashSet<String>);
+
+impl Members {
+    /// Records `key`, or fails when the object already had it.
+    pub(crate) fn check<E: de::Error>(&mut self, key: &str) -> Result<(), E> {
+        if self.0.insert(key.to_string()) {
+            Ok(())
+        } else {
+            Err(E::custom(format_args!(
+                "the member \"{key}\" appears twice in one object (RFC 8259 §4: names must be unique)"
+            )))
         }
     }
 }
@@ -359,7 +403,9 @@ impl<'de> Visitor<'de> for GeometrySeed<'_> {
     }
     fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Option<String>, A::Error> {
         let mut kind: Option<String> = None;
+        let mut seen = Members::default();
         while let Some(key) = map.next_key::<String>()? {
+            seen.check::<A::Error>(&key)?;
             match key.as_str() {
                 "type" => kind = Some(map.next_value()?),
                 "coordinates" => map.next_value_seed(CoordsSeed(&mut *self.coords))?,
@@ -414,7 +460,9 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
         d.deserialize_map(self)
     }
     fn visit_map<A: MapAccess<'de>>(mut self, mut map: A) -> Result<bool, A::Error> {
+        let mut seen = Members::default();
         while let Some(key) = map.next_key::<String>()? {
+            seen.check::<A::Error>(&key)?;
             if let Some(k) = self.keys.as_mut() {
                 k.push(key.clone());
             }

@@ -12,6 +12,7 @@ pub mod crs;
 pub mod damage;
 pub mod geodesy;
 pub mod geojson;
+pub mod limits;
 pub mod noding;
 pub mod qa;
 pub mod repair;

@@ -123,6 +123,7 @@ impl<R: Read> Scanner<R> {
         let mut depth = 0usize;
         let mut in_str = false;
         let mut escape = false;
+        let mut str_start = 0usize;
         loop {
             while i < self.buf.len() {
                 let b = self.buf[i];
@@ -141,7 +142,10 @@ impl<R: Read> Scanner<R> {
                     continue;
                 }
                 match b {
-                    b'"' => in_str = true,
+                    b'"' => {
+                        in_str = true;
+                        str_start = i;
+                    }
                     b'{' | b'[' => depth += 1,
                     b'}' | b']' => {
                         if depth == 0 {
@@ -160,6 +164,7 @@ impl<R: Read> Scanner<R> {
                 }
             }
             let consumed = i - self.pos;
+            self.check_size(consumed, in_str.then(|| i - str_start), depth)?;
             if !self.fill()? {
                 if depth == 0 && !in_str && i > self.pos {
                     // A scalar running to the end of the input.
@@ -172,6 +177,31 @@ impl<R: Read> Scanner<R> {
         }
     }
 
+    /// Refuses a value that has grown beyond the limits before more input is read for it.
+    fn check_size(&self, value: usize, string: Option<usize>, depth: usize) -> io::Result<()> {
+        use super::limits::{MAX_FEATURE, MAX_SCALAR, MAX_STRING};
+        let too_long = |what: &str, limit: usize| {
+            let p = self.position();
+            Err(io::Error::new(
+                io::ErrorKind::InvalidData,
+                format!(
+                    "{what} longer than {} (the limit), in the value starting at line {} column {}",
+                    size(limit),
+                    p.line,
+                    p.column
+                ),
+            ))
+        };
+        match string {
+            Some(n) if n > MAX_STRING => too_long("a single string", MAX_STRING),
+            None if depth == 0 && value > MAX_SCALAR => {
+                too_long("a single number or word", MAX_SCALAR)
+            }
+            _ if value > MAX_FEATURE => too_long("a single value (feature)", MAX_FEATURE),
+            _ => Ok(()),
+        }
+    }
+
     fn take(&mut self, end: usize, start: Position) -> (&[u8], Position) {
         let begin = self.pos;
         self.advance(end - begin);
@@ -181,6 +211,15 @@ impl<R: Read> Scanner<R> {
     /// Reads the rest of the input (so a fingerprinting reader sees all of it) and returns the reader.
     pub fn into_inner(self) -> R {
         self.r
+    }
+}
+
+/// A byte count in KiB, MiB or GiB.
+fn size(n: usize) -> String {
+    match n {
+        n if n >= 1 << 30 => format!("{} GiB", n >> 30),
+        n if n >= 1 << 20 => format!("{} MiB", n >> 20),
+        n => format!("{} KiB", n >> 10),
     }
 }
 
@@ -214,6 +253,14 @@ mod tests {
     fn unterminated_value_is_none() {
         let mut s = Scanner::new(&b"{\"a\": [1, 2"[..]);
         assert!(s.value().unwrap().is_none());
+    }
+
+    #[test]
+    fn endless_words_and_strings_stop() {
+        let mut s = Scanner::new(std::io::repeat(0));
+        assert!(s.value().unwrap_err().to_string().contains("4 KiB"));
+        let mut s = Scanner::new(std::io::Read::chain(&b"[\""[..], std::io::repeat(b'a')));
+        assert!(s.value().unwrap_err().to_string().contains("64 MiB"));
     }
 
     #[test]

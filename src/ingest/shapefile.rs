@@ -186,7 +186,7 @@ pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
         .ok_or_else(|| {
             crs_err("has no .prj file beside it: give the layer's CRS with --crs EPSG:NNNN".into())
         })?;
-    let wkt = std::fs::read_to_string(&prj).map_err(|source| IngestError::Io {
+    let wkt = super::limits::read_small_text(&prj).map_err(|source| IngestError::Io {
         path: prj.clone(),
         source,
     })?;
@@ -216,7 +216,7 @@ pub fn fingerprint(path: &Path, role: &str) -> Result<InputRecord, IngestError> 
     let mut h = Sha256::new();
     let mut bytes = 0;
     for (ext, p) in set_files(path) {
-        let r = Source::File(p.clone()).open()?;
+        let r = Source::File(p.clone()).open_binary()?;
         let (sha, n) = HashingReader::finish_buffered(r)
             .map_err(|source| IngestError::Io { path: p, source })?;
         h.update(format!("{ext}:{sha}\n").as_bytes());
@@ -335,7 +335,7 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
                 source: e,
             })
     };
-    let declared = std::fs::read_to_string(sibling(path, "cpg"))
+    let declared = super::limits::read_small_text(&sibling(path, "cpg"))
         .ok()
         .and_then(|label| dbase::encoding::DynEncoding::from_name(&label));
     let dbf_fail = |e: dbase::Error| IngestError::Io {

@@ -200,21 +200,36 @@ where
     .map(|_| ())
 }
 
+/// The separator of a header that is one column holding `;`, a tab or `|` (a CSV written with a
+/// separator other than the comma), if any.
+pub(crate) fn other_separator(headers: &csv::StringRecord) -> Option<char> {
+    if headers.len() != 1 {
+        return None;
+    }
+    [';', '\t', '|']
+        .into_iter()
+        .find(|c| headers[0].contains(*c))
+}
+
 fn read_csv<R: std::io::Read>(
     reader: R,
     path: &Path,
     s: &SiteSettings,
 ) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
     let mut defaults = SiteDefaults::default();
-    let mut rdr = csv::ReaderBuilder::new()
-        .flexible(false)
-        .from_reader(reader);
+    let mut rdr =
+        csv::ReaderBuilder::new()
+            .flexible(false)
+            .from_reader(super::limits::LineLimit::new(
+                reader,
+                super::limits::MAX_CSV_ROW,
+            ));
     let csv_err = |e: csv::Error| {
         let line = e.position().map(|p| p.line()).unwrap_or(0);
-        IngestError::Syntax {
+        // Not `Syntax`, whose message says GeoJSON.
+        IngestError::Io {
             path: path.to_path_buf(),
-            feature: None,
-            message: format!("not valid CSV at line {line}: {e}"),
+            source: std::io::Error::other(format!("not valid CSV at line {line}: {e}")),
         }
     };
     let headers = rdr.headers().map_err(csv_err)?.clone();
@@ -237,6 +252,16 @@ fn read_csv<R: std::io::Read>(
                     ),
                 })
         };
+    if let Some(sep) = other_separator(&headers) {
+        return Err(IngestError::Io {
+            path: path.to_path_buf(),
+            source: std::io::Error::other(format!(
+                "not comma-separated CSV: the header is one column holding {sep:?}; \
+                 reknit reads comma-separated CSV (RFC 4180): save it again with commas, or convert it, \
+                 e.g. ogr2ogr -f CSV -lco SEPARATOR=COMMA out.csv in.csv"
+            )),
+        });
+    }
     let lon_i = find(&s.lon_column, LON_COLUMNS, "longitude")?;
     let lat_i = find(&s.lat_column, LAT_COLUMNS, "latitude")?;
     let mut sites = Vec::new();

@@ -3,7 +3,7 @@
 use super::IngestError;
 use sha2::{Digest, Sha256};
 use std::fs::File;
-use std::io::{BufReader, Read};
+use std::io::{BufRead, BufReader, Read};
 use std::path::{Path, PathBuf};
 
 /// Where a layer comes from: a file on disk, or data bundled in the binary (the demo).
@@ -36,8 +36,26 @@ impl Source {
         }
     }
 
-    /// Opens the source for buffered reading through a SHA-256 fingerprinting reader.
+    /// Opens a text source (GeoJSON, CSV) through a SHA-256 fingerprinting reader: a UTF-8
+    /// byte-order mark is skipped (the digest still covers it) and other formats are refused by name.
     pub fn open(&self) -> Result<BufReader<HashingReader<Box<dyn Read>>>, IngestError> {
+        let mut r = self.open_binary()?;
+        let path = self.display_path();
+        let head = r.fill_buf().map_err(|source| IngestError::Io {
+            path: path.clone(),
+            source,
+        })?;
+        let skip =
+            super::limits::sniff(&head[..head.len().min(64)]).map_err(|m| IngestError::Io {
+                path,
+                source: std::io::Error::other(m),
+            })?;
+        r.consume(skip);
+        Ok(r)
+    }
+
+    /// Opens the source for buffered reading through a SHA-256 fingerprinting reader, as it is.
+    pub fn open_binary(&self) -> Result<BufReader<HashingReader<Box<dyn Read>>>, IngestError> {
         let inner: Box<dyn Read> = match self {
             Source::File(p) => {
                 let f = File::open(p).map_err(|source| IngestError::Io {

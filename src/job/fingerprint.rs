@@ -57,7 +57,7 @@ pub fn input_record(role: &str, src: &Source) -> Result<InputRecord, IngestError
     }
     let path = src.display_path();
     let (sha256, bytes) =
-        HashingReader::finish_buffered(src.open()?).map_err(|source| IngestError::Io {
+        HashingReader::finish_buffered(src.open_binary()?).map_err(|source| IngestError::Io {
             path: path.clone(),
             source,
         })?;

@@ -89,7 +89,7 @@ pub fn build(
         sites: sites.map(|r| sites_figures(r, net, comps, plan)),
         total_cost: cost_to_repair_metres(plan.total_cost),
         lower_bound: cost_to_repair_metres(plan.lower_bound),
-        gap: g.map(|x| (x * 1e6).round() / 1e6),
+        gap: g.map(|x| (x * 1e6).round() / 1e6 + 0.0),
         optimal: g == Some(0.0),
         cost_unit: "repair-metre",
         repair_length_m: round3(repair.iter().map(|e| e.length_m).sum()),
@@ -138,7 +138,8 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
                         in_plan.get(&g.component).copied().unwrap_or(0),
                     ),
                     lower_bound: cost_to_repair_metres(g.tree.lower_bound),
-                    gap: gap(g.tree.cost, g.tree.lower_bound).map(|x| (x * 1e6).round() / 1e6),
+                    gap: gap(g.tree.cost, g.tree.lower_bound)
+                        .map(|x| (x * 1e6).round() / 1e6 + 0.0),
                     reduced_graph: [g.tree.reduced_size.0, g.tree.reduced_size.1],
                 })
                 .collect()

@@ -1,0 +1,107 @@
+//! Text from the inputs on its way out: one function per kind of output, used by every writer.
+//!
+//! Control characters (U+0000–U+001F, U+007F–U+009F) never abort a run: they are replaced with
+//! U+FFFD in SVG, HTML and CSV, and shown escaped on the terminal. A free-text CSV cell that
+//! begins with `=`, `+`, `-`, `@`, a tab or a carriage return gets a leading `'`, so a spreadsheet
+//! shows it as text instead of running it as a formula; [`csv_text`] removes that prefix again.
+
+use std::borrow::Cow;
+
+/// What replaces a control character in a file.
+const REPLACEMENT: char = '\u{FFFD}';
+
+/// Characters that make a spreadsheet read a cell as a formula when they come first.
+const FORMULA_START: [char; 6] = ['=', '+', '-', '@', '\t', '\r'];
+
+/// A free-text CSV cell (a road name, an id, a site list): prefixed with `'` when it begins like a
+/// formula, control characters replaced. Never used for numeric columns.
+pub fn csv_cell(s: &str) -> Cow<'_, str> {
+    let guard = s.starts_with(FORMULA_START);
+    if !guard && !s.chars().any(char::is_control) {
+        return Cow::Borrowed(s);
+    }
+    let mut out = String::with_capacity(s.len() + 1);
+    if guard {
+        out.push('\'');
+    }
+    out.extend(
+        s.chars()
+            .map(|c| if c.is_control() { REPLACEMENT } else { c }),
+    );
+    Cow::Owned(out)
+}
+
+/// The text of a cell written by [`csv_cell`]: the `'` before a formula character removed.
+pub fn csv_text(cell: &str) -> &str {
+    match cell.strip_prefix('\'') {
+        Some(rest) if rest.starts_with(FORMULA_START) || rest.starts_with(REPLACEMENT) => rest,
+        _ => cell,
+    }
+}
+
+/// Text for XML (SVG) content or attribute values: markup characters escaped, control
+/// characters replaced (XML 1.0 §2.2 allows none but tab, line feed and carriage return).
+pub fn xml(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for c in s.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&#39;"),
+            c if c.is_control() => out.push(REPLACEMENT),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
+/// Text for HTML content or attribute values (escaped as for XML; HTML treats control
+/// characters as parse errors, so they are replaced too).
+pub fn html(s: &str) -> String {
+    xml(s)
+}
+
+/// Text for the terminal: control characters other than the line feed shown as `\u{…}` escapes,
+/// so no name can move the cursor, clear the screen or change colours.
+pub fn terminal(s: &str) -> Cow<'_, str> {
+    if !s.chars().any(|c| c.is_control() && c != '\n') {
+        return Cow::Borrowed(s);
+    }
+    let mut out = String::with_capacity(s.len() + 8);
+    for c in s.chars() {
+        if c.is_control() && c != '\n' {
+            out.extend(c.escape_unicode());
+        } else {
+            out.push(c);
+        }
+    }
+    Cow::Owned(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn formula_cells_are_neutralised_and_read_back() {
+        // OWASP "CSV Injection": cells starting with = + - @ tab or CR get a leading quote.
+        for s in ["=1+2", "+1", "-2", "@SUM(A1)", "\tx", "\rx"] {
+            let cell = csv_cell(s);
+            assert!(cell.starts_with('\''), "{s:?} → {cell:?}");
+            if !s.starts_with(['\t', '\r']) {
+                assert_eq!(csv_text(&cell), s);
+            }
+        }
+        assert_eq!(csv_cell("Main Street"), "Main Street");
+        assert_eq!(csv_text("'quoted"), "'quoted");
+    }
+
+    #[test]
+    fn control_characters_are_replaced_or_escaped() {
+        assert_eq!(xml("a\u{1}<b>"), "a\u{FFFD}&lt;b&gt;");
+        assert_eq!(csv_cell("a\u{7}b"), "a\u{FFFD}b");
+        assert_eq!(terminal("a\u{1b}[2Jb\nc"), "a\\u{1b}[2Jb\nc");
+    }
+}
