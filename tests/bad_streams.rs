@@ -473,7 +473,8 @@ case!(shard_summary_with_a_member_twice_or_endless, |d| {
     let msg = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{msg}");
     assert!(
-        msg.contains("batch-summary-2-of-2.json") && msg.contains("16 MiB"),
+        // A device is refused before it is read; a regular file past the cap would stop at it.
+        msg.contains("batch-summary-2-of-2.json") && msg.contains("not a regular file"),
         "{msg}"
     );
     // With a byte-order mark the summary is read as it is.

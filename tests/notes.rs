@@ -34,10 +34,13 @@ fn note(out: &Path, err: &str, code: &str) -> String {
         "{code} not on stderr: {err}"
     );
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    // HTML text escaping (common practice, no source): & < > " and ' as entities.
     let esc = msg
         .replace('&', "&amp;")
         .replace('<', "&lt;")
-        .replace('>', "&gt;");
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+        .replace('\'', "&#39;");
     assert!(html.contains(&esc), "{code} not in the report");
     msg
 }

@@ -421,7 +421,10 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         )?;
     }
     for n in &summary.notes {
-        progress.note(&format!("note: {}", n.message));
+        progress.note(&format!(
+            "note: {}",
+            crate::export::text::terminal(&n.message)
+        ));
     }
     Ok(summary)
 }
