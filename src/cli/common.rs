@@ -90,9 +90,9 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "METRES", default_value_t = 50.0)]
     pub report_distance: f64,
 
-    /// Most repair-metres to spend: when joining every site costs more, the sites giving the most
-    /// priority per repair-metre join first, within the budget; the rest are listed with the cost to
-    /// add each.
+    /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
+    /// giving the most priority per repair-metre are joined to the hub first, within the budget;
+    /// the rest are listed with the cost to add each.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub budget: Option<f64>,
 
@@ -205,7 +205,8 @@ pub struct SiteArgs {
     #[arg(long, value_name = "METRES", default_value_t = 250.0)]
     pub max_attach: f64,
 
-    /// Id of the hub site (the depot crews start from); default: the site with the highest priority.
+    /// Id of the hub site (the depot crews start from); it must lie within --max-attach of a usable
+    /// road. Default: the site on the roads with the highest priority (first in the file on ties).
     #[arg(long, value_name = "SITE_ID")]
     pub hub: Option<String>,
 
@@ -312,6 +313,8 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             match summary.gap {
                 Some(0.0) => "the plan is optimal".to_string(),
                 Some(g) => format!("the plan is at most {:.2} % above optimal", 100.0 * g),
+                None if summary.within_budget() =>
+                    "no gap: a plan within a budget has no bound".to_string(),
                 None => "no gap: the bound is 0".to_string(),
             }
         );

@@ -88,6 +88,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             100.0 * g,
             if s.optimal { " (proven optimal)" } else { "" }
         ),
+        None if s.within_budget() => "not available (a plan within a budget has no bound)".into(),
         None => "not available (the bound is 0)".into(),
     };
     let rows = [

@@ -30,6 +30,8 @@ pub struct ZoneLayer {
     pub zones: Vec<Zone>,
     /// Path, size and SHA-256 of the input.
     pub input: InputRecord,
+    /// Features whose damage took the default: no value in the damage field.
+    pub defaulted: usize,
 }
 
 /// Reads damage zones from GeoJSON (Polygon / MultiPolygon features, lon/lat unless `crs` says
@@ -63,7 +65,9 @@ pub fn read_zones(
         field: Some(field.into()),
         message,
     };
+    let mut defaulted = 0;
     read_collection(&mut reader, std::slice::from_ref(&rule.field), |index, f| {
+        defaulted += usize::from(DamageRule::is_missing(f.prop(&rule.field)));
         let damage = rule
             .interpret(f.prop(&rule.field))
             .map_err(|m| fail(index, &rule.field, m))?;
@@ -126,6 +130,7 @@ pub fn read_zones(
         })?;
     Ok(ZoneLayer {
         zones,
+        defaulted,
         input: InputRecord {
             role: "damage zones".into(),
             path: path.display().to_string(),
@@ -192,6 +197,7 @@ fn read_shapefile_zones(
     let conv = super::shapefile::layer_crs(path, crs)?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
+    let mut defaulted = 0;
     for (index, item) in reader.iter_shapes_and_records().enumerate() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
@@ -202,6 +208,7 @@ fn read_shapefile_zones(
         let (shape, record) =
             item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
         let value = record.get(&rule.field).map(super::shapefile::field_json);
+        defaulted += usize::from(DamageRule::is_missing(value.as_ref()));
         let damage = rule
             .interpret(value.as_ref())
             .map_err(|m| fail(&rule.field, m))?;
@@ -250,6 +257,7 @@ fn read_shapefile_zones(
     })?;
     Ok(ZoneLayer {
         zones,
+        defaulted,
         input: InputRecord {
             role: "damage zones".into(),
             path: path.display().to_string(),

@@ -156,6 +156,8 @@ pub struct SitesResult {
     pub reach: SiteReach,
     /// Each site's status and, when not joined to the hub, the reason.
     pub statuses: Vec<SiteStatus>,
+    /// True when `--budget` cut the plan down: no bound applies to the plan then.
+    pub budget_applied: bool,
 }
 
 /// Runs the whole pipeline and returns the summary that was written.
@@ -214,6 +216,19 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             zl.zones.len(),
             crate::ingest::zones::apply_zones(&mut net, &zl),
         );
+        notes::layer_defaults(
+            &mut notes,
+            "zone_damage_defaulted",
+            ("damage zone feature", "damage zone features"),
+            zl.defaulted,
+            zl.zones
+                .iter()
+                .map(|z| z.feature)
+                .collect::<std::collections::BTreeSet<_>>()
+                .len(),
+            &job.zone_damage,
+        );
+        notes::zones_unused(&mut notes, zone_figures.0, zone_figures.1);
         inputs.push(zl.input);
     }
     let mut report_figures = None;
@@ -221,6 +236,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         let _s = progress.stage("applying damage reports");
         let (reports, rec) = crate::ingest::reports::read_reports(src, &job.zone_damage)?;
         let fig = crate::ingest::reports::apply_reports(&mut net, &reports, job.report_distance_m);
+        notes::layer_defaults(
+            &mut notes,
+            "report_damage_defaulted",
+            ("damage report", "damage reports"),
+            reports.iter().filter(|r| r.defaulted).count(),
+            reports.len(),
+            &job.zone_damage,
+        );
         notes::reports(&mut notes, &fig, job.report_distance_m);
         report_figures = Some(fig);
         inputs.push(rec);
@@ -313,6 +336,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 plan: site_plan,
                 reach,
                 statuses,
+                budget_applied,
             })
         }
         None => None,

@@ -61,7 +61,12 @@ pub fn build(
         .filter(|e| e.cost > 0)
         .collect();
     let fingerprint = super::fingerprint(&inputs, &super::settings_json(job));
-    let g = gap(plan.total_cost, plan.lower_bound);
+    // Within a budget the plan answers another question (the most priority for the money), to
+    // which the Steiner bound does not apply: no gap, never "optimal".
+    let g = match sites {
+        Some(s) if s.budget_applied => None,
+        _ => gap(plan.total_cost, plan.lower_bound),
+    };
     Summary {
         tool: Tool::default(),
         inputs,
