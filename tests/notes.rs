@@ -241,6 +241,7 @@ fn a_hub_alone_on_its_roads_is_announced_and_checks_no_site() {
     assert_eq!(s["fragility"]["sites_checked"], 0);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(html.contains("Sites checked (joined to the hub, the hub excepted)</th><td>0<"));
+    assert!(html.contains("these figures say nothing about how safe any site is"));
 }
 
 /// A square polygon feature of side `s` metres with its south-west corner at (x, y).

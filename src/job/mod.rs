@@ -318,7 +318,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let sites = match site_layer {
         Some(layer) => {
             inputs.push(layer.input.clone());
-            let reach = joined::site_reach(&graph, &plan.edges, &attachments, hub, &mut steps)?;
+            let reach =
+                joined::site_reach(&graph, &comps, &plan.edges, &attachments, hub, &mut steps)?;
             let statuses = status::statuses(&status::Facts {
                 graph: &graph,
                 comps: &comps,

@@ -61,6 +61,13 @@ pub(super) fn statuses(f: &Facts) -> Result<Vec<SiteStatus>, SolveError> {
         by_plan.union(a, b);
     }
     let hj = f.reach.hub_junction;
+    // The attached sites of each part of the usable network, in input order.
+    let mut by_comp: std::collections::HashMap<u32, Vec<usize>> = Default::default();
+    for (k, a) in f.attachments.iter().enumerate() {
+        if let Some(j) = a.junction {
+            by_comp.entry(f.comps.of[j as usize]).or_default().push(k);
+        }
+    }
     let mut out = Vec::with_capacity(f.attachments.len());
     for (i, a) in f.attachments.iter().enumerate() {
         let s = |status, reason: String| SiteStatus {
@@ -107,17 +114,13 @@ pub(super) fn statuses(f: &Facts) -> Result<Vec<SiteStatus>, SolveError> {
             "no road at all, passable or not, links its part of the network to the hub's"
         };
         let (mut with, mut without) = (Vec::new(), Vec::new());
-        for (k, b) in f.attachments.iter().enumerate() {
-            match b.junction {
-                Some(jk) if k != i && f.comps.of[jk as usize] == comp => {
-                    let id = f.sites.sites[k].id.as_str();
-                    if by_plan.find(jk) == by_plan.find(j) {
-                        with.push(id);
-                    } else {
-                        without.push(id);
-                    }
-                }
-                _ => {}
+        for &k in by_comp[&comp].iter().filter(|&&k| k != i) {
+            let jk = f.attachments[k].junction.expect("grouped by junction");
+            let id = f.sites.sites[k].id.as_str();
+            if by_plan.find(jk) == by_plan.find(j) {
+                with.push(id);
+            } else {
+                without.push(id);
             }
         }
         let mut group = Vec::new();
