@@ -313,3 +313,27 @@ fn zones_and_reports_without_values_and_zones_over_no_road_are_announced() {
         "{m}"
     );
 }
+
+#[test]
+fn among_tied_sites_the_hub_is_where_the_most_sites_can_join_it() {
+    let d = tmp();
+    let roads = [
+        line(&[at_m(0., 3000.), at_m(100., 3000.)], r#"{"damage":1}"#),
+        line(&[at_m(0., 0.), at_m(600., 0.)], r#"{"damage":1}"#),
+    ];
+    let sites = [
+        site(Some("stray"), at_m(50., 3005.), Some(4)),
+        site(Some("main"), at_m(0., 5.), Some(4)),
+        site(Some("c"), at_m(600., 5.), Some(1)),
+    ];
+    let (out, err) = run_notes(d.path(), &roads, &sites, &[]);
+    let m = note(&out, &err, "hub_tie");
+    assert_eq!(
+        m,
+        "stray, main share the highest priority (4); the hub is main, the first of them in the \
+         file whose part of the road network holds the most sites (2); name another with --hub"
+    );
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["sites"]["hub"], "main");
+    assert_eq!(s["sites"]["connected"], 2);
+}

@@ -206,7 +206,8 @@ pub struct SiteArgs {
     pub max_attach: f64,
 
     /// Id of the hub site (the depot crews start from); it must lie within --max-attach of a usable
-    /// road. Default: the site on the roads with the highest priority (first in the file on ties).
+    /// road. Default: the site on the roads with the highest priority (on ties, where the most
+    /// sites can join it, then the first in the file).
     #[arg(long, value_name = "SITE_ID")]
     pub hub: Option<String>,
 

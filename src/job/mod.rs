@@ -248,18 +248,21 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         report_figures = Some(fig);
         inputs.push(rec);
     }
-    let (attachments, hub) = match &site_layer {
+    let attachments = match &site_layer {
         Some(sl) => {
             let _s = progress.stage("attaching sites");
             let a = attach_sites(&mut net, &sl.sites, job.max_attach_m);
             notes::unattached(&mut notes, sl, &a, job.max_attach_m);
-            let hub = hub::choose(sl, &a, job.hub.as_deref(), &mut notes)?;
-            (a, hub)
+            a
         }
-        None => (Vec::new(), None),
+        None => Vec::new(),
     };
     let graph = net.weighted_edges();
     let comps = solve::components::components(&graph);
+    let hub = match &site_layer {
+        Some(sl) => hub::choose(sl, &attachments, job.hub.as_deref(), &comps, &mut notes)?,
+        None => None,
+    };
     let (mut plan, site_plan) = {
         let _s = progress.stage("solving");
         match &site_layer {
