@@ -161,3 +161,61 @@ pub(super) fn alone_note(
         );
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::status::tests::layer;
+    use crate::solve::components::components;
+    use crate::solve::graph::EdgeList;
+
+    /// Junctions 0–1 joined, 2 alone.
+    fn comps() -> Components {
+        components(&EdgeList {
+            vertices: 3,
+            ends: vec![[0, 1]],
+            cost: vec![4],
+        })
+    }
+
+    #[test]
+    fn a_named_hub_off_the_roads_is_refused() {
+        let (sl, at) = layer(&[("a", Some(0)), ("off", None)]);
+        let e = choose(&sl, &at, Some("off"), &comps(), &mut Notes::default()).unwrap_err();
+        assert!(
+            e.to_string().contains("\"off\" is not on the road network"),
+            "{e}"
+        );
+        let mut n = Notes::default();
+        assert_eq!(
+            choose(&sl, &at, Some("a"), &comps(), &mut n).unwrap(),
+            Some(0)
+        );
+        assert!(n.into_vec().is_empty());
+    }
+
+    #[test]
+    fn the_default_hub_is_on_the_roads_where_most_sites_can_join_it() {
+        let (mut sl, at) = layer(&[
+            ("top", None),
+            ("stray", Some(2)),
+            ("b", Some(0)),
+            ("c", Some(1)),
+        ]);
+        sl.sites[0].priority = 9.0;
+        sl.sites[1].priority = 3.0;
+        sl.sites[2].priority = 3.0;
+        let mut n = Notes::default();
+        assert_eq!(choose(&sl, &at, None, &comps(), &mut n).unwrap(), Some(2));
+        let codes: Vec<&str> = n.into_vec().iter().map(|x| x.code).collect();
+        assert_eq!(codes, ["hub_not_on_roads", "hub_tie"]);
+        // With no site on the roads there is no hub to plan from.
+        let (sl, at) = layer(&[("x", None), ("y", None)]);
+        assert!(choose(&sl, &at, None, &comps(), &mut Notes::default()).is_err());
+        let (sl, at) = layer(&[]);
+        assert_eq!(
+            choose(&sl, &at, None, &comps(), &mut Notes::default()).unwrap(),
+            None
+        );
+    }
+}

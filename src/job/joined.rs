@@ -115,3 +115,46 @@ pub(super) fn site_reach(
         need,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::status::tests::layer;
+    use crate::solve::components::components;
+
+    fn step(edge: u32, order: u32) -> Step {
+        Step {
+            edge,
+            order,
+            phase: 1,
+            completes: vec![99],
+            over_capacity: false,
+        }
+    }
+
+    #[test]
+    fn repairs_complete_the_sites_they_join_to_the_hub_and_nothing_else() {
+        // Hub 0 —(0)— 1 —5— 2 —3— 3; site "mid" at 1 joined before any repair.
+        let g = EdgeList {
+            vertices: 4,
+            ends: vec![[0, 1], [1, 2], [2, 3]],
+            cost: vec![0, 5, 3],
+        };
+        let comps = components(&g);
+        let (_, at) = layer(&[("hub", Some(0)), ("mid", Some(1)), ("end", Some(3))]);
+        let mut steps = vec![step(1, 1), step(2, 2)];
+        let r = site_reach(&g, &comps, &[0, 1, 2], &at, Some(0), &mut steps).unwrap();
+        assert_eq!(r.joined, [true, true, true]);
+        assert_eq!(r.before, [true, true, false]);
+        assert_eq!(steps[0].completes, Vec::<usize>::new());
+        assert_eq!(steps[1].completes, vec![2]);
+        // An order that leaves out a repair of the plan is an internal error.
+        let mut short = vec![step(1, 1)];
+        assert!(site_reach(&g, &comps, &[0, 1, 2], &at, Some(0), &mut short).is_err());
+        // A plan that stops short: what is left out gets the cost still needed.
+        let mut steps = vec![step(1, 1)];
+        let r = site_reach(&g, &comps, &[0, 1], &at, Some(0), &mut steps).unwrap();
+        assert_eq!(r.joined, [true, true, false]);
+        assert_eq!(r.need, [None, None, Some(3)]);
+    }
+}
