@@ -191,6 +191,10 @@ fn a_budget_that_cuts_the_plan_is_announced() {
     assert_eq!(s["lower_bound"], 0.0);
     assert!(s["gap"].is_null());
     assert_eq!(s["optimal"], false);
+    assert_eq!(
+        s["plan"]["kind"],
+        "Steiner trees joining the sites chosen within the budget, the hub's group first"
+    );
     assert!(err.contains("a plan within a budget has no bound"), "{err}");
     let d = tmp();
     let (out, _) = run_notes(d.path(), &roads, &sites, &["--budget", "100000"]);
