@@ -7,7 +7,7 @@ mod budget;
 pub mod check;
 mod hub;
 mod joined;
-pub mod notes;
+mod notes;
 mod resilience;
 mod rows;
 mod schedule;

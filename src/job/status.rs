@@ -32,11 +32,17 @@ pub struct SiteStatus {
 
 /// What the reasons are derived from.
 pub(super) struct Facts<'a> {
+    /// The network's edges with their costs (closed ones unusable).
     pub graph: &'a EdgeList,
+    /// Parts of the usable network.
     pub comps: &'a Components,
+    /// The final plan's edges.
     pub plan: &'a [u32],
+    /// The sites.
     pub sites: &'a SiteLayer,
+    /// Where each site joined the network.
     pub attachments: &'a [Attachment],
+    /// What the plan joins to the hub.
     pub reach: &'a SiteReach,
     /// True when `--budget` cut the plan down.
     pub budget_applied: bool,
