@@ -189,6 +189,16 @@ fn a_budget_that_cuts_the_plan_is_announced() {
     let (out, err) = run_notes(d.path(), &roads, &sites, &["--budget", "100"]);
     let m = note(&out, &err, "budget_limits_plan");
     assert!(m.contains("more than the budget of 100"), "{m}");
+    // No bound covers a choice within a budget: never called optimal.
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["lower_bound"], 0.0);
+    assert!(s["gap"].is_null());
+    assert_eq!(s["optimal"], false);
+    assert_eq!(
+        s["plan"]["kind"],
+        "Steiner trees joining the sites chosen within the budget, the hub's group first"
+    );
+    assert!(err.contains("a plan within a budget has no bound"), "{err}");
     let d = tmp();
     let (out, _) = run_notes(d.path(), &roads, &sites, &["--budget", "100000"]);
     assert!(!codes(&out).contains(&"budget_limits_plan".to_string()));
@@ -238,4 +248,99 @@ fn a_hub_alone_on_its_roads_is_announced_and_checks_no_site() {
     assert_eq!(s["fragility"]["sites_checked"], 0);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(html.contains("Sites checked (joined to the hub, the hub excepted)</th><td>0<"));
+    assert!(html.contains("these figures say nothing about how safe any site is"));
+}
+
+/// A square polygon feature of side `s` metres with its south-west corner at (x, y).
+fn zone(x: f64, y: f64, s: f64, props: &str) -> String {
+    let c = [
+        at_m(x, y),
+        at_m(x + s, y),
+        at_m(x + s, y + s),
+        at_m(x, y + s),
+        at_m(x, y),
+    ];
+    let ring: Vec<String> = c.iter().map(|p| format!("[{},{}]", p[0], p[1])).collect();
+    format!(
+        r#"{{"type":"Feature","properties":{props},"geometry":{{"type":"Polygon","coordinates":[[{}]]}}}}"#,
+        ring.join(",")
+    )
+}
+
+#[test]
+fn zones_and_reports_without_values_and_zones_over_no_road_are_announced() {
+    let d = tmp();
+    let roads = [line(&[at_m(0., 0.), at_m(600., 0.)], r#"{"damage":0.1}"#)];
+    let sites = [
+        site(Some("a"), at_m(0., 5.), Some(2)),
+        site(Some("b"), at_m(600., 5.), Some(1)),
+    ];
+    let zones = write_collection(
+        d.path(),
+        "zones.geojson",
+        &[
+            zone(100., -50., 100., "{}"),
+            zone(100., -50., 100., r#"{"damage":0.5}"#),
+        ],
+    );
+    let reports = write_collection(d.path(), "reports.geojson", &[point(at_m(400., 5.), "{}")]);
+    let (out, err) = run_notes(
+        d.path(),
+        &roads,
+        &sites,
+        &[
+            "--damage-zones",
+            zones.to_str().unwrap(),
+            "--damage-points",
+            reports.to_str().unwrap(),
+        ],
+    );
+    let m = note(&out, &err, "zone_damage_defaulted");
+    assert!(m.starts_with("1 damage zone feature of 2 has no value in the damage field `damage`"));
+    assert!(m.ends_with("factor 1 (full reconstruction)"), "{m}");
+    let m = note(&out, &err, "report_damage_defaulted");
+    assert!(m.starts_with("1 damage report of 1 has no value"), "{m}");
+    assert!(!codes(&out).contains(&"damage_zones_changed_nothing".to_string()));
+    // Zones far from every road change nothing, and the run says so.
+    let d = tmp();
+    let zones = write_collection(
+        d.path(),
+        "zones.geojson",
+        &[zone(5000., 5000., 100., r#"{"damage":0.9}"#)],
+    );
+    let (out, err) = run_notes(
+        d.path(),
+        &roads,
+        &sites,
+        &["--damage-zones", zones.to_str().unwrap()],
+    );
+    let m = note(&out, &err, "damage_zones_changed_nothing");
+    assert!(
+        m.starts_with("the damage zone changed the cost of no road"),
+        "{m}"
+    );
+}
+
+#[test]
+fn among_tied_sites_the_hub_is_where_the_most_sites_can_join_it() {
+    let d = tmp();
+    let roads = [
+        line(&[at_m(0., 3000.), at_m(100., 3000.)], r#"{"damage":1}"#),
+        line(&[at_m(0., 0.), at_m(600., 0.)], r#"{"damage":1}"#),
+    ];
+    let sites = [
+        site(Some("stray"), at_m(50., 3005.), Some(4)),
+        site(Some("main"), at_m(0., 5.), Some(4)),
+        site(Some("c"), at_m(600., 5.), Some(1)),
+    ];
+    let (out, err) = run_notes(d.path(), &roads, &sites, &[]);
+    let m = note(&out, &err, "hub_tie");
+    assert_eq!(
+        m,
+        "stray, main share the highest priority (4); the hub is main, the first of them in the \
+         file whose part of the road network holds the most sites (2); name another with --hub"
+    );
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["sites"]["hub"], "main");
+    assert_eq!(s["sites"]["connected"], 2);
 }

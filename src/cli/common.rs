@@ -106,9 +106,9 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "METRES", default_value_t = 50.0)]
     pub report_distance: f64,
 
-    /// Most repair-metres to spend: when joining every site costs more, the sites giving the most
-    /// priority per repair-metre join first, within the budget; the rest are listed with the cost to
-    /// add each.
+    /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
+    /// giving the most priority per repair-metre are joined to the hub first, within the budget;
+    /// the rest are listed with the cost to add each.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub budget: Option<f64>,
 
@@ -220,7 +220,9 @@ pub struct SiteArgs {
     #[arg(long, value_name = "METRES", default_value_t = 250.0)]
     pub max_attach: f64,
 
-    /// Id of the hub site (the depot crews start from); default: the site with the highest priority.
+    /// Id of the hub site (the depot crews start from); it must lie within --max-attach of a usable
+    /// road. Default: the site on the roads with the highest priority (on ties, where the most
+    /// sites can join it, then the first in the file).
     #[arg(long, value_name = "SITE_ID")]
     pub hub: Option<String>,
 
@@ -333,6 +335,9 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
                     "the plan is at most {} % above optimal",
                     fixed(100.0 * g, 2)
                 ),
+                None if summary.within_budget() => {
+                    "no gap: a plan within a budget has no bound".to_string()
+                }
                 None => "no gap: the bound is 0".to_string(),
             }
         );

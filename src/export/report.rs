@@ -84,6 +84,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             fixed(100.0 * g, 2),
             if s.optimal { " (proven optimal)" } else { "" }
         ),
+        None if s.within_budget() => "not available (a plan within a budget has no bound)".into(),
         None => "not available (the bound is 0)".into(),
     };
     let rows = [
@@ -179,7 +180,15 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         }
     }
     if let Some(f) = &s.fragility {
-        writeln!(w, "<h2>Single road failures</h2><table>")?;
+        writeln!(w, "<h2>Single road failures</h2>")?;
+        if f.sites_checked == 0 {
+            writeln!(
+                w,
+                "<p><strong>No site other than the hub is joined to it, so these figures say \
+                 nothing about how safe any site is.</strong></p>"
+            )?;
+        }
+        writeln!(w, "<table>")?;
         let after = s.backup.as_ref().and_then(|b| b.fragility_after.as_ref());
         let row = |label: &str, before: usize, after: Option<usize>| {
             format!(

@@ -236,8 +236,26 @@ pub struct Note {
     pub message: String,
 }
 
-/// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing; a value that rounds to
-/// zero is +0, so no output shows "-0".
+impl Summary {
+    /// True when `--budget` cut the plan down (its note says so): no bound applies then.
+    pub fn within_budget(&self) -> bool {
+        self.notes.iter().any(|n| n.code == "budget_limits_plan")
+    }
+}
+
+/// Rounds to 3 decimals (millimetres, milli-repair-metres) for printing; never −0 (an empty sum
+/// of floats is −0, which would print as "-0.0").
 pub fn round3(x: f64) -> f64 {
     (x * 1000.0).round() / 1000.0 + 0.0
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn rounding_never_gives_negative_zero() {
+        let empty: f64 = std::iter::empty::<f64>().sum();
+        assert_eq!(super::round3(empty).to_string(), "0");
+        assert_eq!(super::round3(-0.0004).to_string(), "0");
+        assert_eq!(super::round3(1.23456), 1.235);
+    }
 }

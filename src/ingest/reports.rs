@@ -18,6 +18,8 @@ pub struct Report {
     pub pos: [f64; 2],
     /// Reported damage.
     pub damage: Damage,
+    /// True when the report has no damage value and took the default.
+    pub defaulted: bool,
 }
 
 /// What applying the reports did.
@@ -66,6 +68,7 @@ pub fn read_reports(
                 index,
                 pos: p,
                 damage,
+                defaulted: DamageRule::is_missing(f.prop(&rule.field)),
             });
             Ok(())
         },

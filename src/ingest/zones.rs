@@ -30,6 +30,8 @@ pub struct ZoneLayer {
     pub zones: Vec<Zone>,
     /// Path, size and SHA-256 of the input.
     pub input: InputRecord,
+    /// Features whose damage took the default: no value in the damage field.
+    pub defaulted: usize,
 }
 
 /// Reads damage zones from GeoJSON (Polygon / MultiPolygon features, lon/lat unless `crs` says
@@ -63,7 +65,9 @@ pub fn read_zones(
         field: Some(field.into()),
         message,
     };
+    let mut defaulted = 0;
     read_collection(&mut reader, std::slice::from_ref(&rule.field), |index, f| {
+        defaulted += usize::from(DamageRule::is_missing(f.prop(&rule.field)));
         let damage = rule
             .interpret(f.prop(&rule.field))
             .map_err(|m| fail(index, &rule.field, m))?;
@@ -126,6 +130,7 @@ pub fn read_zones(
         })?;
     Ok(ZoneLayer {
         zones,
+        defaulted,
         input: InputRecord {
             role: "damage zones".into(),
             path: path.display().to_string(),
@@ -194,6 +199,7 @@ fn read_shapefile_zones(
     let mut reader = super::shapefile::open_set(path)?;
     let mut zones = Vec::new();
     let numbers = reader.numeric_text();
+    let mut defaulted = 0;
     for (index, item) in reader.records() {
         let fail = |field: &str, message: String| IngestError::Feature {
             path: path.to_path_buf(),
@@ -207,6 +213,7 @@ fn read_shapefile_zones(
             Some(v) => Some(numbers.value(index, &rule.field, v)?),
             None => None,
         };
+        defaulted += usize::from(DamageRule::is_missing(value.as_ref()));
         let damage = rule
             .interpret(value.as_ref())
             .map_err(|m| fail(&rule.field, m))?;
@@ -250,6 +257,7 @@ fn read_shapefile_zones(
     }
     Ok(ZoneLayer {
         zones,
+        defaulted,
         input: InputRecord {
             deleted_records: reader.deleted(),
             ..super::shapefile::fingerprint(path, "damage zones")?

@@ -104,3 +104,61 @@ pub(super) fn apply(
     plan.bound_complete = false;
     Ok(Some(BudgetCut { full_cost }))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::status::tests::layer;
+    use crate::solve::PlanKind;
+    use crate::solve::components::components;
+    use crate::solve::site_plan::plan_sites;
+    use crate::solve::steiner::Effort;
+
+    #[test]
+    fn the_hubs_group_first_then_whole_trees_of_the_others_that_fit() {
+        // Hub 0 —10— 1 —10— 2; island 3 —4— 4.
+        let g = EdgeList {
+            vertices: 5,
+            ends: vec![[0, 1], [1, 2], [3, 4]],
+            cost: vec![10, 10, 4],
+        };
+        let comps = components(&g);
+        let (sl, at) = layer(&[
+            ("hub", Some(0)),
+            ("a", Some(1)),
+            ("b", Some(2)),
+            ("c", Some(3)),
+            ("d", Some(4)),
+        ]);
+        let junctions: Vec<Option<u32>> = at.iter().map(|a| a.junction).collect();
+        let sp = plan_sites(&g, &comps, &junctions, Effort::Quick).unwrap();
+        let full = || Plan {
+            kind: PlanKind::Sites,
+            edges: sp.edges.clone(),
+            total_cost: sp.cost,
+            trees: 2,
+            lower_bound: sp.lower_bound,
+            bound_complete: true,
+        };
+        for (budget, edges) in [
+            (0.013, vec![0]),
+            (0.014, vec![0, 2]),
+            (0.020, vec![0, 1]),
+            (0.023, vec![0, 1]),
+        ] {
+            let mut plan = full();
+            let cut = apply(budget, &g, &comps, &mut plan, &sl, &at, Some(0), &sp).unwrap();
+            assert_eq!(cut.unwrap().full_cost, 24);
+            assert_eq!(plan.edges, edges, "budget {budget}");
+            assert!(plan.total_cost as f64 <= budget * 1000.0);
+            assert_eq!(plan.lower_bound, 0);
+        }
+        let mut plan = full();
+        assert!(
+            apply(0.024, &g, &comps, &mut plan, &sl, &at, Some(0), &sp)
+                .unwrap()
+                .is_none()
+        );
+        assert_eq!(plan.edges, vec![0, 1, 2]);
+    }
+}

@@ -5,6 +5,7 @@ use crate::ingest::IngestError;
 use crate::ingest::attach::Attachment;
 use crate::ingest::sites::SiteLayer;
 use crate::ingest::source::Source;
+use crate::solve::components::Components;
 
 /// Checks, before any heavy work, that a hub named with `--hub` is among the sites.
 pub(super) fn check_named(
@@ -29,12 +30,15 @@ pub(super) fn check_named(
 }
 
 /// The hub once the sites are attached: the named site, which must reach a usable road; or the
-/// site with the highest priority among those that do (first in the file on ties), with a note
-/// when that choice was not obvious. `None` only when there are no sites.
+/// site with the highest priority among those that do, with a note when that choice was not
+/// obvious. On ties, the site whose part of the usable network (`comps`) holds the most sites
+/// wins, then the first in the file: a hub on a stray fragment of road could join nothing.
+/// `None` only when there are no sites.
 pub(super) fn choose(
     sl: &SiteLayer,
     attachments: &[Attachment],
     named: Option<&str>,
+    comps: &Components,
     notes: &mut Notes,
 ) -> Result<Option<usize>, IngestError> {
     if let Some(id) = named {
@@ -80,7 +84,13 @@ pub(super) fn choose(
         .copied()
         .filter(|&i| sl.sites[i].priority == top)
         .collect();
-    let hub = tied[0];
+    let comp = |i: usize| comps.of[attachments[i].junction.expect("on the roads") as usize];
+    let sharing = |i: usize| on_road.iter().filter(|&&k| comp(k) == comp(i)).count();
+    let most = tied.iter().map(|&i| sharing(i)).max().unwrap_or(0);
+    let hub = *tied
+        .iter()
+        .find(|&&i| sharing(i) == most)
+        .expect("tied is not empty");
     let id = |i: usize| sl.sites[i].id.as_str();
     let higher: Vec<usize> = (0..sl.sites.len())
         .filter(|&i| attachments[i].junction.is_none() && sl.sites[i].priority > top)
@@ -101,11 +111,19 @@ pub(super) fn choose(
         );
     }
     if tied.len() > 1 {
+        let how = if tied.iter().all(|&i| sharing(i) == most) {
+            "the first of them in the file".to_string()
+        } else {
+            format!(
+                "the first of them in the file whose part of the road network holds the most \
+                 sites ({most})"
+            )
+        };
         notes.push(
             "hub_tie",
             format!(
-                "{} share the highest priority ({top}); the hub is {}, the first of them in the \
-                 file; name another with --hub",
+                "{} share the highest priority ({top}); the hub is {}, {how}; name another with \
+                 --hub",
                 list(tied.iter().map(|&i| id(i))),
                 id(hub)
             ),
@@ -140,6 +158,64 @@ pub(super) fn alone_note(
                  be joined to it (see each site's reason)",
                 sl.sites[h].id
             ),
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::status::tests::layer;
+    use crate::solve::components::components;
+    use crate::solve::graph::EdgeList;
+
+    /// Junctions 0–1 joined, 2 alone.
+    fn comps() -> Components {
+        components(&EdgeList {
+            vertices: 3,
+            ends: vec![[0, 1]],
+            cost: vec![4],
+        })
+    }
+
+    #[test]
+    fn a_named_hub_off_the_roads_is_refused() {
+        let (sl, at) = layer(&[("a", Some(0)), ("off", None)]);
+        let e = choose(&sl, &at, Some("off"), &comps(), &mut Notes::default()).unwrap_err();
+        assert!(
+            e.to_string().contains("\"off\" is not on the road network"),
+            "{e}"
+        );
+        let mut n = Notes::default();
+        assert_eq!(
+            choose(&sl, &at, Some("a"), &comps(), &mut n).unwrap(),
+            Some(0)
+        );
+        assert!(n.into_vec().is_empty());
+    }
+
+    #[test]
+    fn the_default_hub_is_on_the_roads_where_most_sites_can_join_it() {
+        let (mut sl, at) = layer(&[
+            ("top", None),
+            ("stray", Some(2)),
+            ("b", Some(0)),
+            ("c", Some(1)),
+        ]);
+        sl.sites[0].priority = 9.0;
+        sl.sites[1].priority = 3.0;
+        sl.sites[2].priority = 3.0;
+        let mut n = Notes::default();
+        assert_eq!(choose(&sl, &at, None, &comps(), &mut n).unwrap(), Some(2));
+        let codes: Vec<&str> = n.into_vec().iter().map(|x| x.code).collect();
+        assert_eq!(codes, ["hub_not_on_roads", "hub_tie"]);
+        // With no site on the roads there is no hub to plan from.
+        let (sl, at) = layer(&[("x", None), ("y", None)]);
+        assert!(choose(&sl, &at, None, &comps(), &mut Notes::default()).is_err());
+        let (sl, at) = layer(&[]);
+        assert_eq!(
+            choose(&sl, &at, None, &comps(), &mut Notes::default()).unwrap(),
+            None
         );
     }
 }

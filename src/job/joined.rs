@@ -4,6 +4,7 @@
 use crate::ingest::attach::Attachment;
 use crate::network::Cost;
 use crate::solve::SolveError;
+use crate::solve::components::Components;
 use crate::solve::graph::EdgeList;
 use crate::solve::joined::{cost_from, joining, reaching};
 use crate::solve::order::Step;
@@ -17,8 +18,9 @@ pub struct SiteReach {
     pub joined: Vec<bool>,
     /// Per site: reaches the hub over intact roads alone, before any repair.
     pub before: Vec<bool>,
-    /// Per site not joined: the cheapest further repairs (milli-repair-metres) that would join it,
-    /// from everything the plan joins; None when joined, or when no usable road leads to it.
+    /// Per site not joined but in the hub's part of the usable network: the cheapest further
+    /// repairs (milli-repair-metres) that would join it, from everything the plan joins; None for
+    /// every other site.
     pub need: Vec<Option<Cost>>,
 }
 
@@ -35,6 +37,7 @@ impl SiteReach {
 /// else is an internal error, never an output.
 pub(super) fn site_reach(
     graph: &EdgeList,
+    comps: &Components,
     plan: &[u32],
     attachments: &[Attachment],
     hub: Option<usize>,
@@ -73,13 +76,17 @@ pub(super) fn site_reach(
     for &(i, j) in &at {
         joined[i] = reached[j as usize];
     }
-    let dist = cost_from(graph, plan, &reached);
-    let need = (0..n)
-        .map(|i| {
-            let j = attachments[i].junction?;
-            (!joined[i] && dist[j as usize] != Cost::MAX).then_some(dist[j as usize])
-        })
-        .collect();
+    // What joining costs matters only for sites the hub could reach (a budget left them out);
+    // the search over the whole network runs only when there are such sites.
+    let hub_comp = comps.of[hj as usize];
+    let reachable_left = |&(i, j): &(usize, u32)| !joined[i] && comps.of[j as usize] == hub_comp;
+    let mut need = vec![None; n];
+    if at.iter().any(reachable_left) {
+        let dist = cost_from(graph, plan, &reached);
+        for &(i, j) in at.iter().filter(|x| reachable_left(x)) {
+            need[i] = (dist[j as usize] != Cost::MAX).then_some(dist[j as usize]);
+        }
+    }
     let order: Vec<u32> = steps.iter().map(|s| s.edge).collect();
     let junctions: Vec<u32> = at.iter().map(|&(_, j)| j).collect();
     let replay = joining(graph, &order, hj, &junctions);
@@ -107,4 +114,47 @@ pub(super) fn site_reach(
         before,
         need,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::job::status::tests::layer;
+    use crate::solve::components::components;
+
+    fn step(edge: u32, order: u32) -> Step {
+        Step {
+            edge,
+            order,
+            phase: 1,
+            completes: vec![99],
+            over_capacity: false,
+        }
+    }
+
+    #[test]
+    fn repairs_complete_the_sites_they_join_to_the_hub_and_nothing_else() {
+        // Hub 0 —(0)— 1 —5— 2 —3— 3; site "mid" at 1 joined before any repair.
+        let g = EdgeList {
+            vertices: 4,
+            ends: vec![[0, 1], [1, 2], [2, 3]],
+            cost: vec![0, 5, 3],
+        };
+        let comps = components(&g);
+        let (_, at) = layer(&[("hub", Some(0)), ("mid", Some(1)), ("end", Some(3))]);
+        let mut steps = vec![step(1, 1), step(2, 2)];
+        let r = site_reach(&g, &comps, &[0, 1, 2], &at, Some(0), &mut steps).unwrap();
+        assert_eq!(r.joined, [true, true, true]);
+        assert_eq!(r.before, [true, true, false]);
+        assert_eq!(steps[0].completes, Vec::<usize>::new());
+        assert_eq!(steps[1].completes, vec![2]);
+        // An order that leaves out a repair of the plan is an internal error.
+        let mut short = vec![step(1, 1)];
+        assert!(site_reach(&g, &comps, &[0, 1, 2], &at, Some(0), &mut short).is_err());
+        // A plan that stops short: what is left out gets the cost still needed.
+        let mut steps = vec![step(1, 1)];
+        let r = site_reach(&g, &comps, &[0, 1], &at, Some(0), &mut steps).unwrap();
+        assert_eq!(r.joined, [true, true, false]);
+        assert_eq!(r.need, [None, None, Some(3)]);
+    }
 }

@@ -8,7 +8,7 @@ pub mod check;
 pub mod fingerprint;
 mod hub;
 mod joined;
-pub mod notes;
+mod notes;
 mod resilience;
 mod rows;
 mod schedule;
@@ -158,6 +158,8 @@ pub struct SitesResult {
     pub reach: SiteReach,
     /// Each site's status and, when not joined to the hub, the reason.
     pub statuses: Vec<SiteStatus>,
+    /// True when `--budget` cut the plan down: no bound applies to the plan then.
+    pub budget_applied: bool,
 }
 
 /// Runs the whole pipeline and returns the summary that was written.
@@ -216,6 +218,19 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             zl.zones.len(),
             crate::ingest::zones::apply_zones(&mut net, &zl),
         );
+        notes::layer_defaults(
+            &mut notes,
+            "zone_damage_defaulted",
+            ("damage zone feature", "damage zone features"),
+            zl.defaulted,
+            zl.zones
+                .iter()
+                .map(|z| z.feature)
+                .collect::<std::collections::BTreeSet<_>>()
+                .len(),
+            &job.zone_damage,
+        );
+        notes::zones_unused(&mut notes, zone_figures.0, zone_figures.1);
         inputs.push(zl.input);
     }
     let mut report_figures = None;
@@ -223,6 +238,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         let _s = progress.stage("applying damage reports");
         let (reports, rec) = crate::ingest::reports::read_reports(src, &job.zone_damage)?;
         let fig = crate::ingest::reports::apply_reports(&mut net, &reports, job.report_distance_m);
+        notes::layer_defaults(
+            &mut notes,
+            "report_damage_defaulted",
+            ("damage report", "damage reports"),
+            reports.iter().filter(|r| r.defaulted).count(),
+            reports.len(),
+            &job.zone_damage,
+        );
         notes::reports(&mut notes, &fig, job.report_distance_m);
         report_figures = Some(fig);
         inputs.push(rec);
@@ -230,18 +253,21 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     if job.zones.is_some() || job.reports.is_some() {
         ingest::check_cost_total(&net, &job.roads.display_path())?;
     }
-    let (attachments, hub) = match &site_layer {
+    let attachments = match &site_layer {
         Some(sl) => {
             let _s = progress.stage("attaching sites");
             let a = attach_sites(&mut net, &sl.sites, job.max_attach_m);
             notes::unattached(&mut notes, sl, &a, job.max_attach_m);
-            let hub = hub::choose(sl, &a, job.hub.as_deref(), &mut notes)?;
-            (a, hub)
+            a
         }
-        None => (Vec::new(), None),
+        None => Vec::new(),
     };
     let graph = net.weighted_edges();
     let comps = solve::components::components(&graph);
+    let hub = match &site_layer {
+        Some(sl) => hub::choose(sl, &attachments, job.hub.as_deref(), &comps, &mut notes)?,
+        None => None,
+    };
     let (mut plan, site_plan) = {
         let _s = progress.stage("solving");
         match &site_layer {
@@ -318,7 +344,8 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     let sites = match site_layer {
         Some(layer) => {
             inputs.push(layer.input.clone());
-            let reach = joined::site_reach(&graph, &plan.edges, &attachments, hub, &mut steps)?;
+            let reach =
+                joined::site_reach(&graph, &comps, &plan.edges, &attachments, hub, &mut steps)?;
             let statuses = status::statuses(&status::Facts {
                 graph: &graph,
                 comps: &comps,
@@ -336,6 +363,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
                 plan: site_plan,
                 reach,
                 statuses,
+                budget_applied,
             })
         }
         None => None,

@@ -8,6 +8,7 @@ use crate::export::summary::Note;
 use crate::ingest::ReadStats;
 use crate::ingest::RoadSettings;
 use crate::ingest::attach::Attachment;
+use crate::ingest::damage::DamageRule;
 use crate::ingest::reports::ReportFigures;
 use crate::ingest::sites::{SITE_ID_FIELDS, SiteLayer, SiteSettings};
 
@@ -136,6 +137,50 @@ pub(super) fn site_defaults(notes: &mut Notes, sl: &SiteLayer, s: &SiteSettings)
         notes.push(
             "site_priority_default",
             format!("{who} in the priority field `{field}`: such sites count with priority 1"),
+        );
+    }
+}
+
+/// Damage zones or field reports without a damage value (`what` names them), counted at the
+/// default of `rule`.
+pub(super) fn layer_defaults(
+    notes: &mut Notes,
+    code: &'static str,
+    what: (&str, &str),
+    n: usize,
+    total: usize,
+    rule: &DamageRule,
+) {
+    if n == 0 {
+        return;
+    }
+    notes.push(
+        code,
+        format!(
+            "{} of {total} {} no value in the damage field `{}` and {} counted at the default \
+             damage, {}",
+            count(n, what.0, what.1),
+            verb(n, "has", "have"),
+            rule.field,
+            verb(n, "is", "are"),
+            factor_words(rule.default)
+        ),
+    );
+}
+
+/// Damage zones that changed no road's cost.
+pub(super) fn zones_unused(notes: &mut Notes, zones: usize, edges_changed: usize) {
+    if zones > 0 && edges_changed == 0 {
+        notes.push(
+            "damage_zones_changed_nothing",
+            format!(
+                "{} changed the cost of no road: check that the zones lie over the roads (and \
+                 --zones-crs)",
+                match zones {
+                    1 => "the damage zone".to_string(),
+                    n => format!("none of the {n} damage zones"),
+                }
+            ),
         );
     }
 }

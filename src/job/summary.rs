@@ -61,7 +61,13 @@ pub fn build(
         .filter(|e| e.cost > 0)
         .collect();
     let fingerprint = super::fingerprint(&inputs, &super::settings_json(job));
-    let g = gap(plan.total_cost, plan.lower_bound);
+    // Within a budget the plan answers another question (the most priority for the money), to
+    // which the Steiner bound does not apply: no gap, never "optimal".
+    let within_budget = sites.is_some_and(|s| s.budget_applied);
+    let g = match within_budget {
+        true => None,
+        false => gap(plan.total_cost, plan.lower_bound),
+    };
     Summary {
         tool: Tool::default(),
         inputs,
@@ -71,11 +77,19 @@ pub fn build(
         geodesy,
         counts,
         plan: PlanFigures {
-            kind: plan.kind.describe(),
-            algorithm: match plan.kind {
-                PlanKind::WholeNetwork => job.mst.name(),
-                PlanKind::Sites => {
+            kind: match within_budget {
+                true => {
+                    "Steiner trees joining the sites chosen within the budget, the hub's group first"
+                }
+                false => plan.kind.describe(),
+            },
+            algorithm: match (plan.kind, within_budget) {
+                (PlanKind::WholeNetwork, _) => job.mst.name(),
+                (PlanKind::Sites, false) => {
                     "reductions, Mehlhorn, shortest-path multistart, local search; Wong dual ascent bound"
+                }
+                (PlanKind::Sites, true) => {
+                    "reductions, Mehlhorn, shortest-path multistart, local search; budgeted greedy choice of sites from the hub"
                 }
             },
             trees: plan.trees,
