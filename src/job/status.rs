@@ -191,6 +191,7 @@ pub(super) mod tests {
             path: "sites.geojson".into(),
             bytes: 0,
             sha256: String::new(),
+            deleted_records: 0,
         };
         let sl = SiteLayer {
             sites,
