@@ -90,14 +90,7 @@ pub const KEYS: &[Key] = &[
     }),
     key("cost_table", OptPath, |j, v| {
         let file = v.opt_path()?;
-        j.road_settings.cost_table = match &file {
-            Some(p) => {
-                let text = crate::ingest::limits::read_small_text(p)
-                    .map_err(|e| format!("{}: cannot read: {e}", p.display()))?;
-                CostTable::from_toml(&text).map_err(|e| format!("{}: {e}", p.display()))?
-            }
-            None => CostTable::default(),
-        };
+        j.road_settings.cost_table = CostTable::from_file(file.as_deref())?;
         j.road_settings.cost_table_file = file;
         Ok(())
     }),

@@ -128,14 +128,8 @@ pub struct PlanningArgs {
 
 impl NetworkArgs {
     pub fn road_settings(&self) -> anyhow::Result<RoadSettings> {
-        let cost_table = match &self.cost_table {
-            Some(p) => {
-                let text = reknit::ingest::limits::read_small_text(p)
-                    .map_err(|e| anyhow::anyhow!("{}: cannot read: {e}", p.display()))?;
-                CostTable::from_toml(&text).map_err(|e| anyhow::anyhow!("{}: {e}", p.display()))?
-            }
-            None => CostTable::default(),
-        };
+        let cost_table =
+            CostTable::from_file(self.cost_table.as_deref()).map_err(anyhow::Error::msg)?;
         let mut filters = Vec::new();
         for (list, keep) in [(&self.keep_where, true), (&self.drop_where, false)] {
             for f in list {

@@ -232,18 +232,17 @@ impl InputIndex {
     }
 }
 
-/// Refuses an output folder that is the folder of one of `inputs` or holds one at any depth;
-/// the error is the input.
-pub fn check_apart(out: &Path, inputs: &[PathBuf]) -> Result<(), PathBuf> {
-    match InputIndex::new(inputs).clash(out) {
-        Some(i) => Err(inputs[i].clone()),
-        None => Ok(()),
-    }
-}
-
 #[cfg(test)]
 mod index_tests {
     use super::*;
+
+    /// The input whose folder is `out` or lies inside it, through the index.
+    fn check_apart(out: &Path, inputs: &[PathBuf]) -> Result<(), PathBuf> {
+        match InputIndex::new(inputs).clash(out) {
+            Some(i) => Err(inputs[i].clone()),
+            None => Ok(()),
+        }
+    }
 
     #[test]
     fn folders_holding_inputs_are_refused() {

@@ -59,6 +59,17 @@ impl Default for CostTable {
 }
 
 impl CostTable {
+    /// Reads a cost table file (the documented default when `path` is `None`); the error names
+    /// the file and the key.
+    pub fn from_file(path: Option<&std::path::Path>) -> Result<CostTable, String> {
+        let Some(p) = path else {
+            return Ok(CostTable::default());
+        };
+        let text = super::limits::read_small_text(p)
+            .map_err(|e| format!("{}: cannot read: {e}", p.display()))?;
+        CostTable::from_toml(&text).map_err(|e| format!("{}: {e}", p.display()))
+    }
+
     /// Parses a cost table; the error names the key.
     pub fn from_toml(text: &str) -> Result<CostTable, String> {
         let doc: toml::Table = text

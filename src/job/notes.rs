@@ -48,6 +48,19 @@ fn verb(n: usize, one: &'static str, many: &'static str) -> &'static str {
     if n == 1 { one } else { many }
 }
 
+/// "no site has an id" when none has, else "2 of 5 sites have no id".
+fn sites_without(n: usize, total: usize, a_thing: &str, thing: &str) -> String {
+    if n == total {
+        format!("no site has {a_thing}")
+    } else {
+        format!(
+            "{} of {total} {} no {thing}",
+            count(n, "site", "sites"),
+            verb(n, "has", "have")
+        )
+    }
+}
+
 /// A damage factor in words.
 fn factor_words(f: f64) -> String {
     if f < 0.0 {
@@ -109,15 +122,7 @@ pub(super) fn site_defaults(notes: &mut Notes, sl: &SiteLayer, s: &SiteSettings)
             Some(f) => format!("`{f}`"),
             None => format!("the GeoJSON id or any of {}", SITE_ID_FIELDS.join(", ")),
         };
-        let who = if d.generated_ids == total {
-            "no site has an id".to_string()
-        } else {
-            format!(
-                "{} of {total} {} no id",
-                count(d.generated_ids, "site", "sites"),
-                verb(d.generated_ids, "has", "have")
-            )
-        };
+        let who = sites_without(d.generated_ids, total, "an id", "id");
         notes.push(
             "site_ids_generated",
             format!("{who} in {fields}: such sites are named site-N by their position in the file"),
@@ -125,15 +130,7 @@ pub(super) fn site_defaults(notes: &mut Notes, sl: &SiteLayer, s: &SiteSettings)
     }
     if d.default_priority > 0 {
         let field = s.priority_field.as_deref().unwrap_or("priority");
-        let who = if d.default_priority == total {
-            "no site has a value".to_string()
-        } else {
-            format!(
-                "{} of {total} {} no value",
-                count(d.default_priority, "site", "sites"),
-                verb(d.default_priority, "has", "have")
-            )
-        };
+        let who = sites_without(d.default_priority, total, "a value", "value");
         notes.push(
             "site_priority_default",
             format!("{who} in the priority field `{field}`: such sites count with priority 1"),
