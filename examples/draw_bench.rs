@@ -26,12 +26,13 @@ fn main() {
         &[],
         &[],
         "caution",
+        None,
         true,
     )
     .expect("svg");
     let svg_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
-    let png = render_png("bench", &net, &plan.edges, &[], &[], "caution").expect("png");
+    let png = render_png("bench", &net, &plan.edges, &[], &[], "caution", None).expect("png");
     let png_s = t.elapsed().as_secs_f64();
     println!(
         "{} edges: SVG {svg_s:.2} s, PNG {png_s:.2} s ({} bytes)",

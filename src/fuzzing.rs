@@ -50,7 +50,7 @@ pub fn roads_geojson(data: &[u8]) {
         .expect("the forest of a valid network verifies");
     let _ = crate::solve::fragility::fragility(&g, &[]);
     let _ = plan;
-    crate::export::write_network(std::io::sink(), &net, &comps).expect("sink");
+    crate::export::write_network(std::io::sink(), &net, &comps, None).expect("sink");
 }
 
 /// Splits `data` at the first `0xFF` byte (the rest goes to `rest`).

@@ -37,6 +37,9 @@ pub struct FeatureMeta {
     pub category: Option<Box<str>>,
     /// Road name and reference number (`name (ref)`), when the input has them.
     pub label: Option<Box<str>>,
+    /// The structure the road lies on (`bridge`, `tunnel`, `culvert`, …), when its attributes say
+    /// so (see [`crate::ingest::structures`]).
+    pub structure: Option<Box<str>>,
 }
 
 /// One road piece between two junctions.

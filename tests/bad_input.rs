@@ -299,6 +299,16 @@ case!(named_field_in_no_feature, |d| {
     );
 });
 
+case!(structure_field_in_no_feature, |d| {
+    let f = r#"{"type":"Feature","properties":{"bridge":"yes"},"geometry":{"type":"LineString","coordinates":[[0,0],[0.001,0]]}}"#;
+    let p = file(d, "spans.geojson", fc(&[f]));
+    plan_fails(
+        &p,
+        &["--structure-field", "span"],
+        &["spans.geojson", "\"span\"", "no feature has this property", "bridge"],
+    );
+});
+
 case!(crs_member_without_epsg_code, |d| {
     let p = file(
         d,

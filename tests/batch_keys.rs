@@ -37,6 +37,8 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("redundancy", "true"),
     ("crew_capacity", "500"),
     ("node_crossings", "true"),
+    ("structure_field", "\"kind\""),
+    ("attribution", "\"County roads office\""),
     ("mst", "\"prim\""),
     ("max_attach", "300"),
     ("hub", "\"A\""),

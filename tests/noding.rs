@@ -21,6 +21,7 @@ fn layer(lines: &[Vec<[f64; 2]>]) -> LineLayer {
             damage: Damage::Factor(1.0),
             category: None,
             label: None,
+            structure: None,
         });
     }
     l

@@ -27,6 +27,7 @@ fn network(lines: &[(Vec<[f64; 2]>, Damage)]) -> Network {
             damage: *damage,
             category: None,
             label: None,
+            structure: None,
         });
     }
     node(l, 0.0).0

@@ -142,6 +142,14 @@ pub const KEYS: &[Key] = &[
         j.road_settings.node_crossings = v.flag()?;
         Ok(())
     }),
+    key("structure_field", OptText, |j, v| {
+        j.road_settings.structure_field = v.opt_text()?;
+        Ok(())
+    }),
+    key("attribution", OptText, |j, v| {
+        j.road_settings.attribution = v.opt_text()?;
+        Ok(())
+    }),
     key("mst", Choice(&["kruskal", "prim"]), |j, v| {
         j.mst = match v.text()?.as_str() {
             "kruskal" => MstAlgorithm::Kruskal,

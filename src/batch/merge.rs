@@ -107,6 +107,7 @@ pub fn merge(dir: &Path) -> Result<BatchSummary, BatchError> {
     rows.sort_by_key(|r| r.index);
     let merged = BatchSummary {
         districts,
+        cautions: super::report::cautions(),
         batch_id,
         shard: None,
         failed: rows.iter().filter(|r| r.status == "failed").count(),

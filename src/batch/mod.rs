@@ -147,6 +147,7 @@ pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
     rows.sort_by_key(|r| r.index);
     let summary = BatchSummary {
         districts: total,
+        cautions: report::cautions(),
         batch_id: manifest.id,
         shard: opts.shard.map(|s| format!("{}/{}", s.index, s.count)),
         failed: rows.iter().filter(|r| r.status == "failed").count(),
@@ -192,6 +193,7 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
         lower_bound: None,
         gap: None,
         error: Some(message),
+        attribution: None,
     };
     if opts.resume
         && let Some(existing) = resume::up_to_date(&out, &job)

@@ -35,6 +35,9 @@ pub struct Row {
     pub gap: Option<f64>,
     /// The error message when the district failed.
     pub error: Option<String>,
+    /// The attribution the district's data asks for (its summary's `attribution`).
+    #[serde(default)]
+    pub attribution: Option<String>,
 }
 
 impl Row {
@@ -62,6 +65,10 @@ impl Row {
             lower_bound: f("/lower_bound"),
             gap: f("/gap"),
             error: None,
+            attribution: s
+                .pointer("/attribution")
+                .and_then(|v| v.as_str())
+                .map(str::to_string),
         }
     }
 }
@@ -71,6 +78,9 @@ impl Row {
 pub struct BatchSummary {
     /// Districts in the manifest.
     pub districts: usize,
+    /// The cautions that go with every plan (second, as in each district's summary.json).
+    #[serde(default = "cautions")]
+    pub cautions: Vec<String>,
     /// The manifest's identity ([`super::manifest::Manifest::id`]): equal in every shard of a batch.
     pub batch_id: String,
     /// `K/N` for one shard's summary, null for a whole batch (or a merge of all shards).
@@ -79,6 +89,14 @@ pub struct BatchSummary {
     pub failed: usize,
     /// One row per district run, in manifest order.
     pub rows: Vec<Row>,
+}
+
+/// The library's cautions, owned (a batch summary is also read back when shards are merged).
+pub fn cautions() -> Vec<String> {
+    crate::cautions::CAUTIONS
+        .iter()
+        .map(|c| c.to_string())
+        .collect()
 }
 
 /// Writes `<stem>.json` and `<stem>.csv` into `dir`, each through a temporary file and a rename.
@@ -103,6 +121,8 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
         "lower_bound",
         "gap",
         "error",
+        "attribution",
+        "caution",
     ])
     .map_err(|e| io(e.into()))?;
     let opt_u = |v: Option<u64>| v.map(|x| x.to_string()).unwrap_or_default();
@@ -123,6 +143,10 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
             opt_f(r.lower_bound),
             opt_f(r.gap),
             csv_cell(r.error.as_deref().unwrap_or_default()).into_owned(),
+            csv_cell(r.attribution.as_deref().unwrap_or_default()).into_owned(),
+            // The cautions ride on every row, so the CSV stays one table (no comment or footer
+            // line a CSV reader would take for data) and a row copied or filtered alone keeps them.
+            crate::cautions::SHORT.to_string(),
         ])
         .map_err(|e| io(e.into()))?;
     }

@@ -99,9 +99,7 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
                 reknit::export::text::terminal(r.error.as_deref().unwrap_or(""))
             );
         }
-        eprintln!(
-            "caution: decision support only; field-verify every segment before sending crews."
-        );
+        super::common::print_cautions(None);
     }
     Ok(if s.failed > 0 {
         ExitCode::from(1)
@@ -118,6 +116,7 @@ pub fn merge(a: MergeArgs) -> anyhow::Result<ExitCode> {
         a.dir.join("batch-summary.csv").display(),
         s.failed
     );
+    super::common::print_cautions(None);
     Ok(if s.failed > 0 {
         ExitCode::from(1)
     } else {

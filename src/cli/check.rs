@@ -45,6 +45,7 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
             eprintln!("  {n:>8}  {kind}");
         }
         eprintln!("outputs written to {}", a.out.display());
+        super::common::print_cautions(r.attribution.as_deref());
     }
     Ok(ExitCode::SUCCESS)
 }

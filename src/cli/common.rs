@@ -79,6 +79,19 @@ pub struct NetworkArgs {
     /// vertices). Off by default: such crossings are usually overpasses.
     #[arg(long)]
     pub node_crossings: bool,
+
+    /// Road property saying a road lies on a bridge, culvert or tunnel (any value but empty, no,
+    /// false, 0, n, f or none). Default: the fields bridge, tunnel, culvert and structure (also
+    /// upper case, capitalised and is_bridge-style), OpenStreetMap's bridge and tunnel tags among
+    /// them. Planned roads and repairs on a structure are flagged for inspection.
+    #[arg(long, value_name = "FIELD")]
+    pub structure_field: Option<String>,
+
+    /// Attribution the road data's source asks for, carried into summary.json, every layer, the
+    /// picture and the report. OpenStreetMap data (osm_id or @id fields, or an .osm.pbf file)
+    /// always carries "© OpenStreetMap contributors (ODbL)".
+    #[arg(long, value_name = "TEXT")]
+    pub attribution: Option<String>,
 }
 
 /// Damage evidence and planning choices: for the commands that plan (not `check`).
@@ -155,6 +168,8 @@ impl NetworkArgs {
             cost_table,
             cost_table_file: self.cost_table.clone(),
             filters,
+            structure_field: self.structure_field.clone(),
+            attribution: self.attribution.clone(),
         })
     }
 }
@@ -347,6 +362,20 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             eprintln!("  note: {}", terminal(n));
         }
     }
+    if let Some(st) = summary.structures.as_ref().filter(|st| st.planned > 0) {
+        eprintln!(
+            "structures: {} planned road(s) on a bridge, culvert or tunnel ({} to repair): inspect before use",
+            st.planned, st.repairs
+        );
+    }
     eprintln!("outputs written to {}", out.display());
-    eprintln!("caution: decision support only; field-verify every segment before sending crews.");
+    print_cautions(summary.attribution.as_deref());
+}
+
+/// Prints the cautions paragraph (the text of the picture's band) and any attribution.
+pub fn print_cautions(attribution: Option<&str>) {
+    eprintln!("{}", reknit::cautions::SHORT);
+    if let Some(a) = attribution {
+        eprintln!("{}", terminal(a));
+    }
 }

@@ -11,22 +11,30 @@ use std::process::ExitCode;
 
 /// Plan which damaged road segments to repair first so that a district's roads reconnect at the
 /// least repair effort. Costs are in repair-metres: one metre of road at damage factor 1.0.
-///
-/// Decision support only: field-verify every segment; bridges, culverts and slopes need inspection
-/// by qualified engineers before reopening; local codes and licensed practice decide.
 #[derive(Debug, Parser)]
-#[command(name = "reknit", version, max_term_width = 100)]
+#[command(
+    name = "reknit",
+    version,
+    max_term_width = 100,
+    after_help = reknit::cautions::SHORT
+)]
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
 }
 
 #[derive(Debug, Subcommand)]
+// Every subcommand's help ends with the cautions paragraph, from the library's one copy.
 enum Command {
+    #[command(after_help = reknit::cautions::SHORT)]
     Plan(Box<plan::PlanArgs>),
+    #[command(after_help = reknit::cautions::SHORT)]
     Demo(Box<demo::DemoArgs>),
+    #[command(after_help = reknit::cautions::SHORT)]
     Check(Box<check::CheckArgs>),
+    #[command(after_help = reknit::cautions::SHORT)]
     Batch(Box<batch::BatchArgs>),
+    #[command(after_help = reknit::cautions::SHORT)]
     Merge(batch::MergeArgs),
 }
 

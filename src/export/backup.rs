@@ -78,8 +78,10 @@ pub fn write_backup<W: std::io::Write>(
     w: W,
     net: &Network,
     layer: &BackupLayer,
+    ids: &super::work_order_id::WorkOrderIds,
+    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::new(w)?;
+    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for r in &layer.rows {
         let edge = &net.edges[r.edge as usize];
         let meta = &net.features[edge.feature as usize];
@@ -103,6 +105,11 @@ pub fn write_backup<W: std::io::Write>(
                 ("damage", damage),
                 ("cost", Prop::Fixed3(cost_to_repair_metres(edge.cost))),
                 ("sites_protected", Prop::Str(&joined)),
+                (
+                    "structure",
+                    meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
+                ),
+                ("work_order", Prop::Str(&ids.key(net, r.edge))),
             ],
             net.edge_geometry(r.edge as usize),
         )?;

@@ -83,8 +83,9 @@ pub fn write_fragility<W: std::io::Write>(
     w: W,
     net: &Network,
     layer: &FragilityLayer,
+    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::new(w)?;
+    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for (e, sites) in &layer.critical {
         let joined = sites.join(";");
         gj.line(

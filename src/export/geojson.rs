@@ -32,9 +32,35 @@ pub struct GeoJsonWriter<W: Write> {
 }
 
 impl<W: Write> GeoJsonWriter<W> {
-    /// Starts the collection.
+    /// Starts a plain collection (no foreign members): for layers made as inputs, such as the
+    /// synthetic road layers.
     pub fn new(mut w: W) -> io::Result<Self> {
         w.write_all(b"{\"type\":\"FeatureCollection\",\"features\":[\n")?;
+        Ok(GeoJsonWriter {
+            w,
+            first: true,
+            buf: String::with_capacity(4096),
+        })
+    }
+
+    /// Starts an output layer: the collection carries the cautions ([`crate::cautions::CAUTIONS`])
+    /// as a top-level `cautions` member and, when the data asks for one, an `attribution` member,
+    /// so a layer passed on alone still carries them. RFC 7946 §6.1 allows such foreign members.
+    pub fn layer(mut w: W, attribution: Option<&str>) -> io::Result<Self> {
+        let mut head = String::from("{\"type\":\"FeatureCollection\",\"cautions\":[");
+        for (i, c) in crate::cautions::CAUTIONS.iter().enumerate() {
+            if i > 0 {
+                head.push(',');
+            }
+            push_json_str(&mut head, c);
+        }
+        head.push(']');
+        if let Some(a) = attribution {
+            head.push_str(",\"attribution\":");
+            push_json_str(&mut head, a);
+        }
+        head.push_str(",\"features\":[\n");
+        w.write_all(head.as_bytes())?;
         Ok(GeoJsonWriter {
             w,
             first: true,

@@ -4,6 +4,7 @@
 //! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
 
 pub mod backup;
+pub mod band;
 pub mod fragility;
 pub mod geojson;
 pub mod guard;
@@ -13,8 +14,10 @@ pub mod raster;
 pub mod report;
 pub mod sites;
 pub mod staging;
+pub mod structures;
 pub mod summary;
 pub mod text;
+pub mod work_order_id;
 pub mod work_orders;
 
 use crate::network::{Network, cost_to_repair_metres};
@@ -125,7 +128,9 @@ pub fn output_names(sites: bool, fragility: bool, backup: bool) -> Vec<&'static 
 /// and `summary.json` into `out` as one set.
 pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
-    st.write("qa.geojson", |w| write_qa(w, o.qa))?;
+    let attribution = o.summary.attribution.as_deref();
+    let ids = work_order_id::WorkOrderIds::new(o.net);
+    st.write("qa.geojson", |w| write_qa(w, o.qa, attribution))?;
     st.write("work-orders.csv", |w| {
         work_orders::write_work_orders(
             w,
@@ -133,6 +138,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             o.steps,
             o.backup.map_or(&[][..], |b| &b.rows[..]),
             o.site_ids,
+            &ids,
         )
     })?;
     let order_of: std::collections::HashMap<u32, (u32, u32)> = o
@@ -153,6 +159,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                         o.steps,
                         o.marks,
                         crate::cautions::SHORT,
+                        attribution,
                         true,
                     )
                 })
@@ -165,6 +172,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                     o.steps,
                     o.marks,
                     crate::cautions::SHORT,
+                    attribution,
                 )
                 .map_err(|e| ExportError::Io {
                     path: out.given().join("plan.png"),
@@ -179,12 +187,20 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         rayon::join(
             || {
                 st.write("network.geojson", |w| {
-                    write_edges(w, o.net, o.comps, None, None)
+                    write_edges(w, o.net, o.comps, None, None, &ids, attribution)
                 })
             },
             || {
                 st.write("plan.geojson", |w| {
-                    write_edges(w, o.net, o.comps, Some(&o.plan.edges), Some(&order_of))
+                    write_edges(
+                        w,
+                        o.net,
+                        o.comps,
+                        Some(&o.plan.edges),
+                        Some(&order_of),
+                        &ids,
+                        attribution,
+                    )
                 })
             },
         )
@@ -199,14 +215,14 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     })?;
     if let Some(f) = o.fragility {
         st.write("fragility.geojson", |w| {
-            fragility::write_fragility(w, o.net, f)
+            fragility::write_fragility(w, o.net, f, attribution)
         })?;
     }
     if let Some(b) = o.backup {
-        st.write("backup.geojson", |w| backup::write_backup(w, o.net, b))?;
+        st.write("backup.geojson", |w| backup::write_backup(w, o.net, b, &ids, attribution))?;
     }
     if let Some(rows) = o.sites {
-        st.write("sites.geojson", |w| sites::write_sites(w, rows))?;
+        st.write("sites.geojson", |w| sites::write_sites(w, rows, attribution))?;
     }
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
@@ -234,8 +250,10 @@ fn write_edges<W: std::io::Write>(
     comps: &Components,
     only: Option<&[u32]>,
     order_of: Option<&std::collections::HashMap<u32, (u32, u32)>>,
+    keys: &work_order_id::WorkOrderIds,
+    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::new(w)?;
+    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     let all: Vec<u32>;
     let ids = match only {
         Some(ids) => ids,
@@ -262,6 +280,7 @@ fn write_edges<W: std::io::Write>(
             Prop::Null
         };
         let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
+        let key = keys.key(net, e);
         let props = [
             ("edge", Prop::Int(e as i64)),
             ("from", Prop::Int(edge.from as i64)),
@@ -276,6 +295,11 @@ fn write_edges<W: std::io::Write>(
                 "category",
                 meta.category.as_deref().map_or(Prop::Null, Prop::Str),
             ),
+            (
+                "structure",
+                meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
+            ),
+            ("work_order", Prop::Str(&key)),
             ("repair", Prop::Bool(edge.cost > 0)),
             (
                 "order",
@@ -293,7 +317,7 @@ fn write_edges<W: std::io::Write>(
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..10]
+            &props[..12]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
@@ -302,8 +326,12 @@ fn write_edges<W: std::io::Write>(
 }
 
 /// Writes QA points: kind, distance moved (or gap), and the input feature where known.
-pub fn write_qa<W: std::io::Write>(w: W, qa: &[crate::ingest::qa::QaPoint]) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::new(w)?;
+pub fn write_qa<W: std::io::Write>(
+    w: W,
+    qa: &[crate::ingest::qa::QaPoint],
+    attribution: Option<&str>,
+) -> std::io::Result<()> {
+    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for q in qa {
         gj.point(
             &[
@@ -326,6 +354,8 @@ pub fn write_network<W: std::io::Write>(
     w: W,
     net: &Network,
     comps: &Components,
+    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    write_edges(w, net, comps, None, None)
+    let ids = work_order_id::WorkOrderIds::new(net);
+    write_edges(w, net, comps, None, None, &ids, attribution)
 }

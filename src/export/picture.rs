@@ -4,7 +4,7 @@
 //! latitude, so shapes and the scale bar hold), the network in light grey, impassable roads dashed,
 //! repairs coloured by day-phase on a ramp of our own that keeps its order in lightness for
 //! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
-//! north arrow, the district name and the caution line. Line widths shrink as the network grows.
+//! north arrow, the district name and the cautions band (see [`super::band`]). Line widths shrink as the network grows.
 
 use super::text::xml;
 use crate::network::Network;
@@ -52,7 +52,7 @@ impl Frame {
     pub fn px(&self, p: [f64; 2]) -> (f64, f64) {
         (
             MARGIN + (p[0] - self.lo[0]) * self.mx * self.scale,
-            H - MARGIN - 40.0 - (p[1] - self.lo[1]) * self.my * self.scale,
+            H - MARGIN - 40.0 - super::band::HEIGHT - (p[1] - self.lo[1]) * self.my * self.scale,
         )
     }
 }
@@ -80,7 +80,7 @@ pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
         ((hi[1] - lo[1]) * my).max(1.0),
     ];
     // The legend keeps the right-hand 280 px.
-    let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0) / span[1]);
+    let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0 - super::band::HEIGHT) / span[1]);
     let n = net.edges.len().max(1) as f64;
     Frame {
         lo,
@@ -102,7 +102,7 @@ pub fn phase_colour(phase: u32, phases: u32) -> &'static str {
 }
 
 /// Writes the picture; with `lines` false only the overlay (sites, labels, legend, scale bar,
-/// north arrow, title, caution) on a transparent background, for the raster renderer.
+/// north arrow, title, cautions band) on a transparent background, for the raster renderer.
 #[allow(clippy::too_many_arguments)]
 pub fn write_svg<W2: Write>(
     w: W2,
@@ -112,6 +112,7 @@ pub fn write_svg<W2: Write>(
     steps: &[Step],
     sites: &[SiteMark],
     caution: &str,
+    attribution: Option<&str>,
     lines: bool,
 ) -> io::Result<()> {
     let mut w = io::BufWriter::new(w);
@@ -322,7 +323,7 @@ pub fn write_svg<W2: Write>(
         .rfind(|&v| v <= target_m)
         .unwrap_or(pow);
     let bar = nice * scale;
-    let (bx, by) = (MARGIN, H - 40.0);
+    let (bx, by) = (MARGIN, H - 40.0 - super::band::HEIGHT);
     let label = if nice >= 1000.0 {
         format!("{} km", nice / 1000.0)
     } else {
@@ -340,20 +341,19 @@ pub fn write_svg<W2: Write>(
         w,
         r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="#000000"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
         W - 60.0,
-        H - 110.0,
+        H - 110.0 - super::band::HEIGHT,
         W - 50.0,
-        H - 70.0,
-        H - 80.0,
+        H - 70.0 - super::band::HEIGHT,
+        H - 80.0 - super::band::HEIGHT,
         W - 70.0,
         W - 66.0,
-        H - 116.0
+        H - 116.0 - super::band::HEIGHT
     )?;
-    writeln!(
-        w,
-        r##"<text id="caution" x="{}" y="{}" font-size="13" fill="#8c2d04">{}</text>"##,
-        MARGIN + bar + 40.0,
-        H - 40.0,
-        xml(caution)
+    super::band::write_band(
+        &mut w,
+        (20.0, H - 12.0 - super::band::HEIGHT, W - 40.0),
+        caution,
+        attribution,
     )?;
     writeln!(w, "</svg>")?;
     w.flush()

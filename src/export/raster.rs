@@ -27,6 +27,7 @@ pub fn render_png(
     steps: &[Step],
     sites: &[SiteMark],
     caution: &str,
+    attribution: Option<&str>,
 ) -> Result<Vec<u8>, String> {
     let (w, h) = picture::SIZE;
     let mut pixmap = Pixmap::new(w, h).ok_or("the picture has no area")?;
@@ -126,6 +127,7 @@ pub fn render_png(
         steps,
         sites,
         caution,
+        attribution,
         false,
     )
     .map_err(|e| e.to_string())?;

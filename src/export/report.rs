@@ -61,6 +61,12 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         writeln!(w, "<li>{}</li>", esc(c))?;
     }
     writeln!(w, "</ul></div>")?;
+    if let Some(a) = &s.attribution {
+        writeln!(w, "<p class=\"attribution\">Data: {}</p>", esc(a))?;
+    }
+    if let Some(st) = &s.structures {
+        super::structures::write_html(&mut w, st)?;
+    }
     if !s.notes.is_empty() {
         writeln!(
             w,

@@ -35,7 +35,11 @@ pub struct SiteRow {
 
 /// Writes the sites as Point features; reknit's own properties first, the input's after them
 /// (an input property with the same name as one of reknit's is prefixed with `input_`).
-pub fn write_sites<W: Write>(w: W, rows: &[SiteRow]) -> std::io::Result<()> {
+pub fn write_sites<W: Write>(
+    w: W,
+    rows: &[SiteRow],
+    attribution: Option<&str>,
+) -> std::io::Result<()> {
     const OWN: [&str; 11] = [
         "site_id",
         "name",
@@ -49,7 +53,7 @@ pub fn write_sites<W: Write>(w: W, rows: &[SiteRow]) -> std::io::Result<()> {
         "attach_distance_m",
         "attach_lon",
     ];
-    let mut gj = GeoJsonWriter::new(w)?;
+    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for r in rows {
         let renamed: Vec<(String, &Value)> = r
             .attributes

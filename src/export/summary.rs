@@ -181,6 +181,10 @@ pub struct PhaseFigures {
 pub struct Summary {
     /// Program name and version.
     pub tool: Tool,
+    /// Cautions that go with the plan (second, so no reader can miss them).
+    pub cautions: Vec<&'static str>,
+    /// The attribution the data's licence asks for (OpenStreetMap's, or `--attribution`), if any.
+    pub attribution: Option<String>,
     /// Input files with their SHA-256.
     pub inputs: Vec<InputRecord>,
     /// SHA-256 of the inputs' digests and the settings: unchanged inputs and settings, same value.
@@ -221,8 +225,8 @@ pub struct Summary {
     pub plan_edges: usize,
     /// Defaults and choices of this run that change the answer, each announced.
     pub notes: Vec<Note>,
-    /// Cautions that go with the plan.
-    pub cautions: Vec<&'static str>,
+    /// The plan's roads on bridges, culverts and tunnels: inspect before use.
+    pub structures: Option<super::structures::StructureFigures>,
 }
 
 /// A default or a choice the run made that changes the answer (a road without a damage value, a

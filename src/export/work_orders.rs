@@ -9,14 +9,17 @@ use crate::solve::order::Step;
 use std::io::Write;
 
 /// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends,
-/// the sites each repair completes, and its purpose (`plan`, or `backup` for backup links, which
-/// have no phase).
+/// the sites each repair completes, its purpose (`plan`, or `backup` for backup links, which
+/// have no phase), then the columns crews hand back: the work-order key (stable across re-plans,
+/// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
+/// and `verified_on`, and the fixed caution sentence.
 pub fn write_work_orders<W: Write>(
     w: W,
     net: &Network,
     steps: &[Step],
     backup: &[BackupRow],
     site_ids: &[String],
+    ids: &super::work_order_id::WorkOrderIds,
 ) -> std::io::Result<()> {
     let mut c = csv::Writer::from_writer(w);
     let io = |e: csv::Error| std::io::Error::other(e.to_string());
@@ -38,6 +41,12 @@ pub fn write_work_orders<W: Write>(
         "completes_sites",
         "over_capacity",
         "purpose",
+        "work_order",
+        "structure",
+        "status",
+        "verified_by",
+        "verified_on",
+        "caution",
     ])
     .map_err(io)?;
     let rows = steps
@@ -98,6 +107,12 @@ pub fn write_work_orders<W: Write>(
             csv_cell(&completes).into_owned(),
             over.to_string(),
             purpose.to_string(),
+            csv_cell(&ids.key(net, edge)).into_owned(),
+            csv_cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
+            String::new(),
+            String::new(),
+            String::new(),
+            crate::cautions::WORK_ORDER.to_string(),
         ])
         .map_err(io)?;
     }

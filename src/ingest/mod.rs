@@ -5,6 +5,7 @@
 //! and duplicates, and measures every edge on the ellipsoid. Nothing after this stage touches files.
 
 pub mod attach;
+pub mod attribution;
 pub mod cleanup;
 pub mod coords;
 pub mod cost_table;
@@ -23,6 +24,7 @@ pub mod shapefile;
 pub mod shapeset;
 pub mod sites;
 pub mod source;
+pub mod structures;
 pub mod value;
 pub mod zones;
 

@@ -1,5 +1,6 @@
 //! Reading a road centerline layer into flat arrays of line parts.
 
+pub use super::crs::crs_member;
 use super::crs::{Crs, LengthRule};
 use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
@@ -39,6 +40,11 @@ pub struct RoadSettings {
     pub cost_table_file: Option<std::path::PathBuf>,
     /// Features kept or dropped by field values, applied in order.
     pub filters: Vec<super::cost_table::RoadFilter>,
+    /// Property saying whether a road is on a bridge, culvert or tunnel; `None` reads the common
+    /// fields ([`super::structures::FIELDS`]).
+    pub structure_field: Option<String>,
+    /// Attribution the data's source asks for (`--attribution`); OpenStreetMap's is added itself.
+    pub attribution: Option<String>,
 }
 
 impl RoadSettings {
@@ -53,6 +59,8 @@ impl RoadSettings {
         w.extend(self.cost_table.class_field.clone());
         w.extend(self.filters.iter().map(|f| f.field.clone()));
         w.extend(LABEL_FIELDS.iter().map(|s| s.to_string()));
+        w.extend(super::structures::wanted(self.structure_field.as_deref()));
+        w.extend(super::attribution::OSM_FIELDS.iter().map(|s| s.to_string()));
         w
     }
 }
@@ -69,6 +77,8 @@ impl Default for RoadSettings {
             cost_table: Default::default(),
             cost_table_file: None,
             filters: Vec::new(),
+            structure_field: None,
+            attribution: None,
         }
     }
 }
@@ -143,6 +153,8 @@ pub struct LineLayer {
     pub stats: ReadStats,
     /// Path, size and fingerprint of the input.
     pub input: Option<InputRecord>,
+    /// True when some feature carries a field only OpenStreetMap exports have (`osm_id`, `@id`).
+    pub osm_fields: bool,
 }
 
 impl LineLayer {
@@ -231,6 +243,7 @@ fn check_fields(
     named.extend(settings.category_field.iter());
     named.extend(settings.cost_table.class_field.iter());
     named.extend(settings.filters.iter().map(|f| &f.field));
+    named.extend(settings.structure_field.iter());
     match named.into_iter().find(|n| !seen.contains(*n)) {
         Some(missing) => Err(IngestError::Feature {
             path: path.to_path_buf(),
@@ -537,7 +550,9 @@ pub(super) fn add_feature(
         damage,
         category: category.map(String::into_boxed_str),
         label: label.map(String::into_boxed_str),
+        structure: super::structures::of(&f, settings.structure_field.as_deref()),
     });
+    layer.osm_fields |= super::attribution::OSM_FIELDS.iter().any(|k| f.prop(k).is_some());
     for part in c.part_slices() {
         layer.coords.extend_from_slice(part);
         layer.part_ends.push(layer.coords.len());
@@ -561,42 +576,4 @@ pub(super) fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings
         .iter()
         .find_map(|k| f.prop(k).filter(|v| usable(v)))
         .cloned()
-}
-
-/// The CRS of a legacy GeoJSON `crs` member: WGS84 when absent, the named EPSG code when it names
-/// one, an error otherwise.
-pub fn crs_member(path: &Path, crs: Option<&Value>) -> Result<Crs, IngestError> {
-    let Some(crs) = crs.filter(|c| !c.is_null()) else {
-        return Ok(Crs::wgs84());
-    };
-    let name = crs
-        .pointer("/properties/name")
-        .and_then(Value::as_str)
-        .unwrap_or("");
-    let lonlat = [
-        "urn:ogc:def:crs:OGC:1.3:CRS84",
-        "urn:ogc:def:crs:OGC::CRS84",
-        "CRS84",
-    ];
-    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
-        return Ok(Crs::wgs84());
-    }
-    let code = name
-        .rsplit([':', '/'])
-        .next()
-        .filter(|_| name.to_ascii_uppercase().contains("EPSG"))
-        .and_then(|c| c.parse::<u32>().ok());
-    match code {
-        Some(c) => Crs::from_epsg(c).map_err(|message| IngestError::Crs {
-            path: path.to_path_buf(),
-            message: format!("the layer's crs member names {name}: {message}"),
-        }),
-        None => Err(IngestError::Crs {
-            path: path.to_path_buf(),
-            message: format!(
-                "the layer declares the coordinate reference system {crs}, which names no EPSG code; \
-                 give it with --crs EPSG:NNNN or reproject the layer to WGS84 longitude/latitude (RFC 7946)"
-            ),
-        }),
-    }
 }

@@ -28,6 +28,10 @@ pub struct ComponentFigures {
 pub struct CheckReport {
     /// Program name and version.
     pub tool: crate::export::summary::Tool,
+    /// Cautions (second, as in the plan's summary).
+    pub cautions: Vec<&'static str>,
+    /// The attribution the road data asks for (OpenStreetMap's, or `--attribution`), if any.
+    pub attribution: Option<String>,
     /// The road layer.
     pub inputs: Vec<crate::ingest::source::InputRecord>,
     /// Settings in force.
@@ -44,8 +48,6 @@ pub struct CheckReport {
     pub component_count: usize,
     /// Junctions with one edge, closed or not (dead ends).
     pub dangles: usize,
-    /// Cautions.
-    pub cautions: Vec<&'static str>,
 }
 
 /// Reads and nodes the roads, reporting crossings left apart too, and writes the check outputs.
@@ -70,6 +72,10 @@ pub fn run_check(
         ingest::roads::read_roads(roads, settings)?
     };
     let read = layer.stats.clone();
+    let attribution = ingest::attribution::attribution(
+        settings.attribution.as_deref(),
+        layer.osm_fields || ingest::attribution::osm_file(roads),
+    );
     let inputs: Vec<_> = layer.input.clone().into_iter().collect();
     let geodesy = crate::export::summary::Geodesy {
         input_crs: layer.crs_name.clone(),
@@ -114,6 +120,8 @@ pub fn run_check(
     });
     let report = CheckReport {
         tool: Default::default(),
+        cautions: crate::cautions::CAUTIONS.to_vec(),
+        attribution,
         inputs,
         settings: serde_json::json!({
             "snap_m": settings.snap_m,
@@ -127,14 +135,13 @@ pub fn run_check(
         dangles: degree.iter().filter(|&&d| d == 1).count(),
         counts: noding.clone(),
         read,
-        cautions: crate::cautions::CAUTIONS.to_vec(),
     };
     {
         let _s = progress.stage("writing outputs");
         let st = staging::Staging::begin(&out, force)?;
-        st.write("qa.geojson", |w| export::write_qa(w, &noding.qa_points))?;
+        st.write("qa.geojson", |w| export::write_qa(w, &noding.qa_points, report.attribution.as_deref()))?;
         st.write("network.geojson", |w| {
-            export::write_network(w, &net, &comps)
+            export::write_network(w, &net, &comps, report.attribution.as_deref())
         })?;
         st.write("summary.json", |w| {
             serde_json::to_writer_pretty(&mut *w, &report)?;

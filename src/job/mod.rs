@@ -205,6 +205,7 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
         note: layer.crs_note.clone(),
     };
     let mut inputs: Vec<_> = layer.input.clone().into_iter().collect();
+    let osm = layer.osm_fields || ingest::attribution::osm_file(&job.roads);
 
     let mut zone_figures = (0usize, 0usize);
     let (mut net, noding) = {
@@ -409,6 +410,14 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     summary.counts.edges_in_zones = zone_figures.1;
     summary.damage_reports = report_figures;
     summary.notes = notes.into_vec();
+    summary.attribution =
+        ingest::attribution::attribution(job.road_settings.attribution.as_deref(), osm);
+    summary.structures = Some(export::structures::figures(
+        &net,
+        &plan.edges,
+        &backup.as_ref().map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect()),
+        job.road_settings.structure_field.as_deref(),
+    ));
     summary.outputs = export::output_names(rows.is_some(), fragile.is_some(), backup.is_some());
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads

@@ -114,5 +114,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         },
         "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
         "sites_crs": ss.crs,
+        "structure_field": s.structure_field,
+        "attribution": s.attribution,
     })
 }

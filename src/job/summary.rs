@@ -70,6 +70,8 @@ pub fn build(
     };
     Summary {
         tool: Tool::default(),
+        cautions: crate::cautions::CAUTIONS.to_vec(),
+        attribution: None,
         inputs,
         fingerprint,
         settings: super::settings_json(job),
@@ -109,7 +111,7 @@ pub fn build(
         repair_length_m: round3(repair.iter().map(|e| e.length_m).sum()),
         plan_edges: plan.edges.len(),
         notes: Vec::new(),
-        cautions: crate::cautions::CAUTIONS.to_vec(),
+        structures: None,
     }
 }
 
