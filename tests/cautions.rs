@@ -96,6 +96,7 @@ fn the_picture_carries_the_short_paragraph_in_a_framed_band_below_the_map() {
     };
     let text: Vec<&str> = by_id("caution")
         .descendants()
+        .filter(|n| n.is_text())
         .filter_map(|n| n.text())
         .collect();
     assert_eq!(text.join(" "), SHORT);
@@ -136,8 +137,8 @@ fn every_subcommand_help_ends_with_the_cautions() {
 #[test]
 fn readme_carries_the_cautions_right_after_the_job() {
     let readme = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
-    // The job paragraph is the first; the cautions section follows it directly.
-    let after_job = readme.split("\n\n").nth(1).unwrap();
+    // The title, then the job paragraph; the cautions section follows it directly.
+    let after_job = readme.split("\n\n").nth(2).unwrap();
     assert_eq!(after_job, "## Cautions");
     let section = readme.split("## Cautions").nth(1).unwrap();
     let section = section.split("\n## ").next().unwrap();

@@ -57,8 +57,8 @@ fn value_text(v: &Value) -> Option<String> {
         other => other.to_string(),
     };
     let lower = t.to_lowercase();
-    (!NONE_VALUES.contains(&lower.as_str()) && lower.parse::<f64>().map_or(true, |x| x != 0.0))
-        .then_some(lower)
+    let zero = lower.parse::<f64>().is_ok_and(|x| x == 0.0);
+    (!NONE_VALUES.contains(&lower.as_str()) && !zero).then_some(lower)
 }
 
 /// The kind of structure a feature lies on (`bridge`, `tunnel`, `culvert`, or the value of a
