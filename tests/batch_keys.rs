@@ -184,7 +184,10 @@ fn fixture(d: &Path) {
             ("h", [[0.0, c], [0.001, c], [0.002, c]]),
             ("v", [[c, 0.0], [c, 0.001], [c, 0.002]]),
         ] {
-            let props = format!(r#"{{"rid":"{n}{i}","dmg":0.5,"cat":"debris","hw":"primary"}}"#);
+            let kind = if i == 0 { "bridge" } else { "no" };
+            let props = format!(
+                r#"{{"rid":"{n}{i}","dmg":0.5,"cat":"debris","hw":"primary","kind":"{kind}"}}"#
+            );
             f.push(line(&coords, &props));
         }
     }
