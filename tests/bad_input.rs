@@ -305,7 +305,12 @@ case!(structure_field_in_no_feature, |d| {
     plan_fails(
         &p,
         &["--structure-field", "span"],
-        &["spans.geojson", "\"span\"", "no feature has this property", "bridge"],
+        &[
+            "spans.geojson",
+            "\"span\"",
+            "no feature has this property",
+            "bridge",
+        ],
     );
 });
 

@@ -17,7 +17,13 @@ fn squeeze(s: &str) -> String {
 fn top_keys(text: &str) -> Vec<String> {
     text.lines()
         .filter(|l| l.starts_with("  \"") && !l.starts_with("   "))
-        .filter_map(|l| l.trim().strip_prefix('"')?.split('"').next().map(String::from))
+        .filter_map(|l| {
+            l.trim()
+                .strip_prefix('"')?
+                .split('"')
+                .next()
+                .map(String::from)
+        })
         .collect()
 }
 
@@ -39,7 +45,10 @@ fn layers_carry_cautions(dir: &Path) -> usize {
                 .collect();
             assert_eq!(got, CAUTIONS, "{}", p.display());
             let fc = read_fc(&p);
-            assert!(fc.foreign_members.is_some_and(|m| m.contains_key("cautions")));
+            assert!(
+                fc.foreign_members
+                    .is_some_and(|m| m.contains_key("cautions"))
+            );
             n += 1;
         }
     }
@@ -86,7 +95,11 @@ fn a_plan_carries_the_cautions_in_every_output() {
 fn the_picture_carries_the_short_paragraph_in_a_framed_band_below_the_map() {
     let d = tmp();
     let out = d.path().join("demo");
-    assert!(run(&["demo", "--out", out.to_str().unwrap(), "-q"]).status.success());
+    assert!(
+        run(&["demo", "--out", out.to_str().unwrap(), "-q"])
+            .status
+            .success()
+    );
     let svg = std::fs::read_to_string(out.join("plan.svg")).unwrap();
     let doc = roxmltree::Document::parse(&svg).unwrap();
     let by_id = |id: &str| {
@@ -110,7 +123,10 @@ fn the_picture_carries_the_short_paragraph_in_a_framed_band_below_the_map() {
         root.attribute("width").unwrap().parse().unwrap(),
         root.attribute("height").unwrap().parse().unwrap(),
     );
-    assert!(x > 0.0 && y > 0.0 && x + w < pw && y + h < ph, "inside the picture");
+    assert!(
+        x > 0.0 && y > 0.0 && x + w < pw && y + h < ph,
+        "inside the picture"
+    );
     // No road is drawn under the band.
     for id in ["network", "repairs", "plan-intact"] {
         for p in by_id(id).descendants().filter_map(|n| n.attribute("d")) {
@@ -124,7 +140,14 @@ fn the_picture_carries_the_short_paragraph_in_a_framed_band_below_the_map() {
 
 #[test]
 fn every_subcommand_help_ends_with_the_cautions() {
-    for cmd in [&[][..], &["plan"], &["demo"], &["check"], &["batch"], &["merge"]] {
+    for cmd in [
+        &[][..],
+        &["plan"],
+        &["demo"],
+        &["check"],
+        &["batch"],
+        &["merge"],
+    ] {
         let mut args = cmd.to_vec();
         args.push("--help");
         let o = run(&args);
@@ -136,7 +159,8 @@ fn every_subcommand_help_ends_with_the_cautions() {
 
 #[test]
 fn readme_carries_the_cautions_right_after_the_job() {
-    let readme = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    let readme =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
     // The title, then the job paragraph; the cautions section follows it directly.
     let after_job = readme.split("\n\n").nth(2).unwrap();
     assert_eq!(after_job, "## Cautions");
@@ -189,7 +213,10 @@ fn batch_summaries_carry_the_cautions_and_the_csv_stays_one_table() {
     for row in s["rows"].as_array().unwrap() {
         assert_eq!(row["attribution"], "Vale County GIS");
         let folder = out.join(row["folder"].as_str().unwrap());
-        assert_eq!(read_json(&folder.join("summary.json"))["attribution"], "Vale County GIS");
+        assert_eq!(
+            read_json(&folder.join("summary.json"))["attribution"],
+            "Vale County GIS"
+        );
     }
     // A CSV reader sees one table: every record as wide as the header, the caution in its column.
     let path = out.join("batch-summary.csv");

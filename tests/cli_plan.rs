@@ -111,7 +111,10 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
         .sum();
     assert!((total - s["total_cost"].as_f64().unwrap()).abs() < 1e-6);
     assert_eq!(s["cost_unit"], "repair-metre");
-    assert_eq!(s["cautions"].as_array().unwrap().len(), reknit::cautions::CAUTIONS.len());
+    assert_eq!(
+        s["cautions"].as_array().unwrap().len(),
+        reknit::cautions::CAUTIONS.len()
+    );
     for f in &net.features {
         for key in [
             "edge",

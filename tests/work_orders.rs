@@ -32,7 +32,10 @@ fn work_orders(out: &Path) -> Vec<HashMap<String, String>> {
     r.records()
         .map(|rec| {
             let rec = rec.unwrap();
-            h.iter().cloned().zip(rec.iter().map(String::from)).collect()
+            h.iter()
+                .cloned()
+                .zip(rec.iter().map(String::from))
+                .collect()
         })
         .collect()
 }
@@ -47,7 +50,14 @@ fn work_order_columns_follow_the_existing_ones() {
     let purpose = h.iter().position(|c| c == "purpose").unwrap();
     assert_eq!(
         h[purpose + 1..],
-        ["work_order", "structure", "status", "verified_by", "verified_on", "caution"]
+        [
+            "work_order",
+            "structure",
+            "status",
+            "verified_by",
+            "verified_on",
+            "caution"
+        ]
     );
     for row in work_orders(&out) {
         assert!(row["work_order"].starts_with("WO-"));
@@ -66,7 +76,9 @@ fn work_orders_are_unique_on_many_split_roads_and_match_the_map() {
     // Many OSM ways are split at junctions into several pieces: the keys must still differ.
     let mut pieces: HashMap<String, usize> = HashMap::new();
     for f in &net {
-        *pieces.entry(f["properties"]["source_id"].to_string()).or_default() += 1;
+        *pieces
+            .entry(f["properties"]["source_id"].to_string())
+            .or_default() += 1;
     }
     let split = pieces.values().filter(|&&n| n >= 2).count();
     assert!(split > 500, "only {split} split roads");
@@ -79,7 +91,12 @@ fn work_orders_are_unique_on_many_split_roads_and_match_the_map() {
     // The plan layer and the work orders name each edge alike.
     let by_edge: HashMap<i64, &str> = net
         .iter()
-        .map(|f| (f["properties"]["edge"].as_i64().unwrap(), f["properties"]["work_order"].as_str().unwrap()))
+        .map(|f| {
+            (
+                f["properties"]["edge"].as_i64().unwrap(),
+                f["properties"]["work_order"].as_str().unwrap(),
+            )
+        })
         .collect();
     for f in features(&out.join("plan.geojson")) {
         let e = f["properties"]["edge"].as_i64().unwrap();
@@ -129,7 +146,8 @@ fn work_orders_survive_a_re_plan_with_other_roads_and_new_damage() {
         if i % 40 == 7 {
             continue;
         }
-        f["properties"]["damage"] = [json!("closed"), json!(0.0), json!(0.3), json!(1.0)][i % 4].clone();
+        f["properties"]["damage"] =
+            [json!("closed"), json!(0.0), json!(0.3), json!(1.0)][i % 4].clone();
         kept.push(f.clone());
     }
     *fs = kept;
@@ -165,7 +183,14 @@ fn structures_are_flagged_from_osm_bridge_and_tunnel_tags() {
         if yes("bridge") {
             tagged.insert(id, "bridge");
         } else if yes("tunnel") {
-            tagged.insert(id, if p["tunnel"] == "culvert" { "culvert" } else { "tunnel" });
+            tagged.insert(
+                id,
+                if p["tunnel"] == "culvert" {
+                    "culvert"
+                } else {
+                    "tunnel"
+                },
+            );
         }
     }
     assert!(tagged.len() > 100, "{} tagged ways", tagged.len());
@@ -184,7 +209,10 @@ fn structures_are_flagged_from_osm_bridge_and_tunnel_tags() {
             flagged.insert(id, s.to_string());
             flagged_edges += 1;
         } else {
-            assert!(!tagged.contains_key(&id), "way {id} is tagged but a piece is not flagged");
+            assert!(
+                !tagged.contains_key(&id),
+                "way {id} is tagged but a piece is not flagged"
+            );
         }
     }
     let expected: BTreeMap<i64, String> = tagged
@@ -254,7 +282,14 @@ fn osm_derived_outputs_carry_the_osm_attribution() {
     assert!(html.contains(OSM));
     // check reads the same fields.
     let chk = d.path().join("c");
-    let o = run(&["check", "--roads", data(LI).to_str().unwrap(), "--out", chk.to_str().unwrap(), "-q"]);
+    let o = run(&[
+        "check",
+        "--roads",
+        data(LI).to_str().unwrap(),
+        "--out",
+        chk.to_str().unwrap(),
+        "-q",
+    ]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(read_json(&chk.join("summary.json"))["attribution"], OSM);
     assert_eq!(read_json(&chk.join("network.geojson"))["attribution"], OSM);
@@ -265,13 +300,27 @@ fn other_sources_are_attributed_only_when_asked() {
     let d = tmp();
     let plain = d.path().join("plain");
     plan(&sample_roads(), &plain, &[]);
-    assert_eq!(read_json(&plain.join("summary.json"))["attribution"], Value::Null);
-    assert!(read_json(&plain.join("plan.geojson")).get("attribution").is_none());
+    assert_eq!(
+        read_json(&plain.join("summary.json"))["attribution"],
+        Value::Null
+    );
+    assert!(
+        read_json(&plain.join("plan.geojson"))
+            .get("attribution")
+            .is_none()
+    );
     let given = d.path().join("given");
-    plan(&sample_roads(), &given, &["--attribution", "Vale County <GIS> & partners"]);
+    plan(
+        &sample_roads(),
+        &given,
+        &["--attribution", "Vale County <GIS> & partners"],
+    );
     let text = "Vale County <GIS> & partners";
     assert_eq!(read_json(&given.join("summary.json"))["attribution"], text);
-    assert_eq!(read_json(&given.join("network.geojson"))["attribution"], text);
+    assert_eq!(
+        read_json(&given.join("network.geojson"))["attribution"],
+        text
+    );
     let svg = std::fs::read_to_string(given.join("plan.svg")).unwrap();
     assert!(svg.contains("Vale County &lt;GIS&gt; &amp; partners"));
     // With OSM data, the given text comes first and OSM's licence line is kept.
@@ -290,8 +339,14 @@ fn a_named_structure_field_is_the_only_one_read() {
         d.path(),
         "r.geojson",
         &[
-            line(&[[0.0, 0.0], [0.001, 0.0]], r#"{"kind":"Culvert","bridge":"yes","damage":0.5}"#),
-            line(&[[0.001, 0.0], [0.002, 0.0]], r#"{"kind":"no","bridge":"yes","damage":0.5}"#),
+            line(
+                &[[0.0, 0.0], [0.001, 0.0]],
+                r#"{"kind":"Culvert","bridge":"yes","damage":0.5}"#,
+            ),
+            line(
+                &[[0.001, 0.0], [0.002, 0.0]],
+                r#"{"kind":"no","bridge":"yes","damage":0.5}"#,
+            ),
         ],
     );
     let out = d.path().join("o");

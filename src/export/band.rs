@@ -60,14 +60,24 @@ pub fn write_band<W: Write>(
         .enumerate()
     {
         let dy = if i == 0 { 0.0 } else { LINE_H };
-        write!(w, r#"<tspan x="{}" dy="{dy}">{}</tspan>"#, x + 12.0, xml(line))?;
+        write!(
+            w,
+            r#"<tspan x="{}" dy="{dy}">{}</tspan>"#,
+            x + 12.0,
+            xml(line)
+        )?;
     }
     writeln!(w, "</text>")?;
     if let Some(a) = attribution {
         // A long attribution is cut on the picture only; summary.json, the layers and the report
         // carry it whole.
         let mut line = wrap(a, LINE_CHARS).into_iter().next().unwrap_or_default();
-        if line.chars().count() < a.split_whitespace().collect::<Vec<_>>().join(" ").chars().count()
+        if line.chars().count()
+            < a.split_whitespace()
+                .collect::<Vec<_>>()
+                .join(" ")
+                .chars()
+                .count()
         {
             line.push_str(" …");
         }

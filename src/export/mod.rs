@@ -219,10 +219,14 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         })?;
     }
     if let Some(b) = o.backup {
-        st.write("backup.geojson", |w| backup::write_backup(w, o.net, b, &ids, attribution))?;
+        st.write("backup.geojson", |w| {
+            backup::write_backup(w, o.net, b, &ids, attribution)
+        })?;
     }
     if let Some(rows) = o.sites {
-        st.write("sites.geojson", |w| sites::write_sites(w, rows, attribution))?;
+        st.write("sites.geojson", |w| {
+            sites::write_sites(w, rows, attribution)
+        })?;
     }
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;

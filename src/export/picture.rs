@@ -80,7 +80,8 @@ pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
         ((hi[1] - lo[1]) * my).max(1.0),
     ];
     // The legend keeps the right-hand 280 px.
-    let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0 - super::band::HEIGHT) / span[1]);
+    let scale = ((W - 2.0 * MARGIN - 280.0) / span[0])
+        .min((H - 2.0 * MARGIN - 80.0 - super::band::HEIGHT) / span[1]);
     let n = net.edges.len().max(1) as f64;
     Frame {
         lo,

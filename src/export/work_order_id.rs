@@ -166,14 +166,25 @@ mod tests {
         let keys: Vec<String> = (0..5).map(|e| ids.key(&n, e)).collect();
         assert_eq!(
             keys,
-            ["WO-42-0-100", "WO-42-100-151", "WO-#1-0-10", "WO-a%2Fb-0-5", "WO-42/2-0-7"]
+            [
+                "WO-42-0-100",
+                "WO-42-100-151",
+                "WO-#1-0-10",
+                "WO-a%2Fb-0-5",
+                "WO-42/2-0-7"
+            ]
         );
     }
 
     #[test]
     fn ids_that_look_generated_cannot_collide() {
         let n = net(
-            &[None, Some(json!("#0")), Some(json!("x")), Some(json!("x/2"))],
+            &[
+                None,
+                Some(json!("#0")),
+                Some(json!("x")),
+                Some(json!("x/2")),
+            ],
             &[(0, 3.0), (1, 3.0), (2, 3.0), (2, 0.2), (2, 0.2), (3, 3.0)],
         );
         let ids = WorkOrderIds::new(&n);

@@ -552,7 +552,9 @@ pub(super) fn add_feature(
         label: label.map(String::into_boxed_str),
         structure: super::structures::of(&f, settings.structure_field.as_deref()),
     });
-    layer.osm_fields |= super::attribution::OSM_FIELDS.iter().any(|k| f.prop(k).is_some());
+    layer.osm_fields |= super::attribution::OSM_FIELDS
+        .iter()
+        .any(|k| f.prop(k).is_some());
     for part in c.part_slices() {
         layer.coords.extend_from_slice(part);
         layer.part_ends.push(layer.coords.len());

@@ -104,7 +104,10 @@ mod tests {
 
     fn feature(props: &[(&str, Value)]) -> RawFeature {
         RawFeature {
-            props: props.iter().map(|(k, v)| (k.to_string(), v.clone())).collect(),
+            props: props
+                .iter()
+                .map(|(k, v)| (k.to_string(), v.clone()))
+                .collect(),
             ..Default::default()
         }
     }
@@ -122,9 +125,15 @@ mod tests {
             (vec![("is_bridge", json!(0))], None),
             (vec![("is_culvert", json!(true))], Some("culvert")),
             (vec![("is_tunnel", json!(false))], None),
-            (vec![("structure", json!("Retaining wall"))], Some("retaining wall")),
+            (
+                vec![("structure", json!("Retaining wall"))],
+                Some("retaining wall"),
+            ),
             (vec![("structure", json!("N"))], None),
-            (vec![("bridge", json!("yes")), ("tunnel", json!("yes"))], Some("bridge+tunnel")),
+            (
+                vec![("bridge", json!("yes")), ("tunnel", json!("yes"))],
+                Some("bridge+tunnel"),
+            ),
             (vec![("layer", json!("1"))], None),
         ];
         for (props, want) in cases {

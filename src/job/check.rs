@@ -139,7 +139,9 @@ pub fn run_check(
     {
         let _s = progress.stage("writing outputs");
         let st = staging::Staging::begin(&out, force)?;
-        st.write("qa.geojson", |w| export::write_qa(w, &noding.qa_points, report.attribution.as_deref()))?;
+        st.write("qa.geojson", |w| {
+            export::write_qa(w, &noding.qa_points, report.attribution.as_deref())
+        })?;
         st.write("network.geojson", |w| {
             export::write_network(w, &net, &comps, report.attribution.as_deref())
         })?;

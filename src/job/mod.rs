@@ -415,7 +415,9 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
     summary.structures = Some(export::structures::figures(
         &net,
         &plan.edges,
-        &backup.as_ref().map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect()),
+        &backup
+            .as_ref()
+            .map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect()),
         job.road_settings.structure_field.as_deref(),
     ));
     summary.outputs = export::output_names(rows.is_some(), fragile.is_some(), backup.is_some());
