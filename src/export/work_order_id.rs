@@ -22,8 +22,8 @@ pub struct WorkOrderIds {
     start_m: Vec<f64>,
     /// For each feature: 1 for the first feature with its id, k for the k-th (0: no id).
     occurrence: Vec<u32>,
-    /// For each edge: 1, or k for the k-th piece of its road with the same rounded span.
-    repeat: Vec<u32>,
+    /// k for the k-th piece of its road with the same rounded span (k ≥ 2; absent for the rest).
+    repeat: FxHashMap<u32, u32>,
 }
 
 /// The id text of a feature as written, when it has one.
@@ -46,34 +46,46 @@ impl WorkOrderIds {
                 s
             })
             .collect();
-        // Repeated ids, exactly: a map keyed by the text.
-        let mut seen: FxHashMap<String, u32> = FxHashMap::default();
-        let occurrence = net
-            .features
-            .iter()
-            .map(|f| match f.source_id.as_ref().and_then(id_text) {
-                Some(t) => {
-                    let n = seen.entry(t).or_insert(0);
+        // Repeated ids, exactly, in little memory: a map from the text's hash to the first
+        // feature with it and the count; a text whose hash an earlier, different text took is
+        // counted in a map keyed by the text itself (rare: only on a 64-bit hash collision).
+        let hash = |t: &str| {
+            use std::hash::{BuildHasher, BuildHasherDefault};
+            BuildHasherDefault::<crate::fxhash::FxHasher>::default().hash_one(t)
+        };
+        let text_of = |i: usize| net.features[i].source_id.as_ref().and_then(id_text);
+        let mut seen: FxHashMap<u64, (u32, u32)> = FxHashMap::default();
+        let mut collided: FxHashMap<String, u32> = FxHashMap::default();
+        let occurrence = (0..net.features.len())
+            .map(|i| {
+                let Some(t) = text_of(i) else { return 0 };
+                let (first, n) = seen.entry(hash(&t)).or_insert((i as u32, 0));
+                if *first as usize == i || text_of(*first as usize).as_deref() == Some(t.as_str()) {
                     *n += 1;
                     *n
+                } else {
+                    let c = collided.entry(t).or_insert(0);
+                    *c += 1;
+                    *c
                 }
-                None => 0,
             })
             .collect();
-        drop(seen);
+        drop((seen, collided));
+        // Two pieces of one road can share rounded spans only when both are under a metre (the
+        // later starts where the earlier ends or beyond): only those are counted.
         let mut spans: FxHashMap<(u32, i64, i64), u32> = FxHashMap::default();
-        let repeat = net
-            .edges
-            .iter()
-            .zip(&start_m)
-            .map(|(e, &s)| {
+        let mut repeat: FxHashMap<u32, u32> = FxHashMap::default();
+        for (i, (e, &s)) in net.edges.iter().zip(&start_m).enumerate() {
+            if e.length_m < 1.0 {
                 let n = spans
                     .entry((e.feature, metres(s), metres(s + e.length_m)))
                     .or_insert(0);
                 *n += 1;
-                *n
-            })
-            .collect();
+                if *n > 1 {
+                    repeat.insert(i as u32, *n);
+                }
+            }
+        }
         WorkOrderIds {
             start_m,
             occurrence,
@@ -105,8 +117,7 @@ impl WorkOrderIds {
         }
         let s = self.start_m[e as usize];
         k.push_str(&format!("-{}-{}", metres(s), metres(s + edge.length_m)));
-        let r = self.repeat[e as usize];
-        if r > 1 {
+        if let Some(r) = self.repeat.get(&e) {
             k.push_str(&format!("+{r}"));
         }
         k
