@@ -127,6 +127,22 @@ fn the_picture_carries_the_short_paragraph_in_a_framed_band_below_the_map() {
         x > 0.0 && y > 0.0 && x + w < pw && y + h < ph,
         "inside the picture"
     );
+    // The PNG draws the same band: its frame colour on the top edge, its fill inside.
+    let png = resvg::tiny_skia::Pixmap::load_png(out.join("plan.png")).unwrap();
+    let px = |x: f64, y: f64| {
+        let p = png.pixel(x as u32, y as u32).unwrap();
+        [p.red(), p.green(), p.blue()]
+    };
+    assert_eq!(
+        px(x + w / 2.0, y),
+        [0x8c, 0x2d, 0x04],
+        "band frame in the PNG"
+    );
+    assert_eq!(
+        px(x + w - 20.0, y + h - 8.0),
+        [0xff, 0xf4, 0xec],
+        "band fill in the PNG"
+    );
     // No road is drawn under the band.
     for id in ["network", "repairs", "plan-intact"] {
         for p in by_id(id).descendants().filter_map(|n| n.attribute("d")) {
