@@ -13,6 +13,7 @@ pub mod damage;
 pub mod geodesy;
 pub mod geojson;
 pub mod limits;
+pub mod members;
 pub mod noding;
 pub mod qa;
 pub mod repair;
