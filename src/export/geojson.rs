@@ -284,6 +284,17 @@ fn push_digits(buf: &mut String, mut v: u64, width: usize) {
     buf.push_str(std::str::from_utf8(&tmp[i..]).unwrap_or("0"));
 }
 
+/// A number for any output, shown with exactly `.1` decimals: the one way figures are written
+/// into SVG, HTML and messages, so nothing that rounds to zero prints as `-0`.
+#[derive(Debug, Clone, Copy)]
+pub struct Fixed(pub f64, pub usize);
+
+impl std::fmt::Display for Fixed {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&fixed(self.0, self.1))
+    }
+}
+
 /// `x` with exactly `decimals` decimals; negative zero prints as zero.
 pub fn fixed(x: f64, decimals: usize) -> String {
     let mut s = String::new();

@@ -6,6 +6,7 @@
 //! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
 //! north arrow, the district name and the caution line. Line widths shrink as the network grows.
 
+use super::geojson::Fixed;
 use super::text::xml;
 use crate::network::Network;
 use crate::solve::order::Step;
@@ -148,7 +149,8 @@ pub fn write_svg<W2: Write>(
     // edges do not become a million elements.
     writeln!(
         w,
-        r##"<g id="network" fill="none" stroke-linecap="round" stroke="#c8c8c8" stroke-width="{base:.2}">"##
+        r##"<g id="network" fill="none" stroke-linecap="round" stroke="#c8c8c8" stroke-width="{}">"##,
+        Fixed(base, 2)
     )?;
     let usable: Vec<usize> = if lines {
         (0..net.edges.len())
@@ -181,8 +183,8 @@ pub fn write_svg<W2: Write>(
                 &mut w,
                 e,
                 &format!(
-                    r##"stroke="#8c2d04" stroke-width="{:.2}" stroke-dasharray="4 3""##,
-                    base * 1.2
+                    r##"stroke="#8c2d04" stroke-width="{}" stroke-dasharray="4 3""##,
+                    Fixed(base * 1.2, 2)
                 ),
             )?;
         }
@@ -197,7 +199,10 @@ pub fn write_svg<W2: Write>(
             path(
                 &mut w,
                 e as usize,
-                &format!(r##"stroke="#6e6e6e" stroke-width="{:.2}""##, base * 1.8),
+                &format!(
+                    r##"stroke="#6e6e6e" stroke-width="{}""##,
+                    Fixed(base * 1.8, 2)
+                ),
             )?;
         }
     }
@@ -210,9 +215,9 @@ pub fn write_svg<W2: Write>(
             &mut w,
             s.edge as usize,
             &format!(
-                r#"stroke="{}" stroke-width="{:.2}""#,
+                r#"stroke="{}" stroke-width="{}""#,
                 colour(s.phase),
-                base * 3.0
+                Fixed(base * 3.0, 2)
             ),
         )?;
     }
@@ -233,22 +238,24 @@ pub fn write_svg<W2: Write>(
         if s.hub {
             writeln!(
                 w,
-                r##"<rect x="{:.1}" y="{:.1}" width="12" height="12" fill="#000000" stroke="#ffffff"/>"##,
-                x - 6.0,
-                y - 6.0
+                r##"<rect x="{}" y="{}" width="12" height="12" fill="#000000" stroke="#ffffff"/>"##,
+                Fixed(x - 6.0, 1),
+                Fixed(y - 6.0, 1)
             )?;
         } else {
             writeln!(
                 w,
-                r##"<circle cx="{x:.1}" cy="{y:.1}" r="5" fill="{fill}" stroke="#000000" stroke-width="1.5"/>"##
+                r##"<circle cx="{}" cy="{}" r="5" fill="{fill}" stroke="#000000" stroke-width="1.5"/>"##,
+                Fixed(x, 1),
+                Fixed(y, 1)
             )?;
         }
         if labelled.contains(&i) {
             writeln!(
                 w,
-                r##"<text x="{:.1}" y="{:.1}" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
-                x + 8.0,
-                y - 6.0,
+                r##"<text x="{}" y="{}" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
+                Fixed(x + 8.0, 1),
+                Fixed(y - 6.0, 1),
                 xml(s.label)
             )?;
         }
@@ -262,9 +269,9 @@ pub fn write_svg<W2: Write>(
     )?;
     writeln!(
         w,
-        r##"<g id="legend" font-size="13"><rect x="{:.0}" y="60" width="230" height="{:.0}" fill="#ffffff" stroke="#888888"/>"##,
-        W - 290.0,
-        120.0 + 20.0 * phases.min(6) as f64
+        r##"<g id="legend" font-size="13"><rect x="{}" y="60" width="230" height="{}" fill="#ffffff" stroke="#888888"/>"##,
+        Fixed(W - 290.0, 0),
+        Fixed(120.0 + 20.0 * phases.min(6) as f64, 0)
     )?;
     let lx = W - 280.0;
     let mut ly = 82.0;
@@ -330,11 +337,12 @@ pub fn write_svg<W2: Write>(
     };
     writeln!(
         w,
-        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{bar:.1}" height="6" fill="#000000"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{:.1}" y="{}" font-size="13">{label}</text></g>"##,
-        by - 6.0,
-        by - 10.0,
-        bx + bar - 20.0,
-        by - 10.0
+        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{}" height="6" fill="#000000"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{}" y="{}" font-size="13">{label}</text></g>"##,
+        Fixed(by - 6.0, 1),
+        Fixed(bar, 1),
+        Fixed(by - 10.0, 1),
+        Fixed(bx + bar - 20.0, 1),
+        Fixed(by - 10.0, 1)
     )?;
     writeln!(
         w,

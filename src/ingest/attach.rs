@@ -95,11 +95,15 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
                     .map(|s| foot(p, s.geom().from, s.geom().to, my, mx).0);
                 let failure = match closed {
                     Some(c) => format!(
-                        "only impassable roads within {max_attach_m} m (nearest at {c:.1} m)"
+                        "only impassable roads within {max_attach_m} m (nearest at {} m)",
+                        crate::export::geojson::Fixed(c, 1)
                     ),
                     None => match nearest {
                         Some(n) => {
-                            format!("no road within {max_attach_m} m (nearest about {n:.1} m away)")
+                            format!(
+                                "no road within {max_attach_m} m (nearest about {} m away)",
+                                crate::export::geojson::Fixed(n, 1)
+                            )
                         }
                         None => format!("no road within {max_attach_m} m"),
                     },

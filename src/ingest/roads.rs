@@ -5,6 +5,7 @@ use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
+use crate::export::geojson::Fixed;
 use crate::network::FeatureMeta;
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -336,8 +337,10 @@ pub fn finish_coordinates(
                     layer,
                     i,
                     format!(
-                        "to the next is {grid:.0} m in {} but {ground:.0} m on the ground: the coordinates are implausible for that CRS; check --crs and the layer's units",
-                        crs.name
+                        "to the next is {} m in {} but {} m on the ground: the coordinates are implausible for that CRS; check --crs and the layer's units",
+                        Fixed(grid, 0),
+                        crs.name,
+                        Fixed(ground, 0)
                     ),
                 ));
             }

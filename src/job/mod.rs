@@ -300,11 +300,11 @@ pub fn run_plan(job: &PlanJob, progress: &Progress) -> Result<Summary, JobError>
             notes.push(
                 "budget_limits_plan",
                 format!(
-                    "the full plan would cost {:.3} repair-metres, more than the budget of {b}: \
-                     the plan spends {:.3} on the sites giving the most priority per \
+                    "the full plan would cost {} repair-metres, more than the budget of {b}: \
+                     the plan spends {} on the sites giving the most priority per \
                      repair-metre, joined to the hub first",
-                    cost_to_repair_metres(cut.full_cost),
-                    cost_to_repair_metres(plan.total_cost)
+                    crate::export::geojson::Fixed(cost_to_repair_metres(cut.full_cost), 3),
+                    crate::export::geojson::Fixed(cost_to_repair_metres(plan.total_cost), 3)
                 ),
             );
         }
