@@ -265,6 +265,14 @@ fn no_negative_zero_from_negative_zero_damage_in_any_format() {
                 w.write_record(&r).unwrap();
             }
             drop(w);
+            // Spell it exactly "-0.0" in each record, whatever the writer made of the double.
+            let mut b = std::fs::read(&dbf).unwrap();
+            let header = u16::from_le_bytes([b[8], b[9]]) as usize;
+            for k in 0..lines.len() {
+                let at = header + k * 7 + 1;
+                b[at..at + 6].copy_from_slice(b"  -0.0");
+            }
+            std::fs::write(&dbf, b).unwrap();
             p
         };
         let sites = if sites_ext == "csv" {
@@ -331,3 +339,57 @@ fn figures_are_formatted_through_one_function() {
         "precision formats outside `Fixed`: {found:?}"
     );
 }
+
+case!(hostile_names_in_a_shapefile_road_layer, |d| {
+    // The text rules hold for names read from a dBASE table as for GeoJSON (tests/bad_streams.rs):
+    // control characters replaced in SVG, HTML and CSV; formula cells neutralised (OWASP "CSV
+    // Injection"); longitudes west of Greenwich written as they are.
+    use shapefile::dbase::{FieldName, FieldValue, Record, TableWriterBuilder};
+    let names = ["=HYPERLINK(\"x\")", "-Main\u{1b}[31m", "@Fen"];
+    let p = d.join("roads.shp");
+    let table = TableWriterBuilder::new()
+        .add_character_field(FieldName::try_from("name").unwrap(), 40)
+        .add_numeric_field(FieldName::try_from("damage").unwrap(), 6, 1);
+    let mut w = shapefile::Writer::from_path(&p, table).unwrap();
+    for (i, n) in names.iter().enumerate() {
+        let x = -0.01 + i as f64 * 0.001;
+        let pl = shapefile::Polyline::new(vec![
+            shapefile::Point::new(x, 0.0),
+            shapefile::Point::new(x + 0.001, 0.0),
+        ]);
+        let mut r = Record::default();
+        r.insert("name".into(), FieldValue::Character(Some(n.to_string())));
+        r.insert("damage".into(), FieldValue::Numeric(Some(0.5)));
+        w.write_shape_and_record(&pl, &r).unwrap();
+    }
+    drop(w);
+    std::fs::write(
+        p.with_extension("prj"),
+        r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#,
+    )
+    .unwrap();
+    let out = plan_ok(d, &["--roads", &s(&p), "--whole-network"]);
+    for name in ["plan.svg", "report.html", "work-orders.csv"] {
+        let text = std::fs::read_to_string(out.join(name)).unwrap();
+        let bad = text
+            .chars()
+            .find(|c| c.is_control() && !"\n\r\t".contains(*c));
+        assert_eq!(bad, None, "{name} holds a control character");
+    }
+    let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
+    let h = r.headers().unwrap().clone();
+    let col = |n: &str| h.iter().position(|x| x == n).unwrap();
+    let mut seen = Vec::new();
+    for rec in r.records().map(Result::unwrap) {
+        let road = &rec[col("road")];
+        assert!(road.starts_with('\''), "{road:?}");
+        seen.push(reknit::export::text::csv_text(road).to_string());
+        assert!(
+            rec[col("from_lon")].starts_with("-0.0"),
+            "{:?}",
+            &rec[col("from_lon")]
+        );
+    }
+    seen.sort();
+    assert_eq!(seen, ["-Main\u{FFFD}[31m", "=HYPERLINK(\"x\")", "@Fen"]);
+});

@@ -353,6 +353,47 @@ fn wkt_datum(wkt: &str) -> Option<String> {
     Some(rest[start..end].to_string())
 }
 
+/// The CRS of a legacy GeoJSON `crs` member: WGS84 when absent, the named EPSG code when it names
+/// one, an error otherwise.
+pub fn crs_member(
+    path: &std::path::Path,
+    crs: Option<&serde_json::Value>,
+) -> Result<Crs, super::IngestError> {
+    let Some(crs) = crs.filter(|c| !c.is_null()) else {
+        return Ok(Crs::wgs84());
+    };
+    let name = crs
+        .pointer("/properties/name")
+        .and_then(serde_json::Value::as_str)
+        .unwrap_or("");
+    let lonlat = [
+        "urn:ogc:def:crs:OGC:1.3:CRS84",
+        "urn:ogc:def:crs:OGC::CRS84",
+        "CRS84",
+    ];
+    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
+        return Ok(Crs::wgs84());
+    }
+    let code = name
+        .rsplit([':', '/'])
+        .next()
+        .filter(|_| name.to_ascii_uppercase().contains("EPSG"))
+        .and_then(|c| c.parse::<u32>().ok());
+    match code {
+        Some(c) => Crs::from_epsg(c).map_err(|message| super::IngestError::Crs {
+            path: path.to_path_buf(),
+            message: format!("the layer's crs member names {name}: {message}"),
+        }),
+        None => Err(super::IngestError::Crs {
+            path: path.to_path_buf(),
+            message: format!(
+                "the layer declares the coordinate reference system {crs}, which names no EPSG code; \
+                 give it with --crs EPSG:NNNN or reproject the layer to WGS84 longitude/latitude (RFC 7946)"
+            ),
+        }),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

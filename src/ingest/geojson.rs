@@ -170,7 +170,7 @@ where
             // Valid JSON by now; a name twice inside it is refused as in a feature.
             if let Err(m) = std::str::from_utf8(text)
                 .map_err(|e| e.to_string())
-                .and_then(|t| super::members::unique(t))
+                .and_then(super::members::unique)
             {
                 return Err(ReadFailure::Syntax {
                     message: format!("inside \"{key}\": {m}"),

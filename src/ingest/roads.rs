@@ -193,7 +193,7 @@ pub fn read_geojson_roads(
             path: path.clone(),
             message,
         })?,
-        None => crs_member(&path, info.crs.as_ref())?,
+        None => super::crs::crs_member(&path, info.crs.as_ref())?,
     };
     let (sha256, bytes) =
         super::source::HashingReader::finish_buffered(reader).map_err(|source| {
@@ -564,42 +564,4 @@ pub(super) fn feature_id(f: &super::geojson::RawFeature, settings: &RoadSettings
         .iter()
         .find_map(|k| f.prop(k).filter(|v| usable(v)))
         .cloned()
-}
-
-/// The CRS of a legacy GeoJSON `crs` member: WGS84 when absent, the named EPSG code when it names
-/// one, an error otherwise.
-pub fn crs_member(path: &Path, crs: Option<&Value>) -> Result<Crs, IngestError> {
-    let Some(crs) = crs.filter(|c| !c.is_null()) else {
-        return Ok(Crs::wgs84());
-    };
-    let name = crs
-        .pointer("/properties/name")
-        .and_then(Value::as_str)
-        .unwrap_or("");
-    let lonlat = [
-        "urn:ogc:def:crs:OGC:1.3:CRS84",
-        "urn:ogc:def:crs:OGC::CRS84",
-        "CRS84",
-    ];
-    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
-        return Ok(Crs::wgs84());
-    }
-    let code = name
-        .rsplit([':', '/'])
-        .next()
-        .filter(|_| name.to_ascii_uppercase().contains("EPSG"))
-        .and_then(|c| c.parse::<u32>().ok());
-    match code {
-        Some(c) => Crs::from_epsg(c).map_err(|message| IngestError::Crs {
-            path: path.to_path_buf(),
-            message: format!("the layer's crs member names {name}: {message}"),
-        }),
-        None => Err(IngestError::Crs {
-            path: path.to_path_buf(),
-            message: format!(
-                "the layer declares the coordinate reference system {crs}, which names no EPSG code; \
-                 give it with --crs EPSG:NNNN or reproject the layer to WGS84 longitude/latitude (RFC 7946)"
-            ),
-        }),
-    }
 }
