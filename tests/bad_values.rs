@@ -433,6 +433,43 @@ case!(dbf_numeric_overflow_marker, |d| {
         &["--damage-field", "dmg"],
         &["roads.dbf", "feature 1", "\"dmg\"", "overflow"],
     );
+    // Sites (as priorities) and zones (as factors) are read through the same rule.
+    let r = d.join("ok");
+    std::fs::create_dir(&r).unwrap();
+    let roads = three_roads(&r);
+    let pt = |x: f64| shapefile::Point::new(x * M, 0.0);
+    let sites = write_set(d, "sites.shp", &[pt(0.0), pt(100.0)]);
+    let zones = write_set(d, "zones.shp", &[square(0.0, 5.0), square(40.0, 5.0)]);
+    for (layer, flags) in [
+        (
+            sites,
+            ["--sites", "--priority-field", "--site-id-field", "id"],
+        ),
+        (
+            zones,
+            [
+                "--damage-zones",
+                "--zone-damage-field",
+                "--zones-crs",
+                "EPSG:4326",
+            ],
+        ),
+    ] {
+        // Record 1's v (after the flag byte and the 10-byte id) becomes all '*'.
+        let dbf = layer.with_extension("dbf");
+        let mut b = std::fs::read(&dbf).unwrap();
+        let header = u16::from_le_bytes([b[8], b[9]]) as usize;
+        let record = u16::from_le_bytes([b[10], b[11]]) as usize;
+        let at = header + record + 1 + 10;
+        b[at..at + 8].copy_from_slice(b"********");
+        std::fs::write(&dbf, b).unwrap();
+        let name = dbf.file_name().unwrap().to_str().unwrap().to_string();
+        plan_fails(
+            &roads,
+            &[flags[0], &s(&layer), flags[1], "v", flags[2], flags[3]],
+            &[&name, "feature 1", "\"v\"", "overflow"],
+        );
+    }
 });
 
 case!(categories_differing_only_in_case, |d| {
