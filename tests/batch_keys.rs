@@ -121,7 +121,8 @@ fn cell(v: &str) -> String {
 #[test]
 fn every_key_applies_alike_wherever_it_is_given() {
     let d = tmp();
-    file(d.path(), "costs.toml", "[categories]\ndebris = 0.4\n");
+    // Classes only: [categories] mean something only with `category_field`.
+    file(d.path(), "costs.toml", "[classes]\nfield = \"hw\"\nprimary = 2\n");
     // Zones and reports in the base, so that the keys about them have something to apply to.
     let base = [
         ("name", "\"Vale\""),
@@ -239,11 +240,12 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
             t.to_string()
         }
     };
-    // Every key but those of a whole-network plan (backup links need a sites plan).
+    // Every key but those of a whole-network plan (backup links need a sites plan) and the
+    // damage field (the damage comes from `category_field` here).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
-        .filter(|(k, _)| *k != "whole_network" && *k != "mst")
+        .filter(|(k, _)| !["whole_network", "mst", "damage_field"].contains(k))
         .collect();
     let plan_out = d.path().join("plan-out");
     let mut args = vec![

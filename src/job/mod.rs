@@ -11,6 +11,7 @@ mod hub;
 mod joined;
 mod notes;
 pub mod options;
+pub mod record;
 mod resilience;
 mod rows;
 mod schedule;
@@ -22,7 +23,8 @@ pub mod summary;
 pub use fingerprint::{fingerprint, job_fingerprint};
 pub use joined::SiteReach;
 pub use options::{Options, RoadOptions};
-pub use settings::{build, settings_json};
+pub use record::settings_json;
+pub use settings::build;
 pub use status::SiteStatus;
 
 use crate::export::{self, ExportError, Summary};

@@ -1,5 +1,5 @@
 //! The settings of a job: every option checked once, before any input is read, into the typed
-//! [`PlanJob`] the stages take; and the record of them in `summary.json`.
+//! [`PlanJob`] the stages take (their record in `summary.json` is [`super::record`]).
 //!
 //! [`build`] is the only way to a `PlanJob`: `reknit plan`, `reknit demo` and every manifest
 //! district fill an [`Options`] and call it, so a setting is read and checked the same way wherever
@@ -29,9 +29,38 @@ fn check_crs(name: &'static str, crs: Option<&str>) -> Result<(), IngestError> {
     }
 }
 
-/// Reading and noding settings from their options: filters parsed, the cost table read, every
-/// range checked.
+/// Reading and noding settings from their options, for `reknit check`: options it would ignore
+/// refused, filters parsed, the cost table read, every range checked.
 pub fn road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
+    if let Some((name, why)) = road_ignored(o, false).into_iter().next() {
+        return Err(refuse(name, why));
+    }
+    typed_road_settings(o)
+}
+
+/// The road options given that the reading would ignore: the damage field and closed value
+/// when damage comes from a category (unless zones or reports read the closed value).
+fn road_ignored(o: &RoadOptions, later_damage: bool) -> Vec<(&'static str, &'static str)> {
+    let category = o.category_field.is_some();
+    let mut out = Vec::new();
+    if category && o.damage_field != "damage" {
+        out.push((
+            "--damage-field",
+            "with --category-field the damage comes from the category: leave one of them out",
+        ));
+    }
+    if category && o.closed_value != "closed" && !later_damage {
+        out.push((
+            "--closed-value",
+            "with --category-field a road is closed by its category (\"closed\" in the cost \
+             table): leave --closed-value out",
+        ));
+    }
+    out
+}
+
+/// Reading and noding settings from options already found to apply.
+fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
     let cost_table =
         CostTable::from_file(o.cost_table.as_deref()).map_err(|m| refuse("--cost-table", m))?;
     let mut filters = Vec::new();
@@ -42,6 +71,13 @@ pub fn road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
         for f in list {
             filters.push(RoadFilter::parse(f, keep).map_err(|m| refuse(name, m))?);
         }
+    }
+    if o.cost_table.is_some() && !cost_table.categories.is_empty() && o.category_field.is_none() {
+        return Err(refuse(
+            "--cost-table",
+            "its [categories] are read only with --category-field (the damage field holds \
+             factors): give --category-field, or leave [categories] out",
+        ));
     }
     check_crs("--crs", o.crs.as_deref())?;
     let s = RoadSettings {
@@ -66,8 +102,8 @@ pub fn road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
 /// Checks the options and turns them into the job every stage reads; the error names the
 /// setting by its flag (the manifest names it by its key).
 pub fn build(o: &Options) -> Result<PlanJob, IngestError> {
-    let road_settings = road_settings(&o.road)?;
     needs_input(o)?;
+    let road_settings = typed_road_settings(&o.road)?;
     check_crs("--zones-crs", o.zones_crs.as_deref())?;
     check_crs("--sites-crs", o.sites_crs.as_deref())?;
     let job = PlanJob {
@@ -175,10 +211,15 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
              --damage-points",
         ),
     ];
-    rules
+    let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
+    road_ignored(&o.road, later_damage)
         .into_iter()
-        .filter(|&(_, given, used, _)| given && !used)
-        .map(|(name, _, _, why)| (name, why))
+        .chain(
+            rules
+                .into_iter()
+                .filter(|&(_, given, used, _)| given && !used)
+                .map(|(name, _, _, why)| (name, why)),
+        )
         .collect()
 }
 
@@ -226,48 +267,4 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
         ));
     }
     Ok(())
-}
-
-/// Every setting of a job that can change its outputs, as recorded in `summary.json`.
-pub fn settings_json(job: &PlanJob) -> serde_json::Value {
-    let s = &job.road_settings;
-    let ss = &job.site_settings;
-    serde_json::json!({
-        "name": job.name,
-        "snap_m": s.snap_m,
-        "damage_field": s.damage.field,
-        "default_damage": s.damage.default,
-        "closed_value": s.damage.closed_value,
-        "id_field": s.id_field,
-        "mst": job.mst.name(),
-        "max_attach_m": job.max_attach_m,
-        "hub": job.hub,
-        "whole_network": job.whole_network,
-        "effort": job.effort.name(),
-        "site_id_field": ss.id_field,
-        "site_name_field": ss.name_field,
-        "priority_field": ss.priority_field,
-        "lon_column": ss.lon_column,
-        "lat_column": ss.lat_column,
-        "crs": s.crs,
-        "node_crossings": s.node_crossings,
-        "zone_damage_field": job.zone_damage.field,
-        "zones_crs": job.zones_crs,
-        "report_distance_m": job.report_distance_m,
-        "crew_capacity": job.crew_capacity,
-        "budget": job.budget,
-        "redundancy": job.redundancy,
-        "category_field": s.category_field,
-        "cost_table": {
-            "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
-                Some(f) => serde_json::json!(f),
-                None => serde_json::json!("closed"),
-            })).collect::<serde_json::Map<_, _>>(),
-            "class_field": s.cost_table.class_field,
-            "class_rates": s.cost_table.class_rates,
-            "class_default": s.cost_table.class_default,
-        },
-        "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
-        "sites_crs": ss.crs,
-    })
 }
