@@ -122,7 +122,11 @@ fn cell(v: &str) -> String {
 fn every_key_applies_alike_wherever_it_is_given() {
     let d = tmp();
     // Classes only: [categories] mean something only with `category_field`.
-    file(d.path(), "costs.toml", "[classes]\nfield = \"hw\"\nprimary = 2\n");
+    file(
+        d.path(),
+        "costs.toml",
+        "[classes]\nfield = \"hw\"\nprimary = 2\n",
+    );
     // Zones and reports in the base, so that the keys about them have something to apply to.
     let base = [
         ("name", "\"Vale\""),

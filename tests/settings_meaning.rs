@@ -89,16 +89,37 @@ case!(options_without_the_input_they_are_about, |d| {
     // Each would be accepted, recorded in summary.json's settings and have no effect.
     let roads = roads_ok(d);
     for (extra, needles) in [
-        (&["--max-attach", "100"][..], &["--max-attach", "--sites"][..]),
-        (&["--site-id-field", "code"], &["--site-id-field", "--sites"]),
-        (&["--site-name-field", "label"], &["--site-name-field", "--sites"]),
-        (&["--priority-field", "rank"], &["--priority-field", "--sites"]),
+        (
+            &["--max-attach", "100"][..],
+            &["--max-attach", "--sites"][..],
+        ),
+        (
+            &["--site-id-field", "code"],
+            &["--site-id-field", "--sites"],
+        ),
+        (
+            &["--site-name-field", "label"],
+            &["--site-name-field", "--sites"],
+        ),
+        (
+            &["--priority-field", "rank"],
+            &["--priority-field", "--sites"],
+        ),
         (&["--sites-crs", "EPSG:32633"], &["--sites-crs", "--sites"]),
         (&["--lon-column", "x"], &["--lon-column", "CSV"]),
         (&["--effort", "thorough"], &["--effort", "--sites"]),
-        (&["--zones-crs", "EPSG:32633"], &["--zones-crs", "--damage-zones"]),
-        (&["--report-distance", "10"], &["--report-distance", "--damage-points"]),
-        (&["--zone-damage-field", "z"], &["--zone-damage-field", "--damage-zones"]),
+        (
+            &["--zones-crs", "EPSG:32633"],
+            &["--zones-crs", "--damage-zones"],
+        ),
+        (
+            &["--report-distance", "10"],
+            &["--report-distance", "--damage-points"],
+        ),
+        (
+            &["--zone-damage-field", "z"],
+            &["--zone-damage-field", "--damage-zones"],
+        ),
     ] {
         plan_fails(&roads, extra, needles);
     }
@@ -120,7 +141,13 @@ case!(effort_with_whole_network, |d| {
     let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
     plan_fails(
         &roads,
-        &["--sites", &s(&sites), "--whole-network", "--effort", "quick"],
+        &[
+            "--sites",
+            &s(&sites),
+            "--whole-network",
+            "--effort",
+            "quick",
+        ],
         &["--effort", "--whole-network"],
     );
 });
@@ -141,7 +168,10 @@ case!(damage_field_with_category_field, |d| {
     let roads = file(
         d,
         "roads.geojson",
-        fc(&[&line(&[[0.0, 0.0], [0.001, 0.0]], r#"{"cat":"debris","dmg":0.2}"#)]),
+        fc(&[&line(
+            &[[0.0, 0.0], [0.001, 0.0]],
+            r#"{"cat":"debris","dmg":0.2}"#,
+        )]),
     );
     plan_fails(
         &roads,
@@ -206,7 +236,11 @@ fn a_manifest_default_applies_only_where_it_means_something() {
     for sub in ["m1", "m2"] {
         std::fs::create_dir_all(d.join(sub)).unwrap();
         roads_ok(&d.join(sub));
-        file(&d.join(sub), "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+        file(
+            &d.join(sub),
+            "sites.geojson",
+            fc(&[&site_feature("A", 0.0, 0.0)]),
+        );
     }
     let with_default = "[defaults]\neffort = \"quick\"\n\n[[district]]\nname = \"a\"\n\
                         roads = \"roads.geojson\"\nsites = \"sites.geojson\"\n\n[[district]]\n\
@@ -217,7 +251,9 @@ fn a_manifest_default_applies_only_where_it_means_something() {
     assert_eq!(read.districts[1].job.effort.name(), "normal");
     let in_district = "[[district]]\nname = \"b\"\nroads = \"roads.geojson\"\neffort = \"quick\"\n";
     let m = common::batch::manifest(&d.join("m2"), "m.toml", in_district);
-    let e = reknit::batch::manifest::read_manifest(&m).unwrap_err().to_string();
+    let e = reknit::batch::manifest::read_manifest(&m)
+        .unwrap_err()
+        .to_string();
     assert!(e.contains("\"effort\"") && e.contains("--sites"), "{e}");
 }
 
@@ -236,7 +272,11 @@ fn the_settings_record_names_only_settings_in_force() {
         read_json(&out.join("summary.json"))["settings"].clone()
     };
     let sites = settings(&[]);
-    assert_eq!(sites["mst"], serde_json::Value::Null, "a sites plan uses no spanning forest");
+    assert_eq!(
+        sites["mst"],
+        serde_json::Value::Null,
+        "a sites plan uses no spanning forest"
+    );
     assert_eq!(sites["effort"], "normal");
     assert_eq!(sites["max_attach_m"], 250.0);
     assert_eq!(sites["report_distance_m"], serde_json::Value::Null);

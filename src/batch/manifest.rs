@@ -133,7 +133,10 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
     // for it; a key given in the district itself must apply, or `build` refuses it.
     for (flag, _) in crate::job::settings::ignored(&options(&merged, e)?) {
         let key = flag.trim_start_matches('-').replace('-', "_");
-        if merged.get(key.as_str()).is_some_and(|(_, place)| *place != e.place) {
+        if merged
+            .get(key.as_str())
+            .is_some_and(|(_, place)| *place != e.place)
+        {
             merged.remove(key.as_str());
         }
     }

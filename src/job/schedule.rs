@@ -2,9 +2,9 @@
 
 use super::PlanJob;
 use crate::ingest::IngestError;
-use crate::network::Cost;
 use crate::ingest::attach::Attachment;
 use crate::ingest::sites::SiteLayer;
+use crate::network::Cost;
 use crate::solve::Plan;
 use crate::solve::order::Target;
 use crate::solve::site_plan::SitePlan;

@@ -72,7 +72,13 @@ fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
             filters.push(RoadFilter::parse(f, keep).map_err(|m| refuse(name, m))?);
         }
     }
-    if o.cost_table.is_some() && !cost_table.categories.is_empty() && o.category_field.is_none() {
+    // A table without [categories] keeps the documented default ones: only its own are refused
+    // (a copy of the defaults changes nothing either way).
+    if o.cost_table.is_some()
+        && !cost_table.categories.is_empty()
+        && cost_table.categories != CostTable::default().categories
+        && o.category_field.is_none()
+    {
         return Err(refuse(
             "--cost-table",
             "its [categories] are read only with --category-field (the damage field holds \
@@ -128,7 +134,10 @@ pub fn build(o: &Options) -> Result<PlanJob, IngestError> {
         zones: o.damage_zones.clone(),
         // Zones and reports read "closed" as the roads do; a zone without a value counts as 1.0.
         zone_damage: DamageRule {
-            field: o.zone_damage_field.clone().unwrap_or_else(|| "damage".into()),
+            field: o
+                .zone_damage_field
+                .clone()
+                .unwrap_or_else(|| "damage".into()),
             default: 1.0,
             closed_value: o.road.closed_value.clone(),
         },
@@ -161,14 +170,45 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
                            other sites are read by their geometry";
-    const SITES_PLAN: &str = "this option is about a sites plan: give --sites (and not --whole-network)";
+    const SITES_PLAN: &str =
+        "this option is about a sites plan: give --sites (and not --whole-network)";
     let rules: [(&'static str, bool, bool, &'static str); 15] = [
-        ("--hub", o.hub.is_some(), o.sites.is_some(), "the hub is one of the sites: give --sites"),
-        ("--max-attach", o.max_attach_m.is_some(), o.sites.is_some(), SITES),
-        ("--site-id-field", o.site_id_field.is_some(), o.sites.is_some(), SITES),
-        ("--site-name-field", o.site_name_field.is_some(), o.sites.is_some(), SITES),
-        ("--priority-field", o.priority_field.is_some(), o.sites.is_some(), SITES),
-        ("--sites-crs", o.sites_crs.is_some(), o.sites.is_some(), SITES),
+        (
+            "--hub",
+            o.hub.is_some(),
+            o.sites.is_some(),
+            "the hub is one of the sites: give --sites",
+        ),
+        (
+            "--max-attach",
+            o.max_attach_m.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--site-id-field",
+            o.site_id_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--site-name-field",
+            o.site_name_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--priority-field",
+            o.priority_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--sites-crs",
+            o.sites_crs.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
         ("--lon-column", o.lon_column.is_some(), csv_sites, COLUMNS),
         ("--lat-column", o.lat_column.is_some(), csv_sites, COLUMNS),
         (

@@ -50,8 +50,7 @@ pub(in crate::job) fn write(
     summary.damage_reports = p.built.report_figures.clone();
     summary.notes = notes.into_vec();
     let rows = sites.map(rows::site_rows);
-    summary.outputs =
-        export::output_names(rows.is_some(), p.fragile.is_some(), p.backup.is_some());
+    summary.outputs = export::output_names(rows.is_some(), p.fragile.is_some(), p.backup.is_some());
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
             .display_path()
