@@ -130,8 +130,11 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
         ));
     }
     // A default the district has no use for (`effort` for a whole-network district) is left out
-    // for it; a key given in the district itself must apply, or `build` refuses it.
-    for (flag, _) in crate::job::settings::ignored(&options(&merged, e)?) {
+    // for it, once its value is found valid; a key given in the district itself must apply, or
+    // `build` refuses it.
+    let all = options(&merged, e)?;
+    crate::job::settings::check_values(&all).map_err(|err| setting_error(err, &merged, e))?;
+    for (flag, _) in crate::job::settings::ignored(&all) {
         let key = flag.trim_start_matches('-').replace('-', "_");
         if merged
             .get(key.as_str())
@@ -140,7 +143,19 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
             merged.remove(key.as_str());
         }
     }
-    let job = crate::job::build(&options(&merged, e)?).map_err(|err| match err {
+    let job =
+        crate::job::build(&options(&merged, e)?).map_err(|err| setting_error(err, &merged, e))?;
+    Ok(District {
+        index,
+        folder: super::names::folder_name(&name),
+        name,
+        job,
+    })
+}
+
+/// A setting's error named by its key, and by where the value came from when not the district.
+fn setting_error(err: crate::ingest::IngestError, merged: &Merged, e: &Entry) -> String {
+    match err {
         crate::ingest::IngestError::Setting { name, message } => {
             let key = name.trim_start_matches('-').replace('-', "_");
             let from = match merged.get(key.as_str()) {
@@ -150,13 +165,7 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
             format!("{}: \"{key}\"{from}: {message}", e.place)
         }
         other => format!("{}: {other}", e.place),
-    })?;
-    Ok(District {
-        index,
-        folder: super::names::folder_name(&name),
-        name,
-        job,
-    })
+    }
 }
 
 /// Each key's value and where it was given (`[defaults]` or the district's own place).

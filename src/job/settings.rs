@@ -109,6 +109,17 @@ fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
 /// setting by its flag (the manifest names it by its key).
 pub fn build(o: &Options) -> Result<PlanJob, IngestError> {
     needs_input(o)?;
+    typed(o)
+}
+
+/// Checks every value's range and form, leaving aside whether this run uses it: a manifest checks
+/// its `[defaults]` this way before leaving out those a district has no use for.
+pub fn check_values(o: &Options) -> Result<(), IngestError> {
+    typed(o).map(|_| ())
+}
+
+/// The typed job, every value checked (the options found to apply).
+fn typed(o: &Options) -> Result<PlanJob, IngestError> {
     let road_settings = typed_road_settings(&o.road)?;
     check_crs("--zones-crs", o.zones_crs.as_deref())?;
     check_crs("--sites-crs", o.sites_crs.as_deref())?;
