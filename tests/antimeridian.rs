@@ -403,3 +403,104 @@ print(repr(g.Inverse(89.9999, 0.0, 89.9999, 180.0)['s12']))
         );
     }
 }
+
+#[test]
+fn sites_and_field_reports_reach_across_the_meridian() {
+    // A road just west of ±180° (179.9999°W to 179.999°W on 5°N) and one 111 m east of the
+    // meridian. A site and a field report at 179.99999°E lie about 12 m from the western road's
+    // end across the meridian and about 110 m from the eastern road: both belong to the western
+    // road (distances from memory: 0.0001° of longitude ≈ 11.1 m there).
+    let d = tmp();
+    let roads = write_collection(
+        d.path(),
+        "roads.geojson",
+        &[
+            lines(
+                &[vec![[-179.9999, 5.0], [-179.999, 5.0]]],
+                r#"{"damage":0}"#,
+            ),
+            lines(&[vec![[179.99, 5.0], [179.999, 5.0]]], r#"{"damage":0}"#),
+        ],
+    );
+    let sites = write_collection(
+        d.path(),
+        "sites.geojson",
+        &[
+            point([-179.9991, 5.00001], r#"{"id":"west"}"#),
+            point([179.99999, 4.99999], r#"{"id":"across"}"#),
+        ],
+    );
+    let reports = write_collection(
+        d.path(),
+        "reports.geojson",
+        &[point([179.99999, 5.00001], r#"{"damage":0.5}"#)],
+    );
+    let out = d.path().join("out");
+    let o = plan_cli(
+        &roads,
+        &out,
+        &[
+            "-q",
+            "--sites",
+            sites.to_str().unwrap(),
+            "--hub",
+            "west",
+            "--damage-points",
+            reports.to_str().unwrap(),
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let s = read_json(&out.join("summary.json"));
+    assert_eq!(s["damage_reports"]["applied"], 1, "{s}");
+    let damage = damage_by_road(&out);
+    assert_eq!(damage[&0], 0.5, "{damage:?}");
+    assert_eq!(damage[&1], 0.0, "{damage:?}");
+    assert_eq!(s["sites"]["connected"], 2, "{s}");
+    let rows = read_fc(&out.join("sites.geojson"));
+    for f in &rows.features {
+        let dist = f.property("attach_distance_m").and_then(|v| v.as_f64());
+        let lon = f.property("attach_lon").and_then(|v| v.as_f64());
+        assert!(dist.is_some_and(|x| x < 15.0), "{:?}", f.properties);
+        assert!(
+            lon.is_some_and(|x| (-180.0..-179.99).contains(&x)),
+            "{:?}",
+            f.properties
+        );
+    }
+}
+
+#[test]
+fn crossings_on_the_meridian_make_one_junction() {
+    // Three lines through (180°, 0°), each crossing the meridian without a vertex there: with
+    // --node-crossings they meet at one junction on the meridian (7 junctions, 6 edges), and no
+    // position of the network strays from the meridian's neighbourhood (read the long way round,
+    // each line would run through 0°).
+    let d = tmp();
+    let roads = [
+        lines(&[vec![[179.999, -0.001], [-179.999, 0.001]]], "{}"),
+        lines(&[vec![[179.999, 0.001], [-179.999, -0.001]]], "{}"),
+        lines(&[vec![[179.999, 0.0], [-179.999, 0.0]]], "{}"),
+    ];
+    let (out, s) = plan(
+        d.path(),
+        "cross",
+        &roads,
+        &["--whole-network", "--node-crossings"],
+    );
+    let (j, e, c, _) = figures(&s);
+    assert_eq!((j, e, c), (7, 6, 1), "{s}");
+    let text = std::fs::read_to_string(out.join("network.geojson")).unwrap();
+    let net: Value = serde_json::from_str(&text).unwrap();
+    let mut lons = Vec::new();
+    fn collect(v: &Value, out: &mut Vec<f64>) {
+        match v {
+            Value::Array(a) if a.len() == 2 && a[0].is_number() => out.push(a[0].as_f64().unwrap()),
+            Value::Array(a) => a.iter().for_each(|x| collect(x, out)),
+            _ => {}
+        }
+    }
+    for f in net["features"].as_array().unwrap() {
+        collect(&f["geometry"]["coordinates"], &mut lons);
+    }
+    assert!(lons.iter().all(|l| l.abs() >= 179.999), "{lons:?}");
+}

@@ -348,13 +348,21 @@ fn group_points(hits: &[Crossing]) -> (Vec<u32>, Vec<([f64; 2], usize)>) {
     let mut of = Vec::with_capacity(hits.len());
     for (h, hit) in hits.iter().enumerate() {
         let x = hit.6;
-        let (cx, cy) = (cell(x[0]), cell(x[1]));
-        let near = (-1..=1)
-            .flat_map(|dx| (-1..=1).map(move |dy| (cx + dx, cy + dy)))
+        // Cells by the longitude in [-180, 180); a point on the seam also looks a turn away.
+        let lon = wrap::canonical_lon(x[0]);
+        let (cx, cy) = (cell(lon), cell(x[1]));
+        let seam = [lon + 360.0, lon - 360.0]
+            .into_iter()
+            .filter(|l| (-180.0 - SAME_POINT_DEG..=180.0 + SAME_POINT_DEG).contains(l))
+            .map(cell);
+        let near = std::iter::once(cx)
+            .chain(seam)
+            .flat_map(|c| (-1..=1).flat_map(move |dx| (-1..=1).map(move |dy| (c + dx, cy + dy))))
             .filter_map(|k| grid.get(&k).copied())
             .find(|&i| {
                 let q = points[i as usize].0;
-                (q[0] - x[0]).abs() <= SAME_POINT_DEG && (q[1] - x[1]).abs() <= SAME_POINT_DEG
+                (wrap::near(q[0], x[0]) - x[0]).abs() <= SAME_POINT_DEG
+                    && (q[1] - x[1]).abs() <= SAME_POINT_DEG
             });
         let i = near.unwrap_or_else(|| {
             points.push((x, h));
