@@ -173,7 +173,7 @@ fn a_network_moved_across_the_meridian_plans_the_same() {
         [if west { lon } else { lon - 360.0 }, p[1]]
     };
     for (gap, snap) in [(0.0, "0"), (0.00002, "5")] {
-        let tag = format!("{snap}");
+        let tag = snap;
         let a = lattice(cut, gap, &here);
         let b = lattice(cut, gap, &there);
         let (_, sa) = plan(
