@@ -65,7 +65,8 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
     let mut cuts: BTreeMap<u32, Vec<Cut>> = BTreeMap::new();
     for (si, site) in sites.iter().enumerate() {
         let p = site.pos;
-        // Distances in the plane tangent at the site: true metres across ±180° and near the poles.
+        // Feet found in a frame at the site that wraps at ±180°; distances geodesic (true metres near
+        // the poles too).
         let frame = Frame::at(p);
         let (dlon, dlat) = wrap::reach_deg(max_attach_m, p[1].abs());
         let dlon = dlon.unwrap_or(360.0);

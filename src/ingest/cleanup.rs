@@ -80,7 +80,7 @@ pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, u
 
 /// True when every vertex of each polyline lies within `tol` metres of the other.
 fn within(a: &[[f64; 2]], b: &[[f64; 2]], tol: f64) -> bool {
-    // In the plane tangent at each vertex: true metres across ±180° and near the poles.
+    // Feet found in a frame at each vertex that wraps at ±180°; distances geodesic.
     let near = |p: [f64; 2], line: &[[f64; 2]]| {
         let frame = Frame::at(p);
         line.windows(2).any(|w| frame.foot(w[0], w[1]).0 <= tol)

@@ -157,7 +157,7 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
         .par_iter()
         .map(|&c| {
             let p = centres[c as usize];
-            // In the plane tangent at the end: true metres across ±180° and near the poles.
+            // Feet found in a frame at the end that wraps at ±180°; distances geodesic.
             let frame = Frame::at(p);
             let mut best: Option<Candidate> = None;
             let mut consider = |sp: u32, sk: u32| {
@@ -376,7 +376,8 @@ fn group_points(hits: &[Crossing]) -> (Vec<u32>, Vec<([f64; 2], usize)>) {
 }
 
 /// Proper crossing of segments a–b and c–d (not at their ends): fractions along each and the
-/// point, found in the plane tangent at `a` (so across ±180° and near the poles alike).
+/// point, found in a frame at `a` that wraps at ±180° (affine in lon/lat, so lines through one
+/// point still meet in one point).
 fn intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) -> Option<(f64, f64, [f64; 2])> {
     let frame = Frame::at(a);
     let (b2, c2, d2) = (frame.xy(b), frame.xy(c), frame.xy(d));
