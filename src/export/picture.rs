@@ -40,6 +40,8 @@ pub const SIZE: (u32, u32) = (W as u32, H as u32);
 
 /// The local frame: lon/lat to picture pixels, and line widths for the network's size.
 pub struct Frame {
+    /// Western longitudes drawn a turn east (+360°): set when the district straddles ±180°.
+    east: bool,
     lo: [f64; 2],
     mx: f64,
     my: f64,
@@ -51,8 +53,13 @@ pub struct Frame {
 impl Frame {
     /// Pixel position of a lon/lat point.
     pub fn px(&self, p: [f64; 2]) -> (f64, f64) {
+        let lon = if self.east && p[0] < 0.0 {
+            p[0] + 360.0
+        } else {
+            p[0]
+        };
         (
-            MARGIN + (p[0] - self.lo[0]) * self.mx * self.scale,
+            MARGIN + (lon - self.lo[0]) * self.mx * self.scale,
             H - MARGIN - 40.0 - (p[1] - self.lo[1]) * self.my * self.scale,
         )
     }
@@ -60,15 +67,24 @@ impl Frame {
 
 /// The frame that fits the network and the sites, leaving room for the legend.
 pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
-    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
-    for p in &net.geom {
-        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
-        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
-    }
-    for s in sites {
-        lo = [lo[0].min(s.pos[0]), lo[1].min(s.pos[1])];
-        hi = [hi[0].max(s.pos[0]), hi[1].max(s.pos[1])];
-    }
+    // The bounds as written and with western longitudes a turn east; a district across ±180° is
+    // narrower the second way, and is drawn so (its edges may step from 179.99 to -179.99).
+    let bounds = |east: bool| {
+        let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+        for &p in net.geom.iter().chain(sites.iter().map(|s| &s.pos)) {
+            let lon = if east && p[0] < 0.0 {
+                p[0] + 360.0
+            } else {
+                p[0]
+            };
+            lo = [lo[0].min(lon), lo[1].min(p[1])];
+            hi = [hi[0].max(lon), hi[1].max(p[1])];
+        }
+        (lo, hi)
+    };
+    let (plain, turned) = (bounds(false), bounds(true));
+    let east = turned.1[0] - turned.0[0] < plain.1[0] - plain.0[0];
+    let (mut lo, mut hi) = if east { turned } else { plain };
     if lo[0] > hi[0] {
         lo = [0.0, 0.0];
         hi = [1e-3, 1e-3];
@@ -84,6 +100,7 @@ pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
     let scale = ((W - 2.0 * MARGIN - 280.0) / span[0]).min((H - 2.0 * MARGIN - 80.0) / span[1]);
     let n = net.edges.len().max(1) as f64;
     Frame {
+        east,
         lo,
         mx,
         my,

@@ -6,6 +6,7 @@
 
 pub mod attach;
 pub mod cleanup;
+pub mod cluster;
 pub mod coords;
 pub mod cost_table;
 pub mod crs;
@@ -25,6 +26,7 @@ pub mod shapeset;
 pub mod sites;
 pub mod source;
 pub mod value;
+pub mod wrap;
 pub mod zones;
 
 use crate::network::Network;
