@@ -8,7 +8,7 @@ use reknit::{run_plan, sample};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-/// Run the plan on the bundled sample district (Kestrel Vale, invented) to see every output.
+/// Run the plan on the bundled sample district (Ombrevane, invented) to see every output.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
     /// Output folder (created if absent).

@@ -2,11 +2,13 @@
 //!
 //! A local equirectangular frame around the district's centre (x scaled by the cosine of the mean
 //! latitude, so shapes and the scale bar hold), the network in light grey, impassable roads dashed,
-//! repairs coloured by day-phase on a ramp of our own that keeps its order in lightness for
-//! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
-//! north arrow, the district name and the caution line. Line widths shrink as the network grows.
+//! repairs coloured by day-phase on the ramp of [`super::palette`] (darkest first, ordered in
+//! lightness for colour-blind readers and grey-scale print), sites as symbols with labels (thinned
+//! when many), a legend ([`super::legend`]), a scale bar, a north arrow, the district name and the
+//! caution line. Line widths shrink as the network grows.
 
 use super::geojson::Fixed;
+use super::palette::{self, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD};
 use super::text::xml;
 use crate::network::Network;
 use crate::solve::order::Step;
@@ -15,11 +17,6 @@ use std::io::{self, Write};
 const W: f64 = 1600.0;
 const H: f64 = 1200.0;
 const MARGIN: f64 = 60.0;
-
-/// Phase colours, dark to light (distinct in lightness as well as hue).
-const RAMP: [&str; 6] = [
-    "#3b1f5c", "#2c5d8a", "#1f8a8a", "#4fae5b", "#b7c83a", "#f2d64b",
-];
 
 /// A site to draw.
 pub struct SiteMark<'a> {
@@ -109,16 +106,6 @@ pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
     }
 }
 
-/// Colour of a day-phase out of `phases`.
-pub fn phase_colour(phase: u32, phases: u32) -> &'static str {
-    let i = if phases <= 1 {
-        0
-    } else {
-        ((phase - 1) as f64 / (phases - 1) as f64 * (RAMP.len() - 1) as f64).round() as usize
-    };
-    RAMP[i.min(RAMP.len() - 1)]
-}
-
 /// Writes the picture; with `lines` false only the overlay (sites, labels, legend, scale bar,
 /// north arrow, title, caution) on a transparent background, for the raster renderer.
 #[allow(clippy::too_many_arguments)]
@@ -143,7 +130,7 @@ pub fn write_svg<W2: Write>(
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="DejaVu Sans, Arial, sans-serif">"#
     )?;
     if lines {
-        writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
+        writeln!(w, r##"<rect width="100%" height="100%" fill="{PAPER}"/>"##)?;
     }
     let path = |w: &mut io::BufWriter<W2>, e: usize, style: &str| -> io::Result<()> {
         let mut d = String::with_capacity(64);
@@ -166,7 +153,7 @@ pub fn write_svg<W2: Write>(
     // edges do not become a million elements.
     writeln!(
         w,
-        r##"<g id="network" fill="none" stroke-linecap="round" stroke="#c8c8c8" stroke-width="{}">"##,
+        r##"<g id="network" fill="none" stroke-linecap="round" stroke="{ROAD}" stroke-width="{}">"##,
         Fixed(base, 2)
     )?;
     let usable: Vec<usize> = if lines {
@@ -200,7 +187,7 @@ pub fn write_svg<W2: Write>(
                 &mut w,
                 e,
                 &format!(
-                    r##"stroke="#8c2d04" stroke-width="{}" stroke-dasharray="4 3""##,
+                    r#"stroke="{IMPASSABLE}" stroke-width="{}" stroke-dasharray="4 3""#,
                     Fixed(base * 1.2, 2)
                 ),
             )?;
@@ -216,16 +203,13 @@ pub fn write_svg<W2: Write>(
             path(
                 &mut w,
                 e as usize,
-                &format!(
-                    r##"stroke="#6e6e6e" stroke-width="{}""##,
-                    Fixed(base * 1.8, 2)
-                ),
+                &format!(r#"stroke="{PLAN_INTACT}" stroke-width="{}""#, Fixed(base * 1.8, 2)),
             )?;
         }
     }
     writeln!(w, "</g>")?;
     let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
-    let colour = |phase: u32| phase_colour(phase, phases);
+    let colour = |phase: u32| palette::day_colour(phase, phases);
     writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round">"#)?;
     for s in steps_drawn {
         path(
@@ -251,18 +235,18 @@ pub fn write_svg<W2: Write>(
     writeln!(w, r#"<g id="sites" font-size="13">"#)?;
     for (i, s) in sites.iter().enumerate() {
         let (x, y) = px(s.pos);
-        let fill = if s.connected { "#000000" } else { "#ffffff" };
+        let fill = if s.connected { INK } else { PAPER };
         if s.hub {
             writeln!(
                 w,
-                r##"<rect x="{}" y="{}" width="12" height="12" fill="#000000" stroke="#ffffff"/>"##,
+                r##"<rect x="{}" y="{}" width="12" height="12" fill="{INK}" stroke="{PAPER}"/>"##,
                 Fixed(x - 6.0, 1),
                 Fixed(y - 6.0, 1)
             )?;
         } else {
             writeln!(
                 w,
-                r##"<circle cx="{}" cy="{}" r="5" fill="{fill}" stroke="#000000" stroke-width="1.5"/>"##,
+                r##"<circle cx="{}" cy="{}" r="5" fill="{fill}" stroke="{INK}" stroke-width="1.5"/>"##,
                 Fixed(x, 1),
                 Fixed(y, 1)
             )?;
@@ -270,7 +254,7 @@ pub fn write_svg<W2: Write>(
         if labelled.contains(&i) {
             writeln!(
                 w,
-                r##"<text x="{}" y="{}" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
+                r##"<text x="{}" y="{}" stroke="{PAPER}" stroke-width="3" paint-order="stroke">{}</text>"##,
                 Fixed(x + 8.0, 1),
                 Fixed(y - 6.0, 1),
                 xml(s.label)
@@ -284,59 +268,7 @@ pub fn write_svg<W2: Write>(
         r#"<text id="title" x="{MARGIN}" y="38" font-size="24" font-weight="bold">{}</text>"#,
         xml(title)
     )?;
-    writeln!(
-        w,
-        r##"<g id="legend" font-size="13"><rect x="{}" y="60" width="230" height="{}" fill="#ffffff" stroke="#888888"/>"##,
-        Fixed(W - 290.0, 0),
-        Fixed(120.0 + 20.0 * phases.min(6) as f64, 0)
-    )?;
-    let lx = W - 280.0;
-    let mut ly = 82.0;
-    for (label, style) in [
-        ("road (usable)", r##"stroke="#c8c8c8" stroke-width="2""##),
-        (
-            "road impassable",
-            r##"stroke="#8c2d04" stroke-width="2" stroke-dasharray="4 3""##,
-        ),
-        (
-            "intact road in plan",
-            r##"stroke="#6e6e6e" stroke-width="3""##,
-        ),
-    ] {
-        writeln!(
-            w,
-            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" {style}/><text x="{}" y="{}">{label}</text>"#,
-            lx + 30.0,
-            lx + 40.0,
-            ly + 4.0
-        )?;
-        ly += 20.0;
-    }
-    let shown: Vec<u32> = if phases <= 6 {
-        (1..=phases).collect()
-    } else {
-        vec![1, phases / 2, phases]
-    };
-    for p in shown {
-        writeln!(
-            w,
-            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" stroke="{}" stroke-width="5"/><text x="{}" y="{}">repair, day {p}</text>"#,
-            lx + 30.0,
-            colour(p),
-            lx + 40.0,
-            ly + 4.0
-        )?;
-        ly += 20.0;
-    }
-    writeln!(
-        w,
-        r##"<rect x="{}" y="{}" width="10" height="10" fill="#000000"/><text x="{}" y="{}">hub · ● site joined · ○ not joined</text>"##,
-        lx + 10.0,
-        ly - 5.0,
-        lx + 40.0,
-        ly + 4.0
-    )?;
-    writeln!(w, "</g>")?;
+    super::legend::write(&mut w, phases)?;
     // Scale bar: a round length near a fifth of the width.
     let target_m = (W - 2.0 * MARGIN) / 5.0 / scale;
     let pow = 10f64.powf(target_m.log10().floor());
@@ -354,16 +286,16 @@ pub fn write_svg<W2: Write>(
     };
     writeln!(
         w,
-        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{}" height="6" fill="#000000"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{}" y="{}" font-size="13">{label}</text></g>"##,
-        Fixed(by - 6.0, 1),
+        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{}" height="6" fill="{INK}"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{}" y="{}" font-size="13">{label}</text></g>"##,
+        by - 6.0,
         Fixed(bar, 1),
-        Fixed(by - 10.0, 1),
+        by - 10.0,
         Fixed(bx + bar - 20.0, 1),
-        Fixed(by - 10.0, 1)
+        by - 10.0
     )?;
     writeln!(
         w,
-        r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="#000000"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
+        r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="{INK}"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
         W - 60.0,
         H - 110.0,
         W - 50.0,
