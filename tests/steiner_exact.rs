@@ -6,7 +6,7 @@ use common::exact::{arb_instance, dreyfus_wagner};
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
 use reknit::solve::graph::Csr;
-use reknit::solve::graph::{EdgeList, UNUSABLE};
+use reknit::solve::graph::EdgeList;
 use reknit::solve::steiner::mehlhorn::mehlhorn;
 use reknit::solve::steiner::paths::Workspace;
 use reknit::solve::steiner::reduce::reduce;

@@ -99,7 +99,7 @@ fn proven_plans_equal_the_published_optima() {
 #[test]
 fn thorough_is_deterministic() {
     for name in ["B/b17", "C/c07"] {
-        let inst = instance(&name);
+        let inst = instance(name);
         let runs: Vec<_> = [1, 2, 2, 1]
             .iter()
             .map(|&n| {

@@ -93,9 +93,13 @@ pub fn step(
         if red.terminals.len() >= 2 {
             let root = red.terminals[0];
             let rc = fixing::reduced_cost_doomed(rg, &csr, it, root, &bound, best.cost);
-            let sd = fixing::special_distance_doomed(rg, &csr, it);
-            for e in 0..rg.len() {
-                doomed[e] = rc[e] || sd[e];
+            doomed = rc;
+            // The special-distance test looks only at costs, which later rounds do not change.
+            if round == 0 {
+                let sd = fixing::special_distance_doomed(rg, &csr, it);
+                for (d, s) in doomed.iter_mut().zip(sd) {
+                    *d |= s;
+                }
             }
         }
         // Keep only what the reduced graph represents, less the doomed edges.

@@ -84,7 +84,7 @@ pub fn special_distance_doomed(g: &EdgeList, csr: &Csr, is_terminal: &[bool]) ->
     let mut best = vec![u64::MAX; g.vertices];
     let mut touched: Vec<u32> = Vec::new();
     let mut heap = MinHeap::new();
-    for e in 0..g.len() {
+    for (e, gone) in doomed.iter_mut().enumerate() {
         if !g.usable(e) {
             continue;
         }
@@ -102,7 +102,7 @@ pub fn special_distance_doomed(g: &EdgeList, csr: &Csr, is_terminal: &[bool]) ->
                 continue;
             }
             if x == w {
-                doomed[e] = true;
+                *gone = true;
                 break;
             }
             settled += 1;
