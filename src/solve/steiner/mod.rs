@@ -9,7 +9,9 @@
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
 //!    graphs at quick effort, where the ascent is cut short).
-//! 4. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
+//! 4. When the ascent completed and a gap is left: [`exact`] steps (reductions by bound, [`fixing`])
+//!    and, at thorough effort, [`branch`]-and-bound on vertices, within a fixed number of steps.
+//! 5. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
 //!
 //! All choices are deterministic for a given [`Effort`].
 
