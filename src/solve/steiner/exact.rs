@@ -63,7 +63,9 @@ pub fn step(
         let csr = Csr::from_edges(rg);
         let it = &red.is_terminal;
         let bound = if red.terminals.len() >= 2 {
-            dual_ascent(rg, &csr, &red.terminals, u64::MAX)
+            let size = rg.vertices + rg.len();
+            let budget = effort.bound_budget(size).unwrap_or(u64::MAX);
+            dual_ascent(rg, &csr, &red.terminals, budget)
         } else {
             Bound::zero(true)
         };

@@ -124,10 +124,12 @@ impl Effort {
     }
 
     /// Steps of the exact search (reductions by bound, then branch-and-bound) after the heuristics:
-    /// one at normal effort (the reductions and a fresh bound on what they leave).
-    fn search_nodes(self) -> u64 {
+    /// one at normal effort (the reductions and a fresh bound on what they leave) on reduced graphs
+    /// of up to 500,000 vertices plus edges, none above (where normal has its time budget to keep).
+    fn search_nodes(self, size: usize) -> u64 {
         match self {
             Effort::Quick => 0,
+            Effort::Normal if size > 500_000 => 0,
             Effort::Normal => 1,
             Effort::Thorough => 500,
         }
@@ -228,7 +230,7 @@ pub fn steiner_tree(
             }
         }
         let cost = tree::cost(rg, &best);
-        let nodes = effort.search_nodes();
+        let nodes = effort.search_nodes(rg.vertices + rg.len());
         if bound.complete && bound.value < cost && nodes > 0 {
             let held = exact::Incumbent { edges: best, cost };
             let out = branch::search(rg, &red.terminals, held, bound.value, nodes, &mut |_, _| {});
