@@ -29,8 +29,8 @@ def fc(features):
 
 def main():
     shutil.rmtree(OUT, ignore_errors=True)
-    roads = json.load(open(os.path.join(ROOT, "sample-maps", "kestrel-vale", "roads.geojson")))
-    sites = json.load(open(os.path.join(ROOT, "sample-maps", "kestrel-vale", "sites.geojson")))
+    roads = json.load(open(os.path.join(ROOT, "sample-maps", "ombrevane", "roads.geojson")))
+    sites = json.load(open(os.path.join(ROOT, "sample-maps", "ombrevane", "sites.geojson")))
     small = roads["features"][:25]
     put("roads_geojson", "sample-25", fc(small))
     put("roads_geojson", "multiline-crs", json.dumps({
@@ -60,8 +60,8 @@ def main():
     ]))
     put("cost_table", "default", "[categories]\nintact = 0\ndebris = 0.3\nwashed-out = 1.0\ncollapsed = \"closed\"\n\n[classes]\nfield = \"highway\"\nprimary = 1.5\nresidential = 0.8\n")
     put("cost_table", "filter", "highway=primary,secondary")
-    put("manifest", "toml", "[defaults]\nsnap = 0.5\neffort = \"quick\"\n\n[[district]]\nname = \"North Reach\"\nroads = \"north/roads.geojson\"\nsites = \"north/sites.csv\"\nbudget = 5000\n")
-    put("manifest", "csv", "name,roads,sites,snap\nNorth Reach,north/roads.geojson,north/sites.csv,0.5\n")
+    put("manifest", "toml", "[defaults]\nsnap = 0.5\neffort = \"quick\"\n\n[[district]]\nname = \"D-001\"\nroads = \"north/roads.geojson\"\nsites = \"north/sites.csv\"\nbudget = 5000\n")
+    put("manifest", "csv", "name,roads,sites,snap\nD-001,north/roads.geojson,north/sites.csv,0.5\n")
     put("stp", "tiny", "33D32945 STP File, STP Format Version 1.0\nSECTION Graph\nNodes 5\nEdges 6\nE 1 2 3\nE 2 3 4\nE 3 4 1\nE 4 5 2\nE 1 5 7\nE 2 4 1\nEND\nSECTION Terminals\nTerminals 3\nT 1\nT 3\nT 5\nEND\nEOF\n")
     put("graph", "lattice", bytes([12] + [x % 256 for i in range(60) for x in (i, i + 1, 40 + 7 * i)]))
     # Shapefile: the first roads of the sample, converted by ogr2ogr, packed as three length-prefixed parts.

@@ -1,5 +1,5 @@
 #!/usr/bin/env python3
-"""Generate a synthetic region of many districts (invented names) with a batch manifest.
+"""Generate a synthetic region of many districts (neutral codes D-001, D-002, …) with a batch manifest.
 
 Usage: make-region.py OUT_DIR [DISTRICTS] [FEATURES_PER_DISTRICT] [SITES_PER_DISTRICT]
 Each district gets synthetic roads (examples/synth_roads.rs, its own seed) and critical sites (CSV);
@@ -11,10 +11,6 @@ import subprocess
 import sys
 from pathlib import Path
 
-FIRST = ["Amber", "Brindle", "Corran", "Dun", "Els", "Farrow", "Gull", "Hollin", "Ivers", "Kest",
-         "Lark", "Marrow", "Nettle", "Orrin", "Pell", "Quill", "Rook", "Sorrel", "Tarn", "Wren"]
-SECOND = ["ford", "cote", "mere", "by", "stead", "wick", "holm", "dale", "fold", "hythe"]
-
 
 def main(out, districts=40, features=2000, sites=8):
     root = Path(__file__).resolve().parent.parent
@@ -22,12 +18,11 @@ def main(out, districts=40, features=2000, sites=8):
     synth = root / "target" / "release" / "examples" / "synth_roads"
     out = Path(out)
     out.mkdir(parents=True, exist_ok=True)
-    lines = ["# Synthetic region of invented districts (scripts/make-region.py)",
+    lines = ["# Synthetic region of districts named by code (scripts/make-region.py)",
              "[defaults]", "snap = 0.5", "max_attach = 250", 'effort = "normal"', 'hub = "P1"', ""]
     for i in range(int(districts)):
-        name = f"{FIRST[i % len(FIRST)]}{SECOND[(i // len(FIRST)) % len(SECOND)]}"
-        if i >= len(FIRST) * len(SECOND):
-            name += f" {i // (len(FIRST) * len(SECOND)) + 1}"
+        # Codes, not names: names made from syllables turn out to be real places.
+        name = f"D-{i + 1:03d}"
         folder = out / f"d{i + 1:04d}"
         folder.mkdir(exist_ok=True)
         subprocess.run([str(synth), str(features), str(folder / "roads.geojson"), str(1000 + i),

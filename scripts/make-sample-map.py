@@ -1,8 +1,9 @@
 #!/usr/bin/env python3
-"""Generate the bundled demo district, Kestrel Vale (an invented island district; no real place).
+"""Generate the bundled demo district, Ombrevane (an invented island district; no real place).
 
 Deterministic: a fixed seed and only the standard library, so the files can be regenerated
-byte for byte:  python3 scripts/make-sample-map.py sample-maps/kestrel-vale
+byte for byte:  python3 scripts/make-sample-map.py sample-maps/ombrevane
+Every name is invented and checked against an offline gazetteer by tests/invented_names.rs.
 """
 import json
 import math
@@ -16,15 +17,15 @@ M_PER_DEG_LAT = 110_650.0
 M_PER_DEG_LON = 111_320.0 * math.cos(math.radians(LAT0))
 
 TOWNS = [
-    ("Amberfold", 0, 0),
-    ("Brindlecote", 6500, 2500),
-    ("Corran Ford", 12500, -1000),
-    ("Dunmere", 4000, -7000),
-    ("Elsworth Hythe", 10500, -8500),
-    ("Farrowby", 17500, 4000),
-    ("Gullstead", -5000, -4500),
+    ("Orlenvask", 0, 0),
+    ("Brisquell", 6500, 2500),
+    ("Quarnivel", 12500, -1000),
+    ("Velmorix", 4000, -7000),
+    ("Pelquine", 10500, -8500),
+    ("Tessimork", 17500, 4000),
+    ("Nembrask", -5000, -4500),
 ]
-# The Tarrow river runs roughly south-west to north-east; roads near it are flood damaged.
+# The Ysquel river runs roughly south-west to north-east; roads near it are flood damaged.
 RIVER = [(-9000, -9000), (-2000, -3500), (3000, -1200), (9000, -3800), (15000, 1500), (21000, 2500)]
 
 
@@ -119,7 +120,7 @@ def main(out):
 
     # A bypass flyover crossing Route 1 without a junction (an overpass: must stay unconnected).
     bx, by = (TOWNS[0][1] + TOWNS[1][1]) / 2, (TOWNS[0][2] + TOWNS[1][2]) / 2
-    add([(bx - 600, by + 900), (bx, by), (bx + 700, by - 1000)], {"name": "Vale Flyover", "class": "main"})
+    add([(bx - 600, by + 900), (bx, by), (bx + 700, by - 1000)], {"name": "Ombrevane Flyover", "class": "main"})
     # Farm tracks hanging off towns (dead ends).
     for t, (name, cx, cy) in enumerate(TOWNS):
         corner = grids[name][(0, 4)]
@@ -128,9 +129,9 @@ def main(out):
             pts.append((corner[0] - 300 * s + rng.uniform(-60, 60), corner[1] + 200 * s + rng.uniform(-60, 60)))
         add(pts, {"name": f"{name} Farm Track", "class": "track"})
 
-    fc = {"type": "FeatureCollection", "name": "Kestrel Vale roads (invented demo district)", "features": []}
+    fc = {"type": "FeatureCollection", "name": "Ombrevane roads (invented demo district)", "features": []}
     for i, (pts, props) in enumerate(features):
-        props = {"id": f"KV-{i + 1:04d}", **props}
+        props = {"id": f"RD-{i + 1:04d}", **props}
         fc["features"].append(
             {"type": "Feature", "properties": props,
              "geometry": {"type": "LineString", "coordinates": [to_lonlat(x, y) for x, y in pts]}})
@@ -157,4 +158,4 @@ def main(out):
 
 
 if __name__ == "__main__":
-    main(sys.argv[1] if len(sys.argv) > 1 else "sample-maps/kestrel-vale")
+    main(sys.argv[1] if len(sys.argv) > 1 else "sample-maps/ombrevane")

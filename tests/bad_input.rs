@@ -426,6 +426,8 @@ fn every_case_is_listed_in_the_docs() {
         "tests/settings_meaning.rs",
         "tests/batch_integrity.rs",
         "tests/bad_streams.rs",
+        "tests/bad_files.rs",
+        "tests/bad_typing.rs",
     ] {
         names.extend(case_names(&std::fs::read_to_string(root.join(f)).unwrap()));
     }

@@ -202,6 +202,16 @@ case!(zero_area_zone, |d| {
     zone_fails(d, "[[0,0],[0.001,0],[0.002,0],[0,0]]", &["zero area"]);
 });
 
+case!(zone_ring_round_a_pole, |d| {
+    // Each ring edge runs the short way round (RFC 7946 §3.1.1), so this ring's longitudes wrap a
+    // whole turn: it circles the pole, which one lon/lat ring cannot say without edges on ±180°.
+    zone_fails(
+        d,
+        "[[0,80],[90,80],[180,80],[-90,80],[0,80]]",
+        &["goes round a pole", "RFC 7946"],
+    );
+});
+
 case!(unclosed_zone_ring, |d| {
     zone_fails(
         d,

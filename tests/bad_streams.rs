@@ -86,11 +86,12 @@ fn bounded(args: &[String]) -> std::process::Output {
 // ---- Limits ----
 
 case!(endless_zeros_in_every_reader, |d| {
-    // /dev/zero under each reader's name: each stops at its documented limit within 1 GiB.
+    // 5 GiB of zero bytes (a sparse regular file: devices are refused before they are read) under
+    // each reader's name: each stops at its documented limit within 1 GiB of address space.
     for (name, _, args) in text_readers(d) {
         let p = d.join(name);
         let _ = std::fs::remove_file(&p);
-        std::os::unix::fs::symlink("/dev/zero", &p).unwrap();
+        std::fs::File::create(&p).unwrap().set_len(5 << 30).unwrap();
         let o = bounded(&args(&p));
         let msg = stderr(&o);
         assert_eq!(o.status.code(), Some(2), "{name}: {msg}");
@@ -234,6 +235,22 @@ case!(a_member_given_twice_in_any_geojson_reader, |d| {
                 ),
             ),
             ("k", property_twice(feature)),
+            // Nested: an object inside a property, inside the geometry, beside the features.
+            (
+                "n",
+                feature.replace(r#""properties":{"#, r#""properties":{"o":[{"n":1,"n":2}],"#),
+            ),
+            (
+                "m",
+                feature.replace(r#""geometry":{"#, r#""geometry":{"x":{"m":1,"m":2},"#),
+            ),
+            (
+                "f",
+                feature.replace(
+                    r#""type":"Feature""#,
+                    r#""type":"Feature","y":{"f":{},"f":0}"#,
+                ),
+            ),
         ];
         for (member, text) in twice {
             assert_ne!(text, feature);
@@ -466,6 +483,20 @@ case!(shard_summary_with_a_member_twice_or_endless, |d| {
         &out,
         &merge,
         &["batch-summary-2-of-2.json", "duplicate field `rows`"],
+    );
+    // A name twice inside an object within a row: no reader may pick one silently.
+    let nested = text.replacen(
+        "\"name\":",
+        "\"note\": {\"k\": 1, \"k\": 2},\n      \"name\":",
+        1,
+    );
+    assert_ne!(nested, text);
+    std::fs::write(&p, &nested).unwrap();
+    fails_with(
+        d,
+        &out,
+        &merge,
+        &["batch-summary-2-of-2.json", "\"k\" appears twice"],
     );
     std::fs::remove_file(&p).unwrap();
     std::os::unix::fs::symlink("/dev/zero", &p).unwrap();

@@ -158,7 +158,88 @@ case!(shx_offsets_disagree_with_the_shp, |d| {
     }
     std::fs::write(&shx, b).unwrap();
     plan_fails(&p, &[], &["roads.shx", "feature 1", "rebuild"]);
+    // Sites and zones are read through the same set reader: the same index is refused there.
+    let r = d.join("ok");
+    std::fs::create_dir(&r).unwrap();
+    let roads = three_roads(&r);
+    let pt = |x: f64| shapefile::Point::new(x * M, 0.0);
+    let sites = write_set(d, "sites.shp", &[pt(0.0), pt(50.0), pt(100.0)]);
+    let zones = write_set(
+        d,
+        "zones.shp",
+        &[square(0.0, 5.0), square(20.0, 5.0), square(40.0, 5.0)],
+    );
+    for (flag, layer) in [("--sites", sites), ("--damage-zones", zones)] {
+        let shx = layer.with_extension("shx");
+        let mut b = std::fs::read(&shx).unwrap();
+        let first: [u8; 8] = b[100..108].try_into().unwrap();
+        b[116..124].copy_from_slice(&first);
+        std::fs::write(&shx, b).unwrap();
+        let name = shx.file_name().unwrap().to_str().unwrap().to_string();
+        plan_fails(&roads, &[flag, &s(&layer)], &[&name, "rebuild"]);
+    }
 });
+
+#[test]
+fn closed_value_matches_zones_in_every_format() {
+    // `--closed-value 2` marks a zone impassable whether its factor is the GeoJSON number 2.0 or
+    // the dBASE Numeric text "2.00".
+    for ext in ["geojson", "shp"] {
+        let d = tmp();
+        let d = d.path();
+        let r = three_roads(d);
+        // Zone 1 (factor 2) covers the first road; zone 0 (factor 1) lies far away.
+        let zones = if ext == "shp" {
+            write_set(
+                d,
+                "zones.shp",
+                &[square(5000.0, 10.0), square(-10.0, 120.0)],
+            )
+        } else {
+            let ring = |x: f64, size: f64| {
+                let c = [
+                    [x, -size],
+                    [x, size],
+                    [x + size, size],
+                    [x + size, -size],
+                    [x, -size],
+                ];
+                let c: Vec<String> = c
+                    .iter()
+                    .map(|p| format!("[{},{}]", p[0] * M, p[1] * M))
+                    .collect();
+                c.join(",")
+            };
+            let z = |x: f64, size: f64, v: &str| {
+                format!(
+                    r#"{{"type":"Feature","properties":{{"v":{v}}},"geometry":{{"type":"Polygon","coordinates":[[{}]]}}}}"#,
+                    ring(x, size)
+                )
+            };
+            file(
+                d,
+                "zones.geojson",
+                fc(&[&z(5000.0, 10.0, "1"), &z(-10.0, 120.0, "2.0")]),
+            )
+        };
+        let closed = |extra: &[&str]| {
+            let mut a = vec!["--roads", r.to_str().unwrap(), "--damage-zones"];
+            a.extend([
+                zones.to_str().unwrap(),
+                "--zone-damage-field",
+                "v",
+                "--whole-network",
+            ]);
+            a.extend_from_slice(extra);
+            let out = plan_ok(d, &a);
+            let n = read_json(&out.join("summary.json"))["counts"]["edges_closed"].clone();
+            std::fs::remove_dir_all(&out).unwrap();
+            n
+        };
+        assert_eq!(closed(&[]), 0, "{ext}");
+        assert_eq!(closed(&["--closed-value", "2"]), 1, "{ext}");
+    }
+}
 
 /// The formats a road rule applies to.
 #[derive(Clone, Copy, Debug)]
@@ -352,6 +433,43 @@ case!(dbf_numeric_overflow_marker, |d| {
         &["--damage-field", "dmg"],
         &["roads.dbf", "feature 1", "\"dmg\"", "overflow"],
     );
+    // Sites (as priorities) and zones (as factors) are read through the same rule.
+    let r = d.join("ok");
+    std::fs::create_dir(&r).unwrap();
+    let roads = three_roads(&r);
+    let pt = |x: f64| shapefile::Point::new(x * M, 0.0);
+    let sites = write_set(d, "sites.shp", &[pt(0.0), pt(100.0)]);
+    let zones = write_set(d, "zones.shp", &[square(0.0, 5.0), square(40.0, 5.0)]);
+    for (layer, flags) in [
+        (
+            sites,
+            ["--sites", "--priority-field", "--site-id-field", "id"],
+        ),
+        (
+            zones,
+            [
+                "--damage-zones",
+                "--zone-damage-field",
+                "--zones-crs",
+                "EPSG:4326",
+            ],
+        ),
+    ] {
+        // Record 1's v (after the flag byte and the 10-byte id) becomes all '*'.
+        let dbf = layer.with_extension("dbf");
+        let mut b = std::fs::read(&dbf).unwrap();
+        let header = u16::from_le_bytes([b[8], b[9]]) as usize;
+        let record = u16::from_le_bytes([b[10], b[11]]) as usize;
+        let at = header + record + 1 + 10;
+        b[at..at + 8].copy_from_slice(b"********");
+        std::fs::write(&dbf, b).unwrap();
+        let name = dbf.file_name().unwrap().to_str().unwrap().to_string();
+        plan_fails(
+            &roads,
+            &[flags[0], &s(&layer), flags[1], "v", flags[2], flags[3]],
+            &[&name, "feature 1", "\"v\"", "overflow"],
+        );
+    }
 });
 
 case!(categories_differing_only_in_case, |d| {

@@ -346,7 +346,11 @@ fn csv_manifest_works_like_toml() {
     let manifest = d.path().join("m.csv");
     std::fs::write(
         &manifest,
-        format!("name,roads,snap,effort\nVale,{},1,quick\n", roads.display()),
+        // No sites: `effort` would be refused here as `--effort` is (it would be ignored).
+        format!(
+            "name,roads,snap,default_damage\nVale,{},1,0.8\n",
+            roads.display()
+        ),
     )
     .unwrap();
     let out = d.path().join("out");
@@ -359,4 +363,5 @@ fn csv_manifest_works_like_toml() {
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let s = read_json(&out.join("Vale/summary.json"));
     assert_eq!(s["settings"]["snap_m"], 1.0);
+    assert_eq!(s["settings"]["default_damage"], 0.8);
 }

@@ -123,17 +123,31 @@ fn cell(v: &str) -> String {
 #[test]
 fn every_key_applies_alike_wherever_it_is_given() {
     let d = tmp();
-    file(d.path(), "costs.toml", "[categories]\ndebris = 0.4\n");
+    // Classes only: [categories] mean something only with `category_field`.
+    file(
+        d.path(),
+        "costs.toml",
+        "[classes]\nfield = \"hw\"\nprimary = 2\n",
+    );
+    // Zones and reports in the base, so that the keys about them have something to apply to.
     let base = [
         ("name", "\"Vale\""),
         ("roads", "\"base.geojson\""),
         ("sites", "\"base.csv\""),
+        ("damage_zones", "\"base-zones.geojson\""),
+        ("damage_points", "\"base-reports.geojson\""),
     ];
     let lines = |skip: &str| -> String {
-        base.iter()
+        let mut l: String = base
+            .iter()
             .filter(|(k, _)| *k != skip)
             .map(|(k, v)| format!("{k} = {v}\n"))
-            .collect()
+            .collect();
+        // `mst` is for the whole-network plan only.
+        if skip == "mst" {
+            l.push_str("whole_network = true\n");
+        }
+        l
     };
     let absent = job_of(d.path(), "m.toml", &format!("[[district]]\n{}", lines("")));
     for k in KEYS.iter().filter(|k| !k.district_only) {
@@ -153,8 +167,14 @@ fn every_key_applies_alike_wherever_it_is_given() {
             "{key}: [defaults] and [[district]] differ"
         );
         assert_ne!(in_district, absent, "{key}: the key changes nothing");
-        let mut header = vec!["name", "roads", "sites"];
+        let mut header = vec!["name", "roads", "sites", "damage_zones", "damage_points"];
+        if key == "mst" {
+            header.push("whole_network");
+        }
         let mut row: Vec<String> = base.iter().map(|(_, v)| cell(v)).collect();
+        if key == "mst" {
+            row.push("true".into());
+        }
         match header.iter().position(|h| *h == key) {
             Some(i) => row[i] = cell(v),
             None => {
@@ -229,11 +249,12 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
             t.to_string()
         }
     };
-    // Every key but the one that cannot go with backup links.
+    // Every key but those of a whole-network plan (backup links need a sites plan) and the
+    // damage field (the damage comes from `category_field` here).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
-        .filter(|(k, _)| *k != "whole_network")
+        .filter(|(k, _)| !["whole_network", "mst", "damage_field"].contains(k))
         .collect();
     let plan_out = d.path().join("plan-out");
     let mut args = vec![

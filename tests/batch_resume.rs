@@ -127,7 +127,13 @@ fn resume_fingerprints_zones_reports_and_the_cost_table() {
     grid_roads(d.path(), "roads.geojson");
     zones(d.path());
     reports(d.path());
-    let costs = file(d.path(), "costs.toml", "[categories]\ndebris = 0.3\n");
+    // Class rates (read from the damage field's values here): categories would need a category
+    // field, and a table that changes nothing is refused.
+    let costs = file(
+        d.path(),
+        "costs.toml",
+        "[classes]\nfield = \"damage\"\ndefault = 1\n",
+    );
     let m = manifest(
         d.path(),
         "m.toml",
@@ -183,7 +189,11 @@ fn defaults_paths_are_relative_to_the_manifest() {
     corner_sites(&shared, "sites.geojson");
     zones(&shared);
     reports(&shared);
-    file(&shared, "costs.toml", "[categories]\ndebris = 0.3\n");
+    file(
+        &shared,
+        "costs.toml",
+        "[classes]\nfield = \"damage\"\ndefault = 1\n",
+    );
     manifest(
         &d.path().join("region"),
         "m.toml",

@@ -188,6 +188,7 @@ fn prim_and_kruskal_give_the_same_total() {
             "--out",
             out.to_str().unwrap(),
             "--quiet",
+            "--whole-network",
             "--mst",
             alg,
         ]);

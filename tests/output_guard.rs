@@ -81,7 +81,11 @@ case!(cost_table_inside_the_output_folder, |d| {
     let roads = roads_ok(d);
     let out = d.join("out");
     earlier_set(&roads, &out);
-    let table = file(&out, "costs.toml", "[categories]\ndebris = 0.3\n");
+    let table = file(
+        &out,
+        "costs.toml",
+        "[classes]\nfield = \"damage\"\ndefault = 1\n",
+    );
     let args = strings(&[
         "plan",
         "--roads",
@@ -275,7 +279,11 @@ fn every_command_changes_nothing_it_did_not_create() {
     std::fs::create_dir(&data).unwrap();
     let roads = grid_roads(&data, "roads.geojson");
     let sites = corner_sites(&data, "sites.geojson");
-    let table = file(&data, "costs.toml", "[categories]\ndebris = 0.3\n");
+    let table = file(
+        &data,
+        "costs.toml",
+        "[classes]\nfield = \"damage\"\ndefault = 1\n",
+    );
     file(&data, "notes.txt", "the analyst's notes");
     let m = manifest(
         &d.join("region"),

@@ -2,43 +2,15 @@
 //! random graphs with up to 8 terminals, zero-cost and closed edges included.
 
 mod common;
-use common::exact::dreyfus_wagner;
+use common::exact::{arb_instance, dreyfus_wagner};
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
 use reknit::solve::graph::Csr;
-use reknit::solve::graph::{EdgeList, UNUSABLE};
+use reknit::solve::graph::EdgeList;
 use reknit::solve::steiner::mehlhorn::mehlhorn;
 use reknit::solve::steiner::paths::Workspace;
 use reknit::solve::steiner::reduce::reduce;
 use reknit::solve::steiner::{Effort, steiner_tree, tree::check_steiner_tree};
-
-fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
-    (4usize..22, 2usize..9).prop_flat_map(|(n, k)| {
-        let tree_parents = proptest::collection::vec(any::<proptest::sample::Index>(), n - 1);
-        let extra =
-            proptest::collection::vec((0..n as u32, 0..n as u32, 0u64..25, 0u8..10), 0..3 * n);
-        let tree_costs = proptest::collection::vec(0u64..25, n - 1);
-        let terms = proptest::sample::subsequence((0..n as u32).collect::<Vec<_>>(), k.min(n));
-        (tree_parents, tree_costs, extra, terms).prop_map(move |(parents, costs, extra, terms)| {
-            let mut g = EdgeList {
-                vertices: n,
-                ends: Vec::new(),
-                cost: Vec::new(),
-            };
-            // A random spanning tree keeps every terminal reachable.
-            for v in 1..n {
-                let p = parents[v - 1].index(v) as u32;
-                g.ends.push([p, v as u32]);
-                g.cost.push(costs[v - 1]);
-            }
-            for (a, b, c, kind) in extra {
-                g.ends.push([a, b]);
-                g.cost.push(if kind == 0 { UNUSABLE } else { c });
-            }
-            (g, terms)
-        })
-    })
-}
 
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(300))]

@@ -6,9 +6,8 @@
 //! be added here too.
 
 use super::values::{Kind, Value};
-use crate::ingest::cost_table::{CostTable, RoadFilter};
 use crate::ingest::source::Source;
-use crate::job::PlanJob;
+use crate::job::Options;
 use crate::solve::MstAlgorithm;
 use crate::solve::steiner::Effort;
 
@@ -20,14 +19,15 @@ pub struct Key {
     pub kind: Kind,
     /// Only in a district (`name`): refused in `[defaults]`.
     pub district_only: bool,
-    /// Applies a value of the right kind to a job; the error says what is wrong with the value.
-    pub set: fn(&mut PlanJob, &Value) -> Result<(), String>,
+    /// Applies a value of the right kind to a district's options; the error says what is wrong with
+    /// the value. Every check of the option itself is `job::settings::build`'s, as for the flag.
+    pub set: fn(&mut Options, &Value) -> Result<(), String>,
 }
 
 const fn key(
     name: &'static str,
     kind: Kind,
-    set: fn(&mut PlanJob, &Value) -> Result<(), String>,
+    set: fn(&mut Options, &Value) -> Result<(), String>,
 ) -> Key {
     Key {
         name,
@@ -59,59 +59,52 @@ pub const KEYS: &[Key] = &[
         Ok(())
     }),
     key("snap", Number, |j, v| {
-        j.road_settings.snap_m = v.number()?;
+        j.road.snap_m = v.number()?;
         Ok(())
     }),
     key("damage_field", Text, |j, v| {
-        j.road_settings.damage.field = v.text()?;
+        j.road.damage_field = v.text()?;
         Ok(())
     }),
     key("default_damage", Number, |j, v| {
-        j.road_settings.damage.default = v.number()?;
+        j.road.default_damage = v.number()?;
         Ok(())
     }),
     // As on the command line, the closed value applies to roads, zones and reports alike.
     key("closed_value", Text, |j, v| {
-        j.road_settings.damage.closed_value = v.text()?;
-        j.zone_damage.closed_value = v.text()?;
+        j.road.closed_value = v.text()?;
         Ok(())
     }),
     key("id_field", OptText, |j, v| {
-        j.road_settings.id_field = v.opt_text()?;
+        j.road.id_field = v.opt_text()?;
         Ok(())
     }),
     key("crs", OptText, |j, v| {
-        j.road_settings.crs = v.opt_text()?;
+        j.road.crs = v.opt_text()?;
         Ok(())
     }),
     key("category_field", OptText, |j, v| {
-        j.road_settings.category_field = v.opt_text()?;
+        j.road.category_field = v.opt_text()?;
         Ok(())
     }),
     key("cost_table", OptPath, |j, v| {
-        let file = v.opt_path()?;
-        j.road_settings.cost_table = CostTable::from_file(file.as_deref())?;
-        j.road_settings.cost_table_file = file;
+        j.road.cost_table = v.opt_path()?;
         Ok(())
     }),
-    // Keep filters come before drop filters, as on the command line.
     key("keep_where", Filters, |j, v| {
-        let mut keep = parse_filters(v, true)?;
-        keep.extend(j.road_settings.filters.drain(..).filter(|f| !f.keep));
-        j.road_settings.filters = keep;
+        j.road.keep_where = v.filters()?;
         Ok(())
     }),
     key("drop_where", Filters, |j, v| {
-        j.road_settings.filters.retain(|f| f.keep);
-        j.road_settings.filters.extend(parse_filters(v, false)?);
+        j.road.drop_where = v.filters()?;
         Ok(())
     }),
     key("damage_zones", OptPath, |j, v| {
-        j.zones = v.opt_path()?.map(Source::File);
+        j.damage_zones = v.opt_path()?.map(Source::File);
         Ok(())
     }),
     key("zone_damage_field", Text, |j, v| {
-        j.zone_damage.field = v.text()?;
+        j.zone_damage_field = Some(v.text()?);
         Ok(())
     }),
     key("zones_crs", OptText, |j, v| {
@@ -119,11 +112,11 @@ pub const KEYS: &[Key] = &[
         Ok(())
     }),
     key("damage_points", OptPath, |j, v| {
-        j.reports = v.opt_path()?.map(Source::File);
+        j.damage_points = v.opt_path()?.map(Source::File);
         Ok(())
     }),
     key("report_distance", Number, |j, v| {
-        j.report_distance_m = v.number()?;
+        j.report_distance_m = Some(v.number()?);
         Ok(())
     }),
     key("budget", Number, |j, v| {
@@ -139,27 +132,27 @@ pub const KEYS: &[Key] = &[
         Ok(())
     }),
     key("node_crossings", Bool, |j, v| {
-        j.road_settings.node_crossings = v.flag()?;
+        j.road.node_crossings = v.flag()?;
         Ok(())
     }),
     key("structure_field", OptText, |j, v| {
-        j.road_settings.structure_field = v.opt_text()?;
+        j.road.structure_field = v.opt_text()?;
         Ok(())
     }),
     key("attribution", OptText, |j, v| {
-        j.road_settings.attribution = v.opt_text()?;
+        j.road.attribution = v.opt_text()?;
         Ok(())
     }),
     key("mst", Choice(&["kruskal", "prim"]), |j, v| {
-        j.mst = match v.text()?.as_str() {
+        j.mst = Some(match v.text()?.as_str() {
             "kruskal" => MstAlgorithm::Kruskal,
             "prim" => MstAlgorithm::Prim,
             o => return Err(format!("{o:?} is not an algorithm")),
-        };
+        });
         Ok(())
     }),
     key("max_attach", Number, |j, v| {
-        j.max_attach_m = v.number()?;
+        j.max_attach_m = Some(v.number()?);
         Ok(())
     }),
     key("hub", OptText, |j, v| {
@@ -174,37 +167,37 @@ pub const KEYS: &[Key] = &[
         "effort",
         Choice(&["quick", "normal", "thorough"]),
         |j, v| {
-            j.effort = match v.text()?.as_str() {
+            j.effort = Some(match v.text()?.as_str() {
                 "quick" => Effort::Quick,
                 "normal" => Effort::Normal,
                 "thorough" => Effort::Thorough,
                 o => return Err(format!("{o:?} is not an effort")),
-            };
+            });
             Ok(())
         },
     ),
     key("site_id_field", OptText, |j, v| {
-        j.site_settings.id_field = v.opt_text()?;
+        j.site_id_field = v.opt_text()?;
         Ok(())
     }),
     key("site_name_field", OptText, |j, v| {
-        j.site_settings.name_field = v.opt_text()?;
+        j.site_name_field = v.opt_text()?;
         Ok(())
     }),
     key("priority_field", OptText, |j, v| {
-        j.site_settings.priority_field = v.opt_text()?;
+        j.priority_field = v.opt_text()?;
         Ok(())
     }),
     key("lon_column", OptText, |j, v| {
-        j.site_settings.lon_column = v.opt_text()?;
+        j.lon_column = v.opt_text()?;
         Ok(())
     }),
     key("lat_column", OptText, |j, v| {
-        j.site_settings.lat_column = v.opt_text()?;
+        j.lat_column = v.opt_text()?;
         Ok(())
     }),
     key("sites_crs", OptText, |j, v| {
-        j.site_settings.crs = v.opt_text()?;
+        j.sites_crs = v.opt_text()?;
         Ok(())
     }),
 ];
@@ -217,11 +210,4 @@ pub fn find(name: &str) -> Option<&'static Key> {
 /// Every key name, comma-separated, for messages.
 pub fn known() -> String {
     KEYS.iter().map(|k| k.name).collect::<Vec<_>>().join(", ")
-}
-
-fn parse_filters(v: &Value, keep: bool) -> Result<Vec<RoadFilter>, String> {
-    v.filters()?
-        .iter()
-        .map(|f| RoadFilter::parse(f, keep))
-        .collect()
 }

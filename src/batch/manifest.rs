@@ -20,7 +20,7 @@ use super::BatchError;
 use super::keys::{self, Key};
 use super::values::{self, Value};
 use crate::ingest::source::Source;
-use crate::job::PlanJob;
+use crate::job::{Options, PlanJob};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
@@ -111,9 +111,9 @@ fn identity(format: &str, bytes: &[u8]) -> String {
 }
 
 /// One district's job: the defaults, then its own values over them, applied key by key through
-/// the one table, then checked as `reknit plan` checks its flags.
+/// the one table, then checked and typed by the function `reknit plan` uses for its flags.
 fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<District, String> {
-    let mut merged: BTreeMap<&'static str, (&Value, &str)> = BTreeMap::new();
+    let mut merged: Merged = BTreeMap::new();
     for entry in defaults.into_iter().chain([e]) {
         for (k, v) in &entry.values {
             merged.insert(k, (v, &entry.place));
@@ -129,20 +129,33 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
             e.place
         ));
     }
-    let mut job = PlanJob::new(Source::File(PathBuf::new()), PathBuf::new());
-    for k in keys::KEYS {
-        if let Some((v, place)) = merged.get(k.name) {
-            (k.set)(&mut job, v).map_err(|m| {
-                let from = if *place == e.place {
-                    String::new()
-                } else {
-                    format!(" (from {place})")
-                };
-                format!("{}: \"{}\"{from}: {m}", e.place, k.name)
-            })?;
+    // A default the district has no use for (`effort` for a whole-network district) is left out
+    // for it, once its value is found valid; a key given in the district itself must apply, or
+    // `build` refuses it.
+    let all = options(&merged, e)?;
+    crate::job::settings::check_values(&all).map_err(|err| setting_error(err, &merged, e))?;
+    for (flag, _) in crate::job::settings::ignored(&all) {
+        let key = flag.trim_start_matches('-').replace('-', "_");
+        if merged
+            .get(key.as_str())
+            .is_some_and(|(_, place)| *place != e.place)
+        {
+            merged.remove(key.as_str());
         }
     }
-    crate::job::validate(&job).map_err(|err| match err {
+    let job =
+        crate::job::build(&options(&merged, e)?).map_err(|err| setting_error(err, &merged, e))?;
+    Ok(District {
+        index,
+        folder: super::names::folder_name(&name),
+        name,
+        job,
+    })
+}
+
+/// A setting's error named by its key, and by where the value came from when not the district.
+fn setting_error(err: crate::ingest::IngestError, merged: &Merged, e: &Entry) -> String {
+    match err {
         crate::ingest::IngestError::Setting { name, message } => {
             let key = name.trim_start_matches('-').replace('-', "_");
             let from = match merged.get(key.as_str()) {
@@ -152,13 +165,28 @@ fn district(index: usize, defaults: Option<&Entry>, e: &Entry) -> Result<Distric
             format!("{}: \"{key}\"{from}: {message}", e.place)
         }
         other => format!("{}: {other}", e.place),
-    })?;
-    Ok(District {
-        index,
-        folder: super::names::folder_name(&name),
-        name,
-        job,
-    })
+    }
+}
+
+/// Each key's value and where it was given (`[defaults]` or the district's own place).
+type Merged<'a> = BTreeMap<&'static str, (&'a Value, &'a str)>;
+
+/// The district's options: every merged value applied through the one key table.
+fn options(merged: &Merged, e: &Entry) -> Result<Options, String> {
+    let mut options = Options::new(Source::File(PathBuf::new()), PathBuf::new());
+    for k in keys::KEYS {
+        if let Some((v, place)) = merged.get(k.name) {
+            (k.set)(&mut options, v).map_err(|m| {
+                let from = if *place == e.place {
+                    String::new()
+                } else {
+                    format!(" (from {place})")
+                };
+                format!("{}: \"{}\"{from}: {m}", e.place, k.name)
+            })?;
+        }
+    }
+    Ok(options)
 }
 
 /// Checks one key and its value given in `place`.

@@ -131,10 +131,6 @@ fn read_parts(dir: &Path) -> Result<Vec<Part>, BatchError> {
             continue;
         };
         check_shard(&file, k, n).map_err(err)?;
-        // Only regular files are read: a pipe would block, a device would never end.
-        if !std::fs::metadata(entry.path()).is_ok_and(|m| m.is_file()) {
-            return Err(err(format!("{file}: not a regular file")));
-        }
         let text = crate::ingest::limits::read_small_text(&entry.path())
             .map_err(|e| err(format!("{file}: {e}")))?;
         let summary: BatchSummary = serde_json::from_str(&text).map_err(|e| {
@@ -142,6 +138,8 @@ fn read_parts(dir: &Path) -> Result<Vec<Part>, BatchError> {
                 "{file}: not a batch summary of this reknit version: {e}"
             ))
         })?;
+        // Valid JSON by now: a name twice in a row's object would be merged silently.
+        crate::ingest::members::unique(&text).map_err(|m| err(format!("{file}: {m}")))?;
         if summary.shard.as_deref() != Some(format!("{k}/{n}").as_str()) {
             return Err(err(format!(
                 "{file}: records shard {} rather than the {k}/{n} of its name",

@@ -129,7 +129,14 @@ pub fn from_toml(kind: Kind, v: &toml::Value, base: &Path) -> Result<Value, Stri
         (_, T::String(s)) => from_text(kind, s, base),
         (Kind::Number, T::Integer(i)) => Ok(Value::Number(*i as f64)),
         (Kind::Number, T::Float(f)) => Ok(Value::Number(*f)),
+        // A number or switch for a text key is the text the same value has on the command line
+        // (`closed_value = 99` is `--closed-value 99`); comparisons then follow the typing rule
+        // (`crate::ingest::value`), so 99, 99.0 and "99" mean the same.
         (Kind::Text | Kind::OptText, T::Integer(i)) => Ok(Value::Text(i.to_string())),
+        (Kind::Text | Kind::OptText, T::Float(f)) if f.is_finite() => {
+            Ok(Value::Text(f.to_string()))
+        }
+        (Kind::Text | Kind::OptText, T::Boolean(b)) => Ok(Value::Text(b.to_string())),
         (Kind::Bool, T::Boolean(b)) => Ok(Value::Bool(*b)),
         (Kind::Filters, T::Array(items)) => items
             .iter()
@@ -143,7 +150,9 @@ pub fn from_toml(kind: Kind, v: &toml::Value, base: &Path) -> Result<Value, Stri
     }
 }
 
-/// Reads a non-empty CSV cell for a key of `kind`; paths are joined to `base`.
+/// Reads a non-empty CSV cell for a key of `kind`; paths are joined to `base`. A number cell is
+/// read as the command line reads the flag (Rust's decimal syntax), so a cell means what the same
+/// text after the flag means.
 pub fn from_cell(kind: Kind, cell: &str, base: &Path) -> Result<Value, String> {
     let t = cell.trim();
     match kind {

@@ -31,7 +31,7 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
     let r = reknit::job::check::run_check(
         &Source::File(a.roads),
-        &a.network.road_settings()?,
+        &reknit::job::settings::road_settings(&a.network.road_options())?,
         &a.out,
         a.output.force,
         &progress,

@@ -4,11 +4,8 @@ use clap::{Args, ValueEnum};
 use reknit::export::Summary;
 use reknit::export::geojson::fixed;
 use reknit::export::text::terminal;
-use reknit::ingest::RoadSettings;
-use reknit::ingest::cost_table::{CostTable, RoadFilter};
-use reknit::ingest::damage::DamageRule;
-use reknit::ingest::sites::SiteSettings;
-use reknit::job::PlanJob;
+use reknit::ingest::source::Source;
+use reknit::job::{Options, RoadOptions};
 use reknit::progress::Progress;
 use reknit::solve::MstAlgorithm;
 use reknit::solve::steiner::Effort;
@@ -102,11 +99,13 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "FILE")]
     pub damage_zones: Option<std::path::PathBuf>,
 
-    /// Zone property holding the damage factor (or "closed"); a zone without one counts as 1.0.
-    #[arg(long, value_name = "FIELD", default_value = "damage")]
-    pub zone_damage_field: String,
+    /// Zone and report property holding the damage factor (or "closed"), default damage; a zone
+    /// without one counts as 1.0. Only with --damage-zones or --damage-points.
+    #[arg(long, value_name = "FIELD")]
+    pub zone_damage_field: Option<String>,
 
-    /// The damage zones' CRS as EPSG:NNNN (default WGS84 longitude/latitude).
+    /// The damage zones' CRS as EPSG:NNNN (default WGS84 longitude/latitude); only with
+    /// --damage-zones.
     #[arg(long, value_name = "EPSG:CODE")]
     pub zones_crs: Option<String>,
 
@@ -115,9 +114,10 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "FILE")]
     pub damage_points: Option<std::path::PathBuf>,
 
-    /// Largest distance in metres from a damage report to its road; farther reports are listed.
-    #[arg(long, value_name = "METRES", default_value_t = 50.0)]
-    pub report_distance: f64,
+    /// Largest distance in metres from a damage report to its road, default 50; farther reports
+    /// are listed. Only with --damage-points.
+    #[arg(long, value_name = "METRES")]
+    pub report_distance: Option<f64>,
 
     /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
     /// giving the most priority per repair-metre are joined to the hub first, within the budget;
@@ -134,76 +134,48 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
 
-    /// Algorithm for the whole-network plan; both give a forest of the same minimum total.
-    #[arg(long, value_enum, default_value = "kruskal")]
-    pub mst: MstChoice,
+    /// Algorithm for the whole-network plan, default kruskal; both give a forest of the same
+    /// minimum total. Not with a sites plan (a Steiner tree).
+    #[arg(long, value_enum)]
+    pub mst: Option<MstChoice>,
 }
 
 impl NetworkArgs {
-    pub fn road_settings(&self) -> anyhow::Result<RoadSettings> {
-        let cost_table =
-            CostTable::from_file(self.cost_table.as_deref()).map_err(anyhow::Error::msg)?;
-        let mut filters = Vec::new();
-        for (list, keep) in [(&self.keep_where, true), (&self.drop_where, false)] {
-            for f in list {
-                filters.push(RoadFilter::parse(f, keep).map_err(|e| {
-                    anyhow::anyhow!(
-                        "invalid setting --{}-where: {e}",
-                        if keep { "keep" } else { "drop" }
-                    )
-                })?);
-            }
-        }
-        Ok(RoadSettings {
+    /// The road options as given, for [`reknit::job::settings::road_settings`].
+    pub fn road_options(&self) -> RoadOptions {
+        RoadOptions {
             snap_m: self.snap,
-            damage: DamageRule {
-                field: self.damage_field.clone(),
-                default: self.default_damage,
-                closed_value: self.closed_value.clone(),
-            },
+            damage_field: self.damage_field.clone(),
+            default_damage: self.default_damage,
+            closed_value: self.closed_value.clone(),
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
-            node_crossings: self.node_crossings,
             category_field: self.category_field.clone(),
-            cost_table,
-            cost_table_file: self.cost_table.clone(),
-            filters,
+            cost_table: self.cost_table.clone(),
+            keep_where: self.keep_where.clone(),
+            drop_where: self.drop_where.clone(),
+            node_crossings: self.node_crossings,
             structure_field: self.structure_field.clone(),
             attribution: self.attribution.clone(),
-        })
+        }
     }
 }
 
 impl PlanningArgs {
-    /// Copies the damage evidence and planning settings into a job (zones and reports read
-    /// "closed" as the roads do).
-    pub fn apply(&self, job: &mut PlanJob, closed_value: &str) {
-        job.zones = self
-            .damage_zones
-            .clone()
-            .map(reknit::ingest::source::Source::File);
-        job.zone_damage = DamageRule {
-            field: self.zone_damage_field.clone(),
-            default: 1.0,
-            closed_value: closed_value.to_string(),
-        };
-        job.mst = self.mst();
-        job.zones_crs = self.zones_crs.clone();
-        job.reports = self
-            .damage_points
-            .clone()
-            .map(reknit::ingest::source::Source::File);
-        job.report_distance_m = self.report_distance;
-        job.crew_capacity = self.crew_capacity;
-        job.budget = self.budget;
-        job.redundancy = self.redundancy;
-    }
-
-    fn mst(&self) -> MstAlgorithm {
-        match self.mst {
+    /// Copies the damage evidence and planning options into `o`.
+    pub fn apply(&self, o: &mut Options) {
+        o.damage_zones = self.damage_zones.clone().map(Source::File);
+        o.zone_damage_field = self.zone_damage_field.clone();
+        o.zones_crs = self.zones_crs.clone();
+        o.damage_points = self.damage_points.clone().map(Source::File);
+        o.report_distance_m = self.report_distance;
+        o.crew_capacity = self.crew_capacity;
+        o.budget = self.budget;
+        o.redundancy = self.redundancy;
+        o.mst = self.mst.map(|m| match m {
             MstChoice::Kruskal => MstAlgorithm::Kruskal,
             MstChoice::Prim => MstAlgorithm::Prim,
-        }
+        });
     }
 }
 
@@ -225,9 +197,10 @@ pub struct SiteArgs {
     #[arg(long, value_name = "FILE")]
     pub sites: Option<PathBuf>,
 
-    /// Largest distance in metres from a site to the road it joins; farther sites are reported.
-    #[arg(long, value_name = "METRES", default_value_t = 250.0)]
-    pub max_attach: f64,
+    /// Largest distance in metres from a site to the road it joins, default 250; farther sites are
+    /// reported.
+    #[arg(long, value_name = "METRES")]
+    pub max_attach: Option<f64>,
 
     /// Id of the hub site (the depot crews start from); it must lie within --max-attach of a usable
     /// road. Default: the site on the roads with the highest priority (on ties, where the most
@@ -239,9 +212,10 @@ pub struct SiteArgs {
     #[arg(long)]
     pub whole_network: bool,
 
-    /// Time spent improving the sites plan; every effort gives the same result on every run.
-    #[arg(long, value_enum, default_value = "normal")]
-    pub effort: EffortChoice,
+    /// Time spent improving the sites plan, default normal; every effort gives the same result on
+    /// every run. Not with --whole-network.
+    #[arg(long, value_enum)]
+    pub effort: Option<EffortChoice>,
 
     /// Site property or column holding each site's id (default: id, site_id, fid or name).
     #[arg(long, value_name = "FIELD")]
@@ -269,24 +243,23 @@ pub struct SiteArgs {
 }
 
 impl SiteArgs {
-    /// Copies the site settings into a job.
-    pub fn apply(&self, job: &mut PlanJob) {
-        job.site_settings = SiteSettings {
-            id_field: self.site_id_field.clone(),
-            name_field: self.site_name_field.clone(),
-            priority_field: self.priority_field.clone(),
-            lon_column: self.lon_column.clone(),
-            lat_column: self.lat_column.clone(),
-            crs: self.sites_crs.clone(),
-        };
-        job.max_attach_m = self.max_attach;
-        job.hub = self.hub.clone();
-        job.whole_network = self.whole_network;
-        job.effort = match self.effort {
+    /// Copies the site options into `o`.
+    pub fn apply(&self, o: &mut Options) {
+        o.sites = self.sites.clone().map(Source::File);
+        o.site_id_field = self.site_id_field.clone();
+        o.site_name_field = self.site_name_field.clone();
+        o.priority_field = self.priority_field.clone();
+        o.lon_column = self.lon_column.clone();
+        o.lat_column = self.lat_column.clone();
+        o.sites_crs = self.sites_crs.clone();
+        o.max_attach_m = self.max_attach;
+        o.hub = self.hub.clone();
+        o.whole_network = self.whole_network;
+        o.effort = self.effort.map(|e| match e {
             EffortChoice::Quick => Effort::Quick,
             EffortChoice::Normal => Effort::Normal,
             EffortChoice::Thorough => Effort::Thorough,
-        };
+        });
     }
 }
 

@@ -3,11 +3,12 @@
 use super::common::{NetworkArgs, OutputArgs, PlanningArgs, print_result};
 use clap::Args;
 use reknit::ingest::source::Source;
-use reknit::{PlanJob, run_plan, sample};
+use reknit::job::Options;
+use reknit::{run_plan, sample};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-/// Run the plan on the bundled sample district (Kestrel Vale, invented) to see every output.
+/// Run the plan on the bundled sample district (Ombrevane, invented) to see every output.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
     /// Output folder (created if absent).
@@ -38,19 +39,20 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
         name: sample::ROADS_NAME.into(),
         bytes: sample::ROADS,
     };
-    let mut job = PlanJob::new(roads, a.out);
-    job.force = a.output.force;
-    job.road_settings = a.network.road_settings()?;
-    a.planning.apply(&mut job, &a.network.closed_value);
-    job.whole_network = a.whole_network;
-    job.name = Some(format!("{} (invented demo district)", sample::DISTRICT));
+    let mut o = Options::new(roads, a.out);
+    o.force = a.output.force;
+    o.road = a.network.road_options();
+    a.planning.apply(&mut o);
+    o.whole_network = a.whole_network;
+    o.name = Some(format!("{} (invented demo district)", sample::DISTRICT));
     if !a.whole_network {
-        job.sites = Some(Source::Bundled {
+        o.sites = Some(Source::Bundled {
             name: sample::SITES_NAME.into(),
             bytes: sample::SITES,
         });
-        job.hub = Some(sample::HUB.into());
+        o.hub = Some(sample::HUB.into());
     }
+    let job = reknit::job::build(&o)?;
     let summary = run_plan(&job, &progress)?;
     print_result(&summary, &job.out, &progress);
     Ok(ExitCode::SUCCESS)

@@ -3,7 +3,8 @@
 use super::common::{NetworkArgs, OutputArgs, PlanningArgs, SiteArgs, print_result};
 use clap::Args;
 use reknit::ingest::source::Source;
-use reknit::{PlanJob, run_plan};
+use reknit::job::Options;
+use reknit::run_plan;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
@@ -42,13 +43,13 @@ pub struct PlanArgs {
 
 pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
-    let mut job = PlanJob::new(Source::File(a.roads), a.out);
-    job.force = a.output.force;
-    job.name = a.name.clone();
-    job.road_settings = a.network.road_settings()?;
-    a.planning.apply(&mut job, &a.network.closed_value);
-    a.sites.apply(&mut job);
-    job.sites = a.sites.sites.clone().map(Source::File);
+    let mut o = Options::new(Source::File(a.roads), a.out);
+    o.force = a.output.force;
+    o.name = a.name.clone();
+    o.road = a.network.road_options();
+    a.planning.apply(&mut o);
+    a.sites.apply(&mut o);
+    let job = reknit::job::build(&o)?;
     let summary = run_plan(&job, &progress)?;
     print_result(&summary, &job.out, &progress);
     Ok(ExitCode::SUCCESS)

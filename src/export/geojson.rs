@@ -74,7 +74,7 @@ impl<W: Write> GeoJsonWriter<W> {
         self.start(props);
         let crosses = coords.windows(2).any(|w| (w[1][0] - w[0][0]).abs() > 180.0);
         let parts = if crosses {
-            split_at_antimeridian(coords)
+            crate::ingest::wrap::split_at_antimeridian(coords)
         } else {
             Vec::new()
         };
@@ -210,38 +210,6 @@ fn push_json_str(buf: &mut String, s: &str) {
     }
 }
 
-/// The parts of a line cut where a step crosses ±180° (the short way round), each ending or
-/// starting on the meridian; parts of a single position (a vertex on the meridian) are dropped.
-fn split_at_antimeridian(coords: &[[f64; 2]]) -> Vec<Vec<[f64; 2]>> {
-    let mut parts = vec![vec![coords[0]]];
-    for w in coords.windows(2) {
-        let (a, b) = (w[0], w[1]);
-        if (b[0] - a[0]).abs() > 180.0 {
-            let (side, other) = if a[0] > 0.0 {
-                (180.0, -180.0)
-            } else {
-                (-180.0, 180.0)
-            };
-            let to_meridian = side - a[0];
-            let span = to_meridian + (b[0] - other);
-            let t = if span == 0.0 { 0.0 } else { to_meridian / span };
-            let lat = a[1] + t * (b[1] - a[1]);
-            let last = parts.last_mut().expect("a part is always open");
-            if a[0] != side {
-                last.push([side, lat]);
-            }
-            parts.push(vec![[other, lat]]);
-            if b[0] != other {
-                parts.last_mut().expect("just opened").push(b);
-            }
-        } else {
-            parts.last_mut().expect("a part is always open").push(b);
-        }
-    }
-    parts.retain(|p| p.len() > 1);
-    parts
-}
-
 fn push_position(buf: &mut String, c: [f64; 2]) {
     buf.push('[');
     push_decimal(buf, c[0], 7, true);
@@ -310,6 +278,17 @@ fn push_digits(buf: &mut String, mut v: u64, width: usize) {
     buf.push_str(std::str::from_utf8(&tmp[i..]).unwrap_or("0"));
 }
 
+/// A number for any output, shown with exactly `.1` decimals: the one way figures are written
+/// into SVG, HTML and messages, so nothing that rounds to zero prints as `-0`.
+#[derive(Debug, Clone, Copy)]
+pub struct Fixed(pub f64, pub usize);
+
+impl std::fmt::Display for Fixed {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&fixed(self.0, self.1))
+    }
+}
+
 /// `x` with exactly `decimals` decimals; negative zero prints as zero.
 pub fn fixed(x: f64, decimals: usize) -> String {
     let mut s = String::new();
@@ -327,6 +306,7 @@ pub fn trimmed(x: f64, decimals: usize) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::ingest::wrap::split_at_antimeridian;
 
     #[test]
     fn lines_across_the_antimeridian_are_split_there() {

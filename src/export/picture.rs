@@ -2,10 +2,13 @@
 //!
 //! A local equirectangular frame around the district's centre (x scaled by the cosine of the mean
 //! latitude, so shapes and the scale bar hold), the network in light grey, impassable roads dashed,
-//! repairs coloured by day-phase on a ramp of our own that keeps its order in lightness for
-//! colour-blind readers, sites as symbols with labels (thinned when many), a legend, a scale bar, a
-//! north arrow, the district name and the cautions band (see [`super::band`]). Line widths shrink as the network grows.
+//! repairs coloured by day-phase on the ramp of [`super::palette`] (darkest first, ordered in
+//! lightness for colour-blind readers and grey-scale print), sites as symbols with labels (thinned
+//! when many), a legend ([`super::legend`]), a scale bar, a north arrow, the district name and the
+//! cautions band (see [`super::band`]). Line widths shrink as the network grows.
 
+use super::geojson::Fixed;
+use super::palette::{self, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD};
 use super::text::xml;
 use crate::network::Network;
 use crate::solve::order::Step;
@@ -14,11 +17,6 @@ use std::io::{self, Write};
 const W: f64 = 1600.0;
 const H: f64 = 1200.0;
 const MARGIN: f64 = 60.0;
-
-/// Phase colours, dark to light (distinct in lightness as well as hue).
-const RAMP: [&str; 6] = [
-    "#3b1f5c", "#2c5d8a", "#1f8a8a", "#4fae5b", "#b7c83a", "#f2d64b",
-];
 
 /// A site to draw.
 pub struct SiteMark<'a> {
@@ -39,6 +37,8 @@ pub const SIZE: (u32, u32) = (W as u32, H as u32);
 
 /// The local frame: lon/lat to picture pixels, and line widths for the network's size.
 pub struct Frame {
+    /// Western longitudes drawn a turn east (+360°): set when the district straddles ±180°.
+    east: bool,
     lo: [f64; 2],
     mx: f64,
     my: f64,
@@ -50,8 +50,13 @@ pub struct Frame {
 impl Frame {
     /// Pixel position of a lon/lat point.
     pub fn px(&self, p: [f64; 2]) -> (f64, f64) {
+        let lon = if self.east && p[0] < 0.0 {
+            p[0] + 360.0
+        } else {
+            p[0]
+        };
         (
-            MARGIN + (p[0] - self.lo[0]) * self.mx * self.scale,
+            MARGIN + (lon - self.lo[0]) * self.mx * self.scale,
             H - MARGIN - 40.0 - super::band::HEIGHT - (p[1] - self.lo[1]) * self.my * self.scale,
         )
     }
@@ -59,15 +64,24 @@ impl Frame {
 
 /// The frame that fits the network and the sites, leaving room for the legend.
 pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
-    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
-    for p in &net.geom {
-        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
-        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
-    }
-    for s in sites {
-        lo = [lo[0].min(s.pos[0]), lo[1].min(s.pos[1])];
-        hi = [hi[0].max(s.pos[0]), hi[1].max(s.pos[1])];
-    }
+    // The bounds as written and with western longitudes a turn east; a district across ±180° is
+    // narrower the second way, and is drawn so (its edges may step from 179.99 to -179.99).
+    let bounds = |east: bool| {
+        let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+        for &p in net.geom.iter().chain(sites.iter().map(|s| &s.pos)) {
+            let lon = if east && p[0] < 0.0 {
+                p[0] + 360.0
+            } else {
+                p[0]
+            };
+            lo = [lo[0].min(lon), lo[1].min(p[1])];
+            hi = [hi[0].max(lon), hi[1].max(p[1])];
+        }
+        (lo, hi)
+    };
+    let (plain, turned) = (bounds(false), bounds(true));
+    let east = turned.1[0] - turned.0[0] < plain.1[0] - plain.0[0];
+    let (mut lo, mut hi) = if east { turned } else { plain };
     if lo[0] > hi[0] {
         lo = [0.0, 0.0];
         hi = [1e-3, 1e-3];
@@ -84,22 +98,13 @@ pub fn frame(net: &Network, sites: &[SiteMark]) -> Frame {
         .min((H - 2.0 * MARGIN - 80.0 - super::band::HEIGHT) / span[1]);
     let n = net.edges.len().max(1) as f64;
     Frame {
+        east,
         lo,
         mx,
         my,
         scale,
         base: (2.0 / (1.0 + n.log10() / 2.0)).clamp(0.3, 1.6),
     }
-}
-
-/// Colour of a day-phase out of `phases`.
-pub fn phase_colour(phase: u32, phases: u32) -> &'static str {
-    let i = if phases <= 1 {
-        0
-    } else {
-        ((phase - 1) as f64 / (phases - 1) as f64 * (RAMP.len() - 1) as f64).round() as usize
-    };
-    RAMP[i.min(RAMP.len() - 1)]
 }
 
 /// Writes the picture; with `lines` false only the overlay (sites, labels, legend, scale bar,
@@ -127,7 +132,7 @@ pub fn write_svg<W2: Write>(
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="DejaVu Sans, Arial, sans-serif">"#
     )?;
     if lines {
-        writeln!(w, r##"<rect width="100%" height="100%" fill="#ffffff"/>"##)?;
+        writeln!(w, r##"<rect width="100%" height="100%" fill="{PAPER}"/>"##)?;
     }
     let path = |w: &mut io::BufWriter<W2>, e: usize, style: &str| -> io::Result<()> {
         let mut d = String::with_capacity(64);
@@ -150,7 +155,8 @@ pub fn write_svg<W2: Write>(
     // edges do not become a million elements.
     writeln!(
         w,
-        r##"<g id="network" fill="none" stroke-linecap="round" stroke="#c8c8c8" stroke-width="{base:.2}">"##
+        r##"<g id="network" fill="none" stroke-linecap="round" stroke="{ROAD}" stroke-width="{}">"##,
+        Fixed(base, 2)
     )?;
     let usable: Vec<usize> = if lines {
         (0..net.edges.len())
@@ -183,8 +189,8 @@ pub fn write_svg<W2: Write>(
                 &mut w,
                 e,
                 &format!(
-                    r##"stroke="#8c2d04" stroke-width="{:.2}" stroke-dasharray="4 3""##,
-                    base * 1.2
+                    r#"stroke="{IMPASSABLE}" stroke-width="{}" stroke-dasharray="4 3""#,
+                    Fixed(base * 1.2, 2)
                 ),
             )?;
         }
@@ -199,22 +205,22 @@ pub fn write_svg<W2: Write>(
             path(
                 &mut w,
                 e as usize,
-                &format!(r##"stroke="#6e6e6e" stroke-width="{:.2}""##, base * 1.8),
+                &format!(r#"stroke="{PLAN_INTACT}" stroke-width="{}""#, Fixed(base * 1.8, 2)),
             )?;
         }
     }
     writeln!(w, "</g>")?;
     let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
-    let colour = |phase: u32| phase_colour(phase, phases);
+    let colour = |phase: u32| palette::day_colour(phase, phases);
     writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round">"#)?;
     for s in steps_drawn {
         path(
             &mut w,
             s.edge as usize,
             &format!(
-                r#"stroke="{}" stroke-width="{:.2}""#,
+                r#"stroke="{}" stroke-width="{}""#,
                 colour(s.phase),
-                base * 3.0
+                Fixed(base * 3.0, 2)
             ),
         )?;
     }
@@ -231,26 +237,28 @@ pub fn write_svg<W2: Write>(
     writeln!(w, r#"<g id="sites" font-size="13">"#)?;
     for (i, s) in sites.iter().enumerate() {
         let (x, y) = px(s.pos);
-        let fill = if s.connected { "#000000" } else { "#ffffff" };
+        let fill = if s.connected { INK } else { PAPER };
         if s.hub {
             writeln!(
                 w,
-                r##"<rect x="{:.1}" y="{:.1}" width="12" height="12" fill="#000000" stroke="#ffffff"/>"##,
-                x - 6.0,
-                y - 6.0
+                r##"<rect x="{}" y="{}" width="12" height="12" fill="{INK}" stroke="{PAPER}"/>"##,
+                Fixed(x - 6.0, 1),
+                Fixed(y - 6.0, 1)
             )?;
         } else {
             writeln!(
                 w,
-                r##"<circle cx="{x:.1}" cy="{y:.1}" r="5" fill="{fill}" stroke="#000000" stroke-width="1.5"/>"##
+                r##"<circle cx="{}" cy="{}" r="5" fill="{fill}" stroke="{INK}" stroke-width="1.5"/>"##,
+                Fixed(x, 1),
+                Fixed(y, 1)
             )?;
         }
         if labelled.contains(&i) {
             writeln!(
                 w,
-                r##"<text x="{:.1}" y="{:.1}" stroke="#ffffff" stroke-width="3" paint-order="stroke">{}</text>"##,
-                x + 8.0,
-                y - 6.0,
+                r##"<text x="{}" y="{}" stroke="{PAPER}" stroke-width="3" paint-order="stroke">{}</text>"##,
+                Fixed(x + 8.0, 1),
+                Fixed(y - 6.0, 1),
                 xml(s.label)
             )?;
         }
@@ -262,59 +270,7 @@ pub fn write_svg<W2: Write>(
         r#"<text id="title" x="{MARGIN}" y="38" font-size="24" font-weight="bold">{}</text>"#,
         xml(title)
     )?;
-    writeln!(
-        w,
-        r##"<g id="legend" font-size="13"><rect x="{:.0}" y="60" width="230" height="{:.0}" fill="#ffffff" stroke="#888888"/>"##,
-        W - 290.0,
-        120.0 + 20.0 * phases.min(6) as f64
-    )?;
-    let lx = W - 280.0;
-    let mut ly = 82.0;
-    for (label, style) in [
-        ("road (usable)", r##"stroke="#c8c8c8" stroke-width="2""##),
-        (
-            "road impassable",
-            r##"stroke="#8c2d04" stroke-width="2" stroke-dasharray="4 3""##,
-        ),
-        (
-            "intact road in plan",
-            r##"stroke="#6e6e6e" stroke-width="3""##,
-        ),
-    ] {
-        writeln!(
-            w,
-            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" {style}/><text x="{}" y="{}">{label}</text>"#,
-            lx + 30.0,
-            lx + 40.0,
-            ly + 4.0
-        )?;
-        ly += 20.0;
-    }
-    let shown: Vec<u32> = if phases <= 6 {
-        (1..=phases).collect()
-    } else {
-        vec![1, phases / 2, phases]
-    };
-    for p in shown {
-        writeln!(
-            w,
-            r#"<line x1="{lx}" y1="{ly}" x2="{}" y2="{ly}" stroke="{}" stroke-width="5"/><text x="{}" y="{}">repair, day {p}</text>"#,
-            lx + 30.0,
-            colour(p),
-            lx + 40.0,
-            ly + 4.0
-        )?;
-        ly += 20.0;
-    }
-    writeln!(
-        w,
-        r##"<rect x="{}" y="{}" width="10" height="10" fill="#000000"/><text x="{}" y="{}">hub · ● site joined · ○ not joined</text>"##,
-        lx + 10.0,
-        ly - 5.0,
-        lx + 40.0,
-        ly + 4.0
-    )?;
-    writeln!(w, "</g>")?;
+    super::legend::write(&mut w, phases)?;
     // Scale bar: a round length near a fifth of the width.
     let target_m = (W - 2.0 * MARGIN) / 5.0 / scale;
     let pow = 10f64.powf(target_m.log10().floor());
@@ -332,15 +288,16 @@ pub fn write_svg<W2: Write>(
     };
     writeln!(
         w,
-        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{bar:.1}" height="6" fill="#000000"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{:.1}" y="{}" font-size="13">{label}</text></g>"##,
+        r##"<g id="scale-bar"><rect x="{bx}" y="{}" width="{}" height="6" fill="{INK}"/><text x="{bx}" y="{}" font-size="13">0</text><text x="{}" y="{}" font-size="13">{label}</text></g>"##,
         by - 6.0,
+        Fixed(bar, 1),
         by - 10.0,
-        bx + bar - 20.0,
+        Fixed(bx + bar - 20.0, 1),
         by - 10.0
     )?;
     writeln!(
         w,
-        r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="#000000"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
+        r##"<g id="north-arrow"><path d="M {0} {1} L {2} {3} L {0} {4} L {5} {3} Z" fill="{INK}"/><text x="{6}" y="{7}" font-size="16" font-weight="bold">N</text></g>"##,
         W - 60.0,
         H - 110.0 - super::band::HEIGHT,
         W - 50.0,

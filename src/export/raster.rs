@@ -4,6 +4,7 @@
 //! Sans compiled into the program so labels appear on any machine (no system fonts are consulted,
 //! so the pixels are the same everywhere). The font's licence: `src/export/fonts/LICENSE-DejaVu.txt`.
 
+use super::palette;
 use super::picture::{self, SiteMark};
 use crate::network::Network;
 use crate::solve::order::Step;
@@ -83,14 +84,14 @@ pub fn render_png(
     stroke_edges(
         &mut pixmap,
         &mut (0..net.edges.len()).filter(|&e| net.edges[e].usable()),
-        "#c8c8c8",
+        palette::ROAD,
         b,
         false,
     );
     stroke_edges(
         &mut pixmap,
         &mut (0..net.edges.len()).filter(|&e| !net.edges[e].usable()),
-        "#8c2d04",
+        palette::IMPASSABLE,
         b * 1.2,
         true,
     );
@@ -100,7 +101,7 @@ pub fn render_png(
             .iter()
             .map(|&e| e as usize)
             .filter(|&e| net.edges[e].cost == 0),
-        "#6e6e6e",
+        palette::PLAN_INTACT,
         b * 1.8,
         false,
     );
@@ -112,7 +113,7 @@ pub fn render_png(
                 .iter()
                 .filter(|s| s.phase == p)
                 .map(|s| s.edge as usize),
-            picture::phase_colour(p, phases),
+            &palette::day_colour(p, phases),
             b * 3.0,
             false,
         );

@@ -3,7 +3,8 @@
 //! Control characters (U+0000–U+001F, U+007F–U+009F) never abort a run: they are replaced with
 //! U+FFFD in SVG, HTML and CSV, and shown escaped on the terminal. A free-text CSV cell that
 //! begins with `=`, `+`, `-`, `@`, a tab or a carriage return gets a leading `'`, so a spreadsheet
-//! shows it as text instead of running it as a formula; [`csv_text`] removes that prefix again.
+//! shows it as text instead of running it as a formula; a cell that begins with `'` itself gets
+//! one more, so [`csv_text`] can remove the prefix again without ambiguity.
 
 use std::borrow::Cow;
 
@@ -14,9 +15,9 @@ const REPLACEMENT: char = '\u{FFFD}';
 const FORMULA_START: [char; 6] = ['=', '+', '-', '@', '\t', '\r'];
 
 /// A free-text CSV cell (a road name, an id, a site list): prefixed with `'` when it begins like a
-/// formula, control characters replaced. Never used for numeric columns.
+/// formula or with `'`, control characters replaced. Never used for numeric columns.
 pub fn csv_cell(s: &str) -> Cow<'_, str> {
-    let guard = s.starts_with(FORMULA_START);
+    let guard = s.starts_with(FORMULA_START) || s.starts_with('\'');
     if !guard && !s.chars().any(char::is_control) {
         return Cow::Borrowed(s);
     }
@@ -31,10 +32,14 @@ pub fn csv_cell(s: &str) -> Cow<'_, str> {
     Cow::Owned(out)
 }
 
-/// The text of a cell written by [`csv_cell`]: the `'` before a formula character removed.
+/// The text of a cell written by [`csv_cell`]: the `'` it added removed (the one before a formula
+/// character, a replaced tab or carriage return, or another `'`). Every reader of reknit's own
+/// CSV files goes through it; numeric cells pass unchanged.
 pub fn csv_text(cell: &str) -> &str {
     match cell.strip_prefix('\'') {
-        Some(rest) if rest.starts_with(FORMULA_START) || rest.starts_with(REPLACEMENT) => rest,
+        Some(rest) if rest.starts_with(FORMULA_START) || rest.starts_with(['\'', REPLACEMENT]) => {
+            rest
+        }
         _ => cell,
     }
 }
@@ -87,15 +92,25 @@ mod tests {
     #[test]
     fn formula_cells_are_neutralised_and_read_back() {
         // OWASP "CSV Injection": cells starting with = + - @ tab or CR get a leading quote.
-        for s in ["=1+2", "+1", "-2", "@SUM(A1)", "\tx", "\rx"] {
+        for s in [
+            "=1+2", "+1", "-2", "@SUM(A1)", "\tx", "\rx", "'=x", "'quoted", "'", "''",
+        ] {
             let cell = csv_cell(s);
             assert!(cell.starts_with('\''), "{s:?} → {cell:?}");
-            if !s.starts_with(['\t', '\r']) {
-                assert_eq!(csv_text(&cell), s);
-            }
+            // Read back: the original, with only control characters replaced.
+            let replaced: String = s
+                .chars()
+                .map(|c| if c.is_control() { REPLACEMENT } else { c })
+                .collect();
+            assert_eq!(csv_text(&cell), replaced, "{s:?} → {cell:?}");
         }
-        assert_eq!(csv_cell("Main Street"), "Main Street");
-        assert_eq!(csv_text("'quoted"), "'quoted");
+        // Every other leading character class passes both ways unchanged.
+        for s in ["Main Street", "7", "0.5", "", "\u{FFFD}x", "é", " =x", "#1"] {
+            assert_eq!(csv_cell(s), s);
+            assert_eq!(csv_text(s), s);
+        }
+        // A control character elsewhere is replaced and read back replaced.
+        assert_eq!(csv_text(&csv_cell("a\u{1}=")), "a\u{FFFD}=");
     }
 
     #[test]

@@ -2,8 +2,9 @@
 //! maximum distance, splitting that edge at the foot of the perpendicular into two edges that share
 //! the cost in proportion to their lengths.
 
-use super::geodesy::{metres_per_degree, polyline_length_m};
+use super::geodesy::polyline_length_m;
 use super::sites::Site;
+use super::wrap::{self, Frame};
 use crate::network::{Edge, Network};
 use rstar::primitives::{GeomWithData, Line};
 use rstar::{AABB, RTree};
@@ -44,24 +45,43 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
     let segs: Vec<Seg> = (0..net.edges.len())
         .flat_map(|e| {
             let g = net.edge_geometry(e);
-            (0..g.len() - 1)
-                .map(move |k| GeomWithData::new(Line::new(g[k], g[k + 1]), (e as u32, k as u32)))
+            // Each segment held unwrapped: its second end within 180° of its first.
+            (0..g.len() - 1).map(move |k| {
+                GeomWithData::new(
+                    Line::new(g[k], wrap::unwrap(g[k + 1], g[k])),
+                    (e as u32, k as u32),
+                )
+            })
         })
         .collect();
     let tree = RTree::bulk_load(segs);
+    let data_lon = if tree.size() == 0 {
+        [-180.0, 180.0]
+    } else {
+        let e = tree.root().envelope();
+        [e.lower()[0], e.upper()[0]]
+    };
     let mut out = Vec::with_capacity(sites.len());
     let mut cuts: BTreeMap<u32, Vec<Cut>> = BTreeMap::new();
     for (si, site) in sites.iter().enumerate() {
         let p = site.pos;
-        let (my, mx) = metres_per_degree(p[1]);
-        let (_, mx_far) = metres_per_degree((p[1].abs() + max_attach_m / my).min(89.9));
-        let (dlon, dlat) = (max_attach_m / mx_far.max(1e-9), max_attach_m / my);
-        let env = AABB::from_corners([p[0] - dlon, p[1] - dlat], [p[0] + dlon, p[1] + dlat]);
+        // Feet found in a frame at the site that wraps at ±180°; distances geodesic (true metres near
+        // the poles too).
+        let frame = Frame::at(p);
+        let (dlon, dlat) = wrap::reach_deg(max_attach_m, p[1].abs());
+        let dlon = dlon.unwrap_or(360.0);
+        let boxes = wrap::search_boxes(
+            [p[0] - dlon, p[1] - dlat],
+            [p[0] + dlon, p[1] + dlat],
+            data_lon,
+        );
         let mut best: Option<(f64, u32, u32, f64)> = None;
         let mut closed: Option<f64> = None;
-        for s in tree.locate_in_envelope_intersecting(&env) {
+        for s in boxes.iter().flat_map(|(lo, hi)| {
+            tree.locate_in_envelope_intersecting(&AABB::from_corners(*lo, *hi))
+        }) {
             let (e, k) = s.data;
-            let (d, t) = foot(p, s.geom().from, s.geom().to, my, mx);
+            let (d, t) = frame.foot(s.geom().from, s.geom().to);
             if d > max_attach_m {
                 continue;
             }
@@ -85,21 +105,28 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
                 out.push(Attachment {
                     junction: None,
                     distance_m: Some(d),
-                    point: Some([a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])]),
+                    point: Some(wrap::lerp(a, b, t)),
                     failure: None,
                 });
             }
             None => {
-                let nearest = tree
-                    .nearest_neighbor(&p)
-                    .map(|s| foot(p, s.geom().from, s.geom().to, my, mx).0);
+                // The nearest segment by degrees, looked for on both sides of ±180°.
+                let nearest = [0.0, -360.0, 360.0]
+                    .into_iter()
+                    .filter_map(|k| tree.nearest_neighbor(&[p[0] + k, p[1]]))
+                    .map(|s| frame.foot(s.geom().from, s.geom().to).0)
+                    .min_by(f64::total_cmp);
                 let failure = match closed {
                     Some(c) => format!(
-                        "only impassable roads within {max_attach_m} m (nearest at {c:.1} m)"
+                        "only impassable roads within {max_attach_m} m (nearest at {} m)",
+                        crate::export::geojson::Fixed(c, 1)
                     ),
                     None => match nearest {
                         Some(n) => {
-                            format!("no road within {max_attach_m} m (nearest about {n:.1} m away)")
+                            format!(
+                                "no road within {max_attach_m} m (nearest about {} m away)",
+                                crate::export::geojson::Fixed(n, 1)
+                            )
                         }
                         None => format!("no road within {max_attach_m} m"),
                     },
@@ -115,24 +142,6 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
     }
     split_edges(net, cuts, &mut out);
     out
-}
-
-/// Distance in metres from `p` to segment a–b and the fraction along it of the closest point, in a
-/// plane tangent at `p` (exact to far below a millimetre over a few hundred metres).
-fn foot(p: [f64; 2], a: [f64; 2], b: [f64; 2], my: f64, mx: f64) -> (f64, f64) {
-    let ax = (a[0] - p[0]) * mx;
-    let ay = (a[1] - p[1]) * my;
-    let bx = (b[0] - p[0]) * mx;
-    let by = (b[1] - p[1]) * my;
-    let (dx, dy) = (bx - ax, by - ay);
-    let len2 = dx * dx + dy * dy;
-    let t = if len2 > 0.0 {
-        (-(ax * dx + ay * dy) / len2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    let (fx, fy) = (ax + t * dx, ay + t * dy);
-    ((fx * fx + fy * fy).sqrt(), t)
 }
 
 /// Splits the cut edges in place (pieces take the edge's position, later ids shift) and records
@@ -178,7 +187,8 @@ fn split_edges(net: &mut Network, cuts: BTreeMap<u32, Vec<Cut>>, out: &mut [Atta
                 Some(i) => g[i],
                 None => {
                     let (a, b) = (g[c.seg], g[c.seg + 1]);
-                    super::geodesy::round7([a[0] + c.t * (b[0] - a[0]), a[1] + c.t * (b[1] - a[1])])
+                    let r = super::geodesy::round7(wrap::lerp(a, b, c.t));
+                    [wrap::fold(r[0]), r[1]]
                 }
             };
             points.push((s, at_vertex, coord, vec![c.site]));

@@ -1,7 +1,7 @@
 //! Edge-level clean-up after splitting: trimming overshoots and removing near-duplicates.
 
-use super::geodesy::metres_per_degree;
 use super::qa::{QaKind, QaPoint};
+use super::wrap::Frame;
 use crate::network::Network;
 
 /// Removes short dangling pieces past a junction and edges that run within `snap_m` of another edge
@@ -80,20 +80,10 @@ pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, u
 
 /// True when every vertex of each polyline lies within `tol` metres of the other.
 fn within(a: &[[f64; 2]], b: &[[f64; 2]], tol: f64) -> bool {
+    // Feet found in a frame at each vertex that wraps at ±180°; distances geodesic.
     let near = |p: [f64; 2], line: &[[f64; 2]]| {
-        let (my, mx) = metres_per_degree(p[1]);
-        line.windows(2).any(|w| {
-            let (ax, ay) = ((w[0][0] - p[0]) * mx, (w[0][1] - p[1]) * my);
-            let (bx, by) = ((w[1][0] - p[0]) * mx, (w[1][1] - p[1]) * my);
-            let (dx, dy) = (bx - ax, by - ay);
-            let l2 = dx * dx + dy * dy;
-            let t = if l2 > 0.0 {
-                (-(ax * dx + ay * dy) / l2).clamp(0.0, 1.0)
-            } else {
-                0.0
-            };
-            (ax + t * dx).hypot(ay + t * dy) <= tol
-        })
+        let frame = Frame::at(p);
+        line.windows(2).any(|w| frame.foot(w[0], w[1]).0 <= tol)
     };
     a.iter().all(|&p| near(p, b)) && b.iter().all(|&p| near(p, a))
 }

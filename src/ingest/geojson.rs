@@ -167,6 +167,16 @@ where
                         .map_err(|e| syntax(&e, pos, None))?;
                 }
             }
+            // Valid JSON by now; a name twice inside it is refused as in a feature.
+            if let Err(m) = std::str::from_utf8(text)
+                .map_err(|e| e.to_string())
+                .and_then(super::members::unique)
+            {
+                return Err(ReadFailure::Syntax {
+                    message: format!("inside \"{key}\": {m}"),
+                    feature: None,
+                });
+            }
         }
         match sc.peek().map_err(io)? {
             Some(b',') => sc.bump(),
@@ -342,10 +352,8 @@ impl<'de> Visitor<'de> for FeatureSeed<'_> {
                         keys: self.collect_keys.then_some(&mut f.keys),
                     })?
                 }
-                "id" => f.id = Some(as_written(&map.next_value::<Box<RawValue>>()?)?),
-                _ => {
-                    map.next_value::<IgnoredAny>()?;
-                }
+                "id" => f.id = Some(as_written(&map.next_value::<Box<RawValue>>()?, "id")?),
+                _ => checked(&mut map, &key)?,
             }
         }
         match kind.as_deref() {
@@ -409,9 +417,7 @@ impl<'de> Visitor<'de> for GeometrySeed<'_> {
             match key.as_str() {
                 "type" => kind = Some(map.next_value()?),
                 "coordinates" => map.next_value_seed(CoordsSeed(&mut *self.coords))?,
-                _ => {
-                    map.next_value::<IgnoredAny>()?;
-                }
+                _ => checked(&mut map, &format!("geometry\" member \"{key}"))?,
             }
         }
         match kind {
@@ -423,13 +429,26 @@ impl<'de> Visitor<'de> for GeometrySeed<'_> {
 
 /// A property or id value under the typing rule (`super::value`): a number whose spelling a double
 /// would not reproduce (`1.50`, `1e2`, digits beyond a 64-bit integer) is kept as its text.
-fn as_written<E: de::Error>(raw: &RawValue) -> Result<Value, E> {
+/// `member` names the value in messages.
+fn as_written<E: de::Error>(raw: &RawValue, member: &str) -> Result<Value, E> {
     let text = raw.get();
+    unique_in(text, member)?;
     let v: Value = serde_json::from_str(text).map_err(E::custom)?;
     Ok(match &v {
         Value::Number(n) if n.to_string() != text => Value::from(text),
         _ => v,
     })
+}
+
+/// Skips the value of `member`, refusing a name given twice in any object inside it.
+fn checked<'de, A: MapAccess<'de>>(map: &mut A, member: &str) -> Result<(), A::Error> {
+    let raw = map.next_value::<&'de RawValue>()?;
+    unique_in(raw.get(), member)
+}
+
+/// Refuses a name given twice in any object inside the JSON `text` of `member`.
+fn unique_in<E: de::Error>(text: &str, member: &str) -> Result<(), E> {
+    super::members::unique(text).map_err(|m| E::custom(format_args!("inside \"{member}\": {m}")))
 }
 
 struct PropsSeed<'a> {
@@ -469,10 +488,10 @@ impl<'de> Visitor<'de> for PropsSeed<'_> {
             if self.wanted.contains(&key)
                 || self.wanted.first().is_some_and(|w| w == ALL_PROPERTIES)
             {
-                let v = as_written(&map.next_value::<Box<RawValue>>()?)?;
+                let v = as_written(&map.next_value::<Box<RawValue>>()?, &key)?;
                 self.out.push((key, v));
             } else {
-                map.next_value::<IgnoredAny>()?;
+                checked(&mut map, &key)?;
             }
         }
         Ok(true)

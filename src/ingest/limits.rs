@@ -80,10 +80,8 @@ fn find(h: &[u8]) -> bool {
 /// Reads a small text file whole: at most [`MAX_SMALL_FILE`] bytes, a byte-order mark skipped,
 /// other formats named, UTF-8 required. Errors carry a plain message (the caller names the file).
 pub fn read_small_text(path: &Path) -> io::Result<String> {
+    regular_file(path)?;
     let f = std::fs::File::open(path)?;
-    if f.metadata().is_ok_and(|m| m.is_dir()) {
-        return Err(io::Error::other("is a directory, expected a file"));
-    }
     let mut bytes = Vec::new();
     f.take(MAX_SMALL_FILE + 1).read_to_end(&mut bytes)?;
     if bytes.len() as u64 > MAX_SMALL_FILE {
@@ -100,6 +98,33 @@ pub fn read_small_text(path: &Path) -> io::Result<String> {
             e.utf8_error().valid_up_to() + skip
         ))
     })
+}
+
+/// Refuses a path that is not a regular file (after following links), naming what it is: a named
+/// pipe would block the open until some writer appears, a socket cannot be read as a file, and a
+/// device or folder has no end or no text. Checked before opening, so nothing ever waits.
+pub fn regular_file(path: &Path) -> io::Result<()> {
+    use std::os::unix::fs::FileTypeExt;
+    let t = std::fs::metadata(path)?.file_type();
+    let kind = if t.is_file() {
+        return Ok(());
+    } else if t.is_dir() {
+        "a directory"
+    } else if t.is_fifo() {
+        "a named pipe (FIFO)"
+    } else if t.is_socket() {
+        "a socket"
+    } else if t.is_block_device() {
+        "a block device"
+    } else if t.is_char_device() {
+        "a character device"
+    } else {
+        "not a file"
+    };
+    Err(io::Error::other(format!(
+        "is {kind}, not a regular file; reknit reads its inputs from regular files only (save \
+         the data to a file first)"
+    )))
 }
 
 /// A reader that fails once more than `max` bytes pass without a line break (CSV rows).

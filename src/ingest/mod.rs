@@ -7,6 +7,7 @@
 pub mod attach;
 pub mod attribution;
 pub mod cleanup;
+pub mod cluster;
 pub mod coords;
 pub mod cost_table;
 pub mod crs;
@@ -14,6 +15,7 @@ pub mod damage;
 pub mod geodesy;
 pub mod geojson;
 pub mod limits;
+pub mod members;
 pub mod noding;
 pub mod qa;
 pub mod repair;
@@ -26,6 +28,7 @@ pub mod sites;
 pub mod source;
 pub mod structures;
 pub mod value;
+pub mod wrap;
 pub mod zones;
 
 use crate::network::Network;

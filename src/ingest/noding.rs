@@ -8,9 +8,10 @@
 //! 3. Lines are split at junctions into edges; exact duplicate edges and collapsed lines are dropped.
 //! 4. Edge lengths are measured on the ellipsoid, in parallel.
 
-use super::geodesy::{distance_m, metres_per_degree, polyline_length_m};
+use super::geodesy::{distance_m, polyline_length_m};
 use super::qa::{QaKind, QaPoint};
 use super::roads::LineLayer;
+use super::wrap::same_place;
 use crate::fxhash::FxHashMap;
 use crate::network::{Edge, Network, cost_of};
 use rayon::prelude::*;
@@ -77,7 +78,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         ..Default::default()
     };
     let mut qa: Vec<QaPoint> = Vec::new();
-    let (cid, founders) = cluster(&layer.coords, snap_m);
+    let (cid, founders) = super::cluster::cluster(&layer.coords, snap_m);
     let mut centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
     let mut centres_native: Vec<[f64; 2]> = if layer.native.is_empty() {
         Vec::new()
@@ -87,7 +88,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     let mut moved: std::collections::BTreeMap<u32, (f64, u32)> = Default::default();
     for (i, &c) in cid.iter().enumerate() {
         let centre = centres[c as usize];
-        if centre != layer.coords[i] {
+        if !same_place(centre, layer.coords[i]) {
             stats.vertices_moved += 1;
             let d = distance_m(layer.coords[i], centre);
             stats.max_move_m = stats.max_move_m.max(d);
@@ -345,254 +346,4 @@ fn hash_canonical(piece: &[u32]) -> u64 {
         piece.iter().for_each(|&x| h.write_u32(x));
     }
     h.finish()
-}
-
-/// Assigns every vertex a cluster; returns (cluster per vertex, the vertex founding each cluster,
-/// whose position is the cluster's centre).
-///
-/// With `snap_m == 0` only bit-identical coordinates share a cluster. Otherwise the result is that of
-/// one pass in input order where each vertex joins the nearest existing centre within `snap_m` metres
-/// (ties: the older cluster) or founds a new one, so centres are always more than `snap_m` apart and
-/// no vertex moves farther than `snap_m`. Clusters are numbered in order of first appearance.
-///
-/// Most vertices have no other position within the tolerance; those are found in parallel on a sorted
-/// grid, and only the rest ("contested" vertices) go through the sequential pass.
-pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
-    let n = coords.len();
-    let grid = Grid::new(coords, snap_m);
-    let mut keyed: Vec<(u64, u32)> = coords
-        .par_iter()
-        .enumerate()
-        .map(|(i, p)| (grid.key(*p), i as u32))
-        .collect();
-    keyed.par_sort_unstable();
-    // Start of every run of equal cell keys.
-    let mut starts: Vec<u32> = Vec::new();
-    for i in 0..keyed.len() {
-        if i == 0 || keyed[i].0 != keyed[i - 1].0 {
-            starts.push(i as u32);
-        }
-    }
-    starts.push(keyed.len() as u32);
-    let cell_keys: Vec<u64> = starts[..starts.len() - 1]
-        .iter()
-        .map(|&s| keyed[s as usize].0)
-        .collect();
-
-    // Per cell: the first vertex at each exact position, and whether another position lies within
-    // the tolerance (in this cell or a neighbouring one). Cells are taken in chunks to keep tasks
-    // large; results go straight into per-vertex arrays (each vertex is written by one task only).
-    use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
-    const CONTESTED: u32 = 1 << 31;
-    let slots: Vec<AtomicU32> = (0..n).map(|_| AtomicU32::new(0)).collect();
-    let cells = cell_keys.len();
-    (0..cells.div_ceil(4096)).into_par_iter().for_each(|chunk| {
-        let mut local: Vec<(u64, u64, u32)> = Vec::new();
-        for ci in chunk * 4096..((chunk + 1) * 4096).min(cells) {
-            let cell = &keyed[starts[ci] as usize..starts[ci + 1] as usize];
-            let bits = |i: u32| {
-                let p = coords[i as usize];
-                ((p[0] + 0.0).to_bits(), (p[1] + 0.0).to_bits(), i)
-            };
-            local.clear();
-            local.extend(cell.iter().map(|&(_, i)| bits(i)));
-            if local.len() > 1 {
-                local.sort_unstable();
-            }
-            let mut k = 0;
-            while k < local.len() {
-                let (x, y, first) = local[k];
-                let contested = snap_m > 0.0
-                    && grid.has_other_within(
-                        coords,
-                        coords[first as usize],
-                        &cell_keys,
-                        &starts,
-                        &keyed,
-                    );
-                let value = first | if contested { CONTESTED } else { 0 };
-                while k < local.len() && local[k].0 == x && local[k].1 == y {
-                    slots[local[k].2 as usize].store(value, Relaxed);
-                    k += 1;
-                }
-            }
-        }
-    });
-    drop(keyed);
-    drop(starts);
-    drop(cell_keys);
-    let mut contested = vec![false; n];
-    let mut rep: Vec<u32> = slots
-        .into_iter()
-        .zip(contested.iter_mut())
-        .map(|(v, c)| {
-            let v = v.into_inner();
-            *c = v & CONTESTED != 0;
-            v & !CONTESTED
-        })
-        .collect();
-    if snap_m > 0.0 {
-        greedy_snap(coords, snap_m, &contested, &mut rep);
-    }
-    // Number clusters by first appearance: a representative always precedes its members.
-    let mut cid = vec![0u32; n];
-    let mut founders = Vec::new();
-    for i in 0..n {
-        let r = rep[i] as usize;
-        if r == i {
-            cid[i] = founders.len() as u32;
-            founders.push(i as u32);
-        } else {
-            cid[i] = cid[r];
-        }
-    }
-    (cid, founders)
-}
-
-/// Grid cells eight times the tolerance wide, in degrees, conservative over the data's latitudes.
-///
-/// Wide cells mean most points lie farther than the tolerance from every border, so usually one
-/// cell, rarely up to four, is searched.
-struct Grid {
-    cell: [f64; 2],
-    tol: [f64; 2],
-    snap_m: f64,
-}
-
-impl Grid {
-    fn new(coords: &[[f64; 2]], snap_m: f64) -> Grid {
-        let max_lat = coords
-            .iter()
-            .fold(0.0f64, |m, p| m.max(p[1].abs()))
-            .min(89.9);
-        let (my_eq, _) = metres_per_degree(0.0);
-        let (_, mx_min) = metres_per_degree(max_lat);
-        let tol = [snap_m / mx_min, snap_m / my_eq];
-        // Cells never finer than 2^-31 of the globe, so keys fit in 32 bits per axis.
-        let floor = 360.0 / (1u64 << 31) as f64;
-        Grid {
-            cell: [(8.0 * tol[0]).max(floor), (8.0 * tol[1]).max(floor)],
-            tol,
-            snap_m,
-        }
-    }
-
-    fn cell_of(&self, p: [f64; 2]) -> (i64, i64) {
-        (
-            (p[0] / self.cell[0]).floor() as i64,
-            (p[1] / self.cell[1]).floor() as i64,
-        )
-    }
-
-    fn pack(c: (i64, i64)) -> u64 {
-        let bias = 1i64 << 31;
-        (((c.0 + bias) as u64) << 32) | ((c.1 + bias) as u64 & 0xFFFF_FFFF)
-    }
-
-    fn key(&self, p: [f64; 2]) -> u64 {
-        Self::pack(self.cell_of(p))
-    }
-
-    /// The cells to search around `p`: its own, plus neighbours whose border lies within tolerance.
-    fn neighbourhood(&self, p: [f64; 2]) -> impl Iterator<Item = (i64, i64)> {
-        let (cx, cy) = self.cell_of(p);
-        let rx = p[0] - cx as f64 * self.cell[0];
-        let ry = p[1] - cy as f64 * self.cell[1];
-        let side = |r: f64, cell: f64, tol: f64| {
-            if r < tol {
-                -1
-            } else if r > cell - tol {
-                1
-            } else {
-                0
-            }
-        };
-        let dx = side(rx, self.cell[0], self.tol[0]);
-        let dy = side(ry, self.cell[1], self.tol[1]);
-        let cells = [(0, 0), (dx, 0), (0, dy), (dx, dy)];
-        let used = [true, dx != 0, dy != 0, dx != 0 && dy != 0];
-        cells
-            .into_iter()
-            .zip(used)
-            .filter(|(_, u)| *u)
-            .map(move |((ox, oy), _)| (cx + ox, cy + oy))
-    }
-
-    /// True when some vertex at a different position lies within the tolerance of `p`.
-    fn has_other_within(
-        &self,
-        coords: &[[f64; 2]],
-        p: [f64; 2],
-        cell_keys: &[u64],
-        starts: &[u32],
-        keyed: &[(u64, u32)],
-    ) -> bool {
-        let (my, mx) = metres_per_degree(p[1]);
-        for c in self.neighbourhood(p) {
-            let Ok(ci) = cell_keys.binary_search(&Self::pack(c)) else {
-                continue;
-            };
-            for &(_, j) in &keyed[starts[ci] as usize..starts[ci + 1] as usize] {
-                let q = coords[j as usize];
-                if q != p && scaled_distance(p, q, my, mx) <= self.snap_m {
-                    return true;
-                }
-            }
-        }
-        false
-    }
-}
-
-/// Distance in metres for short steps with the scales (metres per degree) at one end's latitude:
-/// within 1e-4 relative of the mid-latitude formula over a kilometre, far below any tolerance's
-/// precision.
-fn scaled_distance(p: [f64; 2], q: [f64; 2], my: f64, mx: f64) -> f64 {
-    let mut dlon = q[0] - p[0];
-    if dlon.abs() > 180.0 {
-        dlon -= 360.0f64.copysign(dlon);
-    }
-    ((dlon * mx).powi(2) + ((q[1] - p[1]) * my).powi(2)).sqrt()
-}
-
-/// The sequential pass over contested vertices, in input order: each joins the nearest existing
-/// centre within the tolerance (ties: the older centre) or founds a new one. Uncontested vertices
-/// cannot be within the tolerance of any contested one, so they need no part in it.
-fn greedy_snap(coords: &[[f64; 2]], snap_m: f64, contested: &[bool], rep: &mut [u32]) {
-    let grid = Grid::new(coords, snap_m);
-    let mut head: FxHashMap<(i64, i64), u32> = FxHashMap::default();
-    let mut next: Vec<u32> = Vec::new();
-    let mut founders: Vec<u32> = Vec::new();
-    for (i, p) in coords.iter().enumerate() {
-        if !contested[i] {
-            continue;
-        }
-        let (my, mx) = metres_per_degree(p[1]);
-        let mut best: Option<(f64, u32)> = None;
-        for c in grid.neighbourhood(*p) {
-            let mut k = head.get(&c).copied().unwrap_or(u32::MAX);
-            while k != u32::MAX {
-                let q = coords[founders[k as usize] as usize];
-                let d = if q == *p {
-                    0.0
-                } else {
-                    scaled_distance(*p, q, my, mx)
-                };
-                if d <= snap_m && best.is_none_or(|(bd, bk)| d < bd || (d == bd && k < bk)) {
-                    best = Some((d, k));
-                }
-                k = next[k as usize];
-            }
-        }
-        rep[i] = match best {
-            Some((_, k)) => founders[k as usize],
-            None => {
-                let k = founders.len() as u32;
-                founders.push(i as u32);
-                let h = head.entry(grid.cell_of(*p)).or_insert(u32::MAX);
-                next.push(*h);
-                *h = k;
-                i as u32
-            }
-        };
-    }
 }

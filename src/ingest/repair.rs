@@ -7,8 +7,8 @@
 //! Segments are found through a grid keyed by each segment's midpoint (cells wider than a short
 //! segment plus the tolerance, sorted in parallel); the few long segments go to an R-tree.
 
-use super::geodesy::metres_per_degree;
 use super::qa::{QaKind, QaPoint};
+use super::wrap::{self, Frame};
 use rayon::prelude::*;
 use rstar::primitives::{GeomWithData, Line};
 use rstar::{AABB, RTree};
@@ -73,21 +73,6 @@ struct Insert {
     cluster: u32,
 }
 
-/// Distance (m) from `p` to segment a–b and the fraction along it, in a plane tangent at `p`.
-fn foot(p: [f64; 2], a: [f64; 2], b: [f64; 2]) -> (f64, f64) {
-    let (my, mx) = metres_per_degree(p[1]);
-    let (ax, ay) = ((a[0] - p[0]) * mx, (a[1] - p[1]) * my);
-    let (bx, by) = ((b[0] - p[0]) * mx, (b[1] - p[1]) * my);
-    let (dx, dy) = (bx - ax, by - ay);
-    let len2 = dx * dx + dy * dy;
-    let t = if len2 > 0.0 {
-        (-(ax * dx + ay * dy) / len2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    ((ax + t * dx).hypot(ay + t * dy), t)
-}
-
 /// (part, position) of every segment, with its end clusters.
 fn all_segments(seq: &[u32], ends: &[usize]) -> Vec<(u32, u32)> {
     let mut out = Vec::with_capacity(seq.len());
@@ -122,32 +107,15 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
         let i = starts[p as usize] + k as usize;
         (seq[i], seq[i + 1])
     };
-    // Segments by midpoint cell; long ones in an R-tree.
-    let max_lat = centres
-        .iter()
-        .fold(0.0f64, |m, p| m.max(p[1].abs()))
-        .min(89.0);
-    let (my, _) = metres_per_degree(0.0);
-    let (_, mx) = metres_per_degree(max_lat);
+    // Segments by midpoint cell; long ones in an R-tree. Columns wrap at ±180° (`MidGrid`).
     let cell_m = (8.0 * snap_m).max(200.0);
-    let cell = [cell_m / mx, cell_m / my];
-    let key = |p: [f64; 2]| {
-        let cx = (p[0] / cell[0]).floor() as i64 + (1 << 31);
-        let cy = (p[1] / cell[1]).floor() as i64 + (1 << 31);
-        ((cx as u64) << 32) | (cy as u64 & 0xFFFF_FFFF)
-    };
+    let grid = MidGrid::new(centres, cell_m);
+    let key = |p: [f64; 2]| grid.key(p);
     // Only cells around dangling ends matter: index just the segments whose midpoint falls there.
     let mut wanted: crate::fxhash::FxHashMap<u64, ()> = Default::default();
     for &c in &dangling {
-        let k0 = key(centres[c as usize]);
-        let (cx, cy) = ((k0 >> 32) as i64, (k0 & 0xFFFF_FFFF) as i64);
-        for dx in -1..=1 {
-            for dy in -1..=1 {
-                wanted.insert(
-                    (((cx + dx) as u64) << 32) | ((cy + dy) as u64 & 0xFFFF_FFFF),
-                    (),
-                );
-            }
+        for k in grid.around(centres[c as usize]) {
+            wanted.insert(k, ());
         }
     }
     let segs = all_segments(seq, ends);
@@ -155,7 +123,8 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
     // along a meridian and 111.4 km along the equator).
     let short_limit_m = cell_m / 2.0 - snap_m;
     let half_len = |pa: [f64; 2], pb: [f64; 2]| {
-        ((pa[0] - pb[0]).abs() * 111_400.0).hypot((pa[1] - pb[1]).abs() * 111_700.0) / 2.0
+        let dlon = (wrap::near(pb[0], pa[0]) - pa[0]).abs();
+        (dlon * 111_400.0).hypot((pa[1] - pb[1]).abs() * 111_700.0) / 2.0
     };
     let long: Vec<SegRef> = segs
         .par_iter()
@@ -173,54 +142,42 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
             if half_len(pa, pb) > short_limit_m {
                 return None;
             }
-            let kk = key([(pa[0] + pb[0]) / 2.0, (pa[1] + pb[1]) / 2.0]);
+            let kk = key(wrap::lerp(pa, pb, 0.5));
             wanted.contains_key(&kk).then_some((kk, p, k))
         })
         .collect();
     drop(segs);
     keyed.par_sort_unstable();
-    let long_tree: SegTree = RTree::bulk_load(
-        long.iter()
-            .map(|&(p, k)| {
-                let (a, b) = seg_clusters(p, k);
-                GeomWithData::new(Line::new(centres[a as usize], centres[b as usize]), (p, k))
-            })
-            .collect(),
-    );
+    let long_tree = seg_tree(long.iter().map(|&(p, k)| {
+        let (a, b) = seg_clusters(p, k);
+        (centres[a as usize], centres[b as usize], (p, k))
+    }));
     // Nearest segment within the tolerance for every dangling end (not one touching it).
     let found: Vec<Option<Candidate>> = dangling
         .par_iter()
         .map(|&c| {
             let p = centres[c as usize];
+            // Feet found in a frame at the end that wraps at ±180°; distances geodesic.
+            let frame = Frame::at(p);
             let mut best: Option<Candidate> = None;
             let mut consider = |sp: u32, sk: u32| {
                 let (a, b) = seg_clusters(sp, sk);
                 if a == c || b == c {
                     return;
                 }
-                let (d, t) = foot(p, centres[a as usize], centres[b as usize]);
+                let (d, t) = frame.foot(centres[a as usize], centres[b as usize]);
                 if d <= snap_m && best.is_none_or(|(bd, bp, bk, _, _)| (d, sp, sk) < (bd, bp, bk)) {
                     best = Some((d, sp, sk, t, c));
                 }
             };
-            let k0 = key(p);
-            let (cx, cy) = ((k0 >> 32) as i64, (k0 & 0xFFFF_FFFF) as i64);
-            for dx in -1..=1 {
-                for dy in -1..=1 {
-                    let k = (((cx + dx) as u64) << 32) | ((cy + dy) as u64 & 0xFFFF_FFFF);
-                    let lo = keyed.partition_point(|e| e.0 < k);
-                    for e in keyed[lo..].iter().take_while(|e| e.0 == k) {
-                        consider(e.1, e.2);
-                    }
+            for k in grid.around(p) {
+                let lo = keyed.partition_point(|e| e.0 < k);
+                for e in keyed[lo..].iter().take_while(|e| e.0 == k) {
+                    consider(e.1, e.2);
                 }
             }
-            let (pmy, pmx) = metres_per_degree(p[1]);
-            let env = AABB::from_corners(
-                [p[0] - snap_m / pmx, p[1] - snap_m / pmy],
-                [p[0] + snap_m / pmx, p[1] + snap_m / pmy],
-            );
-            for s in long_tree.locate_in_envelope_intersecting(&env) {
-                consider(s.data.0, s.data.1);
+            for s in near_segments(&long_tree, p, snap_m) {
+                consider(s.0, s.1);
             }
             best
         })
@@ -237,7 +194,7 @@ pub fn join_undershoots(parts: &mut Parts, snap_m: f64) -> Vec<QaPoint> {
     let mut qa = Vec::new();
     for ((d, p, k, t, c), a, b) in resolved {
         let (pa, pb) = (parts.centres[a as usize], parts.centres[b as usize]);
-        let f = super::geodesy::round7([pa[0] + t * (pb[0] - pa[0]), pa[1] + t * (pb[1] - pa[1])]);
+        let f = round7_lonlat(wrap::lerp(pa, pb, t));
         qa.push(QaPoint {
             kind: QaKind::JoinedUndershoot,
             pos: f,
@@ -281,29 +238,34 @@ pub fn crossings(parts: &mut Parts, apply_them: bool) -> Vec<QaPoint> {
         (seq[i], seq[i + 1])
     };
     let segs = all_segments(seq, ends);
-    let tree: SegTree = RTree::bulk_load(
-        segs.iter()
-            .map(|&(p, k)| {
-                let (a, b) = seg_clusters(p, k);
-                GeomWithData::new(Line::new(centres[a as usize], centres[b as usize]), (p, k))
-            })
-            .collect(),
-    );
+    let tree = seg_tree(segs.iter().map(|&(p, k)| {
+        let (a, b) = seg_clusters(p, k);
+        (centres[a as usize], centres[b as usize], (p, k))
+    }));
+    let data_lon = lon_span(&tree);
     let hits: Vec<Crossing> = segs
         .par_iter()
         .flat_map_iter(|&(p, k)| {
             let (a, b) = seg_clusters(p, k);
             let (pa, pb) = (centres[a as usize], centres[b as usize]);
-            let env = AABB::from_corners(
-                [pa[0].min(pb[0]), pa[1].min(pb[1])],
-                [pa[0].max(pb[0]), pa[1].max(pb[1])],
+            let ub = wrap::unwrap(pb, pa);
+            let (lo, hi) = (
+                [pa[0].min(ub[0]), pa[1].min(ub[1])],
+                [pa[0].max(ub[0]), pa[1].max(ub[1])],
             );
+            // Copies of the box a turn away may find one segment twice: each is taken once.
+            let mut found: Vec<SegRef> = wrap::search_boxes(lo, hi, data_lon)
+                .into_iter()
+                .flat_map(|(l, h)| {
+                    tree.locate_in_envelope_intersecting(&AABB::from_corners(l, h))
+                        .map(|s| s.data)
+                })
+                .filter(|&s| s > (p, k))
+                .collect();
+            found.sort_unstable();
+            found.dedup();
             let mut out = Vec::new();
-            for s in tree.locate_in_envelope_intersecting(&env) {
-                let (p2, k2) = s.data;
-                if (p2, k2) <= (p, k) {
-                    continue;
-                }
+            for (p2, k2) in found {
                 let (c, d) = seg_clusters(p2, k2);
                 if a == c || a == d || b == c || b == d {
                     continue;
@@ -386,13 +348,21 @@ fn group_points(hits: &[Crossing]) -> (Vec<u32>, Vec<([f64; 2], usize)>) {
     let mut of = Vec::with_capacity(hits.len());
     for (h, hit) in hits.iter().enumerate() {
         let x = hit.6;
-        let (cx, cy) = (cell(x[0]), cell(x[1]));
-        let near = (-1..=1)
-            .flat_map(|dx| (-1..=1).map(move |dy| (cx + dx, cy + dy)))
+        // Cells by the longitude in [-180, 180); a point on the seam also looks a turn away.
+        let lon = wrap::canonical_lon(x[0]);
+        let (cx, cy) = (cell(lon), cell(x[1]));
+        let seam = [lon + 360.0, lon - 360.0]
+            .into_iter()
+            .filter(|l| (-180.0 - SAME_POINT_DEG..=180.0 + SAME_POINT_DEG).contains(l))
+            .map(cell);
+        let near = std::iter::once(cx)
+            .chain(seam)
+            .flat_map(|c| (-1..=1).flat_map(move |dx| (-1..=1).map(move |dy| (c + dx, cy + dy))))
             .filter_map(|k| grid.get(&k).copied())
             .find(|&i| {
                 let q = points[i as usize].0;
-                (q[0] - x[0]).abs() <= SAME_POINT_DEG && (q[1] - x[1]).abs() <= SAME_POINT_DEG
+                (wrap::near(q[0], x[0]) - x[0]).abs() <= SAME_POINT_DEG
+                    && (q[1] - x[1]).abs() <= SAME_POINT_DEG
             });
         let i = near.unwrap_or_else(|| {
             points.push((x, h));
@@ -405,11 +375,12 @@ fn group_points(hits: &[Crossing]) -> (Vec<u32>, Vec<([f64; 2], usize)>) {
     (of, points)
 }
 
-/// Proper crossing of segments a–b and c–d (not at their ends): fractions along each and the point.
+/// Proper crossing of segments a–b and c–d (not at their ends): fractions along each and the
+/// point, found in a frame at `a` that wraps at ±180° (affine in lon/lat, so lines through one
+/// point still meet in one point).
 fn intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) -> Option<(f64, f64, [f64; 2])> {
-    let (my, mx) = metres_per_degree(a[1]);
-    let to = |p: [f64; 2]| [(p[0] - a[0]) * mx, (p[1] - a[1]) * my];
-    let (b2, c2, d2) = (to(b), to(c), to(d));
+    let frame = Frame::at(a);
+    let (b2, c2, d2) = (frame.xy(b), frame.xy(c), frame.xy(d));
     let r = b2;
     let s = [d2[0] - c2[0], d2[1] - c2[1]];
     let den = r[0] * s[1] - r[1] * s[0];
@@ -422,11 +393,99 @@ fn intersect(a: [f64; 2], b: [f64; 2], c: [f64; 2], d: [f64; 2]) -> Option<(f64,
     if t <= EPS || t >= 1.0 - EPS || u <= EPS || u >= 1.0 - EPS {
         return None;
     }
-    Some((
-        t,
-        u,
-        super::geodesy::round7([a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])]),
-    ))
+    Some((t, u, round7_lonlat(wrap::lerp(a, b, t))))
+}
+
+/// A position rounded to the output precision, longitude kept within ±180°.
+fn round7_lonlat(p: [f64; 2]) -> [f64; 2] {
+    let r = super::geodesy::round7(p);
+    [wrap::fold(r[0]), r[1]]
+}
+
+/// An R-tree of segments, each held unwrapped (its second end within 180° of its first).
+fn seg_tree(segs: impl Iterator<Item = ([f64; 2], [f64; 2], SegRef)>) -> SegTree {
+    RTree::bulk_load(
+        segs.map(|(a, b, r)| GeomWithData::new(Line::new(a, wrap::unwrap(b, a)), r))
+            .collect(),
+    )
+}
+
+/// The longitudes an R-tree's entries span (every longitude when it is empty).
+fn lon_span<T: rstar::RTreeObject<Envelope = AABB<[f64; 2]>>>(tree: &RTree<T>) -> [f64; 2] {
+    if tree.size() == 0 {
+        return [-180.0, 180.0];
+    }
+    let e = tree.root().envelope();
+    [e.lower()[0], e.upper()[0]]
+}
+
+/// The segments of `tree` whose boxes lie within `reach_m` metres of `p` (a superset; each once).
+fn near_segments(tree: &SegTree, p: [f64; 2], reach_m: f64) -> Vec<SegRef> {
+    let (dlon, dlat) = wrap::reach_deg(reach_m, p[1].abs());
+    let dlon = dlon.unwrap_or(360.0);
+    let mut out: Vec<SegRef> = wrap::search_boxes(
+        [p[0] - dlon, p[1] - dlat],
+        [p[0] + dlon, p[1] + dlat],
+        lon_span(tree),
+    )
+    .into_iter()
+    .flat_map(|(l, h)| {
+        tree.locate_in_envelope_intersecting(&AABB::from_corners(l, h))
+            .map(|s| s.data)
+    })
+    .collect();
+    out.sort_unstable();
+    out.dedup();
+    out
+}
+
+/// Grid cells about `cell_m` metres wide keyed by segment midpoints; columns divide the whole turn
+/// and wrap at ±180°, and where a cell's reach may go round a pole there is one column.
+struct MidGrid {
+    cols: i64,
+    cell: [f64; 2],
+}
+
+impl MidGrid {
+    fn new(centres: &[[f64; 2]], cell_m: f64) -> MidGrid {
+        let max_lat = centres.iter().fold(0.0f64, |m, p| m.max(p[1].abs()));
+        let (dlon, dlat) = wrap::reach_deg(cell_m, max_lat);
+        let cols = dlon.map_or(1, |d| (360.0 / d).floor() as i64);
+        let cols = if cols >= 3 { cols } else { 1 };
+        MidGrid {
+            cols,
+            cell: [360.0 / cols as f64, dlat],
+        }
+    }
+
+    fn cell_of(&self, p: [f64; 2]) -> (i64, i64) {
+        let x = wrap::canonical_lon(p[0]) + 180.0;
+        (
+            ((x / self.cell[0]).floor() as i64).clamp(0, self.cols - 1),
+            (p[1] / self.cell[1]).floor() as i64,
+        )
+    }
+
+    fn pack(cx: i64, cy: i64) -> u64 {
+        ((cx as u64) << 32) | ((cy + (1 << 31)) as u64 & 0xFFFF_FFFF)
+    }
+
+    fn key(&self, p: [f64; 2]) -> u64 {
+        let (cx, cy) = self.cell_of(p);
+        Self::pack(cx, cy)
+    }
+
+    /// The keys of the cell of `p` and of its neighbours (columns wrapping), each once.
+    fn around(&self, p: [f64; 2]) -> Vec<u64> {
+        let (cx, cy) = self.cell_of(p);
+        let mut out: Vec<u64> = (-1..=1)
+            .flat_map(|dx| (-1..=1).map(move |dy| (dx, dy)))
+            .map(|(dx, dy)| Self::pack((cx + dx).rem_euclid(self.cols), cy + dy))
+            .collect();
+        out.sort_unstable();
+        out.dedup();
+        out
+    }
 }
 
 /// Rebuilds the sequences with the insertions in place (ordered along each segment).

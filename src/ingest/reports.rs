@@ -5,6 +5,7 @@ use super::IngestError;
 use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
 use super::source::{HashingReader, InputRecord, Source};
+use super::wrap::{self, Frame};
 use crate::network::{Network, cost_of};
 use rstar::primitives::{GeomWithData, Line};
 use rstar::{AABB, RTree};
@@ -98,47 +99,55 @@ pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> Repor
     if reports.is_empty() {
         return fig;
     }
-    // Only segments near some report go into the tree.
-    let (my, _) = super::geodesy::metres_per_degree(0.0);
-    let pad_lat = max_m / my;
-    let max_lat = reports
-        .iter()
-        .fold(0.0f64, |m, r| m.max(r.pos[1].abs()))
-        .min(89.0)
-        + pad_lat;
-    let (_, mx) = super::geodesy::metres_per_degree(max_lat.min(89.9));
-    let pad_lon = max_m / mx;
+    // Only segments near some report go into the tree, each held unwrapped (its second end within
+    // 180° of its first); the box round the reports is searched on both sides of ±180°.
+    let max_lat = reports.iter().fold(0.0f64, |m, r| m.max(r.pos[1].abs()));
+    let (pad_lon, pad_lat) = wrap::reach_deg(max_m, max_lat);
+    let pad_lon = pad_lon.unwrap_or(360.0);
     let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
     for r in reports {
         lo = [lo[0].min(r.pos[0] - pad_lon), lo[1].min(r.pos[1] - pad_lat)];
         hi = [hi[0].max(r.pos[0] + pad_lon), hi[1].max(r.pos[1] + pad_lat)];
     }
+    let boxes = wrap::search_boxes(lo, hi, [-360.0, 360.0]);
     let mut segs = Vec::new();
     for e in 0..net.edges.len() {
         let g = net.edge_geometry(e);
         for k in 0..g.len() - 1 {
-            let (a, b) = (g[k], g[k + 1]);
-            if a[0].max(b[0]) >= lo[0]
-                && a[0].min(b[0]) <= hi[0]
-                && a[1].max(b[1]) >= lo[1]
-                && a[1].min(b[1]) <= hi[1]
-            {
+            let (a, b) = (g[k], wrap::unwrap(g[k + 1], g[k]));
+            if boxes.iter().any(|(lo, hi)| {
+                a[0].max(b[0]) >= lo[0]
+                    && a[0].min(b[0]) <= hi[0]
+                    && a[1].max(b[1]) >= lo[1]
+                    && a[1].min(b[1]) <= hi[1]
+            }) {
                 segs.push(GeomWithData::new(Line::new(a, b), e as u32));
             }
         }
     }
     let tree = RTree::bulk_load(segs);
+    let data_lon = if tree.size() == 0 {
+        [-180.0, 180.0]
+    } else {
+        let e = tree.root().envelope();
+        [e.lower()[0], e.upper()[0]]
+    };
     let mut worst: std::collections::BTreeMap<u32, Damage> = Default::default();
     for r in reports {
         let p = r.pos;
-        let (pmy, pmx) = super::geodesy::metres_per_degree(p[1]);
-        let env = AABB::from_corners(
-            [p[0] - max_m / pmx, p[1] - max_m / pmy],
-            [p[0] + max_m / pmx, p[1] + max_m / pmy],
+        let frame = Frame::at(p);
+        let (dlon, dlat) = wrap::reach_deg(max_m, p[1].abs());
+        let dlon = dlon.unwrap_or(360.0);
+        let boxes = wrap::search_boxes(
+            [p[0] - dlon, p[1] - dlat],
+            [p[0] + dlon, p[1] + dlat],
+            data_lon,
         );
         let mut best: Option<(f64, u32)> = None;
-        for s in tree.locate_in_envelope_intersecting(&env) {
-            let d = foot_distance(p, s.geom().from, s.geom().to, pmy, pmx);
+        for s in boxes.iter().flat_map(|(lo, hi)| {
+            tree.locate_in_envelope_intersecting(&AABB::from_corners(*lo, *hi))
+        }) {
+            let d = frame.foot(s.geom().from, s.geom().to).0;
             if d <= max_m && best.is_none_or(|(bd, be)| (d, s.data) < (bd, be)) {
                 best = Some((d, s.data));
             }
@@ -153,9 +162,11 @@ pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> Repor
                 }
             }
             None => {
-                let near = tree
-                    .nearest_neighbor(&p)
-                    .map(|s| foot_distance(p, s.geom().from, s.geom().to, pmy, pmx));
+                let near = [0.0, -360.0, 360.0]
+                    .into_iter()
+                    .filter_map(|k| tree.nearest_neighbor(&[p[0] + k, p[1]]))
+                    .map(|s| frame.foot(s.geom().from, s.geom().to).0)
+                    .min_by(f64::total_cmp);
                 fig.unmatched
                     .push((r.index, near.map(|d| (d * 1000.0).round() / 1000.0)));
             }
@@ -167,17 +178,4 @@ pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> Repor
         edge.cost = cost_of(edge.length_m, d);
     }
     fig
-}
-
-fn foot_distance(p: [f64; 2], a: [f64; 2], b: [f64; 2], my: f64, mx: f64) -> f64 {
-    let (ax, ay) = ((a[0] - p[0]) * mx, (a[1] - p[1]) * my);
-    let (bx, by) = ((b[0] - p[0]) * mx, (b[1] - p[1]) * my);
-    let (dx, dy) = (bx - ax, by - ay);
-    let l2 = dx * dx + dy * dy;
-    let t = if l2 > 0.0 {
-        (-(ax * dx + ay * dy) / l2).clamp(0.0, 1.0)
-    } else {
-        0.0
-    };
-    (ax + t * dx).hypot(ay + t * dy)
 }

@@ -6,6 +6,7 @@ use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
+use crate::export::geojson::Fixed;
 use crate::network::FeatureMeta;
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -204,7 +205,7 @@ pub fn read_geojson_roads(
             path: path.clone(),
             message,
         })?,
-        None => crs_member(&path, info.crs.as_ref())?,
+        None => super::crs::crs_member(&path, info.crs.as_ref())?,
     };
     let (sha256, bytes) =
         super::source::HashingReader::finish_buffered(reader).map_err(|source| {
@@ -349,8 +350,10 @@ pub fn finish_coordinates(
                     layer,
                     i,
                     format!(
-                        "to the next is {grid:.0} m in {} but {ground:.0} m on the ground: the coordinates are implausible for that CRS; check --crs and the layer's units",
-                        crs.name
+                        "to the next is {} m in {} but {} m on the ground: the coordinates are implausible for that CRS; check --crs and the layer's units",
+                        Fixed(grid, 0),
+                        crs.name,
+                        Fixed(ground, 0)
                     ),
                 ));
             }

@@ -324,9 +324,13 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
         path: path.to_path_buf(),
         source: std::io::Error::other(message),
     };
+    let dbf = sibling(path, "dbf");
+    // Every member is checked before any is opened: a named pipe would block the open.
+    for p in [path.to_path_buf(), sibling(path, "shx"), dbf.clone()] {
+        super::limits::regular_file(&p).map_err(|source| IngestError::Io { path: p, source })?;
+    }
     let shapes =
         shapefile::ShapeReader::from_path(path).map_err(|e| fail(shapefile_error(path, e)))?;
-    let dbf = sibling(path, "dbf");
     let open_dbf = || {
         File::open(&dbf)
             .map(BufReader::new)
@@ -379,11 +383,7 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
         shapes,
         table,
         deleted: scan.deleted,
-        overflow: super::shapeset::NumericText {
-            dbf,
-            at: scan.overflow,
-            long: scan.long,
-        },
+        overflow: scan.text,
     })
 }
 

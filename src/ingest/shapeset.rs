@@ -23,15 +23,13 @@ fn refuse(path: &Path, message: String) -> IngestError {
 pub struct TableScan {
     /// The deletion flag of every record, in file order (true: flagged deleted).
     pub deleted: Vec<bool>,
-    /// (record, field) of every numeric field holding the overflow marker (all `*`): a number
-    /// too wide for its field, which the table reader would give as a missing value.
-    pub overflow: Vec<(usize, String)>,
-    /// (record, field, text) of every numeric value with more digits than a double holds exactly
-    /// (over 15): the text is kept so a long id is not rounded.
-    pub long: Vec<(usize, String, String)>,
+    /// The table's bytes and the place of each numeric and logical field, for
+    /// [`NumericText::value`].
+    pub text: NumericText,
 }
 
-/// Scans a `.dbf` for deletion flags and numeric overflow markers.
+/// Scans a `.dbf` for deletion flags and keeps its bytes, so numeric and logical fields can be
+/// read as written.
 pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
     let bytes = std::fs::read(dbf).map_err(|source| IngestError::Io {
         path: dbf.to_path_buf(),
@@ -58,86 +56,106 @@ pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
         ));
     }
     // Field descriptors: 32 bytes each from byte 32 up to the 0x0D terminator.
-    let mut numeric = Vec::new();
+    let mut fields = Vec::new();
     let mut offset = 1usize;
     let mut at = 32usize;
     while at + 32 <= header && bytes[at] != 0x0D {
         let d = &bytes[at..at + 32];
         let name_end = d[..11].iter().position(|&b| b == 0).unwrap_or(11);
         let len = d[16] as usize;
-        if matches!(d[11], b'N' | b'F') && offset + len <= record {
-            numeric.push((
-                String::from_utf8_lossy(&d[..name_end]).into_owned(),
+        if matches!(d[11], b'N' | b'F' | b'L') && offset + len <= record {
+            fields.push(RawField {
+                name: String::from_utf8_lossy(&d[..name_end]).into_owned(),
+                logical: d[11] == b'L',
                 offset,
                 len,
-            ));
+            });
         }
         offset += len;
         at += 32;
     }
-    let mut scan = TableScan::default();
-    for i in 0..count {
-        let r = &bytes[header + i * record..header + (i + 1) * record];
-        scan.deleted.push(r[0] == b'*');
-        for (name, off, len) in &numeric {
-            let v = r[*off..off + len].trim_ascii();
-            if r[0] != b'*' && !v.is_empty() && v.iter().all(|&b| b == b'*') {
-                scan.overflow.push((i, name.clone()));
-            } else if v.iter().filter(|b| b.is_ascii_digit()).count() > 15 {
-                let text = String::from_utf8_lossy(v).into_owned();
-                scan.long.push((i, name.clone(), text));
-            }
-        }
-    }
-    Ok(scan)
+    let deleted = (0..count)
+        .map(|i| bytes[header + i * record] == b'*')
+        .collect();
+    Ok(TableScan {
+        deleted,
+        text: NumericText {
+            dbf: dbf.to_path_buf(),
+            bytes: bytes.into(),
+            header,
+            record,
+            fields,
+        },
+    })
 }
 
-/// What a `.dbf`'s numeric fields hold beyond what the table reader gives: overflow markers and
-/// the exact text of long numbers.
+/// Where a numeric or logical field sits in each record.
+#[derive(Debug, Clone)]
+struct RawField {
+    name: String,
+    logical: bool,
+    offset: usize,
+    len: usize,
+}
+
+/// A `.dbf`'s numeric and logical fields as written, read under the typing rule
+/// (`super::value`) rather than through the table reader's doubles and guesses.
 #[derive(Debug, Clone, Default)]
 pub struct NumericText {
     /// The table.
     pub dbf: std::path::PathBuf,
-    /// (record, field) of each overflow marker.
-    pub at: Vec<(usize, String)>,
-    /// (record, field, text) of each number longer than a double holds exactly.
-    pub long: Vec<(usize, String, String)>,
+    bytes: std::sync::Arc<[u8]>,
+    header: usize,
+    record: usize,
+    fields: Vec<RawField>,
 }
 
 impl NumericText {
-    /// The value of record `feature`'s `field` under the typing rule (`super::value`): refused
-    /// when it holds the overflow marker, its own text when it is a long number.
+    /// The value of record `feature`'s `field` under the typing rule: a numeric field keeps the
+    /// text it was written with when a number would not reproduce it ("007", "+1", "3.50", more
+    /// digits than a double holds), and its overflow marker (all `*`) is refused; a logical field
+    /// is `true` for T/t/Y/y, `false` for F/f/N/n, missing for `?` or blank, and refused
+    /// otherwise; every other field is the table reader's value.
     pub fn value(
         &self,
         feature: usize,
         field: &str,
         v: &shapefile::dbase::FieldValue,
     ) -> Result<serde_json::Value, IngestError> {
-        self.check(feature, field)?;
-        Ok(
-            match self
-                .long
-                .iter()
-                .find(|(i, f, _)| *i == feature && f == field)
-            {
-                Some((_, _, text)) => super::value::cell(text),
-                None => super::shapefile::field_json(v),
-            },
-        )
-    }
-
-    /// Refuses record `feature` when its `field` holds the overflow marker, naming both.
-    pub fn check(&self, feature: usize, field: &str) -> Result<(), IngestError> {
-        if !self.at.iter().any(|(i, f)| *i == feature && f == field) {
-            return Ok(());
-        }
-        Err(IngestError::Feature {
+        use serde_json::Value;
+        let Some(f) = self.fields.iter().find(|f| f.name == field) else {
+            return Ok(super::shapefile::field_json(v));
+        };
+        let at = self.header + feature * self.record + f.offset;
+        let raw = self.bytes[at..at + f.len].trim_ascii();
+        let refuse = |message: String| IngestError::Feature {
             path: self.dbf.clone(),
             feature,
             field: Some(field.into()),
-            message: "holds the dBASE overflow marker (all '*'): the number was too wide for its \
-                      field when the table was written, so its value is lost; fix or widen the field"
-                .into(),
+            message,
+        };
+        if f.logical {
+            return match raw {
+                [] | b"?" => Ok(Value::Null),
+                [b'T' | b't' | b'Y' | b'y'] => Ok(Value::Bool(true)),
+                [b'F' | b'f' | b'N' | b'n'] => Ok(Value::Bool(false)),
+                other => Err(refuse(format!(
+                    "holds {:?}, not a dBASE logical value (T, Y, F, N, or ? for unknown)",
+                    String::from_utf8_lossy(other)
+                ))),
+            };
+        }
+        if !raw.is_empty() && raw.iter().all(|&b| b == b'*') {
+            return Err(refuse(
+                "holds the dBASE overflow marker (all '*'): the number was too wide for its \
+                 field when the table was written, so its value is lost; fix or widen the field"
+                    .into(),
+            ));
+        }
+        Ok(match std::str::from_utf8(raw) {
+            Ok("") => Value::Null,
+            Ok(t) if super::value::number(t).is_some() => super::value::cell(t),
+            _ => super::shapefile::field_json(v),
         })
     }
 }

@@ -85,13 +85,25 @@ impl SiteDefaults {
     }
 }
 
+/// The sites file's extension, lower case: it decides the format (`csv`/`txt` CSV, `shp`
+/// Shapefile, else GeoJSON).
+fn extension(source: &Source) -> Option<String> {
+    source
+        .display_path()
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(|e| e.to_ascii_lowercase())
+}
+
+/// True when the sites are read as CSV (the only format with lon/lat columns).
+pub fn reads_as_csv(source: &Source) -> bool {
+    matches!(extension(source).as_deref(), Some("csv") | Some("txt"))
+}
+
 /// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by extension.
 pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
     let path = source.display_path();
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(|e| e.to_ascii_lowercase());
+    let ext = extension(source);
     if ext.as_deref() == Some("shp") {
         return read_shapefile_sites(&path, settings);
     }

@@ -58,17 +58,12 @@ impl Source {
     pub fn open_binary(&self) -> Result<BufReader<HashingReader<Box<dyn Read>>>, IngestError> {
         let inner: Box<dyn Read> = match self {
             Source::File(p) => {
-                let f = File::open(p).map_err(|source| IngestError::Io {
+                let io = |source| IngestError::Io {
                     path: p.clone(),
                     source,
-                })?;
-                if f.metadata().map(|m| m.is_dir()).unwrap_or(false) {
-                    return Err(IngestError::Io {
-                        path: p.clone(),
-                        source: std::io::Error::other("is a directory, expected a file"),
-                    });
-                }
-                Box::new(f)
+                };
+                super::limits::regular_file(p).map_err(io)?;
+                Box::new(File::open(p).map_err(io)?)
             }
             Source::Bundled { bytes, .. } => Box::new(*bytes),
             Source::Memory { bytes, .. } => Box::new(std::io::Cursor::new(bytes.clone())),

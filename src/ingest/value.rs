@@ -3,8 +3,9 @@
 //!
 //! Values keep the text they were written with, so ids stay exactly as written ("007" is not
 //! "7"); comparisons with what a user types (filters, class rates, the closed value) are by value
-//! when both sides are numbers (a stored 3, 3.0 or "3" all match `3`) and by text, ignoring letter
-//! case, otherwise.
+//! when both sides are numbers (a stored 3, 3.0 or "3" all match `3`), a stored true/false (a
+//! GeoJSON boolean, a dBASE logical field) matches the spellings of [`truth`], and otherwise by
+//! text, ignoring letter case.
 
 use serde_json::Value;
 
@@ -56,10 +57,20 @@ pub fn matches(v: &Value, user: &str) -> bool {
     let stored = match v {
         Value::Number(n) => n.to_string(),
         Value::String(s) => s.clone(),
-        Value::Bool(b) => b.to_string(),
+        Value::Bool(b) => return truth(user) == Some(*b),
         _ => return false,
     };
     same(&stored, user)
+}
+
+/// The switch a user's text names, ignoring letter case: `true`, `yes`, `t`, `y`, `1` or `false`,
+/// `no`, `f`, `n`, `0` (the spellings of a dBASE logical field and of common switches).
+pub fn truth(user: &str) -> Option<bool> {
+    match user.trim().to_ascii_lowercase().as_str() {
+        "true" | "yes" | "t" | "y" | "1" => Some(true),
+        "false" | "no" | "f" | "n" | "0" => Some(false),
+        _ => None,
+    }
 }
 
 /// True when two texts name the same value: equal numbers, or equal text ignoring letter case.
@@ -99,6 +110,16 @@ mod tests {
         assert!(matches(&json!("Primary"), "primary"));
         assert!(!matches(&json!(3), "4"));
         assert!(!matches(&json!(null), "null"));
+        for (user, b) in [("true", true), ("Yes", true), ("1", true), ("T", true)] {
+            assert!(
+                matches(&json!(b), user) && !matches(&json!(!b), user),
+                "{user}"
+            );
+        }
+        for user in ["false", "NO", "0", "f", "n"] {
+            assert!(matches(&json!(false), user) && !matches(&json!(true), user));
+        }
+        assert!(!matches(&json!(true), "maybe"));
         assert_eq!(number("inf"), None);
         assert_eq!(number("NaN"), None);
     }

@@ -87,7 +87,7 @@ pub fn read_zones(
             (None, _) => return Err(fail(index, "geometry", "the zone has no geometry".into())),
         };
         for (p0, p1) in polys {
-            let mut rings: Vec<LineString<f64>> = Vec::new();
+            let mut rings: Vec<Vec<[f64; 2]>> = Vec::new();
             for r in p0..p1 {
                 let start = if r == 0 { 0 } else { c.parts[r - 1] };
                 let mut ring: Vec<[f64; 2]> = c.pos[start..c.parts[r]].to_vec();
@@ -107,18 +107,9 @@ pub fn read_zones(
                         format!("ring {r} is not closed (RFC 7946 §3.1.6: at least 4 positions, first = last)"),
                     ));
                 }
-                rings.push(LineString::from(ring.iter().map(|p| Coord { x: p[0], y: p[1] }).collect::<Vec<_>>()));
+                rings.push(ring);
             }
-            let mut it = rings.into_iter();
-            let Some(outer) = it.next() else { continue };
-            let polygon = Polygon::new(outer, it.collect());
-            if let Err(e) = polygon.check_validation() {
-                return Err(fail(index, "geometry", format!("the polygon is not valid ({e}); fix it before use")));
-            }
-            if geo::Area::unsigned_area(&polygon) <= 0.0 {
-                return Err(fail(index, "geometry", "the polygon has zero area".into()));
-            }
-            zones.push(Zone { polygon, damage, feature: index });
+            zones.extend(make_zone(&path, index, rings, damage)?);
         }
         Ok(())
     })
@@ -142,36 +133,61 @@ pub fn read_zones(
 }
 
 /// Builds a validated zone from rings in lon/lat (outer first); errors name the feature.
+///
+/// Each ring edge runs the short way round (RFC 7946 §3.1.1: the shortest line between two
+/// positions), so a ring that steps from 179° to -179° encloses the area across ±180°, not the rest
+/// of the world. Such a polygon is read with its longitudes unwrapped and cut at the meridian into
+/// one zone per side (the form RFC 7946 §3.1.9 recommends writing), so every zone lies within ±180°.
 fn make_zone(
     path: &std::path::Path,
     index: usize,
-    rings: Vec<Vec<[f64; 2]>>,
+    mut rings: Vec<Vec<[f64; 2]>>,
     damage: Damage,
-) -> Result<Option<Zone>, IngestError> {
+) -> Result<Vec<Zone>, IngestError> {
     let fail = |message: String| IngestError::Feature {
         path: path.to_path_buf(),
         feature: index,
         field: Some("geometry".into()),
         message,
     };
-    let mut ls: Vec<LineString<f64>> = Vec::new();
-    for (r, ring) in rings.into_iter().enumerate() {
+    for (r, ring) in rings.iter().enumerate() {
         if ring.len() < 4 || ring.first() != ring.last() {
             return Err(fail(format!(
                 "ring {r} is not closed (at least 4 positions, first = last)"
             )));
         }
-        ls.push(LineString::from(
+    }
+    let wraps = rings
+        .iter()
+        .any(|ring| ring.windows(2).any(|w| (w[1][0] - w[0][0]).abs() > 180.0));
+    if wraps {
+        let anchor = rings.first().map_or(0.0, |r| r[0][0]);
+        for (r, ring) in rings.iter_mut().enumerate() {
+            ring[0][0] = super::wrap::near(ring[0][0], anchor);
+            for i in 1..ring.len() {
+                ring[i][0] = super::wrap::near(ring[i][0], ring[i - 1][0]);
+            }
+            let last = ring.len() - 1;
+            if ring[last][0] != ring[0][0] {
+                return Err(fail(format!(
+                    "ring {r} goes round a pole (its longitudes wrap a whole turn); write it with edges \
+                     along ±180° or cut it there (RFC 7946 §3.1.9)"
+                )));
+            }
+            ring[last] = ring[0];
+        }
+    }
+    let mut ls = rings.into_iter().map(|ring| {
+        LineString::from(
             ring.iter()
                 .map(|p| Coord { x: p[0], y: p[1] })
                 .collect::<Vec<_>>(),
-        ));
-    }
-    let mut it = ls.into_iter();
-    let Some(outer) = it.next() else {
-        return Ok(None);
+        )
+    });
+    let Some(outer) = ls.next() else {
+        return Ok(Vec::new());
     };
-    let polygon = Polygon::new(outer, it.collect());
+    let polygon = Polygon::new(outer, ls.collect());
     if let Err(e) = polygon.check_validation() {
         return Err(fail(format!(
             "the polygon is not valid ({e}); fix it before use"
@@ -180,11 +196,39 @@ fn make_zone(
     if geo::Area::unsigned_area(&polygon) <= 0.0 {
         return Err(fail("the polygon has zero area".into()));
     }
-    Ok(Some(Zone {
+    let zone = |polygon| Zone {
         polygon,
         damage,
         feature: index,
-    }))
+    };
+    if !wraps {
+        return Ok(vec![zone(polygon)]);
+    }
+    // The part on each side of the meridian, moved back within ±180°.
+    let mut out = Vec::new();
+    for turn in [-360.0, 0.0, 360.0] {
+        let side = geo::Rect::new(
+            Coord {
+                x: -180.0 - turn,
+                y: -90.0,
+            },
+            Coord {
+                x: 180.0 - turn,
+                y: 90.0,
+            },
+        )
+        .to_polygon();
+        for mut part in geo::BooleanOps::intersection(&polygon, &side) {
+            geo::MapCoordsInPlace::map_coords_in_place(&mut part, |c| Coord {
+                x: c.x + turn,
+                y: c.y,
+            });
+            if geo::Area::unsigned_area(&part) > 0.0 {
+                out.push(zone(part));
+            }
+        }
+    }
+    Ok(out)
 }
 
 /// Zones from a polygon Shapefile, in the CRS of its `.prj` (or `crs`). Each outer ring (clockwise
@@ -284,17 +328,21 @@ fn ring_list<P>(
 /// The pieces of a lon/lat polyline by zone cover: (length share of the whole line, index of the
 /// covering zone with the largest damage, or None outside every zone). Shares add up to 1.
 pub fn pieces(line: &[[f64; 2]], zones: &[&Zone]) -> Vec<(f64, Option<usize>)> {
-    let seg_len: Vec<f64> = line
-        .windows(2)
-        .map(|w| super::geodesy::distance_m(w[0], w[1]))
+    // Steps across ±180° are cut there, so every segment lies on one side, as every zone does.
+    let segs: Vec<([f64; 2], [f64; 2])> = sides(line)
+        .iter()
+        .flat_map(|p| p.windows(2).map(|w| (w[0], w[1])).collect::<Vec<_>>())
+        .collect();
+    let seg_len: Vec<f64> = segs
+        .iter()
+        .map(|&(a, b)| super::geodesy::distance_m(a, b))
         .collect();
     let total: f64 = seg_len.iter().sum();
     let mut out = Vec::new();
     if total <= 0.0 {
         return out;
     }
-    for (k, w) in line.windows(2).enumerate() {
-        let (a, b) = (w[0], w[1]);
+    for (k, &(a, b)) in segs.iter().enumerate() {
         let mut ts = vec![0.0, 1.0];
         for z in zones {
             for ring in std::iter::once(z.polygon.exterior()).chain(z.polygon.interiors()) {
@@ -327,6 +375,15 @@ pub fn pieces(line: &[[f64; 2]], zones: &[&Zone]) -> Vec<(f64, Option<usize>)> {
         }
     }
     out
+}
+
+/// The line's parts on each side of ±180° (the line itself when no step crosses the meridian).
+fn sides(line: &[[f64; 2]]) -> Vec<Vec<[f64; 2]>> {
+    if line.windows(2).any(|w| (w[1][0] - w[0][0]).abs() > 180.0) {
+        super::wrap::split_at_antimeridian(line)
+    } else {
+        vec![line.to_vec()]
+    }
 }
 
 /// Orders damages: closed above every factor.
@@ -375,19 +432,24 @@ pub fn apply_zones(net: &mut Network, layer: &ZoneLayer) -> usize {
                 return None;
             }
             let g = net.edge_geometry(e);
-            let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
-            for p in g {
-                lo = [lo[0].min(p[0]), lo[1].min(p[1])];
-                hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+            // The zones near each side's part (zones lie within ±180°, as the parts do).
+            let mut cand: Vec<usize> = Vec::new();
+            for part in sides(g) {
+                let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+                for p in &part {
+                    lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+                    hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+                }
+                cand.extend(
+                    tree.locate_in_envelope_intersecting(&AABB::from_corners(lo, hi))
+                        .map(|z| z.data),
+                );
             }
-            let mut cand: Vec<usize> = tree
-                .locate_in_envelope_intersecting(&AABB::from_corners(lo, hi))
-                .map(|z| z.data)
-                .collect();
             if cand.is_empty() {
                 return None;
             }
             cand.sort_unstable();
+            cand.dedup();
             let zs: Vec<&super::zones::Zone> = cand.iter().map(|&i| &layer.zones[i]).collect();
             let own = edge.damage.factor().unwrap_or(0.0);
             let mut cost = 0.0;
@@ -471,5 +533,49 @@ mod tests {
         assert!((sum - total).abs() < 1e-3, "{sum} vs {total}");
         // Overlap: the larger factor wins inside the small square.
         assert!(pieces(&line, &zs).iter().any(|(_, c)| *c == Some(1)));
+    }
+
+    #[test]
+    fn a_ring_across_the_meridian_is_cut_into_its_two_sides() {
+        // Edges run the short way round (RFC 7946 §3.1.1): 179°E to 179°W is 2° wide, not 358°.
+        let ring = vec![
+            [179.0, -1.0],
+            [-179.0, -1.0],
+            [-179.0, 1.0],
+            [179.0, 1.0],
+            [179.0, -1.0],
+        ];
+        let path = std::path::Path::new("zones.geojson");
+        let zones = make_zone(path, 0, vec![ring], Damage::Factor(2.0)).unwrap();
+        assert_eq!(zones.len(), 2);
+        let area: f64 = zones
+            .iter()
+            .map(|z| geo::Area::unsigned_area(&z.polygon))
+            .sum();
+        assert!((area - 4.0).abs() < 1e-9, "{area}");
+        for z in &zones {
+            let r = geo::BoundingRect::bounding_rect(&z.polygon).unwrap();
+            assert!(r.min().x >= -180.0 && r.max().x <= 180.0, "{r:?}");
+            assert!(r.max().x - r.min().x <= 1.0 + 1e-9, "{r:?}");
+        }
+        let zs: Vec<&Zone> = zones.iter().collect();
+        // A road from 179.5°E to 179.5°W lies wholly inside; one at 0° does not touch it.
+        let across = pieces(&[[179.5, 0.0], [-179.5, 0.0]], &zs);
+        let inside: f64 = across.iter().filter(|p| p.1.is_some()).map(|p| p.0).sum();
+        assert!((inside - 1.0).abs() < 1e-9, "{across:?}");
+        assert!(
+            pieces(&[[0.0, 0.0], [0.0, 0.5]], &zs)
+                .iter()
+                .all(|p| p.1.is_none())
+        );
+        // A ring round a pole (longitudes wrapping a whole turn) is refused.
+        let polar = vec![
+            [0.0, 80.0],
+            [90.0, 80.0],
+            [180.0, 80.0],
+            [-90.0, 80.0],
+            [0.0, 80.0],
+        ];
+        assert!(make_zone(path, 0, vec![polar], Damage::Factor(2.0)).is_err());
     }
 }

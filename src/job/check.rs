@@ -66,7 +66,6 @@ pub fn run_check(
         .collect();
     let out = crate::export::guard::check_out(out, &inputs)?;
     staging::preflight(&out, force)?;
-    settings.validate()?;
     let layer = {
         let _s = progress.stage("reading roads");
         ingest::roads::read_roads(roads, settings)?

@@ -1,13 +1,16 @@
 //! After the plan: the order of repairs and their day-phases.
 
 use super::PlanJob;
+use crate::ingest::IngestError;
 use crate::ingest::attach::Attachment;
 use crate::ingest::sites::SiteLayer;
+use crate::network::Cost;
 use crate::solve::Plan;
 use crate::solve::order::Target;
 use crate::solve::site_plan::SitePlan;
 
-/// Orders the plan's repairs (hub's group first) and groups them into day-phases.
+/// Orders the plan's repairs (hub's group first) and groups them into day-phases; refuses a
+/// crew capacity that fits none of the plan's repairs.
 #[allow(clippy::too_many_arguments)]
 pub(super) fn schedule(
     job: &PlanJob,
@@ -19,7 +22,7 @@ pub(super) fn schedule(
     attachments: &[Attachment],
     hub: Option<usize>,
     site_plan: Option<&SitePlan>,
-) -> Vec<crate::solve::order::Step> {
+) -> Result<Vec<crate::solve::order::Step>, IngestError> {
     use crate::solve::order::{assign_phases, order_whole_network};
     let mut steps = match (sites, site_plan) {
         (Some(sl), Some(sp)) => {
@@ -45,12 +48,38 @@ pub(super) fn schedule(
             order_whole_network(graph, &plan.edges, &roots, &lengths)
         }
     };
-    assign_phases(
-        graph,
-        &mut steps,
-        job.crew_capacity.map(|c| (c * 1000.0).round() as u64),
-    );
-    steps
+    let capacity = job.crew_capacity.map(|c| (c * 1000.0).round() as u64);
+    check_capacity(job.crew_capacity, capacity, graph, &steps)?;
+    assign_phases(graph, &mut steps, capacity);
+    Ok(steps)
+}
+
+/// A day's capacity must hold at least the smallest repair, or no day-phase could be formed:
+/// only here, with the plan's repairs known, can that be checked.
+fn check_capacity(
+    given: Option<f64>,
+    capacity: Option<Cost>,
+    graph: &crate::solve::graph::EdgeList,
+    steps: &[crate::solve::order::Step],
+) -> Result<(), IngestError> {
+    let (Some(c), Some(cap)) = (given, capacity) else {
+        return Ok(());
+    };
+    let smallest = steps
+        .iter()
+        .map(|st| graph.cost[st.edge as usize])
+        .filter(|&x| x > 0)
+        .min();
+    match smallest.filter(|&m| m > cap) {
+        Some(m) => Err(IngestError::Setting {
+            name: "--crew-capacity",
+            message: format!(
+                "{c} repair-metres per day fits no repair of the plan (the smallest needs {} repair-metres)",
+                crate::network::cost_to_repair_metres(m)
+            ),
+        }),
+        None => Ok(()),
+    }
 }
 
 /// The roots of a sites plan (the hub, then each other group's highest-priority site) and the

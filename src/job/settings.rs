@@ -1,120 +1,323 @@
-//! The settings of a job: checked before any input is read, and recorded in `summary.json`.
+//! The settings of a job: every option checked once, before any input is read, into the typed
+//! [`PlanJob`] the stages take (their record in `summary.json` is [`super::record`]).
+//!
+//! [`build`] is the only way to a `PlanJob`: `reknit plan`, `reknit demo` and every manifest
+//! district fill an [`Options`] and call it, so a setting is read and checked the same way wherever
+//! it is given. [`road_settings`] is its part for `reknit check`.
 
-use super::{MAX_ATTACH_LIMIT_M, PlanJob};
-use crate::ingest::IngestError;
+use super::options::{Options, RoadOptions};
+use super::{Checked, MAX_ATTACH_LIMIT_M, PlanJob};
+use crate::ingest::cost_table::{CostTable, RoadFilter};
+use crate::ingest::crs::Crs;
+use crate::ingest::damage::DamageRule;
+use crate::ingest::sites::{SiteSettings, reads_as_csv};
+use crate::ingest::{IngestError, RoadSettings};
 
-/// Checks every setting's range and combination before any input is read; the error names the
-/// setting by its flag.
-pub fn validate(job: &PlanJob) -> Result<(), IngestError> {
-    job.road_settings.validate()?;
+fn refuse(name: &'static str, message: impl Into<String>) -> IngestError {
+    IngestError::Setting {
+        name,
+        message: message.into(),
+    }
+}
+
+/// A CRS option parsed now, so a wrong code is refused before any work rather than when its layer
+/// is read.
+fn check_crs(name: &'static str, crs: Option<&str>) -> Result<(), IngestError> {
+    match crs {
+        Some(c) => Crs::from_user(c).map(|_| ()).map_err(|m| refuse(name, m)),
+        None => Ok(()),
+    }
+}
+
+/// Reading and noding settings from their options, for `reknit check`: options it would ignore
+/// refused, filters parsed, the cost table read, every range checked.
+pub fn road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
+    if let Some((name, why)) = road_ignored(o, false).into_iter().next() {
+        return Err(refuse(name, why));
+    }
+    typed_road_settings(o)
+}
+
+/// The road options given that the reading would ignore: the damage field and closed value
+/// when damage comes from a category (unless zones or reports read the closed value).
+fn road_ignored(o: &RoadOptions, later_damage: bool) -> Vec<(&'static str, &'static str)> {
+    let category = o.category_field.is_some();
+    let mut out = Vec::new();
+    if category && o.damage_field != "damage" {
+        out.push((
+            "--damage-field",
+            "with --category-field the damage comes from the category: leave one of them out",
+        ));
+    }
+    if category && o.closed_value != "closed" && !later_damage {
+        out.push((
+            "--closed-value",
+            "with --category-field a road is closed by its category (\"closed\" in the cost \
+             table): leave --closed-value out",
+        ));
+    }
+    out
+}
+
+/// Reading and noding settings from options already found to apply.
+fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
+    let cost_table =
+        CostTable::from_file(o.cost_table.as_deref()).map_err(|m| refuse("--cost-table", m))?;
+    let mut filters = Vec::new();
+    for (list, keep, name) in [
+        (&o.keep_where, true, "--keep-where"),
+        (&o.drop_where, false, "--drop-where"),
+    ] {
+        for f in list {
+            filters.push(RoadFilter::parse(f, keep).map_err(|m| refuse(name, m))?);
+        }
+    }
+    // A table without [categories] keeps the documented default ones: only its own are refused
+    // (a copy of the defaults changes nothing either way).
+    if o.cost_table.is_some()
+        && !cost_table.categories.is_empty()
+        && cost_table.categories != CostTable::default().categories
+        && o.category_field.is_none()
+    {
+        return Err(refuse(
+            "--cost-table",
+            "its [categories] are read only with --category-field (the damage field holds \
+             factors): give --category-field, or leave [categories] out",
+        ));
+    }
+    check_crs("--crs", o.crs.as_deref())?;
+    let s = RoadSettings {
+        snap_m: o.snap_m,
+        damage: DamageRule {
+            field: o.damage_field.clone(),
+            default: o.default_damage,
+            closed_value: o.closed_value.clone(),
+        },
+        id_field: o.id_field.clone(),
+        crs: o.crs.clone(),
+        node_crossings: o.node_crossings,
+        category_field: o.category_field.clone(),
+        cost_table,
+        cost_table_file: o.cost_table.clone(),
+        filters,
+        structure_field: o.structure_field.clone(),
+        attribution: o.attribution.clone(),
+    };
+    s.validate()?;
+    Ok(s)
+}
+
+/// Checks the options and turns them into the job every stage reads; the error names the
+/// setting by its flag (the manifest names it by its key).
+pub fn build(o: &Options) -> Result<PlanJob, IngestError> {
+    needs_input(o)?;
+    typed(o)
+}
+
+/// Checks every value's range and form, leaving aside whether this run uses it: a manifest checks
+/// its `[defaults]` this way before leaving out those a district has no use for.
+pub fn check_values(o: &Options) -> Result<(), IngestError> {
+    typed(o).map(|_| ())
+}
+
+/// The typed job, every value checked (the options found to apply).
+fn typed(o: &Options) -> Result<PlanJob, IngestError> {
+    let road_settings = typed_road_settings(&o.road)?;
+    check_crs("--zones-crs", o.zones_crs.as_deref())?;
+    check_crs("--sites-crs", o.sites_crs.as_deref())?;
+    let job = PlanJob {
+        roads: o.roads.clone(),
+        sites: o.sites.clone(),
+        out: o.out.clone(),
+        force: o.force,
+        road_settings,
+        site_settings: SiteSettings {
+            id_field: o.site_id_field.clone(),
+            name_field: o.site_name_field.clone(),
+            priority_field: o.priority_field.clone(),
+            lon_column: o.lon_column.clone(),
+            lat_column: o.lat_column.clone(),
+            crs: o.sites_crs.clone(),
+        },
+        max_attach_m: o.max_attach_m.unwrap_or(250.0),
+        hub: o.hub.clone(),
+        whole_network: o.whole_network,
+        mst: o.mst.unwrap_or_default(),
+        effort: o.effort.unwrap_or(crate::solve::steiner::Effort::Normal),
+        zones: o.damage_zones.clone(),
+        // Zones and reports read "closed" as the roads do; a zone without a value counts as 1.0.
+        zone_damage: DamageRule {
+            field: o
+                .zone_damage_field
+                .clone()
+                .unwrap_or_else(|| "damage".into()),
+            default: 1.0,
+            closed_value: o.road.closed_value.clone(),
+        },
+        zones_crs: o.zones_crs.clone(),
+        reports: o.damage_points.clone(),
+        report_distance_m: o.report_distance_m.unwrap_or(50.0),
+        crew_capacity: o.crew_capacity,
+        name: o.name.clone(),
+        budget: o.budget,
+        redundancy: o.redundancy,
+        _checked: Checked(()),
+    };
+    ranges(&job)?;
+    Ok(job)
+}
+
+/// Refuses options that only mean something with an input or a kind of plan this run does not
+/// have: they would be accepted, recorded in `summary.json` and ignored.
+fn needs_input(o: &Options) -> Result<(), IngestError> {
+    match ignored(o).into_iter().next() {
+        Some((name, why)) => Err(refuse(name, why)),
+        None => Ok(()),
+    }
+}
+
+/// The options given that this run would ignore, by flag, each with what it needs.
+pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
+    let sites_plan = o.sites.is_some() && !o.whole_network;
+    let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
+    const SITES: &str = "this option is about the sites layer: give --sites";
+    const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
+                           other sites are read by their geometry";
+    const SITES_PLAN: &str =
+        "this option is about a sites plan: give --sites (and not --whole-network)";
+    let rules: [(&'static str, bool, bool, &'static str); 15] = [
+        (
+            "--hub",
+            o.hub.is_some(),
+            o.sites.is_some(),
+            "the hub is one of the sites: give --sites",
+        ),
+        (
+            "--max-attach",
+            o.max_attach_m.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--site-id-field",
+            o.site_id_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--site-name-field",
+            o.site_name_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--priority-field",
+            o.priority_field.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        (
+            "--sites-crs",
+            o.sites_crs.is_some(),
+            o.sites.is_some(),
+            SITES,
+        ),
+        ("--lon-column", o.lon_column.is_some(), csv_sites, COLUMNS),
+        ("--lat-column", o.lat_column.is_some(), csv_sites, COLUMNS),
+        (
+            "--redundancy",
+            o.redundancy,
+            sites_plan,
+            "backup links join sites to the hub: give --sites (and not --whole-network)",
+        ),
+        (
+            "--budget",
+            o.budget.is_some(),
+            sites_plan,
+            "a budget chooses which sites to join first: give --sites (and not --whole-network)",
+        ),
+        ("--effort", o.effort.is_some(), sites_plan, SITES_PLAN),
+        (
+            "--mst",
+            o.mst.is_some(),
+            !sites_plan,
+            "the algorithm is for the whole-network plan; with --sites the plan is a Steiner \
+             tree: give --whole-network, or leave --mst out",
+        ),
+        (
+            "--zones-crs",
+            o.zones_crs.is_some(),
+            o.damage_zones.is_some(),
+            "this is the damage zones' CRS: give --damage-zones",
+        ),
+        (
+            "--report-distance",
+            o.report_distance_m.is_some(),
+            o.damage_points.is_some(),
+            "this is the damage reports' reach: give --damage-points",
+        ),
+        (
+            "--zone-damage-field",
+            o.zone_damage_field.is_some(),
+            o.damage_zones.is_some() || o.damage_points.is_some(),
+            "this field is read from damage zones and reports: give --damage-zones or \
+             --damage-points",
+        ),
+    ];
+    let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
+    road_ignored(&o.road, later_damage)
+        .into_iter()
+        .chain(
+            rules
+                .into_iter()
+                .filter(|&(_, given, used, _)| given && !used)
+                .map(|(name, _, _, why)| (name, why)),
+        )
+        .collect()
+}
+
+/// Checks every number's range.
+fn ranges(job: &PlanJob) -> Result<(), IngestError> {
     if !(job.max_attach_m.is_finite()
         && job.max_attach_m >= 0.0
         && job.max_attach_m <= MAX_ATTACH_LIMIT_M)
     {
-        return Err(IngestError::Setting {
-            name: "--max-attach",
-            message: format!(
+        return Err(refuse(
+            "--max-attach",
+            format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
                 job.max_attach_m
             ),
-        });
+        ));
     }
-
     if let Some(b) = job.budget
         && !(b.is_finite() && b >= 0.0)
     {
-        return Err(IngestError::Setting {
-            name: "--budget",
-            message: format!("{b} repair-metres is not a number ≥ 0"),
-        });
-    }
-    if job.redundancy && (job.sites.is_none() || job.whole_network) {
-        return Err(IngestError::Setting {
-            name: "--redundancy",
-            message: "backup links join sites to the hub: give --sites (and not --whole-network)"
-                .into(),
-        });
-    }
-    if job.budget.is_some() && (job.sites.is_none() || job.whole_network) {
-        return Err(IngestError::Setting {
-            name: "--budget",
-            message:
-                "a budget chooses which sites to join first: give --sites (and not --whole-network)"
-                    .into(),
-        });
-    }
-    if job.hub.is_some() && job.sites.is_none() {
-        return Err(IngestError::Setting {
-            name: "--hub",
-            message: "the hub is one of the sites: give --sites".into(),
-        });
+        return Err(refuse(
+            "--budget",
+            format!("{b} repair-metres is not a number ≥ 0"),
+        ));
     }
     if let Some(c) = job.crew_capacity
         && !(c.is_finite() && c >= 0.0005)
     {
-        return Err(IngestError::Setting {
-            name: "--crew-capacity",
-            message: format!(
+        return Err(refuse(
+            "--crew-capacity",
+            format!(
                 "{c} repair-metres per day is not a positive number of at least 0.001 (costs are counted in thousandths)"
             ),
-        });
+        ));
     }
     if !(job.report_distance_m.is_finite()
         && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
     {
-        return Err(IngestError::Setting {
-            name: "--report-distance",
-            message: format!(
+        return Err(refuse(
+            "--report-distance",
+            format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
                 job.report_distance_m
             ),
-        });
+        ));
     }
     Ok(())
-}
-
-/// Every setting of a job that can change its outputs, as recorded in `summary.json`.
-pub fn settings_json(job: &PlanJob) -> serde_json::Value {
-    let s = &job.road_settings;
-    let ss = &job.site_settings;
-    serde_json::json!({
-        "name": job.name,
-        "snap_m": s.snap_m,
-        "damage_field": s.damage.field,
-        "default_damage": s.damage.default,
-        "closed_value": s.damage.closed_value,
-        "id_field": s.id_field,
-        "mst": job.mst.name(),
-        "max_attach_m": job.max_attach_m,
-        "hub": job.hub,
-        "whole_network": job.whole_network,
-        "effort": job.effort.name(),
-        "site_id_field": ss.id_field,
-        "site_name_field": ss.name_field,
-        "priority_field": ss.priority_field,
-        "lon_column": ss.lon_column,
-        "lat_column": ss.lat_column,
-        "crs": s.crs,
-        "node_crossings": s.node_crossings,
-        "zone_damage_field": job.zone_damage.field,
-        "zones_crs": job.zones_crs,
-        "report_distance_m": job.report_distance_m,
-        "crew_capacity": job.crew_capacity,
-        "budget": job.budget,
-        "redundancy": job.redundancy,
-        "category_field": s.category_field,
-        "cost_table": {
-            "categories": s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
-                Some(f) => serde_json::json!(f),
-                None => serde_json::json!("closed"),
-            })).collect::<serde_json::Map<_, _>>(),
-            "class_field": s.cost_table.class_field,
-            "class_rates": s.cost_table.class_rates,
-            "class_default": s.cost_table.class_default,
-        },
-        "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
-        "sites_crs": ss.crs,
-        "structure_field": s.structure_field,
-        "attribution": s.attribution,
-    })
 }

@@ -98,8 +98,8 @@ pub(super) fn statuses(f: &Facts) -> Result<Vec<SiteStatus>, SolveError> {
                 (true, Some(need)) => out.push(s(
                     LEFT_OUT,
                     format!(
-                        "outside the budget: {:.3} more repair-metres would join it to the hub",
-                        cost_to_repair_metres(need)
+                        "outside the budget: {} more repair-metres would join it to the hub",
+                        crate::export::geojson::Fixed(cost_to_repair_metres(need), 3)
                     ),
                 )),
                 _ => {

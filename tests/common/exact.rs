@@ -1,6 +1,7 @@
 //! Exact reference solvers for small instances.
 
-use reknit::solve::graph::EdgeList;
+use proptest::prelude::*;
+use reknit::solve::graph::{EdgeList, UNUSABLE};
 
 /// Exact optimum by Dreyfus–Wagner over all-pairs shortest paths (Floyd–Warshall).
 pub fn dreyfus_wagner(g: &EdgeList, terminals: &[u32]) -> u64 {
@@ -62,4 +63,34 @@ pub fn dreyfus_wagner(g: &EdgeList, terminals: &[u32]) -> u64 {
         }
     }
     dp[full - 1][terminals[0] as usize]
+}
+
+/// Random connected instances: up to 21 vertices on a random spanning tree plus extra edges (zero-cost
+/// and closed ones among them) and 2 to 8 terminals.
+pub fn arb_instance() -> impl Strategy<Value = (EdgeList, Vec<u32>)> {
+    (4usize..22, 2usize..9).prop_flat_map(|(n, k)| {
+        let tree_parents = proptest::collection::vec(any::<proptest::sample::Index>(), n - 1);
+        let extra =
+            proptest::collection::vec((0..n as u32, 0..n as u32, 0u64..25, 0u8..10), 0..3 * n);
+        let tree_costs = proptest::collection::vec(0u64..25, n - 1);
+        let terms = proptest::sample::subsequence((0..n as u32).collect::<Vec<_>>(), k.min(n));
+        (tree_parents, tree_costs, extra, terms).prop_map(move |(parents, costs, extra, terms)| {
+            let mut g = EdgeList {
+                vertices: n,
+                ends: Vec::new(),
+                cost: Vec::new(),
+            };
+            // A random spanning tree keeps every terminal reachable.
+            for v in 1..n {
+                let p = parents[v - 1].index(v) as u32;
+                g.ends.push([p, v as u32]);
+                g.cost.push(costs[v - 1]);
+            }
+            for (a, b, c, kind) in extra {
+                g.ends.push([a, b]);
+                g.cost.push(if kind == 0 { UNUSABLE } else { c });
+            }
+            (g, terms)
+        })
+    })
 }

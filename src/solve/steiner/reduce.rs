@@ -27,6 +27,8 @@ pub struct Reduced {
     pub orig_offsets: Vec<u32>,
     /// Zero-cost component ("super vertex") of every original vertex.
     pub super_of: Vec<u32>,
+    /// Zero-cost component each reduced vertex stands for.
+    pub component: Vec<u32>,
 }
 
 impl Reduced {
@@ -169,6 +171,7 @@ pub fn reduce(g: &EdgeList, terminals: &[u32]) -> Reduced {
         orig,
         orig_offsets,
         super_of,
+        component: key_vertices,
     }
 }
 

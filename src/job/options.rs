@@ -1,0 +1,149 @@
+//! The options of a planning run as the user gave them, before any check: the command line and
+//! the manifest keys both fill an [`Options`], and [`super::settings::build`] alone turns it into
+//! the checked, typed [`super::PlanJob`].
+
+use crate::ingest::source::Source;
+use crate::solve::MstAlgorithm;
+use crate::solve::steiner::Effort;
+use std::path::PathBuf;
+
+/// Options of reading roads and building the network (all that `check` takes).
+#[derive(Debug, Clone)]
+pub struct RoadOptions {
+    /// `--snap`, metres.
+    pub snap_m: f64,
+    /// `--damage-field`.
+    pub damage_field: String,
+    /// `--default-damage` (negative: closed).
+    pub default_damage: f64,
+    /// `--closed-value`; it applies to zones and reports too.
+    pub closed_value: String,
+    /// `--id-field`.
+    pub id_field: Option<String>,
+    /// `--crs`, as written (`EPSG:NNNN`).
+    pub crs: Option<String>,
+    /// `--category-field`.
+    pub category_field: Option<String>,
+    /// `--cost-table`: the file, read by `build`.
+    pub cost_table: Option<PathBuf>,
+    /// `--keep-where` texts, `FIELD=V1,V2` each.
+    pub keep_where: Vec<String>,
+    /// `--drop-where` texts, `FIELD=V1,V2` each.
+    pub drop_where: Vec<String>,
+    /// `--node-crossings`.
+    pub node_crossings: bool,
+    /// `--structure-field`.
+    pub structure_field: Option<String>,
+    /// `--attribution`.
+    pub attribution: Option<String>,
+}
+
+impl Default for RoadOptions {
+    fn default() -> Self {
+        RoadOptions {
+            snap_m: 0.5,
+            damage_field: "damage".into(),
+            default_damage: 1.0,
+            closed_value: "closed".into(),
+            id_field: None,
+            crs: None,
+            category_field: None,
+            cost_table: None,
+            keep_where: Vec::new(),
+            drop_where: Vec::new(),
+            node_crossings: false,
+            structure_field: None,
+            attribution: None,
+        }
+    }
+}
+
+/// Every option of `reknit plan` (and of a manifest district). Options that only mean something
+/// with another input (`--max-attach` with `--sites`, `--report-distance` with `--damage-points`)
+/// are `None` unless given, so that giving one without its input can be refused.
+#[derive(Debug, Clone)]
+pub struct Options {
+    /// `--roads`.
+    pub roads: Source,
+    /// `--out`.
+    pub out: PathBuf,
+    /// `--force`.
+    pub force: bool,
+    /// `--name`.
+    pub name: Option<String>,
+    /// Reading and noding.
+    pub road: RoadOptions,
+    /// `--damage-zones`.
+    pub damage_zones: Option<Source>,
+    /// `--zone-damage-field` (default `damage`).
+    pub zone_damage_field: Option<String>,
+    /// `--zones-crs`.
+    pub zones_crs: Option<String>,
+    /// `--damage-points`.
+    pub damage_points: Option<Source>,
+    /// `--report-distance`, metres (default 50).
+    pub report_distance_m: Option<f64>,
+    /// `--budget`, repair-metres.
+    pub budget: Option<f64>,
+    /// `--redundancy`.
+    pub redundancy: bool,
+    /// `--crew-capacity`, repair-metres per day.
+    pub crew_capacity: Option<f64>,
+    /// `--mst` (default Kruskal).
+    pub mst: Option<MstAlgorithm>,
+    /// `--sites`.
+    pub sites: Option<Source>,
+    /// `--max-attach`, metres (default 250).
+    pub max_attach_m: Option<f64>,
+    /// `--hub`.
+    pub hub: Option<String>,
+    /// `--whole-network`.
+    pub whole_network: bool,
+    /// `--effort` (default normal).
+    pub effort: Option<Effort>,
+    /// `--site-id-field`.
+    pub site_id_field: Option<String>,
+    /// `--site-name-field`.
+    pub site_name_field: Option<String>,
+    /// `--priority-field`.
+    pub priority_field: Option<String>,
+    /// `--lon-column`.
+    pub lon_column: Option<String>,
+    /// `--lat-column`.
+    pub lat_column: Option<String>,
+    /// `--sites-crs`.
+    pub sites_crs: Option<String>,
+}
+
+impl Options {
+    /// Options with every default, for the given roads and output folder.
+    pub fn new(roads: Source, out: PathBuf) -> Options {
+        Options {
+            roads,
+            out,
+            force: false,
+            name: None,
+            road: RoadOptions::default(),
+            damage_zones: None,
+            zone_damage_field: None,
+            zones_crs: None,
+            damage_points: None,
+            report_distance_m: None,
+            budget: None,
+            redundancy: false,
+            crew_capacity: None,
+            mst: None,
+            sites: None,
+            max_attach_m: None,
+            hub: None,
+            whole_network: false,
+            effort: None,
+            site_id_field: None,
+            site_name_field: None,
+            priority_field: None,
+            lon_column: None,
+            lat_column: None,
+            sites_crs: None,
+        }
+    }
+}

@@ -1,0 +1,54 @@
+//! The record of a job's settings in `summary.json` (and in its fingerprint).
+
+use super::PlanJob;
+
+/// Every setting of a job that can change its outputs, as recorded in `summary.json`; a setting
+/// this run has no use for (the spanning-forest algorithm of a sites plan, the reach of reports
+/// not given) is `null`, so the record never names a value that played no part.
+pub fn settings_json(job: &PlanJob) -> serde_json::Value {
+    let s = &job.road_settings;
+    let ss = &job.site_settings;
+    let sites_plan = job.sites.is_some() && !job.whole_network;
+    let when = |used: bool, v: serde_json::Value| if used { v } else { serde_json::Value::Null };
+    let evidence = job.zones.is_some() || job.reports.is_some();
+    serde_json::json!({
+        "name": job.name,
+        "snap_m": s.snap_m,
+        "damage_field": when(s.category_field.is_none(), s.damage.field.clone().into()),
+        "default_damage": s.damage.default,
+        "closed_value": when(s.category_field.is_none() || evidence, s.damage.closed_value.clone().into()),
+        "id_field": s.id_field,
+        "mst": when(!sites_plan, job.mst.name().into()),
+        "max_attach_m": when(job.sites.is_some(), job.max_attach_m.into()),
+        "hub": job.hub,
+        "whole_network": job.whole_network,
+        "effort": when(sites_plan, job.effort.name().into()),
+        "site_id_field": ss.id_field,
+        "site_name_field": ss.name_field,
+        "priority_field": ss.priority_field,
+        "lon_column": ss.lon_column,
+        "lat_column": ss.lat_column,
+        "crs": s.crs,
+        "node_crossings": s.node_crossings,
+        "zone_damage_field": when(evidence, job.zone_damage.field.clone().into()),
+        "zones_crs": job.zones_crs,
+        "report_distance_m": when(job.reports.is_some(), job.report_distance_m.into()),
+        "crew_capacity": job.crew_capacity,
+        "budget": job.budget,
+        "redundancy": job.redundancy,
+        "category_field": s.category_field,
+        "cost_table": {
+            "categories": when(s.category_field.is_some(), s.cost_table.categories.iter().map(|(k, v)| (k.clone(), match v.factor() {
+                Some(f) => serde_json::json!(f),
+                None => serde_json::json!("closed"),
+            })).collect::<serde_json::Map<_, _>>().into()),
+            "class_field": s.cost_table.class_field,
+            "class_rates": s.cost_table.class_rates,
+            "class_default": s.cost_table.class_default,
+        },
+        "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
+        "sites_crs": ss.crs,
+        "structure_field": s.structure_field,
+        "attribution": s.attribution,
+    })
+}

@@ -1,0 +1,166 @@
+//! Stage 3, plan: the hub chosen, the plan solved (sites or whole network) and cut to the
+//! budget, the repairs ordered, what reaches the hub, and the single points of failure.
+
+use super::network::Built;
+use crate::export::backup::BackupLayer;
+use crate::export::fragility::FragilityLayer;
+use crate::ingest::sites::SiteLayer;
+use crate::job::notes::Notes;
+use crate::job::resilience::{backup_plan, fragility_report};
+use crate::job::schedule::schedule;
+use crate::job::{JobError, PlanJob, SitesResult, budget, hub, joined, status};
+use crate::network::cost_to_repair_metres;
+use crate::progress::Progress;
+use crate::solve::components::{Components, components};
+use crate::solve::graph::EdgeList;
+use crate::solve::order::Step;
+use crate::solve::site_plan::{SitePlan, plan_sites};
+use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
+
+/// The plan and everything decided about it.
+pub(in crate::job) struct Planned {
+    /// The network stage's results.
+    pub built: Built,
+    /// The network as compact weighted edges.
+    pub graph: EdgeList,
+    /// Its connected components (usable edges).
+    pub comps: Components,
+    /// The edges to repair.
+    pub plan: Plan,
+    /// The repairs in order, with day-phases.
+    pub steps: Vec<Step>,
+    /// The sites' attachments, hub, plan, reach and statuses, when sites were given.
+    pub sites: Option<SitesResult>,
+    /// Single points of failure after the plan (sites joined to a hub).
+    pub fragile: Option<FragilityLayer>,
+    /// Backup links (`--redundancy`).
+    pub backup: Option<BackupLayer>,
+}
+
+/// Solves the plan on the built network and decides what it joins.
+pub(in crate::job) fn plan(
+    job: &PlanJob,
+    mut built: Built,
+    site_layer: Option<SiteLayer>,
+    progress: &Progress,
+    notes: &mut Notes,
+) -> Result<Planned, JobError> {
+    let graph = built.net.weighted_edges();
+    let comps = components(&graph);
+    let attachments = std::mem::take(&mut built.attachments);
+    let hub = match &site_layer {
+        Some(sl) => hub::choose(sl, &attachments, job.hub.as_deref(), &comps, notes)?,
+        None => None,
+    };
+    let (mut plan, site_plan) = {
+        let _s = progress.stage("solving");
+        match &site_layer {
+            Some(_) if !job.whole_network => {
+                let junctions: Vec<Option<u32>> = attachments.iter().map(|a| a.junction).collect();
+                let sp = plan_sites(&graph, &comps, &junctions, job.effort)?;
+                (sites_plan(&sp), Some(sp))
+            }
+            _ => (minimum_spanning_forest(&graph, job.mst)?, None),
+        }
+    };
+    // Within a budget smaller than the plan, choose which sites to join.
+    let mut budget_applied = false;
+    if let (Some(b), Some(sl), Some(sp)) = (job.budget, &site_layer, &site_plan) {
+        let _s = progress.stage("choosing sites within the budget");
+        if let Some(cut) = budget::apply(b, &graph, &comps, &mut plan, sl, &attachments, hub, sp)? {
+            budget_applied = true;
+            notes.push(
+                "budget_limits_plan",
+                format!(
+                    "the full plan would cost {} repair-metres, more than the budget of {b}: \
+                     the plan spends {} on the sites giving the most priority per \
+                     repair-metre, joined to the hub first",
+                    crate::export::geojson::Fixed(cost_to_repair_metres(cut.full_cost), 3),
+                    crate::export::geojson::Fixed(cost_to_repair_metres(plan.total_cost), 3)
+                ),
+            );
+        }
+    }
+    let mut steps = {
+        let _s = progress.stage("ordering repairs");
+        schedule(
+            job,
+            &graph,
+            &built.net,
+            &comps,
+            &plan,
+            site_layer.as_ref(),
+            &attachments,
+            hub,
+            site_plan.as_ref(),
+        )?
+    };
+    let sites = match site_layer {
+        Some(layer) => {
+            built.inputs.push(layer.input.clone());
+            let reach =
+                joined::site_reach(&graph, &comps, &plan.edges, &attachments, hub, &mut steps)?;
+            let statuses = status::statuses(&status::Facts {
+                graph: &graph,
+                comps: &comps,
+                plan: &plan.edges,
+                sites: &layer,
+                attachments: &attachments,
+                reach: &reach,
+                budget_applied,
+            })?;
+            hub::alone_note(notes, &layer, &attachments, hub, &comps);
+            Some(SitesResult {
+                layer,
+                attachments,
+                hub,
+                plan: site_plan,
+                reach,
+                statuses,
+                budget_applied,
+            })
+        }
+        None => None,
+    };
+    let joined_to_hub = sites.as_ref().filter(|sr| sr.reach.hub_junction.is_some());
+    let fragile = match joined_to_hub {
+        Some(sr) => {
+            let _s = progress.stage("finding single points of failure");
+            Some(fragility_report(&graph, &plan.edges, sr)?)
+        }
+        None => None,
+    };
+    let backup = match joined_to_hub {
+        Some(sr) if job.redundancy => {
+            let _s = progress.stage("planning backup links");
+            Some(backup_plan(&graph, &plan.edges, sr, steps.len())?)
+        }
+        _ => None,
+    };
+    Ok(Planned {
+        built,
+        graph,
+        comps,
+        plan,
+        steps,
+        sites,
+        fragile,
+        backup,
+    })
+}
+
+/// The sites plan as a plan: its edges, cost, trees and bound.
+fn sites_plan(sp: &SitePlan) -> Plan {
+    Plan {
+        kind: PlanKind::Sites,
+        edges: sp.edges.clone(),
+        total_cost: sp.cost,
+        trees: sp
+            .groups
+            .iter()
+            .filter(|g| !g.tree.edges.is_empty())
+            .count(),
+        lower_bound: sp.lower_bound,
+        bound_complete: sp.bound_complete,
+    }
+}

@@ -1,0 +1,206 @@
+//! One step of the exact search: on a graph with some edges ruled out and some vertices made
+//! terminals, alternate bound, heuristic and reductions until nothing more is ruled out.
+//!
+//! Each round reduces the graph ([`reduce`]), runs the dual ascent on what is left, grows a tree on
+//! its saturated arcs and polishes it, then rules out edges by the reduced-cost and special-distance
+//! tests ([`fixing`]) against the best tree held. Every tree cheaper than that best tree survives, so
+//! the lower bound found holds for the whole subproblem.
+
+use super::dual_ascent::{Bound, dual_ascent};
+use super::paths::Workspace;
+use super::{Effort, fixing, polish, reduce, sph, tree};
+use crate::solve::disjoint::DisjointSets;
+use crate::solve::graph::{Csr, EdgeList, UNUSABLE};
+
+/// Rounds of bound and reduction per step (each shrinks the graph; later ones rarely pay).
+const ROUNDS: usize = 4;
+
+/// What one step found out about a subproblem.
+pub struct Step {
+    /// A lower bound on every tree of the subproblem cheaper than the best tree held (or `None`:
+    /// none exists, the subproblem is closed).
+    pub bound: Option<u64>,
+    /// Edges still usable (ids of the step's graph), ascending.
+    pub alive: Vec<u32>,
+    /// A non-terminal vertex to branch on (a vertex of the step's graph), if any is left.
+    pub branch: Option<u32>,
+    /// Arc visits the dual ascents spent.
+    pub work: u64,
+}
+
+/// The best tree held: edges of the base graph and their cost.
+pub struct Incumbent {
+    /// Edge ids of the base graph.
+    pub edges: Vec<u32>,
+    /// Their total cost.
+    pub cost: u64,
+}
+
+/// Runs one step on `g` (the base graph with ruled-out edges at [`UNUSABLE`]) for `terminals`,
+/// improving `best` when a cheaper tree turns up.
+pub fn step(
+    mut g: EdgeList,
+    terminals: &[u32],
+    best: &mut Incumbent,
+    effort: Effort,
+    ws: &mut Workspace,
+) -> Step {
+    let mut lb = 0u64;
+    let mut work = 0u64;
+    let mut closed = Step {
+        bound: None,
+        alive: Vec::new(),
+        branch: None,
+        work: 0,
+    };
+    for round in 0..ROUNDS {
+        if !connected(&g, terminals) {
+            closed.work = work;
+            return closed;
+        }
+        let red = reduce::reduce(&g, terminals);
+        let rg = &red.graph;
+        let csr = Csr::from_edges(rg);
+        let it = &red.is_terminal;
+        let bound = if red.terminals.len() >= 2 {
+            let size = rg.vertices + rg.len();
+            let budget = effort.bound_budget(size).unwrap_or(u64::MAX);
+            dual_ascent(rg, &csr, &red.terminals, budget)
+        } else {
+            Bound::zero(true)
+        };
+        work += 2 * rg.len() as u64 * red.terminals.len() as u64;
+        lb = lb.max(bound.value);
+        // A tree on the saturated arcs, which join every terminal to the root.
+        let t = if red.terminals.len() >= 2 {
+            let sat = saturated_graph(rg, &bound);
+            let sat_csr = Csr::from_edges(&sat);
+            let t = sph::sph(&sat, &sat_csr, &red.terminals, it, red.terminals[0], ws);
+            let t = tree::mst_prune(rg, &csr, &t, it);
+            polish(rg, &csr, it, t, ws, effort)
+        } else {
+            Vec::new()
+        };
+        let edges = reduce::expand(&g, &red, &t, terminals);
+        let cost = tree::cost(&g, &edges);
+        if cost < best.cost {
+            best.edges = edges;
+            best.cost = cost;
+        }
+        if lb >= best.cost {
+            closed.work = work;
+            return closed;
+        }
+        let mut doomed = vec![false; rg.len()];
+        if red.terminals.len() >= 2 {
+            let root = red.terminals[0];
+            let rc = fixing::reduced_cost_doomed(rg, &csr, it, root, &bound, best.cost);
+            doomed = rc;
+            // The special-distance test looks only at costs, which later rounds do not change.
+            if round == 0 {
+                let sd = fixing::special_distance_doomed(rg, &csr, it);
+                for (d, s) in doomed.iter_mut().zip(sd) {
+                    *d |= s;
+                }
+            }
+        }
+        // Keep only what the reduced graph represents, less the doomed edges.
+        let mut keep = vec![false; g.len()];
+        for e in 0..rg.len() as u32 {
+            if !doomed[e as usize] {
+                for &o in red.originals(e) {
+                    keep[o as usize] = true;
+                }
+            }
+        }
+        // Zero-cost edges inside merged vertices stay (the base graph has none, but a caller's may).
+        for (e, c) in g.cost.iter_mut().enumerate() {
+            if !keep[e] && *c != 0 {
+                *c = UNUSABLE;
+            }
+        }
+        let last = round + 1 == ROUNDS || !doomed.iter().any(|&d| d);
+        if last {
+            if !connected(&g, terminals) {
+                closed.work = work;
+                return closed;
+            }
+            let alive: Vec<u32> = (0..g.len() as u32)
+                .filter(|&e| g.usable(e as usize))
+                .collect();
+            return Step {
+                bound: Some(lb),
+                alive,
+                branch: branch_vertex(&g, &red, rg, &t, &doomed),
+                work,
+            };
+        }
+    }
+    unreachable!("the last round returns")
+}
+
+/// The reduced graph with only the edges that have a saturated arc.
+fn saturated_graph(rg: &EdgeList, bound: &Bound) -> EdgeList {
+    EdgeList {
+        vertices: rg.vertices,
+        ends: rg.ends.clone(),
+        cost: rg
+            .cost
+            .iter()
+            .enumerate()
+            .map(|(e, &c)| match bound.saturated.get(e) {
+                Some(true) => c,
+                _ => UNUSABLE,
+            })
+            .collect(),
+    }
+}
+
+/// Whether all `terminals` share one component over usable edges.
+pub fn connected(g: &EdgeList, terminals: &[u32]) -> bool {
+    let mut ds = DisjointSets::new(g.vertices);
+    for e in 0..g.len() {
+        if g.usable(e) {
+            let [a, b] = g.ends[e];
+            ds.union(a, b);
+        }
+    }
+    terminals.windows(2).all(|w| ds.find(w[0]) == ds.find(w[1]))
+}
+
+/// A non-terminal vertex to branch on: the one of highest degree in the step's tree (it most
+/// shapes the tree), else of highest degree in the graph; ties to the lower id. Returned as a
+/// vertex of `g`.
+fn branch_vertex(
+    g: &EdgeList,
+    red: &reduce::Reduced,
+    rg: &EdgeList,
+    t: &[u32],
+    doomed: &[bool],
+) -> Option<u32> {
+    let mut in_tree = vec![0u32; rg.vertices];
+    for &e in t {
+        for v in rg.ends[e as usize] {
+            in_tree[v as usize] += 1;
+        }
+    }
+    let mut degree = vec![0u32; rg.vertices];
+    for (e, &[a, b]) in rg.ends.iter().enumerate() {
+        if !doomed[e] {
+            degree[a as usize] += 1;
+            degree[b as usize] += 1;
+        }
+    }
+    let pick = (0..rg.vertices as u32)
+        .filter(|&v| !red.is_terminal[v as usize] && degree[v as usize] > 0)
+        .max_by_key(|&v| {
+            (
+                in_tree[v as usize],
+                degree[v as usize],
+                std::cmp::Reverse(v),
+            )
+        })?;
+    // Back to a vertex of g in the zero-cost component the reduced vertex stands for.
+    let want = red.component[pick as usize];
+    (0..g.vertices as u32).find(|&v| red.super_of[v as usize] == want)
+}

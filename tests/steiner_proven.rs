@@ -1,0 +1,118 @@
+//! The exact search: reductions by bound and by special distance never lose an optimal tree, and
+//! thorough effort proves optimality. References: an exact Dreyfus–Wagner dynamic program (Networks
+//! 1, 1971) on small random graphs, and the published optima of SteinLib (Koch, Martin & Voß,
+//! ZIB-Report 00-37, 2001; tests/data/steinlib/optima.tsv).
+
+mod common;
+use common::exact::{arb_instance, dreyfus_wagner};
+use proptest::prelude::*;
+use reknit::solve::graph::{Csr, EdgeList, UNUSABLE};
+use reknit::solve::steiner::dual_ascent::dual_ascent;
+use reknit::solve::steiner::exact::connected;
+use reknit::solve::steiner::fixing::{reduced_cost_doomed, special_distance_doomed};
+use reknit::solve::steiner::paths::Workspace;
+use reknit::solve::steiner::reduce::reduce;
+use reknit::solve::steiner::{Effort, mehlhorn::mehlhorn, steiner_tree};
+use reknit::solve::stp;
+
+/// The optimum over what `doomed` leaves, or `None` when the terminals fall apart.
+fn optimum_without(g: &EdgeList, terms: &[u32], doomed: &[bool]) -> Option<u64> {
+    let mut rest = g.clone();
+    for (c, &d) in rest.cost.iter_mut().zip(doomed) {
+        if d {
+            *c = UNUSABLE;
+        }
+    }
+    connected(&rest, terms).then(|| dreyfus_wagner(&rest, terms))
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    /// On the reduced graph the solver searches: with a real tree's cost U (Mehlhorn's), the
+    /// reduced-cost tests at limit U + 1 keep the optimum (Dreyfus–Wagner) exactly; at limit U every
+    /// tree cheaper than U survives, so the optimum is what is left or U itself; the special-distance
+    /// test keeps the optimum.
+    #[test]
+    fn reductions_by_bound_keep_an_optimum((g, terms) in arb_instance()) {
+        let mut terms = terms;
+        terms.sort_unstable();
+        let red = reduce(&g, &terms);
+        prop_assume!(red.terminals.len() >= 2);
+        let (rg, rt, it) = (&red.graph, &red.terminals, &red.is_terminal);
+        let csr = Csr::from_edges(rg);
+        let opt = dreyfus_wagner(rg, rt);
+        let b = dual_ascent(rg, &csr, rt, u64::MAX);
+        let upper = rg.total(&mehlhorn(rg, &csr, rt, it, &mut Workspace::new(rg.vertices)).edges);
+        let keep = reduced_cost_doomed(rg, &csr, it, rt[0], &b, upper + 1);
+        prop_assert_eq!(optimum_without(rg, rt, &keep), Some(opt));
+        let strict = reduced_cost_doomed(rg, &csr, it, rt[0], &b, upper);
+        let left = optimum_without(rg, rt, &strict).unwrap_or(u64::MAX);
+        prop_assert_eq!(left.min(upper), opt);
+        let sd = special_distance_doomed(rg, &csr, it);
+        prop_assert_eq!(optimum_without(rg, rt, &sd), Some(opt));
+    }
+
+    /// Thorough effort finds and proves the optimum of small graphs (Dreyfus–Wagner).
+    #[test]
+    fn thorough_proves_the_optimum((g, terms) in arb_instance()) {
+        let opt = dreyfus_wagner(&g, &terms);
+        let t = steiner_tree(&g, &terms, Effort::Thorough).unwrap();
+        prop_assert_eq!(t.cost, opt);
+        prop_assert_eq!(t.lower_bound, opt);
+    }
+}
+
+fn instance(name: &str) -> stp::Instance {
+    let path = common::data(&format!("steinlib/{name}.stp"));
+    stp::parse(&std::fs::read_to_string(path).unwrap()).unwrap()
+}
+
+fn published(name: &str) -> u64 {
+    let text = std::fs::read_to_string(common::data("steinlib/optima.tsv")).unwrap();
+    let line = text.lines().find(|l| l.starts_with(&format!("{name}\t")));
+    line.and_then(|l| l.split('\t').nth(1)?.trim().parse().ok())
+        .unwrap_or_else(|| panic!("{name} not in optima.tsv"))
+}
+
+/// Proven-optimal plans equal the published optima: SteinLib (Koch, Martin & Voß 2001), all of
+/// series B and the quicker instances of series C.
+#[test]
+fn proven_plans_equal_the_published_optima() {
+    common::external::ran("steinlib-proven-optima");
+    let names = (1..=18).map(|i| format!("B/b{i:02}"));
+    let names = names.chain(["C/c01", "C/c02", "C/c06", "C/c11", "C/c16"].map(String::from));
+    for name in names {
+        let inst = instance(&name);
+        let t = steiner_tree(&inst.graph, &inst.terminals, Effort::Thorough).unwrap();
+        assert_eq!(t.lower_bound, t.cost, "{name}: not proven");
+        // Published optimum: SteinLib, Koch, Martin & Voß 2001 (optima.tsv).
+        assert_eq!(
+            t.cost,
+            published(&name),
+            "{name}: proven cost differs from SteinLib's"
+        );
+    }
+}
+
+/// The same plan and bound every time, whatever the thread count (1 or 2 worker threads).
+#[test]
+fn thorough_is_deterministic() {
+    for name in ["B/b17", "C/c07"] {
+        let inst = instance(name);
+        let runs: Vec<_> = [1, 2, 2, 1]
+            .iter()
+            .map(|&n| {
+                let pool = rayon::ThreadPoolBuilder::new()
+                    .num_threads(n)
+                    .build()
+                    .unwrap();
+                pool.install(|| steiner_tree(&inst.graph, &inst.terminals, Effort::Thorough))
+                    .unwrap()
+            })
+            .collect();
+        for r in &runs[1..] {
+            assert_eq!(r, &runs[0], "{name}");
+        }
+    }
+}
