@@ -205,7 +205,10 @@ pub fn write_svg<W2: Write>(
             path(
                 &mut w,
                 e as usize,
-                &format!(r#"stroke="{PLAN_INTACT}" stroke-width="{}""#, Fixed(base * 1.8, 2)),
+                &format!(
+                    r#"stroke="{PLAN_INTACT}" stroke-width="{}""#,
+                    Fixed(base * 1.8, 2)
+                ),
             )?;
         }
     }
