@@ -246,7 +246,7 @@ fn batch_summaries_carry_the_cautions_and_the_csv_stays_one_table() {
         assert_eq!(rec.get(header.len() - 1).unwrap(), SHORT);
     }
     // Python's csv module (an independent reader) agrees.
-    let Some(py) = common::external::python_with("batch-csv-one-table", &[]) else {
+    let Some(py) = common::external::python_with("batch-csv-one-table", &["csv"]) else {
         return;
     };
     let o = std::process::Command::new(py)
