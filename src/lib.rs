@@ -21,6 +21,7 @@
 
 pub mod batch;
 pub mod cautions;
+pub mod decimal;
 pub mod export;
 pub mod fuzzing;
 mod fxhash;

@@ -363,11 +363,7 @@ case!(hostile_names_in_a_shapefile_road_layer, |d| {
         w.write_shape_and_record(&pl, &r).unwrap();
     }
     drop(w);
-    std::fs::write(
-        p.with_extension("prj"),
-        r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#,
-    )
-    .unwrap();
+    write_wgs84_prj(&p);
     let out = plan_ok(d, &["--roads", &s(&p), "--whole-network"]);
     for name in ["plan.svg", "report.html", "work-orders.csv"] {
         let text = std::fs::read_to_string(out.join(name)).unwrap();

@@ -12,7 +12,6 @@ use shapefile::dbase::{FieldName, FieldValue, Record, TableWriterBuilder};
 use std::path::{Path, PathBuf};
 
 const M: f64 = 1.0 / 111_320.0;
-const WGS84: &str = r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#;
 
 /// The formats a road rule applies to.
 #[derive(Clone, Copy, Debug)]
@@ -68,7 +67,7 @@ fn roads(d: &Path, f: Format, rows: &[Attrs]) -> PathBuf {
                     .unwrap();
             }
             drop(w);
-            std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+            write_wgs84_prj(&p);
             // The table writer goes through doubles: put the text as written into each record.
             let dbf = p.with_extension("dbf");
             let mut b = std::fs::read(&dbf).unwrap();

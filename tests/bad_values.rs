@@ -10,7 +10,6 @@ use shapefile::dbase::{FieldName, FieldValue, Record, TableWriterBuilder};
 use std::path::{Path, PathBuf};
 
 const M: f64 = 1.0 / 111_320.0;
-const WGS84: &str = r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#;
 
 /// A Shapefile set of `shapes` with one numeric field `v` (value i+1) and a text field `id`.
 fn write_set<S: shapefile::record::EsriShape>(d: &Path, name: &str, shapes: &[S]) -> PathBuf {
@@ -26,7 +25,7 @@ fn write_set<S: shapefile::record::EsriShape>(d: &Path, name: &str, shapes: &[S]
         w.write_shape_and_record(sh, &r).unwrap();
     }
     drop(w);
-    std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+    write_wgs84_prj(&p);
     p
 }
 
@@ -281,7 +280,7 @@ fn class_roads(d: &Path, f: Format, values: &[(&str, &str)]) -> PathBuf {
                     .unwrap();
             }
             drop(w);
-            std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+            write_wgs84_prj(&p);
             p
         }
     }
@@ -402,7 +401,7 @@ fn site_ids_stay_as_written_in_every_format() {
                         .unwrap();
                 }
                 drop(w);
-                std::fs::write(p.with_extension("prj"), WGS84).unwrap();
+                write_wgs84_prj(&p);
                 p
             }
         };

@@ -1,8 +1,8 @@
 //! Flags shared by every subcommand that plans, and printing of the result.
 
 use clap::{Args, ValueEnum};
+use reknit::decimal::fixed;
 use reknit::export::Summary;
-use reknit::export::geojson::fixed;
 use reknit::export::text::terminal;
 use reknit::ingest::source::Source;
 use reknit::job::{Options, RoadOptions};

@@ -4,8 +4,8 @@
 //! bins of consecutive days, drawn as a ramp bar (one block per bin, darkest first, labelled with
 //! its days) so the reader sees the order and which days share a colour.
 
-use super::geojson::Fixed;
 use super::palette::{self, DISTINCT_DAYS, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD};
+use crate::decimal::Fixed;
 use std::io::{self, Write};
 
 /// Left edge of the legend box, and its width.

@@ -7,9 +7,9 @@
 //! when many), a legend ([`super::legend`]), a scale bar, a north arrow, the district name and the
 //! cautions band (see [`super::band`]). Line widths shrink as the network grows.
 
-use super::geojson::Fixed;
 use super::palette::{self, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD};
 use super::text::xml;
+use crate::decimal::Fixed;
 use crate::network::Network;
 use crate::solve::order::Step;
 use std::io::{self, Write};
@@ -139,9 +139,9 @@ pub fn write_svg<W2: Write>(
         for (i, p) in net.edge_geometry(e).iter().enumerate() {
             let (x, y) = px(*p);
             d.push_str(if i == 0 { "M" } else { " L" });
-            super::geojson::push_decimal(&mut d, x, 1, true);
+            crate::decimal::push_decimal(&mut d, x, 1, true);
             d.push(' ');
-            super::geojson::push_decimal(&mut d, y, 1, true);
+            crate::decimal::push_decimal(&mut d, y, 1, true);
         }
         writeln!(w, r#"<path d="{d}" {style}/>"#)
     };
@@ -173,9 +173,9 @@ pub fn write_svg<W2: Write>(
             for (i, p) in net.edge_geometry(e).iter().enumerate() {
                 let (x, y) = px(*p);
                 d.push_str(if i == 0 { "M" } else { "L" });
-                super::geojson::push_decimal(&mut d, x, 1, true);
+                crate::decimal::push_decimal(&mut d, x, 1, true);
                 d.push(' ');
-                super::geojson::push_decimal(&mut d, y, 1, true);
+                crate::decimal::push_decimal(&mut d, y, 1, true);
             }
             w.write_all(d.as_bytes())?;
         }

@@ -5,8 +5,8 @@
 use super::summary::Summary;
 use std::io::{self, Write};
 
-use super::geojson::fixed;
 use super::text::html as esc;
+use crate::decimal::fixed;
 
 /// Standard base64 (RFC 4648 §4) of `data`.
 fn base64(data: &[u8]) -> String {

@@ -81,7 +81,7 @@ pub fn write_work_orders<W: Write>(
         let meta = &net.features[e.feature as usize];
         let g = net.edge_geometry(edge as usize);
         let (a, b) = (g[0], g[g.len() - 1]);
-        let f7 = |x: f64| super::geojson::trimmed(x, 7);
+        let f7 = |x: f64| crate::decimal::trimmed(x, 7);
         let id = match &meta.source_id {
             Some(serde_json::Value::String(s)) => s.clone(),
             Some(v) => v.to_string(),
@@ -94,12 +94,12 @@ pub fn write_work_orders<W: Write>(
             meta.source_index.to_string(),
             csv_cell(&id).into_owned(),
             csv_cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
-            super::geojson::fixed(e.length_m, 3),
+            crate::decimal::fixed(e.length_m, 3),
             e.damage
                 .factor()
-                .map_or("closed".to_string(), |f| super::geojson::trimmed(f, 6)),
+                .map_or("closed".to_string(), |f| crate::decimal::trimmed(f, 6)),
             csv_cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
-            super::geojson::fixed(cost_to_repair_metres(e.cost), 3),
+            crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),
             f7(a[1]),
             f7(b[0]),

@@ -119,13 +119,13 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
                 let failure = match closed {
                     Some(c) => format!(
                         "only impassable roads within {max_attach_m} m (nearest at {} m)",
-                        crate::export::geojson::Fixed(c, 1)
+                        crate::decimal::Fixed(c, 1)
                     ),
                     None => match nearest {
                         Some(n) => {
                             format!(
                                 "no road within {max_attach_m} m (nearest about {} m away)",
-                                crate::export::geojson::Fixed(n, 1)
+                                crate::decimal::Fixed(n, 1)
                             )
                         }
                         None => format!("no road within {max_attach_m} m"),

@@ -6,7 +6,7 @@ use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
-use crate::export::geojson::Fixed;
+use crate::decimal::Fixed;
 use crate::network::FeatureMeta;
 use serde_json::Value;
 use std::collections::BTreeMap;

@@ -99,7 +99,7 @@ pub(super) fn statuses(f: &Facts) -> Result<Vec<SiteStatus>, SolveError> {
                     LEFT_OUT,
                     format!(
                         "outside the budget: {} more repair-metres would join it to the hub",
-                        crate::export::geojson::Fixed(cost_to_repair_metres(need), 3)
+                        crate::decimal::Fixed(cost_to_repair_metres(need), 3)
                     ),
                 )),
                 _ => {

@@ -163,11 +163,7 @@ pub fn shapefile_roads(d: &Path, name: &str, lines: &[Vec<[f64; 2]>]) -> PathBuf
         w.write_shape_and_record(&pl, &r).unwrap();
     }
     drop(w);
-    std::fs::write(
-        p.with_extension("prj"),
-        r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#,
-    )
-    .unwrap();
+    write_wgs84_prj(&p);
     p
 }
 

@@ -82,11 +82,7 @@ fn shapefile_of<S: shapefile::record::EsriShape>(
         w.write_shape_and_record(&shape, &r).unwrap();
     }
     drop(w);
-    std::fs::write(
-        p.with_extension("prj"),
-        r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#,
-    )
-    .unwrap();
+    write_wgs84_prj(&p);
     p
 }
 

@@ -11,6 +11,14 @@ pub mod joined;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
+/// Writes the WGS84 longitude/latitude `.prj` beside the Shapefile `shp` (ESRI WKT).
+pub fn write_wgs84_prj(shp: &Path) {
+    std::fs::write(shp.with_extension("prj"), WGS84_PRJ).unwrap();
+}
+
+/// The `.prj` text of WGS84 longitude/latitude, as ESRI software writes it.
+pub const WGS84_PRJ: &str = r#"GEOGCS["GCS_WGS_1984",DATUM["D_WGS_1984",SPHEROID["WGS_1984",6378137.0,298.257223563]],PRIMEM["Greenwich",0.0],UNIT["Degree",0.0174532925199433]]"#;
+
 /// The reknit binary under test.
 pub fn reknit() -> Command {
     let mut c = Command::new(env!("CARGO_BIN_EXE_reknit"));

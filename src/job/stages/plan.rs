@@ -75,8 +75,8 @@ pub(in crate::job) fn plan(
                     "the full plan would cost {} repair-metres, more than the budget of {b}: \
                      the plan spends {} on the sites giving the most priority per \
                      repair-metre, joined to the hub first",
-                    crate::export::geojson::Fixed(cost_to_repair_metres(cut.full_cost), 3),
-                    crate::export::geojson::Fixed(cost_to_repair_metres(plan.total_cost), 3)
+                    crate::decimal::Fixed(cost_to_repair_metres(cut.full_cost), 3),
+                    crate::decimal::Fixed(cost_to_repair_metres(plan.total_cost), 3)
                 ),
             );
         }
