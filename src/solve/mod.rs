@@ -8,6 +8,8 @@ pub mod arborescence;
 pub mod backup;
 pub mod budget;
 pub mod components;
+pub mod corridors;
+pub mod crews;
 pub mod disjoint;
 pub mod fragility;
 pub mod graph;
