@@ -36,6 +36,8 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("budget", "100000"),
     ("redundancy", "true"),
     ("crew_capacity", "500"),
+    ("crews", "3"),
+    ("max_detour", "1.5"),
     ("node_crossings", "true"),
     ("structure_field", "\"kind\""),
     ("attribution", "\"County roads office\""),

@@ -131,6 +131,18 @@ pub const KEYS: &[Key] = &[
         j.crew_capacity = Some(v.number()?);
         Ok(())
     }),
+    key("crews", Number, |j, v| {
+        let n = v.number()?;
+        if !(n.fract() == 0.0 && (1.0..=u32::MAX as f64).contains(&n)) {
+            return Err(format!("{n} is not a whole number of crews ≥ 1"));
+        }
+        j.crews = Some(n as u32);
+        Ok(())
+    }),
+    key("max_detour", Number, |j, v| {
+        j.max_detour = Some(v.number()?);
+        Ok(())
+    }),
     key("node_crossings", Bool, |j, v| {
         j.road.node_crossings = v.flag()?;
         Ok(())

@@ -130,9 +130,21 @@ pub struct PlanningArgs {
     #[arg(long)]
     pub redundancy: bool,
 
-    /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
+    /// Repair-metres a crew completes per day: spreads the repairs over days (a repair longer
+    /// than a day spans days).
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
+
+    /// Crews working side by side, default 1 (with --crew-capacity): each starts a repair only
+    /// once its hub-side end can be reached over intact or finished roads.
+    #[arg(long, value_name = "N")]
+    pub crews: Option<u32>,
+
+    /// Flags sites whose corridor from the hub is longer than R times the same trip on the
+    /// undamaged network, and offers the cheapest further repairs bringing each under R (optional
+    /// work orders, purpose `detour`). With --sites.
+    #[arg(long, value_name = "R")]
+    pub max_detour: Option<f64>,
 
     /// Algorithm for the whole-network plan, default kruskal; both give a forest of the same
     /// minimum total. Not with a sites plan (a Steiner tree).
@@ -170,6 +182,8 @@ impl PlanningArgs {
         o.damage_points = self.damage_points.clone().map(Source::File);
         o.report_distance_m = self.report_distance;
         o.crew_capacity = self.crew_capacity;
+        o.crews = self.crews;
+        o.max_detour = self.max_detour;
         o.budget = self.budget;
         o.redundancy = self.redundancy;
         o.mst = self.mst.map(|m| match m {

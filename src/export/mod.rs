@@ -5,6 +5,7 @@
 
 pub mod backup;
 pub mod band;
+pub mod corridors;
 pub mod fragility;
 pub mod geojson;
 pub mod guard;
@@ -14,6 +15,7 @@ pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
+pub mod report_crews;
 pub mod sites;
 pub mod staging;
 pub mod structures;
@@ -103,6 +105,8 @@ pub struct Outputs<'a> {
     pub fragility: Option<&'a fragility::FragilityLayer>,
     /// Backup links (with --redundancy).
     pub backup: Option<&'a backup::BackupLayer>,
+    /// Corridors from the hub to the joined sites (plans with a hub).
+    pub corridors: Option<&'a corridors::CorridorLayer>,
     /// The district's name, for the picture.
     pub title: &'a str,
     /// Sites to draw.
@@ -113,7 +117,12 @@ pub struct Outputs<'a> {
 
 /// The files of one output set in the order of [`staging::OUTPUT_NAMES`] (`summary.json` last):
 /// the layers every run writes plus the sites, fragility and backup layers when there are any.
-pub fn output_names(sites: bool, fragility: bool, backup: bool) -> Vec<&'static str> {
+pub fn output_names(
+    sites: bool,
+    fragility: bool,
+    backup: bool,
+    corridors: bool,
+) -> Vec<&'static str> {
     staging::OUTPUT_NAMES
         .iter()
         .copied()
@@ -121,6 +130,7 @@ pub fn output_names(sites: bool, fragility: bool, backup: bool) -> Vec<&'static 
             "sites.geojson" => sites,
             "fragility.geojson" => fragility,
             "backup.geojson" => backup,
+            "corridors.geojson" => corridors,
             _ => true,
         })
         .collect()
@@ -139,15 +149,13 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             o.net,
             o.steps,
             o.backup.map_or(&[][..], |b| &b.rows[..]),
+            o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
             o.site_ids,
             &ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, (u32, u32)> = o
-        .steps
-        .iter()
-        .map(|s| (s.edge, (s.order, s.phase)))
-        .collect();
+    let order_of: std::collections::HashMap<u32, &crate::solve::order::Step> =
+        o.steps.iter().map(|s| (s.edge, s)).collect();
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
         let (svg, png) = rayon::join(
@@ -225,6 +233,11 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             backup::write_backup(w, o.net, b, &ids, attribution)
         })?;
     }
+    if let Some(c) = o.corridors {
+        st.write("corridors.geojson", |w| {
+            corridors::write_corridors(w, o.net, c, attribution)
+        })?;
+    }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| {
             sites::write_sites(w, rows, attribution)
@@ -255,7 +268,7 @@ fn write_edges<W: std::io::Write>(
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
-    order_of: Option<&std::collections::HashMap<u32, (u32, u32)>>,
+    order_of: Option<&std::collections::HashMap<u32, &crate::solve::order::Step>>,
     keys: &work_order_id::WorkOrderIds,
     attribution: Option<&str>,
 ) -> std::io::Result<()> {
@@ -287,6 +300,8 @@ fn write_edges<W: std::io::Write>(
         };
         let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
         let key = keys.key(net, e);
+        let step = order_of.and_then(|m| m.get(&e));
+        let int = |x: Option<u32>| x.map_or(Prop::Null, |v| Prop::Int(v as i64));
         let props = [
             ("edge", Prop::Int(e as i64)),
             ("from", Prop::Int(edge.from as i64)),
@@ -307,18 +322,10 @@ fn write_edges<W: std::io::Write>(
             ),
             ("work_order", Prop::Str(&key)),
             ("repair", Prop::Bool(edge.cost > 0)),
-            (
-                "order",
-                order_of
-                    .and_then(|m| m.get(&e))
-                    .map_or(Prop::Null, |o| Prop::Int(o.0 as i64)),
-            ),
-            (
-                "phase",
-                order_of
-                    .and_then(|m| m.get(&e))
-                    .map_or(Prop::Null, |o| Prop::Int(o.1 as i64)),
-            ),
+            ("order", int(step.map(|s| s.order))),
+            ("crew", int(step.and_then(|s| s.crew))),
+            ("first_day", int(step.and_then(|s| s.first_day))),
+            ("last_day", int(step.and_then(|s| s.last_day))),
         ];
         let props = if only.is_some() {
             &props[..]

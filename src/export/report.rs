@@ -141,28 +141,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         )?;
     }
     writeln!(w, "</table>")?;
-    writeln!(
-        w,
-        "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined to the hub</th><th>Share of sites joined</th></tr>"
-    )?;
-    for p in &s.phases {
-        writeln!(
-            w,
-            "<tr><td>{}{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            p.phase,
-            if p.over_capacity {
-                " (over capacity)"
-            } else {
-                ""
-            },
-            p.repairs,
-            fixed(p.cost, 3),
-            esc(&p.sites_connected.join(", ")),
-            p.cumulative_share_of_sites
-                .map_or("—".to_string(), |x| format!("{} %", fixed(100.0 * x, 0)))
-        )?;
-    }
-    writeln!(w, "</table>")?;
+    super::report_crews::write(&mut w, s)?;
     if let Some(st) = &s.sites {
         writeln!(w, "<h2>Sites not joined to the hub</h2>")?;
         if st.unconnected.is_empty() {

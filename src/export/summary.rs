@@ -159,21 +159,30 @@ pub struct SitesFigures {
     pub note: Option<String>,
 }
 
-/// One day-phase of the repair order.
+/// One day of work (with `--crew-capacity`).
 #[derive(Debug, Clone, Serialize)]
-pub struct PhaseFigures {
-    /// Phase number (1-based).
-    pub phase: u32,
-    /// Repairs in the phase.
-    pub repairs: usize,
-    /// Their cost, repair-metres.
-    pub cost: f64,
-    /// True when the phase is a single repair larger than the crew capacity.
-    pub over_capacity: bool,
-    /// Sites joined to the hub by this phase's repairs.
-    pub sites_connected: Vec<String>,
-    /// Share of all sites joined to the hub by the end of the phase (null without sites).
+pub struct DayFigures {
+    /// Day number (1-based).
+    pub day: u32,
+    /// What each crew does that day (crews with no work that day left out).
+    pub crews: Vec<CrewDay>,
+    /// Sites joined to the hub by the repairs finished that day.
+    pub sites_joined: Vec<String>,
+    /// Share of all sites joined to the hub by the end of the day (null without sites).
     pub cumulative_share_of_sites: Option<f64>,
+}
+
+/// One crew's day.
+#[derive(Debug, Clone, Serialize)]
+pub struct CrewDay {
+    /// The crew, 1-based.
+    pub crew: u32,
+    /// Work orders it finishes that day, in order.
+    pub finishes: Vec<String>,
+    /// The work order it is still on at the end of the day, if any.
+    pub continues: Option<String>,
+    /// Repair-metres it works that day.
+    pub repair_metres: f64,
 }
 
 /// The whole `summary.json`.
@@ -205,8 +214,10 @@ pub struct Summary {
     pub fragility: Option<super::fragility::FragilityFigures>,
     /// Backup links (with --redundancy; null otherwise): cost, repairs and the fragility after.
     pub backup: Option<super::backup::BackupFigures>,
-    /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
-    pub phases: Vec<PhaseFigures>,
+    /// The days of work by crew (with `--crew-capacity`; null without it).
+    pub days: Option<Vec<DayFigures>>,
+    /// Corridors from the hub to the joined sites (plans with a hub on the roads; else null).
+    pub corridors: Option<super::corridors::CorridorFigures>,
     /// Figures about the critical sites (null for a whole-network plan without sites).
     pub sites: Option<SitesFigures>,
     /// Total repair cost of the plan, repair-metres.

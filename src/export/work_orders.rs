@@ -8,9 +8,9 @@ use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::order::Step;
 use std::io::Write;
 
-/// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends,
-/// the sites each repair completes, its purpose (`plan`, or `backup` for backup links, which
-/// have no phase), then the columns crews hand back: the work-order key (stable across re-plans,
+/// Writes the work orders: order, crew, first and last day (empty without `--crew-capacity`), edge, source feature, road, length, damage, cost, ends,
+/// the sites each repair completes, its purpose (`plan`; `backup` for backup links and `detour` for
+/// the optional repairs that shorten corridors, neither of which has a crew or days), then the columns crews hand back: the work-order key (stable across re-plans,
 /// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
 /// and `verified_on`, and the fixed caution sentence.
 pub fn write_work_orders<W: Write>(
@@ -18,6 +18,7 @@ pub fn write_work_orders<W: Write>(
     net: &Network,
     steps: &[Step],
     backup: &[BackupRow],
+    detour: &[u32],
     site_ids: &[String],
     ids: &super::work_order_id::WorkOrderIds,
 ) -> std::io::Result<()> {
@@ -25,7 +26,9 @@ pub fn write_work_orders<W: Write>(
     let io = |e: csv::Error| std::io::Error::other(e.to_string());
     c.write_record([
         "order",
-        "phase",
+        "crew",
+        "first_day",
+        "last_day",
         "edge",
         "source_index",
         "source_id",
@@ -39,7 +42,6 @@ pub fn write_work_orders<W: Write>(
         "to_lon",
         "to_lat",
         "completes_sites",
-        "over_capacity",
         "purpose",
         "work_order",
         "structure",
@@ -57,26 +59,28 @@ pub fn write_work_orders<W: Write>(
                 .iter()
                 .filter_map(|&i| site_ids.get(i).map(String::as_str))
                 .collect();
+            let text = |x: Option<u32>| x.map_or_else(String::new, |d| d.to_string());
             (
                 s.edge,
                 s.order,
-                s.phase.to_string(),
+                [text(s.crew), text(s.first_day), text(s.last_day)],
                 completes.join(";"),
-                s.over_capacity,
                 "plan",
             )
         })
-        .chain(backup.iter().map(|b| {
-            (
-                b.edge,
-                b.order,
-                String::new(),
-                String::new(),
-                false,
-                "backup",
-            )
-        }));
-    for (edge, order, phase, completes, over, purpose) in rows {
+        .chain(
+            backup
+                .iter()
+                .map(|b| (b.edge, b.order, Default::default(), String::new(), "backup")),
+        )
+        .chain({
+            let after = steps.len() + backup.len();
+            detour.iter().enumerate().map(move |(k, &e)| {
+                let order = (after + k + 1) as u32;
+                (e, order, Default::default(), String::new(), "detour")
+            })
+        });
+    for (edge, order, [crew, first_day, last_day], completes, purpose) in rows {
         let e = &net.edges[edge as usize];
         let meta = &net.features[e.feature as usize];
         let g = net.edge_geometry(edge as usize);
@@ -89,7 +93,9 @@ pub fn write_work_orders<W: Write>(
         };
         c.write_record([
             order.to_string(),
-            phase,
+            crew,
+            first_day,
+            last_day,
             edge.to_string(),
             meta.source_index.to_string(),
             csv_cell(&id).into_owned(),
@@ -105,7 +111,6 @@ pub fn write_work_orders<W: Write>(
             f7(b[0]),
             f7(b[1]),
             csv_cell(&completes).into_owned(),
-            over.to_string(),
             purpose.to_string(),
             csv_cell(&ids.key(net, edge)).into_owned(),
             csv_cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),

@@ -126,9 +126,11 @@ mod tests {
         Step {
             edge,
             order,
-            phase: 1,
+            crew: None,
+            first_day: None,
+            last_day: None,
+            span: None,
             completes: vec![99],
-            over_capacity: false,
         }
     }
 

@@ -6,6 +6,7 @@
 
 mod budget;
 pub mod check;
+mod corridors;
 pub mod fingerprint;
 mod hub;
 mod joined;
@@ -79,6 +80,11 @@ pub struct PlanJob {
     pub report_distance_m: f64,
     /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
     pub crew_capacity: Option<f64>,
+    /// Crews working side by side (1 without `--crews`).
+    pub crews: u32,
+    /// Corridors longer than this multiple of the undamaged trip are flagged and offered further
+    /// repairs.
+    pub max_detour: Option<f64>,
     /// The district's name (pictures and reports); default: the road file's name.
     pub name: Option<String>,
     /// Most repair-metres to spend: when the sites plan costs more, the sites giving the most

@@ -89,6 +89,10 @@ pub struct Options {
     pub redundancy: bool,
     /// `--crew-capacity`, repair-metres per day.
     pub crew_capacity: Option<f64>,
+    /// `--crews` (default 1; needs `--crew-capacity`).
+    pub crews: Option<u32>,
+    /// `--max-detour`: the longest corridor, as a multiple of the undamaged trip.
+    pub max_detour: Option<f64>,
     /// `--mst` (default Kruskal).
     pub mst: Option<MstAlgorithm>,
     /// `--sites`.
@@ -132,6 +136,8 @@ impl Options {
             budget: None,
             redundancy: false,
             crew_capacity: None,
+            crews: None,
+            max_detour: None,
             mst: None,
             sites: None,
             max_attach_m: None,

@@ -34,6 +34,8 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "zones_crs": job.zones_crs,
         "report_distance_m": when(job.reports.is_some(), job.report_distance_m.into()),
         "crew_capacity": job.crew_capacity,
+        "crews": when(job.crew_capacity.is_some(), job.crews.into()),
+        "max_detour": job.max_detour,
         "budget": job.budget,
         "redundancy": job.redundancy,
         "category_field": s.category_field,

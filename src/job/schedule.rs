@@ -1,16 +1,21 @@
-//! After the plan: the order of repairs and their day-phases.
+//! After the plan: the order of repairs, and with `--crew-capacity` which crew makes each repair
+//! on which days ([`crate::solve::crews`]).
 
 use super::PlanJob;
 use crate::ingest::IngestError;
 use crate::ingest::attach::Attachment;
 use crate::ingest::sites::SiteLayer;
-use crate::network::Cost;
 use crate::solve::Plan;
-use crate::solve::order::Target;
+use crate::solve::crews::{Sim, day_of, schedule_crews};
+use crate::solve::order::{Step, Target};
 use crate::solve::site_plan::SitePlan;
 
-/// Orders the plan's repairs (hub's group first) and groups them into day-phases; refuses a
-/// crew capacity that fits none of the plan's repairs.
+/// Work (relaxations) the neighbour swaps may spend: enough for thousands of repairs on a district,
+/// a bounded cost on the largest networks (where list scheduling alone is used).
+const SWAP_WORK: u64 = 200_000_000;
+
+/// Orders the plan's repairs (hub's group first) and, with a crew capacity, spreads them over the
+/// crews and days; the steps come out in the order the repairs are finished.
 #[allow(clippy::too_many_arguments)]
 pub(super) fn schedule(
     job: &PlanJob,
@@ -22,12 +27,13 @@ pub(super) fn schedule(
     attachments: &[Attachment],
     hub: Option<usize>,
     site_plan: Option<&SitePlan>,
-) -> Result<Vec<crate::solve::order::Step>, IngestError> {
-    use crate::solve::order::{assign_phases, order_whole_network};
-    let mut steps = match (sites, site_plan) {
+) -> Result<Vec<Step>, IngestError> {
+    use crate::solve::order::{order_for_targets, order_whole_network};
+    let (roots, targets, steps) = match (sites, site_plan) {
         (Some(sl), Some(sp)) => {
             let (roots, targets) = roots_and_targets(sl, attachments, hub, sp);
-            crate::solve::order::order_for_targets(graph, &plan.edges, &roots, &targets)
+            let steps = order_for_targets(graph, &plan.edges, &roots, &targets);
+            (roots, targets, steps)
         }
         _ => {
             let mut first = vec![u32::MAX; comps.count];
@@ -45,41 +51,41 @@ pub(super) fn schedule(
             }
             let roots: Vec<u32> = first.into_iter().filter(|&v| v != u32::MAX).collect();
             let lengths: Vec<f64> = net.edges.iter().map(|e| e.length_m).collect();
-            order_whole_network(graph, &plan.edges, &roots, &lengths)
+            let steps = order_whole_network(graph, &plan.edges, &roots, &lengths);
+            (roots, Vec::new(), steps)
         }
     };
-    let capacity = job.crew_capacity.map(|c| (c * 1000.0).round() as u64);
-    check_capacity(job.crew_capacity, capacity, graph, &steps)?;
-    assign_phases(graph, &mut steps, capacity);
-    Ok(steps)
-}
-
-/// A day's capacity must hold at least the smallest repair, or no day-phase could be formed:
-/// only here, with the plan's repairs known, can that be checked.
-fn check_capacity(
-    given: Option<f64>,
-    capacity: Option<Cost>,
-    graph: &crate::solve::graph::EdgeList,
-    steps: &[crate::solve::order::Step],
-) -> Result<(), IngestError> {
-    let (Some(c), Some(cap)) = (given, capacity) else {
-        return Ok(());
+    let Some(capacity) = job.crew_capacity.map(|c| (c * 1000.0).round() as u64) else {
+        return Ok(steps);
     };
-    let smallest = steps
-        .iter()
-        .map(|st| graph.cost[st.edge as usize])
-        .filter(|&x| x > 0)
-        .min();
-    match smallest.filter(|&m| m > cap) {
-        Some(m) => Err(IngestError::Setting {
-            name: "--crew-capacity",
+    let order: Vec<u32> = steps.iter().map(|s| s.edge).collect();
+    let mut sim = Sim::new(graph, &order, &roots, &targets, capacity, job.crews);
+    let mut slots = schedule_crews(&mut sim, &order, SWAP_WORK).slots;
+    if slots.len() != order.len() {
+        return Err(IngestError::Setting {
+            name: "--crews",
             message: format!(
-                "{c} repair-metres per day fits no repair of the plan (the smallest needs {} repair-metres)",
-                crate::network::cost_to_repair_metres(m)
+                "internal error (a bug): {} of {} repairs could be reached by a crew",
+                slots.len(),
+                order.len()
             ),
-        }),
-        None => Ok(()),
+        });
     }
+    // Finished order keeps every repair after those that opened the way to it.
+    slots.sort_by_key(|s| (s.finish, s.start, s.crew, s.edge));
+    Ok(slots
+        .iter()
+        .enumerate()
+        .map(|(k, s)| Step {
+            edge: s.edge,
+            order: k as u32 + 1,
+            crew: Some(s.crew),
+            first_day: Some((s.start / capacity) as u32 + 1),
+            last_day: Some(day_of(s.finish, capacity)),
+            span: Some((s.start, s.finish)),
+            completes: Vec::new(),
+        })
+        .collect())
 }
 
 /// The roots of a sites plan (the hub, then each other group's highest-priority site) and the

@@ -158,6 +158,8 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         reports: o.damage_points.clone(),
         report_distance_m: o.report_distance_m.unwrap_or(50.0),
         crew_capacity: o.crew_capacity,
+        crews: o.crews.unwrap_or(1),
+        max_detour: o.max_detour,
         name: o.name.clone(),
         budget: o.budget,
         redundancy: o.redundancy,
@@ -185,7 +187,7 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 15] = [
+    let rules: [(&'static str, bool, bool, &'static str); 17] = [
         (
             "--hub",
             o.hub.is_some(),
@@ -238,6 +240,18 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         ),
         ("--effort", o.effort.is_some(), sites_plan, SITES_PLAN),
         (
+            "--crews",
+            o.crews.is_some(),
+            o.crew_capacity.is_some(),
+            "crews share out the days of work: give --crew-capacity",
+        ),
+        (
+            "--max-detour",
+            o.max_detour.is_some(),
+            sites_plan,
+            "corridors run from the hub to the sites: give --sites (and not --whole-network)",
+        ),
+        (
             "--mst",
             o.mst.is_some(),
             !sites_plan,
@@ -276,6 +290,9 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         .collect()
 }
 
+/// Most crews: far more than any district fields, and each crew is simulated.
+const MAX_CREWS: u32 = 1000;
+
 /// Checks every number's range.
 fn ranges(job: &PlanJob) -> Result<(), IngestError> {
     if !(job.max_attach_m.is_finite()
@@ -305,6 +322,22 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             "--crew-capacity",
             format!(
                 "{c} repair-metres per day is not a positive number of at least 0.001 (costs are counted in thousandths)"
+            ),
+        ));
+    }
+    if !(1..=MAX_CREWS).contains(&job.crews) {
+        return Err(refuse(
+            "--crews",
+            format!("{} crews is outside 1 to {MAX_CREWS}", job.crews),
+        ));
+    }
+    if let Some(r) = job.max_detour
+        && !(r.is_finite() && r >= 1.0)
+    {
+        return Err(refuse(
+            "--max-detour",
+            format!(
+                "{r} is not a number ≥ 1 (a corridor is never shorter than the undamaged trip)"
             ),
         ));
     }

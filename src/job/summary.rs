@@ -99,7 +99,8 @@ pub fn build(
             bound_complete: plan.bound_complete,
         },
         damage_reports: None,
-        phases: Vec::new(),
+        days: None,
+        corridors: None,
         fragility: None,
         backup: None,
         sites: sites.map(|r| sites_figures(r, net, comps, plan)),
@@ -181,42 +182,63 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
     }
 }
 
-/// Per phase: repairs, cost, sites newly joined to the hub, cumulative share of sites joined.
-pub fn phases(
-    g: &crate::solve::graph::EdgeList,
+/// Per day (with `--crew-capacity`): what each crew finishes and works, and the sites joined to
+/// the hub that day; None without days.
+pub fn days(
+    net: &Network,
     steps: &[crate::solve::order::Step],
     sites: Option<&SitesResult>,
-) -> Vec<PhaseFigures> {
+    capacity: Option<f64>,
+) -> Option<Vec<DayFigures>> {
+    let cap = (capacity? * 1000.0).round() as u64;
+    let ids = crate::export::work_order_id::WorkOrderIds::new(net);
+    let last = steps.iter().filter_map(|s| s.last_day).max().unwrap_or(0);
     let total_sites = sites.map_or(0, |s| s.layer.sites.len());
-    let mut out: Vec<PhaseFigures> = Vec::new();
     // Sites joined before any repair: the hub, and sites it reaches over intact roads.
     let mut cumulative = sites.map_or(0, |r| r.reach.before.iter().filter(|&&b| b).count());
-    for s in steps {
-        if out.last().is_none_or(|p| p.phase != s.phase) {
-            out.push(PhaseFigures {
-                phase: s.phase,
-                repairs: 0,
-                cost: 0.0,
-                over_capacity: false,
-                sites_connected: Vec::new(),
-                cumulative_share_of_sites: None,
-            });
-        }
-        let p = out.last_mut().expect("a phase was just pushed");
-        p.repairs += 1;
-        p.cost += g.cost[s.edge as usize] as f64 / 1000.0;
-        p.over_capacity |= s.over_capacity;
-        if let Some(sr) = sites {
-            for &i in &s.completes {
-                p.sites_connected.push(sr.layer.sites[i].id.clone());
+    let crews = steps.iter().filter_map(|s| s.crew).max().unwrap_or(0);
+    let mut out = Vec::new();
+    for day in 1..=last {
+        let (from, to) = ((day as u64 - 1) * cap, day as u64 * cap);
+        let mut sites_joined = Vec::new();
+        let mut per_crew = Vec::new();
+        for crew in 1..=crews {
+            let mut cd = CrewDay {
+                crew,
+                finishes: Vec::new(),
+                continues: None,
+                repair_metres: 0.0,
+            };
+            for s in steps.iter().filter(|s| s.crew == Some(crew)) {
+                let Some((a, b)) = s.span else { continue };
+                let worked = b.min(to).saturating_sub(a.max(from));
+                if worked == 0 {
+                    continue;
+                }
+                cd.repair_metres += cost_to_repair_metres(worked);
+                match s.last_day == Some(day) {
+                    true => cd.finishes.push(ids.key(net, s.edge)),
+                    false => cd.continues = Some(ids.key(net, s.edge)),
+                }
             }
-            cumulative += s.completes.len();
-            p.cumulative_share_of_sites =
-                Some(round3(cumulative as f64 / total_sites.max(1) as f64));
+            if cd.repair_metres > 0.0 {
+                cd.repair_metres = round3(cd.repair_metres);
+                per_crew.push(cd);
+            }
         }
+        for s in steps.iter().filter(|s| s.last_day == Some(day)) {
+            if let Some(sr) = sites {
+                sites_joined.extend(s.completes.iter().map(|&i| sr.layer.sites[i].id.clone()));
+                cumulative += s.completes.len();
+            }
+        }
+        out.push(DayFigures {
+            day,
+            crews: per_crew,
+            sites_joined,
+            cumulative_share_of_sites: sites
+                .map(|_| round3(cumulative as f64 / total_sites.max(1) as f64)),
+        });
     }
-    for p in &mut out {
-        p.cost = round3(p.cost);
-    }
-    out
+    Some(out)
 }

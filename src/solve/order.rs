@@ -1,5 +1,6 @@
 //! Order of repairs: crews work over days, so the plan's repairs are ordered for the sites (or the
-//! road length) they bring back to the hub soonest, and grouped into day-phases by crew capacity.
+//! road length) they bring back to the hub soonest; [`super::crews`] spreads them over crews and
+//! days.
 //!
 //! An edge helps only once its path back to the root (the hub) is complete, so repairs are always
 //! taken as whole paths from the connected part outward. Sites plans: repeatedly repair the path to
@@ -18,12 +19,18 @@ pub struct Step {
     pub edge: u32,
     /// 1-based position in the order.
     pub order: u32,
-    /// 1-based day-phase.
-    pub phase: u32,
+    /// The crew making it (1-based); None without `--crew-capacity` (no days).
+    pub crew: Option<u32>,
+    /// The day (1-based) the crew starts it; None without days.
+    pub first_day: Option<u32>,
+    /// The day the crew finishes it (later than `first_day` when it is longer than what is left
+    /// of the day); None without days.
+    pub last_day: Option<u32>,
+    /// Work time (milli-repair-metres of its crew's days) the repair starts and ends; None
+    /// without days.
+    pub span: Option<(u64, u64)>,
     /// Targets (sites) joined to their root by this repair.
     pub completes: Vec<usize>,
-    /// True when this single repair exceeds the crew capacity (it stands alone in its phase).
-    pub over_capacity: bool,
 }
 
 /// A thing to reconnect: its junction, its weight (priority), and the caller's index.
@@ -172,9 +179,11 @@ pub fn order_within(
             steps.push(Step {
                 edge: e,
                 order: steps.len() as u32 + 1,
-                phase: 1,
+                crew: None,
+                first_day: None,
+                last_day: None,
+                span: None,
                 completes,
-                over_capacity: false,
             });
         }
         // A target whose path needs nothing more but was not marked (cannot happen) ends the loop.
@@ -237,9 +246,11 @@ pub fn order_whole_network(
             steps.push(Step {
                 edge: e,
                 order: steps.len() as u32 + 1,
-                phase: 1,
+                crew: None,
+                first_day: None,
+                last_day: None,
+                span: None,
                 completes: Vec::new(),
-                over_capacity: false,
             });
         }
         if let Some(ch) = children.get(&c) {
@@ -249,32 +260,6 @@ pub fn order_whole_network(
         }
     }
     steps
-}
-
-/// Groups ordered steps into day-phases of at most `capacity` (milli-repair-metres); a single repair
-/// over capacity stands alone in its phase and is flagged. Without a capacity, one phase.
-pub fn assign_phases(g: &EdgeList, steps: &mut [Step], capacity: Option<u64>) {
-    let Some(cap) = capacity.filter(|&c| c > 0) else {
-        steps.iter_mut().for_each(|s| s.phase = 1);
-        return;
-    };
-    let mut phase = 1;
-    let mut used = 0u64;
-    for s in steps.iter_mut() {
-        let c = g.cost[s.edge as usize];
-        if used > 0 && used + c > cap {
-            phase += 1;
-            used = 0;
-        }
-        s.phase = phase;
-        s.over_capacity = c > cap;
-        used += c;
-        if s.over_capacity {
-            phase += 1;
-            used = 0;
-        }
-    }
-    // A phase opened after an over-capacity repair but never used is not counted.
 }
 
 #[cfg(test)]
@@ -306,7 +291,7 @@ mod tests {
                 id: 1,
             },
         ];
-        let mut steps = order_for_targets(&g, &plan, &[0], &targets);
+        let steps = order_for_targets(&g, &plan, &[0], &targets);
         assert_eq!(steps.iter().map(|s| s.edge).collect::<Vec<_>>(), vec![0, 1]);
         assert_eq!(steps[0].completes, vec![0]);
         assert_eq!(
@@ -314,10 +299,6 @@ mod tests {
             vec![1],
             "the intact edge beyond completes site B"
         );
-        assign_phases(&g, &mut steps, Some(50));
-        assert_eq!(steps[0].phase, 1);
-        assert_eq!(steps[1].phase, 2);
-        assert!(steps[1].over_capacity);
     }
 
     #[test]

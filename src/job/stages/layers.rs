@@ -42,7 +42,8 @@ pub(in crate::job) fn write(
         &p.plan,
         sites,
     );
-    summary.phases = summary::phases(&p.graph, &p.steps, sites);
+    summary.days = summary::days(net, &p.steps, sites, job.crew_capacity);
+    summary.corridors = p.corridors.as_ref().map(|c| c.figures.clone());
     summary.fragility = p.fragile.as_ref().map(|f| f.figures.clone());
     summary.backup = p.backup.as_ref().map(|b| b.figures.clone());
     summary.counts.damage_zones = p.built.zone_figures.0;
@@ -60,7 +61,12 @@ pub(in crate::job) fn write(
         job.road_settings.structure_field.as_deref(),
     ));
     let rows = sites.map(rows::site_rows);
-    summary.outputs = export::output_names(rows.is_some(), p.fragile.is_some(), p.backup.is_some());
+    summary.outputs = export::output_names(
+        rows.is_some(),
+        p.fragile.is_some(),
+        p.backup.is_some(),
+        p.corridors.is_some(),
+    );
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
             .display_path()
@@ -86,6 +92,7 @@ pub(in crate::job) fn write(
                 steps: &p.steps,
                 fragility: p.fragile.as_ref(),
                 backup: p.backup.as_ref(),
+                corridors: p.corridors.as_ref(),
                 title: &title,
                 marks: &marks,
                 site_ids: &site_ids,

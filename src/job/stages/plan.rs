@@ -12,7 +12,6 @@ use crate::job::{JobError, PlanJob, SitesResult, budget, hub, joined, status};
 use crate::network::cost_to_repair_metres;
 use crate::progress::Progress;
 use crate::solve::components::{Components, components};
-use crate::solve::graph::EdgeList;
 use crate::solve::order::Step;
 use crate::solve::site_plan::{SitePlan, plan_sites};
 use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
@@ -21,8 +20,6 @@ use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
 pub(in crate::job) struct Planned {
     /// The network stage's results.
     pub built: Built,
-    /// The network as compact weighted edges.
-    pub graph: EdgeList,
     /// Its connected components (usable edges).
     pub comps: Components,
     /// The edges to repair.
@@ -35,6 +32,8 @@ pub(in crate::job) struct Planned {
     pub fragile: Option<FragilityLayer>,
     /// Backup links (`--redundancy`).
     pub backup: Option<BackupLayer>,
+    /// Corridors from the hub to the joined sites.
+    pub corridors: Option<crate::export::corridors::CorridorLayer>,
 }
 
 /// Solves the plan on the built network and decides what it joins.
@@ -137,15 +136,21 @@ pub(in crate::job) fn plan(
         }
         _ => None,
     };
+    let corridors = joined_to_hub.and_then(|sr| {
+        let _s = progress.stage("finding corridors");
+        let mut done = plan.edges.clone();
+        done.extend(backup.iter().flat_map(|b| b.rows.iter().map(|r| r.edge)));
+        crate::job::corridors::corridors(&built.net, &graph, &done, sr, job.max_detour)
+    });
     Ok(Planned {
         built,
-        graph,
         comps,
         plan,
         steps,
         sites,
         fragile,
         backup,
+        corridors,
     })
 }
 
