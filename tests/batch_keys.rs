@@ -145,9 +145,12 @@ fn every_key_applies_alike_wherever_it_is_given() {
             .filter(|(k, _)| *k != skip)
             .map(|(k, v)| format!("{k} = {v}\n"))
             .collect();
-        // `mst` is for the whole-network plan only.
+        // `mst` is for the whole-network plan only; `crews` share out a crew capacity.
         if skip == "mst" {
             l.push_str("whole_network = true\n");
+        }
+        if skip == "crews" {
+            l.push_str("crew_capacity = 500\n");
         }
         l
     };
@@ -170,12 +173,14 @@ fn every_key_applies_alike_wherever_it_is_given() {
         );
         assert_ne!(in_district, absent, "{key}: the key changes nothing");
         let mut header = vec!["name", "roads", "sites", "damage_zones", "damage_points"];
-        if key == "mst" {
-            header.push("whole_network");
-        }
         let mut row: Vec<String> = base.iter().map(|(_, v)| cell(v)).collect();
         if key == "mst" {
+            header.push("whole_network");
             row.push("true".into());
+        }
+        if key == "crews" {
+            header.push("crew_capacity");
+            row.push("500".into());
         }
         match header.iter().position(|h| *h == key) {
             Some(i) => row[i] = cell(v),

@@ -51,12 +51,37 @@ case!(crew_capacity_below_the_counting_unit, |d| {
     );
 });
 
-case!(crew_capacity_that_fits_no_repair, |d| {
-    // The only road, about 111 m at factor 1.0, needs about 111 repair-metres; a day holds 1.
+case!(crews_without_crew_capacity, |d| {
     plan_fails(
         &roads_ok(d),
-        &["--crew-capacity", "1"],
-        &["--crew-capacity", "fits no repair", "111."],
+        &["--crews", "2"],
+        &["--crews", "--crew-capacity"],
+    );
+});
+
+case!(no_crews, |d| {
+    plan_fails(
+        &roads_ok(d),
+        &["--crew-capacity", "100", "--crews", "0"],
+        &["--crews", "outside 1 to 1000"],
+    );
+});
+
+case!(max_detour_without_sites, |d| {
+    plan_fails(
+        &roads_ok(d),
+        &["--max-detour", "1.5"],
+        &["--max-detour", "--sites"],
+    );
+});
+
+case!(max_detour_below_one, |d| {
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+    plan_fails(
+        &roads,
+        &["--sites", &s(&sites), "--max-detour", "0.5"],
+        &["--max-detour", "≥ 1"],
     );
 });
 

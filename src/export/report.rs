@@ -1,5 +1,5 @@
 //! `report.html`: one self-contained page (no scripts, no network) with the picture, the figures,
-//! the phases, the unconnected sites and why, the QA counts, the inputs and settings, and the
+//! the days and crews, the corridors, the unconnected sites and why, the QA counts, the inputs and settings, and the
 //! cautions, for coordinators without GIS software.
 
 use super::summary::Summary;

@@ -78,7 +78,7 @@ pub struct PlanJob {
     pub reports: Option<Source>,
     /// Largest distance from a report to its road, metres.
     pub report_distance_m: f64,
-    /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
+    /// Repair-metres a crew completes per day; spreads the repairs over crews and days.
     pub crew_capacity: Option<f64>,
     /// Crews working side by side (1 without `--crews`).
     pub crews: u32,

@@ -121,13 +121,13 @@ pub fn check_joined(out: &Path) -> (usize, usize) {
     assert_eq!(unconnected.len() + joined.len(), sites.features.len());
     assert!(unconnected.is_disjoint(&joined));
     check_orders(out, &w, hub, &joined, &joined_before);
-    // Phases end at the share of sites joined.
-    if let Some(last) = s["phases"].as_array().unwrap().last() {
+    // Days end at the share of sites joined.
+    if let Some(last) = s["days"].as_array().and_then(|d| d.last()) {
         let share = joined.len() as f64 / sites.features.len() as f64;
         let got = last["cumulative_share_of_sites"].as_f64().unwrap();
         assert!(
             (got - share).abs() < 1e-3,
-            "phases end at {got}, {share} joined"
+            "days end at {got}, {share} joined"
         );
     }
     // The single-failure report speaks of joined sites only, and of all of them.
