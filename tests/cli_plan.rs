@@ -15,6 +15,7 @@ fn demo_joins_the_sites_and_reports_them() {
         listing(&out),
         [
             ".reknit-outputs",
+            "corridors.geojson",
             "fragility.geojson",
             "network.geojson",
             "plan.geojson",
@@ -209,7 +210,7 @@ fn existing_outputs_need_force() {
     let out_s = out.to_str().unwrap();
     assert!(run(&["demo", "--out", out_s, "-q"]).status.success());
     let before = fs::read(out.join("summary.json")).unwrap();
-    assert_eq!(listing(&out).len(), 11);
+    assert_eq!(listing(&out).len(), 12);
     let o = run(&["demo", "--out", out_s, "-q", "--snap", "1"]);
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("--force"), "{}", stderr(&o));

@@ -262,7 +262,8 @@ fn report_is_self_contained_and_carries_the_figures() {
     }
     for needle in [
         "data:image/png;base64,iVBORw0KGgo",
-        "Phases",
+        "Days and crews",
+        "Corridors",
         "Total repair cost",
         "Geometry checks",
         "SHA-256",
