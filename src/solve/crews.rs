@@ -73,10 +73,9 @@ impl<'a> Sim<'a> {
         capacity: u64,
         crews: u32,
     ) -> Sim<'a> {
-        let mut keep = vec![false; graph.len()];
-        for e in 0..graph.len() {
-            keep[e] = graph.usable(e) && graph.cost[e] == 0;
-        }
+        let mut keep: Vec<bool> = (0..graph.len())
+            .map(|e| graph.usable(e) && graph.cost[e] == 0)
+            .collect();
         for &r in repairs {
             keep[r as usize] = true;
         }
@@ -150,19 +149,27 @@ impl<'a> Sim<'a> {
         }
         self.spread(&mut reach, &mut heap);
         let mut free = vec![0u64; self.crews as usize];
-        let mut left: Vec<u32> = list.to_vec();
+        // Repairs taken so far, and the first list position not taken (lists from the one-crew
+        // order are taken nearly in order, so the scan stays short).
+        let mut taken = vec![false; list.len()];
+        let mut first = 0;
         let mut slots = Vec::with_capacity(list.len());
         let mut finishes = 0u64;
-        while !left.is_empty() {
+        loop {
+            while first < list.len() && taken[first] {
+                first += 1;
+            }
             let release = |e: u32| {
                 let [a, b] = self.graph.ends[e as usize];
                 reach[a as usize].min(reach[b as usize])
             };
             // A list whose repair cannot be reached yet takes the first that can.
-            let Some(k) = left.iter().position(|&e| release(e) != NEVER) else {
+            let Some(k) = (first..list.len()).find(|&k| !taken[k] && release(list[k]) != NEVER)
+            else {
                 break;
             };
-            let e = left.remove(k);
+            taken[k] = true;
+            let e = list[k];
             let r = release(e);
             let c = (0..free.len())
                 .filter(|&c| free[c] <= r)
