@@ -115,8 +115,12 @@ pub const KEYS: &[Key] = &[
         j.damage_points = v.opt_path()?.map(Source::File);
         Ok(())
     }),
-    key("report_distance", Number, |j, v| {
-        j.report_distance_m = Some(v.number()?);
+    key("damage_points_field", Text, |j, v| {
+        j.damage_points_field = Some(v.text()?);
+        Ok(())
+    }),
+    key("point_match_distance", Number, |j, v| {
+        j.point_match_distance_m = Some(v.number()?);
         Ok(())
     }),
     key("budget", Number, |j, v| {

@@ -99,8 +99,8 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "FILE")]
     pub damage_zones: Option<std::path::PathBuf>,
 
-    /// Zone and report property holding the damage factor (or "closed"), default damage; a zone
-    /// without one counts as 1.0. Only with --damage-zones or --damage-points.
+    /// Damage zone property holding the damage factor (or "closed"), default damage; a zone
+    /// without one counts as 1.0. Only with --damage-zones.
     #[arg(long, value_name = "FIELD")]
     pub zone_damage_field: Option<String>,
 
@@ -109,15 +109,21 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub zones_crs: Option<String>,
 
-    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in --zone-damage-field,
-    /// each applied to the nearest road within --report-distance (the worst report wins).
+    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in
+    /// --damage-points-field, each applied to the nearest road within --point-match-distance (the
+    /// worst report wins).
     #[arg(long, value_name = "FILE")]
     pub damage_points: Option<std::path::PathBuf>,
 
-    /// Largest distance in metres from a damage report to its road, default 50; farther reports
-    /// are listed. Only with --damage-points.
+    /// Field report property holding the damage factor (or "closed"), default damage; a report
+    /// without one counts as 1.0. Only with --damage-points.
+    #[arg(long, value_name = "FIELD")]
+    pub damage_points_field: Option<String>,
+
+    /// Largest distance in metres from a field report to the road it is matched to, default 50;
+    /// farther reports are listed. Only with --damage-points.
     #[arg(long, value_name = "METRES")]
-    pub report_distance: Option<f64>,
+    pub point_match_distance: Option<f64>,
 
     /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
     /// giving the most priority per repair-metre are joined to the hub first, within the budget;
@@ -168,7 +174,8 @@ impl PlanningArgs {
         o.zone_damage_field = self.zone_damage_field.clone();
         o.zones_crs = self.zones_crs.clone();
         o.damage_points = self.damage_points.clone().map(Source::File);
-        o.report_distance_m = self.report_distance;
+        o.damage_points_field = self.damage_points_field.clone();
+        o.point_match_distance_m = self.point_match_distance;
         o.crew_capacity = self.crew_capacity;
         o.budget = self.budget;
         o.redundancy = self.redundancy;

@@ -5,7 +5,6 @@
 
 pub mod backup;
 pub mod band;
-pub mod fragility;
 pub mod geojson;
 pub mod guard;
 pub mod legend;
@@ -14,6 +13,7 @@ pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
+pub mod single_failures;
 pub mod sites;
 pub mod staging;
 pub mod structures;
@@ -100,7 +100,7 @@ pub struct Outputs<'a> {
     /// Site ids by site index (empty without sites).
     pub site_ids: &'a [String],
     /// Single points of failure (plans with sites).
-    pub fragility: Option<&'a fragility::FragilityLayer>,
+    pub single_failures: Option<&'a single_failures::SingleFailureLayer>,
     /// Backup links (with --redundancy).
     pub backup: Option<&'a backup::BackupLayer>,
     /// The district's name, for the picture.
@@ -112,14 +112,14 @@ pub struct Outputs<'a> {
 }
 
 /// The files of one output set in the order of [`staging::OUTPUT_NAMES`] (`summary.json` last):
-/// the layers every run writes plus the sites, fragility and backup layers when there are any.
-pub fn output_names(sites: bool, fragility: bool, backup: bool) -> Vec<&'static str> {
+/// the layers every run writes plus the sites, single-failure and backup layers when there are any.
+pub fn output_names(sites: bool, single_failures: bool, backup: bool) -> Vec<&'static str> {
     staging::OUTPUT_NAMES
         .iter()
         .copied()
         .filter(|n| match *n {
             "sites.geojson" => sites,
-            "fragility.geojson" => fragility,
+            "single-failures.geojson" => single_failures,
             "backup.geojson" => backup,
             _ => true,
         })
@@ -215,9 +215,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     st.write("report.html", |w| {
         report::write_report(w, o.title, &png, o.summary)
     })?;
-    if let Some(f) = o.fragility {
-        st.write("fragility.geojson", |w| {
-            fragility::write_fragility(w, o.net, f, attribution)
+    if let Some(f) = o.single_failures {
+        st.write("single-failures.geojson", |w| {
+            single_failures::write_single_failures(w, o.net, f, &ids, attribution)
         })?;
     }
     if let Some(b) = o.backup {

@@ -13,7 +13,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "sites.geojson",
     "qa.geojson",
     "work-orders.csv",
-    "fragility.geojson",
+    "single-failures.geojson",
     "backup.geojson",
     "plan.svg",
     "plan.png",

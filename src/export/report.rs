@@ -185,7 +185,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             writeln!(w, "</table>")?;
         }
     }
-    if let Some(f) = &s.fragility {
+    if let Some(f) = &s.single_failures {
         writeln!(w, "<h2>Single road failures</h2>")?;
         if f.sites_checked == 0 {
             writeln!(
@@ -195,7 +195,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             )?;
         }
         writeln!(w, "<table>")?;
-        let after = s.backup.as_ref().and_then(|b| b.fragility_after.as_ref());
+        let after = s.backup.as_ref().and_then(|b| b.single_failures_after.as_ref());
         let row = |label: &str, before: usize, after: Option<usize>| {
             format!(
                 "<tr><th>{}</th><td>{before}</td>{}</tr>",
@@ -217,19 +217,23 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             ),
             (
                 "Roads whose loss cuts a site off",
-                f.critical_edges,
-                after.map(|a| a.critical_edges),
+                f.roads_cutting_off_sites,
+                after.map(|a| a.roads_cutting_off_sites),
             ),
             (
                 "Sites a single road failure cuts off",
-                f.sites_with_single_points_of_failure,
-                after.map(|a| a.sites_with_single_points_of_failure),
+                f.sites_with_a_single_failure,
+                after.map(|a| a.sites_with_a_single_failure),
             ),
-            ("Bridges (any)", f.bridges, after.map(|a| a.bridges)),
+            (
+                "Bridges (any)",
+                f.roads_with_no_way_round,
+                after.map(|a| a.roads_with_no_way_round),
+            ),
             (
                 "Cut junctions",
-                f.cut_vertices,
-                after.map(|a| a.cut_vertices),
+                f.junctions_with_no_way_round,
+                after.map(|a| a.junctions_with_no_way_round),
             ),
         ] {
             writeln!(w, "{}", row(label, b, a))?;

@@ -201,9 +201,11 @@ pub struct Summary {
     pub plan: PlanFigures,
     /// Field damage reports: read, applied, and the ones with no road near enough.
     pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
-    /// Single points of failure after the plan (plans with sites; null otherwise).
-    pub fragility: Option<super::fragility::FragilityFigures>,
-    /// Backup links (with --redundancy; null otherwise): cost, repairs and the fragility after.
+    /// Roads whose single failure would cut sites off the hub after the plan (plans with sites;
+    /// null otherwise).
+    pub single_failures: Option<super::single_failures::SingleFailureFigures>,
+    /// Backup links (with --redundancy; null otherwise): cost, repairs and the single failures
+    /// left after.
     pub backup: Option<super::backup::BackupFigures>,
     /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
     pub phases: Vec<PhaseFigures>,

@@ -75,8 +75,10 @@ pub struct PlanJob {
     pub zones_crs: Option<String>,
     /// Field damage reports (points), each applied to the nearest road.
     pub reports: Option<Source>,
-    /// Largest distance from a report to its road, metres.
-    pub report_distance_m: f64,
+    /// How a field report's damage is read (`--damage-points-field`).
+    pub report_damage: crate::ingest::damage::DamageRule,
+    /// Largest distance from a field report to the road it is matched to, metres.
+    pub point_match_distance_m: f64,
     /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
     pub crew_capacity: Option<f64>,
     /// The district's name (pictures and reports); default: the road file's name.

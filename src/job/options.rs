@@ -59,7 +59,7 @@ impl Default for RoadOptions {
 }
 
 /// Every option of `reknit plan` (and of a manifest district). Options that only mean something
-/// with another input (`--max-attach` with `--sites`, `--report-distance` with `--damage-points`)
+/// with another input (`--max-attach` with `--sites`, `--point-match-distance` with `--damage-points`)
 /// are `None` unless given, so that giving one without its input can be refused.
 #[derive(Debug, Clone)]
 pub struct Options {
@@ -77,12 +77,14 @@ pub struct Options {
     pub damage_zones: Option<Source>,
     /// `--zone-damage-field` (default `damage`).
     pub zone_damage_field: Option<String>,
+    /// `--damage-points-field` (default `damage`).
+    pub damage_points_field: Option<String>,
     /// `--zones-crs`.
     pub zones_crs: Option<String>,
     /// `--damage-points`.
     pub damage_points: Option<Source>,
-    /// `--report-distance`, metres (default 50).
-    pub report_distance_m: Option<f64>,
+    /// `--point-match-distance`, metres (default 50).
+    pub point_match_distance_m: Option<f64>,
     /// `--budget`, repair-metres.
     pub budget: Option<f64>,
     /// `--redundancy`.
@@ -126,9 +128,10 @@ impl Options {
             road: RoadOptions::default(),
             damage_zones: None,
             zone_damage_field: None,
+            damage_points_field: None,
             zones_crs: None,
             damage_points: None,
-            report_distance_m: None,
+            point_match_distance_m: None,
             budget: None,
             redundancy: false,
             crew_capacity: None,

@@ -145,7 +145,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         mst: o.mst.unwrap_or_default(),
         effort: o.effort.unwrap_or(crate::solve::steiner::Effort::Normal),
         zones: o.damage_zones.clone(),
-        // Zones and reports read "closed" as the roads do; a zone without a value counts as 1.0.
+        // Zones and reports read "closed" as the roads do; one without a value counts as 1.0.
         zone_damage: DamageRule {
             field: o
                 .zone_damage_field
@@ -154,9 +154,17 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             default: 1.0,
             closed_value: o.road.closed_value.clone(),
         },
+        report_damage: DamageRule {
+            field: o
+                .damage_points_field
+                .clone()
+                .unwrap_or_else(|| "damage".into()),
+            default: 1.0,
+            closed_value: o.road.closed_value.clone(),
+        },
         zones_crs: o.zones_crs.clone(),
         reports: o.damage_points.clone(),
-        report_distance_m: o.report_distance_m.unwrap_or(50.0),
+        point_match_distance_m: o.point_match_distance_m.unwrap_or(50.0),
         crew_capacity: o.crew_capacity,
         name: o.name.clone(),
         budget: o.budget,
@@ -185,7 +193,7 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 15] = [
+    let rules: [(&'static str, bool, bool, &'static str); 16] = [
         (
             "--hub",
             o.hub.is_some(),
@@ -251,17 +259,23 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
             "this is the damage zones' CRS: give --damage-zones",
         ),
         (
-            "--report-distance",
-            o.report_distance_m.is_some(),
+            "--point-match-distance",
+            o.point_match_distance_m.is_some(),
             o.damage_points.is_some(),
-            "this is the damage reports' reach: give --damage-points",
+            "this is how far a field report may lie from its road: give --damage-points",
+        ),
+        (
+            "--damage-points-field",
+            o.damage_points_field.is_some(),
+            o.damage_points.is_some(),
+            "this field is read from the field reports: give --damage-points",
         ),
         (
             "--zone-damage-field",
             o.zone_damage_field.is_some(),
-            o.damage_zones.is_some() || o.damage_points.is_some(),
-            "this field is read from damage zones and reports: give --damage-zones or \
-             --damage-points",
+            o.damage_zones.is_some(),
+            "this field is read from the damage zones: give --damage-zones (field reports \
+             have --damage-points-field)",
         ),
     ];
     let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
@@ -308,14 +322,14 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             ),
         ));
     }
-    if !(job.report_distance_m.is_finite()
-        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
+    if !(job.point_match_distance_m.is_finite()
+        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.point_match_distance_m))
     {
         return Err(refuse(
-            "--report-distance",
+            "--point-match-distance",
             format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.report_distance_m
+                job.point_match_distance_m
             ),
         ));
     }

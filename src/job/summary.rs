@@ -100,7 +100,7 @@ pub fn build(
         },
         damage_reports: None,
         phases: Vec::new(),
-        fragility: None,
+        single_failures: None,
         backup: None,
         sites: sites.map(|r| sites_figures(r, net, comps, plan)),
         total_cost: cost_to_repair_metres(plan.total_cost),

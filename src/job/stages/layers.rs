@@ -43,7 +43,7 @@ pub(in crate::job) fn write(
         sites,
     );
     summary.phases = summary::phases(&p.graph, &p.steps, sites);
-    summary.fragility = p.fragile.as_ref().map(|f| f.figures.clone());
+    summary.single_failures = p.single_failures.as_ref().map(|f| f.figures.clone());
     summary.backup = p.backup.as_ref().map(|b| b.figures.clone());
     summary.counts.damage_zones = p.built.zone_figures.0;
     summary.counts.edges_in_zones = p.built.zone_figures.1;
@@ -60,7 +60,7 @@ pub(in crate::job) fn write(
         job.road_settings.structure_field.as_deref(),
     ));
     let rows = sites.map(rows::site_rows);
-    summary.outputs = export::output_names(rows.is_some(), p.fragile.is_some(), p.backup.is_some());
+    summary.outputs = export::output_names(rows.is_some(), p.single_failures.is_some(), p.backup.is_some());
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
             .display_path()
@@ -84,7 +84,7 @@ pub(in crate::job) fn write(
                 sites: rows.as_deref(),
                 qa: &p.built.noding.qa_points,
                 steps: &p.steps,
-                fragility: p.fragile.as_ref(),
+                single_failures: p.single_failures.as_ref(),
                 backup: p.backup.as_ref(),
                 title: &title,
                 marks: &marks,

@@ -67,17 +67,17 @@ pub(in crate::job) fn build(
     let mut report_figures = None;
     if let Some(src) = &job.reports {
         let _s = progress.stage("applying damage reports");
-        let (reports, rec) = read_reports(src, &job.zone_damage)?;
-        let fig = apply_reports(&mut net, &reports, job.report_distance_m);
+        let (reports, rec) = read_reports(src, &job.report_damage)?;
+        let fig = apply_reports(&mut net, &reports, job.point_match_distance_m);
         notes::layer_defaults(
             notes,
             "report_damage_defaulted",
             ("damage report", "damage reports"),
             reports.iter().filter(|r| r.defaulted).count(),
             reports.len(),
-            &job.zone_damage,
+            &job.report_damage,
         );
-        notes::reports(notes, &fig, job.report_distance_m);
+        notes::reports(notes, &fig, job.point_match_distance_m);
         report_figures = Some(fig);
         inputs.push(rec);
     }

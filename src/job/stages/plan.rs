@@ -3,10 +3,10 @@
 
 use super::network::Built;
 use crate::export::backup::BackupLayer;
-use crate::export::fragility::FragilityLayer;
+use crate::export::single_failures::SingleFailureLayer;
 use crate::ingest::sites::SiteLayer;
 use crate::job::notes::Notes;
-use crate::job::resilience::{backup_plan, fragility_report};
+use crate::job::resilience::{backup_plan, single_failure_report};
 use crate::job::schedule::schedule;
 use crate::job::{JobError, PlanJob, SitesResult, budget, hub, joined, status};
 use crate::network::cost_to_repair_metres;
@@ -32,7 +32,7 @@ pub(in crate::job) struct Planned {
     /// The sites' attachments, hub, plan, reach and statuses, when sites were given.
     pub sites: Option<SitesResult>,
     /// Single points of failure after the plan (sites joined to a hub).
-    pub fragile: Option<FragilityLayer>,
+    pub single_failures: Option<SingleFailureLayer>,
     /// Backup links (`--redundancy`).
     pub backup: Option<BackupLayer>,
 }
@@ -123,10 +123,10 @@ pub(in crate::job) fn plan(
         None => None,
     };
     let joined_to_hub = sites.as_ref().filter(|sr| sr.reach.hub_junction.is_some());
-    let fragile = match joined_to_hub {
+    let single_failures = match joined_to_hub {
         Some(sr) => {
             let _s = progress.stage("finding single points of failure");
-            Some(fragility_report(&graph, &plan.edges, sr)?)
+            Some(single_failure_report(&graph, &plan.edges, sr)?)
         }
         None => None,
     };
@@ -144,7 +144,7 @@ pub(in crate::job) fn plan(
         plan,
         steps,
         sites,
-        fragile,
+        single_failures,
         backup,
     })
 }
