@@ -315,7 +315,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
     if let Some(s) = &summary.sites {
         eprintln!(
             "sites: {} of {} joined to the hub; lower bound {} repair-metres ({})",
-            s.connected,
+            s.joined_to_hub,
             s.total,
             fixed(summary.lower_bound, 3),
             match summary.gap {
@@ -330,11 +330,11 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
                 None => "no gap: the bound is 0".to_string(),
             }
         );
-        for u in &s.unconnected {
+        for u in &s.not_joined {
             eprintln!(
                 "  {} {}: {}",
                 terminal(&u.id),
-                u.status,
+                u.status_label,
                 terminal(&u.reason)
             );
         }

@@ -331,7 +331,8 @@ fn write_edges<W: std::io::Write>(
     Ok(())
 }
 
-/// Writes QA points: kind, distance moved (or gap), and the input feature where known.
+/// Writes QA points: kind (code and words), distance moved (or gap), and the input feature where
+/// known.
 pub fn write_qa<W: std::io::Write>(
     w: W,
     qa: &[crate::ingest::qa::QaPoint],
@@ -341,7 +342,8 @@ pub fn write_qa<W: std::io::Write>(
     for q in qa {
         gj.point(
             &[
-                ("kind", Prop::Str(q.kind.label())),
+                ("kind", Prop::Str(q.kind.code())),
+                ("kind_label", Prop::Str(q.kind.label())),
                 ("distance_m", Prop::Fixed3(q.distance_m)),
                 (
                     "source_index",

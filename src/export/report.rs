@@ -135,7 +135,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         writeln!(
             w,
             "<tr><th>Sites</th><td>{} of {} joined to the hub {} (the hub included)</td></tr>",
-            st.connected,
+            st.joined_to_hub,
             st.total,
             esc(st.hub.as_deref().unwrap_or("none"))
         )?;
@@ -165,20 +165,20 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     writeln!(w, "</table>")?;
     if let Some(st) = &s.sites {
         writeln!(w, "<h2>Sites not joined to the hub</h2>")?;
-        if st.unconnected.is_empty() {
+        if st.not_joined.is_empty() {
             writeln!(w, "<p>Every site is joined to the hub.</p>")?;
         } else {
             writeln!(
                 w,
                 "<table><tr><th>Site</th><th>Name</th><th>Status</th><th>Why</th></tr>"
             )?;
-            for u in &st.unconnected {
+            for u in &st.not_joined {
                 writeln!(
                     w,
                     "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
                     esc(&u.id),
                     esc(u.name.as_deref().unwrap_or("")),
-                    esc(u.status),
+                    esc(u.status_label),
                     esc(&u.reason)
                 )?;
             }
@@ -268,7 +268,8 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
     }
     writeln!(w, "<h2>Geometry checks (qa.geojson)</h2><table>")?;
     for (k, v) in &s.counts.qa {
-        writeln!(w, "<tr><th>{}</th><td>{v}</td></tr>", esc(k))?;
+        let label = crate::ingest::qa::QaKind::label_of(k);
+        writeln!(w, "<tr><th>{}</th><td>{v}</td></tr>", esc(label))?;
     }
     writeln!(w, "</table>")?;
     writeln!(

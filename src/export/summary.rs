@@ -107,13 +107,15 @@ pub struct PlanFigures {
 
 /// A site the plan does not join to the hub, and why.
 #[derive(Debug, Clone, Serialize)]
-pub struct UnconnectedSite {
+pub struct NotJoinedSite {
     /// The site's id.
     pub id: String,
     /// Its name, when it has one.
     pub name: Option<String>,
-    /// Its status in `sites.geojson` (`not attached`, `left out by budget`, `unreachable`).
+    /// Its status code in `sites.geojson` (`not_attached`, `left_out_by_budget`, `unreachable`).
     pub status: &'static str,
+    /// The status in words, as in `sites.geojson`.
+    pub status_label: &'static str,
     /// Why it is not joined to the hub.
     pub reason: String,
     /// Distance to the nearest road (not attached) or attachment distance, metres.
@@ -148,13 +150,13 @@ pub struct SitesFigures {
     /// Sites attached to a usable road.
     pub attached: usize,
     /// Sites joined to the hub over intact roads and the plan's repairs, the hub included.
-    pub connected: usize,
+    pub joined_to_hub: usize,
     /// The hub (depot) site's id.
     pub hub: Option<String>,
     /// Groups of sites that can reach each other, with their trees' figures.
     pub groups: Vec<GroupFigures>,
     /// Sites not joined to the hub, each with its status and the reason.
-    pub unconnected: Vec<UnconnectedSite>,
+    pub not_joined: Vec<NotJoinedSite>,
     /// A note on trivial cases (no sites, one site).
     pub note: Option<String>,
 }

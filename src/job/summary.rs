@@ -1,6 +1,6 @@
 //! Builds `summary.json` from the results of the stages.
 
-use super::status::CONNECTED;
+use super::status::{JOINED, status_label};
 use super::{PlanJob, SitesResult};
 use crate::export::summary::*;
 use crate::ingest::NodingStats;
@@ -117,17 +117,18 @@ pub fn build(
 
 fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan) -> SitesFigures {
     let sites = &r.layer.sites;
-    let mut unconnected = Vec::new();
-    let mut connected = 0;
+    let mut not_joined = Vec::new();
+    let mut joined_to_hub = 0;
     for (i, s) in sites.iter().enumerate() {
         let st = &r.statuses[i];
-        if st.status == CONNECTED {
-            connected += 1;
+        if st.status == JOINED {
+            joined_to_hub += 1;
         } else {
-            unconnected.push(UnconnectedSite {
+            not_joined.push(NotJoinedSite {
                 id: s.id.clone(),
                 name: s.name.clone(),
                 status: st.status,
+                status_label: status_label(st.status),
                 reason: st.reason.clone().unwrap_or_default(),
                 distance_m: r.attachments[i].distance_m.map(round3),
             });
@@ -173,10 +174,10 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
             .iter()
             .filter(|a| a.junction.is_some())
             .count(),
-        connected,
+        joined_to_hub,
         hub: r.hub.map(|h| sites[h].id.clone()),
         groups,
-        unconnected,
+        not_joined,
         note,
     }
 }
