@@ -136,7 +136,7 @@ pub struct PlanningArgs {
     #[arg(long)]
     pub redundancy: bool,
 
-    /// Repair-metres a crew completes per day: groups the ordered repairs into day-phases.
+    /// Repair-metres a crew completes per day: groups the ordered repairs into repair days (without it the repairs are not scheduled by day).
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
 

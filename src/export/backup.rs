@@ -86,10 +86,7 @@ pub fn write_backup<W: std::io::Write>(
         let edge = &net.edges[r.edge as usize];
         let meta = &net.features[edge.feature as usize];
         let joined = r.protects.join(";");
-        let damage = match edge.damage.factor() {
-            Some(f) => Prop::Num(f),
-            None => Prop::Str("closed"),
-        };
+        let [damage, impassable] = super::damage_props(edge);
         gj.line(
             &[
                 ("order", Prop::Int(r.order as i64)),
@@ -102,7 +99,8 @@ pub fn write_backup<W: std::io::Write>(
                 ),
                 ("road", meta.label.as_deref().map_or(Prop::Null, Prop::Str)),
                 ("length_m", Prop::Fixed3(edge.length_m)),
-                ("damage", damage),
+                damage,
+                impassable,
                 ("cost", Prop::Fixed3(cost_to_repair_metres(edge.cost))),
                 ("protects_sites", Prop::Str(&joined)),
                 (

@@ -95,7 +95,7 @@ pub struct Outputs<'a> {
     pub sites: Option<&'a [sites::SiteRow]>,
     /// QA points.
     pub qa: &'a [crate::ingest::qa::QaPoint],
-    /// The plan's repairs in order, with their phases.
+    /// The plan's repairs in order, with their days.
     pub steps: &'a [crate::solve::order::Step],
     /// Site ids by site index (empty without sites).
     pub site_ids: &'a [String],
@@ -143,10 +143,10 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             &ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, (u32, u32)> = o
+    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> = o
         .steps
         .iter()
-        .map(|s| (s.edge, (s.order, s.phase)))
+        .map(|s| (s.edge, (s.order, s.day)))
         .collect();
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
@@ -255,7 +255,7 @@ fn write_edges<W: std::io::Write>(
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
-    order_of: Option<&std::collections::HashMap<u32, (u32, u32)>>,
+    order_of: Option<&std::collections::HashMap<u32, (u32, Option<u32>)>>,
     keys: &work_order_id::WorkOrderIds,
     attribution: Option<&str>,
 ) -> std::io::Result<()> {
@@ -271,10 +271,7 @@ fn write_edges<W: std::io::Write>(
     for &e in ids {
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
-        let damage = match edge.damage.factor() {
-            Some(f) => Prop::Num(f),
-            None => Prop::Str("closed"),
-        };
+        let [damage, impassable] = damage_props(edge);
         let cost = if edge.usable() {
             Prop::Fixed3(cost_to_repair_metres(edge.cost))
         } else {
@@ -292,7 +289,8 @@ fn write_edges<W: std::io::Write>(
             ("from", Prop::Int(edge.from as i64)),
             ("to", Prop::Int(edge.to as i64)),
             ("length_m", Prop::Fixed3(edge.length_m)),
-            ("damage", damage),
+            damage,
+            impassable,
             ("cost", cost),
             ("component", component),
             ("source_index", Prop::Int(meta.source_index as i64)),
@@ -314,21 +312,31 @@ fn write_edges<W: std::io::Write>(
                     .map_or(Prop::Null, |o| Prop::Int(o.0 as i64)),
             ),
             (
-                "phase",
+                "day",
                 order_of
                     .and_then(|m| m.get(&e))
-                    .map_or(Prop::Null, |o| Prop::Int(o.1 as i64)),
+                    .and_then(|o| o.1)
+                    .map_or(Prop::Null, |d| Prop::Int(d as i64)),
             ),
         ];
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..12]
+            &props[..13]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
     gj.finish()?;
     Ok(())
+}
+
+/// The `damage` (a number, or null when impassable) and `impassable` properties of an edge: one
+/// type per property in every layer.
+pub(crate) fn damage_props(edge: &crate::network::Edge) -> [(&'static str, Prop<'static>); 2] {
+    [
+        ("damage", edge.damage.factor().map_or(Prop::Null, Prop::Num)),
+        ("impassable", Prop::Bool(edge.damage.factor().is_none())),
+    ]
 }
 
 /// Writes QA points: kind (code and words), distance moved (or gap), and the input feature where

@@ -213,7 +213,7 @@ pub fn write_svg<W2: Write>(
         }
     }
     writeln!(w, "</g>")?;
-    let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
+    let phases = steps.iter().filter_map(|s| s.day).max().unwrap_or(1);
     let colour = |phase: u32| palette::day_colour(phase, phases);
     writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round">"#)?;
     for s in steps_drawn {
@@ -222,7 +222,7 @@ pub fn write_svg<W2: Write>(
             s.edge as usize,
             &format!(
                 r#"stroke="{}" stroke-width="{}""#,
-                colour(s.phase),
+                colour(s.day.unwrap_or(1)),
                 Fixed(base * 3.0, 2)
             ),
         )?;

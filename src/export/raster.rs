@@ -105,13 +105,13 @@ pub fn render_png(
         b * 1.8,
         false,
     );
-    let phases = steps.iter().map(|s| s.phase).max().unwrap_or(1);
+    let phases = steps.iter().filter_map(|s| s.day).max().unwrap_or(1);
     for p in 1..=phases {
         stroke_edges(
             &mut pixmap,
             &mut steps
                 .iter()
-                .filter(|s| s.phase == p)
+                .filter(|s| s.day.unwrap_or(1) == p)
                 .map(|s| s.edge as usize),
             &palette::day_colour(p, phases),
             b * 3.0,

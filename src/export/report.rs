@@ -145,11 +145,11 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         w,
         "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined to the hub</th><th>Share of sites joined</th></tr>"
     )?;
-    for p in &s.phases {
+    for p in s.days.iter().flatten() {
         writeln!(
             w,
             "<tr><td>{}{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            p.phase,
+            p.day,
             if p.over_capacity {
                 " (over capacity)"
             } else {
@@ -157,7 +157,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             },
             p.repairs,
             fixed(p.cost, 3),
-            esc(&p.sites_connected.join(", ")),
+            esc(&p.sites_joined.join(", ")),
             p.cumulative_share_of_sites
                 .map_or("—".to_string(), |x| format!("{} %", fixed(100.0 * x, 0)))
         )?;

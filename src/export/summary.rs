@@ -161,20 +161,20 @@ pub struct SitesFigures {
     pub note: Option<String>,
 }
 
-/// One day-phase of the repair order.
+/// One repair day of the repair order (`--crew-capacity`).
 #[derive(Debug, Clone, Serialize)]
-pub struct PhaseFigures {
-    /// Phase number (1-based).
-    pub phase: u32,
-    /// Repairs in the phase.
+pub struct DayFigures {
+    /// Day number (1-based).
+    pub day: u32,
+    /// Repairs on the day.
     pub repairs: usize,
     /// Their cost, repair-metres.
     pub cost: f64,
-    /// True when the phase is a single repair larger than the crew capacity.
+    /// True when the day is a single repair larger than the crew capacity.
     pub over_capacity: bool,
-    /// Sites joined to the hub by this phase's repairs.
-    pub sites_connected: Vec<String>,
-    /// Share of all sites joined to the hub by the end of the phase (null without sites).
+    /// Sites joined to the hub by this day's repairs.
+    pub sites_joined: Vec<String>,
+    /// Share of all sites joined to the hub by the end of the day (null without sites).
     pub cumulative_share_of_sites: Option<f64>,
 }
 
@@ -209,8 +209,9 @@ pub struct Summary {
     /// Backup links (with --redundancy; null otherwise): cost, repairs and the single failures
     /// left after.
     pub backup: Option<super::backup::BackupFigures>,
-    /// The repair order grouped into day-phases (by `--crew-capacity`; one phase without it).
-    pub phases: Vec<PhaseFigures>,
+    /// The repair order grouped into repair days by `--crew-capacity`; null without it (the
+    /// repairs are not scheduled by day).
+    pub days: Option<Vec<DayFigures>>,
     /// Figures about the critical sites (null for a whole-network plan without sites).
     pub sites: Option<SitesFigures>,
     /// Total repair cost of the plan, repair-metres.

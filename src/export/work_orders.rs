@@ -8,9 +8,9 @@ use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::order::Step;
 use std::io::Write;
 
-/// Writes the work orders: order, phase, edge, source feature, road, length, damage, cost, ends,
+/// Writes the work orders: order, day (empty without `--crew-capacity`), edge, source feature, road, length, damage, cost, ends,
 /// the sites each repair completes, its purpose (`plan`, or `backup` for backup links, which
-/// have no phase), then the columns crews hand back: the work-order key (stable across re-plans,
+/// have no day), then the columns crews hand back: the work-order key (stable across re-plans,
 /// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
 /// and `verified_on`, and the fixed caution sentence.
 pub fn write_work_orders<W: Write>(
@@ -25,7 +25,7 @@ pub fn write_work_orders<W: Write>(
     let io = |e: csv::Error| std::io::Error::other(e.to_string());
     c.write_record([
         "order",
-        "phase",
+        "day",
         "edge",
         "source_index",
         "source_id",
@@ -60,7 +60,7 @@ pub fn write_work_orders<W: Write>(
             (
                 s.edge,
                 s.order,
-                s.phase.to_string(),
+                s.day.map(|d| d.to_string()).unwrap_or_default(),
                 completes.join(";"),
                 s.over_capacity,
                 "plan",
@@ -76,7 +76,7 @@ pub fn write_work_orders<W: Write>(
                 "backup",
             )
         }));
-    for (edge, order, phase, completes, over, purpose) in rows {
+    for (edge, order, day, completes, over, purpose) in rows {
         let e = &net.edges[edge as usize];
         let meta = &net.features[e.feature as usize];
         let g = net.edge_geometry(edge as usize);
@@ -89,15 +89,16 @@ pub fn write_work_orders<W: Write>(
         };
         c.write_record([
             order.to_string(),
-            phase,
+            day,
             edge.to_string(),
             meta.source_index.to_string(),
             csv_cell(&id).into_owned(),
             csv_cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(e.length_m, 3),
+            // Numeric, or empty for an impassable road (never repaired, so never written here).
             e.damage
                 .factor()
-                .map_or("closed".to_string(), |f| crate::decimal::trimmed(f, 6)),
+                .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
             csv_cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),

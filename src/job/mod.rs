@@ -79,7 +79,7 @@ pub struct PlanJob {
     pub report_damage: crate::ingest::damage::DamageRule,
     /// Largest distance from a field report to the road it is matched to, metres.
     pub point_match_distance_m: f64,
-    /// Repair-metres a crew completes per day; groups the ordered repairs into day-phases.
+    /// Repair-metres a crew completes per day; groups the ordered repairs into repair days (none without it).
     pub crew_capacity: Option<f64>,
     /// The district's name (pictures and reports); default: the road file's name.
     pub name: Option<String>,

@@ -1,4 +1,4 @@
-//! After the plan: the order of repairs and their day-phases.
+//! After the plan: the order of repairs and their repair days.
 
 use super::PlanJob;
 use crate::ingest::IngestError;
@@ -9,7 +9,7 @@ use crate::solve::Plan;
 use crate::solve::order::Target;
 use crate::solve::site_plan::SitePlan;
 
-/// Orders the plan's repairs (hub's group first) and groups them into day-phases; refuses a
+/// Orders the plan's repairs (hub's group first) and groups them into repair days; refuses a
 /// crew capacity that fits none of the plan's repairs.
 #[allow(clippy::too_many_arguments)]
 pub(super) fn schedule(
@@ -23,7 +23,7 @@ pub(super) fn schedule(
     hub: Option<usize>,
     site_plan: Option<&SitePlan>,
 ) -> Result<Vec<crate::solve::order::Step>, IngestError> {
-    use crate::solve::order::{assign_phases, order_whole_network};
+    use crate::solve::order::{assign_days, order_whole_network};
     let mut steps = match (sites, site_plan) {
         (Some(sl), Some(sp)) => {
             let (roots, targets) = roots_and_targets(sl, attachments, hub, sp);
@@ -50,11 +50,11 @@ pub(super) fn schedule(
     };
     let capacity = job.crew_capacity.map(|c| (c * 1000.0).round() as u64);
     check_capacity(job.crew_capacity, capacity, graph, &steps)?;
-    assign_phases(graph, &mut steps, capacity);
+    assign_days(graph, &mut steps, capacity);
     Ok(steps)
 }
 
-/// A day's capacity must hold at least the smallest repair, or no day-phase could be formed:
+/// A day's capacity must hold at least the smallest repair, or no repair day could be formed:
 /// only here, with the plan's repairs known, can that be checked.
 fn check_capacity(
     given: Option<f64>,

@@ -99,7 +99,7 @@ pub fn build(
             bound_complete: plan.bound_complete,
         },
         damage_reports: None,
-        phases: Vec::new(),
+        days: None,
         single_failures: None,
         backup: None,
         sites: sites.map(|r| sites_figures(r, net, comps, plan)),
@@ -182,34 +182,36 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
     }
 }
 
-/// Per phase: repairs, cost, sites newly joined to the hub, cumulative share of sites joined.
-pub fn phases(
+/// Per repair day (steps with a day, `--crew-capacity`): repairs, cost, sites newly joined to the
+/// hub, cumulative share of sites joined.
+pub fn days(
     g: &crate::solve::graph::EdgeList,
     steps: &[crate::solve::order::Step],
     sites: Option<&SitesResult>,
-) -> Vec<PhaseFigures> {
+) -> Vec<DayFigures> {
     let total_sites = sites.map_or(0, |s| s.layer.sites.len());
-    let mut out: Vec<PhaseFigures> = Vec::new();
+    let mut out: Vec<DayFigures> = Vec::new();
     // Sites joined before any repair: the hub, and sites it reaches over intact roads.
     let mut cumulative = sites.map_or(0, |r| r.reach.before.iter().filter(|&&b| b).count());
     for s in steps {
-        if out.last().is_none_or(|p| p.phase != s.phase) {
-            out.push(PhaseFigures {
-                phase: s.phase,
+        let Some(day) = s.day else { continue };
+        if out.last().is_none_or(|p| p.day != day) {
+            out.push(DayFigures {
+                day,
                 repairs: 0,
                 cost: 0.0,
                 over_capacity: false,
-                sites_connected: Vec::new(),
+                sites_joined: Vec::new(),
                 cumulative_share_of_sites: None,
             });
         }
-        let p = out.last_mut().expect("a phase was just pushed");
+        let p = out.last_mut().expect("a day was just pushed");
         p.repairs += 1;
         p.cost += g.cost[s.edge as usize] as f64 / 1000.0;
         p.over_capacity |= s.over_capacity;
         if let Some(sr) = sites {
             for &i in &s.completes {
-                p.sites_connected.push(sr.layer.sites[i].id.clone());
+                p.sites_joined.push(sr.layer.sites[i].id.clone());
             }
             cumulative += s.completes.len();
             p.cumulative_share_of_sites =

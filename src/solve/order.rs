@@ -1,5 +1,5 @@
 //! Order of repairs: crews work over days, so the plan's repairs are ordered for the sites (or the
-//! road length) they bring back to the hub soonest, and grouped into day-phases by crew capacity.
+//! road length) they bring back to the hub soonest, and grouped into repair days by crew capacity.
 //!
 //! An edge helps only once its path back to the root (the hub) is complete, so repairs are always
 //! taken as whole paths from the connected part outward. Sites plans: repeatedly repair the path to
@@ -18,11 +18,11 @@ pub struct Step {
     pub edge: u32,
     /// 1-based position in the order.
     pub order: u32,
-    /// 1-based day-phase.
-    pub phase: u32,
+    /// 1-based repair day (`--crew-capacity`); None when the repairs are not scheduled by day.
+    pub day: Option<u32>,
     /// Targets (sites) joined to their root by this repair.
     pub completes: Vec<usize>,
-    /// True when this single repair exceeds the crew capacity (it stands alone in its phase).
+    /// True when this single repair exceeds the crew capacity (it stands alone on its day).
     pub over_capacity: bool,
 }
 
@@ -172,7 +172,7 @@ pub fn order_within(
             steps.push(Step {
                 edge: e,
                 order: steps.len() as u32 + 1,
-                phase: 1,
+                day: None,
                 completes,
                 over_capacity: false,
             });
@@ -237,7 +237,7 @@ pub fn order_whole_network(
             steps.push(Step {
                 edge: e,
                 order: steps.len() as u32 + 1,
-                phase: 1,
+                day: None,
                 completes: Vec::new(),
                 over_capacity: false,
             });
@@ -251,30 +251,34 @@ pub fn order_whole_network(
     steps
 }
 
-/// Groups ordered steps into day-phases of at most `capacity` (milli-repair-metres); a single repair
-/// over capacity stands alone in its phase and is flagged. Without a capacity, one phase.
-pub fn assign_phases(g: &EdgeList, steps: &mut [Step], capacity: Option<u64>) {
+/// Groups ordered steps into repair days of at most `capacity` (milli-repair-metres); a single
+/// repair over capacity stands alone on its day and is flagged. Without a capacity there are no
+/// days: every step's `day` is None.
+pub fn assign_days(g: &EdgeList, steps: &mut [Step], capacity: Option<u64>) {
     let Some(cap) = capacity.filter(|&c| c > 0) else {
-        steps.iter_mut().for_each(|s| s.phase = 1);
+        steps.iter_mut().for_each(|s| {
+            s.day = None;
+            s.over_capacity = false;
+        });
         return;
     };
-    let mut phase = 1;
+    let mut day = 1;
     let mut used = 0u64;
     for s in steps.iter_mut() {
         let c = g.cost[s.edge as usize];
         if used > 0 && used + c > cap {
-            phase += 1;
+            day += 1;
             used = 0;
         }
-        s.phase = phase;
+        s.day = Some(day);
         s.over_capacity = c > cap;
         used += c;
         if s.over_capacity {
-            phase += 1;
+            day += 1;
             used = 0;
         }
     }
-    // A phase opened after an over-capacity repair but never used is not counted.
+    // A day opened after an over-capacity repair but never used is not counted.
 }
 
 #[cfg(test)]
@@ -314,10 +318,12 @@ mod tests {
             vec![1],
             "the intact edge beyond completes site B"
         );
-        assign_phases(&g, &mut steps, Some(50));
-        assert_eq!(steps[0].phase, 1);
-        assert_eq!(steps[1].phase, 2);
+        assign_days(&g, &mut steps, Some(50));
+        assert_eq!(steps[0].day, Some(1));
+        assert_eq!(steps[1].day, Some(2));
         assert!(steps[1].over_capacity);
+        assign_days(&g, &mut steps, None);
+        assert!(steps.iter().all(|s| s.day.is_none() && !s.over_capacity));
     }
 
     #[test]

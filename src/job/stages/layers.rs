@@ -42,7 +42,9 @@ pub(in crate::job) fn write(
         &p.plan,
         sites,
     );
-    summary.phases = summary::phases(&p.graph, &p.steps, sites);
+    summary.days = job
+        .crew_capacity
+        .map(|_| summary::days(&p.graph, &p.steps, sites));
     summary.single_failures = p.single_failures.as_ref().map(|f| f.figures.clone());
     summary.backup = p.backup.as_ref().map(|b| b.figures.clone());
     summary.counts.damage_zones = p.built.zone_figures.0;

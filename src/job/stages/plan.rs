@@ -27,7 +27,7 @@ pub(in crate::job) struct Planned {
     pub comps: Components,
     /// The edges to repair.
     pub plan: Plan,
-    /// The repairs in order, with day-phases.
+    /// The repairs in order, with their repair days (with --crew-capacity).
     pub steps: Vec<Step>,
     /// The sites' attachments, hub, plan, reach and statuses, when sites were given.
     pub sites: Option<SitesResult>,
