@@ -1,4 +1,4 @@
-//! Repair order, phases and work orders on the demo district (invariants: common practice, no source).
+//! Repair order, repair days and work orders on the demo district (invariants: common practice, no source).
 
 mod common;
 use common::*;
@@ -16,7 +16,7 @@ fn find(p: &mut HashMap<i64, i64>, x: i64) -> i64 {
 }
 
 #[test]
-fn every_prefix_of_the_order_reaches_the_hub_and_phases_respect_capacity() {
+fn every_prefix_of_the_order_reaches_the_hub_and_days_respect_capacity() {
     let d = tmp();
     let out = d.path().join("o");
     let o = run(&[
@@ -88,20 +88,20 @@ fn every_prefix_of_the_order_reaches_the_hub_and_phases_respect_capacity() {
         union(&mut parent, a, b);
     }
     assert!(hub_total > 0);
-    // Phases: costs add up to the plan; none over capacity unless one repair alone, flagged.
-    let phases = s["phases"].as_array().unwrap();
-    let sum: f64 = phases.iter().map(|p| p["cost"].as_f64().unwrap()).sum();
+    // Days: costs add up to the plan; none over capacity unless one repair alone, flagged.
+    let days = s["days"].as_array().unwrap();
+    let sum: f64 = days.iter().map(|p| p["cost"].as_f64().unwrap()).sum();
     assert!(
         (sum - s["total_cost"].as_f64().unwrap()).abs() < 0.01,
         "{sum}"
     );
-    for p in phases {
+    for p in days {
         if p["cost"].as_f64().unwrap() > 2500.0 {
             assert_eq!(p["repairs"], 1);
             assert_eq!(p["over_capacity"], true);
         }
     }
-    assert_eq!(phases.last().unwrap()["cumulative_share_of_sites"], 1.0);
+    assert_eq!(days.last().unwrap()["cumulative_share_of_sites"], 1.0);
     // Work orders parse as CSV (csv crate) and their total equals the summary's.
     let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
     let cost_col = r
@@ -152,7 +152,7 @@ fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
             .sum();
         assert!((sum - cost).abs() < 0.01);
         if cost < full_cost {
-            let left: Vec<_> = b["sites"]["unconnected"]
+            let left: Vec<_> = b["sites"]["not_joined"]
                 .as_array()
                 .unwrap()
                 .iter()
@@ -175,7 +175,7 @@ fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
     ]);
     assert!(o.status.success());
     let b = read_json(&out.join("summary.json"));
-    assert_eq!(b["sites"]["connected"], s["sites"]["connected"]);
+    assert_eq!(b["sites"]["joined_to_hub"], s["sites"]["joined_to_hub"]);
     assert!(b["total_cost"].as_f64().unwrap() <= full_cost + 1e-6);
 }
 

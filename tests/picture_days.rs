@@ -18,7 +18,7 @@ fn demo(capacity: &str) -> (String, u32) {
         capacity,
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
-    let days = read_json(&out.join("summary.json"))["phases"]
+    let days = read_json(&out.join("summary.json"))["days"]
         .as_array()
         .unwrap()
         .len() as u32;

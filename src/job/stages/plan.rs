@@ -125,7 +125,7 @@ pub(in crate::job) fn plan(
     let joined_to_hub = sites.as_ref().filter(|sr| sr.reach.hub_junction.is_some());
     let single_failures = match joined_to_hub {
         Some(sr) => {
-            let _s = progress.stage("finding single points of failure");
+            let _s = progress.stage("finding roads with no way round");
             Some(single_failure_report(&graph, &plan.edges, sr)?)
         }
         None => None,
