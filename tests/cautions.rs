@@ -74,7 +74,7 @@ fn a_plan_carries_the_cautions_in_every_output() {
     assert_eq!(top_keys(&summary)[..2], ["tool", "cautions"]);
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["cautions"].as_array().unwrap().len(), CAUTIONS.len());
-    // network, plan, qa, sites, fragility and backup layers.
+    // network, plan, qa, sites, single-failures and backup layers.
     assert_eq!(layers_carry_cautions(&out), 6);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     for c in CAUTIONS {
