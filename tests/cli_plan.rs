@@ -15,13 +15,13 @@ fn demo_joins_the_sites_and_reports_them() {
         listing(&out),
         [
             ".reknit-outputs",
-            "single-failures.geojson",
             "network.geojson",
             "plan.geojson",
             "plan.png",
             "plan.svg",
             "qa.geojson",
             "report.html",
+            "single-failures.geojson",
             "sites.geojson",
             "summary.json",
             "work-orders.csv"

@@ -188,7 +188,7 @@ mod repairs {
         );
         n.validate().unwrap();
         assert_eq!(s.undershoots_joined, 1);
-        assert_eq!(count(&s, "joined undershoot"), 1);
+        assert_eq!(count(&s, "joined_undershoot"), 1);
         assert_eq!(n.edges.len(), 3, "main road split at the join");
         assert_eq!(degree_sequence(&n), vec![1, 1, 1, 3]);
         // Beyond the tolerance it stays a dangling end.
