@@ -53,7 +53,10 @@ fn demo_joins_the_sites_and_reports_them() {
         .iter()
         .filter(|f| f.property("joined_to_hub").unwrap().as_bool().unwrap())
         .count();
-    assert_eq!(connected as u64, s["sites"]["joined_to_hub"].as_u64().unwrap());
+    assert_eq!(
+        connected as u64,
+        s["sites"]["joined_to_hub"].as_u64().unwrap()
+    );
     for f in &sites.features {
         if f.property("status").unwrap() == "not_attached" {
             assert!(f.property("reason").unwrap().is_string());

@@ -143,7 +143,11 @@ case!(options_without_the_input_they_are_about, |d| {
     plan_fails(
         &roads,
         &["--damage-points", &s(&points), "--zone-damage-field", "z"],
-        &["--zone-damage-field", "--damage-zones", "--damage-points-field"],
+        &[
+            "--zone-damage-field",
+            "--damage-zones",
+            "--damage-points-field",
+        ],
     );
 });
 

@@ -229,10 +229,7 @@ fn groups_unreachable_and_far_sites_are_reported_not_fatal() {
         .iter()
         .map(|f| f.property("status").unwrap().as_str().unwrap())
         .collect();
-    assert_eq!(
-        status,
-        ["unreachable", "joined", "joined", "not_attached"]
-    );
+    assert_eq!(status, ["unreachable", "joined", "joined", "not_attached"]);
 }
 
 #[test]

@@ -162,7 +162,10 @@ fn every_property_name_has_one_type_in_every_layer() {
         ("kind", "string"),
         ("kind_label", "string"),
     ] {
-        let types: Vec<_> = seen.get(k).map(|m| m.keys().copied().collect()).unwrap_or_default();
+        let types: Vec<_> = seen
+            .get(k)
+            .map(|m| m.keys().copied().collect())
+            .unwrap_or_default();
         assert_eq!(types, [t], "{k}");
     }
     // Impassable roads are there, with damage null beside them.
@@ -297,24 +300,33 @@ fn without_a_crew_capacity_there_are_no_days() {
 fn statuses_and_kinds_are_codes_with_labels_and_documented() {
     let d = tmp();
     let (plain, full) = two_runs(d.path());
-    let docs = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/outputs.md"),
-    )
-    .unwrap();
+    let docs =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("docs/outputs.md"))
+            .unwrap();
     let snake = |c: &str| c.chars().all(|x| x.is_ascii_lowercase() || x == '_');
     for (code, label) in STATUSES {
         assert!(snake(code), "{code}");
-        assert!(docs.contains(&format!("`{code}`")), "docs lack status {code}");
+        assert!(
+            docs.contains(&format!("`{code}`")),
+            "docs lack status {code}"
+        );
         assert!(docs.contains(label), "docs lack label {label}");
     }
     for k in QaKind::ALL {
         assert!(snake(k.code()), "{}", k.code());
-        assert!(docs.contains(&format!("`{}`", k.code())), "docs lack {}", k.code());
+        assert!(
+            docs.contains(&format!("`{}`", k.code())),
+            "docs lack {}",
+            k.code()
+        );
         assert!(docs.contains(k.label()), "docs lack label {}", k.label());
     }
     let mut statuses = BTreeSet::new();
     for out in [&plain, &full] {
-        for f in read_json(&out.join("sites.geojson"))["features"].as_array().unwrap() {
+        for f in read_json(&out.join("sites.geojson"))["features"]
+            .as_array()
+            .unwrap()
+        {
             let p = &f["properties"];
             let code = p["status"].as_str().unwrap();
             let (_, label) = STATUSES.iter().find(|(c, _)| *c == code).unwrap();
@@ -327,7 +339,10 @@ fn statuses_and_kinds_are_codes_with_labels_and_documented() {
             assert_ne!(u["status"], "joined");
             assert!(u["status_label"].is_string());
         }
-        for f in read_json(&out.join("qa.geojson"))["features"].as_array().unwrap() {
+        for f in read_json(&out.join("qa.geojson"))["features"]
+            .as_array()
+            .unwrap()
+        {
             let p = &f["properties"];
             let k = QaKind::ALL
                 .into_iter()

@@ -1,8 +1,8 @@
 //! `backup.geojson` and the backup figures: the further repairs that keep every site joined to the
 //! hub after any single road failure, numbered after the plan's repairs.
 
-use super::single_failures::{SingleFailureFigures, SiteFailures};
 use super::geojson::{GeoJsonWriter, Prop};
+use super::single_failures::{SingleFailureFigures, SiteFailures};
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::backup::Backup;
 use serde::Serialize;

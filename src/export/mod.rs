@@ -143,11 +143,8 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             &ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> = o
-        .steps
-        .iter()
-        .map(|s| (s.edge, (s.order, s.day)))
-        .collect();
+    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> =
+        o.steps.iter().map(|s| (s.edge, (s.order, s.day))).collect();
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
         let (svg, png) = rayon::join(

@@ -195,7 +195,10 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
             )?;
         }
         writeln!(w, "<table>")?;
-        let after = s.backup.as_ref().and_then(|b| b.single_failures_after.as_ref());
+        let after = s
+            .backup
+            .as_ref()
+            .and_then(|b| b.single_failures_after.as_ref());
         let row = |label: &str, before: usize, after: Option<usize>| {
             format!(
                 "<tr><th>{}</th><td>{before}</td>{}</tr>",

@@ -62,7 +62,11 @@ pub(in crate::job) fn write(
         job.road_settings.structure_field.as_deref(),
     ));
     let rows = sites.map(rows::site_rows);
-    summary.outputs = export::output_names(rows.is_some(), p.single_failures.is_some(), p.backup.is_some());
+    summary.outputs = export::output_names(
+        rows.is_some(),
+        p.single_failures.is_some(),
+        p.backup.is_some(),
+    );
     let title = job.name.clone().unwrap_or_else(|| {
         job.roads
             .display_path()
