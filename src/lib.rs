@@ -27,6 +27,7 @@ pub mod fuzzing;
 mod fxhash;
 pub mod ingest;
 pub mod job;
+pub mod replan;
 pub mod network;
 pub mod progress;
 pub mod rng;

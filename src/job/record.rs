@@ -10,7 +10,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
     let ss = &job.site_settings;
     let sites_plan = job.sites.is_some() && !job.whole_network;
     let when = |used: bool, v: serde_json::Value| if used { v } else { serde_json::Value::Null };
-    let evidence = job.zones.is_some() || job.reports.is_some();
+    let evidence = job.zones.is_some() || job.has_reports();
     serde_json::json!({
         "name": job.name,
         "snap_m": s.snap_m,
@@ -32,7 +32,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "node_crossings": s.node_crossings,
         "zone_damage_field": when(evidence, job.zone_damage.field.clone().into()),
         "zones_crs": job.zones_crs,
-        "report_distance_m": when(job.reports.is_some(), job.report_distance_m.into()),
+        "report_distance_m": when(job.has_reports(), job.report_distance_m.into()),
         "crew_capacity": job.crew_capacity,
         "budget": job.budget,
         "redundancy": job.redundancy,

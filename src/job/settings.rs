@@ -161,6 +161,8 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         name: o.name.clone(),
         budget: o.budget,
         redundancy: o.redundancy,
+        earlier_reports: o.earlier_damage_points.clone(),
+        field_work: o.field_work.clone(),
         _checked: Checked(()),
     };
     ranges(&job)?;
@@ -179,6 +181,7 @@ fn needs_input(o: &Options) -> Result<(), IngestError> {
 /// The options given that this run would ignore, by flag, each with what it needs.
 pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
+    let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
@@ -253,18 +256,18 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         (
             "--report-distance",
             o.report_distance_m.is_some(),
-            o.damage_points.is_some(),
+            points,
             "this is the damage reports' reach: give --damage-points",
         ),
         (
             "--zone-damage-field",
             o.zone_damage_field.is_some(),
-            o.damage_zones.is_some() || o.damage_points.is_some(),
+            o.damage_zones.is_some() || points,
             "this field is read from damage zones and reports: give --damage-zones or \
              --damage-points",
         ),
     ];
-    let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
+    let later_damage = o.damage_zones.is_some() || points;
     road_ignored(&o.road, later_damage)
         .into_iter()
         .chain(
