@@ -70,12 +70,14 @@ pub fn read(path: &Path, text: &str) -> Result<Vec<Row>, ReplanError> {
         .flexible(true)
         .from_reader(text.as_bytes());
     let mut rows: Vec<Row> = Vec::new();
+    // Lines counted from byte offsets (a quoted cell may span lines; the header is line 1).
+    let line_at = |byte: u64| text.as_bytes()[..byte as usize].iter().filter(|&&b| b == b'\n').count() + 1;
     for rec in r.records() {
         let rec = rec.map_err(|e| {
-            let line = e.position().map_or(0, |p| p.line() as usize);
+            let line = e.position().map_or(0, |p| line_at(p.byte()));
             bad(path, line, format!("not readable as CSV: {e}"))
         })?;
-        let line = rec.position().map_or(0, |p| p.line() as usize);
+        let line = rec.position().map_or(0, |p| line_at(p.byte()));
         let status = cell(rec.get(status_col).unwrap_or(""));
         let key = cell(rec.get(key_col).unwrap_or(""));
         let done = match status.to_lowercase().as_str() {

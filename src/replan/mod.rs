@@ -114,8 +114,10 @@ pub struct FieldWork {
     pub previous_fingerprint: String,
     /// The sheet read.
     pub finished_csv: Source,
-    /// Keys of the finished repairs.
+    /// Keys of the repairs finished to date (this round's and every earlier round's).
     pub finished: BTreeSet<String>,
+    /// How many of them this round's sheet reports.
+    pub finished_this_round: usize,
     /// Keys of the started repairs.
     pub started: BTreeSet<String>,
     /// The previous plan's pieces.
@@ -141,7 +143,7 @@ pub struct ReplanFigures {
     pub previous_fingerprint: String,
     /// This round's number.
     pub round: u32,
-    /// Finished repairs matched to the new network (now intact).
+    /// Repairs this round's sheet reports finished.
     pub finished_repairs: usize,
     /// Their repair-metres at the previous plan's costs.
     pub finished_repair_m: f64,
@@ -154,6 +156,8 @@ pub struct ReplanFigures {
     /// Keys of the previous plan or of the sheet that name no piece of the new network (a road
     /// layer given anew): listed, never guessed.
     pub keys_matching_nothing: Vec<String>,
+    /// Keys of every repair finished to date, sorted: the next round keeps them intact.
+    pub finished_to_date: Vec<String>,
     /// Changes by code, as in `changes.geojson`.
     pub changes: BTreeMap<&'static str, usize>,
 }
@@ -182,6 +186,8 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
             }
         }
     }
+    let finished_this_round = done.len();
+    done.extend(prev.finished_to_date.iter().cloned());
     let mut o = Options::new(Source::File(PathBuf::new()), req.out.clone());
     restore::settings(&prev, &mut o)?;
     let mut had_roads = false;
@@ -229,6 +235,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         previous_fingerprint: prev.fingerprint.clone(),
         finished_csv: Source::File(req.finished.clone()),
         finished: done,
+        finished_this_round,
         started,
         old_plan: prev.plan.clone(),
         old_sites: prev.sites.clone(),

@@ -51,6 +51,8 @@ pub struct Previous {
     pub backup: Vec<OldPiece>,
     /// Each site's id and whether it was joined to the hub.
     pub sites: BTreeMap<String, bool>,
+    /// Keys of the repairs finished in earlier rounds (a re-plan's `replan.finished_to_date`).
+    pub finished_to_date: Vec<String>,
 }
 
 #[derive(Deserialize)]
@@ -142,5 +144,10 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
         plan: pieces(&dir.join("plan.geojson"), false)?,
         backup: pieces(&dir.join("backup.geojson"), true)?,
         sites,
+        finished_to_date: match v.pointer("/replan/finished_to_date") {
+            None | Some(serde_json::Value::Null) => Vec::new(),
+            Some(f) => serde_json::from_value(f.clone())
+                .map_err(|e| broken(&sp, format!("`replan.finished_to_date`: {e}")))?,
+        },
     })
 }

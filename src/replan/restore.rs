@@ -216,8 +216,9 @@ fn started_from(prev: &Previous) -> Option<PathBuf> {
 pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError> {
     let p = Path::new(&rec.path);
     let mut tried = Vec::new();
-    let bases = [started_from(prev), Some(prev.dir.clone())];
-    for base in bases.iter().flatten() {
+    let start = started_from(prev);
+    let here = std::env::current_dir().ok().and_then(|d| std::fs::canonicalize(d).ok());
+    for base in [start.clone(), Some(prev.dir.clone())].iter().flatten() {
         let cand = base.join(p);
         if tried.contains(&cand) {
             continue;
@@ -226,6 +227,11 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
         if let Ok(r) = crate::job::fingerprint::input_record(&rec.role, &src)
             && r.sha256 == rec.sha256
         {
+            // Started from the same folder: the path stays as recorded, so the new summary
+            // records it the same way.
+            if start.is_some() && start == here && Some(base) == start.as_ref() {
+                return Ok(Source::File(p.to_path_buf()));
+            }
             return Ok(src);
         }
         tried.push(cand);

@@ -139,12 +139,13 @@ fn replan_round<'a>(
         previous_folder: w.previous_dir.display().to_string(),
         previous_fingerprint: w.previous_fingerprint.clone(),
         round: summary.history.last().map_or(1, |r| r.round),
-        finished_repairs: c.finished.len(),
+        finished_repairs: w.finished_this_round,
         finished_repair_m: round3(w.finished_repair_m),
         started_repairs: keys(&c.started),
         finished_damaged_again: keys(&c.damaged_again),
         rows_matching_nothing: w.rows_matching_nothing.clone(),
         keys_matching_nothing: missing,
+        finished_to_date: w.finished.iter().cloned().collect(),
         changes: found.counts(),
     });
     let listed = std::mem::take(&mut summary.outputs);
