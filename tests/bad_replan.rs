@@ -11,7 +11,15 @@ use std::path::{Path, PathBuf};
 fn first(d: &Path) -> PathBuf {
     // Three damaged roads in a row: three repairs.
     let lines: Vec<String> = (0..3)
-        .map(|i| line(&[at_m(100.0 * i as f64, 0.0), at_m(100.0 * (i + 1) as f64, 0.0)], &format!(r#"{{"id":"R{i}","damage":0.5}}"#)))
+        .map(|i| {
+            line(
+                &[
+                    at_m(100.0 * i as f64, 0.0),
+                    at_m(100.0 * (i + 1) as f64, 0.0),
+                ],
+                &format!(r#"{{"id":"R{i}","damage":0.5}}"#),
+            )
+        })
         .collect();
     let roads = write_collection(d, "roads.geojson", &lines);
     let r1 = d.join("r1");
@@ -33,7 +41,14 @@ fn replan_fails(d: &Path, sheet: &[u8], extra: &[&str], needles: &[&str]) {
     let r1 = d.join("r1");
     let f = file(d, "back.csv", sheet);
     let out = d.join("r2");
-    let mut args = vec!["replan".into(), s(&r1), "--finished".into(), s(&f), "--out".into(), s(&out)];
+    let mut args = vec![
+        "replan".into(),
+        s(&r1),
+        "--finished".into(),
+        s(&f),
+        "--out".into(),
+        s(&out),
+    ];
     args.extend(extra.iter().map(|x| x.to_string()));
     fails_with(d, &out, &args, needles);
 }
@@ -41,12 +56,22 @@ fn replan_fails(d: &Path, sheet: &[u8], extra: &[&str], needles: &[&str]) {
 case!(replan_status_not_understood, |d| {
     let k = keys(&first(d));
     let sheet = format!("work_order,status\n{},done\n{},half\n", k[0], k[1]);
-    replan_fails(d, sheet.as_bytes(), &[], &["back.csv", "line 3", "\"half\""]);
+    replan_fails(
+        d,
+        sheet.as_bytes(),
+        &[],
+        &["back.csv", "line 3", "\"half\""],
+    );
 });
 
 case!(replan_status_without_work_order, |d| {
     first(d);
-    replan_fails(d, b"work_order;status\n;done\n", &[], &["back.csv", "line 2", "work_order"]);
+    replan_fails(
+        d,
+        b"work_order;status\n;done\n",
+        &[],
+        &["back.csv", "line 2", "work_order"],
+    );
 });
 
 case!(replan_one_key_twice_with_two_statuses, |d| {
@@ -87,13 +112,35 @@ case!(replan_previous_setting_unknown, |d| {
     let r1 = first(d);
     let p = r1.join("summary.json");
     let text = std::fs::read_to_string(&p).unwrap();
-    std::fs::write(&p, text.replacen("\"settings\": {", "\"settings\": {\n    \"frobnicate\": 1,", 1)).unwrap();
-    replan_fails(d, b"work_order,status\n", &[], &["summary.json", "frobnicate"]);
+    std::fs::write(
+        &p,
+        text.replacen(
+            "\"settings\": {",
+            "\"settings\": {\n    \"frobnicate\": 1,",
+            1,
+        ),
+    )
+    .unwrap();
+    replan_fails(
+        d,
+        b"work_order,status\n",
+        &[],
+        &["summary.json", "frobnicate"],
+    );
 });
 
 case!(replan_into_the_previous_folder, |d| {
     let r1 = first(d);
     let f = file(d, "back.csv", b"work_order,status\n");
-    let args: Vec<String> = ["replan".into(), s(&r1), "--finished".into(), s(&f), "--out".into(), s(&r1), "--force".into()].into();
+    let args: Vec<String> = [
+        "replan".into(),
+        s(&r1),
+        "--finished".into(),
+        s(&f),
+        "--out".into(),
+        s(&r1),
+        "--force".into(),
+    ]
+    .into();
     fails_with(d, &r1, &args, &["r1"]);
 });

@@ -44,7 +44,10 @@ fn work_orders(out: &Path) -> (Vec<String>, Vec<BTreeMap<String, String>>) {
         .records()
         .map(|rec| {
             let rec = rec.unwrap();
-            h.iter().cloned().zip(rec.iter().map(|c| csv_text(c).to_string())).collect()
+            h.iter()
+                .cloned()
+                .zip(rec.iter().map(|c| csv_text(c).to_string()))
+                .collect()
         })
         .filter(|m: &BTreeMap<String, String>| m["purpose"] == "plan")
         .collect();
@@ -68,7 +71,13 @@ fn sheet(path: &Path, prev: &Path, sep: u8, bom: bool, status: impl Fn(usize) ->
         for (i, r) in rows.iter().enumerate() {
             let cells: Vec<&str> = h
                 .iter()
-                .map(|c| if c == "status" { status(i) } else { r[c].as_str() })
+                .map(|c| {
+                    if c == "status" {
+                        status(i)
+                    } else {
+                        r[c].as_str()
+                    }
+                })
                 .collect();
             w.write_record(&cells).unwrap();
         }
@@ -88,7 +97,12 @@ fn repairs(out: &Path) -> BTreeMap<String, f64> {
         .iter()
         .map(|f| &f["properties"])
         .filter(|p| p["repair"] == true)
-        .map(|p| (p["work_order"].as_str().unwrap().to_string(), p["cost"].as_f64().unwrap()))
+        .map(|p| {
+            (
+                p["work_order"].as_str().unwrap().to_string(),
+                p["cost"].as_f64().unwrap(),
+            )
+        })
         .collect()
 }
 
@@ -110,10 +124,27 @@ fn finished_work_lowers_the_cost_by_at_least_what_was_finished() {
         let d = district();
         first_plan(d.path(), whole);
         let done = |i: usize| i % 2 == 0;
-        sheet(&d.path().join("back.csv"), &d.path().join("r1"), b',', false, |i| {
-            if done(i) { "done" } else { "" }
-        });
-        ok(at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r2", "-q"]));
+        sheet(
+            &d.path().join("back.csv"),
+            &d.path().join("r1"),
+            b',',
+            false,
+            |i| {
+                if done(i) { "done" } else { "" }
+            },
+        );
+        ok(at(
+            d.path(),
+            &[
+                "replan",
+                "r1",
+                "--finished",
+                "back.csv",
+                "--out",
+                "r2",
+                "-q",
+            ],
+        ));
         let (old, new) = (summary(&d.path().join("r1")), summary(&d.path().join("r2")));
         let fin = finished_m(&d.path().join("r1"), done);
         assert!(fin > 0.0);
@@ -124,7 +155,11 @@ fn finished_work_lowers_the_cost_by_at_least_what_was_finished() {
         let (_, rows) = work_orders(&d.path().join("r1"));
         let now = repairs(&d.path().join("r2"));
         for (i, r) in rows.iter().enumerate() {
-            assert!(!done(i) || !now.contains_key(&r["work_order"]), "{}", r["work_order"]);
+            assert!(
+                !done(i) || !now.contains_key(&r["work_order"]),
+                "{}",
+                r["work_order"]
+            );
         }
         let h = new["history"].as_array().unwrap();
         assert_eq!(h.len(), 2);
@@ -144,13 +179,30 @@ fn started_repair_is_kept_and_a_semicolon_sheet_with_a_bom_is_read() {
     let r1 = d.path().join("r1");
     let (_, rows) = work_orders(&r1);
     let last = rows.len() - 1;
-    sheet(&d.path().join("back.csv"), &r1, b';', true, move |i| match i {
-        0 => "Yes",
-        1 => "x",
-        i if i == last => "started",
-        _ => "",
-    });
-    ok(at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r2", "-q"]));
+    sheet(
+        &d.path().join("back.csv"),
+        &r1,
+        b';',
+        true,
+        move |i| match i {
+            0 => "Yes",
+            1 => "x",
+            i if i == last => "started",
+            _ => "",
+        },
+    );
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
     let s = summary(&d.path().join("r2"));
     assert_eq!(s["replan"]["finished_repairs"], 2);
     let started = &rows[last]["work_order"];
@@ -159,7 +211,12 @@ fn started_repair_is_kept_and_a_semicolon_sheet_with_a_bom_is_read() {
     let cost: f64 = rows[last]["cost"].parse().unwrap();
     assert_eq!(now.get(started), Some(&cost), "started repair at full cost");
     let changes = read_json(&d.path().join("r2/changes.geojson"));
-    let kept = changes["features"].as_array().unwrap().iter().find(|f| &f["properties"]["work_order"] == started).unwrap();
+    let kept = changes["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| &f["properties"]["work_order"] == started)
+        .unwrap();
     assert_eq!(kept["properties"]["change"], "repair_kept");
     assert_eq!(kept["properties"]["started"], true);
 }
@@ -185,17 +242,60 @@ fn a_road_newly_closed_is_left_out_and_listed() {
     first_plan(d.path(), false);
     let r1 = d.path().join("r1");
     let plan = read_json(&r1.join("plan.geojson"));
-    let victim = plan["features"].as_array().unwrap().iter().find(|f| f["properties"]["repair"] == true && f["geometry"]["coordinates"].as_array().unwrap().len() > 2).unwrap().clone();
-    let key = victim["properties"]["work_order"].as_str().unwrap().to_string();
-    write_collection(d.path(), "new-points.geojson", &[point(middle(&victim), r#"{"damage":"closed"}"#)]);
+    let victim = plan["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| {
+            f["properties"]["repair"] == true
+                && f["geometry"]["coordinates"].as_array().unwrap().len() > 2
+        })
+        .unwrap()
+        .clone();
+    let key = victim["properties"]["work_order"]
+        .as_str()
+        .unwrap()
+        .to_string();
+    write_collection(
+        d.path(),
+        "new-points.geojson",
+        &[point(middle(&victim), r#"{"damage":"closed"}"#)],
+    );
     sheet(&d.path().join("back.csv"), &r1, b',', false, |_| "");
-    ok(at(d.path(), &["replan", "r1", "--finished", "back.csv", "--damage-points", "new-points.geojson", "--out", "r2", "-q"]));
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--damage-points",
+            "new-points.geojson",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
     let r2 = d.path().join("r2");
-    let in_plan = read_json(&r2.join("plan.geojson"))["features"].as_array().unwrap().iter().any(|f| f["properties"]["work_order"] == key.as_str());
+    let in_plan = read_json(&r2.join("plan.geojson"))["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|f| f["properties"]["work_order"] == key.as_str());
     assert!(!in_plan, "{key} is closed but still planned");
     let changes = read_json(&r2.join("changes.geojson"));
-    let listed: Vec<&Value> = changes["features"].as_array().unwrap().iter().filter(|f| f["properties"]["change"] == "road_newly_closed").collect();
-    assert!(listed.iter().any(|f| f["properties"]["work_order"] == key.as_str()), "{changes}");
+    let listed: Vec<&Value> = changes["features"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|f| f["properties"]["change"] == "road_newly_closed")
+        .collect();
+    assert!(
+        listed
+            .iter()
+            .any(|f| f["properties"]["work_order"] == key.as_str()),
+        "{changes}"
+    );
     assert_eq!(summary(&r2)["damage_reports"]["read"], 1);
 }
 
@@ -205,24 +305,71 @@ fn a_road_newly_closed_is_left_out_and_listed() {
 fn a_replan_of_a_replan_continues_the_history() {
     let d = district();
     first_plan(d.path(), false);
-    sheet(&d.path().join("b1.csv"), &d.path().join("r1"), b',', false, |i| if i == 0 { "done" } else { "" });
-    ok(at(d.path(), &["replan", "r1", "--finished", "b1.csv", "--out", "r2", "--label", "day 2", "-q"]));
-    sheet(&d.path().join("b2.csv"), &d.path().join("r2"), b'\t', false, |i| if i < 2 { "DONE" } else { "" });
+    sheet(
+        &d.path().join("b1.csv"),
+        &d.path().join("r1"),
+        b',',
+        false,
+        |i| if i == 0 { "done" } else { "" },
+    );
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "b1.csv",
+            "--out",
+            "r2",
+            "--label",
+            "day 2",
+            "-q",
+        ],
+    ));
+    sheet(
+        &d.path().join("b2.csv"),
+        &d.path().join("r2"),
+        b'\t',
+        false,
+        |i| if i < 2 { "DONE" } else { "" },
+    );
     let sub = d.path().join("elsewhere");
     std::fs::create_dir(&sub).unwrap();
-    ok(at(&sub, &["replan", "../r2", "--finished", "../b2.csv", "--out", "../r3", "-q"]));
+    ok(at(
+        &sub,
+        &[
+            "replan",
+            "../r2",
+            "--finished",
+            "../b2.csv",
+            "--out",
+            "../r3",
+            "-q",
+        ],
+    ));
     let s = summary(&d.path().join("r3"));
     // The repair finished in round 2 stays finished in round 3.
     let (_, rows) = work_orders(&d.path().join("r1"));
     assert!(!repairs(&d.path().join("r3")).contains_key(&rows[0]["work_order"]));
     assert_eq!(s["replan"]["finished_to_date"].as_array().unwrap().len(), 3);
     let h = s["history"].as_array().unwrap();
-    assert_eq!(h.iter().map(|r| r["round"].as_u64().unwrap()).collect::<Vec<_>>(), [1, 2, 3]);
+    assert_eq!(
+        h.iter()
+            .map(|r| r["round"].as_u64().unwrap())
+            .collect::<Vec<_>>(),
+        [1, 2, 3]
+    );
     assert_eq!(h[1]["label"], "day 2");
     assert_eq!(h[2]["label"], Value::Null);
-    let sum = h[1]["finished_repair_m"].as_f64().unwrap() + h[2]["finished_repair_m"].as_f64().unwrap();
+    let sum =
+        h[1]["finished_repair_m"].as_f64().unwrap() + h[2]["finished_repair_m"].as_f64().unwrap();
     assert!((h[2]["finished_to_date_m"].as_f64().unwrap() - sum).abs() < 1e-6);
-    assert!(h[2]["remaining_repair_m"].as_f64().unwrap() <= h[1]["remaining_repair_m"].as_f64().unwrap() - h[2]["finished_repair_m"].as_f64().unwrap() + 1e-6);
+    assert!(
+        h[2]["remaining_repair_m"].as_f64().unwrap()
+            <= h[1]["remaining_repair_m"].as_f64().unwrap()
+                - h[2]["finished_repair_m"].as_f64().unwrap()
+                + 1e-6
+    );
 }
 
 /// Every file of a folder with its SHA-256 (FIPS 180-4, through the sha2 crate).
@@ -243,15 +390,55 @@ fn the_previous_folder_is_left_as_it_was_and_outputs_are_deterministic() {
     let d = district();
     first_plan(d.path(), false);
     let r1 = d.path().join("r1");
-    sheet(&d.path().join("back.csv"), &r1, b',', false, |i| if i % 3 == 0 { "done" } else if i == 1 { "started" } else { "" });
+    sheet(&d.path().join("back.csv"), &r1, b',', false, |i| {
+        if i % 3 == 0 {
+            "done"
+        } else if i == 1 {
+            "started"
+        } else {
+            ""
+        }
+    });
     let before = hashes(&r1);
-    let o = at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r1", "--force", "-q"]);
-    assert!(!o.status.success(), "writing over the previous folder was accepted");
+    let o = at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--out",
+            "r1",
+            "--force",
+            "-q",
+        ],
+    );
+    assert!(
+        !o.status.success(),
+        "writing over the previous folder was accepted"
+    );
     let mut runs = Vec::new();
     for threads in ["1", "2"] {
-        let o = reknit().current_dir(d.path()).env("RAYON_NUM_THREADS", threads).args(["replan", "r1", "--finished", "back.csv", "--out", "r2", "-q"]).output().unwrap();
+        let o = reknit()
+            .current_dir(d.path())
+            .env("RAYON_NUM_THREADS", threads)
+            .args([
+                "replan",
+                "r1",
+                "--finished",
+                "back.csv",
+                "--out",
+                "r2",
+                "-q",
+            ])
+            .output()
+            .unwrap();
         ok(o);
-        runs.push(hashes(&d.path().join("r2")).into_values().collect::<Vec<_>>());
+        runs.push(
+            hashes(&d.path().join("r2"))
+                .into_values()
+                .collect::<Vec<_>>(),
+        );
         std::fs::remove_dir_all(d.path().join("r2")).unwrap();
     }
     assert_eq!(runs[0], runs[1]);
@@ -263,15 +450,27 @@ fn the_previous_folder_is_left_as_it_was_and_outputs_are_deterministic() {
 fn a_bad_status_names_its_line() {
     let d = district();
     first_plan(d.path(), false);
-    sheet(&d.path().join("back.csv"), &d.path().join("r1"), b',', false, |i| match i {
-        0 => "done",
-        1 => "half done",
-        _ => "",
-    });
-    let o = at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r2"]);
+    sheet(
+        &d.path().join("back.csv"),
+        &d.path().join("r1"),
+        b',',
+        false,
+        |i| match i {
+            0 => "done",
+            1 => "half done",
+            _ => "",
+        },
+    );
+    let o = at(
+        d.path(),
+        &["replan", "r1", "--finished", "back.csv", "--out", "r2"],
+    );
     assert!(!o.status.success());
     let e = stderr(&o);
-    assert!(e.contains("back.csv") && e.contains("line 3") && e.contains("half done"), "{e}");
+    assert!(
+        e.contains("back.csv") && e.contains("line 3") && e.contains("half done"),
+        "{e}"
+    );
     assert!(!d.path().join("r2").exists());
 }
 
@@ -281,17 +480,53 @@ fn a_bad_status_names_its_line() {
 fn a_changed_input_is_asked_for_anew() {
     let d = district();
     first_plan(d.path(), false);
-    sheet(&d.path().join("back.csv"), &d.path().join("r1"), b',', false, |i| if i == 0 { "done" } else { "" });
-    std::fs::rename(d.path().join("roads.geojson"), d.path().join("roads-kept.geojson")).unwrap();
-    let o = at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r2"]);
+    sheet(
+        &d.path().join("back.csv"),
+        &d.path().join("r1"),
+        b',',
+        false,
+        |i| if i == 0 { "done" } else { "" },
+    );
+    std::fs::rename(
+        d.path().join("roads.geojson"),
+        d.path().join("roads-kept.geojson"),
+    )
+    .unwrap();
+    let o = at(
+        d.path(),
+        &["replan", "r1", "--finished", "back.csv", "--out", "r2"],
+    );
     assert!(!o.status.success());
     let e = stderr(&o);
     assert!(e.contains("roads") && e.contains("--roads"), "{e}");
     let text = std::fs::read_to_string(d.path().join("roads-kept.geojson")).unwrap();
-    std::fs::write(d.path().join("roads.geojson"), text.replacen("RD-0001", "RD-0001", 1) + " ").unwrap();
-    let o = at(d.path(), &["replan", "r1", "--finished", "back.csv", "--out", "r2"]);
-    assert!(!o.status.success(), "a file whose SHA-256 differs was taken");
-    ok(at(d.path(), &["replan", "r1", "--finished", "back.csv", "--roads", "roads-kept.geojson", "--out", "r2", "-q"]));
+    std::fs::write(
+        d.path().join("roads.geojson"),
+        text.replacen("RD-0001", "RD-0001", 1) + " ",
+    )
+    .unwrap();
+    let o = at(
+        d.path(),
+        &["replan", "r1", "--finished", "back.csv", "--out", "r2"],
+    );
+    assert!(
+        !o.status.success(),
+        "a file whose SHA-256 differs was taken"
+    );
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--roads",
+            "roads-kept.geojson",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
     let s = summary(&d.path().join("r2"));
     assert_eq!(s["replan"]["keys_matching_nothing"], serde_json::json!([]));
     assert_eq!(s["replan"]["finished_repairs"], 1);

@@ -314,7 +314,10 @@ fn rounds<W: Write>(w: &mut W, s: &Summary) -> io::Result<()> {
             fixed(h.remaining_repair_m, 3)
         )?;
     }
-    writeln!(w, "</table><p>Changes against the previous plan (changes.geojson):</p><ul>")?;
+    writeln!(
+        w,
+        "</table><p>Changes against the previous plan (changes.geojson):</p><ul>"
+    )?;
     for (code, n) in &r.changes {
         writeln!(w, "<li>{}: {n}</li>", esc(&code.replace('_', " ")))?;
     }

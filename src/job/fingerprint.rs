@@ -38,7 +38,11 @@ pub fn role_rank(role: &str) -> u8 {
 pub fn job_inputs(job: &PlanJob) -> Vec<(&'static str, Source)> {
     let mut v = vec![("roads", job.roads.clone())];
     v.extend(job.zones.clone().map(|s| ("damage zones", s)));
-    v.extend(job.earlier_reports.iter().map(|s| ("damage reports", s.clone())));
+    v.extend(
+        job.earlier_reports
+            .iter()
+            .map(|s| ("damage reports", s.clone())),
+    );
     v.extend(job.reports.clone().map(|s| ("damage reports", s)));
     v.extend(job.sites.clone().map(|s| ("sites", s)));
     v.extend(

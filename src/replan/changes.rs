@@ -81,10 +81,30 @@ pub struct Changes<'a> {
 }
 
 /// Compares the new plan (`plan`, its edges) with the previous one carried over.
-pub fn find<'a>(net: &Network, plan: &[u32], c: &'a Carried, sites: Option<SitesNow<'a>>, before: &BTreeMap<String, bool>) -> Changes<'a> {
-    let repairs: Vec<u32> = plan.iter().copied().filter(|&e| net.edges[e as usize].cost > 0).collect();
-    let closed: Vec<u32> = c.old_plan.iter().copied().filter(|&e| !net.edges[e as usize].usable()).collect();
-    let mut all: Vec<u32> = repairs.iter().chain(&c.old_repairs).chain(&closed).copied().collect();
+pub fn find<'a>(
+    net: &Network,
+    plan: &[u32],
+    c: &'a Carried,
+    sites: Option<SitesNow<'a>>,
+    before: &BTreeMap<String, bool>,
+) -> Changes<'a> {
+    let repairs: Vec<u32> = plan
+        .iter()
+        .copied()
+        .filter(|&e| net.edges[e as usize].cost > 0)
+        .collect();
+    let closed: Vec<u32> = c
+        .old_plan
+        .iter()
+        .copied()
+        .filter(|&e| !net.edges[e as usize].usable())
+        .collect();
+    let mut all: Vec<u32> = repairs
+        .iter()
+        .chain(&c.old_repairs)
+        .chain(&closed)
+        .copied()
+        .collect();
     all.sort_unstable();
     all.dedup();
     let has = |v: &[u32], e: u32| v.binary_search(&e).is_ok();
@@ -110,18 +130,37 @@ pub fn find<'a>(net: &Network, plan: &[u32], c: &'a Carried, sites: Option<Sites
             }
         }
     }
-    Changes { rows, started: &c.started, sites }
+    Changes {
+        rows,
+        started: &c.started,
+        sites,
+    }
 }
 
 impl Changes<'_> {
     /// How many changes of each kind, by code (every code listed, 0 included).
     pub fn counts(&self) -> BTreeMap<&'static str, usize> {
-        let all = [Kind::RepairAdded, Kind::RepairDropped, Kind::RepairKept, Kind::RoadNewlyClosed, Kind::SiteNewlyJoined, Kind::SiteNewlyCutOff];
-        all.into_iter().map(|k| (k.code(), self.rows.iter().filter(|(r, _)| *r == k).count())).collect()
+        let all = [
+            Kind::RepairAdded,
+            Kind::RepairDropped,
+            Kind::RepairKept,
+            Kind::RoadNewlyClosed,
+            Kind::SiteNewlyJoined,
+            Kind::SiteNewlyCutOff,
+        ];
+        all.into_iter()
+            .map(|k| (k.code(), self.rows.iter().filter(|(r, _)| *r == k).count()))
+            .collect()
     }
 
     /// Writes the layer: a LineString per road change, a Point per site change.
-    pub fn write<W: std::io::Write>(&self, w: W, net: &Network, ids: &WorkOrderIds, attribution: Option<&str>) -> std::io::Result<()> {
+    pub fn write<W: std::io::Write>(
+        &self,
+        w: W,
+        net: &Network,
+        ids: &WorkOrderIds,
+        attribution: Option<&str>,
+    ) -> std::io::Result<()> {
         let mut gj = GeoJsonWriter::layer(w, attribution)?;
         for &(kind, target) in &self.rows {
             match target {
@@ -140,7 +179,10 @@ impl Changes<'_> {
                         ("site_id", Prop::Null),
                         ("length_m", Prop::Fixed3(edge.length_m)),
                         ("cost", cost),
-                        ("started", Prop::Bool(self.started.binary_search(&e).is_ok())),
+                        (
+                            "started",
+                            Prop::Bool(self.started.binary_search(&e).is_ok()),
+                        ),
                     ];
                     gj.line(&props, net.edge_geometry(e as usize))?;
                 }

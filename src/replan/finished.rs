@@ -70,8 +70,17 @@ pub fn read(path: &Path, text: &str) -> Result<Vec<Row>, ReplanError> {
         .flexible(true)
         .from_reader(text.as_bytes());
     let mut rows: Vec<Row> = Vec::new();
-    // Lines counted from byte offsets (a quoted cell may span lines; the header is line 1).
-    let line_at = |byte: u64| text.as_bytes()[..byte as usize].iter().filter(|&&b| b == b'\n').count() + 1;
+    // Lines counted from byte offsets (a quoted cell may span lines; the header is line 1). After
+    // a CRLF line end the reader stops past the CR: a record's offset may point at the LF before
+    // it, so line ends at the offset are skipped first.
+    let line_at = |byte: u64| {
+        let b = text.as_bytes();
+        let mut at = (byte as usize).min(b.len());
+        while at < b.len() && (b[at] == b'\n' || b[at] == b'\r') {
+            at += 1;
+        }
+        b[..at].iter().filter(|&&c| c == b'\n').count() + 1
+    };
     for rec in r.records() {
         let rec = rec.map_err(|e| {
             let line = e.position().map_or(0, |p| line_at(p.byte()));
@@ -97,7 +106,11 @@ pub fn read(path: &Path, text: &str) -> Result<Vec<Row>, ReplanError> {
             }
         };
         if key.is_empty() {
-            return Err(bad(path, line, "the status is set but `work_order` is empty".into()));
+            return Err(bad(
+                path,
+                line,
+                "the status is set but `work_order` is empty".into(),
+            ));
         }
         if let Some(before) = rows.iter().find(|r| r.work_order == key) {
             if before.done != done {
@@ -127,7 +140,7 @@ mod tests {
 
     #[test]
     fn semicolons_byte_order_mark_and_prefix_are_read() {
-        let t = "\u{feff}order;work_order;status\n1;'-WO-a-0-5;Done\n2;WO-b-0-3;\n3;WO-c-0-9; started \n";
+        let t = "\u{feff}order;work_order;status\r\n1;'-WO-a-0-5;Done\r\n2;WO-b-0-3;\r\n3;WO-c-0-9; started \r\n";
         let rows = read(Path::new("w.csv"), t).unwrap();
         assert_eq!(rows.len(), 2);
         assert_eq!(rows[0].work_order, "-WO-a-0-5");
@@ -146,8 +159,15 @@ mod tests {
 
     #[test]
     fn an_unknown_status_names_its_line() {
-        let e = read(Path::new("w.csv"), "work_order,status\nWO-a,done\nWO-b,half\n").unwrap_err();
+        let e = read(
+            Path::new("w.csv"),
+            "work_order,status\nWO-a,done\nWO-b,half\n",
+        )
+        .unwrap_err();
         let m = e.to_string();
-        assert!(m.contains("w.csv") && m.contains("line 3") && m.contains("half"), "{m}");
+        assert!(
+            m.contains("w.csv") && m.contains("line 3") && m.contains("half"),
+            "{m}"
+        );
     }
 }

@@ -31,7 +31,12 @@ pub fn first(total_cost_m: f64) -> Vec<Round> {
 }
 
 /// The history of a re-plan: the previous rounds and this one.
-pub fn next(before: &[Round], label: Option<&str>, finished_m: f64, remaining_m: f64) -> Vec<Round> {
+pub fn next(
+    before: &[Round],
+    label: Option<&str>,
+    finished_m: f64,
+    remaining_m: f64,
+) -> Vec<Round> {
     let last = before.last();
     let mut out = before.to_vec();
     out.push(Round {

@@ -72,7 +72,9 @@ fn broken(path: &Path, message: impl Into<String>) -> ReplanError {
     }
 }
 
-fn layer(path: &Path) -> Result<Option<Vec<serde_json::Map<String, serde_json::Value>>>, ReplanError> {
+fn layer(
+    path: &Path,
+) -> Result<Option<Vec<serde_json::Map<String, serde_json::Value>>>, ReplanError> {
     if !path.exists() {
         return Ok(None);
     }
@@ -87,7 +89,10 @@ fn pieces(path: &Path, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
     let Some(features) = layer(path)? else {
         return match backup {
             true => Ok(Vec::new()),
-            false => Err(broken(path, "missing: give the folder of a plan reknit wrote")),
+            false => Err(broken(
+                path,
+                "missing: give the folder of a plan reknit wrote",
+            )),
         };
     };
     features
@@ -96,10 +101,21 @@ fn pieces(path: &Path, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
         .map(|(i, p)| {
             let key = p.get("work_order").and_then(|v| v.as_str());
             let cost = p.get("cost").and_then(|v| v.as_f64());
-            let repair = if backup { Some(true) } else { p.get("repair").and_then(|v| v.as_bool()) };
+            let repair = if backup {
+                Some(true)
+            } else {
+                p.get("repair").and_then(|v| v.as_bool())
+            };
             match (key, cost, repair) {
-                (Some(k), Some(c), Some(r)) => Ok(OldPiece { key: k.to_string(), repair: r, cost_m: c }),
-                _ => Err(broken(path, format!("feature {i}: no `work_order`, `cost` or `repair`"))),
+                (Some(k), Some(c), Some(r)) => Ok(OldPiece {
+                    key: k.to_string(),
+                    repair: r,
+                    cost_m: c,
+                }),
+                _ => Err(broken(
+                    path,
+                    format!("feature {i}: no `work_order`, `cost` or `repair`"),
+                )),
             }
         })
         .collect()
@@ -109,29 +125,53 @@ fn pieces(path: &Path, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
 /// the file.
 pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
     let sp = dir.join("summary.json");
-    let text = crate::ingest::limits::read_small_text(&sp)
-        .map_err(|e| broken(&sp, format!("cannot read ({e}): give the folder of a plan reknit wrote")))?;
-    let v: serde_json::Value = serde_json::from_str(&text).map_err(|e| broken(&sp, e.to_string()))?;
+    let text = crate::ingest::limits::read_small_text(&sp).map_err(|e| {
+        broken(
+            &sp,
+            format!("cannot read ({e}): give the folder of a plan reknit wrote"),
+        )
+    })?;
+    let v: serde_json::Value =
+        serde_json::from_str(&text).map_err(|e| broken(&sp, e.to_string()))?;
     if v.pointer("/tool/name").and_then(|n| n.as_str()) != Some("reknit") {
-        return Err(broken(&sp, "not a summary reknit wrote (no tool.name \"reknit\")"));
+        return Err(broken(
+            &sp,
+            "not a summary reknit wrote (no tool.name \"reknit\")",
+        ));
     }
     let field = |k: &str| v.get(k).cloned().unwrap_or(serde_json::Value::Null);
-    let settings = field("settings").as_object().cloned().ok_or_else(|| broken(&sp, "no `settings`"))?;
-    let inputs: Vec<RecordedInput> =
-        serde_json::from_value(field("inputs")).map_err(|e| broken(&sp, format!("`inputs`: {e}")))?;
-    let total = field("total_cost").as_f64().ok_or_else(|| broken(&sp, "no `total_cost`"))?;
+    let settings = field("settings")
+        .as_object()
+        .cloned()
+        .ok_or_else(|| broken(&sp, "no `settings`"))?;
+    let inputs: Vec<RecordedInput> = serde_json::from_value(field("inputs"))
+        .map_err(|e| broken(&sp, format!("`inputs`: {e}")))?;
+    let total = field("total_cost")
+        .as_f64()
+        .ok_or_else(|| broken(&sp, "no `total_cost`"))?;
     let history = match field("history") {
         serde_json::Value::Null => history::first(total),
         h => serde_json::from_value(h).map_err(|e| broken(&sp, format!("`history`: {e}")))?,
     };
     let mut sites = BTreeMap::new();
     let sites_path = dir.join("sites.geojson");
-    for (i, p) in layer(&sites_path)?.unwrap_or_default().into_iter().enumerate() {
+    for (i, p) in layer(&sites_path)?
+        .unwrap_or_default()
+        .into_iter()
+        .enumerate()
+    {
         let id = p.get("site_id").and_then(|v| v.as_str());
-        let joined = JOINED_FIELDS.iter().find_map(|f| p.get(*f).and_then(|v| v.as_bool()));
+        let joined = JOINED_FIELDS
+            .iter()
+            .find_map(|f| p.get(*f).and_then(|v| v.as_bool()));
         match (id, joined) {
             (Some(id), Some(j)) => sites.insert(id.to_string(), j),
-            _ => return Err(broken(&sites_path, format!("feature {i}: no `site_id` or joined flag"))),
+            _ => {
+                return Err(broken(
+                    &sites_path,
+                    format!("feature {i}: no `site_id` or joined flag"),
+                ));
+            }
         };
     }
     Ok(Previous {
@@ -139,7 +179,10 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
         settings,
         inputs,
         output_folder: field("output_folder").as_str().map(str::to_string),
-        fingerprint: field("fingerprint").as_str().unwrap_or_default().to_string(),
+        fingerprint: field("fingerprint")
+            .as_str()
+            .unwrap_or_default()
+            .to_string(),
         history,
         plan: pieces(&dir.join("plan.geojson"), false)?,
         backup: pieces(&dir.join("backup.geojson"), true)?,

@@ -28,16 +28,25 @@ fn text(v: &Value) -> Result<Option<String>, String> {
 fn num(v: &Value) -> Result<Option<f64>, String> {
     match v {
         Value::Null => Ok(None),
-        _ => v.as_f64().map(Some).ok_or_else(|| format!("{v} is not a number")),
+        _ => v
+            .as_f64()
+            .map(Some)
+            .ok_or_else(|| format!("{v} is not a number")),
     }
 }
 fn flag(v: &Value) -> Result<bool, String> {
-    v.as_bool().ok_or_else(|| format!("{v} is not true or false"))
+    v.as_bool()
+        .ok_or_else(|| format!("{v} is not true or false"))
 }
 fn named<T: Copy>(v: &Value, all: &[T], name: fn(T) -> &'static str) -> Result<Option<T>, String> {
     match text(v)? {
         None => Ok(None),
-        Some(t) => all.iter().copied().find(|&a| name(a) == t).map(Some).ok_or_else(|| format!("\"{t}\" is not known")),
+        Some(t) => all
+            .iter()
+            .copied()
+            .find(|&a| name(a) == t)
+            .map(Some)
+            .ok_or_else(|| format!("\"{t}\" is not known")),
     }
 }
 
@@ -68,7 +77,11 @@ pub const SETTINGS: &[(&str, Set)] = &[
         Ok(())
     }),
     ("mst", |o, v| {
-        o.mst = named(v, &[MstAlgorithm::Kruskal, MstAlgorithm::Prim], MstAlgorithm::name)?;
+        o.mst = named(
+            v,
+            &[MstAlgorithm::Kruskal, MstAlgorithm::Prim],
+            MstAlgorithm::name,
+        )?;
         Ok(())
     }),
     ("max_attach_m", |o, v| {
@@ -84,7 +97,11 @@ pub const SETTINGS: &[(&str, Set)] = &[
         Ok(())
     }),
     ("effort", |o, v| {
-        o.effort = named(v, &[Effort::Quick, Effort::Normal, Effort::Thorough], Effort::name)?;
+        o.effort = named(
+            v,
+            &[Effort::Quick, Effort::Normal, Effort::Thorough],
+            Effort::name,
+        )?;
         Ok(())
     }),
     ("site_id_field", |o, v| {
@@ -184,7 +201,9 @@ pub const INPUTS: &[(&str, Option<&str>)] = &[
 pub fn settings(prev: &Previous, o: &mut Options) -> Result<(), ReplanError> {
     for (key, v) in &prev.settings {
         let Some((_, set)) = SETTINGS.iter().find(|(k, _)| k == key) else {
-            return Err(prev.broken(format!("setting `{key}` is not known to this version of reknit")));
+            return Err(prev.broken(format!(
+                "setting `{key}` is not known to this version of reknit"
+            )));
         };
         set(o, v).map_err(|m| prev.broken(format!("setting `{key}`: {m}")))?;
     }
@@ -217,7 +236,9 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
     let p = Path::new(&rec.path);
     let mut tried = Vec::new();
     let start = started_from(prev);
-    let here = std::env::current_dir().ok().and_then(|d| std::fs::canonicalize(d).ok());
+    let here = std::env::current_dir()
+        .ok()
+        .and_then(|d| std::fs::canonicalize(d).ok());
     for base in [start.clone(), Some(prev.dir.clone())].iter().flatten() {
         let cand = base.join(p);
         if tried.contains(&cand) {
@@ -236,7 +257,10 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
         }
         tried.push(cand);
     }
-    let flag = INPUTS.iter().find(|(r, _)| *r == rec.role).and_then(|(_, f)| *f);
+    let flag = INPUTS
+        .iter()
+        .find(|(r, _)| *r == rec.role)
+        .and_then(|(_, f)| *f);
     let ask = match flag {
         Some(f) => format!("give it anew with {f}"),
         None => format!("put the file recorded back at {}", rec.path),
@@ -245,7 +269,10 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
     Err(ReplanError::Input {
         role: rec.role.clone(),
         path: rec.path.clone(),
-        message: format!("missing or changed since the previous plan (looked at {}): {ask}", looked.join(", ")),
+        message: format!(
+            "missing or changed since the previous plan (looked at {}): {ask}",
+            looked.join(", ")
+        ),
     })
 }
 
@@ -256,7 +283,10 @@ mod tests {
     /// Every setting a run records has a row in the table, and every row is a recorded setting.
     #[test]
     fn every_recorded_setting_has_one_row() {
-        let src = Source::Memory { name: "r.geojson".into(), bytes: std::sync::Arc::from(&b""[..]) };
+        let src = Source::Memory {
+            name: "r.geojson".into(),
+            bytes: std::sync::Arc::from(&b""[..]),
+        };
         let job = crate::job::build(&Options::new(src, "out".into())).unwrap();
         let rec = crate::job::settings_json(&job);
         let recorded: Vec<&String> = rec.as_object().unwrap().keys().collect();
@@ -264,7 +294,10 @@ mod tests {
             assert!(SETTINGS.iter().any(|(r, _)| r == k), "no row for `{k}`");
         }
         for (r, _) in SETTINGS {
-            assert!(recorded.iter().any(|k| k == r), "row `{r}` is not a recorded setting");
+            assert!(
+                recorded.iter().any(|k| k == r),
+                "row `{r}` is not a recorded setting"
+            );
         }
         // And a recorded set of settings turns back into options that record the same.
         let mut o = Options::new(job.roads.clone(), "out".into());
@@ -272,6 +305,9 @@ mod tests {
             let (_, set) = SETTINGS.iter().find(|(r, _)| r == k).unwrap();
             set(&mut o, v).unwrap();
         }
-        assert_eq!(crate::job::settings_json(&crate::job::build(&o).unwrap()), rec);
+        assert_eq!(
+            crate::job::settings_json(&crate::job::build(&o).unwrap()),
+            rec
+        );
     }
 }

@@ -27,9 +27,17 @@ pub fn solving_graph(g: &EdgeList, c: &Carried) -> EdgeList {
 
 /// Junctions a sites plan must also reach: one end of each started repair whose part of the
 /// network holds an attached site (elsewhere there is nothing for it to serve).
-pub fn extra_terminals(g: &EdgeList, comps: &Components, junctions: &[Option<u32>], c: &Carried) -> Vec<u32> {
-    let with_site: std::collections::BTreeSet<u32> =
-        junctions.iter().flatten().map(|&j| comps.of[j as usize]).collect();
+pub fn extra_terminals(
+    g: &EdgeList,
+    comps: &Components,
+    junctions: &[Option<u32>],
+    c: &Carried,
+) -> Vec<u32> {
+    let with_site: std::collections::BTreeSet<u32> = junctions
+        .iter()
+        .flatten()
+        .map(|&j| comps.of[j as usize])
+        .collect();
     c.started
         .iter()
         .map(|&e| g.ends[e as usize][0])
@@ -40,7 +48,12 @@ pub fn extra_terminals(g: &EdgeList, comps: &Components, junctions: &[Option<u32
 /// `edges` with every started repair among `started` added; a cycle is broken at its costliest
 /// edge not started (Kruskal over the union, started repairs first).
 fn force(g: &EdgeList, edges: &[u32], started: &[u32]) -> Vec<u32> {
-    let mut all: Vec<u32> = edges.iter().chain(started).copied().filter(|&e| g.usable(e as usize)).collect();
+    let mut all: Vec<u32> = edges
+        .iter()
+        .chain(started)
+        .copied()
+        .filter(|&e| g.usable(e as usize))
+        .collect();
     all.sort_unstable();
     all.dedup();
     let is_started = |e: u32| started.binary_search(&e).is_ok();
@@ -73,7 +86,15 @@ fn joins_all(g: &EdgeList, edges: &[u32], other: &[u32]) -> bool {
 /// Settles a sites plan solved on [`solving_graph`] with [`extra_terminals`] appended to the sites'
 /// junctions: drops the extra sites from the groups, forces the started repairs in, tries the
 /// previous plan per group and counts costs on `g` (`n_sites` real sites).
-pub fn settle_sites(g: &EdgeList, solve: &EdgeList, comps: &Components, sp: &mut SitePlan, junctions: &[Option<u32>], n_sites: usize, c: &Carried) {
+pub fn settle_sites(
+    g: &EdgeList,
+    solve: &EdgeList,
+    comps: &Components,
+    sp: &mut SitePlan,
+    junctions: &[Option<u32>],
+    n_sites: usize,
+    c: &Carried,
+) {
     let mut need = vec![false; g.vertices];
     for &j in junctions.iter().flatten() {
         need[j as usize] = true;
@@ -83,7 +104,12 @@ pub fn settle_sites(g: &EdgeList, solve: &EdgeList, comps: &Components, sp: &mut
         need[a as usize] = true;
         need[b as usize] = true;
     }
-    let old: Vec<u32> = c.old_plan.iter().copied().filter(|&e| g.usable(e as usize)).collect();
+    let old: Vec<u32> = c
+        .old_plan
+        .iter()
+        .copied()
+        .filter(|&e| g.usable(e as usize))
+        .collect();
     for group in &mut sp.groups {
         group.sites.retain(|&i| i < n_sites);
         let comp = group.component;
@@ -91,7 +117,11 @@ pub fn settle_sites(g: &EdgeList, solve: &EdgeList, comps: &Components, sp: &mut
         let started: Vec<u32> = c.started.iter().copied().filter(inside).collect();
         let mut ours = force(solve, &group.tree.edges, &started);
         prune_leaves(solve, &mut ours, &need);
-        let mut theirs = force(solve, &old.iter().copied().filter(inside).collect::<Vec<_>>(), &started);
+        let mut theirs = force(
+            solve,
+            &old.iter().copied().filter(inside).collect::<Vec<_>>(),
+            &started,
+        );
         prune_leaves(solve, &mut theirs, &need);
         let terminals: Vec<u32> = group.sites.iter().filter_map(|&i| junctions[i]).collect();
         let spans = |edges: &[u32]| {
@@ -101,7 +131,9 @@ pub fn settle_sites(g: &EdgeList, solve: &EdgeList, comps: &Components, sp: &mut
             });
             let root = terminals.first().map(|&t| ds.find(t));
             terminals.iter().all(|&t| Some(ds.find(t)) == root)
-                && started.iter().all(|&e| Some(ds.find(g.ends[e as usize][0])) == root)
+                && started
+                    .iter()
+                    .all(|&e| Some(ds.find(g.ends[e as usize][0])) == root)
         };
         if spans(&theirs) && solve.total(&theirs) < solve.total(&ours) {
             ours = theirs;
@@ -112,7 +144,11 @@ pub fn settle_sites(g: &EdgeList, solve: &EdgeList, comps: &Components, sp: &mut
         group.tree.edges = ours;
     }
     sp.groups.retain(|gr| !gr.sites.is_empty());
-    sp.edges = sp.groups.iter().flat_map(|gr| gr.tree.edges.iter().copied()).collect();
+    sp.edges = sp
+        .groups
+        .iter()
+        .flat_map(|gr| gr.tree.edges.iter().copied())
+        .collect();
     sp.edges.sort_unstable();
     sp.edges.dedup();
     sp.cost = sp.groups.iter().map(|gr| gr.tree.cost).sum();

@@ -4,13 +4,13 @@
 use super::ingest::ReadRecord;
 use super::plan::Planned;
 use crate::export::guard::CheckedOut;
+use crate::export::summary::round3;
+use crate::export::work_order_id::WorkOrderIds;
 use crate::export::{self, Summary};
 use crate::ingest::source::Source;
 use crate::job::notes::Notes;
 use crate::job::{JobError, PlanJob, fingerprint, rows, summary};
 use crate::progress::Progress;
-use crate::export::summary::round3;
-use crate::export::work_order_id::WorkOrderIds;
 use crate::replan::{ReplanFigures, changes, history};
 
 /// Builds the summary, writes every output into `out`, and prints the notes.
