@@ -123,7 +123,7 @@ fn finished_work_lowers_the_cost_by_at_least_what_was_finished() {
     for whole in [false, true] {
         let d = district();
         first_plan(d.path(), whole);
-        let done = |i: usize| i % 2 == 0;
+        let done = |i: usize| i.is_multiple_of(2);
         sheet(
             &d.path().join("back.csv"),
             &d.path().join("r1"),
@@ -391,7 +391,7 @@ fn the_previous_folder_is_left_as_it_was_and_outputs_are_deterministic() {
     first_plan(d.path(), false);
     let r1 = d.path().join("r1");
     sheet(&d.path().join("back.csv"), &r1, b',', false, |i| {
-        if i % 3 == 0 {
+        if i.is_multiple_of(3) {
             "done"
         } else if i == 1 {
             "started"
@@ -500,11 +500,7 @@ fn a_changed_input_is_asked_for_anew() {
     let e = stderr(&o);
     assert!(e.contains("roads") && e.contains("--roads"), "{e}");
     let text = std::fs::read_to_string(d.path().join("roads-kept.geojson")).unwrap();
-    std::fs::write(
-        d.path().join("roads.geojson"),
-        text.replacen("RD-0001", "RD-0001", 1) + " ",
-    )
-    .unwrap();
+    std::fs::write(d.path().join("roads.geojson"), text + " ").unwrap();
     let o = at(
         d.path(),
         &["replan", "r1", "--finished", "back.csv", "--out", "r2"],
@@ -530,4 +526,79 @@ fn a_changed_input_is_asked_for_anew() {
     let s = summary(&d.path().join("r2"));
     assert_eq!(s["replan"]["keys_matching_nothing"], serde_json::json!([]));
     assert_eq!(s["replan"]["finished_repairs"], 1);
+}
+
+/// A road layer given anew is matched by work-order keys: the keys of a road taken out of it
+/// and a sheet line naming no work order of the previous plan are listed, never guessed.
+#[test]
+fn keys_that_match_nothing_are_listed() {
+    let d = district();
+    first_plan(d.path(), false);
+    let r1 = d.path().join("r1");
+    let (h, rows) = work_orders(&r1);
+    let gone = rows[0]["source_id"].clone();
+    // The sheet: the first row done, and one line with a key the previous plan never had.
+    sheet(&d.path().join("back.csv"), &r1, b',', false, |i| {
+        if i == 0 { "done" } else { "" }
+    });
+    let mut text = std::fs::read_to_string(d.path().join("back.csv")).unwrap();
+    let cells: Vec<&str> = h
+        .iter()
+        .map(|c| match c.as_str() {
+            "work_order" => "WO-NOWHERE-0-1",
+            "status" => "done",
+            _ => "",
+        })
+        .collect();
+    text.push_str(&cells.join(","));
+    text.push_str("\r\n");
+    std::fs::write(d.path().join("back.csv"), text).unwrap();
+    let line = rows.len() + 2;
+    // The new road layer: the sample without the first repair's road.
+    let mut roads = read_json(&d.path().join("roads.geojson"));
+    let fs = roads["features"].as_array_mut().unwrap();
+    let n = fs.len();
+    fs.retain(|f| {
+        f["properties"]["id"].as_str() != Some(gone.as_str())
+            && f["id"].as_str() != Some(gone.as_str())
+    });
+    assert_eq!(fs.len(), n - 1, "road {gone} not found in the sample");
+    std::fs::write(d.path().join("roads-2.geojson"), roads.to_string()).unwrap();
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--roads",
+            "roads-2.geojson",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
+    let s = summary(&d.path().join("r2"));
+    let rows_listed = &s["replan"]["rows_matching_nothing"];
+    assert_eq!(
+        rows_listed,
+        &serde_json::json!([{"line": line, "work_order": "WO-NOWHERE-0-1"}])
+    );
+    let keys: Vec<&str> = s["replan"]["keys_matching_nothing"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|k| k.as_str().unwrap())
+        .collect();
+    assert!(keys.contains(&rows[0]["work_order"].as_str()), "{keys:?}");
+    assert!(
+        keys.iter().all(|k| k.starts_with(&format!("WO-{gone}-"))),
+        "{keys:?}"
+    );
+    // The work was done all the same: it counts in the history, though its road is gone.
+    assert_eq!(s["replan"]["finished_repairs"], 1);
+    assert_eq!(
+        s["history"][1]["finished_repair_m"].as_f64().unwrap(),
+        rows[0]["cost"].parse::<f64>().unwrap()
+    );
 }
