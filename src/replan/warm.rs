@@ -15,6 +15,7 @@ use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::EdgeList;
 use crate::solve::site_plan::SitePlan;
 use crate::solve::steiner::reduce::prune_leaves;
+use std::collections::BTreeMap;
 
 /// The network the solver sees: started repairs at cost 0.
 pub fn solving_graph(g: &EdgeList, c: &Carried) -> EdgeList {
@@ -45,6 +46,37 @@ pub fn extra_terminals(
         .collect()
 }
 
+/// Disjoint sets over the ends of some edges only, numbered locally, so the work stays in
+/// proportion to those edges however large the network.
+struct Local {
+    verts: Vec<u32>,
+    ds: DisjointSets,
+}
+
+impl Local {
+    fn new(g: &EdgeList, edges: &[u32]) -> Local {
+        let verts = g.ends_of(edges);
+        let ds = DisjointSets::new(verts.len());
+        Local { verts, ds }
+    }
+
+    /// The set holding `v`; a vertex no edge touches is a set of its own.
+    fn set(&mut self, v: u32) -> u64 {
+        match self.verts.binary_search(&v) {
+            Ok(i) => self.ds.find(i as u32) as u64,
+            Err(_) => (1 << 32) | v as u64,
+        }
+    }
+
+    /// Joins the ends of `e`; false when they were joined already.
+    fn union(&mut self, g: &EdgeList, e: u32) -> bool {
+        let [a, b] = g.ends[e as usize];
+        let at = |v: u32| self.verts.binary_search(&v).map_or(0, |i| i as u32);
+        let (a, b) = (at(a), at(b));
+        self.ds.union(a, b)
+    }
+}
+
 /// `edges` with every started repair among `started` added; a cycle is broken at its costliest
 /// edge not started (Kruskal over the union, started repairs first).
 fn force(g: &EdgeList, edges: &[u32], started: &[u32]) -> Vec<u32> {
@@ -58,13 +90,10 @@ fn force(g: &EdgeList, edges: &[u32], started: &[u32]) -> Vec<u32> {
     all.dedup();
     let is_started = |e: u32| started.binary_search(&e).is_ok();
     all.sort_by_key(|&e| (!is_started(e), g.cost[e as usize], e));
-    let mut ds = DisjointSets::new(g.vertices);
+    let mut sets = Local::new(g, &all);
     let mut out: Vec<u32> = all
         .into_iter()
-        .filter(|&e| {
-            let [a, b] = g.ends[e as usize];
-            ds.union(a, b) || is_started(e)
-        })
+        .filter(|&e| sets.union(g, e) || is_started(e))
         .collect();
     out.sort_unstable();
     out
@@ -72,14 +101,13 @@ fn force(g: &EdgeList, edges: &[u32], started: &[u32]) -> Vec<u32> {
 
 /// True when `edges` join the two ends of every edge of `other` (so they join all it joins).
 fn joins_all(g: &EdgeList, edges: &[u32], other: &[u32]) -> bool {
-    let mut ds = DisjointSets::new(g.vertices);
+    let mut sets = Local::new(g, edges);
     for &e in edges {
-        let [a, b] = g.ends[e as usize];
-        ds.union(a, b);
+        sets.union(g, e);
     }
     other.iter().all(|&e| {
         let [a, b] = g.ends[e as usize];
-        ds.find(a) == ds.find(b)
+        sets.set(a) == sets.set(b)
     })
 }
 
@@ -110,30 +138,36 @@ pub fn settle_sites(
         .copied()
         .filter(|&e| g.usable(e as usize))
         .collect();
+    // By part of the network, so each group looks at its own edges only.
+    let by_comp = |edges: &[u32]| {
+        let mut m: BTreeMap<u32, Vec<u32>> = BTreeMap::new();
+        for &e in edges {
+            m.entry(comps.of[g.ends[e as usize][0] as usize])
+                .or_default()
+                .push(e);
+        }
+        m
+    };
+    let (old, started_in) = (by_comp(&old), by_comp(&c.started));
     for group in &mut sp.groups {
         group.sites.retain(|&i| i < n_sites);
         let comp = group.component;
-        let inside = |e: &u32| comps.of[g.ends[*e as usize][0] as usize] == comp;
-        let started: Vec<u32> = c.started.iter().copied().filter(inside).collect();
+        let started = started_in.get(&comp).cloned().unwrap_or_default();
         let mut ours = force(solve, &group.tree.edges, &started);
         prune_leaves(solve, &mut ours, &need);
-        let mut theirs = force(
-            solve,
-            &old.iter().copied().filter(inside).collect::<Vec<_>>(),
-            &started,
-        );
+        let mut theirs = force(solve, old.get(&comp).map_or(&[][..], |v| &v[..]), &started);
         prune_leaves(solve, &mut theirs, &need);
         let terminals: Vec<u32> = group.sites.iter().filter_map(|&i| junctions[i]).collect();
         let spans = |edges: &[u32]| {
-            let mut ds = DisjointSets::new(g.vertices);
-            edges.iter().for_each(|&e| {
-                ds.union(g.ends[e as usize][0], g.ends[e as usize][1]);
-            });
-            let root = terminals.first().map(|&t| ds.find(t));
-            terminals.iter().all(|&t| Some(ds.find(t)) == root)
+            let mut sets = Local::new(g, edges);
+            for &e in edges {
+                sets.union(g, e);
+            }
+            let root = terminals.first().map(|&t| sets.set(t));
+            terminals.iter().all(|&t| Some(sets.set(t)) == root)
                 && started
                     .iter()
-                    .all(|&e| Some(ds.find(g.ends[e as usize][0])) == root)
+                    .all(|&e| Some(sets.set(g.ends[e as usize][0])) == root)
         };
         if spans(&theirs) && solve.total(&theirs) < solve.total(&ours) {
             ours = theirs;
@@ -167,4 +201,41 @@ pub fn settle_forest(g: &EdgeList, solve: &EdgeList, plan: &mut Plan, c: &Carrie
     plan.total_cost = g.total(&ours);
     plan.lower_bound = bound.min(plan.total_cost);
     plan.edges = ours;
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A square 0-1-2-3-0 whose last side is dear.
+    fn square() -> EdgeList {
+        EdgeList {
+            vertices: 4,
+            ends: vec![[0, 1], [1, 2], [2, 3], [3, 0]],
+            cost: vec![1, 1, 1, 5],
+        }
+    }
+
+    #[test]
+    fn a_started_repair_is_forced_in_and_its_cycle_broken_elsewhere() {
+        let g = square();
+        assert_eq!(force(&g, &[0, 1, 2], &[3]), [0, 1, 3]);
+    }
+
+    #[test]
+    fn a_forest_keeps_started_repairs_at_full_cost_and_takes_a_cheaper_old_plan() {
+        let g = square();
+        let c = Carried {
+            started: vec![3],
+            old_plan: vec![0, 1, 3],
+            ..Default::default()
+        };
+        let solve = solving_graph(&g, &c);
+        let mut plan = crate::solve::minimum_spanning_forest(&solve, Default::default()).unwrap();
+        settle_forest(&g, &solve, &mut plan, &c);
+        assert!(plan.edges.contains(&3));
+        assert_eq!(plan.edges.len(), 3);
+        assert_eq!(plan.total_cost, 7);
+        assert!(plan.lower_bound <= plan.total_cost);
+    }
 }
