@@ -161,6 +161,7 @@ fn every_subcommand_help_ends_with_the_cautions() {
         &["plan"],
         &["demo"],
         &["check"],
+        &["replan"],
         &["batch"],
         &["merge"],
     ] {

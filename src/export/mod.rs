@@ -107,6 +107,8 @@ pub struct Outputs<'a> {
     pub title: &'a str,
     /// Sites to draw.
     pub marks: &'a [picture::SiteMark<'a>],
+    /// The changes against the previous plan (a re-plan only).
+    pub changes: Option<&'a crate::replan::changes::Changes<'a>>,
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -121,6 +123,8 @@ pub fn output_names(sites: bool, single_failures: bool, backup: bool) -> Vec<&'s
             "sites.geojson" => sites,
             "single-failures.geojson" => single_failures,
             "backup.geojson" => backup,
+            // Only a re-plan writes it (the caller adds it).
+            "changes.geojson" => false,
             _ => true,
         })
         .collect()
@@ -221,6 +225,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         st.write("backup.geojson", |w| {
             backup::write_backup(w, o.net, b, &ids, attribution)
         })?;
+    }
+    if let Some(c) = o.changes {
+        st.write("changes.geojson", |w| c.write(w, o.net, &ids, attribution))?;
     }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| {

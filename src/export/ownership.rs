@@ -15,6 +15,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "work-orders.csv",
     "single-failures.geojson",
     "backup.geojson",
+    "changes.geojson",
     "plan.svg",
     "plan.png",
     "report.html",

@@ -141,6 +141,7 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         )?;
     }
     writeln!(w, "</table>")?;
+    rounds(&mut w, s)?;
     writeln!(
         w,
         "<h2>Phases</h2><table><tr><th>Day</th><th>Repairs</th><th>Cost (repair-metres)</th><th>Sites joined to the hub</th><th>Share of sites joined</th></tr>"
@@ -299,6 +300,49 @@ pub fn write_report<W: Write>(mut w: W, title: &str, png: &[u8], s: &Summary) ->
         esc(s.tool.name),
         esc(s.tool.version)
     )?;
+    Ok(())
+}
+
+/// The rounds of a re-plan (a first plan has one round: nothing to show) and what changed.
+fn rounds<W: Write>(w: &mut W, s: &Summary) -> io::Result<()> {
+    let Some(r) = &s.replan else { return Ok(()) };
+    writeln!(
+        w,
+        "<h2>Rounds</h2><table><tr><th>Round</th><th>Label</th><th>Finished (repair-metres)</th>\
+         <th>Finished to date</th><th>Remaining</th></tr>"
+    )?;
+    for h in &s.history {
+        writeln!(
+            w,
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+            h.round,
+            esc(h.label.as_deref().unwrap_or("")),
+            fixed(h.finished_repair_m, 3),
+            fixed(h.finished_to_date_m, 3),
+            fixed(h.remaining_repair_m, 3)
+        )?;
+    }
+    writeln!(
+        w,
+        "</table><p>Changes against the previous plan (changes.geojson):</p><ul>"
+    )?;
+    for (code, n) in &r.changes {
+        writeln!(w, "<li>{}: {n}</li>", esc(&code.replace('_', " ")))?;
+    }
+    writeln!(
+        w,
+        "</ul><p>Started repairs stay in the plan at their full cost ({}).</p>",
+        r.started_repairs.len()
+    )?;
+    if !r.rows_matching_nothing.is_empty() || !r.keys_matching_nothing.is_empty() {
+        writeln!(
+            w,
+            "<p>Work orders that match nothing (listed in summary.json, never guessed): {} \
+             sheet line(s), {} key(s).</p>",
+            r.rows_matching_nothing.len(),
+            r.keys_matching_nothing.len()
+        )?;
+    }
     Ok(())
 }
 

@@ -195,6 +195,9 @@ pub struct Summary {
     pub settings: serde_json::Value,
     /// Every file of this output set, `summary.json` last: a folder lacking any is incomplete.
     pub outputs: Vec<&'static str>,
+    /// The output folder as given to this run (relative to where it was started, unless
+    /// absolute): with `inputs[].path`, what lets `reknit replan` find the inputs again.
+    pub output_folder: String,
     /// Coordinate handling.
     pub geodesy: Geodesy,
     /// Counts from reading and noding.
@@ -232,6 +235,10 @@ pub struct Summary {
     pub notes: Vec<Note>,
     /// The plan's roads on bridges, culverts and tunnels: inspect before use.
     pub structures: Option<super::structures::StructureFigures>,
+    /// The rounds of the operation: round 1 is the first plan, each re-plan adds one.
+    pub history: Vec<crate::replan::history::Round>,
+    /// What a re-plan took from the previous round (null for a first plan).
+    pub replan: Option<crate::replan::ReplanFigures>,
 }
 
 /// A default or a choice the run made that changes the answer (a road without a damage value, a

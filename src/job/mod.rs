@@ -88,6 +88,11 @@ pub struct PlanJob {
     pub budget: Option<f64>,
     /// Plan backup links so every site survives any single road failure (sites plans only).
     pub redundancy: bool,
+    /// Damage points of earlier rounds of a re-plan, applied before the finished work; `reports`
+    /// then holds only points given anew.
+    pub earlier_reports: Vec<Source>,
+    /// What crews did since the previous plan (a re-plan only).
+    pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
     /// Proof that [`settings::build`] made this job: no other code can.
     _checked: Checked,
 }
@@ -97,17 +102,30 @@ pub struct PlanJob {
 struct Checked(());
 
 impl PlanJob {
+    /// True when any damage points are read (given now or in an earlier round).
+    pub fn has_reports(&self) -> bool {
+        self.reports.is_some() || !self.earlier_reports.is_empty()
+    }
+
     /// Every file the run reads, for the output guard: layers, sidecars' folders and the cost table.
     pub fn input_paths(&self) -> Vec<export::guard::InputPath<'_>> {
         std::iter::once(&self.roads)
             .chain(
                 [&self.sites, &self.zones, &self.reports]
                     .into_iter()
-                    .flatten(),
+                    .flatten()
+                    .chain(&self.earlier_reports),
             )
+            .chain(self.field_work.as_ref().map(|w| &w.finished_csv))
             .filter_map(|s| s.path())
             .chain(self.road_settings.cost_table_file.as_deref())
             .map(export::guard::InputPath::File)
+            // The previous plan's folder is read as a whole and never written to.
+            .chain(
+                self.field_work
+                    .as_ref()
+                    .map(|w| export::guard::InputPath::Folder(&w.previous_dir)),
+            )
             .collect()
     }
 }

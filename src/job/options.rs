@@ -115,6 +115,11 @@ pub struct Options {
     pub lat_column: Option<String>,
     /// `--sites-crs`.
     pub sites_crs: Option<String>,
+    /// Damage points of earlier rounds (`reknit replan`), applied before the finished work and
+    /// before `damage_points`, which a re-plan fills only with points given anew.
+    pub earlier_damage_points: Vec<Source>,
+    /// What crews did since the previous plan (`reknit replan` only; `None` for a first plan).
+    pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
 }
 
 impl Options {
@@ -147,6 +152,8 @@ impl Options {
             lon_column: None,
             lat_column: None,
             sites_crs: None,
+            earlier_damage_points: Vec::new(),
+            field_work: None,
         }
     }
 }

@@ -10,7 +10,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
     let ss = &job.site_settings;
     let sites_plan = job.sites.is_some() && !job.whole_network;
     let when = |used: bool, v: serde_json::Value| if used { v } else { serde_json::Value::Null };
-    let evidence = job.zones.is_some() || job.reports.is_some();
+    let evidence = job.zones.is_some() || job.has_reports();
     serde_json::json!({
         "name": job.name,
         "snap_m": s.snap_m,
@@ -31,9 +31,9 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "crs": s.crs,
         "node_crossings": s.node_crossings,
         "zone_damage_field": when(job.zones.is_some(), job.zone_damage.field.clone().into()),
-        "damage_points_field": when(job.reports.is_some(), job.report_damage.field.clone().into()),
+        "damage_points_field": when(job.has_reports(), job.report_damage.field.clone().into()),
         "zones_crs": job.zones_crs,
-        "point_match_distance_m": when(job.reports.is_some(), job.point_match_distance_m.into()),
+        "point_match_distance_m": when(job.has_reports(), job.point_match_distance_m.into()),
         "crew_capacity": job.crew_capacity,
         "budget": job.budget,
         "redundancy": job.redundancy,

@@ -169,6 +169,8 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         name: o.name.clone(),
         budget: o.budget,
         redundancy: o.redundancy,
+        earlier_reports: o.earlier_damage_points.clone(),
+        field_work: o.field_work.clone(),
         _checked: Checked(()),
     };
     ranges(&job)?;
@@ -187,6 +189,7 @@ fn needs_input(o: &Options) -> Result<(), IngestError> {
 /// The options given that this run would ignore, by flag, each with what it needs.
 pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
+    let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
@@ -261,13 +264,13 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         (
             "--point-match-distance",
             o.point_match_distance_m.is_some(),
-            o.damage_points.is_some(),
+            points,
             "this is how far a field report may lie from its road: give --damage-points",
         ),
         (
             "--damage-points-field",
             o.damage_points_field.is_some(),
-            o.damage_points.is_some(),
+            points,
             "this field is read from the field reports: give --damage-points",
         ),
         (
@@ -278,7 +281,7 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
              have --damage-points-field)",
         ),
     ];
-    let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
+    let later_damage = o.damage_zones.is_some() || points;
     road_ignored(&o.road, later_damage)
         .into_iter()
         .chain(

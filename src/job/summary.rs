@@ -76,6 +76,7 @@ pub fn build(
         fingerprint,
         settings: super::settings_json(job),
         outputs: Vec::new(),
+        output_folder: job.out.display().to_string(),
         geodesy,
         counts,
         plan: PlanFigures {
@@ -112,6 +113,8 @@ pub fn build(
         plan_edges: plan.edges.len(),
         notes: Vec::new(),
         structures: None,
+        history: Vec::new(),
+        replan: None,
     }
 }
 

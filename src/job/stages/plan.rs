@@ -11,6 +11,7 @@ use crate::job::schedule::schedule;
 use crate::job::{JobError, PlanJob, SitesResult, budget, hub, joined, status};
 use crate::network::cost_to_repair_metres;
 use crate::progress::Progress;
+use crate::replan::warm;
 use crate::solve::components::{Components, components};
 use crate::solve::graph::EdgeList;
 use crate::solve::order::Step;
@@ -54,13 +55,32 @@ pub(in crate::job) fn plan(
     };
     let (mut plan, site_plan) = {
         let _s = progress.stage("solving");
+        // A re-plan solves with its started repairs free, then settles (replan::warm).
+        let carried = built.carried.as_ref();
+        let solve = carried.map(|c| warm::solving_graph(&graph, c));
+        let solve_on = solve.as_ref().unwrap_or(&graph);
         match &site_layer {
             Some(_) if !job.whole_network => {
-                let junctions: Vec<Option<u32>> = attachments.iter().map(|a| a.junction).collect();
-                let sp = plan_sites(&graph, &comps, &junctions, job.effort)?;
+                let mut junctions: Vec<Option<u32>> =
+                    attachments.iter().map(|a| a.junction).collect();
+                let n = junctions.len();
+                if let Some(c) = carried {
+                    let extra = warm::extra_terminals(&graph, &comps, &junctions, c);
+                    junctions.extend(extra.into_iter().map(Some));
+                }
+                let mut sp = plan_sites(solve_on, &comps, &junctions, job.effort)?;
+                if let Some(c) = carried {
+                    warm::settle_sites(&graph, solve_on, &comps, &mut sp, &junctions, n, c);
+                }
                 (sites_plan(&sp), Some(sp))
             }
-            _ => (minimum_spanning_forest(&graph, job.mst)?, None),
+            _ => {
+                let mut plan = minimum_spanning_forest(solve_on, job.mst)?;
+                if let Some(c) = carried {
+                    warm::settle_forest(&graph, solve_on, &mut plan, c);
+                }
+                (plan, None)
+            }
         }
     };
     // Within a budget smaller than the plan, choose which sites to join.
