@@ -358,6 +358,32 @@ fn statuses_and_kinds_are_codes_with_labels_and_documented() {
 }
 
 #[test]
+fn the_run_speaks_of_roads_with_no_way_round() {
+    // The line printed at the end of a run names the single failures in plain words; "bridge"
+    // there would read as a structure.
+    let d = tmp();
+    let out = d.path().join("o");
+    let o = run(&["demo", "--out", out.to_str().unwrap(), "--redundancy"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let err = stderr(&o);
+    let s = read_json(&out.join("summary.json"));
+    let f = &s["single_failures"];
+    let line = err
+        .lines()
+        .find(|l| l.starts_with("single failures:"))
+        .unwrap_or_else(|| panic!("{err}"));
+    assert!(line.contains(&format!(
+        "{} road(s) with no way round",
+        f["roads_cutting_off_sites"]
+    )));
+    assert!(line.contains(&format!(
+        "with the backup links, {}",
+        s["backup"]["single_failures_after"]["sites_with_a_single_failure"]
+    )));
+    assert!(!line.to_lowercase().contains("bridge"), "{line}");
+}
+
+#[test]
 fn field_reports_read_their_own_field() {
     // The zones' field option is not the reports': a report's value comes from
     // --damage-points-field, and summary.json records each only where it was used.

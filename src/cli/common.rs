@@ -131,8 +131,9 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "REPAIR_METRES")]
     pub budget: Option<f64>,
 
-    /// Also plan backup links: the cheapest further repairs after which every site stays joined
-    /// to the hub when any one road fails (written to backup.geojson, after the plan's repairs).
+    /// Also plan backup links: the cheapest further repairs that give roads with no way round a
+    /// way round, so every site stays joined to the hub when any one road fails (written to
+    /// backup.geojson, after the plan's repairs).
     #[arg(long)]
     pub redundancy: bool,
 
@@ -341,6 +342,23 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         if let Some(n) = &s.note {
             eprintln!("  note: {}", terminal(n));
         }
+    }
+    if let Some(f) = &summary.single_failures {
+        eprintln!(
+            "single failures: {} road(s) with no way round would each cut sites off the hub; {} of \
+             {} site(s) checked depend on one (single-failures.geojson){}",
+            f.roads_cutting_off_sites,
+            f.sites_with_a_single_failure,
+            f.sites_checked,
+            summary
+                .backup
+                .as_ref()
+                .and_then(|b| b.single_failures_after.as_ref())
+                .map_or(String::new(), |a| format!(
+                    "; with the backup links, {} (no way round is possible for them)",
+                    a.sites_with_a_single_failure
+                ))
+        );
     }
     if let Some(st) = summary.structures.as_ref().filter(|st| st.planned > 0) {
         eprintln!(
