@@ -195,9 +195,6 @@ pub struct Summary {
     pub settings: serde_json::Value,
     /// Every file of this output set, `summary.json` last: a folder lacking any is incomplete.
     pub outputs: Vec<&'static str>,
-    /// The output folder as given to this run (relative to where it was started, unless
-    /// absolute): with `inputs[].path`, what lets `reknit replan` find the inputs again.
-    pub output_folder: String,
     /// Coordinate handling.
     pub geodesy: Geodesy,
     /// Counts from reading and noding.

@@ -76,7 +76,6 @@ pub fn build(
         fingerprint,
         settings: super::settings_json(job),
         outputs: Vec::new(),
-        output_folder: job.out.display().to_string(),
         geodesy,
         counts,
         plan: PlanFigures {

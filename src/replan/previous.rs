@@ -39,8 +39,6 @@ pub struct Previous {
     pub settings: serde_json::Map<String, serde_json::Value>,
     /// Its inputs, as recorded.
     pub inputs: Vec<RecordedInput>,
-    /// The output folder as given to that run, when recorded.
-    pub output_folder: Option<String>,
     /// Its fingerprint.
     pub fingerprint: String,
     /// Its rounds (round 1 alone for a first plan written before histories were kept).
@@ -178,7 +176,6 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
         dir: dir.to_path_buf(),
         settings,
         inputs,
-        output_folder: field("output_folder").as_str().map(str::to_string),
         fingerprint: field("fingerprint")
             .as_str()
             .unwrap_or_default()

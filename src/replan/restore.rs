@@ -11,7 +11,7 @@ use crate::job::Options;
 use crate::solve::MstAlgorithm;
 use crate::solve::steiner::Effort;
 use serde_json::Value;
-use std::path::{Component, Path, PathBuf};
+use std::path::{Path, PathBuf};
 
 /// The sites layer's property telling whether a site was joined to the hub.
 pub const JOINED_FIELDS: &[&str] = &["joined_to_hub"];
@@ -214,36 +214,26 @@ pub fn settings(prev: &Previous, o: &mut Options) -> Result<(), ReplanError> {
     Ok(())
 }
 
-/// The folder the previous run was started from: the previous folder less the output folder as
-/// given, when that was relative and the previous folder's path ends with it.
-fn started_from(prev: &Previous) -> Option<PathBuf> {
-    let out = Path::new(prev.output_folder.as_deref()?);
-    if out.is_absolute() {
-        return None;
+/// The folders the previous run can have been started from, in the order they are tried: the
+/// current folder (where a user re-plans from, as a rule), then every folder holding the previous
+/// one, nearest first (an output folder given as a relative path lies below where the run began).
+/// Nothing about the run's folder is recorded, so the same inputs give the same bytes wherever the
+/// outputs go; the SHA-256 check makes trying several places safe.
+fn start_folders(prev: &Previous) -> Vec<PathBuf> {
+    let mut out: Vec<PathBuf> = std::env::current_dir().into_iter().collect();
+    if let Ok(dir) = std::fs::canonicalize(&prev.dir) {
+        out.extend(dir.ancestors().skip(1).map(Path::to_path_buf));
     }
-    let mut dir = std::fs::canonicalize(&prev.dir).ok()?;
-    for c in out.components().rev() {
-        match c {
-            Component::CurDir => {}
-            Component::Normal(n) if dir.file_name() == Some(n) => {
-                dir.pop();
-            }
-            _ => return None,
-        }
-    }
-    Some(dir)
+    out
 }
 
-/// The file a recorded input names, found where the previous run was started, then in the
-/// previous folder, and checked against its SHA-256; else an error asking for it anew.
+/// The file a recorded input names, found where the previous run can have been started, then in
+/// the previous folder, and checked against its SHA-256; else an error asking for it anew.
 pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError> {
     let p = Path::new(&rec.path);
-    let mut tried = Vec::new();
-    let start = started_from(prev);
-    let here = std::env::current_dir()
-        .ok()
-        .and_then(|d| std::fs::canonicalize(d).ok());
-    for base in [start.clone(), Some(prev.dir.clone())].iter().flatten() {
+    let mut tried: Vec<PathBuf> = Vec::new();
+    let bases = start_folders(prev);
+    for (i, base) in bases.iter().chain([&prev.dir]).enumerate() {
         let cand = base.join(p);
         if tried.contains(&cand) {
             continue;
@@ -252,15 +242,17 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
         if let Ok(r) = crate::job::fingerprint::input_record(&rec.role, &src)
             && r.sha256 == rec.sha256
         {
-            // Started from the same folder: the path stays as recorded, so the new summary
+            // Found from the current folder: the path stays as recorded, so the new summary
             // records it the same way.
-            if start.is_some() && start == here && Some(base) == start.as_ref() {
+            if i == 0 && p.is_relative() {
                 return Ok(Source::File(p.to_path_buf()));
             }
             return Ok(src);
         }
         tried.push(cand);
     }
+    // Name the places looked at, the nearest few (the ancestors go up to the root).
+    tried.truncate(4);
     let flag = INPUTS
         .iter()
         .find(|(r, _)| *r == rec.role)
