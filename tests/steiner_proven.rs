@@ -116,3 +116,30 @@ fn thorough_is_deterministic() {
         }
     }
 }
+
+/// The progress hook hears a best cost that only falls and a bound that only rises, never above
+/// the best cost, ending at the plan's own figures; with a clock far off instead of the step
+/// budget, c07 is proven (SteinLib, Koch, Martin & Voß 2001, optima.tsv).
+#[test]
+fn progress_reports_track_the_search_to_its_end() {
+    use reknit::solve::steiner::{Watch, steiner_tree_watched};
+    use std::sync::Mutex;
+    let inst = instance("C/c07");
+    let heard = Mutex::new(Vec::new());
+    let report = |c: u64, b: u64| heard.lock().unwrap().push((c, b));
+    let deadline = std::time::Instant::now() + std::time::Duration::from_secs(3600);
+    let watch = Watch {
+        report: Some(&report),
+        deadline: Some(deadline),
+    };
+    let t = steiner_tree_watched(&inst.graph, &inst.terminals, Effort::Normal, watch).unwrap();
+    let heard = heard.into_inner().unwrap();
+    assert!(!heard.is_empty());
+    for w in heard.windows(2) {
+        assert!(w[1].0 <= w[0].0 && w[1].1 >= w[0].1, "{w:?}");
+    }
+    assert!(heard.iter().all(|&(c, b)| b <= c));
+    assert_eq!(*heard.last().unwrap(), (t.cost, t.lower_bound));
+    assert_eq!(t.cost, t.lower_bound, "run to the end, the search proves c07");
+    assert_eq!(t.cost, published("C/c07"));
+}

@@ -14,7 +14,9 @@ use crate::progress::Progress;
 use crate::solve::components::{Components, components};
 use crate::solve::graph::EdgeList;
 use crate::solve::order::Step;
-use crate::solve::site_plan::{SitePlan, plan_sites};
+use crate::solve::site_plan::{SitePlan, plan_sites_watched};
+use crate::solve::steiner::Watch;
+use std::time::{Duration, Instant};
 use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
 
 /// The plan and everything decided about it.
@@ -53,11 +55,18 @@ pub(in crate::job) fn plan(
         None => None,
     };
     let (mut plan, site_plan) = {
-        let _s = progress.stage("solving");
+        let stage = progress.stage("solving");
         match &site_layer {
             Some(_) if !job.whole_network => {
                 let junctions: Vec<Option<u32>> = attachments.iter().map(|a| a.junction).collect();
-                let sp = plan_sites(&graph, &comps, &junctions, job.effort)?;
+                let report = |cost: u64, bound: u64| stage.set_message(search_line(cost, bound));
+                let watch = Watch {
+                    report: Some(&report),
+                    deadline: job
+                        .time_limit_s
+                        .map(|t| Instant::now() + Duration::from_secs_f64(t)),
+                };
+                let sp = plan_sites_watched(&graph, &comps, &junctions, job.effort, watch)?;
                 (sites_plan(&sp), Some(sp))
             }
             _ => (minimum_spanning_forest(&graph, job.mst)?, None),
@@ -163,4 +172,20 @@ fn sites_plan(sp: &SitePlan) -> Plan {
         lower_bound: sp.lower_bound,
         bound_complete: sp.bound_complete,
     }
+}
+
+/// The progress line while a sites plan is searched: the best plan so far and the lower bound,
+/// in repair-metres, and how far apart they are (one group of sites at a time).
+fn search_line(cost: u64, bound: u64) -> String {
+    let (c, b) = (cost_to_repair_metres(cost), cost_to_repair_metres(bound));
+    let gap = match crate::solve::site_plan::gap(cost, bound) {
+        Some(g) if g > 0.0 => format!("at most {} % above optimal", crate::decimal::Fixed(100.0 * g, 2)),
+        Some(_) => "proven optimal".to_string(),
+        None => "no bound yet".to_string(),
+    };
+    format!(
+        "solving: best plan {} repair-metres, bound {} ({gap})",
+        crate::decimal::Fixed(c, 3),
+        crate::decimal::Fixed(b, 3)
+    )
 }

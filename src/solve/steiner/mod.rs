@@ -164,11 +164,34 @@ pub struct SteinerTree {
     pub reduced_size: (usize, usize),
 }
 
+/// What a caller may ask of a solve beyond its effort: to hear progress, or to run on the clock.
+#[derive(Clone, Copy, Default)]
+pub struct Watch<'a> {
+    /// Hears the best tree's cost and the lower bound (cost units) once the heuristics and the
+    /// bound are done, then whenever the exact search improves either.
+    pub report: Option<&'a (dyn Fn(Cost, Cost) + Sync)>,
+    /// When given, the exact search goes on past its fixed step budget until the tree is proven
+    /// optimal or this instant passes: the result then depends on the machine's speed (never worse
+    /// than without, since the budgeted steps all run first).
+    pub deadline: Option<std::time::Instant>,
+}
+
 /// Connects `terminals` (original vertex ids, mutually reachable over usable edges) at least cost.
 pub fn steiner_tree(
     g: &EdgeList,
     terminals: &[u32],
     effort: Effort,
+) -> Result<SteinerTree, SolveError> {
+    steiner_tree_watched(g, terminals, effort, Watch::default())
+}
+
+/// [`steiner_tree`] with progress reports and, optionally, a wall-clock limit in place of the
+/// exact search's step budget.
+pub fn steiner_tree_watched(
+    g: &EdgeList,
+    terminals: &[u32],
+    effort: Effort,
+    watch: Watch,
 ) -> Result<SteinerTree, SolveError> {
     let mut terms = terminals.to_vec();
     terms.sort_unstable();
@@ -231,9 +254,19 @@ pub fn steiner_tree(
         }
         let cost = tree::cost(rg, &best);
         let nodes = effort.search_nodes(rg.vertices + rg.len());
-        if bound.complete && bound.value < cost && nodes > 0 {
+        let mut report = |c: Cost, b: Cost| {
+            if let Some(r) = watch.report {
+                r(c, b);
+            }
+        };
+        report(cost, bound.value.min(cost));
+        if bound.complete && bound.value < cost && (nodes > 0 || watch.deadline.is_some()) {
             let held = exact::Incumbent { edges: best, cost };
-            let out = branch::search(rg, &red.terminals, held, bound.value, nodes, &mut |_, _| {});
+            let limits = branch::Limits {
+                nodes,
+                deadline: watch.deadline,
+            };
+            let out = branch::search(rg, &red.terminals, held, bound.value, limits, &mut report);
             best = out.best.edges;
             bound.value = bound.value.max(out.lower_bound);
         }
