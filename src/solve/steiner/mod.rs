@@ -4,7 +4,8 @@
 //!
 //! 1. [`reduce`]: exact reductions (zero-cost components, non-terminal leaves, degree-2 chains).
 //! 2. [`sph`]: the shortest-path heuristic from several roots, each polished by [`local`] search
-//!    (key-path exchange, key-vertex elimination); the cheapest tree wins.
+//!    (key-path exchange, key-vertex elimination); the best few are [`merge`]d (their union searched
+//!    by branch-and-bound) and the cheapest tree wins.
 //! 3. Beside it, on the other core: [`dual_ascent`], Wong's lower bound, so every plan states how
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
@@ -21,6 +22,7 @@ pub mod exact;
 pub mod fixing;
 pub mod local;
 pub mod mehlhorn;
+pub mod merge;
 pub mod paths;
 pub mod reduce;
 pub mod sph;
@@ -132,6 +134,16 @@ impl Effort {
             Effort::Normal if size > 500_000 => 0,
             Effort::Normal => 1,
             Effort::Thorough => 500,
+        }
+    }
+
+    /// Solution merging after the heuristics: how many of the best distinct trees are joined, and
+    /// the most branch-and-bound steps spent on their union (none at quick effort).
+    fn merging(self) -> (usize, u64) {
+        match self {
+            Effort::Quick => (0, 0),
+            Effort::Normal => (16, 200),
+            Effort::Thorough => (32, 1000),
         }
     }
 
@@ -304,6 +316,7 @@ fn heuristics(
     let it = &red.is_terminal;
     let mut best = Vec::new();
     let mut best_cost = u64::MAX;
+    let mut pool: Vec<(u64, Vec<u32>)> = Vec::new();
     let k = red.terminals.len();
     let size = rg.vertices + rg.len();
     let roots = effort.starts(size).min(k);
@@ -323,6 +336,7 @@ fn heuristics(
             polish(rg, csr, it, t, ws, effort)
         };
         let c = tree::cost(rg, &t);
+        pool.push((c, t.clone()));
         if c < best_cost {
             best = t;
             best_cost = c;
@@ -341,12 +355,26 @@ fn heuristics(
         let t = tree::mst_prune(rg, csr, &t, it);
         let t = polish(rg, csr, it, t, ws, effort);
         let c = tree::cost(rg, &t);
+        pool.push((c, t.clone()));
         if c < best_cost {
             best = t;
             best_cost = c;
         }
     }
-    polish(rg, csr, it, best, ws, effort)
+    let best = polish(rg, csr, it, best, ws, effort);
+    // The best trees share most of their edges and differ where the choice is hard: an exact
+    // search on their union often finds what none of them has.
+    let (trees, steps) = effort.merging();
+    if trees >= 2 && k >= 2 {
+        pool.push((tree::cost(rg, &best), best.clone()));
+        if let Some(t) = merge::merged(rg, &red.terminals, pool, trees, steps) {
+            let t = polish(rg, csr, it, t, ws, effort);
+            if tree::cost(rg, &t) < tree::cost(rg, &best) {
+                return t;
+            }
+        }
+    }
+    best
 }
 
 /// Alternates path-based and vertex-based local search until neither improves the tree.
