@@ -5,6 +5,7 @@
 # (scripts/make-extract-sites.py). One `reknit plan` per extract, site count and effort: prints
 # wall and CPU seconds (GNU time), cost, bound, gap and whether the plan is proven optimal.
 # Usage: scripts/bench-extracts.sh [EFFORT …]   (default: normal thorough)
+#   BENCH_TIMEOUT=SECONDS stops a run after that long (reported as such); default: no limit.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 efforts=("$@")
@@ -25,8 +26,12 @@ for x in liechtenstein malta; do
     python3 scripts/make-extract-sites.py "$d/$x.geojson" "$n" 24 "$s"
     for e in "${efforts[@]}"; do
       out="$d/out-$x-$n-$e"
-      /usr/bin/time -f "%e %U %S" -o "$d/time" target/release/reknit plan --roads "$d/$x.geojson" \
-        --sites "$s" --effort "$e" --out "$out" --force --quiet
+      if ! /usr/bin/time -f "%e %U %S" -o "$d/time" timeout "${BENCH_TIMEOUT:-0}" \
+        target/release/reknit plan --roads "$d/$x.geojson" --sites "$s" --effort "$e" \
+        --out "$out" --force --quiet; then
+        echo "| $x | $n | $e | stopped after ${BENCH_TIMEOUT:-?} s | | | | | |"
+        continue
+      fi
       read -r wall user sys < "$d/time"
       python3 - "$out/summary.json" "$x" "$n" "$e" "$wall" "$user" "$sys" <<'PY'
 import json, sys
