@@ -15,7 +15,7 @@ d=target/bench-data/extracts; mkdir -p "$d"
 malta_pbf=../shared/data/roads/malta/malta-2018-08-27.osm.pbf
 if [ ! -f "$d/malta.geojson" ]; then
   command -v ogr2ogr >/dev/null || { echo "ogr2ogr (gdal-bin) is needed for Malta" >&2; exit 1; }
-  ogr2ogr -f GeoJSON "$d/malta.geojson" "$malta_pbf" lines -where "highway IS NOT NULL" \
+  ogr2ogr -q -f GeoJSON "$d/malta.geojson" "$malta_pbf" lines -where "highway IS NOT NULL" \
     -select osm_id,highway,name
 fi
 cp -f tests/data/roads/liechtenstein/liechtenstein_highways.geojson "$d/liechtenstein.geojson"

@@ -175,6 +175,9 @@ fn progress_reports_track_the_search_to_its_end() {
     }
     assert!(heard.iter().all(|&(c, b)| b <= c));
     assert_eq!(*heard.last().unwrap(), (t.cost, t.lower_bound));
-    assert_eq!(t.cost, t.lower_bound, "run to the end, the search proves c07");
+    assert_eq!(
+        t.cost, t.lower_bound,
+        "run to the end, the search proves c07"
+    );
     assert_eq!(t.cost, published("C/c07"));
 }

@@ -16,8 +16,8 @@ use crate::solve::graph::EdgeList;
 use crate::solve::order::Step;
 use crate::solve::site_plan::{SitePlan, plan_sites_watched};
 use crate::solve::steiner::Watch;
-use std::time::{Duration, Instant};
 use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
+use std::time::{Duration, Instant};
 
 /// The plan and everything decided about it.
 pub(in crate::job) struct Planned {
@@ -179,7 +179,10 @@ fn sites_plan(sp: &SitePlan) -> Plan {
 fn search_line(cost: u64, bound: u64) -> String {
     let (c, b) = (cost_to_repair_metres(cost), cost_to_repair_metres(bound));
     let gap = match crate::solve::site_plan::gap(cost, bound) {
-        Some(g) if g > 0.0 => format!("at most {} % above optimal", crate::decimal::Fixed(100.0 * g, 2)),
+        Some(g) if g > 0.0 => format!(
+            "at most {} % above optimal",
+            crate::decimal::Fixed(100.0 * g, 2)
+        ),
         Some(_) => "proven optimal".to_string(),
         None => "no bound yet".to_string(),
     };
