@@ -45,6 +45,7 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("hub", "\"A\""),
     ("whole_network", "true"),
     ("effort", "\"quick\""),
+    ("time_limit", "30"),
     ("site_id_field", "\"sid\""),
     ("site_name_field", "\"label\""),
     ("priority_field", "\"prio\""),

@@ -178,6 +178,35 @@ case!(effort_with_whole_network, |d| {
     );
 });
 
+case!(time_limit_out_of_range, |d| {
+    // A limit of no time, a negative one or one past a week is a mistake, not a plan.
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+    for bad in ["0", "-5", "NaN", "1e9"] {
+        plan_fails(
+            &roads,
+            &["--sites", &s(&sites), &format!("--time-limit={bad}")],
+            &["--time-limit", "seconds"],
+        );
+    }
+});
+
+case!(time_limit_with_whole_network, |d| {
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+    plan_fails(
+        &roads,
+        &[
+            "--sites",
+            &s(&sites),
+            "--whole-network",
+            "--time-limit",
+            "10",
+        ],
+        &["--time-limit", "--whole-network"],
+    );
+});
+
 case!(coordinate_columns_with_geojson_sites, |d| {
     // GeoJSON sites are read by their geometry: the columns would be ignored.
     let roads = roads_ok(d);

@@ -180,6 +180,10 @@ pub const KEYS: &[Key] = &[
             Ok(())
         },
     ),
+    key("time_limit", Number, |j, v| {
+        j.time_limit_s = Some(v.number()?);
+        Ok(())
+    }),
     key("site_id_field", OptText, |j, v| {
         j.site_id_field = v.opt_text()?;
         Ok(())

@@ -225,6 +225,12 @@ pub struct SiteArgs {
     #[arg(long, value_enum)]
     pub effort: Option<EffortChoice>,
 
+    /// Let the exact search go on past its fixed step budget until the plan is proven optimal or
+    /// SECONDS of wall time pass. The plan then depends on the machine's speed: summary.json records
+    /// "deterministic": false. Not with --whole-network.
+    #[arg(long, value_name = "SECONDS")]
+    pub time_limit: Option<f64>,
+
     /// Site property or column holding each site's id (default: id, site_id, fid or name).
     #[arg(long, value_name = "FIELD")]
     pub site_id_field: Option<String>,
@@ -268,6 +274,7 @@ impl SiteArgs {
             EffortChoice::Normal => Effort::Normal,
             EffortChoice::Thorough => Effort::Thorough,
         });
+        o.time_limit_s = self.time_limit;
     }
 }
 

@@ -193,6 +193,9 @@ pub struct Summary {
     pub fingerprint: String,
     /// Settings in force.
     pub settings: serde_json::Value,
+    /// False when `--time-limit` let the exact search run on the clock: the same inputs and
+    /// settings may then give another plan on another run or machine.
+    pub deterministic: bool,
     /// Every file of this output set, `summary.json` last: a folder lacking any is incomplete.
     pub outputs: Vec<&'static str>,
     /// Coordinate handling.

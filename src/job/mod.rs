@@ -67,6 +67,9 @@ pub struct PlanJob {
     pub mst: MstAlgorithm,
     /// Effort spent on the sites plan.
     pub effort: Effort,
+    /// Wall-clock seconds the exact search may run (`--time-limit`), in place of its step budget:
+    /// an explicit opt-out of deterministic plans.
+    pub time_limit_s: Option<f64>,
     /// Damage zones (polygons with a damage each).
     pub zones: Option<Source>,
     /// How a zone's damage is read.

@@ -103,6 +103,8 @@ pub struct Options {
     pub whole_network: bool,
     /// `--effort` (default normal).
     pub effort: Option<Effort>,
+    /// `--time-limit`, seconds: the exact search runs on the clock instead of its step budget.
+    pub time_limit_s: Option<f64>,
     /// `--site-id-field`.
     pub site_id_field: Option<String>,
     /// `--site-name-field`.
@@ -146,6 +148,7 @@ impl Options {
             hub: None,
             whole_network: false,
             effort: None,
+            time_limit_s: None,
             site_id_field: None,
             site_name_field: None,
             priority_field: None,

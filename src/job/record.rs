@@ -23,6 +23,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "hub": job.hub,
         "whole_network": job.whole_network,
         "effort": when(sites_plan, job.effort.name().into()),
+        "time_limit_s": when(sites_plan, job.time_limit_s.into()),
         "site_id_field": ss.id_field,
         "site_name_field": ss.name_field,
         "priority_field": ss.priority_field,

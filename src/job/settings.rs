@@ -7,6 +7,9 @@
 
 use super::options::{Options, RoadOptions};
 use super::{Checked, MAX_ATTACH_LIMIT_M, PlanJob};
+
+/// Longest `--time-limit`, seconds (a week): a clock so far out is a mistake, not a plan.
+pub const MAX_TIME_LIMIT_S: f64 = 604_800.0;
 use crate::ingest::cost_table::{CostTable, RoadFilter};
 use crate::ingest::crs::Crs;
 use crate::ingest::damage::DamageRule;
@@ -144,6 +147,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         whole_network: o.whole_network,
         mst: o.mst.unwrap_or_default(),
         effort: o.effort.unwrap_or(crate::solve::steiner::Effort::Normal),
+        time_limit_s: o.time_limit_s,
         zones: o.damage_zones.clone(),
         // Zones and reports read "closed" as the roads do; one without a value counts as 1.0.
         zone_damage: DamageRule {
@@ -249,6 +253,12 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         ),
         ("--effort", o.effort.is_some(), sites_plan, SITES_PLAN),
         (
+            "--time-limit",
+            o.time_limit_s.is_some(),
+            sites_plan,
+            SITES_PLAN,
+        ),
+        (
             "--mst",
             o.mst.is_some(),
             !sites_plan,
@@ -313,6 +323,14 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
         return Err(refuse(
             "--budget",
             format!("{b} repair-metres is not a number ≥ 0"),
+        ));
+    }
+    if let Some(t) = job.time_limit_s
+        && !(t.is_finite() && t > 0.0 && t <= MAX_TIME_LIMIT_S)
+    {
+        return Err(refuse(
+            "--time-limit",
+            format!("{t} seconds is not a number above 0 and at most {MAX_TIME_LIMIT_S}"),
         ));
     }
     if let Some(c) = job.crew_capacity

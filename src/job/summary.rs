@@ -75,6 +75,7 @@ pub fn build(
         inputs,
         fingerprint,
         settings: super::settings_json(job),
+        deterministic: job.time_limit_s.is_none(),
         outputs: Vec::new(),
         geodesy,
         counts,

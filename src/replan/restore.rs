@@ -148,6 +148,10 @@ pub const SETTINGS: &[(&str, Set)] = &[
         o.point_match_distance_m = num(v)?;
         Ok(())
     }),
+    ("time_limit_s", |o, v| {
+        o.time_limit_s = num(v)?;
+        Ok(())
+    }),
     ("crew_capacity", |o, v| {
         o.crew_capacity = num(v)?;
         Ok(())

@@ -15,8 +15,10 @@ use crate::replan::warm;
 use crate::solve::components::{Components, components};
 use crate::solve::graph::EdgeList;
 use crate::solve::order::Step;
-use crate::solve::site_plan::{SitePlan, plan_sites};
+use crate::solve::site_plan::{SitePlan, plan_sites_watched};
+use crate::solve::steiner::Watch;
 use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
+use std::time::{Duration, Instant};
 
 /// The plan and everything decided about it.
 pub(in crate::job) struct Planned {
@@ -54,7 +56,7 @@ pub(in crate::job) fn plan(
         None => None,
     };
     let (mut plan, site_plan) = {
-        let _s = progress.stage("solving");
+        let stage = progress.stage("solving");
         // A re-plan solves with its started repairs free, then settles (replan::warm).
         let carried = built.carried.as_ref();
         let solve = carried.map(|c| warm::solving_graph(&graph, c));
@@ -68,7 +70,14 @@ pub(in crate::job) fn plan(
                     let extra = warm::extra_terminals(&graph, &comps, &junctions, c);
                     junctions.extend(extra.into_iter().map(Some));
                 }
-                let mut sp = plan_sites(solve_on, &comps, &junctions, job.effort)?;
+                let report = |cost: u64, bound: u64| stage.set_message(search_line(cost, bound));
+                let watch = Watch {
+                    report: Some(&report),
+                    deadline: job
+                        .time_limit_s
+                        .map(|t| Instant::now() + Duration::from_secs_f64(t)),
+                };
+                let mut sp = plan_sites_watched(solve_on, &comps, &junctions, job.effort, watch)?;
                 if let Some(c) = carried {
                     warm::settle_sites(&graph, solve_on, &comps, &mut sp, &junctions, n, c);
                 }
@@ -183,4 +192,23 @@ fn sites_plan(sp: &SitePlan) -> Plan {
         lower_bound: sp.lower_bound,
         bound_complete: sp.bound_complete,
     }
+}
+
+/// The progress line while a sites plan is searched: the best plan so far and the lower bound,
+/// in repair-metres, and how far apart they are (one group of sites at a time).
+fn search_line(cost: u64, bound: u64) -> String {
+    let (c, b) = (cost_to_repair_metres(cost), cost_to_repair_metres(bound));
+    let gap = match crate::solve::site_plan::gap(cost, bound) {
+        Some(g) if g > 0.0 => format!(
+            "at most {} % above optimal",
+            crate::decimal::Fixed(100.0 * g, 2)
+        ),
+        Some(_) => "proven optimal".to_string(),
+        None => "no bound yet".to_string(),
+    };
+    format!(
+        "solving: best plan {} repair-metres, bound {} ({gap})",
+        crate::decimal::Fixed(c, 3),
+        crate::decimal::Fixed(b, 3)
+    )
 }
