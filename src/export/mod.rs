@@ -5,17 +5,24 @@
 
 pub mod backup;
 pub mod band;
+pub mod clip;
+pub mod drawing;
 pub mod fragility;
 pub mod geojson;
 pub mod guard;
+pub mod labels;
+pub mod layout;
 pub mod legend;
+pub mod metrics;
 pub mod ownership;
 pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
+pub mod scene;
 pub mod sites;
 pub mod staging;
+pub mod strokes;
 pub mod structures;
 pub mod summary;
 pub mod text;
@@ -107,6 +114,10 @@ pub struct Outputs<'a> {
     pub title: &'a str,
     /// Sites to draw.
     pub marks: &'a [picture::SiteMark<'a>],
+    /// Outer rings of the damage zones, lon/lat (empty without zones).
+    pub zones: &'a [Vec<[f64; 2]>],
+    /// True when `--crew-capacity` grouped the repairs into days.
+    pub scheduled: bool,
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -148,35 +159,26 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
+    let backup_edges: Vec<u32> = o.backup.map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());
+    let scene = scene::Scene {
+        title: o.title,
+        net: o.net,
+        plan_edges: &o.plan.edges,
+        steps: o.steps,
+        backup_edges: &backup_edges,
+        zones: o.zones,
+        sites: o.marks,
+        scheduled: o.scheduled,
+        caution: crate::cautions::SHORT,
+        attribution,
+    };
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
+        let drawn = drawing::prepare(&scene);
         let (svg, png) = rayon::join(
+            || st.write("plan.svg", |w| picture::write_drawing(w, &scene, &drawn, true)),
             || {
-                st.write("plan.svg", |w| {
-                    picture::write_svg(
-                        w,
-                        o.title,
-                        o.net,
-                        &o.plan.edges,
-                        o.steps,
-                        o.marks,
-                        crate::cautions::SHORT,
-                        attribution,
-                        true,
-                    )
-                })
-            },
-            || {
-                raster::render_png(
-                    o.title,
-                    o.net,
-                    &o.plan.edges,
-                    o.steps,
-                    o.marks,
-                    crate::cautions::SHORT,
-                    attribution,
-                )
-                .map_err(|e| ExportError::Io {
+                raster::render_drawing(&scene, &drawn).map_err(|e| ExportError::Io {
                     path: out.given().join("plan.png"),
                     source: std::io::Error::other(e),
                 })

@@ -88,6 +88,8 @@ pub(in crate::job) fn write(
                 backup: p.backup.as_ref(),
                 title: &title,
                 marks: &marks,
+                zones: &p.built.zone_rings,
+                scheduled: job.crew_capacity.is_some(),
                 site_ids: &site_ids,
                 summary: &summary,
             },
