@@ -19,6 +19,8 @@ pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
+pub mod report_parts;
+pub mod report_tables;
 pub mod scene;
 pub mod sites;
 pub mod staging;
@@ -118,6 +120,8 @@ pub struct Outputs<'a> {
     pub zones: &'a [Vec<[f64; 2]>],
     /// True when `--crew-capacity` grouped the repairs into days.
     pub scheduled: bool,
+    /// The budget given (`--budget`), repair-metres.
+    pub budget: Option<f64>,
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -215,7 +219,23 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     b?;
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
-        report::write_report(w, o.title, &png, o.summary)
+        report::write_report(
+            w,
+            &report::Context {
+                title: o.title,
+                png: &png,
+                summary: o.summary,
+                net: o.net,
+                steps: o.steps,
+                keys: &ids,
+                sites: o.sites.unwrap_or_default(),
+                site_ids: o.site_ids,
+                fragility: o.fragility,
+                backup: o.backup,
+                budget: o.budget,
+                scheduled: o.scheduled,
+            },
+        )
     })?;
     if let Some(f) = o.fragility {
         st.write("fragility.geojson", |w| {

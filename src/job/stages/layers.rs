@@ -90,6 +90,7 @@ pub(in crate::job) fn write(
                 marks: &marks,
                 zones: &p.built.zone_rings,
                 scheduled: job.crew_capacity.is_some(),
+                budget: job.budget,
                 site_ids: &site_ids,
                 summary: &summary,
             },
