@@ -92,7 +92,10 @@ pub fn write_band<W: Write>(
         // A long attribution is cut on the picture only; summary.json, the layers and the report
         // carry it whole.
         let chars = (LINE_CHARS as f64 * (width - 24.0) / 1536.0) as usize;
-        let mut line = wrap(a, chars.max(20)).into_iter().next().unwrap_or_default();
+        let mut line = wrap(a, chars.max(20))
+            .into_iter()
+            .next()
+            .unwrap_or_default();
         if line.chars().count()
             < a.split_whitespace()
                 .collect::<Vec<_>>()
@@ -122,7 +125,11 @@ mod tests {
         for width in [700.0, 1100.0, 1600.0] {
             let lines = wrap_px(crate::cautions::SHORT, width - 24.0);
             assert_eq!(lines.join(" "), crate::cautions::SHORT);
-            assert!(lines.iter().all(|l| crate::export::metrics::text_width(l, FONT, false) <= width - 24.0));
+            assert!(
+                lines
+                    .iter()
+                    .all(|l| crate::export::metrics::text_width(l, FONT, false) <= width - 24.0)
+            );
             assert!(height(width, crate::cautions::SHORT) >= (lines.len() + 1) as f64 * LINE_H);
         }
     }

@@ -9,7 +9,12 @@ pub type Ring = Vec<(f64, f64)>;
 pub fn clip(ring: &[(f64, f64)], r: [f64; 4]) -> Ring {
     let mut out: Ring = ring.to_vec();
     // Each side as (axis, bound, keep-below): points with coordinate on the kept side survive.
-    for (axis, bound, below) in [(0, r[0], false), (0, r[2], true), (1, r[1], false), (1, r[3], true)] {
+    for (axis, bound, below) in [
+        (0, r[0], false),
+        (0, r[2], true),
+        (1, r[1], false),
+        (1, r[3], true),
+    ] {
         let inside = |p: &(f64, f64)| {
             let v = if axis == 0 { p.0 } else { p.1 };
             if below { v <= bound } else { v >= bound }
@@ -41,7 +46,12 @@ pub fn clip(ring: &[(f64, f64)], r: [f64; 4]) -> Ring {
 
 /// The zones' rings in pixels, clipped to the map area `r`; snapped to whole pixels (repeated
 /// points dropped) when `snap`.
-pub fn zone_rings(zones: &[Vec<[f64; 2]>], frame: &super::layout::Frame, r: [f64; 4], snap: bool) -> Vec<Ring> {
+pub fn zone_rings(
+    zones: &[Vec<[f64; 2]>],
+    frame: &super::layout::Frame,
+    r: [f64; 4],
+    snap: bool,
+) -> Vec<Ring> {
     zones
         .iter()
         .map(|z| {
@@ -63,13 +73,26 @@ pub fn zone_rings(zones: &[Vec<[f64; 2]>], frame: &super::layout::Frame, r: [f64
 mod tests {
     #[test]
     fn a_square_larger_than_the_box_becomes_the_box() {
-        let ring = [(-10.0, -10.0), (110.0, -10.0), (110.0, 110.0), (-10.0, 110.0)];
+        let ring = [
+            (-10.0, -10.0),
+            (110.0, -10.0),
+            (110.0, 110.0),
+            (-10.0, 110.0),
+        ];
         let c = super::clip(&ring, [0.0, 0.0, 100.0, 50.0]);
         for p in &c {
-            assert!((0.0..=100.0).contains(&p.0) && (0.0..=50.0).contains(&p.1), "{p:?}");
+            assert!(
+                (0.0..=100.0).contains(&p.0) && (0.0..=50.0).contains(&p.1),
+                "{p:?}"
+            );
         }
         // Shoelace area of the clipped ring: the whole box.
-        let a: f64 = (0..c.len()).map(|i| { let (p, q) = (c[i], c[(i + 1) % c.len()]); p.0 * q.1 - q.0 * p.1 }).sum();
+        let a: f64 = (0..c.len())
+            .map(|i| {
+                let (p, q) = (c[i], c[(i + 1) % c.len()]);
+                p.0 * q.1 - q.0 * p.1
+            })
+            .sum();
         assert!((a.abs() / 2.0 - 5000.0).abs() < 1e-9);
         assert!(super::clip(&ring, [200.0, 200.0, 300.0, 300.0]).is_empty());
     }

@@ -68,7 +68,11 @@ pub fn prepare(scene: &Scene) -> Drawing {
             .filter(|&e| net.edges[e].cost == 0),
     );
     let backup = st.edges(scene.backup_edges.iter().map(|&e| e as usize));
-    let repair_lines: Vec<Vec<(f64, f64)>> = scene.steps.iter().map(|s| st.edge(s.edge as usize)).collect();
+    let repair_lines: Vec<Vec<(f64, f64)>> = scene
+        .steps
+        .iter()
+        .map(|s| st.edge(s.edge as usize))
+        .collect();
     let repairs: Vec<(String, Lines)> = if st.simplify {
         let mut by_day: Vec<(String, Lines)> = Vec::new();
         for (s, l) in scene.steps.iter().zip(&repair_lines) {
@@ -100,7 +104,10 @@ pub fn prepare(scene: &Scene) -> Drawing {
     let mut order: Vec<usize> = (0..scene.sites.len()).collect();
     order.sort_by(|&a, &b| {
         let (sa, sb) = (&scene.sites[a], &scene.sites[b]);
-        sb.hub.cmp(&sa.hub).then(sb.priority.total_cmp(&sa.priority)).then(a.cmp(&b))
+        sb.hub
+            .cmp(&sa.hub)
+            .then(sb.priority.total_cmp(&sa.priority))
+            .then(a.cmp(&b))
     });
     let mut labels = Vec::new();
     for i in order {
@@ -111,7 +118,8 @@ pub fn prepare(scene: &Scene) -> Drawing {
     }
     let mut numbers = Vec::new();
     for (s, l) in scene.steps.iter().zip(&repair_lines).take(numbered) {
-        let at = midpoint(l).unwrap_or_else(|| frame.px(net.junctions[net.edges[s.edge as usize].from as usize]));
+        let at = midpoint(l)
+            .unwrap_or_else(|| frame.px(net.junctions[net.edges[s.edge as usize].from as usize]));
         if let Some(spot) = placer.place_on(&s.order.to_string(), NUMBER_FONT, at) {
             numbers.push((s.order, spot));
         }
@@ -146,7 +154,10 @@ pub fn prepare(scene: &Scene) -> Drawing {
     }
     let band_w = frame.width - 2.0 * layout::MARGIN;
     // Each note wrapped to the picture's width.
-    let notes: Vec<String> = notes.iter().flat_map(|n| super::band::wrap_px(n, band_w)).collect();
+    let notes: Vec<String> = notes
+        .iter()
+        .flat_map(|n| super::band::wrap_px(n, band_w))
+        .collect();
     let height = (frame.map_bottom()
         + layout::SCALE_ROW
         + NOTE_H * notes.len() as f64

@@ -48,9 +48,17 @@ impl Placer {
     }
 
     fn cells(&self, r: &Rect) -> impl Iterator<Item = usize> + '_ {
-        let c = |v: f64, lo: f64, n: usize| (((v - lo) / self.cell).floor().max(0.0) as usize).min(n - 1);
-        let (c0, c1) = (c(r[0], self.bounds[0], self.cols), c(r[2], self.bounds[0], self.cols));
-        let (r0, r1) = (c(r[1], self.bounds[1], self.rows), c(r[3], self.bounds[1], self.rows));
+        let c = |v: f64, lo: f64, n: usize| {
+            (((v - lo) / self.cell).floor().max(0.0) as usize).min(n - 1)
+        };
+        let (c0, c1) = (
+            c(r[0], self.bounds[0], self.cols),
+            c(r[2], self.bounds[0], self.cols),
+        );
+        let (r0, r1) = (
+            c(r[1], self.bounds[1], self.rows),
+            c(r[3], self.bounds[1], self.rows),
+        );
         (r0..=r1).flat_map(move |row| (c0..=c1).map(move |col| row * self.cols + col))
     }
 
@@ -61,7 +69,9 @@ impl Placer {
             && r[1] >= b[1]
             && r[2] <= b[2]
             && r[3] <= b[3]
-            && self.cells(r).all(|i| self.buckets[i].iter().all(|o| !overlaps(o, r)))
+            && self
+                .cells(r)
+                .all(|i| self.buckets[i].iter().all(|o| !overlaps(o, r)))
     }
 
     /// Marks `r` as taken (symbols are taken whether or not they are free).
@@ -74,7 +84,14 @@ impl Placer {
 
     /// Places `text` (font `size` px) near the point (x, y), clear of a symbol of radius `r`;
     /// None when every position is taken.
-    pub fn place(&mut self, text: &str, size: f64, bold: bool, (x, y): (f64, f64), r: f64) -> Option<Spot> {
+    pub fn place(
+        &mut self,
+        text: &str,
+        size: f64,
+        bold: bool,
+        (x, y): (f64, f64),
+        r: f64,
+    ) -> Option<Spot> {
         let w = text_width(text, size, bold);
         // The box spans the ascent (0.76 em) and descent (0.24 em) of DejaVu Sans around the
         // baseline, with a pixel of halo.
@@ -100,7 +117,11 @@ impl Placer {
             let rect = [left - 1.0, sy - asc, left + w + 1.0, sy + desc];
             if self.free(&rect) {
                 self.take(rect);
-                return Some(Spot { x: sx, y: sy, anchor });
+                return Some(Spot {
+                    x: sx,
+                    y: sy,
+                    anchor,
+                });
             }
         }
         None
@@ -112,10 +133,19 @@ impl Placer {
         let w = text_width(text, size, true);
         let (asc, desc) = (0.76 * size + 1.0, 0.24 * size + 1.0);
         let base = y + 0.5 * (asc - desc);
-        let rect = [x - w / 2.0 - 1.0, base - asc, x + w / 2.0 + 1.0, base + desc];
+        let rect = [
+            x - w / 2.0 - 1.0,
+            base - asc,
+            x + w / 2.0 + 1.0,
+            base + desc,
+        ];
         if self.free(&rect) {
             self.take(rect);
-            return Some(Spot { x, y: base, anchor: "middle" });
+            return Some(Spot {
+                x,
+                y: base,
+                anchor: "middle",
+            });
         }
         self.place(text, size, true, (x, y), 2.0)
     }
@@ -136,7 +166,11 @@ mod tests {
             match p.place(&t, 13.0, false, (200.0 + f64::from(i % 3), 150.0), 5.0) {
                 Some(s) => {
                     let w = text_width(&t, 13.0, false);
-                    let l = match s.anchor { "start" => s.x, "end" => s.x - w, _ => s.x - w / 2.0 };
+                    let l = match s.anchor {
+                        "start" => s.x,
+                        "end" => s.x - w,
+                        _ => s.x - w / 2.0,
+                    };
                     let r = [l, s.y - 9.9, l + w, s.y + 3.1];
                     assert!(boxes.iter().all(|b| !overlaps(b, &r)), "{t} overlaps");
                     boxes.push(r);
@@ -147,6 +181,9 @@ mod tests {
         assert!((4..=8).contains(&boxes.len()), "{} placed", boxes.len());
         assert_eq!(left_out + boxes.len(), 40);
         // Nothing goes outside the bounds.
-        assert!(p.place("far", 13.0, false, (399.0, 299.0), 5.0).is_some_and(|s| s.x <= 399.0));
+        assert!(
+            p.place("far", 13.0, false, (399.0, 299.0), 5.0)
+                .is_some_and(|s| s.x <= 399.0)
+        );
     }
 }

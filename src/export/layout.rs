@@ -69,7 +69,11 @@ impl Frame {
 
 /// The bounds of the network and the sites, lon/lat, and whether western longitudes go a turn
 /// east (a district across ±180° is narrower so; its edges may step from 179.99 to -179.99).
-fn bounds(net: &Network, sites: &[SiteMark], zones: &[Vec<[f64; 2]>]) -> (bool, [f64; 2], [f64; 2]) {
+fn bounds(
+    net: &Network,
+    sites: &[SiteMark],
+    zones: &[Vec<[f64; 2]>],
+) -> (bool, [f64; 2], [f64; 2]) {
     let points = || {
         net.geom
             .iter()
@@ -79,7 +83,11 @@ fn bounds(net: &Network, sites: &[SiteMark], zones: &[Vec<[f64; 2]>]) -> (bool, 
     let span = |east: bool| {
         let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
         for &p in points() {
-            let lon = if east && p[0] < 0.0 { p[0] + 360.0 } else { p[0] };
+            let lon = if east && p[0] < 0.0 {
+                p[0] + 360.0
+            } else {
+                p[0]
+            };
             lo = [lo[0].min(lon), lo[1].min(p[1])];
             hi = [hi[0].max(lon), hi[1].max(p[1])];
         }
@@ -109,7 +117,10 @@ pub fn frame(net: &Network, sites: &[SiteMark], legend: (f64, f64)) -> Frame {
     // The map area takes the district's proportions, its long side MAP_LONG.
     let short_min = MAP_SHORT_MIN.max(legend.1);
     let (mw, mh) = if span[0] >= span[1] {
-        (MAP_LONG, (MAP_LONG * span[1] / span[0]).clamp(short_min, MAP_LONG))
+        (
+            MAP_LONG,
+            (MAP_LONG * span[1] / span[0]).clamp(short_min, MAP_LONG),
+        )
     } else {
         ((MAP_LONG * span[0] / span[1]).max(MAP_SHORT_MIN), MAP_LONG)
     };

@@ -9,7 +9,9 @@
 //! the repairs share one colour and the legend says they are not scheduled by day.
 
 use super::metrics::text_width;
-use super::palette::{self, BACKUP, DAMAGED, DISTINCT_DAYS, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD};
+use super::palette::{
+    self, BACKUP, DAMAGED, DISTINCT_DAYS, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD,
+};
 use super::palette::{ZONE_EDGE, ZONE_FILL};
 use super::scene::Scene;
 use super::text::xml;
@@ -57,7 +59,11 @@ pub fn build(scene: &Scene, numbered: usize) -> Legend {
     let line = |colour: &str, width: f64, dash: bool| {
         format!(
             r#"stroke="{colour}" stroke-width="{width}"{}"#,
-            if dash { r#" stroke-dasharray="4 3""# } else { "" }
+            if dash {
+                r#" stroke-dasharray="4 3""#
+            } else {
+                ""
+            }
         )
     };
     if !scene.zones.is_empty() {
@@ -73,9 +79,16 @@ pub fn build(scene: &Scene, numbered: usize) -> Legend {
         ));
     }
     if any(&|e| !net.edges[e].usable()) {
-        rows.push((Row::Line(line(IMPASSABLE, 2.0, true)), "road, impassable".into()));
+        rows.push((
+            Row::Line(line(IMPASSABLE, 2.0, true)),
+            "road, impassable".into(),
+        ));
     }
-    if scene.plan_edges.iter().any(|&e| net.edges[e as usize].cost == 0) {
+    if scene
+        .plan_edges
+        .iter()
+        .any(|&e| net.edges[e as usize].cost == 0)
+    {
         rows.push((
             Row::Line(line(PLAN_INTACT, 3.0, false)),
             "intact road the plan uses".into(),
@@ -110,19 +123,28 @@ pub fn build(scene: &Scene, numbered: usize) -> Legend {
     }
     for joined in [true, false] {
         if scene.sites.iter().any(|s| !s.hub && s.connected == joined) {
-            let label = if joined { "site joined to the hub" } else { "site not joined to the hub" };
+            let label = if joined {
+                "site joined to the hub"
+            } else {
+                "site not joined to the hub"
+            };
             rows.push((Row::Site(joined), label.into()));
         }
     }
     let mut width: f64 = 160.0;
     let mut height = 2.0 * PADDING;
     for (row, label) in &rows {
-        let indent = if matches!(row, Row::Note) { 0.0 } else { SYMBOL };
+        let indent = if matches!(row, Row::Note) {
+            0.0
+        } else {
+            SYMBOL
+        };
         width = width.max(2.0 * PADDING + indent + text_width(label, FONT, false));
         height += row_height(row);
         if let Row::Ramp(_) = row {
             for k in 0..palette::bins(days) {
-                width = width.max(2.0 * PADDING + SYMBOL + text_width(&bin_label(k, days), FONT, false));
+                width = width
+                    .max(2.0 * PADDING + SYMBOL + text_width(&bin_label(k, days), FONT, false));
             }
         }
     }
@@ -165,7 +187,13 @@ pub fn write<W: Write>(w: &mut W, lg: &Legend, (x, y): (f64, f64)) -> io::Result
     let mut cy = y + PADDING + ROW / 2.0;
     for (row, label) in &lg.rows {
         let text = |w: &mut W, x: f64, cy: f64| {
-            writeln!(w, r#"<text x="{}" y="{}">{}</text>"#, Fixed(x, 1), Fixed(cy + 4.5, 1), xml(label))
+            writeln!(
+                w,
+                r#"<text x="{}" y="{}">{}</text>"#,
+                Fixed(x, 1),
+                Fixed(cy + 4.5, 1),
+                xml(label)
+            )
         };
         match row {
             Row::Line(style) => {
@@ -241,4 +269,3 @@ pub fn write<W: Write>(w: &mut W, lg: &Legend, (x, y): (f64, f64)) -> io::Result
     }
     writeln!(w, "</g>")
 }
-

@@ -163,7 +163,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         .iter()
         .map(|s| (s.edge, (s.order, s.phase)))
         .collect();
-    let backup_edges: Vec<u32> = o.backup.map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());
+    let backup_edges: Vec<u32> = o
+        .backup
+        .map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());
     let scene = scene::Scene {
         title: o.title,
         net: o.net,
@@ -180,7 +182,11 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let pictures = || -> Result<Vec<u8>, ExportError> {
         let drawn = drawing::prepare(&scene);
         let (svg, png) = rayon::join(
-            || st.write("plan.svg", |w| picture::write_drawing(w, &scene, &drawn, true)),
+            || {
+                st.write("plan.svg", |w| {
+                    picture::write_drawing(w, &scene, &drawn, true)
+                })
+            },
             || {
                 raster::render_drawing(&scene, &drawn).map_err(|e| ExportError::Io {
                     path: out.given().join("plan.png"),

@@ -10,7 +10,9 @@
 
 use super::drawing::{self, Drawing, LABEL_FONT, NOTE_H, NUMBER_FONT};
 use super::layout::{MARGIN, SCALE_ROW};
-use super::palette::{BACKUP, DAMAGED, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD, ZONE_EDGE, ZONE_FILL};
+use super::palette::{
+    BACKUP, DAMAGED, IMPASSABLE, INK, PAPER, PLAN_INTACT, ROAD, ZONE_EDGE, ZONE_FILL,
+};
 use super::scene::Scene;
 use super::strokes::path_data;
 use super::text::xml;
@@ -34,8 +36,16 @@ pub struct SiteMark<'a> {
 /// Path elements hold at most this many lines, so no element grows without bound.
 const LINES_PER_PATH: usize = 5000;
 
-fn lines_group<W: Write>(w: &mut W, id: &str, style: &str, lines: &[Vec<(f64, f64)>]) -> io::Result<()> {
-    writeln!(w, r#"<g id="{id}" fill="none" stroke-linecap="round" stroke-linejoin="round" {style}>"#)?;
+fn lines_group<W: Write>(
+    w: &mut W,
+    id: &str,
+    style: &str,
+    lines: &[Vec<(f64, f64)>],
+) -> io::Result<()> {
+    writeln!(
+        w,
+        r#"<g id="{id}" fill="none" stroke-linecap="round" stroke-linejoin="round" {style}>"#
+    )?;
     for chunk in lines.chunks(LINES_PER_PATH) {
         writeln!(w, r#"<path d="{}"/>"#, path_data(chunk))?;
     }
@@ -63,27 +73,58 @@ pub fn write_drawing<W2: Write>(w: W2, scene: &Scene, d: &Drawing, lines: bool) 
     let (mx, my, mw, mh) = fr.map;
     if lines {
         writeln!(w, r##"<rect width="100%" height="100%" fill="{PAPER}"/>"##)?;
-        write!(w, r#"<g id="damage-zones" fill="{ZONE_FILL}" stroke="{ZONE_EDGE}" stroke-width="1">"#)?;
+        write!(
+            w,
+            r#"<g id="damage-zones" fill="{ZONE_FILL}" stroke="{ZONE_EDGE}" stroke-width="1">"#
+        )?;
         for ring in &d.zones {
             let l = vec![ring.clone()];
             writeln!(w, r#"<path d="{}Z"/>"#, path_data(&l))?;
         }
         writeln!(w, "</g>")?;
         let b = |k: f64| Fixed(base * k, 2);
-        lines_group(&mut w, "network", &format!(r#"stroke="{ROAD}" stroke-width="{}""#, b(1.0)), &d.roads)?;
-        lines_group(&mut w, "damaged", &format!(r#"stroke="{DAMAGED}" stroke-width="{}""#, b(1.4)), &d.damaged)?;
-        let dash = format!(r#"stroke="{IMPASSABLE}" stroke-width="{}" stroke-dasharray="4 3""#, b(1.2));
+        lines_group(
+            &mut w,
+            "network",
+            &format!(r#"stroke="{ROAD}" stroke-width="{}""#, b(1.0)),
+            &d.roads,
+        )?;
+        lines_group(
+            &mut w,
+            "damaged",
+            &format!(r#"stroke="{DAMAGED}" stroke-width="{}""#, b(1.4)),
+            &d.damaged,
+        )?;
+        let dash = format!(
+            r#"stroke="{IMPASSABLE}" stroke-width="{}" stroke-dasharray="4 3""#,
+            b(1.2)
+        );
         lines_group(&mut w, "impassable", &dash, &d.impassable)?;
-        lines_group(&mut w, "plan-intact", &format!(r#"stroke="{PLAN_INTACT}" stroke-width="{}""#, b(1.8)), &d.plan_intact)?;
-        let dash = format!(r#"stroke="{BACKUP}" stroke-width="{}" stroke-dasharray="7 4""#, b(2.4));
+        lines_group(
+            &mut w,
+            "plan-intact",
+            &format!(r#"stroke="{PLAN_INTACT}" stroke-width="{}""#, b(1.8)),
+            &d.plan_intact,
+        )?;
+        let dash = format!(
+            r#"stroke="{BACKUP}" stroke-width="{}" stroke-dasharray="7 4""#,
+            b(2.4)
+        );
         lines_group(&mut w, "backup-links", &dash, &d.backup)?;
-        writeln!(w, r#"<g id="repairs" fill="none" stroke-linecap="round" stroke-linejoin="round" stroke-width="{}">"#, b(3.0))?;
+        writeln!(
+            w,
+            r#"<g id="repairs" fill="none" stroke-linecap="round" stroke-linejoin="round" stroke-width="{}">"#,
+            b(3.0)
+        )?;
         for (colour, l) in &d.repairs {
             writeln!(w, r#"<path d="{}" stroke="{colour}"/>"#, path_data(l))?;
         }
         writeln!(w, "</g>")?;
     }
-    writeln!(w, r##"<rect id="map-frame" x="{mx}" y="{my}" width="{mw}" height="{mh}" fill="none" stroke="#b0b0b0"/>"##)?;
+    writeln!(
+        w,
+        r##"<rect id="map-frame" x="{mx}" y="{my}" width="{mw}" height="{mh}" fill="none" stroke="#b0b0b0"/>"##
+    )?;
     write_sites(&mut w, scene, d)?;
     writeln!(
         w,
@@ -95,12 +136,21 @@ pub fn write_drawing<W2: Write>(w: W2, scene: &Scene, d: &Drawing, lines: bool) 
     writeln!(w, r#"<g id="notes" font-size="13" fill="{INK}">"#)?;
     let top = fr.map_bottom() + SCALE_ROW;
     for (i, n) in d.notes.iter().enumerate() {
-        writeln!(w, r#"<text x="{MARGIN}" y="{}">{}</text>"#, Fixed(top + NOTE_H * (i as f64 + 0.7), 1), xml(n))?;
+        writeln!(
+            w,
+            r#"<text x="{MARGIN}" y="{}">{}</text>"#,
+            Fixed(top + NOTE_H * (i as f64 + 0.7), 1),
+            xml(n)
+        )?;
     }
     writeln!(w, "</g>")?;
     super::band::write_band(
         &mut w,
-        (MARGIN, top + NOTE_H * d.notes.len() as f64 + 8.0, fr.width - 2.0 * MARGIN),
+        (
+            MARGIN,
+            top + NOTE_H * d.notes.len() as f64 + 8.0,
+            fr.width - 2.0 * MARGIN,
+        ),
         scene.caution,
         scene.attribution,
     )?;
@@ -141,12 +191,18 @@ fn write_sites<W: Write>(w: &mut W, scene: &Scene, d: &Drawing) -> io::Result<()
             spot.anchor
         )
     };
-    writeln!(w, r#"<g id="site-labels" font-size="{LABEL_FONT}" stroke="{PAPER}" stroke-width="3" paint-order="stroke" fill="{INK}">"#)?;
+    writeln!(
+        w,
+        r#"<g id="site-labels" font-size="{LABEL_FONT}" stroke="{PAPER}" stroke-width="3" paint-order="stroke" fill="{INK}">"#
+    )?;
     for (i, spot) in &d.labels {
         text(w, spot, &xml(scene.sites[*i].label), "")?;
     }
     writeln!(w, "</g>")?;
-    writeln!(w, r#"<g id="repair-numbers" font-size="{NUMBER_FONT}" font-weight="bold" stroke="{PAPER}" stroke-width="3" paint-order="stroke" fill="{INK}">"#)?;
+    writeln!(
+        w,
+        r#"<g id="repair-numbers" font-size="{NUMBER_FONT}" font-weight="bold" stroke="{PAPER}" stroke-width="3" paint-order="stroke" fill="{INK}">"#
+    )?;
     for (n, spot) in &d.numbers {
         text(w, spot, &n.to_string(), "")?;
     }

@@ -9,7 +9,9 @@ use super::drawing::{self, Drawing};
 use super::palette;
 use super::picture;
 use super::scene::Scene;
-use resvg::tiny_skia::{self, Color, FillRule, Paint, PathBuilder, Pixmap, Stroke, StrokeDash, Transform};
+use resvg::tiny_skia::{
+    self, Color, FillRule, Paint, PathBuilder, Pixmap, Stroke, StrokeDash, Transform,
+};
 use resvg::usvg;
 
 const SANS: &[u8] = include_bytes!("fonts/DejaVuSans.ttf");
@@ -40,7 +42,13 @@ pub fn parse_overlay(svg: &[u8]) -> Result<usvg::Tree, String> {
 
 /// Strokes polylines in batches of about 64k points: one path for a million roads would make
 /// tiny-skia hold its whole stroked outline at once (hundreds of MB); batches keep it small.
-fn stroke_lines(pixmap: &mut Pixmap, lines: &[Vec<(f64, f64)>], hex: &str, width: f64, dash: Option<[f32; 2]>) {
+fn stroke_lines(
+    pixmap: &mut Pixmap,
+    lines: &[Vec<(f64, f64)>],
+    hex: &str,
+    width: f64,
+    dash: Option<[f32; 2]>,
+) {
     const BATCH_POINTS: usize = 1 << 16;
     let paint = paint(hex);
     let mut stroke = Stroke {
@@ -85,7 +93,8 @@ pub fn render_png(scene: &Scene) -> Result<Vec<u8>, String> {
 
 /// Draws a prepared drawing as PNG bytes.
 pub fn render_drawing(scene: &Scene, d: &Drawing) -> Result<Vec<u8>, String> {
-    let mut pixmap = Pixmap::new(d.frame.width as u32, d.height as u32).ok_or("the picture has no area")?;
+    let mut pixmap =
+        Pixmap::new(d.frame.width as u32, d.height as u32).ok_or("the picture has no area")?;
     pixmap.fill(Color::WHITE);
     for ring in &d.zones {
         let mut pb = PathBuilder::new();
@@ -101,15 +110,39 @@ pub fn render_drawing(scene: &Scene, d: &Drawing) -> Result<Vec<u8>, String> {
             let fill = paint(palette::ZONE_FILL);
             pixmap.fill_path(&path, &fill, FillRule::Winding, Transform::identity(), None);
             let edge = paint(palette::ZONE_EDGE);
-            pixmap.stroke_path(&path, &edge, &Stroke::default(), Transform::identity(), None);
+            pixmap.stroke_path(
+                &path,
+                &edge,
+                &Stroke::default(),
+                Transform::identity(),
+                None,
+            );
         }
     }
     let b = d.frame.base;
     stroke_lines(&mut pixmap, &d.roads, palette::ROAD, b, None);
     stroke_lines(&mut pixmap, &d.damaged, palette::DAMAGED, b * 1.4, None);
-    stroke_lines(&mut pixmap, &d.impassable, palette::IMPASSABLE, b * 1.2, Some([4.0, 3.0]));
-    stroke_lines(&mut pixmap, &d.plan_intact, palette::PLAN_INTACT, b * 1.8, None);
-    stroke_lines(&mut pixmap, &d.backup, palette::BACKUP, b * 2.4, Some([7.0, 4.0]));
+    stroke_lines(
+        &mut pixmap,
+        &d.impassable,
+        palette::IMPASSABLE,
+        b * 1.2,
+        Some([4.0, 3.0]),
+    );
+    stroke_lines(
+        &mut pixmap,
+        &d.plan_intact,
+        palette::PLAN_INTACT,
+        b * 1.8,
+        None,
+    );
+    stroke_lines(
+        &mut pixmap,
+        &d.backup,
+        palette::BACKUP,
+        b * 2.4,
+        Some([7.0, 4.0]),
+    );
     for (c, l) in &d.repairs {
         stroke_lines(&mut pixmap, l, c, b * 3.0, None);
     }

@@ -69,10 +69,20 @@ pub struct Context<'a> {
 /// Writes the report (the picture embedded as a data URI so the page needs nothing else).
 pub fn write_report<W: Write>(mut w: W, c: &Context) -> io::Result<()> {
     let (s, title) = (c.summary, c.title);
-    writeln!(w, "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">")?;
-    writeln!(w, "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">")?;
+    writeln!(
+        w,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+    )?;
+    writeln!(
+        w,
+        "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
+    )?;
     writeln!(w, "<title>{} — repair plan</title>", esc(title))?;
-    writeln!(w, "<style>{}</style></head><body>", super::report_parts::STYLE)?;
+    writeln!(
+        w,
+        "<style>{}</style></head><body>",
+        super::report_parts::STYLE
+    )?;
     writeln!(w, "<h1>{} — repair plan</h1>", esc(title))?;
     writeln!(w, "<div class=\"caution\"><strong>Cautions</strong><ul>")?;
     for caution in &s.cautions {
@@ -83,9 +93,17 @@ pub fn write_report<W: Write>(mut w: W, c: &Context) -> io::Result<()> {
         writeln!(w, "<p class=\"attribution\">Data: {}</p>", esc(a))?;
     }
     if !s.notes.is_empty() {
-        writeln!(w, "<h2>Notes</h2><p>Defaults and choices of this run that change the answer:</p><ul>")?;
+        writeln!(
+            w,
+            "<h2>Notes</h2><p>Defaults and choices of this run that change the answer:</p><ul>"
+        )?;
         for n in &s.notes {
-            writeln!(w, "<li>{} <small>({})</small></li>", esc(&n.message), esc(n.code))?;
+            writeln!(
+                w,
+                "<li>{} <small>({})</small></li>",
+                esc(&n.message),
+                esc(n.code)
+            )?;
         }
         writeln!(w, "</ul>")?;
     }
@@ -109,7 +127,10 @@ pub fn write_report<W: Write>(mut w: W, c: &Context) -> io::Result<()> {
         writeln!(w, "<tr><th>{}</th><td class=\"n\">{v}</td></tr>", esc(k))?;
     }
     writeln!(w, "</table>")?;
-    writeln!(w, "<h2>Inputs</h2><table><thead><tr><th>Role</th><th>Path</th><th>SHA-256</th></tr></thead><tbody>")?;
+    writeln!(
+        w,
+        "<h2>Inputs</h2><table><thead><tr><th>Role</th><th>Path</th><th>SHA-256</th></tr></thead><tbody>"
+    )?;
     for i in &s.inputs {
         writeln!(
             w,
@@ -122,7 +143,12 @@ pub fn write_report<W: Write>(mut w: W, c: &Context) -> io::Result<()> {
     writeln!(w, "</tbody></table>")?;
     super::report_parts::write_settings(&mut w, &s.settings)?;
     super::report_parts::write_glossary(&mut w)?;
-    writeln!(w, "<p>{} {}</p></body></html>", esc(s.tool.name), esc(s.tool.version))?;
+    writeln!(
+        w,
+        "<p>{} {}</p></body></html>",
+        esc(s.tool.name),
+        esc(s.tool.version)
+    )?;
     Ok(())
 }
 
@@ -131,29 +157,53 @@ fn write_figures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     let s = c.summary;
     writeln!(w, "<h2>Figures</h2><table>")?;
     let gap = match s.gap {
-        Some(g) => format!("{} %{}", fixed(100.0 * g, 2), if s.optimal { " (proven optimal)" } else { "" }),
+        Some(g) => format!(
+            "{} %{}",
+            fixed(100.0 * g, 2),
+            if s.optimal { " (proven optimal)" } else { "" }
+        ),
         None if s.within_budget() => "not available (a plan within a budget has no bound)".into(),
         None => "not available (the bound is 0)".into(),
     };
     let intact = s.plan_edges.saturating_sub(s.plan.repair_edges);
     let rows = [
         ("Plan", s.plan.kind.to_string()),
-        ("Total repair cost", format!("{} repair-metres", fixed(s.total_cost, 1))),
-        ("Lower bound on any plan", format!("{} repair-metres", fixed(s.lower_bound, 1))),
+        (
+            "Total repair cost",
+            format!("{} repair-metres", fixed(s.total_cost, 1)),
+        ),
+        (
+            "Lower bound on any plan",
+            format!("{} repair-metres", fixed(s.lower_bound, 1)),
+        ),
         ("At most above the best plan", gap),
         (
             "Road to repair",
-            format!("{} m in {} repairs", fixed(s.repair_length_m, 1), s.plan.repair_edges),
+            format!(
+                "{} m in {} repairs",
+                fixed(s.repair_length_m, 1),
+                s.plan.repair_edges
+            ),
         ),
         ("Intact road pieces the plan uses", intact.to_string()),
         (
             "Road network",
             format!(
                 "{} junctions, {} road pieces ({} damaged, {} impassable), {} separate parts",
-                s.counts.junctions, s.counts.edges, s.counts.edges_damaged, s.counts.edges_closed, s.counts.components
+                s.counts.junctions,
+                s.counts.edges,
+                s.counts.edges_damaged,
+                s.counts.edges_closed,
+                s.counts.components
             ),
         ),
-        ("Coordinates", format!("{}; lengths {}", s.geodesy.input_crs, s.geodesy.length_method)),
+        (
+            "Coordinates",
+            format!(
+                "{}; lengths {}",
+                s.geodesy.input_crs, s.geodesy.length_method
+            ),
+        ),
     ];
     for (k, v) in rows {
         writeln!(w, "<tr><th>{}</th><td>{}</td></tr>", esc(k), esc(&v))?;
@@ -164,9 +214,11 @@ fn write_figures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
             "<tr><th>Sites</th><td>{} of {} joined to the hub {} (the hub included)</td></tr>",
             st.connected,
             st.total,
-            st.hub.as_deref().map_or("none".to_string(), |h| match c.sites.iter().position(|r| r.id == h) {
-                Some(i) => super::report_tables::site_text(c, i),
-                None => esc(h),
+            st.hub.as_deref().map_or("none".to_string(), |h| {
+                match c.sites.iter().position(|r| r.id == h) {
+                    Some(i) => super::report_tables::site_text(c, i),
+                    None => esc(h),
+                }
             })
         )?;
     }
@@ -178,7 +230,10 @@ fn write_days<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     let s = c.summary;
     writeln!(w, "<h2>Days</h2>")?;
     if !c.scheduled {
-        return writeln!(w, "<p>Repairs not scheduled by day (no --crew-capacity).</p>");
+        return writeln!(
+            w,
+            "<p>Repairs not scheduled by day (no --crew-capacity).</p>"
+        );
     }
     writeln!(
         w,
@@ -197,11 +252,16 @@ fn write_days<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
             w,
             "<tr><td>{}{}</td><td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td><td class=\"n\">{}</td></tr>",
             p.phase,
-            if p.over_capacity { " (over capacity)" } else { "" },
+            if p.over_capacity {
+                " (over capacity)"
+            } else {
+                ""
+            },
             p.repairs,
             fixed(p.cost, 1),
             names.join(", "),
-            p.cumulative_share_of_sites.map_or("—".to_string(), |x| format!("{} %", fixed(100.0 * x, 0)))
+            p.cumulative_share_of_sites
+                .map_or("—".to_string(), |x| format!("{} %", fixed(100.0 * x, 0)))
         )?;
     }
     writeln!(w, "</tbody></table>")
@@ -222,7 +282,10 @@ fn write_budget<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     if left.is_empty() {
         return writeln!(w, "<p>The budget left no site out.</p>");
     }
-    writeln!(w, "<p>Sites the budget left out (they need more repairs than it allows):</p><ul>")?;
+    writeln!(
+        w,
+        "<p>Sites the budget left out (they need more repairs than it allows):</p><ul>"
+    )?;
     for i in left {
         writeln!(w, "<li>{}</li>", super::report_tables::site_text(c, i))?;
     }
@@ -243,18 +306,37 @@ fn write_single_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     writeln!(w, "<table>")?;
     let after = s.backup.as_ref().and_then(|b| b.fragility_after.as_ref());
     if after.is_some() {
-        writeln!(w, "<tr><th></th><th>After the plan</th><th>With backup links</th></tr>")?;
+        writeln!(
+            w,
+            "<tr><th></th><th>After the plan</th><th>With backup links</th></tr>"
+        )?;
     }
     for (label, b, a) in [
-        ("Sites checked (joined to the hub, the hub excepted)", f.sites_checked, after.map(|a| a.sites_checked)),
-        ("Roads whose loss cuts a site off", f.critical_edges, after.map(|a| a.critical_edges)),
+        (
+            "Sites checked (joined to the hub, the hub excepted)",
+            f.sites_checked,
+            after.map(|a| a.sites_checked),
+        ),
+        (
+            "Roads whose loss cuts a site off",
+            f.critical_edges,
+            after.map(|a| a.critical_edges),
+        ),
         (
             "Sites a single road failure cuts off",
             f.sites_with_single_points_of_failure,
             after.map(|a| a.sites_with_single_points_of_failure),
         ),
-        ("Roads with no way round (anywhere)", f.bridges, after.map(|a| a.bridges)),
-        ("Junctions with no way round", f.cut_vertices, after.map(|a| a.cut_vertices)),
+        (
+            "Roads with no way round (anywhere)",
+            f.bridges,
+            after.map(|a| a.bridges),
+        ),
+        (
+            "Junctions with no way round",
+            f.cut_vertices,
+            after.map(|a| a.cut_vertices),
+        ),
     ] {
         writeln!(
             w,

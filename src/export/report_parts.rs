@@ -10,7 +10,7 @@ use std::io::{self, Write};
 /// on each page and rows are not split.
 pub const STYLE: &str = "body{font-family:'DejaVu Sans',Arial,sans-serif;margin:24px auto;max-width:1100px;color:#111;line-height:1.35}\
 table{border-collapse:collapse;margin:8px 0 20px}td,th{border:1px solid #bbb;padding:3px 7px;text-align:left;vertical-align:top}\
-thead th{background:#f0f0f0}td.n{text-align:right;font-variant-numeric:tabular-nums}\
+thead th{background:#f0f0f0}td.n{text-align:right;font-variant-numeric:tabular-nums}td code{white-space:nowrap}\
 .caution{border:2px solid #8c2d04;background:#fff4ec;padding:8px 12px}img{max-width:100%;border:1px solid #ddd}\
 pre{background:#f6f6f6;padding:8px;overflow:auto;white-space:pre-wrap}dt{font-weight:bold}dd{margin:0 0 6px 18px}\
 @page{margin:14mm}\
@@ -22,9 +22,17 @@ thead{display:table-header-group}tr,img,.caution{break-inside:avoid}details{disp
 pub fn write_settings<W: Write>(w: &mut W, settings: &serde_json::Value) -> io::Result<()> {
     let mut rows: Vec<(String, String)> = Vec::new();
     flatten("", settings, &mut rows);
-    writeln!(w, "<h2>Settings</h2><table><thead><tr><th>Setting</th><th>Value</th></tr></thead><tbody>")?;
+    writeln!(
+        w,
+        "<h2>Settings</h2><table><thead><tr><th>Setting</th><th>Value</th></tr></thead><tbody>"
+    )?;
     for (k, v) in &rows {
-        writeln!(w, "<tr><th>{}</th><td>{}</td></tr>", esc(&k.replace('_', " ")), esc(v))?;
+        writeln!(
+            w,
+            "<tr><th>{}</th><td>{}</td></tr>",
+            esc(&k.replace('_', " ")),
+            esc(v)
+        )?;
     }
     writeln!(w, "</tbody></table>")?;
     writeln!(
@@ -39,13 +47,24 @@ fn flatten(prefix: &str, v: &serde_json::Value, rows: &mut Vec<(String, String)>
     match v {
         Value::Object(m) if !m.is_empty() => {
             for (k, x) in m {
-                let name = if prefix.is_empty() { k.clone() } else { format!("{prefix}.{k}") };
+                let name = if prefix.is_empty() {
+                    k.clone()
+                } else {
+                    format!("{prefix}.{k}")
+                };
                 flatten(&name, x, rows);
             }
         }
         Value::Array(a) if a.iter().all(|x| !x.is_object() && !x.is_array()) => {
             let items: Vec<String> = a.iter().map(plain).collect();
-            rows.push((prefix.into(), if items.is_empty() { "none".into() } else { items.join(", ") }));
+            rows.push((
+                prefix.into(),
+                if items.is_empty() {
+                    "none".into()
+                } else {
+                    items.join(", ")
+                },
+            ));
         }
         other => rows.push((prefix.into(), plain(other))),
     }
@@ -61,19 +80,58 @@ fn plain(v: &serde_json::Value) -> String {
 
 /// The glossary: every term of the trade or of reknit the report uses, in plain words.
 pub const GLOSSARY: [(&str, &str); 13] = [
-    ("Repair", "A piece of damaged road, between two junctions, that the plan asks crews to reopen."),
-    ("Work order", "The key (WO-…) of one piece of road: the same piece keeps its key in every re-plan of the same road layer, so crews can report back against it (work-orders.csv)."),
-    ("Repair-metre", "The unit of cost: one metre of road at damage factor 1. It is relative repair effort, not money or time."),
-    ("Damage factor", "How much effort a metre of a road needs, relative to the others; 0 is intact. Impassable roads cannot be used or repaired in this plan."),
-    ("Intact road", "A road with damage factor 0: assumed passable, with any structures on it, until field-verified."),
-    ("Hub", "The site everything is joined to (a depot, a hospital): a site counts as joined when a path of intact and repaired roads leads from it to the hub."),
-    ("Day", "A group of repairs that fits one day's crew capacity (--crew-capacity), in repair order. Without a capacity the repairs are not scheduled by day."),
-    ("Lower bound", "A cost no plan joining the same sites can go below; the gap between it and the plan's cost says how far from the best plan this one can be at most."),
-    ("Road with no way round", "A road whose loss alone splits the usable network in two: traffic has no other route across."),
-    ("Junction with no way round", "A junction whose loss alone splits the usable network."),
-    ("Backup link", "Further repairs (--redundancy) that give a site a second way to the hub, so no single road failure cuts it off."),
-    ("Damage zone, damage report", "A polygon (flood, landslide) raising the damage of the roads inside it; a field report is a point applied to the nearest road within a distance."),
-    ("Structure", "A bridge, culvert or tunnel the data marks on a road: it needs inspection by a qualified engineer before use, repaired or not."),
+    (
+        "Repair",
+        "A piece of damaged road, between two junctions, that the plan asks crews to reopen.",
+    ),
+    (
+        "Work order",
+        "The key (WO-…) of one piece of road: the same piece keeps its key in every re-plan of the same road layer, so crews can report back against it (work-orders.csv).",
+    ),
+    (
+        "Repair-metre",
+        "The unit of cost: one metre of road at damage factor 1. It is relative repair effort, not money or time.",
+    ),
+    (
+        "Damage factor",
+        "How much effort a metre of a road needs, relative to the others; 0 is intact. Impassable roads cannot be used or repaired in this plan.",
+    ),
+    (
+        "Intact road",
+        "A road with damage factor 0: assumed passable, with any structures on it, until field-verified.",
+    ),
+    (
+        "Hub",
+        "The site everything is joined to (a depot, a hospital): a site counts as joined when a path of intact and repaired roads leads from it to the hub.",
+    ),
+    (
+        "Day",
+        "A group of repairs that fits one day's crew capacity (--crew-capacity), in repair order. Without a capacity the repairs are not scheduled by day.",
+    ),
+    (
+        "Lower bound",
+        "A cost no plan joining the same sites can go below; the gap between it and the plan's cost says how far from the best plan this one can be at most.",
+    ),
+    (
+        "Road with no way round",
+        "A road whose loss alone splits the usable network in two: traffic has no other route across.",
+    ),
+    (
+        "Junction with no way round",
+        "A junction whose loss alone splits the usable network.",
+    ),
+    (
+        "Backup link",
+        "Further repairs (--redundancy) that give a site a second way to the hub, so no single road failure cuts it off.",
+    ),
+    (
+        "Damage zone, damage report",
+        "A polygon (flood, landslide) raising the damage of the roads inside it; a field report is a point applied to the nearest road within a distance.",
+    ),
+    (
+        "Structure",
+        "A bridge, culvert or tunnel the data marks on a road: it needs inspection by a qualified engineer before use, repaired or not.",
+    ),
 ];
 
 /// Writes the glossary as a definition list.

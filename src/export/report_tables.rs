@@ -29,7 +29,9 @@ fn figure_cells(c: &Context, e: u32) -> String {
         "<td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td>",
         fixed(edge.length_m, 1),
         fixed(cost_to_repair_metres(edge.cost), 1),
-        meta.structure.as_deref().map_or(String::new(), |s| format!("{} — inspect", esc(s)))
+        meta.structure
+            .as_deref()
+            .map_or(String::new(), |s| format!("{} — inspect", esc(s)))
     )
 }
 
@@ -56,10 +58,16 @@ fn site_by_id(c: &Context, id: &str) -> String {
 pub fn write_repairs<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     writeln!(w, "<h2 id=\"repairs\">Repairs in order</h2>")?;
     if c.steps.is_empty() {
-        return writeln!(w, "<p>The plan needs no repair: intact roads already join what it joins.</p>");
+        return writeln!(
+            w,
+            "<p>The plan needs no repair: intact roads already join what it joins.</p>"
+        );
     }
     if !c.scheduled {
-        writeln!(w, "<p>The repairs are not scheduled by day (no --crew-capacity): the order is the order of work.</p>")?;
+        writeln!(
+            w,
+            "<p>The repairs are not scheduled by day (no --crew-capacity): the order is the order of work.</p>"
+        )?;
     }
     writeln!(
         w,
@@ -67,7 +75,15 @@ pub fn write_repairs<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     )?;
     for s in c.steps.iter().take(MAX_ROWS) {
         let day = if c.scheduled {
-            format!("{}{}", s.phase, if s.over_capacity { " (over capacity)" } else { "" })
+            format!(
+                "{}{}",
+                s.phase,
+                if s.over_capacity {
+                    " (over capacity)"
+                } else {
+                    ""
+                }
+            )
         } else {
             "—".into()
         };
@@ -83,7 +99,11 @@ pub fn write_repairs<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     }
     writeln!(w, "</tbody></table>")?;
     if c.steps.len() > MAX_ROWS {
-        writeln!(w, "<p>The first {MAX_ROWS} of {} repairs; work-orders.csv lists them all.</p>", c.steps.len())?;
+        writeln!(
+            w,
+            "<p>The first {MAX_ROWS} of {} repairs; work-orders.csv lists them all.</p>",
+            c.steps.len()
+        )?;
     }
     if let Some(b) = c.backup.filter(|b| !b.rows.is_empty()) {
         writeln!(
@@ -191,7 +211,10 @@ pub fn write_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
         }
         writeln!(w, "</tbody></table>")?;
     }
-    if let Some(b) = c.backup.filter(|b| !b.figures.sites_without_possible_backup.is_empty()) {
+    if let Some(b) = c
+        .backup
+        .filter(|b| !b.figures.sites_without_possible_backup.is_empty())
+    {
         writeln!(
             w,
             "<h3>Sites no backup can protect</h3><p>Each has a single road in: no repair gives it a way round.</p><table><thead><tr><th>Site</th><th>Roads with no way round (work order, road)</th></tr></thead><tbody>"
@@ -202,10 +225,19 @@ pub fn write_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
                 .iter()
                 .map(|&e| {
                     let meta = &c.net.features[c.net.edges[e as usize].feature as usize];
-                    format!("{} {}", esc(&c.keys.key(c.net, e)), esc(meta.label.as_deref().unwrap_or("(no name)")))
+                    format!(
+                        "{} {}",
+                        esc(&c.keys.key(c.net, e)),
+                        esc(meta.label.as_deref().unwrap_or("(no name)"))
+                    )
                 })
                 .collect();
-            writeln!(w, "<tr><td>{}</td><td>{}</td></tr>", site_by_id(c, &sf.site), roads.join("; "))?;
+            writeln!(
+                w,
+                "<tr><td>{}</td><td>{}</td></tr>",
+                site_by_id(c, &sf.site),
+                roads.join("; ")
+            )?;
         }
         writeln!(w, "</tbody></table>")?;
     }

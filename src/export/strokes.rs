@@ -117,7 +117,10 @@ pub fn midpoint(l: &[(f64, f64)]) -> Option<(f64, f64)> {
         let s = seg(w);
         if s >= left && s > 0.0 {
             let t = left / s;
-            return Some((w[0].0 + t * (w[1].0 - w[0].0), w[0].1 + t * (w[1].1 - w[0].1)));
+            return Some((
+                w[0].0 + t * (w[1].0 - w[0].0),
+                w[0].1 + t * (w[1].1 - w[0].1),
+            ));
         }
         left -= s;
     }
