@@ -104,10 +104,10 @@ fn bounds(
 }
 
 /// The frame for a district, with a legend `legend` (width, height) pixels in size. Damage zones
-/// are part of the extent only where they reach no further than the network (a zone drawn for a
-/// whole region would otherwise shrink the district to a dot); they are clipped to the map area.
+/// are not part of the extent (a zone drawn for a whole region would shrink the district to a
+/// dot); they are clipped to the map area.
 pub fn frame(net: &Network, sites: &[SiteMark], legend: (f64, f64)) -> Frame {
-    let (east, lo, hi) = bounds(net, sites, &[]);
+    let (east, lo, hi) = bounds(net, sites);
     let lat0 = 0.5 * (lo[1] + hi[1]);
     let (my, mx) = crate::ingest::geodesy::metres_per_degree(lat0);
     let span = [

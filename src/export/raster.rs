@@ -143,8 +143,17 @@ pub fn render_drawing(scene: &Scene, d: &Drawing) -> Result<Vec<u8>, String> {
         b * 2.4,
         Some([7.0, 4.0]),
     );
-    for (c, l) in &d.repairs {
-        stroke_lines(&mut pixmap, l, c, b * 3.0, None);
+    // Consecutive repairs of one colour in one batch (a day at a time), in repair order.
+    let mut k = 0;
+    while k < d.repairs.len() {
+        let c = &d.repairs[k].0;
+        let run = d.repairs[k..].iter().take_while(|r| &r.0 == c).count();
+        let lines: Vec<Vec<(f64, f64)>> = d.repairs[k..k + run]
+            .iter()
+            .flat_map(|r| r.1.iter().cloned())
+            .collect();
+        stroke_lines(&mut pixmap, &lines, c, b * 3.0, None);
+        k += run;
     }
     // The overlay: everything but the road lines, as SVG on a transparent background.
     let mut overlay = Vec::new();
