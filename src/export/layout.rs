@@ -69,17 +69,8 @@ impl Frame {
 
 /// The bounds of the network and the sites, lon/lat, and whether western longitudes go a turn
 /// east (a district across ±180° is narrower so; its edges may step from 179.99 to -179.99).
-fn bounds(
-    net: &Network,
-    sites: &[SiteMark],
-    zones: &[Vec<[f64; 2]>],
-) -> (bool, [f64; 2], [f64; 2]) {
-    let points = || {
-        net.geom
-            .iter()
-            .chain(sites.iter().map(|s| &s.pos))
-            .chain(zones.iter().flatten())
-    };
+fn bounds(net: &Network, sites: &[SiteMark]) -> (bool, [f64; 2], [f64; 2]) {
+    let points = || net.geom.iter().chain(sites.iter().map(|s| &s.pos));
     let span = |east: bool| {
         let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
         for &p in points() {
