@@ -32,7 +32,7 @@ fn points(g: roxmltree::Node) -> Vec<(f64, f64)> {
     for p in g.descendants().filter(|n| n.has_tag_name("path")) {
         let d = p.attribute("d").unwrap();
         let nums: Vec<f64> = d
-            .split(|c: char| c == 'M' || c == 'L' || c == ' ' || c == 'Z')
+            .split(['M', 'L', ' ', 'Z'])
             .filter(|s| !s.is_empty())
             .map(|s| s.parse().unwrap())
             .collect();
