@@ -82,7 +82,7 @@ mod tests {
         let c = super::clip(&ring, [0.0, 0.0, 100.0, 50.0]);
         for p in &c {
             assert!(
-                (0.0..=100.0).contains(&p.0) && (0.0..=50.0).contains(&p.1),
+                (-1e-9..=100.0 + 1e-9).contains(&p.0) && (-1e-9..=50.0 + 1e-9).contains(&p.1),
                 "{p:?}"
             );
         }
