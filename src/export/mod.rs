@@ -5,17 +5,26 @@
 
 pub mod backup;
 pub mod band;
+pub mod clip;
+pub mod drawing;
 pub mod geojson;
 pub mod guard;
+pub mod labels;
+pub mod layout;
 pub mod legend;
+pub mod metrics;
 pub mod ownership;
 pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
 pub mod single_failures;
+pub mod report_parts;
+pub mod report_tables;
+pub mod scene;
 pub mod sites;
 pub mod staging;
+pub mod strokes;
 pub mod structures;
 pub mod summary;
 pub mod text;
@@ -109,6 +118,12 @@ pub struct Outputs<'a> {
     pub marks: &'a [picture::SiteMark<'a>],
     /// The changes against the previous plan (a re-plan only).
     pub changes: Option<&'a crate::replan::changes::Changes<'a>>,
+    /// Outer rings of the damage zones, lon/lat (empty without zones).
+    pub zones: &'a [Vec<[f64; 2]>],
+    /// True when `--crew-capacity` grouped the repairs into days.
+    pub scheduled: bool,
+    /// The budget given (`--budget`), repair-metres.
+    pub budget: Option<f64>,
     /// The summary.
     pub summary: &'a Summary,
 }
@@ -147,37 +162,37 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             &ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> =
-        o.steps.iter().map(|s| (s.edge, (s.order, s.day))).collect();
+    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> = o
+        .steps
+        .iter()
+        .map(|s| (s.edge, (s.order, s.day)))
+        .collect();
+    let backup_edges: Vec<u32> = o
+        .backup
+        .map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());
+    let scene = scene::Scene {
+        title: o.title,
+        net: o.net,
+        plan_edges: &o.plan.edges,
+        steps: o.steps,
+        backup_edges: &backup_edges,
+        zones: o.zones,
+        sites: o.marks,
+        scheduled: o.scheduled,
+        caution: crate::cautions::SHORT,
+        attribution,
+    };
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
+        let drawn = drawing::prepare(&scene);
         let (svg, png) = rayon::join(
             || {
                 st.write("plan.svg", |w| {
-                    picture::write_svg(
-                        w,
-                        o.title,
-                        o.net,
-                        &o.plan.edges,
-                        o.steps,
-                        o.marks,
-                        crate::cautions::SHORT,
-                        attribution,
-                        true,
-                    )
+                    picture::write_drawing(w, &scene, &drawn, true)
                 })
             },
             || {
-                raster::render_png(
-                    o.title,
-                    o.net,
-                    &o.plan.edges,
-                    o.steps,
-                    o.marks,
-                    crate::cautions::SHORT,
-                    attribution,
-                )
-                .map_err(|e| ExportError::Io {
+                raster::render_drawing(&scene, &drawn).map_err(|e| ExportError::Io {
                     path: out.given().join("plan.png"),
                     source: std::io::Error::other(e),
                 })
@@ -214,7 +229,23 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     b?;
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
-        report::write_report(w, o.title, &png, o.summary)
+        report::write_report(
+            w,
+            &report::Context {
+                title: o.title,
+                png: &png,
+                summary: o.summary,
+                net: o.net,
+                steps: o.steps,
+                keys: &ids,
+                sites: o.sites.unwrap_or_default(),
+                site_ids: o.site_ids,
+                single_failures: o.single_failures,
+                backup: o.backup,
+                budget: o.budget,
+                scheduled: o.scheduled,
+            },
+        )
     })?;
     if let Some(f) = o.single_failures {
         st.write("single-failures.geojson", |w| {

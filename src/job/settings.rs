@@ -200,7 +200,7 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 16] = [
+    let rules: [(&'static str, bool, bool, &'static str); 17] = [
         (
             "--hub",
             o.hub.is_some(),

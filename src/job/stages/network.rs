@@ -23,6 +23,8 @@ pub(in crate::job) struct Built {
     pub noding: NodingStats,
     /// Damage zones read and edges whose cost they changed.
     pub zone_figures: (usize, usize),
+    /// The zones' outer rings, lon/lat, for the picture.
+    pub zone_rings: Vec<Vec<[f64; 2]>>,
     /// What the damage reports did, when given.
     pub report_figures: Option<ReportFigures>,
     /// One attachment per site (empty without sites).
@@ -47,10 +49,16 @@ pub(in crate::job) fn build(
     };
     let mut inputs = Vec::new();
     let mut zone_figures = (0usize, 0usize);
+    let mut zone_rings = Vec::new();
     if let Some(src) = &job.zones {
         let _s = progress.stage("applying damage zones");
         let zl = read_zones(src, &job.zone_damage, job.zones_crs.as_deref())?;
         zone_figures = (zl.zones.len(), apply_zones(&mut net, &zl));
+        zone_rings = zl
+            .zones
+            .iter()
+            .map(|z| z.polygon.exterior().coords().map(|c| [c.x, c.y]).collect())
+            .collect();
         notes::layer_defaults(
             notes,
             "zone_damage_defaulted",
@@ -135,6 +143,7 @@ pub(in crate::job) fn build(
         net,
         noding,
         zone_figures,
+        zone_rings,
         report_figures,
         attachments,
         inputs,
