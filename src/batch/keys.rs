@@ -184,6 +184,10 @@ pub const KEYS: &[Key] = &[
         j.site_name_field = v.opt_text()?;
         Ok(())
     }),
+    key("site_tags", Filters, |j, v| {
+        j.site_tags = v.filters()?;
+        Ok(())
+    }),
     key("priority_field", OptText, |j, v| {
         j.priority_field = v.opt_text()?;
         Ok(())

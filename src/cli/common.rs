@@ -240,6 +240,12 @@ pub struct SiteArgs {
     /// The sites layer's CRS as EPSG:NNNN (default: its .prj, or WGS84 longitude/latitude).
     #[arg(long, value_name = "EPSG:CODE")]
     pub sites_crs: Option<String>,
+
+    /// With --sites FILE.osm.pbf: tags choosing the sites, KEY=V1,V2 (repeatable; `*` any value).
+    /// Default: amenity=hospital,clinic,school,fuel; healthcare=hospital,clinic;
+    /// social_facility=shelter; emergency=assembly_point.
+    #[arg(long, value_name = "KEY=V1,V2")]
+    pub site_tags: Vec<String>,
 }
 
 impl SiteArgs {
@@ -252,6 +258,7 @@ impl SiteArgs {
         o.lon_column = self.lon_column.clone();
         o.lat_column = self.lat_column.clone();
         o.sites_crs = self.sites_crs.clone();
+        o.site_tags = self.site_tags.clone();
         o.max_attach_m = self.max_attach;
         o.hub = self.hub.clone();
         o.whole_network = self.whole_network;

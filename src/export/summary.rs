@@ -48,6 +48,10 @@ pub struct Counts {
     pub features_used: usize,
     /// Features skipped, by reason.
     pub features_skipped: BTreeMap<String, usize>,
+    /// Features that lost part of their geometry at the file's edge (OpenStreetMap ways cut at the
+    /// extract's boundary, kept as their located runs); omitted when none.
+    #[serde(skip_serializing_if = "crate::export::summary::is_zero")]
+    pub features_cut_at_edge: usize,
     /// Line parts read.
     pub line_parts: usize,
     /// Vertices read.
@@ -262,4 +266,9 @@ mod tests {
         assert_eq!(super::round3(-0.0004).to_string(), "0");
         assert_eq!(super::round3(1.23456), 1.235);
     }
+}
+
+/// True for a zero count (left out of summary.json).
+pub fn is_zero(n: &usize) -> bool {
+    *n == 0
 }

@@ -113,6 +113,8 @@ pub struct Options {
     pub lat_column: Option<String>,
     /// `--sites-crs`.
     pub sites_crs: Option<String>,
+    /// `--site-tags` texts, `KEY=V1,V2` each (sites of an OpenStreetMap extract).
+    pub site_tags: Vec<String>,
 }
 
 impl Options {
@@ -144,6 +146,7 @@ impl Options {
             lon_column: None,
             lat_column: None,
             sites_crs: None,
+            site_tags: Vec::new(),
         }
     }
 }

@@ -26,6 +26,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "site_id_field": ss.id_field,
         "site_name_field": ss.name_field,
         "priority_field": ss.priority_field,
+        "site_tags": ss.osm_tags.iter().map(|f| format!("{}={}", f.field, f.values.join(","))).collect::<Vec<_>>(),
         "lon_column": ss.lon_column,
         "lat_column": ss.lat_column,
         "crs": s.crs,

@@ -138,6 +138,11 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             lon_column: o.lon_column.clone(),
             lat_column: o.lat_column.clone(),
             crs: o.sites_crs.clone(),
+            osm_tags: o
+                .site_tags
+                .iter()
+                .map(|t| RoadFilter::parse(t, true).map_err(|m| refuse("--site-tags", m)))
+                .collect::<Result<_, _>>()?,
         },
         max_attach_m: o.max_attach_m.unwrap_or(250.0),
         hub: o.hub.clone(),
@@ -180,12 +185,21 @@ fn needs_input(o: &Options) -> Result<(), IngestError> {
 pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
+    let osm_sites = o.sites.as_ref().is_some_and(|s| {
+        crate::ingest::reader::Format::of(s) == crate::ingest::reader::Format::OsmPbf
+    });
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 15] = [
+    let rules: [(&'static str, bool, bool, &'static str); 16] = [
+        (
+            "--site-tags",
+            !o.site_tags.is_empty(),
+            osm_sites,
+            "only sites from an OpenStreetMap extract (--sites FILE.osm.pbf) are chosen by tag",
+        ),
         (
             "--hub",
             o.hub.is_some(),
