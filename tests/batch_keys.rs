@@ -24,6 +24,7 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("closed_value", "\"shut\""),
     ("id_field", "\"rid\""),
     ("crs", "\"EPSG:4326\""),
+    ("roads_layer", "\"streets\""),
     ("category_field", "\"cat\""),
     ("cost_table", "\"costs.toml\""),
     ("keep_where", "\"hw=primary,secondary\""),
@@ -139,6 +140,13 @@ fn every_key_applies_alike_wherever_it_is_given() {
         ("damage_points", "\"base-reports.geojson\""),
     ];
     // `site_tags` chooses the sites of an OpenStreetMap extract only.
+    let roads_for = |key: &str| {
+        if key == "roads_layer" {
+            "\"base.gpkg\""
+        } else {
+            "\"base.geojson\""
+        }
+    };
     let sites_for = |key: &str| {
         if key == "site_tags" {
             "\"base.osm.pbf\""
@@ -152,6 +160,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
             .filter(|(k, _)| *k != skip)
             .map(|(k, v)| match *k {
                 "sites" => format!("{k} = {}\n", sites_for(skip)),
+                "roads" => format!("{k} = {}\n", roads_for(skip)),
                 _ => format!("{k} = {v}\n"),
             })
             .collect();
@@ -185,7 +194,13 @@ fn every_key_applies_alike_wherever_it_is_given() {
         }
         let mut row: Vec<String> = base
             .iter()
-            .map(|(k, v)| cell(if *k == "sites" { sites_for(key) } else { v }))
+            .map(|(k, v)| {
+                cell(match *k {
+                    "sites" => sites_for(key),
+                    "roads" => roads_for(key),
+                    _ => v,
+                })
+            })
             .collect();
         if key == "mst" {
             row.push("true".into());
@@ -265,12 +280,21 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
         }
     };
     // Every key but those of a whole-network plan (backup links need a sites plan), the damage
-    // field (the damage comes from `category_field` here) and the site tags (for sites from an
-    // OpenStreetMap extract, tests/osm.rs).
+    // field (the damage comes from `category_field` here), the site tags (for sites from an
+    // OpenStreetMap extract, tests/osm.rs) and the roads layer (GeoPackage, tests/gpkg.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
-        .filter(|(k, _)| !["whole_network", "mst", "damage_field", "site_tags"].contains(k))
+        .filter(|(k, _)| {
+            ![
+                "whole_network",
+                "mst",
+                "damage_field",
+                "site_tags",
+                "roads_layer",
+            ]
+            .contains(k)
+        })
         .collect();
     let plan_out = d.path().join("plan-out");
     let mut args = vec![

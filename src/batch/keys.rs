@@ -83,6 +83,10 @@ pub const KEYS: &[Key] = &[
         j.road.crs = v.opt_text()?;
         Ok(())
     }),
+    key("roads_layer", OptText, |j, v| {
+        j.road.roads_layer = v.opt_text()?;
+        Ok(())
+    }),
     key("category_field", OptText, |j, v| {
         j.road.category_field = v.opt_text()?;
         Ok(())

@@ -54,6 +54,10 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
+    /// The layer of a GeoPackage road file that holds several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub roads_layer: Option<String>,
+
     /// Road property holding a damage category (e.g. debris, washed-out, collapsed) instead of a
     /// numeric factor; categories map to factors through --cost-table (or the documented default).
     #[arg(long, value_name = "FIELD")]
@@ -150,6 +154,7 @@ impl NetworkArgs {
             closed_value: self.closed_value.clone(),
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
+            roads_layer: self.roads_layer.clone(),
             category_field: self.category_field.clone(),
             cost_table: self.cost_table.clone(),
             keep_where: self.keep_where.clone(),

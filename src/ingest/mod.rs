@@ -14,6 +14,7 @@ pub mod crs;
 pub mod damage;
 pub mod geodesy;
 pub mod geojson;
+pub mod gpkg;
 pub mod limits;
 pub mod members;
 pub mod noding;
@@ -31,6 +32,7 @@ pub mod sites;
 pub mod source;
 pub mod structures;
 pub mod value;
+pub mod wkb;
 pub mod wrap;
 pub mod zones;
 

@@ -10,6 +10,7 @@
 //! | GeoJSON (RFC 7946) | `geojson`, through `roads::read_geojson_roads` | WGS84, or the legacy `crs` member |
 //! | ESRI Shapefile | `shapefile` | its `.prj` |
 //! | OpenStreetMap `.osm.pbf` | [`super::osm`] | WGS84 always |
+//! | GeoPackage `.gpkg` | [`super::gpkg`] (geometry blobs: [`super::wkb`]) | the layer's `srs_id` |
 
 use super::IngestError;
 use super::crs::Crs;
@@ -28,6 +29,8 @@ pub enum Format {
     Shapefile,
     /// An OpenStreetMap extract in the PBF encoding (`.osm.pbf`, `.pbf`).
     OsmPbf,
+    /// A GeoPackage (`.gpkg`): an SQLite file of one or more layers.
+    GeoPackage,
 }
 
 impl Format {
@@ -36,6 +39,8 @@ impl Format {
         let name = source.display_path().to_string_lossy().to_lowercase();
         if name.ends_with(".pbf") {
             Format::OsmPbf
+        } else if name.ends_with(".gpkg") {
+            Format::GeoPackage
         } else if name.ends_with(".shp") && source.path().is_some() {
             Format::Shapefile
         } else {
@@ -152,6 +157,7 @@ mod tests {
         assert_eq!(f("x/li.osm.pbf"), Format::OsmPbf);
         assert_eq!(f("x/LI.OSM.PBF"), Format::OsmPbf);
         assert_eq!(f("roads.shp"), Format::Shapefile);
+        assert_eq!(f("County.GPKG"), Format::GeoPackage);
         assert_eq!(f("roads.geojson"), Format::GeoJson);
         assert_eq!(f("roads.json"), Format::GeoJson);
     }

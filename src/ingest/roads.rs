@@ -46,6 +46,8 @@ pub struct RoadSettings {
     pub structure_field: Option<String>,
     /// Attribution the data's source asks for (`--attribution`); OpenStreetMap's is added itself.
     pub attribution: Option<String>,
+    /// The layer to read from a file that holds several (a GeoPackage; `--roads-layer`).
+    pub layer: Option<String>,
 }
 
 impl RoadSettings {
@@ -80,6 +82,7 @@ impl Default for RoadSettings {
             filters: Vec::new(),
             structure_field: None,
             attribution: None,
+            layer: None,
         }
     }
 }
@@ -180,6 +183,7 @@ pub fn read_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer,
     match (Format::of(source), source.path()) {
         (Format::Shapefile, Some(p)) => super::shapefile::read_shapefile_roads(p, settings),
         (Format::OsmPbf, _) => super::osm::read_osm_roads(source, settings),
+        (Format::GeoPackage, _) => super::gpkg::read_gpkg_roads(source, settings),
         _ => read_geojson_roads(source, settings),
     }
 }

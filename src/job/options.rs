@@ -22,6 +22,8 @@ pub struct RoadOptions {
     pub id_field: Option<String>,
     /// `--crs`, as written (`EPSG:NNNN`).
     pub crs: Option<String>,
+    /// `--roads-layer`: the layer of a GeoPackage holding several.
+    pub roads_layer: Option<String>,
     /// `--category-field`.
     pub category_field: Option<String>,
     /// `--cost-table`: the file, read by `build`.
@@ -47,6 +49,7 @@ impl Default for RoadOptions {
             closed_value: "closed".into(),
             id_field: None,
             crs: None,
+            roads_layer: None,
             category_field: None,
             cost_table: None,
             keep_where: Vec::new(),

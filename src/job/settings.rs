@@ -95,6 +95,7 @@ fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
         },
         id_field: o.id_field.clone(),
         crs: o.crs.clone(),
+        layer: o.roads_layer.clone(),
         node_crossings: o.node_crossings,
         category_field: o.category_field.clone(),
         cost_table,
@@ -193,7 +194,14 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 16] = [
+    let rules: [(&'static str, bool, bool, &'static str); 17] = [
+        (
+            "--roads-layer",
+            o.road.roads_layer.is_some(),
+            crate::ingest::reader::Format::of(&o.roads)
+                == crate::ingest::reader::Format::GeoPackage,
+            "only a GeoPackage road file (--roads FILE.gpkg) holds layers to choose from",
+        ),
         (
             "--site-tags",
             !o.site_tags.is_empty(),
