@@ -257,6 +257,11 @@ pub fn round3(x: f64) -> f64 {
     (x * 1000.0).round() / 1000.0 + 0.0
 }
 
+/// True for a zero count (left out of summary.json).
+pub fn is_zero(n: &usize) -> bool {
+    *n == 0
+}
+
 #[cfg(test)]
 mod tests {
     #[test]
@@ -266,9 +271,4 @@ mod tests {
         assert_eq!(super::round3(-0.0004).to_string(), "0");
         assert_eq!(super::round3(1.23456), 1.235);
     }
-}
-
-/// True for a zero count (left out of summary.json).
-pub fn is_zero(n: &usize) -> bool {
-    *n == 0
 }
