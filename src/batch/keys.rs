@@ -83,6 +83,10 @@ pub const KEYS: &[Key] = &[
         j.road.crs = v.opt_text()?;
         Ok(())
     }),
+    key("roads_layer", OptText, |j, v| {
+        j.road.roads_layer = v.opt_text()?;
+        Ok(())
+    }),
     key("category_field", OptText, |j, v| {
         j.road.category_field = v.opt_text()?;
         Ok(())
@@ -190,6 +194,10 @@ pub const KEYS: &[Key] = &[
     }),
     key("site_name_field", OptText, |j, v| {
         j.site_name_field = v.opt_text()?;
+        Ok(())
+    }),
+    key("site_tags", Filters, |j, v| {
+        j.site_tags = v.filters()?;
         Ok(())
     }),
     key("priority_field", OptText, |j, v| {

@@ -54,6 +54,10 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
+    /// The layer of a GeoPackage road file that holds several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub roads_layer: Option<String>,
+
     /// Road property holding a damage category (e.g. debris, washed-out, collapsed) instead of a
     /// numeric factor; categories map to factors through --cost-table (or the documented default).
     #[arg(long, value_name = "FIELD")]
@@ -157,6 +161,7 @@ impl NetworkArgs {
             closed_value: self.closed_value.clone(),
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
+            roads_layer: self.roads_layer.clone(),
             category_field: self.category_field.clone(),
             cost_table: self.cost_table.clone(),
             keep_where: self.keep_where.clone(),
@@ -254,6 +259,12 @@ pub struct SiteArgs {
     /// The sites layer's CRS as EPSG:NNNN (default: its .prj, or WGS84 longitude/latitude).
     #[arg(long, value_name = "EPSG:CODE")]
     pub sites_crs: Option<String>,
+
+    /// With --sites FILE.osm.pbf: tags choosing the sites, KEY=V1,V2 (repeatable; `*` any value).
+    /// Default: amenity=hospital,clinic,school,fuel; healthcare=hospital,clinic;
+    /// social_facility=shelter; emergency=assembly_point.
+    #[arg(long, value_name = "KEY=V1,V2")]
+    pub site_tags: Vec<String>,
 }
 
 impl SiteArgs {
@@ -266,6 +277,7 @@ impl SiteArgs {
         o.lon_column = self.lon_column.clone();
         o.lat_column = self.lat_column.clone();
         o.sites_crs = self.sites_crs.clone();
+        o.site_tags = self.site_tags.clone();
         o.max_attach_m = self.max_attach;
         o.hub = self.hub.clone();
         o.whole_network = self.whole_network;

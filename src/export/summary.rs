@@ -48,6 +48,10 @@ pub struct Counts {
     pub features_used: usize,
     /// Features skipped, by reason.
     pub features_skipped: BTreeMap<String, usize>,
+    /// Features that lost part of their geometry at the file's edge (OpenStreetMap ways cut at the
+    /// extract's boundary, kept as their located runs); omitted when none.
+    #[serde(skip_serializing_if = "crate::export::summary::is_zero")]
+    pub features_cut_at_edge: usize,
     /// Line parts read.
     pub line_parts: usize,
     /// Vertices read.
@@ -263,6 +267,11 @@ impl Summary {
 /// of floats is −0, which would print as "-0.0").
 pub fn round3(x: f64) -> f64 {
     (x * 1000.0).round() / 1000.0 + 0.0
+}
+
+/// True for a zero count (left out of summary.json).
+pub fn is_zero(n: &usize) -> bool {
+    *n == 0
 }
 
 #[cfg(test)]

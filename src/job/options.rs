@@ -22,6 +22,8 @@ pub struct RoadOptions {
     pub id_field: Option<String>,
     /// `--crs`, as written (`EPSG:NNNN`).
     pub crs: Option<String>,
+    /// `--roads-layer`: the layer of a GeoPackage holding several.
+    pub roads_layer: Option<String>,
     /// `--category-field`.
     pub category_field: Option<String>,
     /// `--cost-table`: the file, read by `build`.
@@ -47,6 +49,7 @@ impl Default for RoadOptions {
             closed_value: "closed".into(),
             id_field: None,
             crs: None,
+            roads_layer: None,
             category_field: None,
             cost_table: None,
             keep_where: Vec::new(),
@@ -122,6 +125,8 @@ pub struct Options {
     pub earlier_damage_points: Vec<Source>,
     /// What crews did since the previous plan (`reknit replan` only; `None` for a first plan).
     pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
+    /// `--site-tags` texts, `KEY=V1,V2` each (sites of an OpenStreetMap extract).
+    pub site_tags: Vec<String>,
 }
 
 impl Options {
@@ -157,6 +162,7 @@ impl Options {
             sites_crs: None,
             earlier_damage_points: Vec::new(),
             field_work: None,
+            site_tags: Vec::new(),
         }
     }
 }

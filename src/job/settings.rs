@@ -98,6 +98,7 @@ fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
         },
         id_field: o.id_field.clone(),
         crs: o.crs.clone(),
+        layer: o.roads_layer.clone(),
         node_crossings: o.node_crossings,
         category_field: o.category_field.clone(),
         cost_table,
@@ -141,6 +142,11 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             lon_column: o.lon_column.clone(),
             lat_column: o.lat_column.clone(),
             crs: o.sites_crs.clone(),
+            osm_tags: o
+                .site_tags
+                .iter()
+                .map(|t| RoadFilter::parse(t, true).map_err(|m| refuse("--site-tags", m)))
+                .collect::<Result<_, _>>()?,
         },
         max_attach_m: o.max_attach_m.unwrap_or(250.0),
         hub: o.hub.clone(),
@@ -195,12 +201,28 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
     let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
+    let osm_sites = o.sites.as_ref().is_some_and(|s| {
+        crate::ingest::reader::Format::of(s) == crate::ingest::reader::Format::OsmPbf
+    });
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 17] = [
+    let rules: [(&'static str, bool, bool, &'static str); 19] = [
+        (
+            "--roads-layer",
+            o.road.roads_layer.is_some(),
+            crate::ingest::reader::Format::of(&o.roads)
+                == crate::ingest::reader::Format::GeoPackage,
+            "only a GeoPackage road file (--roads FILE.gpkg) holds layers to choose from",
+        ),
+        (
+            "--site-tags",
+            !o.site_tags.is_empty(),
+            osm_sites,
+            "only sites from an OpenStreetMap extract (--sites FILE.osm.pbf) are chosen by tag",
+        ),
         (
             "--hub",
             o.hub.is_some(),

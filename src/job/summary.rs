@@ -28,6 +28,7 @@ pub fn build(
         features_read: read.features_read,
         features_used: read.features_used,
         features_skipped: read.features_skipped.clone(),
+        features_cut_at_edge: read.features_cut_at_edge,
         line_parts: read.line_parts,
         vertices: read.vertices,
         vertices_moved: noding.vertices_moved,

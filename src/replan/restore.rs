@@ -181,6 +181,16 @@ pub const SETTINGS: &[(&str, Set)] = &[
         }
         Ok(())
     }),
+    ("roads_layer", |o, v| {
+        o.road.roads_layer = text(v)?;
+        Ok(())
+    }),
+    ("site_tags", |o, v| {
+        for t in v.as_array().ok_or("not a list")? {
+            o.site_tags.push(t.as_str().ok_or("not text")?.into());
+        }
+        Ok(())
+    }),
     ("sites_crs", |o, v| {
         o.sites_crs = text(v)?;
         Ok(())
