@@ -18,10 +18,10 @@ pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
-pub mod single_failures;
 pub mod report_parts;
 pub mod report_tables;
 pub mod scene;
+pub mod single_failures;
 pub mod sites;
 pub mod staging;
 pub mod strokes;
@@ -162,11 +162,8 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             &ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> = o
-        .steps
-        .iter()
-        .map(|s| (s.edge, (s.order, s.day)))
-        .collect();
+    let order_of: std::collections::HashMap<u32, (u32, Option<u32>)> =
+        o.steps.iter().map(|s| (s.edge, (s.order, s.day))).collect();
     let backup_edges: Vec<u32> = o
         .backup
         .map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());

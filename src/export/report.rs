@@ -295,7 +295,9 @@ fn write_budget<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
 /// How the joined sites stand if one road fails, before and after any backup links.
 fn write_single_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     let s = c.summary;
-    let Some(f) = &s.single_failures else { return Ok(()) };
+    let Some(f) = &s.single_failures else {
+        return Ok(());
+    };
     writeln!(w, "<h2 id=\"single-failures\">Single road failures</h2>")?;
     if f.sites_checked == 0 {
         writeln!(
@@ -304,7 +306,10 @@ fn write_single_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
         )?;
     }
     writeln!(w, "<table>")?;
-    let after = s.backup.as_ref().and_then(|b| b.single_failures_after.as_ref());
+    let after = s
+        .backup
+        .as_ref()
+        .and_then(|b| b.single_failures_after.as_ref());
     if after.is_some() {
         writeln!(
             w,
