@@ -16,23 +16,24 @@ fn main() {
     let (net, _) = reknit::ingest::build_network(layer, &s, false).expect("node");
     let g = net.weighted_edges();
     let plan = reknit::solve::minimum_spanning_forest(&g, Default::default()).expect("plan");
+    let scene = reknit::export::scene::Scene {
+        title: "bench",
+        net: &net,
+        plan_edges: &plan.edges,
+        steps: &[],
+        backup_edges: &[],
+        zones: &[],
+        sites: &[],
+        scheduled: false,
+        caution: "caution",
+        attribution: None,
+    };
     let t = Instant::now();
     let mut svg = std::io::sink();
-    write_svg(
-        &mut svg,
-        "bench",
-        &net,
-        &plan.edges,
-        &[],
-        &[],
-        "caution",
-        None,
-        true,
-    )
-    .expect("svg");
+    write_svg(&mut svg, &scene, true).expect("svg");
     let svg_s = t.elapsed().as_secs_f64();
     let t = Instant::now();
-    let png = render_png("bench", &net, &plan.edges, &[], &[], "caution", None).expect("png");
+    let png = render_png(&scene).expect("png");
     let png_s = t.elapsed().as_secs_f64();
     println!(
         "{} edges: SVG {svg_s:.2} s, PNG {png_s:.2} s ({} bytes)",

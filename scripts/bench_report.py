@@ -133,13 +133,13 @@ def main(path, doc):
     b = (by("backup") or [None])[0]
     nb = (by("bridges_networkx") or [{}])[0]
     if b:
-        out.append("### Single points of failure and backup links")
+        out.append("### Roads with no way round and backup links")
         out.append("")
         out.append(f"Lattice of {b['vertices']:,} junctions and {b['edges']:,} edges, {b['sites']} sites planned at quick effort. "
-                   f"Fragility search on the network after the plan ({b['usable_after_plan']:,} edges): {fmt_s(b['fragility_seconds'])}"
+                   f"Search for roads with no way round on the network after the plan ({b['usable_after_plan']:,} edges): {fmt_s(b['fragility_seconds'])}"
                    + (f"; networkx `bridges` + `articulation_points` on the same edges: {fmt_s(nb['seconds'])} ({ratio(nb['seconds'], b['fragility_seconds'])})" if "seconds" in nb else "")
                    + f". Over all {b['usable']:,} usable edges: {fmt_s(b['fragility_all_usable_seconds'])}. "
-                   f"Backup links: {fmt_s(b['backup_seconds'])} for {b['bridges_needing_backup']:,} bridges needing a way round, "
+                   f"Backup links: {fmt_s(b['backup_seconds'])} for {b['bridges_needing_backup']:,} roads needing a way round, "
                    f"{b['backup_repairs']:,} added repairs.")
         out.append("")
     out.append("### Against the targets")

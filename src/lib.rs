@@ -29,6 +29,7 @@ pub mod ingest;
 pub mod job;
 pub mod network;
 pub mod progress;
+pub mod replan;
 pub mod rng;
 pub mod sample;
 pub mod solve;

@@ -158,8 +158,12 @@ fn demo_with_backup_links_survives_every_avoidable_single_failure() {
         checked += 1;
     }
     assert!(checked >= 5, "only {checked} sites checked");
-    let before = s["fragility"]["critical_edges"].as_u64().unwrap();
-    let after = b["fragility_after"]["critical_edges"].as_u64().unwrap();
+    let before = s["single_failures"]["roads_cutting_off_sites"]
+        .as_u64()
+        .unwrap();
+    let after = b["single_failures_after"]["roads_cutting_off_sites"]
+        .as_u64()
+        .unwrap();
     assert!(after < before, "{after} ≥ {before}");
 
     // Work orders: the plan's rows, then the backup's, in one order.

@@ -428,6 +428,8 @@ fn every_case_is_listed_in_the_docs() {
         "tests/bad_streams.rs",
         "tests/bad_files.rs",
         "tests/bad_typing.rs",
+        "tests/bad_replan.rs",
+        "tests/bad_formats.rs",
     ] {
         names.extend(case_names(&std::fs::read_to_string(root.join(f)).unwrap()));
     }

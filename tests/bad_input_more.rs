@@ -385,10 +385,10 @@ case!(sites_at_the_antimeridian_and_the_poles, |d| {
             )
         })
         .collect();
-    assert_eq!(status["east"], "connected");
-    assert_eq!(status["west"], "connected");
-    assert_ne!(status["north"], "connected");
-    assert_ne!(status["south"], "connected");
+    assert_eq!(status["east"], "joined");
+    assert_eq!(status["west"], "joined");
+    assert_ne!(status["north"], "joined");
+    assert_ne!(status["south"], "joined");
 });
 
 case!(duplicate_road_ids_are_kept_apart, |d| {

@@ -116,7 +116,7 @@ case!(dbf_record_flagged_deleted_in_sites, |d| {
         .iter()
         .find(|i| i["role"] == "sites");
     assert_eq!(sites_in.unwrap()["deleted_records"], 1);
-    assert_eq!(s["sites"]["connected"], 2, "{}", s["sites"]);
+    assert_eq!(s["sites"]["joined_to_hub"], 2, "{}", s["sites"]);
 });
 
 case!(dbf_record_flagged_deleted_in_zones, |d| {

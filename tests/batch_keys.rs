@@ -24,6 +24,7 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("closed_value", "\"shut\""),
     ("id_field", "\"rid\""),
     ("crs", "\"EPSG:4326\""),
+    ("roads_layer", "\"streets\""),
     ("category_field", "\"cat\""),
     ("cost_table", "\"costs.toml\""),
     ("keep_where", "\"hw=primary,secondary\""),
@@ -32,7 +33,8 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("zone_damage_field", "\"zdmg\""),
     ("zones_crs", "\"EPSG:4326\""),
     ("damage_points", "\"reports.geojson\""),
-    ("report_distance", "80"),
+    ("damage_points_field", "\"pdmg\""),
+    ("point_match_distance", "80"),
     ("budget", "100000"),
     ("redundancy", "true"),
     ("crew_capacity", "500"),
@@ -46,9 +48,11 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("hub", "\"A\""),
     ("whole_network", "true"),
     ("effort", "\"quick\""),
+    ("time_limit", "30"),
     ("site_id_field", "\"sid\""),
     ("site_name_field", "\"label\""),
     ("priority_field", "\"prio\""),
+    ("site_tags", "\"amenity=hospital\""),
     ("lon_column", "\"x_lon\""),
     ("lat_column", "\"y_lat\""),
     ("sites_crs", "\"EPSG:4326\""),
@@ -139,11 +143,30 @@ fn every_key_applies_alike_wherever_it_is_given() {
         ("damage_zones", "\"base-zones.geojson\""),
         ("damage_points", "\"base-reports.geojson\""),
     ];
+    // `site_tags` chooses the sites of an OpenStreetMap extract only.
+    let roads_for = |key: &str| {
+        if key == "roads_layer" {
+            "\"base.gpkg\""
+        } else {
+            "\"base.geojson\""
+        }
+    };
+    let sites_for = |key: &str| {
+        if key == "site_tags" {
+            "\"base.osm.pbf\""
+        } else {
+            "\"base.csv\""
+        }
+    };
     let lines = |skip: &str| -> String {
         let mut l: String = base
             .iter()
             .filter(|(k, _)| *k != skip)
-            .map(|(k, v)| format!("{k} = {v}\n"))
+            .map(|(k, v)| match *k {
+                "sites" => format!("{k} = {}\n", sites_for(skip)),
+                "roads" => format!("{k} = {}\n", roads_for(skip)),
+                _ => format!("{k} = {v}\n"),
+            })
             .collect();
         // `mst` is for the whole-network plan only; `crews` share out a crew capacity.
         if skip == "mst" {
@@ -173,7 +196,16 @@ fn every_key_applies_alike_wherever_it_is_given() {
         );
         assert_ne!(in_district, absent, "{key}: the key changes nothing");
         let mut header = vec!["name", "roads", "sites", "damage_zones", "damage_points"];
-        let mut row: Vec<String> = base.iter().map(|(_, v)| cell(v)).collect();
+        let mut row: Vec<String> = base
+            .iter()
+            .map(|(k, v)| {
+                cell(match *k {
+                    "sites" => sites_for(key),
+                    "roads" => roads_for(key),
+                    _ => v,
+                })
+            })
+            .collect();
         if key == "mst" {
             header.push("whole_network");
             row.push("true".into());
@@ -256,12 +288,22 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
             t.to_string()
         }
     };
-    // Every key but those of a whole-network plan (backup links need a sites plan) and the
-    // damage field (the damage comes from `category_field` here).
+    // Every key but those of a whole-network plan (backup links need a sites plan), the damage
+    // field (the damage comes from `category_field` here), the site tags (for sites from an
+    // OpenStreetMap extract, tests/osm.rs) and the roads layer (GeoPackage, tests/gpkg.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
-        .filter(|(k, _)| !["whole_network", "mst", "damage_field"].contains(k))
+        .filter(|(k, _)| {
+            ![
+                "whole_network",
+                "mst",
+                "damage_field",
+                "site_tags",
+                "roads_layer",
+            ]
+            .contains(k)
+        })
         .collect();
     let plan_out = d.path().join("plan-out");
     let mut args = vec![

@@ -93,7 +93,7 @@ fn resume_fingerprints_every_file_of_a_shapefile() {
     );
     let moor = read_json(&out.join("Moor/summary.json"));
     assert_eq!(moor["counts"]["damage_zones"], 1);
-    assert_eq!(moor["sites"]["connected"], 2);
+    assert_eq!(moor["sites"]["joined_to_hub"], 2);
     let edits: [Edit; 4] = [
         ("prj", |p| {
             let t = std::fs::read_to_string(p).unwrap();

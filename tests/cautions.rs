@@ -74,7 +74,7 @@ fn a_plan_carries_the_cautions_in_every_output() {
     assert_eq!(top_keys(&summary)[..2], ["tool", "cautions"]);
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["cautions"].as_array().unwrap().len(), CAUTIONS.len());
-    // network, plan, qa, sites, fragility, backup and corridors layers.
+    // network, plan, qa, sites, single-failures, backup and corridors layers.
     assert_eq!(layers_carry_cautions(&out), 7);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     for c in CAUTIONS {
@@ -161,6 +161,7 @@ fn every_subcommand_help_ends_with_the_cautions() {
         &["plan"],
         &["demo"],
         &["check"],
+        &["replan"],
         &["batch"],
         &["merge"],
     ] {

@@ -16,13 +16,13 @@ fn demo_joins_the_sites_and_reports_them() {
         [
             ".reknit-outputs",
             "corridors.geojson",
-            "fragility.geojson",
             "network.geojson",
             "plan.geojson",
             "plan.png",
             "plan.svg",
             "qa.geojson",
             "report.html",
+            "single-failures.geojson",
             "sites.geojson",
             "summary.json",
             "work-orders.csv"
@@ -52,11 +52,14 @@ fn demo_joins_the_sites_and_reports_them() {
     let connected = sites
         .features
         .iter()
-        .filter(|f| f.property("connected").unwrap().as_bool().unwrap())
+        .filter(|f| f.property("joined_to_hub").unwrap().as_bool().unwrap())
         .count();
-    assert_eq!(connected as u64, s["sites"]["connected"].as_u64().unwrap());
+    assert_eq!(
+        connected as u64,
+        s["sites"]["joined_to_hub"].as_u64().unwrap()
+    );
     for f in &sites.features {
-        if f.property("status").unwrap() == "not attached" {
+        if f.property("status").unwrap() == "not_attached" {
             assert!(f.property("reason").unwrap().is_string());
         }
     }
@@ -352,15 +355,15 @@ fn check_reports_topology_and_every_repair() {
         .sum();
     assert_eq!(qa.features.len() as u64, counted);
     // The sample map has digitised gaps at junctions and an overpass: both are on record.
-    assert!(s["counts"]["qa"]["merged vertices"].as_u64().unwrap_or(0) >= 1);
+    assert!(s["counts"]["qa"]["merged_vertices"].as_u64().unwrap_or(0) >= 1);
     assert!(
-        s["counts"]["qa"]["crossing left apart"]
+        s["counts"]["qa"]["crossing_left_apart"]
             .as_u64()
             .unwrap_or(0)
             >= 1
     );
     assert_eq!(
         s["dangles"].as_u64().unwrap(),
-        s["counts"]["qa"]["dangling end"].as_u64().unwrap()
+        s["counts"]["qa"]["dangling_end"].as_u64().unwrap()
     );
 }

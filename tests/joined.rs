@@ -37,7 +37,7 @@ fn demo_within_budgets_joins_only_what_reaches_the_hub() {
         assert!(s["total_cost"].as_f64().unwrap() <= budget.parse::<f64>().unwrap());
         // The hub's single-failure report covers the sites the budget joins.
         assert_eq!(
-            s["fragility"]["sites_checked"].as_u64().unwrap() as usize,
+            s["single_failures"]["sites_checked"].as_u64().unwrap() as usize,
             joined - 1
         );
         assert!(

@@ -188,7 +188,7 @@ mod repairs {
         );
         n.validate().unwrap();
         assert_eq!(s.undershoots_joined, 1);
-        assert_eq!(count(&s, "joined undershoot"), 1);
+        assert_eq!(count(&s, "joined_undershoot"), 1);
         assert_eq!(n.edges.len(), 3, "main road split at the join");
         assert_eq!(degree_sequence(&n), vec![1, 1, 1, 3]);
         // Beyond the tolerance it stays a dangling end.
@@ -216,7 +216,7 @@ mod repairs {
         n.validate().unwrap();
         // The stub is gone, and the change is on record (merged into the junction, or trimmed).
         assert_eq!(
-            count(&s, "trimmed overshoot") + count(&s, "merged vertices"),
+            count(&s, "trimmed_overshoot") + count(&s, "merged_vertices"),
             1
         );
         assert_eq!(n.edges.len(), 3);
@@ -247,10 +247,10 @@ mod repairs {
         ];
         let (n, s) = node_with(layer(&lines), opts(0.5, false));
         assert_eq!(n.edges.len(), 2, "left apart by default (an overpass)");
-        assert_eq!(count(&s, "crossing left apart"), 1);
+        assert_eq!(count(&s, "crossing_left_apart"), 1);
         let (n, s) = node_with(layer(&lines), opts(0.5, true));
         n.validate().unwrap();
-        assert_eq!(count(&s, "crossing joined"), 1);
+        assert_eq!(count(&s, "crossing_joined"), 1);
         assert_eq!(n.edges.len(), 4);
         assert_eq!(degree_sequence(&n), vec![1, 1, 1, 1, 4]);
         let total: f64 = n.edges.iter().map(|e| e.length_m).sum();

@@ -225,8 +225,8 @@ fn a_hub_off_the_roads_gives_way_to_the_next_site_on_them() {
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["sites"]["hub"], "a");
     // The single-failure report is made from that hub and covers b.
-    assert_eq!(s["fragility"]["sites_checked"], 1);
-    assert_eq!(s["fragility"]["sites_with_single_points_of_failure"], 1);
+    assert_eq!(s["single_failures"]["sites_checked"], 1);
+    assert_eq!(s["single_failures"]["sites_with_a_single_failure"], 1);
 }
 
 #[test]
@@ -244,10 +244,12 @@ fn a_hub_alone_on_its_roads_is_announced_and_checks_no_site() {
     let (out, err) = run_notes(d.path(), &roads, &sites, &[]);
     note(&out, &err, "hub_alone");
     let s = read_json(&out.join("summary.json"));
-    assert_eq!(s["sites"]["connected"], 1);
-    assert_eq!(s["fragility"]["sites_checked"], 0);
+    assert_eq!(s["sites"]["joined_to_hub"], 1);
+    assert_eq!(s["single_failures"]["sites_checked"], 0);
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(html.contains("Sites checked (joined to the hub, the hub excepted)</th><td>0<"));
+    assert!(
+        html.contains("Sites checked (joined to the hub, the hub excepted)</th><td class=\"n\">0<")
+    );
     assert!(html.contains("these figures say nothing about how safe any site is"));
 }
 
@@ -342,5 +344,5 @@ fn among_tied_sites_the_hub_is_where_the_most_sites_can_join_it() {
     );
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["sites"]["hub"], "main");
-    assert_eq!(s["sites"]["connected"], 2);
+    assert_eq!(s["sites"]["joined_to_hub"], 2);
 }

@@ -1,4 +1,4 @@
-//! Repair order, phases and work orders on the demo district (invariants: common practice, no source).
+//! Repair order, repair days and work orders on the demo district (invariants: common practice, no source).
 
 mod common;
 use common::*;
@@ -16,7 +16,7 @@ fn find(p: &mut HashMap<i64, i64>, x: i64) -> i64 {
 }
 
 #[test]
-fn every_prefix_of_the_order_reaches_the_hub_and_phases_respect_capacity() {
+fn every_prefix_of_the_order_reaches_the_hub_and_days_respect_capacity() {
     let d = tmp();
     let out = d.path().join("o");
     let o = run(&[
@@ -160,7 +160,7 @@ fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
             .sum();
         assert!((sum - cost).abs() < 0.01);
         if cost < full_cost {
-            let left: Vec<_> = b["sites"]["unconnected"]
+            let left: Vec<_> = b["sites"]["not_joined"]
                 .as_array()
                 .unwrap()
                 .iter()
@@ -183,7 +183,7 @@ fn budget_is_never_exceeded_and_a_large_one_changes_nothing() {
     ]);
     assert!(o.status.success());
     let b = read_json(&out.join("summary.json"));
-    assert_eq!(b["sites"]["connected"], s["sites"]["connected"]);
+    assert_eq!(b["sites"]["joined_to_hub"], s["sites"]["joined_to_hub"]);
     assert!(b["total_cost"].as_f64().unwrap() <= full_cost + 1e-6);
 }
 
@@ -237,7 +237,14 @@ fn picture_is_well_formed_svg_with_legend_scale_bar_and_caution() {
     assert_eq!(&png[..8], b"\x89PNG\r\n\x1a\n");
     assert_eq!(&png[12..16], b"IHDR");
     let dim = |i: usize| u32::from_be_bytes([png[i], png[i + 1], png[i + 2], png[i + 3]]);
-    assert_eq!((dim(16), dim(20)), (1600, 1200));
+    let size = |a: &str| {
+        doc.root_element()
+            .attribute(a)
+            .unwrap()
+            .parse::<f64>()
+            .unwrap() as u32
+    };
+    assert_eq!((dim(16), dim(20)), (size("width"), size("height")));
 }
 
 #[test]
@@ -264,6 +271,7 @@ fn report_is_self_contained_and_carries_the_figures() {
         "data:image/png;base64,iVBORw0KGgo",
         "Days and crews",
         "Corridors",
+        "Repairs in order",
         "Total repair cost",
         "Geometry checks",
         "SHA-256",

@@ -47,7 +47,7 @@ fn statuses(out: &Path) -> BTreeMap<String, (String, Option<String>)> {
         })
         .collect();
     let s = read_json(&out.join("summary.json"));
-    for u in s["sites"]["unconnected"].as_array().unwrap() {
+    for u in s["sites"]["not_joined"].as_array().unwrap() {
         let (status, reason) = &m[u["id"].as_str().unwrap()];
         assert_eq!(u["status"], status.as_str());
         assert_eq!(u["reason"], reason.as_deref().unwrap());
@@ -77,13 +77,13 @@ fn a_site_far_from_every_road_or_near_closed_ones_only_is_not_attached() {
         &[],
     );
     let st = statuses(&out);
-    assert_eq!(st["far"].0, "not attached");
+    assert_eq!(st["far"].0, "not_attached");
     let far = st["far"].1.as_deref().unwrap();
     assert!(
         far.starts_with("no road within 250 m (nearest about"),
         "{far}"
     );
-    assert_eq!(st["closed"].0, "not attached");
+    assert_eq!(st["closed"].0, "not_attached");
     let closed = st["closed"].1.as_deref().unwrap();
     assert!(
         closed.starts_with("only impassable roads within 250 m"),
@@ -149,7 +149,7 @@ fn an_island_no_road_reaches_is_not_said_to_be_cut_off_by_impassable_roads() {
     ];
     let out = run_case(d.path(), &roads, &sites, &[]);
     let st = statuses(&out);
-    assert_eq!(st["near"].0, "connected");
+    assert_eq!(st["near"].0, "joined");
     let island = "no road at all, passable or not, links its part of the network to the hub's";
     assert_eq!(
         st["isle1"].1.as_deref().unwrap(),
@@ -184,8 +184,8 @@ fn left_out_by_budget_names_the_cost_still_needed_to_reach_the_hub() {
     ];
     let out = run_case(d.path(), &roads, &sites, &["--budget", "400"]);
     let st = statuses(&out);
-    assert_eq!(st["a"].0, "connected");
-    assert_eq!(st["b"].0, "left out by budget");
+    assert_eq!(st["a"].0, "joined");
+    assert_eq!(st["b"].0, "left_out_by_budget");
     // The cost still needed is the stretch a–b as written in network.geojson.
     let net = read_fc(&out.join("network.geojson"));
     let ab: f64 = net
@@ -208,7 +208,7 @@ fn left_out_by_budget_names_the_cost_still_needed_to_reach_the_hub() {
     let d2 = tmp();
     let out = run_case(d2.path(), &roads, &sites, &["--budget", "460"]);
     let st = statuses(&out);
-    assert_eq!(st["b"].0, "left out by budget");
+    assert_eq!(st["b"].0, "left_out_by_budget");
     assert!(
         st["isle1"]
             .1
@@ -239,11 +239,11 @@ fn whole_network_with_sites_reports_which_sites_the_forest_joins() {
         &["--whole-network", "--hub", "hub"],
     );
     let st = statuses(&out);
-    assert_eq!(st["hub"].0, "connected");
-    assert_eq!(st["mid"].0, "connected");
+    assert_eq!(st["hub"].0, "joined");
+    assert_eq!(st["mid"].0, "joined");
     assert_eq!(st["beyond"].0, "unreachable");
     let s = read_json(&out.join("summary.json"));
-    assert_eq!(s["sites"]["connected"], 2);
+    assert_eq!(s["sites"]["joined_to_hub"], 2);
     // The forest is rooted at the hub: its first repair joins `mid`.
     let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
     let col = r

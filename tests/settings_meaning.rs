@@ -105,7 +105,13 @@ fn negative_default_damage_means_impassable() {
         .iter()
         .map(|f| f.property("damage").unwrap().to_string())
         .collect();
-    assert_eq!(damage, ["\"closed\"", "0.5"]);
+    assert_eq!(damage, ["null", "0.5"]);
+    let impassable: Vec<bool> = net
+        .features
+        .iter()
+        .map(|f| f.property("impassable").unwrap().as_bool().unwrap())
+        .collect();
+    assert_eq!(impassable, [true, false]);
     let plan = read_fc(&out.join("plan.geojson"));
     assert_eq!(plan.features.len(), 1, "the closed road is never planned");
 }
@@ -138,8 +144,12 @@ case!(options_without_the_input_they_are_about, |d| {
             &["--zones-crs", "--damage-zones"],
         ),
         (
-            &["--report-distance", "10"],
-            &["--report-distance", "--damage-points"],
+            &["--point-match-distance", "10"],
+            &["--point-match-distance", "--damage-points"],
+        ),
+        (
+            &["--damage-points-field", "p"],
+            &["--damage-points-field", "--damage-points"],
         ),
         (
             &["--zone-damage-field", "z"],
@@ -148,6 +158,22 @@ case!(options_without_the_input_they_are_about, |d| {
     ] {
         plan_fails(&roads, extra, needles);
     }
+    // Field reports have a field option of their own: the zones' one means nothing to them.
+    let points = d.join("points.geojson");
+    std::fs::write(
+        &points,
+        r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"damage":0.5},"geometry":{"type":"Point","coordinates":[0.0005,0.0]}}]}"#,
+    )
+    .unwrap();
+    plan_fails(
+        &roads,
+        &["--damage-points", &s(&points), "--zone-damage-field", "z"],
+        &[
+            "--zone-damage-field",
+            "--damage-zones",
+            "--damage-points-field",
+        ],
+    );
 });
 
 case!(mst_with_a_sites_plan, |d| {
@@ -174,6 +200,35 @@ case!(effort_with_whole_network, |d| {
             "quick",
         ],
         &["--effort", "--whole-network"],
+    );
+});
+
+case!(time_limit_out_of_range, |d| {
+    // A limit of no time, a negative one or one past a week is a mistake, not a plan.
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+    for bad in ["0", "-5", "NaN", "1e9"] {
+        plan_fails(
+            &roads,
+            &["--sites", &s(&sites), &format!("--time-limit={bad}")],
+            &["--time-limit", "seconds"],
+        );
+    }
+});
+
+case!(time_limit_with_whole_network, |d| {
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("A", 0.0, 0.0)]));
+    plan_fails(
+        &roads,
+        &[
+            "--sites",
+            &s(&sites),
+            "--whole-network",
+            "--time-limit",
+            "10",
+        ],
+        &["--time-limit", "--whole-network"],
     );
 });
 
@@ -304,7 +359,8 @@ fn the_settings_record_names_only_settings_in_force() {
     );
     assert_eq!(sites["effort"], "normal");
     assert_eq!(sites["max_attach_m"], 250.0);
-    assert_eq!(sites["report_distance_m"], serde_json::Value::Null);
+    assert_eq!(sites["point_match_distance_m"], serde_json::Value::Null);
+    assert_eq!(sites["damage_points_field"], serde_json::Value::Null);
     assert_eq!(sites["zone_damage_field"], serde_json::Value::Null);
     assert_eq!(sites["cost_table"]["categories"], serde_json::Value::Null);
     let whole = settings(&["--whole-network"]);

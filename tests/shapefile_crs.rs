@@ -131,7 +131,7 @@ fn shapefile_roads_and_schools_plan_end_to_end() {
     assert!(o.status.success(), "{}", stderr(&o));
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["sites"]["total"], 8);
-    assert_eq!(s["sites"]["connected"], 8);
+    assert_eq!(s["sites"]["joined_to_hub"], 8);
     assert!(
         s["geodesy"]["length_method"]
             .as_str()

@@ -187,7 +187,7 @@ fn groups_unreachable_and_far_sites_are_reported_not_fatal() {
         s["sites"]["hub"], "east",
         "highest priority is the default hub"
     );
-    assert_eq!(s["sites"]["connected"], 2);
+    assert_eq!(s["sites"]["joined_to_hub"], 2);
     let groups = s["sites"]["groups"].as_array().unwrap();
     assert_eq!(groups.len(), 2);
     assert_eq!(groups[0]["sites"], serde_json::json!(["west"]));
@@ -200,7 +200,7 @@ fn groups_unreachable_and_far_sites_are_reported_not_fatal() {
     );
     assert_eq!(s["gap"], 0.0);
     assert_eq!(s["optimal"], true);
-    let reasons: Vec<String> = s["sites"]["unconnected"]
+    let reasons: Vec<String> = s["sites"]["not_joined"]
         .as_array()
         .unwrap()
         .iter()
@@ -229,10 +229,7 @@ fn groups_unreachable_and_far_sites_are_reported_not_fatal() {
         .iter()
         .map(|f| f.property("status").unwrap().as_str().unwrap())
         .collect();
-    assert_eq!(
-        status,
-        ["unreachable", "connected", "connected", "not attached"]
-    );
+    assert_eq!(status, ["unreachable", "joined", "joined", "not_attached"]);
 }
 
 #[test]
@@ -270,7 +267,7 @@ fn csv_sites_with_named_columns_and_an_explicit_hub() {
     assert!(o.status.success(), "{}", stderr(&o));
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["sites"]["hub"], "B");
-    assert_eq!(s["sites"]["connected"], 2);
+    assert_eq!(s["sites"]["joined_to_hub"], 2);
 }
 
 #[test]

@@ -53,6 +53,41 @@ proptest! {
         prop_assert_eq!(optimum_without(rg, rt, &sd), Some(opt));
     }
 
+    /// Merging shortest-path trees from every terminal: a merged tree is a tree over the terminals
+    /// of the reduced graph, cheaper than every tree merged and never below the optimum
+    /// (Dreyfus–Wagner); with steps enough to finish, the union's search returns the union's best
+    /// tree, so merging a pool that holds an optimal tree never returns anything.
+    #[test]
+    fn merging_trees_keeps_a_valid_tree((g, terms) in arb_instance()) {
+        use reknit::solve::steiner::{merge::merged, sph::sph, tree::check_steiner_tree};
+        let mut terms = terms;
+        terms.sort_unstable();
+        let red = reduce(&g, &terms);
+        prop_assume!(red.terminals.len() >= 2);
+        let (rg, rt, it) = (&red.graph, &red.terminals, &red.is_terminal);
+        let csr = Csr::from_edges(rg);
+        let mut ws = Workspace::new(rg.vertices);
+        let pool: Vec<(u64, Vec<u32>)> = rt
+            .iter()
+            .map(|&r| {
+                let t = sph(rg, &csr, rt, it, r, &mut ws);
+                (rg.total(&t), t)
+            })
+            .collect();
+        let cheapest = pool.iter().map(|p| p.0).min().unwrap();
+        let opt = dreyfus_wagner(rg, rt);
+        if let Some(t) = merged(rg, rt, pool.clone(), 8, 1_000) {
+            check_steiner_tree(rg, &t, rt).map_err(TestCaseError::fail)?;
+            prop_assert!(rg.total(&t) < cheapest);
+            prop_assert!(rg.total(&t) >= opt);
+        }
+        let best = steiner_tree(rg, rt, Effort::Thorough).unwrap();
+        prop_assume!(best.cost == opt && best.edges.iter().all(|&e| rg.cost[e as usize] > 0));
+        let mut with_opt = pool;
+        with_opt.push((opt, best.edges));
+        prop_assert!(merged(rg, rt, with_opt, 8, 1_000).is_none());
+    }
+
     /// Thorough effort finds and proves the optimum of small graphs (Dreyfus–Wagner).
     #[test]
     fn thorough_proves_the_optimum((g, terms) in arb_instance()) {
@@ -115,4 +150,34 @@ fn thorough_is_deterministic() {
             assert_eq!(r, &runs[0], "{name}");
         }
     }
+}
+
+/// The progress hook hears a best cost that only falls and a bound that only rises, never above
+/// the best cost, ending at the plan's own figures; with a clock far off instead of the step
+/// budget, c07 is proven (SteinLib, Koch, Martin & Voß 2001, optima.tsv).
+#[test]
+fn progress_reports_track_the_search_to_its_end() {
+    use reknit::solve::steiner::{Watch, steiner_tree_watched};
+    use std::sync::Mutex;
+    let inst = instance("C/c07");
+    let heard = Mutex::new(Vec::new());
+    let report = |c: u64, b: u64| heard.lock().unwrap().push((c, b));
+    let deadline = std::time::Instant::now() + std::time::Duration::from_secs(3600);
+    let watch = Watch {
+        report: Some(&report),
+        deadline: Some(deadline),
+    };
+    let t = steiner_tree_watched(&inst.graph, &inst.terminals, Effort::Normal, watch).unwrap();
+    let heard = heard.into_inner().unwrap();
+    assert!(!heard.is_empty());
+    for w in heard.windows(2) {
+        assert!(w[1].0 <= w[0].0 && w[1].1 >= w[0].1, "{w:?}");
+    }
+    assert!(heard.iter().all(|&(c, b)| b <= c));
+    assert_eq!(*heard.last().unwrap(), (t.cost, t.lower_bound));
+    assert_eq!(
+        t.cost, t.lower_bound,
+        "run to the end, the search proves c07"
+    );
+    assert_eq!(t.cost, published("C/c07"));
 }

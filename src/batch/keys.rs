@@ -83,6 +83,10 @@ pub const KEYS: &[Key] = &[
         j.road.crs = v.opt_text()?;
         Ok(())
     }),
+    key("roads_layer", OptText, |j, v| {
+        j.road.roads_layer = v.opt_text()?;
+        Ok(())
+    }),
     key("category_field", OptText, |j, v| {
         j.road.category_field = v.opt_text()?;
         Ok(())
@@ -115,8 +119,12 @@ pub const KEYS: &[Key] = &[
         j.damage_points = v.opt_path()?.map(Source::File);
         Ok(())
     }),
-    key("report_distance", Number, |j, v| {
-        j.report_distance_m = Some(v.number()?);
+    key("damage_points_field", Text, |j, v| {
+        j.damage_points_field = Some(v.text()?);
+        Ok(())
+    }),
+    key("point_match_distance", Number, |j, v| {
+        j.point_match_distance_m = Some(v.number()?);
         Ok(())
     }),
     key("budget", Number, |j, v| {
@@ -188,12 +196,20 @@ pub const KEYS: &[Key] = &[
             Ok(())
         },
     ),
+    key("time_limit", Number, |j, v| {
+        j.time_limit_s = Some(v.number()?);
+        Ok(())
+    }),
     key("site_id_field", OptText, |j, v| {
         j.site_id_field = v.opt_text()?;
         Ok(())
     }),
     key("site_name_field", OptText, |j, v| {
         j.site_name_field = v.opt_text()?;
+        Ok(())
+    }),
+    key("site_tags", Filters, |j, v| {
+        j.site_tags = v.filters()?;
         Ok(())
     }),
     key("priority_field", OptText, |j, v| {

@@ -187,7 +187,7 @@ fn run_district(d: &District, opts: &BatchOptions) -> Row {
         junctions: None,
         edges: None,
         sites: None,
-        sites_connected: None,
+        sites_joined_to_hub: None,
         plan_edges: None,
         total_cost: None,
         lower_bound: None,

@@ -23,8 +23,8 @@ pub struct Row {
     pub edges: Option<u64>,
     /// Sites read.
     pub sites: Option<u64>,
-    /// Sites connected by the plan.
-    pub sites_connected: Option<u64>,
+    /// Sites joined to the hub by the plan, the hub included.
+    pub sites_joined_to_hub: Option<u64>,
     /// Edges in the plan.
     pub plan_edges: Option<u64>,
     /// Total repair cost, repair-metres.
@@ -59,7 +59,7 @@ impl Row {
             junctions: u("/counts/junctions"),
             edges: u("/counts/edges"),
             sites: u("/sites/total"),
-            sites_connected: u("/sites/connected"),
+            sites_joined_to_hub: u("/sites/joined_to_hub"),
             plan_edges: u("/plan_edges"),
             total_cost: f("/total_cost"),
             lower_bound: f("/lower_bound"),
@@ -115,7 +115,7 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
         "junctions",
         "edges",
         "sites",
-        "sites_connected",
+        "sites_joined_to_hub",
         "plan_edges",
         "total_cost",
         "lower_bound",
@@ -137,7 +137,7 @@ pub fn write(dir: &Path, stem: &str, s: &BatchSummary) -> Result<(), BatchError>
             opt_u(r.junctions),
             opt_u(r.edges),
             opt_u(r.sites),
-            opt_u(r.sites_connected),
+            opt_u(r.sites_joined_to_hub),
             opt_u(r.plan_edges),
             opt_f(r.total_cost),
             opt_f(r.lower_bound),

@@ -42,7 +42,7 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
             r.counts.junctions, r.counts.edges, r.component_count, r.dangles
         );
         for (kind, n) in &r.counts.qa {
-            eprintln!("  {n:>8}  {kind}");
+            eprintln!("  {n:>8}  {}", reknit::ingest::qa::QaKind::label_of(kind));
         }
         eprintln!("outputs written to {}", a.out.display());
         super::common::print_cautions(r.attribution.as_deref());

@@ -54,6 +54,10 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
+    /// The layer of a GeoPackage road file that holds several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub roads_layer: Option<String>,
+
     /// Road property holding a damage category (e.g. debris, washed-out, collapsed) instead of a
     /// numeric factor; categories map to factors through --cost-table (or the documented default).
     #[arg(long, value_name = "FIELD")]
@@ -99,8 +103,8 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "FILE")]
     pub damage_zones: Option<std::path::PathBuf>,
 
-    /// Zone and report property holding the damage factor (or "closed"), default damage; a zone
-    /// without one counts as 1.0. Only with --damage-zones or --damage-points.
+    /// Damage zone property holding the damage factor (or "closed"), default damage; a zone
+    /// without one counts as 1.0. Only with --damage-zones.
     #[arg(long, value_name = "FIELD")]
     pub zone_damage_field: Option<String>,
 
@@ -109,15 +113,21 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub zones_crs: Option<String>,
 
-    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in --zone-damage-field,
-    /// each applied to the nearest road within --report-distance (the worst report wins).
+    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in
+    /// --damage-points-field, each applied to the nearest road within --point-match-distance (the
+    /// worst report wins).
     #[arg(long, value_name = "FILE")]
     pub damage_points: Option<std::path::PathBuf>,
 
-    /// Largest distance in metres from a damage report to its road, default 50; farther reports
-    /// are listed. Only with --damage-points.
+    /// Field report property holding the damage factor (or "closed"), default damage; a report
+    /// without one counts as 1.0. Only with --damage-points.
+    #[arg(long, value_name = "FIELD")]
+    pub damage_points_field: Option<String>,
+
+    /// Largest distance in metres from a field report to the road it is matched to, default 50;
+    /// farther reports are listed. Only with --damage-points.
     #[arg(long, value_name = "METRES")]
-    pub report_distance: Option<f64>,
+    pub point_match_distance: Option<f64>,
 
     /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
     /// giving the most priority per repair-metre are joined to the hub first, within the budget;
@@ -125,13 +135,14 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "REPAIR_METRES")]
     pub budget: Option<f64>,
 
-    /// Also plan backup links: the cheapest further repairs after which every site stays joined
-    /// to the hub when any one road fails (written to backup.geojson, after the plan's repairs).
+    /// Also plan backup links: the cheapest further repairs that give roads with no way round a
+    /// way round, so every site stays joined to the hub when any one road fails (written to
+    /// backup.geojson, after the plan's repairs).
     #[arg(long)]
     pub redundancy: bool,
 
     /// Repair-metres a crew completes per day: spreads the repairs over days (a repair longer
-    /// than a day spans days).
+    /// than a day spans days); without it the repairs are not scheduled by day.
     #[arg(long, value_name = "REPAIR_METRES")]
     pub crew_capacity: Option<f64>,
 
@@ -162,6 +173,7 @@ impl NetworkArgs {
             closed_value: self.closed_value.clone(),
             id_field: self.id_field.clone(),
             crs: self.crs.clone(),
+            roads_layer: self.roads_layer.clone(),
             category_field: self.category_field.clone(),
             cost_table: self.cost_table.clone(),
             keep_where: self.keep_where.clone(),
@@ -180,7 +192,8 @@ impl PlanningArgs {
         o.zone_damage_field = self.zone_damage_field.clone();
         o.zones_crs = self.zones_crs.clone();
         o.damage_points = self.damage_points.clone().map(Source::File);
-        o.report_distance_m = self.report_distance;
+        o.damage_points_field = self.damage_points_field.clone();
+        o.point_match_distance_m = self.point_match_distance;
         o.crew_capacity = self.crew_capacity;
         o.crews = self.crews;
         o.max_detour = self.max_detour;
@@ -231,6 +244,12 @@ pub struct SiteArgs {
     #[arg(long, value_enum)]
     pub effort: Option<EffortChoice>,
 
+    /// Let the exact search go on past its fixed step budget until the plan is proven optimal or
+    /// SECONDS of wall time pass. The plan then depends on the machine's speed: summary.json records
+    /// "deterministic": false. Not with --whole-network.
+    #[arg(long, value_name = "SECONDS")]
+    pub time_limit: Option<f64>,
+
     /// Site property or column holding each site's id (default: id, site_id, fid or name).
     #[arg(long, value_name = "FIELD")]
     pub site_id_field: Option<String>,
@@ -254,6 +273,12 @@ pub struct SiteArgs {
     /// The sites layer's CRS as EPSG:NNNN (default: its .prj, or WGS84 longitude/latitude).
     #[arg(long, value_name = "EPSG:CODE")]
     pub sites_crs: Option<String>,
+
+    /// With --sites FILE.osm.pbf: tags choosing the sites, KEY=V1,V2 (repeatable; `*` any value).
+    /// Default: amenity=hospital,clinic,school,fuel; healthcare=hospital,clinic;
+    /// social_facility=shelter; emergency=assembly_point.
+    #[arg(long, value_name = "KEY=V1,V2")]
+    pub site_tags: Vec<String>,
 }
 
 impl SiteArgs {
@@ -266,6 +291,7 @@ impl SiteArgs {
         o.lon_column = self.lon_column.clone();
         o.lat_column = self.lat_column.clone();
         o.sites_crs = self.sites_crs.clone();
+        o.site_tags = self.site_tags.clone();
         o.max_attach_m = self.max_attach;
         o.hub = self.hub.clone();
         o.whole_network = self.whole_network;
@@ -274,6 +300,7 @@ impl SiteArgs {
             EffortChoice::Normal => Effort::Normal,
             EffortChoice::Thorough => Effort::Thorough,
         });
+        o.time_limit_s = self.time_limit;
     }
 }
 
@@ -322,7 +349,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
     if let Some(s) = &summary.sites {
         eprintln!(
             "sites: {} of {} joined to the hub; lower bound {} repair-metres ({})",
-            s.connected,
+            s.joined_to_hub,
             s.total,
             fixed(summary.lower_bound, 3),
             match summary.gap {
@@ -337,17 +364,34 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
                 None => "no gap: the bound is 0".to_string(),
             }
         );
-        for u in &s.unconnected {
+        for u in &s.not_joined {
             eprintln!(
                 "  {} {}: {}",
                 terminal(&u.id),
-                u.status,
+                u.status_label,
                 terminal(&u.reason)
             );
         }
         if let Some(n) = &s.note {
             eprintln!("  note: {}", terminal(n));
         }
+    }
+    if let Some(f) = &summary.single_failures {
+        eprintln!(
+            "single failures: {} road(s) with no way round would each cut sites off the hub; {} of \
+             {} site(s) checked depend on one (single-failures.geojson){}",
+            f.roads_cutting_off_sites,
+            f.sites_with_a_single_failure,
+            f.sites_checked,
+            summary
+                .backup
+                .as_ref()
+                .and_then(|b| b.single_failures_after.as_ref())
+                .map_or(String::new(), |a| format!(
+                    "; with the backup links, {} (no way round is possible for them)",
+                    a.sites_with_a_single_failure
+                ))
+        );
     }
     if let Some(st) = summary.structures.as_ref().filter(|st| st.planned > 0) {
         eprintln!(

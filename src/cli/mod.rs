@@ -5,6 +5,7 @@ mod check;
 mod common;
 mod demo;
 mod plan;
+mod replan;
 
 use clap::{Parser, Subcommand};
 use std::process::ExitCode;
@@ -29,6 +30,8 @@ enum Command {
     #[command(after_help = reknit::cautions::SHORT)]
     Plan(Box<plan::PlanArgs>),
     #[command(after_help = reknit::cautions::SHORT)]
+    Replan(Box<replan::ReplanArgs>),
+    #[command(after_help = reknit::cautions::SHORT)]
     Demo(Box<demo::DemoArgs>),
     #[command(after_help = reknit::cautions::SHORT)]
     Check(Box<check::CheckArgs>),
@@ -42,6 +45,7 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Plan(a) => plan::run(*a),
+        Command::Replan(a) => replan::run_replan(*a),
         Command::Demo(a) => demo::run(*a),
         Command::Check(a) => check::run(*a),
         Command::Batch(a) => batch::run(*a),

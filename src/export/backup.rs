@@ -1,8 +1,8 @@
 //! `backup.geojson` and the backup figures: the further repairs that keep every site joined to the
 //! hub after any single road failure, numbered after the plan's repairs.
 
-use super::fragility::{FragilityFigures, SiteFailures};
 use super::geojson::{GeoJsonWriter, Prop};
+use super::single_failures::{SingleFailureFigures, SiteFailures};
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::backup::Backup;
 use serde::Serialize;
@@ -29,10 +29,10 @@ pub struct BackupFigures {
     pub repairs: usize,
     /// Number of ways round (links) they form.
     pub links: usize,
-    /// Bridges on a hub-to-site path before the backup (each needs a way round).
-    pub bridges_needing_backup: usize,
-    /// Fragility once the plan and the backup are both repaired.
-    pub fragility_after: Option<FragilityFigures>,
+    /// Roads with no way round on a hub-to-site path before the backup (each needs one).
+    pub roads_needing_a_way_round: usize,
+    /// The single-failure figures once the plan and the backup are both repaired.
+    pub single_failures_after: Option<SingleFailureFigures>,
     /// Sites still cut off by some single failure that no repair can avoid (one road in).
     pub sites_without_possible_backup: Vec<SiteFailures>,
 }
@@ -47,12 +47,12 @@ pub struct BackupLayer {
 }
 
 impl BackupLayer {
-    /// Builds the layer from the solver's result, the fragility after it, and the sites (by id)
+    /// Builds the layer from the solver's result, the single failures left after it, and the sites (by id)
     /// with failures no backup can avoid.
     pub fn new(
         rows: Vec<BackupRow>,
         b: &Backup,
-        after: FragilityFigures,
+        after: SingleFailureFigures,
         no_backup: Vec<(String, Vec<u32>)>,
     ) -> Self {
         BackupLayer {
@@ -60,8 +60,8 @@ impl BackupLayer {
                 cost: cost_to_repair_metres(b.cost),
                 repairs: rows.len(),
                 links: b.links.len(),
-                bridges_needing_backup: b.needed,
-                fragility_after: Some(after),
+                roads_needing_a_way_round: b.needed,
+                single_failures_after: Some(after),
                 sites_without_possible_backup: no_backup
                     .into_iter()
                     .map(|(site, failures)| SiteFailures { site, failures })
@@ -86,10 +86,7 @@ pub fn write_backup<W: std::io::Write>(
         let edge = &net.edges[r.edge as usize];
         let meta = &net.features[edge.feature as usize];
         let joined = r.protects.join(";");
-        let damage = match edge.damage.factor() {
-            Some(f) => Prop::Num(f),
-            None => Prop::Str("closed"),
-        };
+        let [damage, impassable] = super::damage_props(edge);
         gj.line(
             &[
                 ("order", Prop::Int(r.order as i64)),
@@ -102,9 +99,10 @@ pub fn write_backup<W: std::io::Write>(
                 ),
                 ("road", meta.label.as_deref().map_or(Prop::Null, Prop::Str)),
                 ("length_m", Prop::Fixed3(edge.length_m)),
-                ("damage", damage),
+                damage,
+                impassable,
                 ("cost", Prop::Fixed3(cost_to_repair_metres(edge.cost))),
-                ("sites_protected", Prop::Str(&joined)),
+                ("protects_sites", Prop::Str(&joined)),
                 (
                     "structure",
                     meta.structure.as_deref().map_or(Prop::Null, Prop::Str),

@@ -6,17 +6,39 @@
 use super::text::xml;
 use std::io::{self, Write};
 
-/// Characters per line: DejaVu Sans at 13 px averages under 7.5 px a character, so 190 fit the
-/// band's 1,536 px of text width (common practice, no source: measured on the caution text).
+/// Characters per line of the attribution on a band 1,536 px wide (DejaVu Sans at 12 px averages
+/// under 7.5 px a character; common practice, no source: measured on the caution text).
 const LINE_CHARS: usize = 190;
 
-/// Lines of caution text the band has room for.
-pub const CAUTION_LINES: usize = 3;
-
-/// Height of the band in pixels: three caution lines and one attribution line.
-pub const HEIGHT: f64 = 84.0;
-
 const LINE_H: f64 = 17.0;
+/// Font size of the caution text.
+const FONT: f64 = 13.0;
+
+/// `text` broken at spaces into lines no wider than `width` pixels at the caution's font size
+/// (a longer word stands alone), measured with the picture's font metrics.
+pub fn wrap_px(text: &str, width: f64) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut cur = String::new();
+    for word in text.split_whitespace() {
+        let wider = format!("{cur} {word}");
+        if !cur.is_empty() && super::metrics::text_width(&wider, FONT, false) > width {
+            lines.push(std::mem::take(&mut cur));
+        }
+        if !cur.is_empty() {
+            cur.push(' ');
+        }
+        cur.push_str(word);
+    }
+    if !cur.is_empty() {
+        lines.push(cur);
+    }
+    lines
+}
+
+/// Height of a band `width` pixels wide: the caution's lines and one attribution line.
+pub fn height(width: f64, caution: &str) -> f64 {
+    (wrap_px(caution, width - 24.0).len() as f64 + 1.0) * LINE_H + 16.0
+}
 
 /// `text` broken at spaces into lines of at most `width` characters (a longer word stands alone).
 pub fn wrap(text: &str, width: usize) -> Vec<String> {
@@ -44,9 +66,11 @@ pub fn write_band<W: Write>(
     caution: &str,
     attribution: Option<&str>,
 ) -> io::Result<()> {
+    let lines = wrap_px(caution, width - 24.0);
+    let band_h = height(width, caution);
     writeln!(
         w,
-        r##"<g id="cautions-band"><rect x="{x}" y="{y}" width="{width}" height="{HEIGHT}" fill="#fff4ec" stroke="#8c2d04" stroke-width="2"/>"##
+        r##"<g id="cautions-band"><rect x="{x}" y="{y}" width="{width}" height="{band_h}" fill="#fff4ec" stroke="#8c2d04" stroke-width="2"/>"##
     )?;
     write!(
         w,
@@ -54,11 +78,7 @@ pub fn write_band<W: Write>(
         x + 12.0,
         y + 20.0
     )?;
-    for (i, line) in wrap(caution, LINE_CHARS)
-        .iter()
-        .take(CAUTION_LINES)
-        .enumerate()
-    {
+    for (i, line) in lines.iter().enumerate() {
         let dy = if i == 0 { 0.0 } else { LINE_H };
         write!(
             w,
@@ -71,7 +91,11 @@ pub fn write_band<W: Write>(
     if let Some(a) = attribution {
         // A long attribution is cut on the picture only; summary.json, the layers and the report
         // carry it whole.
-        let mut line = wrap(a, LINE_CHARS).into_iter().next().unwrap_or_default();
+        let chars = (LINE_CHARS as f64 * (width - 24.0) / 1536.0) as usize;
+        let mut line = wrap(a, chars.max(20))
+            .into_iter()
+            .next()
+            .unwrap_or_default();
         if line.chars().count()
             < a.split_whitespace()
                 .collect::<Vec<_>>()
@@ -85,7 +109,7 @@ pub fn write_band<W: Write>(
             w,
             r##"<text id="attribution" x="{}" y="{}" font-size="12" fill="#333333">{}</text>"##,
             x + 12.0,
-            y + 20.0 + LINE_H * CAUTION_LINES as f64,
+            y + 20.0 + LINE_H * lines.len() as f64,
             xml(&line)
         )?;
     }
@@ -97,10 +121,16 @@ mod tests {
     use super::*;
 
     #[test]
-    fn the_short_caution_fits_the_band() {
-        let lines = wrap(crate::cautions::SHORT, LINE_CHARS);
-        assert!(lines.len() <= CAUTION_LINES, "{lines:?}");
-        assert_eq!(lines.join(" "), crate::cautions::SHORT);
-        assert!(lines.iter().all(|l| l.chars().count() <= LINE_CHARS));
+    fn the_short_caution_is_wrapped_whole_within_the_band() {
+        for width in [700.0, 1100.0, 1600.0] {
+            let lines = wrap_px(crate::cautions::SHORT, width - 24.0);
+            assert_eq!(lines.join(" "), crate::cautions::SHORT);
+            assert!(
+                lines
+                    .iter()
+                    .all(|l| crate::export::metrics::text_width(l, FONT, false) <= width - 24.0)
+            );
+            assert!(height(width, crate::cautions::SHORT) >= (lines.len() + 1) as f64 * LINE_H);
+        }
     }
 }

@@ -6,18 +6,27 @@
 pub mod backup;
 pub mod band;
 pub mod corridors;
-pub mod fragility;
+pub mod clip;
+pub mod drawing;
 pub mod geojson;
 pub mod guard;
+pub mod labels;
+pub mod layout;
 pub mod legend;
+pub mod metrics;
 pub mod ownership;
 pub mod palette;
 pub mod picture;
 pub mod raster;
 pub mod report;
 pub mod report_crews;
+pub mod report_parts;
+pub mod report_tables;
+pub mod scene;
+pub mod single_failures;
 pub mod sites;
 pub mod staging;
+pub mod strokes;
 pub mod structures;
 pub mod summary;
 pub mod text;
@@ -97,12 +106,12 @@ pub struct Outputs<'a> {
     pub sites: Option<&'a [sites::SiteRow]>,
     /// QA points.
     pub qa: &'a [crate::ingest::qa::QaPoint],
-    /// The plan's repairs in order, with their phases.
+    /// The plan's repairs in order, with their days.
     pub steps: &'a [crate::solve::order::Step],
     /// Site ids by site index (empty without sites).
     pub site_ids: &'a [String],
     /// Single points of failure (plans with sites).
-    pub fragility: Option<&'a fragility::FragilityLayer>,
+    pub single_failures: Option<&'a single_failures::SingleFailureLayer>,
     /// Backup links (with --redundancy).
     pub backup: Option<&'a backup::BackupLayer>,
     /// Corridors from the hub to the joined sites (plans with a hub).
@@ -111,15 +120,23 @@ pub struct Outputs<'a> {
     pub title: &'a str,
     /// Sites to draw.
     pub marks: &'a [picture::SiteMark<'a>],
+    /// The changes against the previous plan (a re-plan only).
+    pub changes: Option<&'a crate::replan::changes::Changes<'a>>,
+    /// Outer rings of the damage zones, lon/lat (empty without zones).
+    pub zones: &'a [Vec<[f64; 2]>],
+    /// True when `--crew-capacity` grouped the repairs into days.
+    pub scheduled: bool,
+    /// The budget given (`--budget`), repair-metres.
+    pub budget: Option<f64>,
     /// The summary.
     pub summary: &'a Summary,
 }
 
 /// The files of one output set in the order of [`staging::OUTPUT_NAMES`] (`summary.json` last):
-/// the layers every run writes plus the sites, fragility and backup layers when there are any.
+/// the layers every run writes plus the sites, single-failure, backup and corridor layers when there are any.
 pub fn output_names(
     sites: bool,
-    fragility: bool,
+    single_failures: bool,
     backup: bool,
     corridors: bool,
 ) -> Vec<&'static str> {
@@ -128,9 +145,11 @@ pub fn output_names(
         .copied()
         .filter(|n| match *n {
             "sites.geojson" => sites,
-            "fragility.geojson" => fragility,
+            "single-failures.geojson" => single_failures,
             "backup.geojson" => backup,
             "corridors.geojson" => corridors,
+            // Only a re-plan writes it (the caller adds it).
+            "changes.geojson" => false,
             _ => true,
         })
         .collect()
@@ -156,35 +175,32 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     })?;
     let order_of: std::collections::HashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
+    let backup_edges: Vec<u32> = o
+        .backup
+        .map_or_else(Vec::new, |b| b.rows.iter().map(|r| r.edge).collect());
+    let scene = scene::Scene {
+        title: o.title,
+        net: o.net,
+        plan_edges: &o.plan.edges,
+        steps: o.steps,
+        backup_edges: &backup_edges,
+        zones: o.zones,
+        sites: o.marks,
+        scheduled: o.scheduled,
+        caution: crate::cautions::SHORT,
+        attribution,
+    };
     // The picture and the two big layers are independent: write them side by side.
     let pictures = || -> Result<Vec<u8>, ExportError> {
+        let drawn = drawing::prepare(&scene);
         let (svg, png) = rayon::join(
             || {
                 st.write("plan.svg", |w| {
-                    picture::write_svg(
-                        w,
-                        o.title,
-                        o.net,
-                        &o.plan.edges,
-                        o.steps,
-                        o.marks,
-                        crate::cautions::SHORT,
-                        attribution,
-                        true,
-                    )
+                    picture::write_drawing(w, &scene, &drawn, true)
                 })
             },
             || {
-                raster::render_png(
-                    o.title,
-                    o.net,
-                    &o.plan.edges,
-                    o.steps,
-                    o.marks,
-                    crate::cautions::SHORT,
-                    attribution,
-                )
-                .map_err(|e| ExportError::Io {
+                raster::render_drawing(&scene, &drawn).map_err(|e| ExportError::Io {
                     path: out.given().join("plan.png"),
                     source: std::io::Error::other(e),
                 })
@@ -221,11 +237,27 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     b?;
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
-        report::write_report(w, o.title, &png, o.summary)
+        report::write_report(
+            w,
+            &report::Context {
+                title: o.title,
+                png: &png,
+                summary: o.summary,
+                net: o.net,
+                steps: o.steps,
+                keys: &ids,
+                sites: o.sites.unwrap_or_default(),
+                site_ids: o.site_ids,
+                single_failures: o.single_failures,
+                backup: o.backup,
+                budget: o.budget,
+                scheduled: o.scheduled,
+            },
+        )
     })?;
-    if let Some(f) = o.fragility {
-        st.write("fragility.geojson", |w| {
-            fragility::write_fragility(w, o.net, f, attribution)
+    if let Some(f) = o.single_failures {
+        st.write("single-failures.geojson", |w| {
+            single_failures::write_single_failures(w, o.net, f, &ids, attribution)
         })?;
     }
     if let Some(b) = o.backup {
@@ -237,6 +269,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         st.write("corridors.geojson", |w| {
             corridors::write_corridors(w, o.net, c, attribution)
         })?;
+    }
+    if let Some(c) = o.changes {
+        st.write("changes.geojson", |w| c.write(w, o.net, &ids, attribution))?;
     }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| {
@@ -284,10 +319,7 @@ fn write_edges<W: std::io::Write>(
     for &e in ids {
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
-        let damage = match edge.damage.factor() {
-            Some(f) => Prop::Num(f),
-            None => Prop::Str("closed"),
-        };
+        let [damage, impassable] = damage_props(edge);
         let cost = if edge.usable() {
             Prop::Fixed3(cost_to_repair_metres(edge.cost))
         } else {
@@ -307,7 +339,8 @@ fn write_edges<W: std::io::Write>(
             ("from", Prop::Int(edge.from as i64)),
             ("to", Prop::Int(edge.to as i64)),
             ("length_m", Prop::Fixed3(edge.length_m)),
-            ("damage", damage),
+            damage,
+            impassable,
             ("cost", cost),
             ("component", component),
             ("source_index", Prop::Int(meta.source_index as i64)),
@@ -330,7 +363,7 @@ fn write_edges<W: std::io::Write>(
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..12]
+            &props[..13]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
@@ -338,7 +371,17 @@ fn write_edges<W: std::io::Write>(
     Ok(())
 }
 
-/// Writes QA points: kind, distance moved (or gap), and the input feature where known.
+/// The `damage` (a number, or null when impassable) and `impassable` properties of an edge: one
+/// type per property in every layer.
+pub(crate) fn damage_props(edge: &crate::network::Edge) -> [(&'static str, Prop<'static>); 2] {
+    [
+        ("damage", edge.damage.factor().map_or(Prop::Null, Prop::Num)),
+        ("impassable", Prop::Bool(edge.damage.factor().is_none())),
+    ]
+}
+
+/// Writes QA points: kind (code and words), distance moved (or gap), and the input feature where
+/// known.
 pub fn write_qa<W: std::io::Write>(
     w: W,
     qa: &[crate::ingest::qa::QaPoint],
@@ -348,7 +391,8 @@ pub fn write_qa<W: std::io::Write>(
     for q in qa {
         gj.point(
             &[
-                ("kind", Prop::Str(q.kind.label())),
+                ("kind", Prop::Str(q.kind.code())),
+                ("kind_label", Prop::Str(q.kind.label())),
                 ("distance_m", Prop::Fixed3(q.distance_m)),
                 (
                     "source_index",

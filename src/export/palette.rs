@@ -18,6 +18,15 @@ pub const ROAD: &str = "#c8c8c8";
 pub const IMPASSABLE: &str = "#8c2d04";
 /// Intact roads the plan uses: mid grey, L* 46.4.
 pub const PLAN_INTACT: &str = "#6e6e6e";
+/// Damaged roads the plan leaves alone: ochre, apart in hue from the grey intact roads and the
+/// blue-to-orchid repairs.
+pub const DAMAGED: &str = "#d69e3c";
+/// Backup links (ways round), drawn dashed: dark green.
+pub const BACKUP: &str = "#1a7f4b";
+/// Fill of the damage zones: a pale peach under every road.
+pub const ZONE_FILL: &str = "#fbe4d8";
+/// Outline of the damage zones.
+pub const ZONE_EDGE: &str = "#d08b6c";
 /// Ink of the site and hub symbols, of labels and of the scale bar.
 pub const INK: &str = "#000000";
 /// The paper, the label halo and the fill of sites not joined.

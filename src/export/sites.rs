@@ -25,10 +25,14 @@ pub struct SiteRow {
     pub attach_point: Option<[f64; 2]>,
     /// Distance from the site to that point (or to the nearest road), metres.
     pub attach_distance_m: Option<f64>,
-    /// `connected`, `alone` (no other site reachable) or `not attached`.
+    /// Status code (`joined`, `not_attached`, `left_out_by_budget`, `unreachable`).
     pub status: &'static str,
-    /// Why it is not connected.
+    /// The status in words.
+    pub status_label: &'static str,
+    /// Why it is not joined to the hub.
     pub reason: Option<String>,
+    /// True when the site is joined to the hub (status `joined`).
+    pub joined_to_hub: bool,
     /// Index of its group in summary.json.
     pub group: Option<usize>,
 }
@@ -40,13 +44,14 @@ pub fn write_sites<W: Write>(
     rows: &[SiteRow],
     attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    const OWN: [&str; 11] = [
+    const OWN: [&str; 12] = [
         "site_id",
         "name",
         "priority",
         "hub",
         "status",
-        "connected",
+        "status_label",
+        "joined_to_hub",
         "reason",
         "group",
         "junction",
@@ -73,7 +78,8 @@ pub fn write_sites<W: Write>(
             ("priority", Prop::Num(r.priority)),
             ("hub", Prop::Bool(r.hub)),
             ("status", Prop::Str(r.status)),
-            ("connected", Prop::Bool(r.status == "connected")),
+            ("status_label", Prop::Str(r.status_label)),
+            ("joined_to_hub", Prop::Bool(r.joined_to_hub)),
             ("reason", r.reason.as_deref().map_or(Prop::Null, Prop::Str)),
             ("group", r.group.map_or(Prop::Null, |g| Prop::Int(g as i64))),
             (

@@ -48,6 +48,10 @@ pub struct Counts {
     pub features_used: usize,
     /// Features skipped, by reason.
     pub features_skipped: BTreeMap<String, usize>,
+    /// Features that lost part of their geometry at the file's edge (OpenStreetMap ways cut at the
+    /// extract's boundary, kept as their located runs); omitted when none.
+    #[serde(skip_serializing_if = "crate::export::summary::is_zero")]
+    pub features_cut_at_edge: usize,
     /// Line parts read.
     pub line_parts: usize,
     /// Vertices read.
@@ -107,13 +111,15 @@ pub struct PlanFigures {
 
 /// A site the plan does not join to the hub, and why.
 #[derive(Debug, Clone, Serialize)]
-pub struct UnconnectedSite {
+pub struct NotJoinedSite {
     /// The site's id.
     pub id: String,
     /// Its name, when it has one.
     pub name: Option<String>,
-    /// Its status in `sites.geojson` (`not attached`, `left out by budget`, `unreachable`).
+    /// Its status code in `sites.geojson` (`not_attached`, `left_out_by_budget`, `unreachable`).
     pub status: &'static str,
+    /// The status in words, as in `sites.geojson`.
+    pub status_label: &'static str,
     /// Why it is not joined to the hub.
     pub reason: String,
     /// Distance to the nearest road (not attached) or attachment distance, metres.
@@ -148,13 +154,13 @@ pub struct SitesFigures {
     /// Sites attached to a usable road.
     pub attached: usize,
     /// Sites joined to the hub over intact roads and the plan's repairs, the hub included.
-    pub connected: usize,
+    pub joined_to_hub: usize,
     /// The hub (depot) site's id.
     pub hub: Option<String>,
     /// Groups of sites that can reach each other, with their trees' figures.
     pub groups: Vec<GroupFigures>,
     /// Sites not joined to the hub, each with its status and the reason.
-    pub unconnected: Vec<UnconnectedSite>,
+    pub not_joined: Vec<NotJoinedSite>,
     /// A note on trivial cases (no sites, one site).
     pub note: Option<String>,
 }
@@ -200,6 +206,9 @@ pub struct Summary {
     pub fingerprint: String,
     /// Settings in force.
     pub settings: serde_json::Value,
+    /// False when `--time-limit` let the exact search run on the clock: the same inputs and
+    /// settings may then give another plan on another run or machine.
+    pub deterministic: bool,
     /// Every file of this output set, `summary.json` last: a folder lacking any is incomplete.
     pub outputs: Vec<&'static str>,
     /// Coordinate handling.
@@ -210,9 +219,11 @@ pub struct Summary {
     pub plan: PlanFigures,
     /// Field damage reports: read, applied, and the ones with no road near enough.
     pub damage_reports: Option<crate::ingest::reports::ReportFigures>,
-    /// Single points of failure after the plan (plans with sites; null otherwise).
-    pub fragility: Option<super::fragility::FragilityFigures>,
-    /// Backup links (with --redundancy; null otherwise): cost, repairs and the fragility after.
+    /// Roads whose single failure would cut sites off the hub after the plan (plans with sites;
+    /// null otherwise).
+    pub single_failures: Option<super::single_failures::SingleFailureFigures>,
+    /// Backup links (with --redundancy; null otherwise): cost, repairs and the single failures
+    /// left after.
     pub backup: Option<super::backup::BackupFigures>,
     /// The days of work by crew (with `--crew-capacity`; null without it).
     pub days: Option<Vec<DayFigures>>,
@@ -238,6 +249,10 @@ pub struct Summary {
     pub notes: Vec<Note>,
     /// The plan's roads on bridges, culverts and tunnels: inspect before use.
     pub structures: Option<super::structures::StructureFigures>,
+    /// The rounds of the operation: round 1 is the first plan, each re-plan adds one.
+    pub history: Vec<crate::replan::history::Round>,
+    /// What a re-plan took from the previous round (null for a first plan).
+    pub replan: Option<crate::replan::ReplanFigures>,
 }
 
 /// A default or a choice the run made that changes the answer (a road without a damage value, a
@@ -262,6 +277,11 @@ impl Summary {
 /// of floats is −0, which would print as "-0.0").
 pub fn round3(x: f64) -> f64 {
     (x * 1000.0).round() / 1000.0 + 0.0
+}
+
+/// True for a zero count (left out of summary.json).
+pub fn is_zero(n: &usize) -> bool {
+    *n == 0
 }
 
 #[cfg(test)]

@@ -101,9 +101,10 @@ pub fn write_work_orders<W: Write>(
             csv_cell(&id).into_owned(),
             csv_cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(e.length_m, 3),
+            // Numeric, or empty for an impassable road (never repaired, so never written here).
             e.damage
                 .factor()
-                .map_or("closed".to_string(), |f| crate::decimal::trimmed(f, 6)),
+                .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
             csv_cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),

@@ -1,8 +1,8 @@
 //! The attribution the road data's licence asks of everything made from it.
 //!
-//! OpenStreetMap data (ODbL 1.0) is recognised by the file (an `.osm.pbf`, which reknit does not
-//! read yet) or by the fields OpenStreetMap exports carry (`osm_id`, `@id`); `--attribution TEXT`
-//! names any other source. Both together are joined, OpenStreetMap's last.
+//! OpenStreetMap data (ODbL 1.0) is recognised by the file (an `.osm.pbf`, read by
+//! `ingest::osm`) or by the fields OpenStreetMap exports carry (`osm_id`, `@id`);
+//! `--attribution TEXT` names any other source. Both together are joined, OpenStreetMap's last.
 
 use crate::cautions::OSM_ATTRIBUTION;
 use crate::ingest::source::Source;

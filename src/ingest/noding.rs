@@ -281,7 +281,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     stats.junctions = net.junctions.len();
     stats.edges = net.edges.len();
     for q in &qa {
-        *stats.qa.entry(q.kind.label().to_string()).or_default() += 1;
+        *stats.qa.entry(q.kind.code().to_string()).or_default() += 1;
     }
     stats.qa_points = qa;
     (net, stats)

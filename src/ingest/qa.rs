@@ -26,7 +26,44 @@ pub enum QaKind {
 }
 
 impl QaKind {
-    /// The label written to `qa.geojson` and counted in `summary.json`.
+    /// Every kind, in the order docs/outputs.md lists them.
+    pub const ALL: [QaKind; 9] = [
+        QaKind::MergedVertices,
+        QaKind::JoinedUndershoot,
+        QaKind::TrimmedOvershoot,
+        QaKind::RemovedDuplicate,
+        QaKind::RemovedNearDuplicate,
+        QaKind::RemovedZeroLength,
+        QaKind::NodedCrossing,
+        QaKind::CrossingLeftApart,
+        QaKind::DanglingEnd,
+    ];
+
+    /// The code written as `kind` in `qa.geojson` and counted in `summary.json`.
+    pub fn code(self) -> &'static str {
+        match self {
+            QaKind::MergedVertices => "merged_vertices",
+            QaKind::JoinedUndershoot => "joined_undershoot",
+            QaKind::TrimmedOvershoot => "trimmed_overshoot",
+            QaKind::RemovedDuplicate => "removed_duplicate",
+            QaKind::RemovedNearDuplicate => "removed_near_duplicate",
+            QaKind::RemovedZeroLength => "removed_zero_length",
+            QaKind::NodedCrossing => "crossing_joined",
+            QaKind::CrossingLeftApart => "crossing_left_apart",
+            QaKind::DanglingEnd => "dangling_end",
+        }
+    }
+
+    /// The words for a kind's code (summary.json counts QA points by code); an unknown code is
+    /// returned as it is.
+    pub fn label_of(code: &str) -> &str {
+        QaKind::ALL
+            .iter()
+            .find(|k| k.code() == code)
+            .map_or(code, |k| k.label())
+    }
+
+    /// The kind in words for people, written as `kind_label` in `qa.geojson`.
     pub fn label(self) -> &'static str {
         match self {
             QaKind::MergedVertices => "merged vertices",

@@ -32,6 +32,9 @@ pub struct ReportFigures {
     pub applied: usize,
     /// Reports with no road within the distance: (feature index, distance to the nearest road, m).
     pub unmatched: Vec<(usize, Option<f64>)>,
+    /// Edges whose damage a report set, ascending (not written: a re-plan reads it).
+    #[serde(skip)]
+    pub touched: Vec<u32>,
 }
 
 /// Reads point reports from GeoJSON (lon/lat).
@@ -172,6 +175,7 @@ pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> Repor
             }
         }
     }
+    fig.touched = worst.keys().copied().collect();
     for (e, d) in worst {
         let edge = &mut net.edges[e as usize];
         edge.damage = d;

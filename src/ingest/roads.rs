@@ -46,6 +46,8 @@ pub struct RoadSettings {
     pub structure_field: Option<String>,
     /// Attribution the data's source asks for (`--attribution`); OpenStreetMap's is added itself.
     pub attribution: Option<String>,
+    /// The layer to read from a file that holds several (a GeoPackage; `--roads-layer`).
+    pub layer: Option<String>,
 }
 
 impl RoadSettings {
@@ -80,6 +82,7 @@ impl Default for RoadSettings {
             filters: Vec::new(),
             structure_field: None,
             attribution: None,
+            layer: None,
         }
     }
 }
@@ -126,6 +129,14 @@ pub struct ReadStats {
     /// Features used whose damage came from the default (`--default-damage`): no value in the
     /// damage field, or no category with `--category-field`.
     pub damage_defaulted: usize,
+    /// Features that lost part of their geometry at the file's edge (an OpenStreetMap way cut at
+    /// the extract's boundary keeps its located runs); omitted when none.
+    #[serde(skip_serializing_if = "is_zero")]
+    pub features_cut_at_edge: usize,
+}
+
+fn is_zero(n: &usize) -> bool {
+    *n == 0
 }
 
 /// Road lines as flat arrays: the vertices of part `p` are `coords[part_start(p)..part_ends[p]]`.
@@ -166,12 +177,13 @@ impl LineLayer {
     }
 }
 
-/// Reads a road layer: an ESRI Shapefile by its `.shp` extension, GeoJSON otherwise.
+/// Reads a road layer in the format its name tells ([`super::reader::Format`]).
 pub fn read_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
-    match source.path() {
-        Some(p) if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("shp")) => {
-            super::shapefile::read_shapefile_roads(p, settings)
-        }
+    use super::reader::Format;
+    match (Format::of(source), source.path()) {
+        (Format::Shapefile, Some(p)) => super::shapefile::read_shapefile_roads(p, settings),
+        (Format::OsmPbf, _) => super::osm::read_osm_roads(source, settings),
+        (Format::GeoPackage, _) => super::gpkg::read_gpkg_roads(source, settings),
         _ => read_geojson_roads(source, settings),
     }
 }
@@ -268,7 +280,7 @@ pub fn check_empty(layer: &LineLayer, path: &Path, features: usize) -> Result<()
     if layer.part_ends.is_empty() {
         let path = path.to_path_buf();
         let detail = if features == 0 {
-            "the FeatureCollection is empty".to_string()
+            "the layer is empty: it holds no features".to_string()
         } else {
             let reasons: Vec<String> = layer
                 .stats

@@ -38,6 +38,9 @@ pub struct SiteSettings {
     pub lat_column: Option<String>,
     /// The layer's CRS as `EPSG:NNNN` (default: the Shapefile's .prj, or WGS84 lon/lat).
     pub crs: Option<String>,
+    /// Tags choosing the sites of an OpenStreetMap extract (`--site-tags`); empty: the default set
+    /// ([`super::osm_sites::DEFAULT_SITE_TAGS`]).
+    pub osm_tags: Vec<super::cost_table::RoadFilter>,
 }
 
 /// One critical site.
@@ -106,6 +109,9 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     let ext = extension(source);
     if ext.as_deref() == Some("shp") {
         return read_shapefile_sites(&path, settings);
+    }
+    if super::reader::Format::of(source) == super::reader::Format::OsmPbf {
+        return super::osm_sites::read_osm_sites(source, settings);
     }
     let mut reader = source.open()?;
     let (mut sites, defaults) = match ext.as_deref() {
@@ -313,7 +319,7 @@ fn read_csv<R: std::io::Read>(
 
 /// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
 /// such as `site_id` or `name`, else `site-N`; the display name and the priority likewise.
-fn make_site(
+pub(super) fn make_site(
     path: &Path,
     index: usize,
     pos: [f64; 2],

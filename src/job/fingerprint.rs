@@ -29,6 +29,7 @@ pub fn role_rank(role: &str) -> u8 {
         "damage zones" => 1,
         "damage reports" => 2,
         "sites" => 3,
+        "finished work" => 5,
         _ => 4,
     }
 }
@@ -37,6 +38,11 @@ pub fn role_rank(role: &str) -> u8 {
 pub fn job_inputs(job: &PlanJob) -> Vec<(&'static str, Source)> {
     let mut v = vec![("roads", job.roads.clone())];
     v.extend(job.zones.clone().map(|s| ("damage zones", s)));
+    v.extend(
+        job.earlier_reports
+            .iter()
+            .map(|s| ("damage reports", s.clone())),
+    );
     v.extend(job.reports.clone().map(|s| ("damage reports", s)));
     v.extend(job.sites.clone().map(|s| ("sites", s)));
     v.extend(
@@ -44,6 +50,11 @@ pub fn job_inputs(job: &PlanJob) -> Vec<(&'static str, Source)> {
             .cost_table_file
             .clone()
             .map(|p| ("cost table", Source::File(p))),
+    );
+    v.extend(
+        job.field_work
+            .as_ref()
+            .map(|w| ("finished work", w.finished_csv.clone())),
     );
     v
 }

@@ -1,5 +1,5 @@
 //! Which sites the final plan joins to the hub: computed once, from the final edge set, and read by
-//! every output (sites layer, summary, report, work orders, phases, single-failure report).
+//! every output (sites layer, summary, report, work orders, days, single-failure report).
 
 use crate::ingest::attach::Attachment;
 use crate::network::Cost;

@@ -68,6 +68,9 @@ pub struct PlanJob {
     pub mst: MstAlgorithm,
     /// Effort spent on the sites plan.
     pub effort: Effort,
+    /// Wall-clock seconds the exact search may run (`--time-limit`), in place of its step budget:
+    /// an explicit opt-out of deterministic plans.
+    pub time_limit_s: Option<f64>,
     /// Damage zones (polygons with a damage each).
     pub zones: Option<Source>,
     /// How a zone's damage is read.
@@ -76,9 +79,11 @@ pub struct PlanJob {
     pub zones_crs: Option<String>,
     /// Field damage reports (points), each applied to the nearest road.
     pub reports: Option<Source>,
-    /// Largest distance from a report to its road, metres.
-    pub report_distance_m: f64,
-    /// Repair-metres a crew completes per day; spreads the repairs over crews and days.
+    /// How a field report's damage is read (`--damage-points-field`).
+    pub report_damage: crate::ingest::damage::DamageRule,
+    /// Largest distance from a field report to the road it is matched to, metres.
+    pub point_match_distance_m: f64,
+    /// Repair-metres a crew completes per day; spreads the repairs over crews and days (none without it).
     pub crew_capacity: Option<f64>,
     /// Crews working side by side (1 without `--crews`).
     pub crews: u32,
@@ -92,6 +97,11 @@ pub struct PlanJob {
     pub budget: Option<f64>,
     /// Plan backup links so every site survives any single road failure (sites plans only).
     pub redundancy: bool,
+    /// Damage points of earlier rounds of a re-plan, applied before the finished work; `reports`
+    /// then holds only points given anew.
+    pub earlier_reports: Vec<Source>,
+    /// What crews did since the previous plan (a re-plan only).
+    pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
     /// Proof that [`settings::build`] made this job: no other code can.
     _checked: Checked,
 }
@@ -101,17 +111,30 @@ pub struct PlanJob {
 struct Checked(());
 
 impl PlanJob {
+    /// True when any damage points are read (given now or in an earlier round).
+    pub fn has_reports(&self) -> bool {
+        self.reports.is_some() || !self.earlier_reports.is_empty()
+    }
+
     /// Every file the run reads, for the output guard: layers, sidecars' folders and the cost table.
     pub fn input_paths(&self) -> Vec<export::guard::InputPath<'_>> {
         std::iter::once(&self.roads)
             .chain(
                 [&self.sites, &self.zones, &self.reports]
                     .into_iter()
-                    .flatten(),
+                    .flatten()
+                    .chain(&self.earlier_reports),
             )
+            .chain(self.field_work.as_ref().map(|w| &w.finished_csv))
             .filter_map(|s| s.path())
             .chain(self.road_settings.cost_table_file.as_deref())
             .map(export::guard::InputPath::File)
+            // The previous plan's folder is read as a whole and never written to.
+            .chain(
+                self.field_work
+                    .as_ref()
+                    .map(|w| export::guard::InputPath::Folder(&w.previous_dir)),
+            )
             .collect()
     }
 }

@@ -190,7 +190,7 @@ pub(super) fn reports(notes: &mut Notes, fig: &ReportFigures, distance_m: f64) {
     notes.push(
         "damage_reports_unmatched",
         format!(
-            "{} of {} {} farther than {distance_m} m from every road and changed nothing \
+            "{} of {} {} farther than {distance_m} m (--point-match-distance) from every road and changed nothing \
              (summary.json damage_reports.unmatched lists them)",
             count(fig.unmatched.len(), "damage report", "damage reports"),
             fig.read,

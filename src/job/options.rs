@@ -22,6 +22,8 @@ pub struct RoadOptions {
     pub id_field: Option<String>,
     /// `--crs`, as written (`EPSG:NNNN`).
     pub crs: Option<String>,
+    /// `--roads-layer`: the layer of a GeoPackage holding several.
+    pub roads_layer: Option<String>,
     /// `--category-field`.
     pub category_field: Option<String>,
     /// `--cost-table`: the file, read by `build`.
@@ -47,6 +49,7 @@ impl Default for RoadOptions {
             closed_value: "closed".into(),
             id_field: None,
             crs: None,
+            roads_layer: None,
             category_field: None,
             cost_table: None,
             keep_where: Vec::new(),
@@ -59,7 +62,7 @@ impl Default for RoadOptions {
 }
 
 /// Every option of `reknit plan` (and of a manifest district). Options that only mean something
-/// with another input (`--max-attach` with `--sites`, `--report-distance` with `--damage-points`)
+/// with another input (`--max-attach` with `--sites`, `--point-match-distance` with `--damage-points`)
 /// are `None` unless given, so that giving one without its input can be refused.
 #[derive(Debug, Clone)]
 pub struct Options {
@@ -77,12 +80,14 @@ pub struct Options {
     pub damage_zones: Option<Source>,
     /// `--zone-damage-field` (default `damage`).
     pub zone_damage_field: Option<String>,
+    /// `--damage-points-field` (default `damage`).
+    pub damage_points_field: Option<String>,
     /// `--zones-crs`.
     pub zones_crs: Option<String>,
     /// `--damage-points`.
     pub damage_points: Option<Source>,
-    /// `--report-distance`, metres (default 50).
-    pub report_distance_m: Option<f64>,
+    /// `--point-match-distance`, metres (default 50).
+    pub point_match_distance_m: Option<f64>,
     /// `--budget`, repair-metres.
     pub budget: Option<f64>,
     /// `--redundancy`.
@@ -105,6 +110,8 @@ pub struct Options {
     pub whole_network: bool,
     /// `--effort` (default normal).
     pub effort: Option<Effort>,
+    /// `--time-limit`, seconds: the exact search runs on the clock instead of its step budget.
+    pub time_limit_s: Option<f64>,
     /// `--site-id-field`.
     pub site_id_field: Option<String>,
     /// `--site-name-field`.
@@ -117,6 +124,13 @@ pub struct Options {
     pub lat_column: Option<String>,
     /// `--sites-crs`.
     pub sites_crs: Option<String>,
+    /// Damage points of earlier rounds (`reknit replan`), applied before the finished work and
+    /// before `damage_points`, which a re-plan fills only with points given anew.
+    pub earlier_damage_points: Vec<Source>,
+    /// What crews did since the previous plan (`reknit replan` only; `None` for a first plan).
+    pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
+    /// `--site-tags` texts, `KEY=V1,V2` each (sites of an OpenStreetMap extract).
+    pub site_tags: Vec<String>,
 }
 
 impl Options {
@@ -130,9 +144,10 @@ impl Options {
             road: RoadOptions::default(),
             damage_zones: None,
             zone_damage_field: None,
+            damage_points_field: None,
             zones_crs: None,
             damage_points: None,
-            report_distance_m: None,
+            point_match_distance_m: None,
             budget: None,
             redundancy: false,
             crew_capacity: None,
@@ -144,12 +159,16 @@ impl Options {
             hub: None,
             whole_network: false,
             effort: None,
+            time_limit_s: None,
             site_id_field: None,
             site_name_field: None,
             priority_field: None,
             lon_column: None,
             lat_column: None,
             sites_crs: None,
+            earlier_damage_points: Vec::new(),
+            field_work: None,
+            site_tags: Vec::new(),
         }
     }
 }

@@ -10,7 +10,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
     let ss = &job.site_settings;
     let sites_plan = job.sites.is_some() && !job.whole_network;
     let when = |used: bool, v: serde_json::Value| if used { v } else { serde_json::Value::Null };
-    let evidence = job.zones.is_some() || job.reports.is_some();
+    let evidence = job.zones.is_some() || job.has_reports();
     serde_json::json!({
         "name": job.name,
         "snap_m": s.snap_m,
@@ -23,16 +23,20 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "hub": job.hub,
         "whole_network": job.whole_network,
         "effort": when(sites_plan, job.effort.name().into()),
+        "time_limit_s": when(sites_plan, job.time_limit_s.into()),
         "site_id_field": ss.id_field,
         "site_name_field": ss.name_field,
         "priority_field": ss.priority_field,
+        "site_tags": ss.osm_tags.iter().map(|f| format!("{}={}", f.field, f.values.join(","))).collect::<Vec<_>>(),
         "lon_column": ss.lon_column,
         "lat_column": ss.lat_column,
         "crs": s.crs,
+        "roads_layer": s.layer,
         "node_crossings": s.node_crossings,
-        "zone_damage_field": when(evidence, job.zone_damage.field.clone().into()),
+        "zone_damage_field": when(job.zones.is_some(), job.zone_damage.field.clone().into()),
+        "damage_points_field": when(job.has_reports(), job.report_damage.field.clone().into()),
         "zones_crs": job.zones_crs,
-        "report_distance_m": when(job.reports.is_some(), job.report_distance_m.into()),
+        "point_match_distance_m": when(job.has_reports(), job.point_match_distance_m.into()),
         "crew_capacity": job.crew_capacity,
         "crews": when(job.crew_capacity.is_some(), job.crews.into()),
         "max_detour": job.max_detour,

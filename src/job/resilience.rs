@@ -2,18 +2,18 @@
 
 use super::SitesResult;
 use crate::export::backup::{BackupLayer, BackupRow};
-use crate::export::fragility::FragilityLayer;
+use crate::export::single_failures::SingleFailureLayer;
 use crate::solve::SolveError;
 use crate::solve::graph::EdgeList;
 
 /// The network after the plan (intact roads plus planned repairs) and its single points of failure
 /// for the sites it joins to the hub (`sr.reach`); every one of them must be found reaching the
 /// hub here too.
-pub(super) fn fragility_report(
+pub(super) fn single_failure_report(
     graph: &crate::solve::graph::EdgeList,
     repaired: &[u32],
     sr: &SitesResult,
-) -> Result<FragilityLayer, SolveError> {
+) -> Result<SingleFailureLayer, SolveError> {
     let (sl, attachments, hub) = (&sr.layer, &sr.attachments, sr.hub);
     use crate::solve::graph::UNUSABLE;
     let mut in_plan = vec![false; graph.len()];
@@ -39,7 +39,7 @@ pub(super) fn fragility_report(
         .into_iter()
         .collect();
     let f = crate::solve::fragility::fragility(&after, &roots);
-    let mut protects: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
+    let mut cuts_off: Vec<Vec<usize>> = vec![Vec::new(); f.bridges.len()];
     let mut per_site: Vec<(usize, Vec<u32>)> = Vec::new();
     let mut checked = 0;
     for (i, a) in attachments.iter().enumerate() {
@@ -60,18 +60,18 @@ pub(super) fn fragility_report(
         };
         let mut failures = Vec::new();
         for b in cut {
-            protects[b].push(i);
+            cuts_off[b].push(i);
             failures.push(f.bridges[b]);
         }
         if !failures.is_empty() {
             per_site.push((i, failures));
         }
     }
-    Ok(FragilityLayer::new(&f, protects, per_site, checked, sl))
+    Ok(SingleFailureLayer::new(&f, cuts_off, per_site, checked, sl))
 }
 
 /// Plans backup links for the sites joined to the hub, numbering the added repairs after the
-/// plan's `planned` repairs, and reports the fragility once they are made.
+/// plan's `planned` repairs, and reports the single failures left once they are made.
 pub(super) fn backup_plan(
     graph: &EdgeList,
     repaired: &[u32],
@@ -118,7 +118,7 @@ pub(super) fn backup_plan(
     }
     let mut all: Vec<u32> = repaired.to_vec();
     all.extend(b.edges.iter().copied());
-    let after = fragility_report(graph, &all, sr)?;
+    let after = single_failure_report(graph, &all, sr)?;
     Ok(BackupLayer::new(
         rows,
         &b,

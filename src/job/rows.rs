@@ -2,7 +2,7 @@
 //! statuses.
 
 use super::SitesResult;
-use super::status::CONNECTED;
+use super::status::JOINED;
 use crate::export::picture::SiteMark;
 use crate::export::sites::SiteRow;
 
@@ -26,6 +26,8 @@ pub(super) fn site_rows(r: &SitesResult) -> Vec<SiteRow> {
             attach_point: a.point,
             attach_distance_m: a.distance_m,
             status: st.status,
+            status_label: super::status::status_label(st.status),
+            joined_to_hub: st.status == JOINED,
             reason: st.reason.clone(),
             group: group_of[i],
         })
@@ -39,7 +41,7 @@ pub(super) fn marks(rows: &[SiteRow]) -> Vec<SiteMark<'_>> {
             pos: r.pos,
             label: r.name.as_deref().unwrap_or(&r.id),
             hub: r.hub,
-            connected: r.status == CONNECTED,
+            connected: r.joined_to_hub,
             priority: r.priority,
         })
         .collect()

@@ -7,6 +7,9 @@
 
 use super::options::{Options, RoadOptions};
 use super::{Checked, MAX_ATTACH_LIMIT_M, PlanJob};
+
+/// Longest `--time-limit`, seconds (a week): a clock so far out is a mistake, not a plan.
+pub const MAX_TIME_LIMIT_S: f64 = 604_800.0;
 use crate::ingest::cost_table::{CostTable, RoadFilter};
 use crate::ingest::crs::Crs;
 use crate::ingest::damage::DamageRule;
@@ -95,6 +98,7 @@ fn typed_road_settings(o: &RoadOptions) -> Result<RoadSettings, IngestError> {
         },
         id_field: o.id_field.clone(),
         crs: o.crs.clone(),
+        layer: o.roads_layer.clone(),
         node_crossings: o.node_crossings,
         category_field: o.category_field.clone(),
         cost_table,
@@ -138,14 +142,20 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             lon_column: o.lon_column.clone(),
             lat_column: o.lat_column.clone(),
             crs: o.sites_crs.clone(),
+            osm_tags: o
+                .site_tags
+                .iter()
+                .map(|t| RoadFilter::parse(t, true).map_err(|m| refuse("--site-tags", m)))
+                .collect::<Result<_, _>>()?,
         },
         max_attach_m: o.max_attach_m.unwrap_or(250.0),
         hub: o.hub.clone(),
         whole_network: o.whole_network,
         mst: o.mst.unwrap_or_default(),
         effort: o.effort.unwrap_or(crate::solve::steiner::Effort::Normal),
+        time_limit_s: o.time_limit_s,
         zones: o.damage_zones.clone(),
-        // Zones and reports read "closed" as the roads do; a zone without a value counts as 1.0.
+        // Zones and reports read "closed" as the roads do; one without a value counts as 1.0.
         zone_damage: DamageRule {
             field: o
                 .zone_damage_field
@@ -154,15 +164,25 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             default: 1.0,
             closed_value: o.road.closed_value.clone(),
         },
+        report_damage: DamageRule {
+            field: o
+                .damage_points_field
+                .clone()
+                .unwrap_or_else(|| "damage".into()),
+            default: 1.0,
+            closed_value: o.road.closed_value.clone(),
+        },
         zones_crs: o.zones_crs.clone(),
         reports: o.damage_points.clone(),
-        report_distance_m: o.report_distance_m.unwrap_or(50.0),
+        point_match_distance_m: o.point_match_distance_m.unwrap_or(50.0),
         crew_capacity: o.crew_capacity,
         crews: o.crews.unwrap_or(1),
         max_detour: o.max_detour,
         name: o.name.clone(),
         budget: o.budget,
         redundancy: o.redundancy,
+        earlier_reports: o.earlier_damage_points.clone(),
+        field_work: o.field_work.clone(),
         _checked: Checked(()),
     };
     ranges(&job)?;
@@ -181,13 +201,30 @@ fn needs_input(o: &Options) -> Result<(), IngestError> {
 /// The options given that this run would ignore, by flag, each with what it needs.
 pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
+    let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
+    let osm_sites = o.sites.as_ref().is_some_and(|s| {
+        crate::ingest::reader::Format::of(s) == crate::ingest::reader::Format::OsmPbf
+    });
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 17] = [
+    let rules: [(&'static str, bool, bool, &'static str); 21] = [
+        (
+            "--roads-layer",
+            o.road.roads_layer.is_some(),
+            crate::ingest::reader::Format::of(&o.roads)
+                == crate::ingest::reader::Format::GeoPackage,
+            "only a GeoPackage road file (--roads FILE.gpkg) holds layers to choose from",
+        ),
+        (
+            "--site-tags",
+            !o.site_tags.is_empty(),
+            osm_sites,
+            "only sites from an OpenStreetMap extract (--sites FILE.osm.pbf) are chosen by tag",
+        ),
         (
             "--hub",
             o.hub.is_some(),
@@ -252,6 +289,12 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
             "corridors run from the hub to the sites: give --sites (and not --whole-network)",
         ),
         (
+            "--time-limit",
+            o.time_limit_s.is_some(),
+            sites_plan,
+            SITES_PLAN,
+        ),
+        (
             "--mst",
             o.mst.is_some(),
             !sites_plan,
@@ -265,20 +308,26 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
             "this is the damage zones' CRS: give --damage-zones",
         ),
         (
-            "--report-distance",
-            o.report_distance_m.is_some(),
-            o.damage_points.is_some(),
-            "this is the damage reports' reach: give --damage-points",
+            "--point-match-distance",
+            o.point_match_distance_m.is_some(),
+            points,
+            "this is how far a field report may lie from its road: give --damage-points",
+        ),
+        (
+            "--damage-points-field",
+            o.damage_points_field.is_some(),
+            points,
+            "this field is read from the field reports: give --damage-points",
         ),
         (
             "--zone-damage-field",
             o.zone_damage_field.is_some(),
-            o.damage_zones.is_some() || o.damage_points.is_some(),
-            "this field is read from damage zones and reports: give --damage-zones or \
-             --damage-points",
+            o.damage_zones.is_some(),
+            "this field is read from the damage zones: give --damage-zones (field reports \
+             have --damage-points-field)",
         ),
     ];
-    let later_damage = o.damage_zones.is_some() || o.damage_points.is_some();
+    let later_damage = o.damage_zones.is_some() || points;
     road_ignored(&o.road, later_damage)
         .into_iter()
         .chain(
@@ -315,6 +364,14 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             format!("{b} repair-metres is not a number ≥ 0"),
         ));
     }
+    if let Some(t) = job.time_limit_s
+        && !(t.is_finite() && t > 0.0 && t <= MAX_TIME_LIMIT_S)
+    {
+        return Err(refuse(
+            "--time-limit",
+            format!("{t} seconds is not a number above 0 and at most {MAX_TIME_LIMIT_S}"),
+        ));
+    }
     if let Some(c) = job.crew_capacity
         && !(c.is_finite() && c >= 0.0005)
     {
@@ -341,14 +398,14 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             ),
         ));
     }
-    if !(job.report_distance_m.is_finite()
-        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.report_distance_m))
+    if !(job.point_match_distance_m.is_finite()
+        && (0.0..=MAX_ATTACH_LIMIT_M).contains(&job.point_match_distance_m))
     {
         return Err(refuse(
-            "--report-distance",
+            "--point-match-distance",
             format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.report_distance_m
+                job.point_match_distance_m
             ),
         ));
     }

@@ -12,19 +12,34 @@ use crate::solve::components::Components;
 use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::EdgeList;
 
-/// Joined to the hub over intact roads and the plan.
-pub const CONNECTED: &str = "connected";
-/// No usable road within `--max-attach`.
-pub const NOT_ATTACHED: &str = "not attached";
-/// Could be joined to the hub, but not within `--budget`.
-pub const LEFT_OUT: &str = "left out by budget";
-/// No usable road leads from the site to the hub.
+/// Status code: joined to the hub over intact roads and the plan.
+pub const JOINED: &str = "joined";
+/// Status code: no usable road within `--max-attach`.
+pub const NOT_ATTACHED: &str = "not_attached";
+/// Status code: could be joined to the hub, but not within `--budget`.
+pub const LEFT_OUT: &str = "left_out_by_budget";
+/// Status code: no usable road leads from the site to the hub.
 pub const UNREACHABLE: &str = "unreachable";
+/// Every status code with its label for people, in the order docs/outputs.md lists them.
+pub const STATUSES: [(&str, &str); 4] = [
+    (JOINED, "joined to the hub"),
+    (NOT_ATTACHED, "not attached to a road"),
+    (LEFT_OUT, "left out by the budget"),
+    (UNREACHABLE, "cannot reach the hub"),
+];
+
+/// The label for people of a status code (`status_label` beside `status` in the outputs).
+pub fn status_label(code: &str) -> &'static str {
+    STATUSES
+        .iter()
+        .find(|(c, _)| *c == code)
+        .map_or("unknown status", |(_, l)| l)
+}
 
 /// A site's status and, unless joined, why not.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct SiteStatus {
-    /// One of [`CONNECTED`], [`NOT_ATTACHED`], [`LEFT_OUT`], [`UNREACHABLE`].
+    /// One of [`JOINED`], [`NOT_ATTACHED`], [`LEFT_OUT`], [`UNREACHABLE`].
     pub status: &'static str,
     /// Why the site is not joined to the hub (None when it is).
     pub reason: Option<String>,
@@ -87,7 +102,7 @@ pub(super) fn statuses(f: &Facts) -> Result<Vec<SiteStatus>, SolveError> {
         };
         if f.reach.joined[i] {
             out.push(SiteStatus {
-                status: CONNECTED,
+                status: JOINED,
                 reason: None,
             });
             continue;
@@ -249,8 +264,8 @@ pub(super) mod tests {
         assert_eq!(
             s,
             [
-                CONNECTED,
-                CONNECTED,
+                JOINED,
+                JOINED,
                 UNREACHABLE,
                 UNREACHABLE,
                 UNREACHABLE,

@@ -1,6 +1,6 @@
 //! Builds `summary.json` from the results of the stages.
 
-use super::status::CONNECTED;
+use super::status::{JOINED, status_label};
 use super::{PlanJob, SitesResult};
 use crate::export::summary::*;
 use crate::ingest::NodingStats;
@@ -28,6 +28,7 @@ pub fn build(
         features_read: read.features_read,
         features_used: read.features_used,
         features_skipped: read.features_skipped.clone(),
+        features_cut_at_edge: read.features_cut_at_edge,
         line_parts: read.line_parts,
         vertices: read.vertices,
         vertices_moved: noding.vertices_moved,
@@ -75,6 +76,7 @@ pub fn build(
         inputs,
         fingerprint,
         settings: super::settings_json(job),
+        deterministic: job.time_limit_s.is_none(),
         outputs: Vec::new(),
         geodesy,
         counts,
@@ -101,7 +103,7 @@ pub fn build(
         damage_reports: None,
         days: None,
         corridors: None,
-        fragility: None,
+        single_failures: None,
         backup: None,
         sites: sites.map(|r| sites_figures(r, net, comps, plan)),
         total_cost: cost_to_repair_metres(plan.total_cost),
@@ -113,22 +115,25 @@ pub fn build(
         plan_edges: plan.edges.len(),
         notes: Vec::new(),
         structures: None,
+        history: Vec::new(),
+        replan: None,
     }
 }
 
 fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan) -> SitesFigures {
     let sites = &r.layer.sites;
-    let mut unconnected = Vec::new();
-    let mut connected = 0;
+    let mut not_joined = Vec::new();
+    let mut joined_to_hub = 0;
     for (i, s) in sites.iter().enumerate() {
         let st = &r.statuses[i];
-        if st.status == CONNECTED {
-            connected += 1;
+        if st.status == JOINED {
+            joined_to_hub += 1;
         } else {
-            unconnected.push(UnconnectedSite {
+            not_joined.push(NotJoinedSite {
                 id: s.id.clone(),
                 name: s.name.clone(),
                 status: st.status,
+                status_label: status_label(st.status),
                 reason: st.reason.clone().unwrap_or_default(),
                 distance_m: r.attachments[i].distance_m.map(round3),
             });
@@ -174,10 +179,10 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
             .iter()
             .filter(|a| a.junction.is_some())
             .count(),
-        connected,
+        joined_to_hub,
         hub: r.hub.map(|h| sites[h].id.clone()),
         groups,
-        unconnected,
+        not_joined,
         note,
     }
 }

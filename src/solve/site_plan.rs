@@ -3,7 +3,7 @@
 use super::SolveError;
 use super::components::Components;
 use super::graph::EdgeList;
-use super::steiner::{Effort, SteinerTree, steiner_tree};
+use super::steiner::{Effort, SteinerTree, Watch, steiner_tree_watched};
 use crate::network::Cost;
 use rayon::prelude::*;
 
@@ -40,6 +40,17 @@ pub fn plan_sites(
     junction_of: &[Option<u32>],
     effort: Effort,
 ) -> Result<SitePlan, SolveError> {
+    plan_sites_watched(g, comps, junction_of, effort, Watch::default())
+}
+
+/// [`plan_sites`] with every group's search watched by `watch` (progress, an optional clock).
+pub fn plan_sites_watched(
+    g: &EdgeList,
+    comps: &Components,
+    junction_of: &[Option<u32>],
+    effort: Effort,
+    watch: Watch,
+) -> Result<SitePlan, SolveError> {
     let mut by_comp: std::collections::BTreeMap<u32, Vec<usize>> = Default::default();
     for (i, j) in junction_of.iter().enumerate() {
         if let Some(j) = j {
@@ -52,7 +63,7 @@ pub fn plan_sites(
         .into_par_iter()
         .map(|(component, sites)| {
             let terminals: Vec<u32> = sites.iter().filter_map(|&i| junction_of[i]).collect();
-            let tree = steiner_tree(g, &terminals, effort)?;
+            let tree = steiner_tree_watched(g, &terminals, effort, watch)?;
             Ok(SiteGroup {
                 sites,
                 component,

@@ -1,7 +1,7 @@
 //! "Joined" checked from the written layers alone: network.geojson, plan.geojson and sites.geojson
 //! are read with the geojson crate (an independent reader), and a site counts as joined when a
 //! path of intact (cost 0) or planned edges leads from it to the hub's junction. Every output that
-//! speaks of joined sites (the sites layer, summary.json, work-orders.csv, fragility) must agree.
+//! speaks of joined sites (the sites layer, summary.json, work-orders.csv, single failures) must agree.
 
 use super::*;
 use std::collections::{BTreeSet, HashMap, HashSet};
@@ -96,11 +96,11 @@ pub fn check_joined(out: &Path) -> (usize, usize) {
         let j = prop(f, "junction").as_i64();
         let is = j.is_some_and(|j| reached.contains(&j));
         assert_eq!(
-            prop(f, "connected"),
+            prop(f, "joined_to_hub"),
             is,
-            "site {id}: `connected` against the layers"
+            "site {id}: `joined_to_hub` against the layers"
         );
-        assert_eq!(prop(f, "status") == "connected", is, "site {id}: status");
+        assert_eq!(prop(f, "status") == "joined", is, "site {id}: status");
         if is {
             joined.insert(id.clone());
             if before.contains(&j.unwrap()) {
@@ -111,15 +111,15 @@ pub fn check_joined(out: &Path) -> (usize, usize) {
         }
     }
     let st = &s["sites"];
-    assert_eq!(st["connected"].as_u64().unwrap() as usize, joined.len());
-    let unconnected: BTreeSet<String> = st["unconnected"]
+    assert_eq!(st["joined_to_hub"].as_u64().unwrap() as usize, joined.len());
+    let not_joined: BTreeSet<String> = st["not_joined"]
         .as_array()
         .unwrap()
         .iter()
         .map(|u| u["id"].as_str().unwrap().to_string())
         .collect();
-    assert_eq!(unconnected.len() + joined.len(), sites.features.len());
-    assert!(unconnected.is_disjoint(&joined));
+    assert_eq!(not_joined.len() + joined.len(), sites.features.len());
+    assert!(not_joined.is_disjoint(&joined));
     check_orders(out, &w, hub, &joined, &joined_before);
     // Days end at the share of sites joined.
     if let Some(last) = s["days"].as_array().and_then(|d| d.last()) {
@@ -131,7 +131,7 @@ pub fn check_joined(out: &Path) -> (usize, usize) {
         );
     }
     // The single-failure report speaks of joined sites only, and of all of them.
-    if let Some(f) = s["fragility"].as_object() {
+    if let Some(f) = s["single_failures"].as_object() {
         assert_eq!(
             f["sites_checked"].as_u64().unwrap() as usize,
             joined.len() - 1

@@ -59,7 +59,7 @@ pub(in crate::job) fn read(
         notes,
         &roads.stats,
         &job.road_settings,
-        job.zones.is_some() || job.reports.is_some(),
+        job.zones.is_some() || job.has_reports(),
     );
     if let Some(sl) = &sites {
         notes::site_defaults(notes, sl, &job.site_settings);

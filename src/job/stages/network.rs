@@ -23,12 +23,16 @@ pub(in crate::job) struct Built {
     pub noding: NodingStats,
     /// Damage zones read and edges whose cost they changed.
     pub zone_figures: (usize, usize),
+    /// The zones' outer rings, lon/lat, for the picture.
+    pub zone_rings: Vec<Vec<[f64; 2]>>,
     /// What the damage reports did, when given.
     pub report_figures: Option<ReportFigures>,
     /// One attachment per site (empty without sites).
     pub attachments: Vec<Attachment>,
     /// Input records of the zones and reports.
     pub inputs: Vec<InputRecord>,
+    /// The previous plan and the finished work matched to this network (a re-plan only).
+    pub carried: Option<crate::replan::carry::Carried>,
 }
 
 /// Nodes the roads, applies zones and reports, and attaches the sites.
@@ -45,10 +49,16 @@ pub(in crate::job) fn build(
     };
     let mut inputs = Vec::new();
     let mut zone_figures = (0usize, 0usize);
+    let mut zone_rings = Vec::new();
     if let Some(src) = &job.zones {
         let _s = progress.stage("applying damage zones");
         let zl = read_zones(src, &job.zone_damage, job.zones_crs.as_deref())?;
         zone_figures = (zl.zones.len(), apply_zones(&mut net, &zl));
+        zone_rings = zl
+            .zones
+            .iter()
+            .map(|z| z.polygon.exterior().coords().map(|c| [c.x, c.y]).collect())
+            .collect();
         notes::layer_defaults(
             notes,
             "zone_damage_defaulted",
@@ -64,24 +74,53 @@ pub(in crate::job) fn build(
         notes::zones_unused(notes, zone_figures.0, zone_figures.1);
         inputs.push(zl.input);
     }
-    let mut report_figures = None;
-    if let Some(src) = &job.reports {
+    // Earlier rounds' points first, then the finished work (marked below, after attachment, on
+    // every piece no new point touched), then the points given anew.
+    let mut report_figures: Option<ReportFigures> = None;
+    let mut touched = Vec::new();
+    let batches = [
+        (job.earlier_reports.iter().collect::<Vec<_>>(), false),
+        (job.reports.iter().collect(), true),
+    ];
+    for (sources, new) in batches {
+        if sources.is_empty() {
+            continue;
+        }
         let _s = progress.stage("applying damage reports");
-        let (reports, rec) = read_reports(src, &job.zone_damage)?;
-        let fig = apply_reports(&mut net, &reports, job.report_distance_m);
+        let mut reports = Vec::new();
+        for src in sources {
+            let (mut more, rec) = read_reports(src, &job.report_damage)?;
+            // Feature indices count on through the layers of one batch, in round order.
+            let offset = reports.len() + report_figures.as_ref().map_or(0, |f| f.read);
+            more.iter_mut().for_each(|r| r.index += offset);
+            reports.extend(more);
+            inputs.push(rec);
+        }
+        let mut fig = apply_reports(&mut net, &reports, job.point_match_distance_m);
         notes::layer_defaults(
             notes,
             "report_damage_defaulted",
             ("damage report", "damage reports"),
             reports.iter().filter(|r| r.defaulted).count(),
             reports.len(),
-            &job.zone_damage,
+            &job.report_damage,
         );
-        notes::reports(notes, &fig, job.report_distance_m);
+        if new && job.field_work.is_some() {
+            touched = crate::replan::carry::spans_of(&net, &fig.touched);
+        }
+        if let Some(before) = report_figures.take() {
+            fig.read += before.read;
+            fig.applied += before.applied;
+            let mut unmatched = before.unmatched;
+            unmatched.append(&mut fig.unmatched);
+            fig.unmatched = unmatched;
+        }
         report_figures = Some(fig);
-        inputs.push(rec);
     }
-    if job.zones.is_some() || job.reports.is_some() {
+    if let Some(fig) = &report_figures {
+        notes::reports(notes, fig, job.point_match_distance_m);
+    }
+    if job.zones.is_some() || job.has_reports() {
         check_cost_total(&net, &job.roads.display_path())?;
     }
     let attachments = match sites {
@@ -93,10 +132,18 @@ pub(in crate::job) fn build(
         }
         None => Vec::new(),
     };
+    // Work-order keys hold only once the sites have split their roads: the finished work and the
+    // previous plan are matched to this network here.
+    let carried = job
+        .field_work
+        .as_ref()
+        .map(|w| crate::replan::carry::carry(&mut net, w, &touched));
     Ok(Built {
+        carried,
         net,
         noding,
         zone_figures,
+        zone_rings,
         report_figures,
         attachments,
         inputs,

@@ -3,18 +3,21 @@
 
 use super::network::Built;
 use crate::export::backup::BackupLayer;
-use crate::export::fragility::FragilityLayer;
+use crate::export::single_failures::SingleFailureLayer;
 use crate::ingest::sites::SiteLayer;
 use crate::job::notes::Notes;
-use crate::job::resilience::{backup_plan, fragility_report};
+use crate::job::resilience::{backup_plan, single_failure_report};
 use crate::job::schedule::schedule;
 use crate::job::{JobError, PlanJob, SitesResult, budget, hub, joined, status};
 use crate::network::cost_to_repair_metres;
 use crate::progress::Progress;
+use crate::replan::warm;
 use crate::solve::components::{Components, components};
 use crate::solve::order::Step;
-use crate::solve::site_plan::{SitePlan, plan_sites};
+use crate::solve::site_plan::{SitePlan, plan_sites_watched};
+use crate::solve::steiner::Watch;
 use crate::solve::{Plan, PlanKind, minimum_spanning_forest};
+use std::time::{Duration, Instant};
 
 /// The plan and everything decided about it.
 pub(in crate::job) struct Planned {
@@ -24,12 +27,12 @@ pub(in crate::job) struct Planned {
     pub comps: Components,
     /// The edges to repair.
     pub plan: Plan,
-    /// The repairs in order, with day-phases.
+    /// The repairs in order, with their repair days (with --crew-capacity).
     pub steps: Vec<Step>,
     /// The sites' attachments, hub, plan, reach and statuses, when sites were given.
     pub sites: Option<SitesResult>,
     /// Single points of failure after the plan (sites joined to a hub).
-    pub fragile: Option<FragilityLayer>,
+    pub single_failures: Option<SingleFailureLayer>,
     /// Backup links (`--redundancy`).
     pub backup: Option<BackupLayer>,
     /// Corridors from the hub to the joined sites.
@@ -52,14 +55,40 @@ pub(in crate::job) fn plan(
         None => None,
     };
     let (mut plan, site_plan) = {
-        let _s = progress.stage("solving");
+        let stage = progress.stage("solving");
+        // A re-plan solves with its started repairs free, then settles (replan::warm).
+        let carried = built.carried.as_ref();
+        let solve = carried.map(|c| warm::solving_graph(&graph, c));
+        let solve_on = solve.as_ref().unwrap_or(&graph);
         match &site_layer {
             Some(_) if !job.whole_network => {
-                let junctions: Vec<Option<u32>> = attachments.iter().map(|a| a.junction).collect();
-                let sp = plan_sites(&graph, &comps, &junctions, job.effort)?;
+                let mut junctions: Vec<Option<u32>> =
+                    attachments.iter().map(|a| a.junction).collect();
+                let n = junctions.len();
+                if let Some(c) = carried {
+                    let extra = warm::extra_terminals(&graph, &comps, &junctions, c);
+                    junctions.extend(extra.into_iter().map(Some));
+                }
+                let report = |cost: u64, bound: u64| stage.set_message(search_line(cost, bound));
+                let watch = Watch {
+                    report: Some(&report),
+                    deadline: job
+                        .time_limit_s
+                        .map(|t| Instant::now() + Duration::from_secs_f64(t)),
+                };
+                let mut sp = plan_sites_watched(solve_on, &comps, &junctions, job.effort, watch)?;
+                if let Some(c) = carried {
+                    warm::settle_sites(&graph, solve_on, &comps, &mut sp, &junctions, n, c);
+                }
                 (sites_plan(&sp), Some(sp))
             }
-            _ => (minimum_spanning_forest(&graph, job.mst)?, None),
+            _ => {
+                let mut plan = minimum_spanning_forest(solve_on, job.mst)?;
+                if let Some(c) = carried {
+                    warm::settle_forest(&graph, solve_on, &mut plan, c);
+                }
+                (plan, None)
+            }
         }
     };
     // Within a budget smaller than the plan, choose which sites to join.
@@ -122,10 +151,10 @@ pub(in crate::job) fn plan(
         None => None,
     };
     let joined_to_hub = sites.as_ref().filter(|sr| sr.reach.hub_junction.is_some());
-    let fragile = match joined_to_hub {
+    let single_failures = match joined_to_hub {
         Some(sr) => {
-            let _s = progress.stage("finding single points of failure");
-            Some(fragility_report(&graph, &plan.edges, sr)?)
+            let _s = progress.stage("finding roads with no way round");
+            Some(single_failure_report(&graph, &plan.edges, sr)?)
         }
         None => None,
     };
@@ -148,7 +177,7 @@ pub(in crate::job) fn plan(
         plan,
         steps,
         sites,
-        fragile,
+        single_failures,
         backup,
         corridors,
     })
@@ -168,4 +197,23 @@ fn sites_plan(sp: &SitePlan) -> Plan {
         lower_bound: sp.lower_bound,
         bound_complete: sp.bound_complete,
     }
+}
+
+/// The progress line while a sites plan is searched: the best plan so far and the lower bound,
+/// in repair-metres, and how far apart they are (one group of sites at a time).
+fn search_line(cost: u64, bound: u64) -> String {
+    let (c, b) = (cost_to_repair_metres(cost), cost_to_repair_metres(bound));
+    let gap = match crate::solve::site_plan::gap(cost, bound) {
+        Some(g) if g > 0.0 => format!(
+            "at most {} % above optimal",
+            crate::decimal::Fixed(100.0 * g, 2)
+        ),
+        Some(_) => "proven optimal".to_string(),
+        None => "no bound yet".to_string(),
+    };
+    format!(
+        "solving: best plan {} repair-metres, bound {} ({gap})",
+        crate::decimal::Fixed(c, 3),
+        crate::decimal::Fixed(b, 3)
+    )
 }

@@ -14,6 +14,7 @@ use crate::solve::graph::{EdgeList, UNUSABLE};
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 use std::sync::Arc;
+use std::time::Instant;
 
 /// The outcome of a search.
 pub struct Outcome {
@@ -57,15 +58,25 @@ impl Ord for Open {
     }
 }
 
-/// Searches `g` (positive costs) for a tree over `terminals` cheaper than `best`, in at most
-/// `max_nodes` steps, starting from the lower bound `bound`. `report(best cost, bound)` hears of
-/// every improvement of either.
+/// Where a search stops when it has not proven the best tree optimal.
+#[derive(Debug, Clone, Copy)]
+pub struct Limits {
+    /// Steps that always run (the deterministic budget); without a deadline, the most.
+    pub nodes: u64,
+    /// A wall-clock limit, checked between steps once the budgeted steps are spent (an explicit
+    /// opt-out of determinism).
+    pub deadline: Option<Instant>,
+}
+
+/// Searches `g` (positive costs) for a tree over `terminals` cheaper than `best` within `limits`,
+/// starting from the lower bound `bound`. `report(best cost, bound)` hears of every improvement of
+/// either.
 pub fn search(
     g: &EdgeList,
     terminals: &[u32],
     best: Incumbent,
     bound: u64,
-    max_nodes: u64,
+    limits: Limits,
     report: &mut dyn FnMut(u64, u64),
 ) -> Outcome {
     let mut best = best;
@@ -89,7 +100,7 @@ pub fn search(
             queue.clear();
             break;
         }
-        if nodes >= max_nodes {
+        if nodes >= limits.nodes && limits.deadline.is_none_or(|d| Instant::now() >= d) {
             break;
         }
         let open = queue.pop().expect("peeked");

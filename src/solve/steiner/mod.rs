@@ -4,7 +4,8 @@
 //!
 //! 1. [`reduce`]: exact reductions (zero-cost components, non-terminal leaves, degree-2 chains).
 //! 2. [`sph`]: the shortest-path heuristic from several roots, each polished by [`local`] search
-//!    (key-path exchange, key-vertex elimination); the cheapest tree wins.
+//!    (key-path exchange, key-vertex elimination); the best few are [`merge`]d (their union searched
+//!    by branch-and-bound) and the cheapest tree wins.
 //! 3. Beside it, on the other core: [`dual_ascent`], Wong's lower bound, so every plan states how
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
@@ -21,6 +22,7 @@ pub mod exact;
 pub mod fixing;
 pub mod local;
 pub mod mehlhorn;
+pub mod merge;
 pub mod paths;
 pub mod reduce;
 pub mod sph;
@@ -135,6 +137,16 @@ impl Effort {
         }
     }
 
+    /// Solution merging after the heuristics: how many of the best distinct trees are joined, and
+    /// the most branch-and-bound steps spent on their union (none at quick effort).
+    fn merging(self) -> (usize, u64) {
+        match self {
+            Effort::Quick => (0, 0),
+            Effort::Normal => (16, 200),
+            Effort::Thorough => (32, 1000),
+        }
+    }
+
     /// Arc visits the dual ascent may spend on a reduced graph of `size` vertices plus edges, or
     /// `None` to skip it. Quick effort runs a short ascent on small graphs, where it usually completes
     /// with a near-optimal bound, and none on large ones, where an ascent that short stays below
@@ -164,11 +176,34 @@ pub struct SteinerTree {
     pub reduced_size: (usize, usize),
 }
 
+/// What a caller may ask of a solve beyond its effort: to hear progress, or to run on the clock.
+#[derive(Clone, Copy, Default)]
+pub struct Watch<'a> {
+    /// Hears the best tree's cost and the lower bound (cost units) once the heuristics and the
+    /// bound are done, then whenever the exact search improves either.
+    pub report: Option<&'a (dyn Fn(Cost, Cost) + Sync)>,
+    /// When given, the exact search goes on past its fixed step budget until the tree is proven
+    /// optimal or this instant passes: the result then depends on the machine's speed (never worse
+    /// than without, since the budgeted steps all run first).
+    pub deadline: Option<std::time::Instant>,
+}
+
 /// Connects `terminals` (original vertex ids, mutually reachable over usable edges) at least cost.
 pub fn steiner_tree(
     g: &EdgeList,
     terminals: &[u32],
     effort: Effort,
+) -> Result<SteinerTree, SolveError> {
+    steiner_tree_watched(g, terminals, effort, Watch::default())
+}
+
+/// [`steiner_tree`] with progress reports and, optionally, a wall-clock limit in place of the
+/// exact search's step budget.
+pub fn steiner_tree_watched(
+    g: &EdgeList,
+    terminals: &[u32],
+    effort: Effort,
+    watch: Watch,
 ) -> Result<SteinerTree, SolveError> {
     let mut terms = terminals.to_vec();
     terms.sort_unstable();
@@ -231,9 +266,19 @@ pub fn steiner_tree(
         }
         let cost = tree::cost(rg, &best);
         let nodes = effort.search_nodes(rg.vertices + rg.len());
-        if bound.complete && bound.value < cost && nodes > 0 {
+        let mut report = |c: Cost, b: Cost| {
+            if let Some(r) = watch.report {
+                r(c, b);
+            }
+        };
+        report(cost, bound.value.min(cost));
+        if bound.complete && bound.value < cost && (nodes > 0 || watch.deadline.is_some()) {
             let held = exact::Incumbent { edges: best, cost };
-            let out = branch::search(rg, &red.terminals, held, bound.value, nodes, &mut |_, _| {});
+            let limits = branch::Limits {
+                nodes,
+                deadline: watch.deadline,
+            };
+            let out = branch::search(rg, &red.terminals, held, bound.value, limits, &mut report);
             best = out.best.edges;
             bound.value = bound.value.max(out.lower_bound);
         }
@@ -271,6 +316,7 @@ fn heuristics(
     let it = &red.is_terminal;
     let mut best = Vec::new();
     let mut best_cost = u64::MAX;
+    let mut pool: Vec<(u64, Vec<u32>)> = Vec::new();
     let k = red.terminals.len();
     let size = rg.vertices + rg.len();
     let roots = effort.starts(size).min(k);
@@ -290,6 +336,7 @@ fn heuristics(
             polish(rg, csr, it, t, ws, effort)
         };
         let c = tree::cost(rg, &t);
+        pool.push((c, t.clone()));
         if c < best_cost {
             best = t;
             best_cost = c;
@@ -308,12 +355,26 @@ fn heuristics(
         let t = tree::mst_prune(rg, csr, &t, it);
         let t = polish(rg, csr, it, t, ws, effort);
         let c = tree::cost(rg, &t);
+        pool.push((c, t.clone()));
         if c < best_cost {
             best = t;
             best_cost = c;
         }
     }
-    polish(rg, csr, it, best, ws, effort)
+    let best = polish(rg, csr, it, best, ws, effort);
+    // The best trees share most of their edges and differ where the choice is hard: an exact
+    // search on their union often finds what none of them has.
+    let (trees, steps) = effort.merging();
+    if trees >= 2 && k >= 2 {
+        pool.push((tree::cost(rg, &best), best.clone()));
+        if let Some(t) = merge::merged(rg, &red.terminals, pool, trees, steps) {
+            let t = polish(rg, csr, it, t, ws, effort);
+            if tree::cost(rg, &t) < tree::cost(rg, &best) {
+                return t;
+            }
+        }
+    }
+    best
 }
 
 /// Alternates path-based and vertex-based local search until neither improves the tree.

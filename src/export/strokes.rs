@@ -1,0 +1,128 @@
+//! Road lines as the picture draws them: polylines in pixels. A large network is drawn at the
+//! picture's resolution: every vertex snaps to the pixel grid, repeated points go, a piece that
+//! falls within one pixel vanishes (its neighbours, snapped to the same pixel, keep the line
+//! unbroken) and a pixel step already drawn is not drawn again, so the SVG holds about as many
+//! steps as the picture has pixels of road, however many roads the district has.
+
+use super::layout::Frame;
+use crate::network::Network;
+use std::collections::HashSet;
+
+/// Above this many geometry points the network is drawn at the picture's resolution (a few
+/// hundred thousand points already make an SVG of megabytes with detail no screen shows).
+pub const SIMPLIFY_ABOVE: usize = 150_000;
+
+/// Polylines in pixels.
+pub type Lines = Vec<Vec<(f64, f64)>>;
+
+/// Snaps lines to the pixel grid, or keeps them exact.
+pub struct Stroker<'a> {
+    net: &'a Network,
+    frame: &'a Frame,
+    /// True when lines snap to the pixel grid.
+    pub simplify: bool,
+}
+
+impl<'a> Stroker<'a> {
+    /// A stroker for the network in the frame; it snaps when the network is large.
+    pub fn new(net: &'a Network, frame: &'a Frame) -> Self {
+        Stroker {
+            net,
+            frame,
+            simplify: net.geom.len() > SIMPLIFY_ABOVE,
+        }
+    }
+
+    /// The polyline of one edge, exact (or snapped, when simplifying; then possibly empty).
+    pub fn edge(&self, e: usize) -> Vec<(f64, f64)> {
+        let g = self.net.edge_geometry(e);
+        let mut out: Vec<(f64, f64)> = Vec::with_capacity(g.len());
+        for p in g {
+            let (x, y) = self.frame.px(*p);
+            let q = if self.simplify {
+                (x.round(), y.round())
+            } else {
+                (x, y)
+            };
+            if out.last() != Some(&q) {
+                out.push(q);
+            }
+        }
+        if self.simplify && out.len() < 2 {
+            out.clear();
+        }
+        out
+    }
+
+    /// The polylines of many edges; when simplifying, steps already drawn are left out (a line
+    /// breaks where it meets one) and the lines are as few as the drawing allows.
+    pub fn edges(&self, edges: impl Iterator<Item = usize>) -> Lines {
+        let mut lines = Lines::new();
+        if !self.simplify {
+            lines.extend(edges.map(|e| self.edge(e)).filter(|l| l.len() >= 2));
+            return lines;
+        }
+        let key = |a: (f64, f64), b: (f64, f64)| {
+            let (a, b) = ((a.0 as i32, a.1 as i32), (b.0 as i32, b.1 as i32));
+            if a <= b { (a, b) } else { (b, a) }
+        };
+        let mut seen: HashSet<((i32, i32), (i32, i32))> = HashSet::new();
+        for e in edges {
+            let pts = self.edge(e);
+            let mut cur: Vec<(f64, f64)> = Vec::new();
+            for w in pts.windows(2) {
+                if seen.insert(key(w[0], w[1])) {
+                    if cur.is_empty() {
+                        cur.push(w[0]);
+                    }
+                    cur.push(w[1]);
+                } else if cur.len() >= 2 {
+                    lines.push(std::mem::take(&mut cur));
+                } else {
+                    cur.clear();
+                }
+            }
+            if cur.len() >= 2 {
+                // Continue the previous line when this one starts where it ended.
+                match lines.last_mut() {
+                    Some(last) if last.last() == cur.first() => last.extend_from_slice(&cur[1..]),
+                    _ => lines.push(cur),
+                }
+            }
+        }
+        lines
+    }
+}
+
+/// SVG path data for polylines (one decimal; whole pixels print without one).
+pub fn path_data(lines: &[Vec<(f64, f64)>]) -> String {
+    let mut d = String::with_capacity(lines.len() * 24);
+    for l in lines {
+        for (i, &(x, y)) in l.iter().enumerate() {
+            d.push(if i == 0 { 'M' } else { 'L' });
+            crate::decimal::push_decimal(&mut d, x, 1, true);
+            d.push(' ');
+            crate::decimal::push_decimal(&mut d, y, 1, true);
+        }
+    }
+    d
+}
+
+/// The point halfway along a polyline, by length.
+pub fn midpoint(l: &[(f64, f64)]) -> Option<(f64, f64)> {
+    let seg = |w: &[(f64, f64)]| (w[1].0 - w[0].0).hypot(w[1].1 - w[0].1);
+    let total: f64 = l.windows(2).map(seg).sum();
+    let mut left = total / 2.0;
+    for w in l.windows(2) {
+        let s = seg(w);
+        if s >= left && s > 0.0 {
+            let t = left / s;
+            return Some((
+                w[0].0 + t * (w[1].0 - w[0].0),
+                w[0].1 + t * (w[1].1 - w[0].1),
+            ));
+        }
+        left -= s;
+    }
+    l.first().copied()
+}

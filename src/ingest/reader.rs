@@ -1,0 +1,164 @@
+//! One interface for every input format: a source of features, each with its geometry and
+//! attributes, and the CRS the file declares.
+//!
+//! A format's reader only decodes its file into [`RawFeature`]s; what a road layer makes of them
+//! (value typing, filters, damage, classes, structures, ids, labels) and how coordinates are
+//! checked and converted happens once, in [`read_lines`], whatever the format. The formats:
+//!
+//! | format | reader | CRS |
+//! | --- | --- | --- |
+//! | GeoJSON (RFC 7946) | `geojson`, through `roads::read_geojson_roads` | WGS84, or the legacy `crs` member |
+//! | ESRI Shapefile | `shapefile` | its `.prj` |
+//! | OpenStreetMap `.osm.pbf` | [`super::osm`] | WGS84 always |
+//! | GeoPackage `.gpkg` | [`super::gpkg`] (geometry blobs: [`super::wkb`]) | the layer's `srs_id` |
+
+use super::IngestError;
+use super::crs::Crs;
+use super::geojson::RawFeature;
+use super::roads::{LineLayer, RoadSettings, add_feature, check_empty, finish_coordinates};
+use super::source::{InputRecord, Source};
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+/// The format of an input, told by its file name.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    /// GeoJSON text (the default for any name not listed below).
+    GeoJson,
+    /// An ESRI Shapefile set, named by its `.shp`.
+    Shapefile,
+    /// An OpenStreetMap extract in the PBF encoding (`.osm.pbf`, `.pbf`).
+    OsmPbf,
+    /// A GeoPackage (`.gpkg`): an SQLite file of one or more layers.
+    GeoPackage,
+}
+
+impl Format {
+    /// The format of `source` by its name's ending (letter case ignored).
+    pub fn of(source: &Source) -> Format {
+        let name = source.display_path().to_string_lossy().to_lowercase();
+        if name.ends_with(".pbf") {
+            Format::OsmPbf
+        } else if name.ends_with(".gpkg") {
+            Format::GeoPackage
+        } else if name.ends_with(".shp") && source.path().is_some() {
+            Format::Shapefile
+        } else {
+            Format::GeoJson
+        }
+    }
+}
+
+/// What a whole read of a source found besides its features.
+#[derive(Debug)]
+pub struct SourceInfo {
+    /// Features in the file that the layer could use (for an extract: the ways tagged `highway`).
+    pub features: usize,
+    /// Features the reader itself left out, by reason (counted in summary.json with the rest).
+    pub skipped: BTreeMap<String, usize>,
+    /// Path, size and fingerprint of the input.
+    pub input: InputRecord,
+    /// True when the data is OpenStreetMap's (its licence asks for attribution).
+    pub osm: bool,
+    /// Features that lost part of their geometry to the file's edge, as a note for summaries.
+    pub features_cut_at_edge: usize,
+}
+
+/// A source of features: the one interface every format's reader offers.
+pub trait FeatureSource {
+    /// The path shown in messages.
+    fn path(&self) -> &Path;
+
+    /// The CRS the file declares, or `None` when the format leaves it to the user (`--crs`).
+    fn declared_crs(&self) -> Result<Option<Crs>, IngestError>;
+
+    /// Calls `sink(index, feature)` for every feature in file order, keeping only the `wanted`
+    /// attributes; `index` is the feature's 0-based number in messages.
+    fn features(
+        &mut self,
+        wanted: &[String],
+        sink: &mut dyn FnMut(usize, RawFeature) -> Result<(), IngestError>,
+    ) -> Result<SourceInfo, IngestError>;
+}
+
+/// Reads a road layer from any [`FeatureSource`]: every feature goes through the same typing,
+/// filters, damage and structure rules, and every vertex through the same CRS checks.
+pub fn read_lines(
+    source: &mut dyn FeatureSource,
+    settings: &RoadSettings,
+) -> Result<LineLayer, IngestError> {
+    settings.validate()?;
+    let path: PathBuf = source.path().to_path_buf();
+    let crs = match &settings.crs {
+        Some(c) => Crs::from_user(c).map_err(|message| IngestError::Crs {
+            path: path.clone(),
+            message,
+        })?,
+        None => source.declared_crs()?.unwrap_or_else(Crs::wgs84),
+    };
+    let mut layer = LineLayer::default();
+    let wanted = settings.wanted_fields();
+    let mut seen = std::collections::BTreeSet::new();
+    let info = source.features(&wanted, &mut |index, f| {
+        for (k, _) in &f.props {
+            if !seen.contains(k) {
+                seen.insert(k.clone());
+            }
+        }
+        add_feature(&mut layer, &path, settings, index, f)
+    })?;
+    for (reason, n) in info.skipped {
+        *layer.stats.features_skipped.entry(reason).or_default() += n;
+    }
+    layer.stats.features_read = info.features;
+    layer.stats.features_cut_at_edge = info.features_cut_at_edge;
+    layer.osm_fields |= info.osm;
+    layer.input = Some(info.input);
+    check_empty(&layer, &path, info.features)?;
+    if let Some(missing) = named_fields(settings)
+        .into_iter()
+        .find(|n| !seen.contains(*n))
+    {
+        return Err(IngestError::Feature {
+            path,
+            feature: 0,
+            field: Some(missing.clone()),
+            message: format!(
+                "no feature has this attribute; attributes seen: {}",
+                seen.iter().cloned().collect::<Vec<_>>().join(", ")
+            ),
+        });
+    }
+    finish_coordinates(&mut layer, &path, &crs)?;
+    Ok(layer)
+}
+
+/// The attributes the user named explicitly: each must appear in some feature.
+fn named_fields(settings: &RoadSettings) -> Vec<&String> {
+    let mut named: Vec<&String> = Vec::new();
+    if settings.damage.field != "damage" && settings.category_field.is_none() {
+        named.push(&settings.damage.field);
+    }
+    named.extend(settings.id_field.iter());
+    named.extend(settings.category_field.iter());
+    named.extend(settings.cost_table.class_field.iter());
+    named.extend(settings.filters.iter().map(|f| &f.field));
+    named.extend(settings.structure_field.iter());
+    named
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn formats_by_name() {
+        let f = |n: &str| Format::of(&Source::File(n.into()));
+        assert_eq!(f("x/li.osm.pbf"), Format::OsmPbf);
+        assert_eq!(f("x/LI.OSM.PBF"), Format::OsmPbf);
+        assert_eq!(f("roads.shp"), Format::Shapefile);
+        assert_eq!(f("County.GPKG"), Format::GeoPackage);
+        assert_eq!(f("roads.geojson"), Format::GeoJson);
+        assert_eq!(f("roads.json"), Format::GeoJson);
+    }
+}

@@ -1,0 +1,261 @@
+//! GeoPackage geometry blobs: the `GP` header (OGC GeoPackage Encoding Standard 1.3, §2.1.3)
+//! followed by well-known binary (OGC Simple Features, ISO 19125-1 §8.2).
+//!
+//! Only what a road layer needs is decoded: LineString and MultiLineString (with Z, M or ZM
+//! ordinates, which are dropped); any other type is named so the caller can skip and count it.
+//! Every count is checked against the bytes left before anything is allocated for it.
+
+use super::coords::Coords;
+
+/// What a blob holds.
+#[derive(Debug, PartialEq)]
+pub enum Decoded {
+    /// Lines, as coordinates nested three deep (one part per line).
+    Lines(Coords),
+    /// An empty geometry (the header's empty flag, or a line with no points).
+    Empty,
+    /// A geometry of another type, by its WKB name.
+    Other(&'static str),
+}
+
+struct Cursor<'a> {
+    b: &'a [u8],
+    at: usize,
+}
+
+impl Cursor<'_> {
+    fn take(&mut self, n: usize) -> Result<&[u8], String> {
+        let end = self.at.checked_add(n).filter(|&e| e <= self.b.len());
+        let Some(end) = end else {
+            return Err(format!(
+                "the geometry ends after {} bytes, inside a value that needs {n} more",
+                self.b.len(),
+            ));
+        };
+        let s = &self.b[self.at..end];
+        self.at = end;
+        Ok(s)
+    }
+
+    fn u32(&mut self, le: bool) -> Result<u32, String> {
+        let s: [u8; 4] = self.take(4)?.try_into().unwrap();
+        Ok(if le {
+            u32::from_le_bytes(s)
+        } else {
+            u32::from_be_bytes(s)
+        })
+    }
+
+    fn f64(&mut self, le: bool) -> Result<f64, String> {
+        let s: [u8; 8] = self.take(8)?.try_into().unwrap();
+        Ok(if le {
+            f64::from_le_bytes(s)
+        } else {
+            f64::from_be_bytes(s)
+        })
+    }
+
+    fn order(&mut self) -> Result<bool, String> {
+        match self.take(1)?[0] {
+            0 => Ok(false),
+            1 => Ok(true),
+            b => Err(format!(
+                "byte order {b} is neither 0 (big) nor 1 (little endian)"
+            )),
+        }
+    }
+}
+
+/// Decodes a GeoPackage geometry blob; the error says what is wrong with it.
+pub fn decode(blob: &[u8]) -> Result<Decoded, String> {
+    if blob.len() < 8 || &blob[..2] != b"GP" {
+        return Err("not a GeoPackage geometry (no \"GP\" header)".into());
+    }
+    let flags = blob[3];
+    if flags & 0b0010_0000 != 0 {
+        return Err("an extended GeoPackage geometry type, which reknit does not read".into());
+    }
+    let envelope = match (flags >> 1) & 0b111 {
+        0 => 0,
+        1 => 32,
+        2 | 3 => 48,
+        4 => 64,
+        e => return Err(format!("envelope code {e} is not one of 0 to 4")),
+    };
+    if flags & 0b0001_0000 != 0 {
+        return Ok(Decoded::Empty);
+    }
+    let mut c = Cursor {
+        b: blob,
+        at: 8 + envelope,
+    };
+    if c.at > blob.len() {
+        return Err("the header's envelope runs past the end of the geometry".into());
+    }
+    let le = c.order()?;
+    let code = c.u32(le)?;
+    let (kind, dims) = kind_of(code)?;
+    let mut coords = Coords {
+        height: 3,
+        ..Default::default()
+    };
+    match kind {
+        2 => line(&mut c, le, dims, &mut coords)?,
+        5 => {
+            let n = c.u32(le)? as usize;
+            for _ in 0..n {
+                let le = c.order()?;
+                let (k, dims) = kind_of(c.u32(le)?)?;
+                if k != 2 {
+                    return Err(format!("a MultiLineString holds a {}", name(k)));
+                }
+                line(&mut c, le, dims, &mut coords)?;
+            }
+        }
+        k => return Ok(Decoded::Other(name(k))),
+    }
+    if coords.pos.is_empty() {
+        return Ok(Decoded::Empty);
+    }
+    coords.groups.push(coords.parts.len());
+    Ok(Decoded::Lines(coords))
+}
+
+/// The base type (1 to 7) and the number of ordinates of a WKB type code (ISO: +1000 Z, +2000 M,
+/// +3000 ZM).
+fn kind_of(code: u32) -> Result<(u32, usize), String> {
+    let kind = code % 1000;
+    let dims = match code / 1000 {
+        0 => 2,
+        1 | 2 => 3,
+        3 => 4,
+        _ => return Err(format!("geometry type code {code} is not a WKB type")),
+    };
+    if !(1..=7).contains(&kind) {
+        return Err(format!("geometry type code {code} is not a WKB type"));
+    }
+    Ok((kind, dims))
+}
+
+fn name(kind: u32) -> &'static str {
+    match kind {
+        1 => "Point",
+        2 => "LineString",
+        3 => "Polygon",
+        4 => "MultiPoint",
+        5 => "MultiLineString",
+        6 => "MultiPolygon",
+        _ => "GeometryCollection",
+    }
+}
+
+/// Reads one line's points (after its type code) as a new part; a line with no points adds none.
+fn line(c: &mut Cursor, le: bool, dims: usize, out: &mut Coords) -> Result<(), String> {
+    let n = c.u32(le)? as usize;
+    // Each point takes 8 bytes per ordinate: a count beyond the bytes left is refused before any
+    // room is made for it.
+    if n.saturating_mul(8 * dims) > c.b.len() - c.at {
+        return Err(format!(
+            "a line declares {n} points, more than the geometry's {} bytes hold",
+            c.b.len()
+        ));
+    }
+    if n == 0 {
+        return Ok(());
+    }
+    for _ in 0..n {
+        let x = c.f64(le)?;
+        let y = c.f64(le)?;
+        for _ in 2..dims {
+            c.f64(le)?;
+        }
+        out.pos.push([x, y]);
+    }
+    out.parts.push(out.pos.len());
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn blob(wkb: &[u8]) -> Vec<u8> {
+        // Header: "GP", version 0, flags 0b1 (little endian, no envelope), srs_id 4326.
+        let mut b = b"GP\x00\x01".to_vec();
+        b.extend_from_slice(&4326i32.to_le_bytes());
+        b.extend_from_slice(wkb);
+        b
+    }
+
+    fn linestring(le: bool, code: u32, pts: &[[f64; 3]], dims: usize) -> Vec<u8> {
+        let mut w = vec![le as u8];
+        let u = |x: u32| if le { x.to_le_bytes() } else { x.to_be_bytes() };
+        let f = |x: f64| if le { x.to_le_bytes() } else { x.to_be_bytes() };
+        w.extend_from_slice(&u(code));
+        w.extend_from_slice(&u(pts.len() as u32));
+        for p in pts {
+            for v in &p[..dims] {
+                w.extend_from_slice(&f(*v));
+            }
+        }
+        w
+    }
+
+    #[test]
+    fn lines_in_both_byte_orders_and_with_z() {
+        // WKB layout from ISO 19125-1 §8.2 (from memory): order byte, type u32, count u32, doubles.
+        let pts = [[1.0, 2.0, 9.0], [3.0, 4.0, 9.0]];
+        for (le, code, dims) in [
+            (true, 2, 2),
+            (false, 2, 2),
+            (true, 1002, 3),
+            (true, 3002, 4),
+        ] {
+            let pts4: Vec<[f64; 3]> = pts.to_vec();
+            let mut w = linestring(le, code, &pts4, dims.min(3));
+            if dims == 4 {
+                // ZM: a fourth ordinate per point.
+                w = vec![1];
+                w.extend_from_slice(&3002u32.to_le_bytes());
+                w.extend_from_slice(&2u32.to_le_bytes());
+                for p in pts {
+                    for v in [p[0], p[1], 9.0, 7.0] {
+                        w.extend_from_slice(&v.to_le_bytes());
+                    }
+                }
+            }
+            let Decoded::Lines(c) = decode(&blob(&w)).unwrap() else {
+                panic!("{code}")
+            };
+            assert_eq!(c.pos, vec![[1.0, 2.0], [3.0, 4.0]], "{code}");
+        }
+        let mut multi = vec![1];
+        multi.extend_from_slice(&5u32.to_le_bytes());
+        multi.extend_from_slice(&2u32.to_le_bytes());
+        multi.extend(linestring(true, 2, &pts, 2));
+        multi.extend(linestring(false, 2, &pts, 2));
+        let Decoded::Lines(c) = decode(&blob(&multi)).unwrap() else {
+            panic!()
+        };
+        assert_eq!(c.parts, vec![2, 4]);
+    }
+
+    #[test]
+    fn other_types_truncation_and_huge_counts() {
+        let mut point = vec![1];
+        point.extend_from_slice(&1u32.to_le_bytes());
+        point.extend_from_slice(&[0; 16]);
+        assert_eq!(decode(&blob(&point)).unwrap(), Decoded::Other("Point"));
+        let w = linestring(true, 2, &[[1.0, 2.0, 0.0], [3.0, 4.0, 0.0]], 2);
+        assert!(decode(&blob(&w[..w.len() - 3])).is_err());
+        let mut huge = vec![1];
+        huge.extend_from_slice(&2u32.to_le_bytes());
+        huge.extend_from_slice(&u32::MAX.to_le_bytes());
+        assert!(decode(&blob(&huge)).unwrap_err().contains("declares"));
+        assert!(decode(b"XX\x00\x01\x00\x00\x00\x00").is_err());
+        assert_eq!(
+            decode(b"GP\x00\x11\x00\x00\x00\x00").unwrap(),
+            Decoded::Empty
+        );
+    }
+}

@@ -1,0 +1,212 @@
+//! The bad-input catalogue, part for the formats read beside GeoJSON and Shapefiles
+//! (docs/bad-inputs.md lists every case): OpenStreetMap `.osm.pbf` extracts.
+
+mod common;
+use common::bad::*;
+use common::*;
+use std::path::Path;
+
+/// The invented extract (scripts/make-osm-fixture.py) copied into the case folder.
+fn invented(d: &Path, name: &str) -> std::path::PathBuf {
+    let bytes = std::fs::read(data("osm/invented.osm.pbf")).unwrap();
+    file(d, name, bytes)
+}
+
+case!(truncated_pbf_block, |d| {
+    // The real extract cut in the middle of a block: refused by name, never read as a smaller map.
+    let bytes =
+        std::fs::read(data("roads/liechtenstein/liechtenstein-2015-10-06.osm.pbf")).unwrap();
+    let p = file(d, "cut.osm.pbf", &bytes[..bytes.len() / 2]);
+    plan_fails(
+        &p,
+        &[],
+        &["cut.osm.pbf", "not a readable OpenStreetMap PBF extract"],
+    );
+});
+
+case!(pbf_that_is_text, |d| {
+    let p = file(d, "roads.osm.pbf", fc(&[OK_LINE]));
+    plan_fails(
+        &p,
+        &[],
+        &["roads.osm.pbf", "not a readable OpenStreetMap PBF extract"],
+    );
+});
+
+case!(empty_pbf, |d| {
+    let p = file(d, "empty.osm.pbf", b"");
+    plan_fails(&p, &[], &["empty.osm.pbf", "no road lines found"]);
+});
+
+case!(pbf_with_a_projected_crs, |d| {
+    let p = invented(d, "x.osm.pbf");
+    plan_fails(
+        &p,
+        &["--crs", "EPSG:2056"],
+        &["x.osm.pbf", "always WGS84", "EPSG:2056"],
+    );
+});
+
+case!(pbf_with_no_site_tag, |d| {
+    let p = invented(d, "x.osm.pbf");
+    plan_fails(
+        &p,
+        &["--sites", &s(&p), "--site-tags", "amenity=library"],
+        &[
+            "x.osm.pbf",
+            "no node or closed way carries a site tag",
+            "amenity=library",
+        ],
+    );
+});
+
+case!(site_tags_without_an_extract, |d| {
+    let roads = roads_ok(d);
+    let sites = file(d, "sites.geojson", fc(&[&site_feature("a", 0.0, 0.0)]));
+    plan_fails(
+        &roads,
+        &["--sites", &s(&sites), "--site-tags", "amenity=hospital"],
+        &["--site-tags", "OpenStreetMap extract"],
+    );
+});
+
+case!(site_tags_without_a_value, |d| {
+    let p = invented(d, "x.osm.pbf");
+    plan_fails(
+        &p,
+        &["--sites", &s(&p), "--site-tags", "amenity"],
+        &["--site-tags", "not FIELD=value1,value2"],
+    );
+});
+
+// ---- GeoPackage ----
+
+/// A GeoPackage written here with SQLite: the two required tables, and `sql` after them.
+fn gpkg(d: &Path, name: &str, sql: &str) -> std::path::PathBuf {
+    let p = d.join(name);
+    let c = rusqlite::Connection::open(&p).unwrap();
+    c.execute_batch(
+        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
+         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
+         INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
+         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);",
+    )
+    .unwrap();
+    c.execute_batch(sql).unwrap();
+    p
+}
+
+/// A GeoPackage geometry blob (little-endian header, no envelope, srs 4326) around `wkb`.
+fn blob(wkb: &[u8]) -> String {
+    let mut b = b"GP\x00\x01".to_vec();
+    b.extend_from_slice(&4326i32.to_le_bytes());
+    b.extend_from_slice(wkb);
+    b.iter().map(|x| format!("{x:02X}")).collect()
+}
+
+const GEOMETRY_COLUMNS: &str = "CREATE TABLE gpkg_geometry_columns (table_name TEXT, \
+    column_name TEXT, geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);";
+
+case!(gpkg_without_geometry_column, |d| {
+    // An attributes-only GeoPackage: no gpkg_geometry_columns table at all.
+    let p = gpkg(
+        d,
+        "table.gpkg",
+        "CREATE TABLE roads (fid INTEGER PRIMARY KEY, name TEXT);",
+    );
+    plan_fails(
+        &p,
+        &[],
+        &["table.gpkg", "not a GeoPackage with a geometry column"],
+    );
+});
+
+case!(gpkg_with_no_layer, |d| {
+    let p = gpkg(d, "none.gpkg", GEOMETRY_COLUMNS);
+    plan_fails(
+        &p,
+        &[],
+        &["none.gpkg", "holds no layer with a geometry column"],
+    );
+});
+
+case!(gpkg_layer_not_there, |d| {
+    let bytes = std::fs::read(data("gpkg/streets.gpkg")).unwrap();
+    let p = file(d, "county.gpkg", bytes);
+    plan_fails(
+        &p,
+        &["--roads-layer", "bridges"],
+        &["county.gpkg", "no layer \"bridges\"", "schools, streets"],
+    );
+});
+
+case!(gpkg_layer_of_points, |d| {
+    let bytes = std::fs::read(data("gpkg/streets.gpkg")).unwrap();
+    let p = file(d, "county.gpkg", bytes);
+    plan_fails(
+        &p,
+        &["--roads-layer", "schools"],
+        &["county.gpkg", "no road lines found", "not a line (Point)"],
+    );
+});
+
+case!(gpkg_that_is_text, |d| {
+    let p = file(d, "roads.gpkg", fc(&[OK_LINE]));
+    plan_fails(&p, &[], &["roads.gpkg", "GeoPackage"]);
+});
+
+case!(gpkg_truncated_geometry, |d| {
+    // A LineString blob that declares two points and holds one and a half.
+    let mut wkb = vec![1u8];
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    wkb.extend_from_slice(&[0u8; 24]);
+    let sql = format!(
+        "{GEOMETRY_COLUMNS}
+         INSERT INTO gpkg_geometry_columns VALUES ('roads', 'geom', 'LINESTRING', 4326, 0, 0);
+         CREATE TABLE roads (fid INTEGER PRIMARY KEY, geom BLOB);
+         INSERT INTO roads VALUES (1, X'{}');",
+        blob(&wkb)
+    );
+    let p = gpkg(d, "cut.gpkg", &sql);
+    plan_fails(
+        &p,
+        &[],
+        &[
+            "cut.gpkg",
+            "feature 0",
+            "field \"geom\"",
+            "declares 2 points",
+        ],
+    );
+});
+
+case!(gpkg_text_not_utf8, |d| {
+    let mut wkb = vec![1u8];
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    for v in [0.0f64, 0.0, 0.001, 0.0] {
+        wkb.extend_from_slice(&v.to_le_bytes());
+    }
+    let sql = format!(
+        "{GEOMETRY_COLUMNS}
+         INSERT INTO gpkg_geometry_columns VALUES ('roads', 'geom', 'LINESTRING', 4326, 0, 0);
+         CREATE TABLE roads (fid INTEGER PRIMARY KEY, geom BLOB, name TEXT);
+         INSERT INTO roads VALUES (1, X'{}', CAST(X'FF41' AS TEXT));",
+        blob(&wkb)
+    );
+    let p = gpkg(d, "latin.gpkg", &sql);
+    plan_fails(
+        &p,
+        &[],
+        &["latin.gpkg", "feature 0", "field \"name\"", "not UTF-8"],
+    );
+});
+
+case!(roads_layer_without_a_geopackage, |d| {
+    plan_fails(
+        &roads_ok(d),
+        &["--roads-layer", "streets"],
+        &["--roads-layer", "GeoPackage"],
+    );
+});
