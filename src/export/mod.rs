@@ -5,8 +5,8 @@
 
 pub mod backup;
 pub mod band;
-pub mod corridors;
 pub mod clip;
+pub mod corridors;
 pub mod drawing;
 pub mod geojson;
 pub mod guard;

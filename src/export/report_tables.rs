@@ -77,7 +77,11 @@ pub fn write_repairs<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
         // Days and crew: "3" or "3–4" (a repair longer than the day's capacity), then the crew.
         let day = match (c.scheduled, s.first_day, s.last_day, s.crew) {
             (true, Some(a), Some(b), crew) => {
-                let days = if a == b { a.to_string() } else { format!("{a}–{b}") };
+                let days = if a == b {
+                    a.to_string()
+                } else {
+                    format!("{a}–{b}")
+                };
                 match crew {
                     Some(k) => format!("{days} (crew {k})"),
                     None => days,

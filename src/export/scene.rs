@@ -36,7 +36,11 @@ impl Scene<'_> {
     /// scheduled by day.
     pub fn days(&self) -> u32 {
         if self.scheduled {
-            self.steps.iter().filter_map(|s| s.last_day).max().unwrap_or(1)
+            self.steps
+                .iter()
+                .filter_map(|s| s.last_day)
+                .max()
+                .unwrap_or(1)
         } else {
             1
         }
