@@ -411,7 +411,7 @@ fn the_report_holds_the_tables_a_coordinator_works_from() {
         "Length (m)",
         "Cost (repair-metres)",
         "Structure",
-        "Day",
+        "Days (crew)",
         "Sites joined to the hub by it",
     ] {
         assert!(

@@ -156,7 +156,9 @@ fn every_property_name_has_one_type_in_every_layer() {
         ("protects_sites", "string"),
         ("sites_cut_off", "string"),
         ("sites_cut_off_count", "number"),
-        ("day", "number"),
+        ("crew", "number"),
+        ("first_day", "number"),
+        ("last_day", "number"),
         ("status", "string"),
         ("status_label", "string"),
         ("kind", "string"),
@@ -263,18 +265,18 @@ fn without_a_crew_capacity_there_are_no_days() {
             .unwrap()
             .iter()
             .filter(|f| f["properties"]["repair"] == true)
-            .map(|f| f["properties"]["day"].clone())
+            .map(|f| f["properties"]["last_day"].clone())
             .collect()
     };
     let csv_days = |out: &Path| -> Vec<String> {
         let mut r = csv::Reader::from_path(out.join("work-orders.csv")).unwrap();
         let h = r.headers().unwrap().clone();
-        assert_eq!(&h[1], "day");
+        assert_eq!((&h[1], &h[2], &h[3]), ("crew", "first_day", "last_day"));
         let purpose = h.iter().position(|c| c == "purpose").unwrap();
         r.records()
             .map(|x| x.unwrap())
             .filter(|x| &x[purpose] == "plan")
-            .map(|x| x[1].to_string())
+            .map(|x| x[3].to_string())
             .collect()
     };
     let plain_days = days_in(&plain);
@@ -290,8 +292,13 @@ fn without_a_crew_capacity_there_are_no_days() {
     let sheet: Vec<u64> = csv_days(&full).iter().map(|x| x.parse().unwrap()).collect();
     let summary = read_json(&full.join("summary.json"));
     let listed = summary["days"].as_array().unwrap();
-    let repairs: u64 = listed.iter().map(|x| x["repairs"].as_u64().unwrap()).sum();
-    assert_eq!(repairs as usize, sheet.len());
+    // Every repair is finished by exactly one crew on exactly one day.
+    let finished: usize = listed
+        .iter()
+        .flat_map(|x| x["crews"].as_array().unwrap())
+        .map(|c| c["finishes"].as_array().unwrap().len())
+        .sum();
+    assert_eq!(finished, sheet.len());
     assert_eq!(listed.last().unwrap()["day"], *sheet.iter().max().unwrap());
     assert!(listed.iter().all(|x| x["sites_joined"].is_array()));
 }

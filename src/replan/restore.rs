@@ -152,6 +152,21 @@ pub const SETTINGS: &[(&str, Set)] = &[
         o.time_limit_s = num(v)?;
         Ok(())
     }),
+    ("crews", |o, v| {
+        o.crews = match v {
+            serde_json::Value::Null => None,
+            _ => Some(
+                v.as_u64()
+                    .and_then(|n| u32::try_from(n).ok())
+                    .ok_or_else(|| format!("{v} is not a whole number of crews"))?,
+            ),
+        };
+        Ok(())
+    }),
+    ("max_detour", |o, v| {
+        o.max_detour = num(v)?;
+        Ok(())
+    }),
     ("crew_capacity", |o, v| {
         o.crew_capacity = num(v)?;
         Ok(())
