@@ -507,8 +507,21 @@ fn the_report_shows_the_budget_and_the_damage_reports() {
         "{}",
         &damage[..300]
     );
+    let matched = &damage[damage
+        .find("id=\"reports-matched\"")
+        .expect("no table of matched reports")..];
+    let matched = &matched[..matched.find("</table>").unwrap()];
+    // The report lies on a vertex of a road: it is listed with that road at distance 0.
     assert!(
-        damage.contains("<tr><td class=\"n\">1</td>"),
+        matched.contains("<tr><td class=\"n\">0</td><td>")
+            && matched.contains("<td class=\"n\">0.0</td><td>2.00</td>"),
+        "{matched}"
+    );
+    let unmatched = &damage[damage
+        .find("id=\"reports-unmatched\"")
+        .expect("no table of unmatched reports")..];
+    assert!(
+        unmatched.contains("<tr><td class=\"n\">1</td>"),
         "the far report is listed"
     );
 }

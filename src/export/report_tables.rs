@@ -165,7 +165,8 @@ pub fn write_sites<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     writeln!(w, "</tbody></table>")
 }
 
-/// The damage reports: how many matched a road, and each one that did not, with its distance.
+/// The damage reports: each one matched to a road (which road, how far, what damage), and each one
+/// that found no road near enough, with its distance.
 pub fn write_damage_reports<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
     let Some(f) = &c.summary.damage_reports else {
         return Ok(());
@@ -177,10 +178,40 @@ pub fn write_damage_reports<W: Write>(w: &mut W, c: &Context) -> io::Result<()> 
         f.applied,
         f.unmatched.len()
     )?;
+    if !f.matched.is_empty() {
+        writeln!(
+            w,
+            "<h3>Matched to a road</h3><table id=\"reports-matched\"><thead><tr><th>Report (position in its file, from 0)</th><th>Road</th><th>Distance to it (m)</th><th>Damage reported</th></tr></thead><tbody>"
+        )?;
+        for (i, feature, d, damage) in f.matched.iter().take(MAX_ROWS) {
+            let meta = &c.net.features[*feature as usize];
+            let road = match (&meta.label, &meta.source_id) {
+                (Some(l), _) => esc(l),
+                (None, Some(id)) => esc(&id.to_string()),
+                (None, None) => format!("road #{}", meta.source_index),
+            };
+            writeln!(
+                w,
+                "<tr><td class=\"n\">{i}</td><td>{road}</td><td class=\"n\">{}</td><td>{}</td></tr>",
+                fixed(*d, 1),
+                damage
+                    .factor()
+                    .map_or("closed".to_string(), |x| fixed(x, 2))
+            )?;
+        }
+        writeln!(w, "</tbody></table>")?;
+        if f.matched.len() > MAX_ROWS {
+            writeln!(
+                w,
+                "<p>The first {MAX_ROWS} of {} are listed.</p>",
+                f.matched.len()
+            )?;
+        }
+    }
     if !f.unmatched.is_empty() {
         writeln!(
             w,
-            "<table><thead><tr><th>Report (position in its file, from 0)</th><th>Nearest road (m)</th></tr></thead><tbody>"
+            "<h3>No road near enough</h3><table id=\"reports-unmatched\"><thead><tr><th>Report (position in its file, from 0)</th><th>Nearest road (m)</th></tr></thead><tbody>"
         )?;
         for (i, d) in &f.unmatched {
             writeln!(

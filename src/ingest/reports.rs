@@ -32,6 +32,10 @@ pub struct ReportFigures {
     pub applied: usize,
     /// Reports with no road within the distance: (feature index, distance to the nearest road, m).
     pub unmatched: Vec<(usize, Option<f64>)>,
+    /// Reports matched to a road: (feature index, the road's source feature, distance to it in
+    /// metres, the damage reported), in input order (not written: the report lists them).
+    #[serde(skip)]
+    pub matched: Vec<(usize, u32, f64, Damage)>,
     /// Edges whose damage a report set, ascending (not written: a re-plan reads it).
     #[serde(skip)]
     pub touched: Vec<u32>,
@@ -156,8 +160,11 @@ pub fn apply_reports(net: &mut Network, reports: &[Report], max_m: f64) -> Repor
             }
         }
         match best {
-            Some((_, e)) => {
+            Some((d, e)) => {
                 fig.applied += 1;
+                let feature = net.edges[e as usize].feature;
+                fig.matched
+                    .push((r.index, feature, (d * 1000.0).round() / 1000.0, r.damage));
                 let w = worst.entry(e).or_insert(r.damage);
                 let rank = |d: Damage| d.factor().unwrap_or(f64::INFINITY);
                 if rank(r.damage) > rank(*w) {

@@ -114,6 +114,9 @@ pub(in crate::job) fn build(
             let mut unmatched = before.unmatched;
             unmatched.append(&mut fig.unmatched);
             fig.unmatched = unmatched;
+            let mut matched = before.matched;
+            matched.append(&mut fig.matched);
+            fig.matched = matched;
         }
         report_figures = Some(fig);
     }
