@@ -13,19 +13,7 @@ const GPKG: &str = "gpkg/streets.gpkg";
 const SHP: &str = "roads/geodanet-streets/streets.shp";
 
 fn plan(d: &Path, name: &str, roads: &Path, extra: &[&str]) -> PathBuf {
-    let out = d.join(name);
-    let mut args = vec![
-        "plan",
-        "--roads",
-        roads.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-        "-q",
-    ];
-    args.extend_from_slice(extra);
-    let o = run(&args);
-    assert!(o.status.success(), "{}", stderr(&o));
-    out
+    plan_quiet(d, name, roads, extra)
 }
 
 #[test]

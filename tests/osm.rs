@@ -15,19 +15,7 @@ const LI_GEOJSON: &str = "roads/liechtenstein/liechtenstein_highways.geojson";
 const INVENTED: &str = "osm/invented.osm.pbf";
 
 fn plan(d: &Path, name: &str, roads: &Path, extra: &[&str]) -> PathBuf {
-    let out = d.join(name);
-    let mut args = vec![
-        "plan",
-        "--roads",
-        roads.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-        "-q",
-    ];
-    args.extend_from_slice(extra);
-    let o = run(&args);
-    assert!(o.status.success(), "{}", stderr(&o));
-    out
+    plan_quiet(d, name, roads, extra)
 }
 
 /// pyosmium's reading of `pbf`, leaving out the `highway` values listed.

@@ -16,19 +16,7 @@ const LI_PBF: &str = "roads/liechtenstein/liechtenstein-2015-10-06.osm.pbf";
 /// Plans the Liechtenstein layer into a temporary folder with extra flags.
 fn plan_liechtenstein(d: &Path, name: &str, extra: &[&str]) -> PathBuf {
     let roads = data(LI_GEOJSON);
-    let out = d.join(name);
-    let mut args = vec![
-        "plan",
-        "--roads",
-        roads.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-        "-q",
-    ];
-    args.extend_from_slice(extra);
-    let o = run(&args);
-    assert!(o.status.success(), "{}", stderr(&o));
-    out
+    plan_quiet(d, name, &roads, extra)
 }
 
 fn python_json(py: &Path, script_name: &str, arg: &Path) -> serde_json::Value {

@@ -110,6 +110,8 @@ pub struct Outputs<'a> {
     pub steps: &'a [crate::solve::order::Step],
     /// Site ids by site index (empty without sites).
     pub site_ids: &'a [String],
+    /// The work-order keys of the network's pieces.
+    pub keys: &'a work_order_id::WorkOrderIds,
     /// Single points of failure (plans with sites).
     pub single_failures: Option<&'a single_failures::SingleFailureLayer>,
     /// Backup links (with --redundancy).
@@ -160,7 +162,7 @@ pub fn output_names(
 pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
-    let ids = work_order_id::WorkOrderIds::new(o.net);
+    let ids = o.keys;
     st.write("qa.geojson", |w| write_qa(w, o.qa, attribution))?;
     st.write("work-orders.csv", |w| {
         work_orders::write_work_orders(
@@ -170,7 +172,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             o.backup.map_or(&[][..], |b| &b.rows[..]),
             o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
             o.site_ids,
-            &ids,
+            ids,
         )
     })?;
     let order_of: std::collections::HashMap<u32, &crate::solve::order::Step> =
@@ -213,7 +215,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         rayon::join(
             || {
                 st.write("network.geojson", |w| {
-                    write_edges(w, o.net, o.comps, None, None, &ids, attribution)
+                    write_edges(w, o.net, o.comps, None, None, ids, attribution)
                 })
             },
             || {
@@ -224,7 +226,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                         o.comps,
                         Some(&o.plan.edges),
                         Some(&order_of),
-                        &ids,
+                        ids,
                         attribution,
                     )
                 })
@@ -245,7 +247,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                 summary: o.summary,
                 net: o.net,
                 steps: o.steps,
-                keys: &ids,
+                keys: ids,
                 sites: o.sites.unwrap_or_default(),
                 site_ids: o.site_ids,
                 single_failures: o.single_failures,
@@ -257,12 +259,12 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     })?;
     if let Some(f) = o.single_failures {
         st.write("single-failures.geojson", |w| {
-            single_failures::write_single_failures(w, o.net, f, &ids, attribution)
+            single_failures::write_single_failures(w, o.net, f, ids, attribution)
         })?;
     }
     if let Some(b) = o.backup {
         st.write("backup.geojson", |w| {
-            backup::write_backup(w, o.net, b, &ids, attribution)
+            backup::write_backup(w, o.net, b, ids, attribution)
         })?;
     }
     if let Some(c) = o.corridors {
@@ -271,7 +273,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         })?;
     }
     if let Some(c) = o.changes {
-        st.write("changes.geojson", |w| c.write(w, o.net, &ids, attribution))?;
+        st.write("changes.geojson", |w| c.write(w, o.net, ids, attribution))?;
     }
     if let Some(rows) = o.sites {
         st.write("sites.geojson", |w| {

@@ -42,6 +42,7 @@ pub struct StructureFigures {
 /// Collects the structures the plan (and any backup links) use.
 pub fn figures(
     net: &Network,
+    ids: &WorkOrderIds,
     plan_edges: &[u32],
     backup_edges: &[u32],
     field: Option<&str>,
@@ -66,13 +67,11 @@ pub fn figures(
         .filter(|&e| on(e).is_some())
         .collect();
     backup.sort_unstable();
-    // Keys are computed only when something is listed.
-    let ids = (!plan.is_empty() || !backup.is_empty()).then(|| WorkOrderIds::new(net));
     let row = |e: u32, purpose| {
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
         OnStructure {
-            work_order: ids.as_ref().map(|i| i.key(net, e)).unwrap_or_default(),
+            work_order: ids.key(net, e),
             edge: e,
             structure: on(e).unwrap_or_default().to_string(),
             road: meta.label.as_deref().map(str::to_string),

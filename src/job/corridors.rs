@@ -15,6 +15,7 @@ const MAX_LABELS: usize = 2_000_000;
 /// Builds the corridors; None when there is no hub on the roads.
 pub(super) fn corridors(
     net: &Network,
+    ids: &WorkOrderIds,
     graph: &EdgeList,
     done: &[u32],
     sr: &SitesResult,
@@ -31,7 +32,6 @@ pub(super) fn corridors(
     let now = shortest(graph, &open, &length, hub);
     // The undamaged network: every road whole, closed ones too.
     let whole = shortest(graph, &vec![true; graph.len()], &length, hub);
-    let ids = WorkOrderIds::new(net);
     let mut rows = Vec::new();
     let mut flagged = Vec::new();
     let mut detour: Vec<u32> = Vec::new();

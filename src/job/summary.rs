@@ -191,12 +191,12 @@ fn sites_figures(r: &SitesResult, net: &Network, comps: &Components, plan: &Plan
 /// the hub that day; None without days.
 pub fn days(
     net: &Network,
+    ids: &crate::export::work_order_id::WorkOrderIds,
     steps: &[crate::solve::order::Step],
     sites: Option<&SitesResult>,
     capacity: Option<f64>,
 ) -> Option<Vec<DayFigures>> {
     let cap = (capacity? * 1000.0).round() as u64;
-    let ids = crate::export::work_order_id::WorkOrderIds::new(net);
     let last = steps.iter().filter_map(|s| s.last_day).max().unwrap_or(0);
     let total_sites = sites.map_or(0, |s| s.layer.sites.len());
     // Sites joined before any repair: the hub, and sites it reaches over intact roads.

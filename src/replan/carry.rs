@@ -49,8 +49,12 @@ pub fn spans_of(net: &Network, edges: &[u32]) -> Vec<(u32, f64, f64)> {
 
 /// Matches the keys to `net`'s edges and marks the finished repairs intact, except on pieces a
 /// damage point given anew lies on (`touched`: spans from [`spans_of`]).
-pub fn carry(net: &mut Network, work: &FieldWork, touched: &[(u32, f64, f64)]) -> Carried {
-    let ids = WorkOrderIds::new(net);
+pub fn carry(
+    net: &mut Network,
+    ids: &WorkOrderIds,
+    work: &FieldWork,
+    touched: &[(u32, f64, f64)],
+) -> Carried {
     let by_key: FxHashMap<String, u32> = (0..net.edges.len() as u32)
         .map(|e| (ids.key(net, e), e))
         .collect();

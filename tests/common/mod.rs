@@ -141,7 +141,17 @@ pub fn point(p: [f64; 2], props: &str) -> String {
     )
 }
 
-/// Runs `plan --roads ROADS --out OUT -q EXTRA…` and returns the output (success not checked).
+/// Runs `reknit plan -q` on `roads` into `dir/name`, asserts it succeeded and returns the folder.
+pub fn plan_quiet(dir: &Path, name: &str, roads: &Path, extra: &[&str]) -> std::path::PathBuf {
+    let out = dir.join(name);
+    let mut args = vec!["-q"];
+    args.extend_from_slice(extra);
+    let o = plan_cli(roads, &out, &args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    out
+}
+
+/// Runs `plan --roads ROADS --out OUT EXTRA…` and returns the output (success not checked).
 pub fn plan_cli(roads: &Path, out: &Path, extra: &[&str]) -> Output {
     let mut args = vec![
         "plan",

@@ -5,7 +5,6 @@ use super::ingest::ReadRecord;
 use super::plan::Planned;
 use crate::export::guard::CheckedOut;
 use crate::export::summary::round3;
-use crate::export::work_order_id::WorkOrderIds;
 use crate::export::{self, Summary};
 use crate::ingest::source::Source;
 use crate::job::notes::Notes;
@@ -48,7 +47,7 @@ pub(in crate::job) fn write(
         &p.plan,
         sites,
     );
-    summary.days = summary::days(net, &p.steps, sites, job.crew_capacity);
+    summary.days = summary::days(net, &p.built.keys, &p.steps, sites, job.crew_capacity);
     summary.corridors = p.corridors.as_ref().map(|c| c.figures.clone());
     summary.single_failures = p.single_failures.as_ref().map(|f| f.figures.clone());
     summary.backup = p.backup.as_ref().map(|b| b.figures.clone());
@@ -60,6 +59,7 @@ pub(in crate::job) fn write(
         crate::ingest::attribution::attribution(job.road_settings.attribution.as_deref(), read.osm);
     summary.structures = Some(export::structures::figures(
         net,
+        &p.built.keys,
         &p.plan.edges,
         &p.backup
             .as_ref()
@@ -92,6 +92,7 @@ pub(in crate::job) fn write(
             job.force,
             &export::Outputs {
                 net,
+                keys: &p.built.keys,
                 comps: &p.comps,
                 plan: &p.plan,
                 sites: rows.as_deref(),
@@ -141,7 +142,7 @@ fn replan_round<'a>(
     });
     let found = changes::find(&p.built.net, &p.plan.edges, c, sites, &w.old_sites);
     let net = &p.built.net;
-    let ids = WorkOrderIds::new(net);
+    let ids = &p.built.keys;
     let keys = |edges: &[u32]| edges.iter().map(|&e| ids.key(net, e)).collect::<Vec<_>>();
     let mut missing = c.missing.clone();
     missing.retain(|k| !w.rows_matching_nothing.iter().any(|r| &r.work_order == k));

@@ -1,6 +1,7 @@
 //! Stage 2, network: the roads noded into a network, damage zones and reports applied, and the
 //! sites attached to their nearest usable roads.
 
+use crate::export::work_order_id::WorkOrderIds;
 use crate::ingest::attach::{Attachment, attach_sites};
 use crate::ingest::noding::NodingStats;
 use crate::ingest::reports::{ReportFigures, apply_reports, read_reports};
@@ -33,6 +34,8 @@ pub(in crate::job) struct Built {
     pub inputs: Vec<InputRecord>,
     /// The previous plan and the finished work matched to this network (a re-plan only).
     pub carried: Option<crate::replan::carry::Carried>,
+    /// The work-order keys of this network's pieces, made once for every output that names them.
+    pub keys: WorkOrderIds,
 }
 
 /// Nodes the roads, applies zones and reports, and attaches the sites.
@@ -135,14 +138,17 @@ pub(in crate::job) fn build(
         }
         None => Vec::new(),
     };
-    // Work-order keys hold only once the sites have split their roads: the finished work and the
-    // previous plan are matched to this network here.
+    // Work-order keys hold only once the sites have split their roads: they are made once here
+    // (damage never changes them), and the finished work and the previous plan are matched to
+    // this network by them.
+    let keys = WorkOrderIds::new(&net);
     let carried = job
         .field_work
         .as_ref()
-        .map(|w| crate::replan::carry::carry(&mut net, w, &touched));
+        .map(|w| crate::replan::carry::carry(&mut net, &keys, w, &touched));
     Ok(Built {
         carried,
+        keys,
         net,
         noding,
         zone_figures,

@@ -169,7 +169,7 @@ pub(in crate::job) fn plan(
         let _s = progress.stage("finding corridors");
         let mut done = plan.edges.clone();
         done.extend(backup.iter().flat_map(|b| b.rows.iter().map(|r| r.edge)));
-        crate::job::corridors::corridors(&built.net, &graph, &done, sr, job.max_detour)
+        crate::job::corridors::corridors(&built.net, &built.keys, &graph, &done, sr, job.max_detour)
     });
     Ok(Planned {
         built,
