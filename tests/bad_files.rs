@@ -64,7 +64,7 @@ fn inputs(d: &Path) -> Vec<(&'static str, Vec<String>)> {
     file(
         d,
         "pipe-roads.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"mr.geojson\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"mr.geojson\"\n",
     );
     v.push((
         "mr.geojson",
@@ -142,7 +142,7 @@ case!(formula_names_are_neutralised_in_the_batch_summary, |d| {
     use common::batch::{batch, manifest};
     let names = [
         "=HYPERLINK(\"http://example.invalid\",\"open\")",
-        "+Moor",
+        "+Westvane",
         "@Fen",
     ];
     // West of Greenwich, so every longitude written is negative; damaged so the plan costs.

@@ -33,7 +33,7 @@ fn plan_args(d: &Path, flag: &str, path: &Path) -> Vec<String> {
 /// A batch manifest's text with one district on a valid road layer (written into `d`).
 fn manifest_text(d: &Path) -> String {
     roads_ok(d);
-    "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n".to_string()
+    "[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n".to_string()
 }
 
 /// Arguments that read the file at the path given.
@@ -189,7 +189,7 @@ case!(semicolon_separated_csv, |d| {
         &["--sites", &s(&sites)],
         &["sites.csv", "comma-separated", "';'"],
     );
-    let m = file(d, "m.csv", "name;roads\nVale;roads.geojson\n");
+    let m = file(d, "m.csv", "name;roads\nEastvane;roads.geojson\n");
     let out = d.join("out");
     fails_with(
         d,
@@ -461,7 +461,7 @@ fn two_shards(d: &Path, out: &Path) {
     let m = manifest(
         d,
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Moor\"\nroads = \"roads-b.geojson\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Westvane\"\nroads = \"roads-b.geojson\"\n",
     );
     for k in ["1/2", "2/2"] {
         let o = batch(&m, out, &["--shard", k]);

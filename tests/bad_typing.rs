@@ -251,7 +251,7 @@ fn batch_summary(d: &Path, manifest: &Path) -> serde_json::Value {
         .output()
         .unwrap();
     assert!(o.status.success(), "{}: {}", manifest.display(), stderr(&o));
-    let sum = read_json(&out.join("Vale").join("summary.json"));
+    let sum = read_json(&out.join("Eastvane").join("summary.json"));
     std::fs::remove_dir_all(&out).unwrap();
     meaning(&sum)
 }
@@ -331,7 +331,7 @@ fn manifest_values_mean_what_the_same_flags_mean_in_every_format() {
                     d,
                     "m.toml",
                     format!(
-                        "[defaults]\nclosed_value = {closed}\n{filters}\n[[district]]\nname = \"Vale\"\n{common}"
+                        "[defaults]\nclosed_value = {closed}\n{filters}\n[[district]]\nname = \"Eastvane\"\n{common}"
                     ),
                 );
                 assert_eq!(
@@ -346,7 +346,7 @@ fn manifest_values_mean_what_the_same_flags_mean_in_every_format() {
             "m.csv",
             format!(
                 "name,roads,whole_network,damage_field,cost_table,closed_value,keep_where,drop_where\n\
-                 Vale,{roads_name},true,rid,c.toml,99,\"fc=1,3\",ok=false\n"
+                 Eastvane,{roads_name},true,rid,c.toml,99,\"fc=1,3\",ok=false\n"
             ),
         );
         assert_eq!(batch_summary(d, &m), cli, "{f:?}: CSV manifest");

@@ -348,7 +348,7 @@ fn csv_manifest_works_like_toml() {
         &manifest,
         // No sites: `effort` would be refused here as `--effort` is (it would be ignored).
         format!(
-            "name,roads,snap,default_damage\nVale,{},1,0.8\n",
+            "name,roads,snap,default_damage\nEastvane,{},1,0.8\n",
             roads.display()
         ),
     )
@@ -361,7 +361,7 @@ fn csv_manifest_works_like_toml() {
         "-q",
     ]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    let s = read_json(&out.join("Vale/summary.json"));
+    let s = read_json(&out.join("Eastvane/summary.json"));
     assert_eq!(s["settings"]["snap_m"], 1.0);
     assert_eq!(s["settings"]["default_damage"], 0.8);
 }

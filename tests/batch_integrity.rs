@@ -15,7 +15,7 @@ fn batch_args(manifest: &Path, out: &Path, extra: &[&str]) -> Vec<String> {
     a
 }
 
-/// A manifest `m.toml` in `d` with one district "Vale" on a road grid, plus `extra` lines in it
+/// A manifest `m.toml` in `d` with one district "Eastvane" on a road grid, plus `extra` lines in it
 /// and `defaults` lines in [defaults].
 fn vale(d: &Path, defaults: &str, extra: &str) -> std::path::PathBuf {
     grid_roads(d, "roads.geojson");
@@ -23,7 +23,7 @@ fn vale(d: &Path, defaults: &str, extra: &str) -> std::path::PathBuf {
         d,
         "m.toml",
         &format!(
-            "[defaults]\n{defaults}\n[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n{extra}\n"
+            "[defaults]\n{defaults}\n[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n{extra}\n"
         ),
     )
 }
@@ -48,7 +48,7 @@ case!(manifest_unknown_key_in_a_district, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "district 1 (\"Vale\")", "unknown key \"colour\""],
+        &["m.toml", "district 1 (\"Eastvane\")", "unknown key \"colour\""],
     );
 });
 
@@ -70,7 +70,7 @@ case!(manifest_setting_of_the_wrong_kind, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "\"Vale\"", "\"snap\"", "a number"],
+        &["m.toml", "\"Eastvane\"", "\"snap\"", "a number"],
     );
 });
 
@@ -81,7 +81,7 @@ case!(manifest_setting_out_of_range_in_defaults, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "\"Vale\"", "\"budget\" (from [defaults])", "-5"],
+        &["m.toml", "\"Eastvane\"", "\"budget\" (from [defaults])", "-5"],
     );
 });
 
@@ -93,7 +93,7 @@ case!(manifest_cost_table_unreadable, |d| {
         &out,
         &batch_args(&m, &out, &[]),
         &[
-            "\"Vale\"",
+            "\"Eastvane\"",
             "\"cost_table\"",
             "[defaults]",
             "costs.toml",
@@ -104,7 +104,7 @@ case!(manifest_cost_table_unreadable, |d| {
 
 case!(csv_manifest_unknown_column, |d| {
     grid_roads(d, "roads.geojson");
-    let m = manifest(d, "m.csv", "name,roads,colour\nVale,roads.geojson,red\n");
+    let m = manifest(d, "m.csv", "name,roads,colour\nEastvane,roads.geojson,red\n");
     let out = d.join("out");
     fails_with(
         d,
@@ -116,7 +116,7 @@ case!(csv_manifest_unknown_column, |d| {
 
 case!(csv_manifest_column_twice, |d| {
     grid_roads(d, "roads.geojson");
-    let m = manifest(d, "m.csv", "name,roads,snap,snap\nVale,roads.geojson,1,2\n");
+    let m = manifest(d, "m.csv", "name,roads,snap,snap\nEastvane,roads.geojson,1,2\n");
     let out = d.join("out");
     fails_with(
         d,
@@ -129,16 +129,16 @@ case!(csv_manifest_column_twice, |d| {
 // ---- Output folders and inputs ----
 
 case!(output_folder_holds_another_districts_input, |d| {
-    // District "Vale" writes into out/Vale, where district "Moor" reads its sites from.
+    // District "Eastvane" writes into out/Eastvane, where district "Westvane" reads its sites from.
     grid_roads(d, "roads.geojson");
     let out = d.join("out");
-    std::fs::create_dir_all(out.join("Vale")).unwrap();
-    let sites = corner_sites(&out.join("Vale"), "sites.geojson");
+    std::fs::create_dir_all(out.join("Eastvane")).unwrap();
+    let sites = corner_sites(&out.join("Eastvane"), "sites.geojson");
     let before = std::fs::read(&sites).unwrap();
     let m = manifest(
         d,
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Moor\"\nroads = \"roads.geojson\"\nsites = \"out/Vale/sites.geojson\"\nhub = \"A\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Westvane\"\nroads = \"roads.geojson\"\nsites = \"out/Eastvane/sites.geojson\"\nhub = \"A\"\n",
     );
     fails_with(
         d,
@@ -146,36 +146,36 @@ case!(output_folder_holds_another_districts_input, |d| {
         &batch_args(&m, &out, &["--resume"]),
         &[
             "m.toml",
-            "district \"Vale\"",
+            "district \"Eastvane\"",
             "sites.geojson",
-            "\"sites\" of district \"Moor\"",
+            "\"sites\" of district \"Westvane\"",
         ],
     );
-    assert_eq!(listing(&out.join("Vale")), ["sites.geojson"]);
+    assert_eq!(listing(&out.join("Eastvane")), ["sites.geojson"]);
     assert_eq!(std::fs::read(&sites).unwrap(), before);
 });
 
 case!(output_folder_reaches_an_input_through_a_link, |d| {
-    // out/Vale is a link to the folder holding the roads' Shapefile sidecars.
+    // out/Eastvane is a link to the folder holding the roads' Shapefile sidecars.
     let data = d.join("data");
     std::fs::create_dir(&data).unwrap();
     shapefile_roads(&data, "roads.shp", &two_roads());
     let out = d.join("out");
     std::fs::create_dir(&out).unwrap();
-    std::os::unix::fs::symlink(&data, out.join("Vale")).unwrap();
+    std::os::unix::fs::symlink(&data, out.join("Eastvane")).unwrap();
     let m = manifest(
         d,
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"data/roads.shp\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"data/roads.shp\"\n",
     );
     fails_with(
         d,
         &out,
         &batch_args(&m, &out, &[]),
         &[
-            "district \"Vale\"",
+            "district \"Eastvane\"",
             "roads",
-            "\"roads\" of district \"Vale\"",
+            "\"roads\" of district \"Eastvane\"",
         ],
     );
 });
@@ -184,15 +184,15 @@ case!(manifest_inside_a_district_output_folder, |d| {
     grid_roads(d, "roads.geojson");
     let out = d.join("out");
     let m = manifest(
-        &out.join("Vale"),
+        &out.join("Eastvane"),
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"../../roads.geojson\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"../../roads.geojson\"\n",
     );
     fails_with(
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["district \"Vale\"", "m.toml (the manifest)"],
+        &["district \"Eastvane\"", "m.toml (the manifest)"],
     );
 });
 
@@ -202,7 +202,7 @@ case!(csv_manifest_named_like_the_batch_summary, |d| {
     let m = manifest(
         &out,
         "batch-summary.csv",
-        "name,roads\nVale,../roads.geojson\n",
+        "name,roads\nEastvane,../roads.geojson\n",
     );
     fails_with(
         d,
@@ -262,7 +262,7 @@ fn two_shards(d: &Path, out: &Path) -> std::path::PathBuf {
     let m = manifest(
         d,
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Moor\"\nroads = \"roads-big.geojson\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Westvane\"\nroads = \"roads-big.geojson\"\n",
     );
     for k in ["1/2", "2/2"] {
         let o = batch(&m, out, &["--shard", k]);
@@ -287,7 +287,7 @@ case!(merge_of_shards_from_another_manifest, |d| {
     // Shard 2 run again from an edited manifest (another setting) into the same folder.
     let text = std::fs::read_to_string(&m)
         .unwrap()
-        .replace("name = \"Moor\"", "name = \"Moor\"\nsnap = 2");
+        .replace("name = \"Westvane\"", "name = \"Westvane\"\nsnap = 2");
     std::fs::write(&m, text).unwrap();
     let o = batch(&m, &out, &["--shard", "2/2", "--force"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
@@ -343,7 +343,7 @@ case!(merge_with_a_district_in_no_shard, |d| {
 case!(merge_beside_a_batch_summary_not_written_by_reknit, |d| {
     let out = d.join("out");
     two_shards(d, &out);
-    std::fs::write(out.join("batch-summary.csv"), "district,owner\nVale,me\n").unwrap();
+    std::fs::write(out.join("batch-summary.csv"), "district,owner\nEastvane,me\n").unwrap();
     merge_fails(
         d,
         &out,
@@ -356,7 +356,7 @@ case!(merge_of_a_shard_stopped_after_a_district_changed, |d| {
     // the summary's figures no longer match the district's outputs.
     let out = d.join("out");
     two_shards(d, &out);
-    let vale = out.join("Vale");
+    let vale = out.join("Eastvane");
     let o = run(&[
         "plan",
         "--roads",
@@ -369,7 +369,7 @@ case!(merge_of_a_shard_stopped_after_a_district_changed, |d| {
         "damage=0.5",
     ]);
     assert!(o.status.success(), "{}", stderr(&o));
-    merge_fails(d, &out, &["Vale", "no longer hold", "--resume"]);
+    merge_fails(d, &out, &["Eastvane", "no longer hold", "--resume"]);
 });
 
 case!(merge_of_a_shard_no_batch_writes, |d| {

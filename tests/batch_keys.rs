@@ -15,7 +15,7 @@ const NOT_PER_DISTRICT: &[&str] = &["out", "force", "quiet", "verbose", "help"];
 
 /// A value for every key (TOML), each different from the default.
 const EXAMPLES: &[(&str, &str)] = &[
-    ("name", "\"Vale\""),
+    ("name", "\"Eastvane\""),
     ("roads", "\"roads.geojson\""),
     ("sites", "\"sites.csv\""),
     ("snap", "1.5"),
@@ -137,7 +137,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
     );
     // Zones and reports in the base, so that the keys about them have something to apply to.
     let base = [
-        ("name", "\"Vale\""),
+        ("name", "\"Eastvane\""),
         ("roads", "\"base.geojson\""),
         ("sites", "\"base.csv\""),
         ("damage_zones", "\"base-zones.geojson\""),
@@ -345,11 +345,11 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
         let o = common::batch::batch(&m, &out, &[]);
         assert_eq!(o.status.code(), Some(0), "{label}: {}\n{text}", stderr(&o));
         let names = listing(&plan_out);
-        assert_eq!(listing(&out.join("Vale")), names, "{label}");
+        assert_eq!(listing(&out.join("Eastvane")), names, "{label}");
         for n in names {
             assert!(
                 std::fs::read(plan_out.join(&n)).unwrap()
-                    == std::fs::read(out.join("Vale").join(&n)).unwrap(),
+                    == std::fs::read(out.join("Eastvane").join(&n)).unwrap(),
                 "{label}: {n} differs from the plan's"
             );
         }

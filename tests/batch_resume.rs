@@ -36,13 +36,13 @@ fn resume_reruns_a_district_whose_layers_were_deleted() {
     let m = manifest(
         d.path(),
         "m.toml",
-        "[defaults]\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Vale\"\nsites = \"sites.geojson\"\n\n[[district]]\nname = \"Moor\"\n",
+        "[defaults]\nroads = \"roads.geojson\"\n\n[[district]]\nname = \"Eastvane\"\nsites = \"sites.geojson\"\n\n[[district]]\nname = \"Westvane\"\n",
     );
     let out = d.path().join("out");
     assert_eq!(batch(&m, &out, &[]).status.code(), Some(0));
-    let plan = std::fs::read(out.join("Vale/plan.geojson")).unwrap();
+    let plan = std::fs::read(out.join("Eastvane/plan.geojson")).unwrap();
     for gone in ["plan.geojson", "sites.geojson"] {
-        std::fs::remove_file(out.join("Vale").join(gone)).unwrap();
+        std::fs::remove_file(out.join("Eastvane").join(gone)).unwrap();
         let o = batch(&m, &out, &["--resume"]);
         assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
         assert_eq!(
@@ -50,9 +50,9 @@ fn resume_reruns_a_district_whose_layers_were_deleted() {
             ["ok", "unchanged"],
             "{gone} deleted"
         );
-        assert!(out.join("Vale").join(gone).exists(), "{gone} written again");
+        assert!(out.join("Eastvane").join(gone).exists(), "{gone} written again");
     }
-    assert_eq!(std::fs::read(out.join("Vale/plan.geojson")).unwrap(), plan);
+    assert_eq!(std::fs::read(out.join("Eastvane/plan.geojson")).unwrap(), plan);
     let o = batch(&m, &out, &["--resume"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     assert_eq!(statuses(&out, "batch-summary"), ["unchanged", "unchanged"]);
@@ -72,7 +72,7 @@ fn resume_fingerprints_every_file_of_a_shapefile() {
     let m = manifest(
         d.path(),
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"roads.shp\"\n\n[[district]]\nname = \"Moor\"\nroads = \"grid.geojson\"\nsites = \"sites.shp\"\ndamage_zones = \"zones.shp\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"roads.shp\"\n\n[[district]]\nname = \"Westvane\"\nroads = \"grid.geojson\"\nsites = \"sites.shp\"\ndamage_zones = \"zones.shp\"\n",
     );
     let out = d.path().join("out");
     assert_eq!(batch(&m, &out, &[]).status.code(), Some(0));
@@ -91,9 +91,9 @@ fn resume_fingerprints_every_file_of_a_shapefile() {
         "unchanged",
         "Shapefile sites and zones"
     );
-    let moor = read_json(&out.join("Moor/summary.json"));
-    assert_eq!(moor["counts"]["damage_zones"], 1);
-    assert_eq!(moor["sites"]["joined_to_hub"], 2);
+    let westvane = read_json(&out.join("Westvane/summary.json"));
+    assert_eq!(westvane["counts"]["damage_zones"], 1);
+    assert_eq!(westvane["sites"]["joined_to_hub"], 2);
     let edits: [Edit; 4] = [
         ("prj", |p| {
             let t = std::fs::read_to_string(p).unwrap();
@@ -137,11 +137,11 @@ fn resume_fingerprints_zones_reports_and_the_cost_table() {
     let m = manifest(
         d.path(),
         "m.toml",
-        "[defaults]\ndamage_zones = \"zones.geojson\"\ndamage_points = \"reports.geojson\"\ncost_table = \"costs.toml\"\n\n[[district]]\nname = \"Vale\"\nroads = \"roads.geojson\"\n",
+        "[defaults]\ndamage_zones = \"zones.geojson\"\ndamage_points = \"reports.geojson\"\ncost_table = \"costs.toml\"\n\n[[district]]\nname = \"Eastvane\"\nroads = \"roads.geojson\"\n",
     );
     let out = d.path().join("out");
     assert_eq!(batch(&m, &out, &[]).status.code(), Some(0));
-    let s = read_json(&out.join("Vale/summary.json"));
+    let s = read_json(&out.join("Eastvane/summary.json"));
     let roles: Vec<&str> = s["inputs"]
         .as_array()
         .unwrap()
@@ -197,7 +197,7 @@ fn defaults_paths_are_relative_to_the_manifest() {
     manifest(
         &d.path().join("region"),
         "m.toml",
-        "[defaults]\nroads = \"shared/roads.geojson\"\nsites = \"shared/sites.geojson\"\ndamage_zones = \"shared/zones.geojson\"\ndamage_points = \"shared/reports.geojson\"\ncost_table = \"shared/costs.toml\"\nhub = \"A\"\n\n[[district]]\nname = \"Vale\"\n",
+        "[defaults]\nroads = \"shared/roads.geojson\"\nsites = \"shared/sites.geojson\"\ndamage_zones = \"shared/zones.geojson\"\ndamage_points = \"shared/reports.geojson\"\ncost_table = \"shared/costs.toml\"\nhub = \"A\"\n\n[[district]]\nname = \"Eastvane\"\n",
     );
     // Run from the folder above the manifest's, with the manifest's path relative to it.
     let o = reknit()
@@ -206,7 +206,7 @@ fn defaults_paths_are_relative_to_the_manifest() {
         .output()
         .unwrap();
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    let s = read_json(&d.path().join("out/Vale/summary.json"));
+    let s = read_json(&d.path().join("out/Eastvane/summary.json"));
     let inputs = s["inputs"].as_array().unwrap();
     assert_eq!(inputs.len(), 5, "{inputs:?}");
     assert_eq!(
@@ -267,7 +267,7 @@ fn two_shards(d: &Path, out: &Path) {
     let m = manifest(
         d,
         "m.toml",
-        "[[district]]\nname = \"Vale\"\nroads = \"a.geojson\"\n\n[[district]]\nname = \"Moor\"\nroads = \"b.geojson\"\n",
+        "[[district]]\nname = \"Eastvane\"\nroads = \"a.geojson\"\n\n[[district]]\nname = \"Westvane\"\nroads = \"b.geojson\"\n",
     );
     for k in ["1/2", "2/2"] {
         assert_eq!(batch(&m, out, &["--shard", k]).status.code(), Some(0));

@@ -215,7 +215,7 @@ fn batch_summaries_carry_the_cautions_and_the_csv_stays_one_table() {
         d.path(),
         "m.toml",
         &format!(
-            "[defaults]\nattribution = \"Vale County GIS\"\n\n[[district]]\nname = \"North\"\nroads = {:?}\nsites = {:?}\n\n[[district]]\nname = \"South\"\nroads = {:?}\n",
+            "[defaults]\nattribution = \"Eastvane County GIS\"\n\n[[district]]\nname = \"North\"\nroads = {:?}\nsites = {:?}\n\n[[district]]\nname = \"South\"\nroads = {:?}\n",
             roads, sites, roads
         ),
     );
@@ -228,11 +228,11 @@ fn batch_summaries_carry_the_cautions_and_the_csv_stays_one_table() {
     assert_eq!(s["cautions"].as_array().unwrap().len(), CAUTIONS.len());
     // The manifest's attribution reaches each district's outputs and the batch rows.
     for row in s["rows"].as_array().unwrap() {
-        assert_eq!(row["attribution"], "Vale County GIS");
+        assert_eq!(row["attribution"], "Eastvane County GIS");
         let folder = out.join(row["folder"].as_str().unwrap());
         assert_eq!(
             read_json(&folder.join("summary.json"))["attribution"],
-            "Vale County GIS"
+            "Eastvane County GIS"
         );
     }
     // A CSV reader sees one table: every record as wide as the header, the caution in its column.

@@ -313,16 +313,16 @@ fn other_sources_are_attributed_only_when_asked() {
     plan(
         &sample_roads(),
         &given,
-        &["--attribution", "Vale County <GIS> & partners"],
+        &["--attribution", "Eastvane County <GIS> & partners"],
     );
-    let text = "Vale County <GIS> & partners";
+    let text = "Eastvane County <GIS> & partners";
     assert_eq!(read_json(&given.join("summary.json"))["attribution"], text);
     assert_eq!(
         read_json(&given.join("network.geojson"))["attribution"],
         text
     );
     let svg = std::fs::read_to_string(given.join("plan.svg")).unwrap();
-    assert!(svg.contains("Vale County &lt;GIS&gt; &amp; partners"));
+    assert!(svg.contains("Eastvane County &lt;GIS&gt; &amp; partners"));
     // With OSM data, the given text comes first and OSM's licence line is kept.
     let both = d.path().join("both");
     plan(&data(LI), &both, &["--attribution", "Survey 2015"]);

@@ -7,7 +7,7 @@
 //! effort = "normal"
 //!
 //! [[district]]
-//! name = "North Vale"
+//! name = "Low Fennick"
 //! roads = "north/roads.geojson"
 //! sites = "north/sites.geojson"
 //! hub = "S1"
@@ -49,7 +49,7 @@ pub struct Manifest {
 
 /// Values given in one place (`[defaults]`, a district table, a CSV row) by key.
 struct Entry {
-    /// Where, for messages: `[defaults]`, `district 3 ("Vale")`, `row 4 ("Vale")`.
+    /// Where, for messages: `[defaults]`, `district 3 ("Eastvane")`, `row 4 ("Eastvane")`.
     place: String,
     values: BTreeMap<&'static str, Value>,
 }
@@ -251,7 +251,7 @@ fn read_toml(text: &str, base: &Path) -> Result<Parsed, String> {
     Ok((defaults, entries))
 }
 
-/// `district 3 ("Vale")` or `district 3` for messages.
+/// `district 3 ("Eastvane")` or `district 3` for messages.
 fn place(what: &str, n: usize, name: Option<&str>) -> String {
     match name {
         Some(name) => format!("{what} {n} ({name:?})"),

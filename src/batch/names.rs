@@ -32,7 +32,7 @@ mod tests {
 
     #[test]
     fn hostile_names_stay_inside() {
-        assert_eq!(folder_name("North Vale"), "North-Vale");
+        assert_eq!(folder_name("Low Fennick"), "Low-Fennick");
         assert_eq!(folder_name("../outside"), "___outside");
         assert_eq!(folder_name("/etc/passwd"), "_etc_passwd");
         assert_eq!(folder_name(".."), "__");
