@@ -51,6 +51,21 @@ fn plan(dir: &Path, name: &str, roads: &[String], extra: &[&str]) -> (PathBuf, V
     (out, s)
 }
 
+/// Every number in the path data of the plan's picture, in order.
+fn drawn(out: &Path) -> Vec<f64> {
+    let svg = std::fs::read_to_string(out.join("plan.svg")).unwrap();
+    svg.split(" d=\"")
+        .skip(1)
+        .flat_map(|rest| {
+            let d = &rest[..rest.find('"').unwrap()];
+            d.split(|c: char| c == 'M' || c == 'L' || c == 'Z' || c == ' ')
+                .filter(|t| !t.is_empty())
+                .map(|t| t.parse::<f64>().unwrap())
+                .collect::<Vec<_>>()
+        })
+        .collect()
+}
+
 /// The figures two equivalent networks must share.
 fn figures(s: &Value) -> (u64, u64, u64, f64) {
     let c = &s["counts"];
@@ -176,13 +191,13 @@ fn a_network_moved_across_the_meridian_plans_the_same() {
         let tag = snap;
         let a = lattice(cut, gap, &here);
         let b = lattice(cut, gap, &there);
-        let (_, sa) = plan(
+        let (oa, sa) = plan(
             d.path(),
             &format!("here{tag}"),
             &a,
             &["--whole-network", "--snap", snap],
         );
-        let (_, sb) = plan(
+        let (ob, sb) = plan(
             d.path(),
             &format!("there{tag}"),
             &b,
@@ -198,6 +213,14 @@ fn a_network_moved_across_the_meridian_plans_the_same() {
             fa.3,
             fb.3
         );
+        // The picture draws the district across ±180° as it draws it elsewhere: every path the
+        // same, to the pixel's tenth that the SVG keeps (not spread over the whole globe).
+        let (da, db) = (drawn(&oa), drawn(&ob));
+        assert!(da.len() > 100, "{} path numbers", da.len());
+        assert_eq!(da.len(), db.len(), "snap {snap}");
+        for (x, y) in da.iter().zip(&db) {
+            assert!((x - y).abs() <= 0.11, "snap {snap}: {x} vs {y}");
+        }
         let la = sa["counts"]["network_length_m"].as_f64().unwrap();
         let lb = sb["counts"]["network_length_m"].as_f64().unwrap();
         assert!((la - lb).abs() < 0.01, "{la} vs {lb}");

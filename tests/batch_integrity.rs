@@ -48,7 +48,11 @@ case!(manifest_unknown_key_in_a_district, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "district 1 (\"Eastvane\")", "unknown key \"colour\""],
+        &[
+            "m.toml",
+            "district 1 (\"Eastvane\")",
+            "unknown key \"colour\"",
+        ],
     );
 });
 
@@ -81,7 +85,12 @@ case!(manifest_setting_out_of_range_in_defaults, |d| {
         d,
         &out,
         &batch_args(&m, &out, &[]),
-        &["m.toml", "\"Eastvane\"", "\"budget\" (from [defaults])", "-5"],
+        &[
+            "m.toml",
+            "\"Eastvane\"",
+            "\"budget\" (from [defaults])",
+            "-5",
+        ],
     );
 });
 
@@ -104,7 +113,11 @@ case!(manifest_cost_table_unreadable, |d| {
 
 case!(csv_manifest_unknown_column, |d| {
     grid_roads(d, "roads.geojson");
-    let m = manifest(d, "m.csv", "name,roads,colour\nEastvane,roads.geojson,red\n");
+    let m = manifest(
+        d,
+        "m.csv",
+        "name,roads,colour\nEastvane,roads.geojson,red\n",
+    );
     let out = d.join("out");
     fails_with(
         d,
@@ -116,7 +129,11 @@ case!(csv_manifest_unknown_column, |d| {
 
 case!(csv_manifest_column_twice, |d| {
     grid_roads(d, "roads.geojson");
-    let m = manifest(d, "m.csv", "name,roads,snap,snap\nEastvane,roads.geojson,1,2\n");
+    let m = manifest(
+        d,
+        "m.csv",
+        "name,roads,snap,snap\nEastvane,roads.geojson,1,2\n",
+    );
     let out = d.join("out");
     fails_with(
         d,
@@ -343,7 +360,11 @@ case!(merge_with_a_district_in_no_shard, |d| {
 case!(merge_beside_a_batch_summary_not_written_by_reknit, |d| {
     let out = d.join("out");
     two_shards(d, &out);
-    std::fs::write(out.join("batch-summary.csv"), "district,owner\nEastvane,me\n").unwrap();
+    std::fs::write(
+        out.join("batch-summary.csv"),
+        "district,owner\nEastvane,me\n",
+    )
+    .unwrap();
     merge_fails(
         d,
         &out,

@@ -50,9 +50,15 @@ fn resume_reruns_a_district_whose_layers_were_deleted() {
             ["ok", "unchanged"],
             "{gone} deleted"
         );
-        assert!(out.join("Eastvane").join(gone).exists(), "{gone} written again");
+        assert!(
+            out.join("Eastvane").join(gone).exists(),
+            "{gone} written again"
+        );
     }
-    assert_eq!(std::fs::read(out.join("Eastvane/plan.geojson")).unwrap(), plan);
+    assert_eq!(
+        std::fs::read(out.join("Eastvane/plan.geojson")).unwrap(),
+        plan
+    );
     let o = batch(&m, &out, &["--resume"]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     assert_eq!(statuses(&out, "batch-summary"), ["unchanged", "unchanged"]);
