@@ -215,9 +215,9 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         (
             "--roads-layer",
             o.road.roads_layer.is_some(),
-            crate::ingest::reader::Format::of(&o.roads)
-                == crate::ingest::reader::Format::GeoPackage,
-            "only a GeoPackage road file (--roads FILE.gpkg) holds layers to choose from",
+            crate::ingest::reader::Format::of(&o.roads).has_layers(),
+            "only a GeoPackage or zipped Shapefile road file (--roads FILE.gpkg or FILE.zip) \
+             holds layers to choose from",
         ),
         (
             "--site-tags",
