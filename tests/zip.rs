@@ -29,7 +29,10 @@ fn zipped_set_reads_as_the_set_on_disk() {
     let z = county_zip(d.path());
     let a = plan_quiet(d.path(), "zip", &z, &[]);
     let b = plan_quiet(d.path(), "shp", &data(SHP), &[]);
-    let (sa, sb) = (read_json(&a.join("summary.json")), read_json(&b.join("summary.json")));
+    let (sa, sb) = (
+        read_json(&a.join("summary.json")),
+        read_json(&b.join("summary.json")),
+    );
     assert_eq!(sa["counts"], sb["counts"]);
     assert_eq!(sa["total_cost"], sb["total_cost"]);
     assert_eq!(sa["geodesy"], sb["geodesy"]);

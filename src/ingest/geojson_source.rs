@@ -50,12 +50,11 @@ impl FeatureSource for GeoJsonSource {
         let info = read_collection(&mut reader, wanted, |index, f| sink(index, f))
             .map_err(|e| IngestError::from_read(&self.path, e))?;
         self.crs = info.crs;
-        let (sha256, bytes) = HashingReader::finish_buffered(reader).map_err(|source| {
-            IngestError::Io {
+        let (sha256, bytes) =
+            HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
                 path: self.path.clone(),
                 source,
-            }
-        })?;
+            })?;
         Ok(SourceInfo {
             features: info.features,
             skipped: Default::default(),

@@ -145,8 +145,10 @@ impl GpkgSource {
 /// The columns of `table` and whether each is part of its primary key, in table order.
 fn table_columns(conn: &Connection, table: &str) -> rusqlite::Result<Vec<(String, bool)>> {
     let mut st = conn.prepare(&format!("PRAGMA table_info({})", quote(table)))?;
-    st.query_map([], |r| Ok((r.get::<_, String>(1)?, r.get::<_, i64>(5)? > 0)))?
-        .collect()
+    st.query_map([], |r| {
+        Ok((r.get::<_, String>(1)?, r.get::<_, i64>(5)? > 0))
+    })?
+    .collect()
 }
 
 /// The layers a GeoPackage declares, by table name.

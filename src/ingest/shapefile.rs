@@ -10,8 +10,8 @@ use super::coords::Coords;
 use super::crs::Crs;
 use super::geojson::RawFeature;
 use super::reader::{DeclaredFields, FeatureSource, Format, SourceInfo};
-pub use super::set_files::{SetItem, ShapeSet, open_set};
 use super::set_files::{SetFiles, open_files, shapefile_error, sibling};
+pub use super::set_files::{SetItem, ShapeSet, open_set};
 use super::source::{HashingReader, InputRecord, Source};
 use serde_json::Value;
 use shapefile::Shape;
@@ -269,4 +269,3 @@ pub fn field_json(v: &FieldValue) -> Value {
         _ => Value::Null,
     }
 }
-

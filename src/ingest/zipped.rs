@@ -278,10 +278,16 @@ mod tests {
         assert_eq!(choose(p, &names, Some("rivers")).unwrap(), "b/rivers");
         assert_eq!(choose(p, &names, Some("a/roads.shp")).unwrap(), "a/roads");
         let e = choose(p, &names, None).unwrap_err().to_string();
-        assert!(e.contains("3 Shapefile sets") && e.contains("b/rivers.shp"), "{e}");
+        assert!(
+            e.contains("3 Shapefile sets") && e.contains("b/rivers.shp"),
+            "{e}"
+        );
         let e = choose(p, &names, Some("roads")).unwrap_err().to_string();
         assert!(e.contains("path inside the archive"), "{e}");
         let e = choose(p, &names[3..], None).unwrap_err().to_string();
-        assert!(e.contains("no Shapefile set") && e.contains("notes.txt"), "{e}");
+        assert!(
+            e.contains("no Shapefile set") && e.contains("notes.txt"),
+            "{e}"
+        );
     }
 }

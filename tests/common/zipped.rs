@@ -51,7 +51,9 @@ pub fn zip_owned(dir: &Path, name: &str, entries: &[(String, Vec<u8>)]) -> PathB
 pub fn declare_size(zip: &Path, member: &str, size: u32) {
     let mut b = std::fs::read(zip).unwrap();
     let mut patched = 0;
-    for (sig, size_at, len_at, name_at) in [(b"PK\x03\x04", 22, 26, 30), (b"PK\x01\x02", 24, 28, 46)] {
+    for (sig, size_at, len_at, name_at) in
+        [(b"PK\x03\x04", 22, 26, 30), (b"PK\x01\x02", 24, 28, 46)]
+    {
         let mut i = 0;
         while let Some(k) = b[i..].windows(4).position(|w| w == sig) {
             let at = i + k;
