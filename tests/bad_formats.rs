@@ -333,3 +333,8 @@ case!(zip_bomb_inflates_beyond_its_header, |d| {
         ],
     );
 });
+
+case!(same_road_layer_twice, |d| {
+    let p = roads_ok(d);
+    plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
+});

@@ -202,6 +202,10 @@ impl FeatureSource for GpkgSource {
         Crs::from_wkt(&wkt).map(Some).map_err(crs_err)
     }
 
+    fn layer_name(&self) -> Option<String> {
+        Some(self.layer.table.clone())
+    }
+
     fn declared_fields(&self) -> Option<DeclaredFields> {
         Some(DeclaredFields {
             file: self.path.clone(),

@@ -15,6 +15,7 @@ pub mod damage;
 pub mod geodesy;
 pub mod geojson;
 pub mod geojson_source;
+pub mod layers;
 pub mod gpkg;
 pub mod limits;
 pub mod members;

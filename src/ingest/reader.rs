@@ -102,6 +102,12 @@ pub trait FeatureSource {
         Ok(Crs::wgs84())
     }
 
+    /// The name of the layer read inside the file, when the file holds layers by name (a
+    /// GeoPackage's table); part of the layer's label in the outputs.
+    fn layer_name(&self) -> Option<String> {
+        None
+    }
+
     /// The attribute names the file declares up front, when it has a table of them; a field the
     /// user names is then checked before any feature is read.
     fn declared_fields(&self) -> Option<DeclaredFields> {
@@ -118,16 +124,21 @@ pub trait FeatureSource {
 }
 
 /// Opens the reader of `source`'s format: the one place a format is chosen.
+/// With `several` layers in the run, `--crs` applies only to layers without a CRS of their own, so
+/// an extract's WGS84 is never in question.
 pub fn open_source(
     source: &Source,
     settings: &RoadSettings,
+    several: bool,
 ) -> Result<Box<dyn FeatureSource>, IngestError> {
     Ok(match Format::of(source) {
         Format::Shapefile | Format::ZippedShapefile => Box::new(
             super::shapefile::ShapefileSource::open(source, settings.layer.as_deref())?,
         ),
         Format::OsmPbf => {
-            super::osm::check_user_crs(source, settings)?;
+            if !several {
+                super::osm::check_user_crs(source, settings)?;
+            }
             Box::new(super::osm::OsmRoads::new(source, settings))
         }
         Format::GeoPackage => Box::new(super::gpkg::GpkgSource::open(
@@ -144,6 +155,16 @@ pub fn open_source(
 pub fn read_lines(
     source: &mut dyn FeatureSource,
     settings: &RoadSettings,
+) -> Result<LineLayer, IngestError> {
+    read_lines_as(source, settings, false)
+}
+
+/// [`read_lines`] for one of `several` layers: then `--crs` applies only when the layer declares
+/// no CRS of its own (with one layer it overrides the layer's own).
+pub fn read_lines_as(
+    source: &mut dyn FeatureSource,
+    settings: &RoadSettings,
+    several: bool,
 ) -> Result<LineLayer, IngestError> {
     settings.validate()?;
     let path: PathBuf = source.path().to_path_buf();
@@ -214,14 +235,25 @@ pub fn read_lines(
             ),
         });
     }
-    let crs = match user_crs {
-        Some(c) => c,
-        None => match source.declared_crs()? {
-            Some(c) => c,
-            None => source.default_crs()?,
+    let crs = match (user_crs, several) {
+        (Some(c), false) => c,
+        (user, _) => match (source.declared_crs()?, user) {
+            (Some(c), _) | (None, Some(c)) => c,
+            (None, None) => source.default_crs()?,
         },
     };
     finish_coordinates(&mut layer, &path, &crs)?;
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| path.display().to_string());
+    layer.layers = vec![super::layers::SourceLayer {
+        label: match source.layer_name() {
+            Some(t) => format!("{name}:{t}"),
+            None => name,
+        },
+        first_feature: 0,
+    }];
     Ok(layer)
 }
 

@@ -166,6 +166,10 @@ pub struct LineLayer {
     pub input: Option<InputRecord>,
     /// True when some feature carries a field only OpenStreetMap exports have (`osm_id`, `@id`).
     pub osm_fields: bool,
+    /// The input layers laid end to end here, each with its label and first feature.
+    pub layers: Vec<super::layers::SourceLayer>,
+    /// The records of the layers after the first (`--roads` given more than once).
+    pub more_inputs: Vec<InputRecord>,
 }
 
 impl LineLayer {
@@ -179,8 +183,7 @@ impl LineLayer {
 /// Reads a road layer in the format its name tells ([`super::reader::Format`]), through the
 /// one path every format takes ([`super::reader::read_lines`]).
 pub fn read_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
-    let mut src = super::reader::open_source(source, settings)?;
-    super::reader::read_lines(src.as_mut(), settings)
+    super::layers::read_layers(std::slice::from_ref(source), settings)
 }
 
 /// Fails when a layer holds no lines, saying what it held instead.
