@@ -77,6 +77,36 @@ def main():
             assert len(part) < 65536
             packed += struct.pack("<H", len(part)) + part
         put("shapefile", "sample-6", packed)
+        zip_seed(d)
+    gpkg_seeds()
+
+
+def zip_seed(d):
+    """The Shapefile set in `d` (roads.*) zipped in a folder, deflated, as a zipped road layer."""
+    import io
+    import zipfile
+    buf = io.BytesIO()
+    with zipfile.ZipFile(buf, "w", zipfile.ZIP_DEFLATED) as z:
+        for ext in ("shp", "shx", "dbf", "prj", "cpg"):
+            path = os.path.join(d, "roads." + ext)
+            if os.path.exists(path):
+                info = zipfile.ZipInfo("county/roads." + ext, date_time=(2026, 1, 1, 0, 0, 0))
+                info.compress_type = zipfile.ZIP_DEFLATED
+                z.writestr(info, open(path, "rb").read())
+    put("zipped_shapefile", "sample-6", buf.getvalue())
+
+
+def gpkg_seeds():
+    """GeoPackage geometry blobs (OGC 12-128r18 §2.1.3: "GP", version, flags, srs_id, envelope,
+    then ISO WKB): a LineString, a MultiLineString with an envelope, a Point."""
+    def line(pts):
+        return b"\x01" + struct.pack("<II", 2, len(pts)) + b"".join(struct.pack("<dd", *p) for p in pts)
+    head = b"GP\x00\x01" + struct.pack("<i", 4326)
+    put("gpkg_geometry", "linestring", head + line([(0, 0), (0.001, 0), (0.001, 0.002)]))
+    env = b"GP\x00\x03" + struct.pack("<i", 4326) + struct.pack("<dddd", 0, 0.002, 0, 0.002)
+    multi = b"\x01" + struct.pack("<II", 5, 2) + line([(0, 0), (0.002, 0)]) + line([(0, 0.002), (0.002, 0.002)])
+    put("gpkg_geometry", "multilinestring-envelope", env + multi)
+    put("gpkg_geometry", "point", head + b"\x01" + struct.pack("<Idd", 1, 0.5, 0.5))
 
 
 if __name__ == "__main__":

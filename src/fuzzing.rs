@@ -26,6 +26,8 @@ pub const TARGETS: &[(&str, Target)] = &[
     ("stp", stp),
     ("shapefile", shapefile),
     ("graph", graph),
+    ("zipped_shapefile", zipped_shapefile),
+    ("gpkg_geometry", gpkg_geometry),
 ];
 
 fn memory(name: &str, data: &[u8]) -> Source {
@@ -213,6 +215,27 @@ pub fn shapefile(data: &[u8]) {
     };
     if let Ok(layer) = read_roads(&Source::File(d.join("roads.shp")), &settings) {
         let _ = crate::ingest::build_network(layer, &settings, false);
+    }
+}
+
+/// A `.zip` archive, read as a zipped Shapefile road layer (archive parsing, member choice,
+/// bounded inflating, then the Shapefile set), then noded.
+pub fn zipped_shapefile(data: &[u8]) {
+    let settings = RoadSettings {
+        crs: Some("EPSG:32633".into()),
+        ..RoadSettings::default()
+    };
+    if let Ok(layer) = read_roads(&memory("roads.zip", data), &settings) {
+        let _ = crate::ingest::build_network(layer, &settings, false);
+    }
+}
+
+/// A GeoPackage geometry blob (header and WKB), decoded; lines are walked part by part.
+pub fn gpkg_geometry(data: &[u8]) {
+    if let Ok(crate::ingest::wkb::Decoded::Lines(c)) = crate::ingest::wkb::decode(data) {
+        for part in c.part_slices() {
+            let _ = part.iter().map(|p| p[0] + p[1]).sum::<f64>();
+        }
     }
 }
 

@@ -79,9 +79,16 @@ pub struct Network {
     pub geom: Vec<[f64; 2]>,
     /// Input features, indexed by [`Edge::feature`].
     pub features: Vec<FeatureMeta>,
+    /// The input layers the features came from, in order, each with its first feature.
+    pub layers: Vec<crate::ingest::layers::SourceLayer>,
 }
 
 impl Network {
+    /// The label of the input layer feature `feature` came from (`source_layer` in the outputs).
+    pub fn source_layer(&self, feature: u32) -> Option<&str> {
+        crate::ingest::layers::label_of(&self.layers, feature)
+    }
+
     /// The vertices of edge `e`, from its `from` junction to its `to` junction.
     pub fn edge_geometry(&self, e: usize) -> &[[f64; 2]] {
         &self.geom[self.geom_offsets[e]..self.geom_offsets[e + 1]]

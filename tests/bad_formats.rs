@@ -210,3 +210,131 @@ case!(roads_layer_without_a_geopackage, |d| {
         &["--roads-layer", "GeoPackage"],
     );
 });
+
+// ---- Zipped Shapefiles ----
+
+/// A zip of the small two-road Shapefile set, each member named `folder` + its file name.
+fn zipped_set(d: &Path, zip: &str, folder: &str, skip: &[&str]) -> std::path::PathBuf {
+    use common::zipped::*;
+    let sub = d.join("set");
+    std::fs::create_dir_all(&sub).unwrap();
+    let shp = shapefile_roads(&sub, "lanes.shp", &two_roads());
+    let entries: Vec<(String, Vec<u8>)> = set_entries(&shp, folder)
+        .into_iter()
+        .filter(|(n, _)| !skip.iter().any(|s| n.ends_with(s)))
+        .collect();
+    let p = zip_owned(d, zip, &entries);
+    std::fs::remove_dir_all(&sub).unwrap();
+    p
+}
+
+case!(zip_with_two_shapefile_sets, |d| {
+    use common::zipped::*;
+    let sub = d.join("set");
+    std::fs::create_dir_all(&sub).unwrap();
+    let shp = shapefile_roads(&sub, "lanes.shp", &two_roads());
+    let mut entries = set_entries(&shp, "east/");
+    entries.extend(set_entries(&shp, "west/"));
+    let p = zip_owned(d, "two.zip", &entries);
+    std::fs::remove_dir_all(&sub).unwrap();
+    plan_fails(
+        &p,
+        &[],
+        &[
+            "two.zip",
+            "2 Shapefile sets",
+            "east/lanes.shp",
+            "west/lanes.shp",
+            "--roads-layer",
+        ],
+    );
+    // Both sets share a file name: only their path inside the archive tells them apart.
+    plan_fails(
+        &p,
+        &["--roads-layer", "lanes"],
+        &["two.zip", "path inside the archive"],
+    );
+});
+
+case!(zip_with_no_shapefile, |d| {
+    let p = common::zipped::zip_of(d, "notes.zip", &[("notes.txt", b"no layer here".to_vec())]);
+    plan_fails(&p, &[], &["notes.zip", "no Shapefile set", "notes.txt"]);
+});
+
+case!(zip_layer_not_there, |d| {
+    let p = zipped_set(d, "one.zip", "", &[]);
+    plan_fails(
+        &p,
+        &["--roads-layer", "rivers"],
+        &["one.zip", "no Shapefile set named \"rivers\"", "lanes.shp"],
+    );
+});
+
+case!(zip_without_dbf, |d| {
+    let p = zipped_set(d, "nodbf.zip", "roads/", &[".dbf"]);
+    plan_fails(
+        &p,
+        &[],
+        &["nodbf.zip", "roads/lanes.dbf", "attribute table"],
+    );
+});
+
+case!(zip_without_shx, |d| {
+    let p = zipped_set(d, "noshx.zip", "", &[".shx"]);
+    plan_fails(&p, &[], &["noshx.zip", "lanes.shx", "index"]);
+});
+
+case!(zip_without_prj, |d| {
+    let p = zipped_set(d, "noprj.zip", "", &[".prj"]);
+    plan_fails(&p, &[], &["noprj.zip", "lanes.shp", ".prj", "--crs"]);
+});
+
+case!(zip_truncated, |d| {
+    let p = zipped_set(d, "cut.zip", "", &[]);
+    let bytes = std::fs::read(&p).unwrap();
+    std::fs::write(&p, &bytes[..bytes.len() / 2]).unwrap();
+    plan_fails(&p, &[], &["cut.zip", "not a readable zip archive"]);
+});
+
+case!(zip_member_corrupt, |d| {
+    // The .dbf's deflated bytes overwritten in the middle: the inflater or the member's CRC-32
+    // (APPNOTE 6.3 §4.4.7) refuses it.
+    let p = zipped_set(d, "bad.zip", "", &[]);
+    let mut bytes = std::fs::read(&p).unwrap();
+    let at = bytes.windows(9).position(|w| w == b"lanes.dbf").unwrap() + 9;
+    for b in &mut bytes[at + 4..at + 20] {
+        *b ^= 0x5A;
+    }
+    std::fs::write(&p, bytes).unwrap();
+    plan_fails(&p, &[], &["bad.zip", "lanes.dbf", "corrupt"]);
+});
+
+case!(zip_bomb_declared_size, |d| {
+    // A member declaring 3 GiB once inflated: refused before anything is inflated.
+    let p = zipped_set(d, "bomb.zip", "", &[]);
+    common::zipped::declare_size(&p, "lanes.shp", 3 << 30);
+    plan_fails(&p, &[], &["bomb.zip", "lanes.shp", "1024 MiB", "zip bomb"]);
+});
+
+case!(zip_bomb_inflates_beyond_its_header, |d| {
+    // A member whose header declares 40 bytes but whose data inflates to more: reading stops
+    // past the declared size (the zip reader's own check, or ours one byte later), so memory
+    // stays bounded whatever the data holds.
+    let p = zipped_set(d, "liar.zip", "", &[]);
+    common::zipped::declare_size(&p, "lanes.shp", 40);
+    plan_fails(
+        &p,
+        &[],
+        &[
+            "liar.zip",
+            "lanes.shp",
+            "corrupt",
+            "larger than its declared",
+        ],
+    );
+});
+
+case!(same_road_layer_twice, |d| {
+    let p = roads_ok(d);
+    plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
+});

@@ -50,8 +50,10 @@ pub const KEYS: &[Key] = &[
             Ok(())
         },
     },
-    key("roads", Path, |j, v| {
-        j.roads = Source::File(v.path()?);
+    key("roads", Paths, |j, v| {
+        let mut ps = v.paths()?.into_iter().map(Source::File);
+        j.roads = ps.next().ok_or_else(|| "must be a path".to_string())?;
+        j.more_roads = ps.collect();
         Ok(())
     }),
     key("sites", OptPath, |j, v| {

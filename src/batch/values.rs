@@ -21,6 +21,8 @@ pub enum Kind {
     Choice(&'static [&'static str]),
     /// `FIELD=V1,V2` filters: a string or an array of strings (in CSV, separated by `;`).
     Filters,
+    /// One or more file paths: a string or an array of strings (in CSV, separated by `;`).
+    Paths,
 }
 
 /// A value read for a key, already checked against the key's kind.
@@ -38,6 +40,8 @@ pub enum Value {
     Unset,
     /// Filter texts, `FIELD=V1,V2` each.
     Filters(Vec<String>),
+    /// Paths, each joined to the manifest's folder (at least one).
+    Paths(Vec<PathBuf>),
 }
 
 fn bug() -> String {
@@ -93,6 +97,15 @@ impl Value {
         }
     }
 
+    /// The paths of a paths value (one or more).
+    pub fn paths(&self) -> Result<Vec<PathBuf>, String> {
+        match self {
+            Value::Paths(p) if !p.is_empty() => Ok(p.clone()),
+            Value::Path(p) => Ok(vec![p.clone()]),
+            _ => Err(bug()),
+        }
+    }
+
     /// The filter texts of a filters value (empty when cleared).
     pub fn filters(&self) -> Result<Vec<String>, String> {
         match self {
@@ -117,6 +130,8 @@ fn from_text(kind: Kind, s: &str, base: &Path) -> Result<Value, String> {
         Kind::Choice(words) => Err(format!("is {t:?}; use {}", words.join(", "))),
         Kind::Filters if t.is_empty() => Ok(Value::Unset),
         Kind::Filters => Ok(Value::Filters(vec![t.to_string()])),
+        Kind::Paths if t.is_empty() => Err("must be a path".into()),
+        Kind::Paths => Ok(Value::Paths(vec![base.join(t)])),
         Kind::Number => Err(format!("must be a number, found text {t:?}")),
         Kind::Bool => Err(format!("must be true or false, found text {t:?}")),
     }
@@ -146,6 +161,14 @@ pub fn from_toml(kind: Kind, v: &toml::Value, base: &Path) -> Result<Value, Stri
             })
             .collect::<Result<Vec<_>, _>>()
             .map(Value::Filters),
+        (Kind::Paths, T::Array(items)) if !items.is_empty() => items
+            .iter()
+            .map(|i| match i {
+                T::String(s) if !s.trim().is_empty() => Ok(base.join(s.trim())),
+                other => Err(format!("holds {other}; give paths as strings")),
+            })
+            .collect::<Result<Vec<_>, _>>()
+            .map(Value::Paths),
         (kind, other) => Err(format!("must be {}, found {other}", describe(kind))),
     }
 }
@@ -170,6 +193,19 @@ pub fn from_cell(kind: Kind, cell: &str, base: &Path) -> Result<Value, String> {
                 .map(str::to_string)
                 .collect(),
         )),
+        Kind::Paths => {
+            let ps: Vec<PathBuf> = t
+                .split(';')
+                .map(str::trim)
+                .filter(|p| !p.is_empty())
+                .map(|p| base.join(p))
+                .collect();
+            if ps.is_empty() {
+                Err("must be a path".into())
+            } else {
+                Ok(Value::Paths(ps))
+            }
+        }
         _ => from_text(kind, t, base),
     }
 }
@@ -183,6 +219,7 @@ pub fn describe(kind: Kind) -> String {
         Kind::Path | Kind::OptPath => "a path (text)".into(),
         Kind::Choice(words) => format!("one of {}", words.join(", ")),
         Kind::Filters => "FIELD=V1,V2 text or an array of such".into(),
+        Kind::Paths => "a path (text) or an array of paths".into(),
     }
 }
 

@@ -54,7 +54,9 @@ pub struct NetworkArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub crs: Option<String>,
 
-    /// The layer of a GeoPackage road file that holds several (the message lists them).
+    /// The layer of a GeoPackage road file that holds several, or the Shapefile set of a .zip
+    /// that holds several (its name without .shp, or its path inside the archive); the message
+    /// lists them.
     #[arg(long, value_name = "NAME")]
     pub roads_layer: Option<String>,
 

@@ -16,9 +16,13 @@ use std::process::ExitCode;
 #[derive(Debug, Args)]
 pub struct PlanArgs {
     /// Road centerline layer: GeoJSON (LineString/MultiLineString, WGS84 lon/lat unless --crs or a
-    /// crs member says otherwise) or an ESRI Shapefile (.shp with .shx, .dbf and .prj).
-    #[arg(long, value_name = "FILE")]
-    roads: PathBuf,
+    /// crs member says otherwise), an ESRI Shapefile (.shp with .shx, .dbf and .prj) or a .zip
+    /// holding one, an OpenStreetMap .osm.pbf extract or a GeoPackage (.gpkg). Give it again for
+    /// more layers, of any of these formats, read into one network: each feature keeps its layer
+    /// as `source_layer`; --crs then applies only to layers without a CRS of their own, and
+    /// --roads-layer to every GeoPackage or .zip given.
+    #[arg(long, value_name = "FILE", required = true)]
+    roads: Vec<PathBuf>,
 
     /// Output folder (created if absent).
     #[arg(long, value_name = "DIR")]
@@ -43,7 +47,10 @@ pub struct PlanArgs {
 
 pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
-    let mut o = Options::new(Source::File(a.roads), a.out);
+    let mut roads = a.roads.into_iter().map(Source::File);
+    let first = roads.next().expect("clap requires --roads");
+    let mut o = Options::new(first, a.out);
+    o.more_roads = roads.collect();
     o.force = a.output.force;
     o.name = a.name.clone();
     o.road = a.network.road_options();

@@ -94,6 +94,10 @@ pub fn write_backup<W: std::io::Write>(
                 ("edge", Prop::Int(r.edge as i64)),
                 ("source_index", Prop::Int(meta.source_index as i64)),
                 (
+                    "source_layer",
+                    net.source_layer(edge.feature).map_or(Prop::Null, Prop::Str),
+                ),
+                (
                     "source_id",
                     meta.source_id.as_ref().map_or(Prop::Null, Prop::Json),
                 ),

@@ -346,6 +346,10 @@ fn write_edges<W: std::io::Write>(
             ("cost", cost),
             ("component", component),
             ("source_index", Prop::Int(meta.source_index as i64)),
+            (
+                "source_layer",
+                net.source_layer(edge.feature).map_or(Prop::Null, Prop::Str),
+            ),
             ("source_id", source_id),
             (
                 "category",

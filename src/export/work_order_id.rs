@@ -12,6 +12,11 @@
 //! feature (k ≥ 2, in layer order); in an id, `%`, `/` and a leading `#` are written `%25`, `%2F`
 //! and `%23`, so no id can look like a position or a repeat; and two pieces of one road whose spans
 //! round to the same metres get `+k` on the k-th.
+//!
+//! With several road layers in one run, the key names the layer first, `WO-<layer>:<road>-…`
+//! (the layer's label with `%`, `:` and `/` written `%25`, `%3A` and `%2F`), and a road id's
+//! repeats are counted within its layer: two layers with the same ids give distinct keys, and a
+//! layer's keys do not depend on the other layers. A run of one layer keeps the keys above.
 
 use crate::fxhash::FxHashMap;
 use crate::network::Network;
@@ -53,7 +58,15 @@ impl WorkOrderIds {
             use std::hash::{BuildHasher, BuildHasherDefault};
             BuildHasherDefault::<crate::fxhash::FxHasher>::default().hash_one(t)
         };
-        let text_of = |i: usize| net.features[i].source_id.as_ref().and_then(id_text);
+        // With several layers an id is counted within its layer: the layer's number goes first.
+        let several = net.layers.len() > 1;
+        let text_of = |i: usize| {
+            let t = net.features[i].source_id.as_ref().and_then(id_text)?;
+            Some(match several {
+                true => format!("{}\u{0}{t}", layer_number(net, i as u32)),
+                false => t,
+            })
+        };
         let mut seen: FxHashMap<u64, (u32, u32)> = FxHashMap::default();
         let mut collided: FxHashMap<String, u32> = FxHashMap::default();
         let occurrence = (0..net.features.len())
@@ -98,6 +111,18 @@ impl WorkOrderIds {
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
         let mut k = String::from("WO-");
+        if net.layers.len() > 1 {
+            let label = net.source_layer(edge.feature).unwrap_or_default();
+            for ch in label.chars() {
+                match ch {
+                    '%' => k.push_str("%25"),
+                    ':' => k.push_str("%3A"),
+                    '/' => k.push_str("%2F"),
+                    c => k.push(c),
+                }
+            }
+            k.push(':');
+        }
         match meta.source_id.as_ref().and_then(id_text) {
             Some(t) => {
                 for (i, ch) in t.chars().enumerate() {
@@ -122,6 +147,11 @@ impl WorkOrderIds {
         }
         k
     }
+}
+
+/// The number of the layer feature `f` came from.
+fn layer_number(net: &Network, f: u32) -> usize {
+    net.layers.partition_point(|l| l.first_feature <= f)
 }
 
 /// Whole metres, rounded half away from zero.

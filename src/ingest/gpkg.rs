@@ -11,7 +11,7 @@
 use super::IngestError;
 use super::crs::Crs;
 use super::geojson::RawFeature;
-use super::reader::{FeatureSource, SourceInfo};
+use super::reader::{DeclaredFields, FeatureSource, SourceInfo};
 use super::source::Source;
 use super::wkb::{Decoded, decode};
 use rusqlite::types::ValueRef;
@@ -37,6 +37,8 @@ pub struct GpkgSource {
     path: PathBuf,
     conn: Connection,
     layer: Layer,
+    /// The table's columns and whether each is part of the primary key.
+    columns: Vec<(String, bool)>,
 }
 
 fn refuse(path: &Path, message: String) -> IngestError {
@@ -128,13 +130,25 @@ impl GpkgSource {
             },
         }
         .clone();
+        let columns = table_columns(&conn, &chosen.table)
+            .map_err(|e| refuse(&path, format!("layer \"{}\": {e}", chosen.table)))?;
         Ok(GpkgSource {
             source: source.clone(),
             path,
             conn,
             layer: chosen,
+            columns,
         })
     }
+}
+
+/// The columns of `table` and whether each is part of its primary key, in table order.
+fn table_columns(conn: &Connection, table: &str) -> rusqlite::Result<Vec<(String, bool)>> {
+    let mut st = conn.prepare(&format!("PRAGMA table_info({})", quote(table)))?;
+    st.query_map([], |r| {
+        Ok((r.get::<_, String>(1)?, r.get::<_, i64>(5)? > 0))
+    })?
+    .collect()
 }
 
 /// The layers a GeoPackage declares, by table name.
@@ -188,6 +202,23 @@ impl FeatureSource for GpkgSource {
         Crs::from_wkt(&wkt).map(Some).map_err(crs_err)
     }
 
+    fn layer_name(&self) -> Option<String> {
+        Some(self.layer.table.clone())
+    }
+
+    fn declared_fields(&self) -> Option<DeclaredFields> {
+        Some(DeclaredFields {
+            file: self.path.clone(),
+            noun: "column",
+            names: self
+                .columns
+                .iter()
+                .map(|(c, _)| c.clone())
+                .filter(|c| *c != self.layer.column)
+                .collect(),
+        })
+    }
+
     fn features(
         &mut self,
         wanted: &[String],
@@ -197,21 +228,7 @@ impl FeatureSource for GpkgSource {
         let sql =
             |e: rusqlite::Error| refuse(&path, format!("layer \"{}\": {e}", self.layer.table));
         let table = quote(&self.layer.table);
-        let mut columns: Vec<(String, bool)> = Vec::new();
-        {
-            let mut st = self
-                .conn
-                .prepare(&format!("PRAGMA table_info({table})"))
-                .map_err(sql)?;
-            let rows = st
-                .query_map([], |r| {
-                    Ok((r.get::<_, String>(1)?, r.get::<_, i64>(5)? > 0))
-                })
-                .map_err(sql)?;
-            for r in rows {
-                columns.push(r.map_err(sql)?);
-            }
-        }
+        let columns = &self.columns;
         let geom = columns
             .iter()
             .position(|(c, _)| *c == self.layer.column)
@@ -309,13 +326,4 @@ impl FeatureSource for GpkgSource {
             features_cut_at_edge: 0,
         })
     }
-}
-
-/// Reads the road layer of a GeoPackage (`--roads-layer` chooses among several).
-pub fn read_gpkg_roads(
-    source: &Source,
-    settings: &super::roads::RoadSettings,
-) -> Result<super::roads::LineLayer, IngestError> {
-    let mut src = GpkgSource::open(source, settings.layer.as_deref())?;
-    super::reader::read_lines(&mut src, settings)
 }

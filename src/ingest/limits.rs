@@ -15,6 +15,9 @@ pub const MAX_STRING: usize = 64 << 20;
 pub const MAX_SCALAR: usize = 4 << 10;
 /// Largest single GeoJSON feature (or other top-level member value): 1 GiB.
 pub const MAX_FEATURE: usize = 1 << 30;
+/// Largest member of a zip archive once inflated (a Shapefile's `.shp`, `.shx` or `.dbf`): 1 GiB;
+/// sidecar texts (`.prj`, `.cpg`) are held to [`MAX_SMALL_FILE`].
+pub const MAX_ZIP_MEMBER: u64 = 1 << 30;
 /// Largest single CSV row: 1 MiB.
 pub const MAX_CSV_ROW: usize = 1 << 20;
 
@@ -42,7 +45,10 @@ pub fn sniff(head: &[u8]) -> Result<usize, String> {
         }
     }
     let formats: [(&[u8], &str); 5] = [
-        (b"PK\x03\x04", "a ZIP archive; unpack it first (unzip FILE)"),
+        (
+            b"PK\x03\x04",
+            "a ZIP archive; a road layer zipped as one Shapefile set is read from a .zip name, other archives: unpack them first (unzip FILE)",
+        ),
         (
             b"\x1F\x8B",
             "gzip-compressed; unpack it first (gunzip FILE)",
@@ -84,6 +90,12 @@ pub fn read_small_text(path: &Path) -> io::Result<String> {
     let f = std::fs::File::open(path)?;
     let mut bytes = Vec::new();
     f.take(MAX_SMALL_FILE + 1).read_to_end(&mut bytes)?;
+    small_text(bytes)
+}
+
+/// Small text already in memory (a member of an archive) under the rules of [`read_small_text`]:
+/// at most [`MAX_SMALL_FILE`] bytes, a byte-order mark skipped, other formats named, UTF-8.
+pub fn small_text(mut bytes: Vec<u8>) -> io::Result<String> {
     if bytes.len() as u64 > MAX_SMALL_FILE {
         return Err(io::Error::other(format!(
             "larger than {} MiB, the limit for this kind of file",

@@ -20,7 +20,7 @@ use super::coords::Coords;
 use super::crs::Crs;
 use super::geojson::RawFeature;
 use super::reader::{FeatureSource, SourceInfo};
-use super::roads::{LineLayer, RoadSettings};
+use super::roads::RoadSettings;
 use super::source::{HashingReader, InputRecord, Source};
 use osmpbf::{Element, ElementReader};
 use serde_json::Value;
@@ -312,8 +312,8 @@ fn name_way(e: IngestError, id: i64) -> IngestError {
     }
 }
 
-/// Reads the roads of an `.osm.pbf` extract (WGS84 always: a `--crs` other than EPSG:4326 is refused).
-pub fn read_osm_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
+/// Refuses a `--crs` other than WGS84 for an extract (OpenStreetMap is WGS84 always).
+pub fn check_user_crs(source: &Source, settings: &RoadSettings) -> Result<(), IngestError> {
     if let Some(c) = &settings.crs {
         let crs = Crs::from_user(c).map_err(|message| IngestError::Crs {
             path: source.display_path(),
@@ -328,5 +328,5 @@ pub fn read_osm_roads(source: &Source, settings: &RoadSettings) -> Result<LineLa
             });
         }
     }
-    super::reader::read_lines(&mut OsmRoads::new(source, settings), settings)
+    Ok(())
 }

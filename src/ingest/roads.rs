@@ -3,7 +3,6 @@
 pub use super::crs::crs_member;
 use super::crs::{Crs, LengthRule};
 use super::damage::{Damage, DamageRule};
-use super::geojson::read_collection;
 use super::source::{InputRecord, Source};
 use super::{IngestError, MAX_SNAP_M};
 use crate::decimal::Fixed;
@@ -167,6 +166,10 @@ pub struct LineLayer {
     pub input: Option<InputRecord>,
     /// True when some feature carries a field only OpenStreetMap exports have (`osm_id`, `@id`).
     pub osm_fields: bool,
+    /// The input layers laid end to end here, each with its label and first feature.
+    pub layers: Vec<super::layers::SourceLayer>,
+    /// The records of the layers after the first (`--roads` given more than once).
+    pub more_inputs: Vec<InputRecord>,
 }
 
 impl LineLayer {
@@ -177,102 +180,10 @@ impl LineLayer {
     }
 }
 
-/// Reads a road layer in the format its name tells ([`super::reader::Format`]).
+/// Reads a road layer in the format its name tells ([`super::reader::Format`]), through the
+/// one path every format takes ([`super::reader::read_lines`]).
 pub fn read_roads(source: &Source, settings: &RoadSettings) -> Result<LineLayer, IngestError> {
-    use super::reader::Format;
-    match (Format::of(source), source.path()) {
-        (Format::Shapefile, Some(p)) => super::shapefile::read_shapefile_roads(p, settings),
-        (Format::OsmPbf, _) => super::osm::read_osm_roads(source, settings),
-        (Format::GeoPackage, _) => super::gpkg::read_gpkg_roads(source, settings),
-        _ => read_geojson_roads(source, settings),
-    }
-}
-
-/// Reads a GeoJSON road layer (RFC 7946 FeatureCollection of LineString / MultiLineString).
-pub fn read_geojson_roads(
-    source: &Source,
-    settings: &RoadSettings,
-) -> Result<LineLayer, IngestError> {
-    settings.validate()?;
-    let path = source.display_path();
-    let mut reader = source.open()?;
-    let wanted = settings.wanted_fields();
-    let mut layer = LineLayer::default();
-    let mut first_keys: Vec<String> = Vec::new();
-    let mut seen: std::collections::BTreeSet<String> = Default::default();
-    let info = read_collection(&mut reader, &wanted, |index, mut f| {
-        if index == 0 {
-            first_keys = std::mem::take(&mut f.keys);
-        }
-        for (k, _) in &f.props {
-            if !seen.contains(k) {
-                seen.insert(k.clone());
-            }
-        }
-        add_feature(&mut layer, &path, settings, index, f)
-    })
-    .map_err(|e| IngestError::from_read(&path, e))?;
-    let crs = match &settings.crs {
-        Some(c) => Crs::from_user(c).map_err(|message| IngestError::Crs {
-            path: path.clone(),
-            message,
-        })?,
-        None => super::crs::crs_member(&path, info.crs.as_ref())?,
-    };
-    let (sha256, bytes) =
-        super::source::HashingReader::finish_buffered(reader).map_err(|source| {
-            IngestError::Io {
-                path: path.clone(),
-                source,
-            }
-        })?;
-    layer.stats.features_read = info.features;
-    layer.input = Some(InputRecord {
-        role: "roads".into(),
-        path: path.display().to_string(),
-        bytes,
-        sha256,
-        deleted_records: 0,
-    });
-    check_empty(&layer, &path, info.features)?;
-    check_fields(&path, settings, &seen, &first_keys)?;
-    finish_coordinates(&mut layer, &path, &crs)?;
-    Ok(layer)
-}
-
-/// Fails when a field the user named explicitly appears in no feature, listing the fields the first
-/// feature has.
-fn check_fields(
-    path: &Path,
-    settings: &RoadSettings,
-    seen: &std::collections::BTreeSet<String>,
-    first_keys: &[String],
-) -> Result<(), IngestError> {
-    let mut named: Vec<&String> = Vec::new();
-    if settings.damage.field != "damage" && settings.category_field.is_none() {
-        named.push(&settings.damage.field);
-    }
-    named.extend(settings.id_field.iter());
-    named.extend(settings.category_field.iter());
-    named.extend(settings.cost_table.class_field.iter());
-    named.extend(settings.filters.iter().map(|f| &f.field));
-    named.extend(settings.structure_field.iter());
-    match named.into_iter().find(|n| !seen.contains(*n)) {
-        Some(missing) => Err(IngestError::Feature {
-            path: path.to_path_buf(),
-            feature: 0,
-            field: Some(missing.clone()),
-            message: format!(
-                "no feature has this property; the first feature's properties are: {}",
-                if first_keys.is_empty() {
-                    "(none)".to_string()
-                } else {
-                    first_keys.join(", ")
-                }
-            ),
-        }),
-        None => Ok(()),
-    }
+    super::layers::read_layers(std::slice::from_ref(source), settings)
 }
 
 /// Fails when a layer holds no lines, saying what it held instead.

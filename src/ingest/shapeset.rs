@@ -9,6 +9,7 @@
 //! each record starts with a flag byte, `*` (0x2A) for a deleted record.
 
 use super::IngestError;
+use super::set_files::Member;
 use std::path::Path;
 
 fn refuse(path: &Path, message: String) -> IngestError {
@@ -30,11 +31,8 @@ pub struct TableScan {
 
 /// Scans a `.dbf` for deletion flags and keeps its bytes, so numeric and logical fields can be
 /// read as written.
-pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
-    let bytes = std::fs::read(dbf).map_err(|source| IngestError::Io {
-        path: dbf.to_path_buf(),
-        source,
-    })?;
+pub fn scan_table(table: &Member) -> Result<TableScan, IngestError> {
+    let (dbf, bytes) = (table.path.as_path(), table.bytes.clone());
     if bytes.len() < 32 {
         return Err(refuse(
             dbf,
@@ -81,7 +79,7 @@ pub fn scan_table(dbf: &Path) -> Result<TableScan, IngestError> {
         deleted,
         text: NumericText {
             dbf: dbf.to_path_buf(),
-            bytes: bytes.into(),
+            bytes,
             header,
             record,
             fields,
@@ -162,14 +160,9 @@ impl NumericText {
 
 /// Refuses a `.shx` whose record offsets or lengths disagree with the `.shp` record headers
 /// (shapes read through it would repeat or go missing); the message names the first record off.
-pub fn check_index(shp: &Path, shx: &Path) -> Result<(), IngestError> {
-    let read = |p: &Path| {
-        std::fs::read(p).map_err(|source| IngestError::Io {
-            path: p.to_path_buf(),
-            source,
-        })
-    };
-    let (s, x) = (read(shp)?, read(shx)?);
+pub fn check_index(shapes: &Member, index: &Member) -> Result<(), IngestError> {
+    let (shp, shx) = (shapes.path.as_path(), index.path.as_path());
+    let (s, x) = (&shapes.bytes[..], &index.bytes[..]);
     if x.len() < 100 || (x.len() - 100) % 8 != 0 {
         return Err(refuse(
             shx,
@@ -183,7 +176,7 @@ pub fn check_index(shp: &Path, shx: &Path) -> Result<(), IngestError> {
     let mut at = 100usize;
     for (i, entry) in x[100..].chunks_exact(8).enumerate() {
         let (offset, length) = (be(entry, 0) as i64 * 2, be(entry, 4) as i64 * 2);
-        let actual = (at + 8 <= s.len()).then(|| (at as i64, be(&s, at + 4) as i64 * 2));
+        let actual = (at + 8 <= s.len()).then(|| (at as i64, be(s, at + 4) as i64 * 2));
         if actual != Some((offset, length)) {
             let found = match actual {
                 Some((o, l)) => format!("the .shp has record {} at byte {o} ({l} bytes)", i + 1),
@@ -210,17 +203,17 @@ mod tests {
 
     #[test]
     fn reads_flags_and_refuses_a_short_table() {
-        let d = tempfile::tempdir().unwrap();
-        let p = d.path().join("t.dbf");
+        let table = |b: &[u8]| Member {
+            path: "t.dbf".into(),
+            bytes: b.into(),
+        };
         // Header of 33 bytes (32 + terminator), two 2-byte records: the second flagged deleted.
         let mut b = vec![0u8; 33];
         b[4] = 2;
         b[8] = 33;
         b[10] = 2;
         b.extend_from_slice(b" a*b");
-        std::fs::write(&p, &b).unwrap();
-        assert_eq!(scan_table(&p).unwrap().deleted, vec![false, true]);
-        std::fs::write(&p, &b[..35]).unwrap();
-        assert!(scan_table(&p).is_err());
+        assert_eq!(scan_table(&table(&b)).unwrap().deleted, vec![false, true]);
+        assert!(scan_table(&table(&b[..35])).is_err());
     }
 }

@@ -258,4 +258,27 @@ mod tests {
             Decoded::Empty
         );
     }
+
+    proptest::proptest! {
+        /// Random bytes, bytes after a valid header (any flags), and random bodies after a line
+        /// or multi-line type code in either byte order: decoded or refused, never a panic.
+        #[test]
+        fn random_bytes_never_panic(
+            body in proptest::collection::vec(proptest::num::u8::ANY, 0..600),
+            flags in proptest::num::u8::ANY,
+            code in proptest::sample::select(vec![2u32, 5, 1002, 1005, 2002, 3005, 7, 1]),
+            le in proptest::bool::ANY,
+        ) {
+            let _ = decode(&body);
+            let mut b = b"GP\x00".to_vec();
+            b.push(flags);
+            b.extend_from_slice(&4326i32.to_le_bytes());
+            b.extend_from_slice(&body);
+            let _ = decode(&b);
+            let mut w = vec![le as u8];
+            w.extend_from_slice(&if le { code.to_le_bytes() } else { code.to_be_bytes() });
+            w.extend_from_slice(&body);
+            let _ = decode(&blob(&w));
+        }
+    }
 }

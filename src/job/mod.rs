@@ -48,6 +48,8 @@ pub const MAX_ATTACH_LIMIT_M: f64 = 10_000.0;
 pub struct PlanJob {
     /// The road centerline layer.
     pub roads: Source,
+    /// Further road layers, read into the same network (`--roads` given more than once).
+    pub more_roads: Vec<Source>,
     /// The critical sites, when the plan should join sites rather than the whole network.
     pub sites: Option<Source>,
     /// Output folder.
@@ -111,6 +113,13 @@ pub struct PlanJob {
 struct Checked(());
 
 impl PlanJob {
+    /// Every road layer, the first one first.
+    pub fn road_layers(&self) -> Vec<Source> {
+        std::iter::once(self.roads.clone())
+            .chain(self.more_roads.iter().cloned())
+            .collect()
+    }
+
     /// True when any damage points are read (given now or in an earlier round).
     pub fn has_reports(&self) -> bool {
         self.reports.is_some() || !self.earlier_reports.is_empty()
@@ -119,6 +128,7 @@ impl PlanJob {
     /// Every file the run reads, for the output guard: layers, sidecars' folders and the cost table.
     pub fn input_paths(&self) -> Vec<export::guard::InputPath<'_>> {
         std::iter::once(&self.roads)
+            .chain(&self.more_roads)
             .chain(
                 [&self.sites, &self.zones, &self.reports]
                     .into_iter()

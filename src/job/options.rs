@@ -66,8 +66,10 @@ impl Default for RoadOptions {
 /// are `None` unless given, so that giving one without its input can be refused.
 #[derive(Debug, Clone)]
 pub struct Options {
-    /// `--roads`.
+    /// `--roads` (the first, when given more than once).
     pub roads: Source,
+    /// `--roads` given again: further road layers read into the same network.
+    pub more_roads: Vec<Source>,
     /// `--out`.
     pub out: PathBuf,
     /// `--force`.
@@ -138,6 +140,7 @@ impl Options {
     pub fn new(roads: Source, out: PathBuf) -> Options {
         Options {
             roads,
+            more_roads: Vec::new(),
             out,
             force: false,
             name: None,

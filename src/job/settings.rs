@@ -131,6 +131,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
     check_crs("--sites-crs", o.sites_crs.as_deref())?;
     let job = PlanJob {
         roads: o.roads.clone(),
+        more_roads: o.more_roads.clone(),
         sites: o.sites.clone(),
         out: o.out.clone(),
         force: o.force,
@@ -215,9 +216,11 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         (
             "--roads-layer",
             o.road.roads_layer.is_some(),
-            crate::ingest::reader::Format::of(&o.roads)
-                == crate::ingest::reader::Format::GeoPackage,
-            "only a GeoPackage road file (--roads FILE.gpkg) holds layers to choose from",
+            std::iter::once(&o.roads)
+                .chain(&o.more_roads)
+                .any(|r| crate::ingest::reader::Format::of(r).has_layers()),
+            "only a GeoPackage or zipped Shapefile road file (--roads FILE.gpkg or FILE.zip) \
+             holds layers to choose from",
         ),
         (
             "--site-tags",

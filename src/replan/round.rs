@@ -47,6 +47,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     let mut o = Options::new(Source::File(PathBuf::new()), req.out.clone());
     restore::settings(&prev, &mut o)?;
     let mut had_roads = false;
+    let mut roads_seen = false;
     let had_sites = prev.inputs.iter().any(|i| i.role == "sites");
     for rec in &prev.inputs {
         let anew = match rec.role.as_str() {
@@ -67,7 +68,12 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         }
         let src = restore::input(&prev, rec)?;
         match rec.role.as_str() {
-            "roads" => o.roads = src,
+            // The first roads input recorded is the first layer; any more are the others.
+            "roads" if !roads_seen => {
+                roads_seen = true;
+                o.roads = src
+            }
+            "roads" => o.more_roads.push(src),
             "damage zones" => o.damage_zones = Some(src),
             "sites" => o.sites = Some(src),
             "damage reports" => o.earlier_damage_points.push(src),
@@ -79,6 +85,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     }
     if let Some(r) = &req.roads {
         o.roads = r.clone();
+        o.more_roads.clear();
     }
     o.damage_zones = req.damage_zones.clone().or(o.damage_zones);
     o.damage_points = req.damage_points.clone();

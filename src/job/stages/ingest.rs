@@ -1,7 +1,8 @@
 //! Stage 1, ingest: the road and site layers read, with the notes on the defaults they took.
 
 use crate::export::summary::Geodesy;
-use crate::ingest::roads::{LineLayer, ReadStats, read_roads};
+use crate::ingest::layers::read_layers;
+use crate::ingest::roads::{LineLayer, ReadStats};
 use crate::ingest::sites::{SiteLayer, read_sites};
 use crate::ingest::source::InputRecord;
 use crate::job::notes::{self, Notes};
@@ -38,7 +39,7 @@ pub(in crate::job) fn read(
 ) -> Result<Read, JobError> {
     let roads = {
         let _s = progress.stage("reading roads");
-        read_roads(&job.roads, &job.road_settings)?
+        read_layers(&job.road_layers(), &job.road_settings)?
     };
     let sites = match &job.sites {
         Some(src) => {
@@ -73,8 +74,17 @@ pub(in crate::job) fn read(
             length_unit: "metre",
             note: roads.crs_note.clone(),
         },
-        inputs: roads.input.clone().into_iter().collect(),
-        osm: roads.osm_fields || crate::ingest::attribution::osm_file(&job.roads),
+        inputs: roads
+            .input
+            .iter()
+            .chain(&roads.more_inputs)
+            .cloned()
+            .collect(),
+        osm: roads.osm_fields
+            || job
+                .road_layers()
+                .iter()
+                .any(crate::ingest::attribution::osm_file),
     };
     Ok(Read {
         roads,
