@@ -185,34 +185,46 @@ impl Placed<'_> {
         {
             return (0.0, from_site(t), t);
         }
-        // Apart: the nearest pair is a ring vertex and its foot on a–b, or an end of a–b and its
-        // foot on a ring edge. Found in the plane, measured on the ellipsoid.
-        let mut best: Option<(f64, f64, [f64; 2])> = None;
-        let mut keep = |planar: f64, t: f64, on_outline: [f64; 2]| {
-            if best.is_none_or(|(d, _, _)| planar < d) {
-                best = Some((planar, t, on_outline));
-            }
-        };
-        let lonlat = self.outline.polygons.iter().flatten();
-        for (rs, ring_ll) in self.xy.iter().flatten().zip(lonlat) {
-            for (k, q) in rs.iter().enumerate() {
+        // Apart: the nearest pairs are ring vertices and their feet on a–b, or ends of a–b and
+        // their feet on ring edges, found in the plane. Where several tie (an edge parallel to
+        // the road), the stretch of a–b they span is cut at the foot of the site's point, so the
+        // answer does not depend on the order or direction of the rings.
+        let mut pairs: Vec<(f64, f64)> = Vec::new();
+        for rs in self.xy.iter().flatten() {
+            for q in rs {
                 let t = foot_t(*q, pa, pb);
                 let p = at(t);
-                keep((p[0] - q[0]).hypot(p[1] - q[1]), t, ring_ll[k]);
+                pairs.push(((p[0] - q[0]).hypot(p[1] - q[1]), t));
             }
-            for (k, w) in rs.windows(2).enumerate() {
+            for w in rs.windows(2) {
                 for (t, p) in [(0.0, pa), (1.0, pb)] {
-                    let s = foot_t(p, w[0], w[1]);
-                    let q = [
-                        w[0][0] + s * (w[1][0] - w[0][0]),
-                        w[0][1] + s * (w[1][1] - w[0][1]),
-                    ];
-                    let on = lerp(ring_ll[k], ring_ll[k + 1], s);
-                    keep((p[0] - q[0]).hypot(p[1] - q[1]), t, on);
+                    let q = along(w[0], w[1], foot_t(p, w[0], w[1]));
+                    pairs.push(((p[0] - q[0]).hypot(p[1] - q[1]), t));
                 }
             }
         }
-        let (_, t, q) = best.expect("a checked outline has positions");
+        let least = pairs.iter().map(|p| p.0).fold(f64::INFINITY, f64::min);
+        let tied = |d: f64| d <= least + 1e-6 + 1e-9 * least;
+        let (lo, hi) = pairs
+            .iter()
+            .filter(|p| tied(p.0))
+            .fold((1.0f64, 0.0f64), |(lo, hi), p| (lo.min(p.1), hi.max(p.1)));
+        let t = foot.clamp(lo, hi.max(lo));
+        // The outline's point nearest the attachment point, measured on the ellipsoid.
+        let p = at(t);
+        let mut near: Option<(f64, [f64; 2])> = None;
+        let lonlat = self.outline.polygons.iter().flatten();
+        for (rs, ring_ll) in self.xy.iter().flatten().zip(lonlat) {
+            for (k, w) in rs.windows(2).enumerate() {
+                let s = foot_t(p, w[0], w[1]);
+                let q = along(w[0], w[1], s);
+                let d = (p[0] - q[0]).hypot(p[1] - q[1]);
+                if near.is_none_or(|(nd, _)| d < nd) {
+                    near = Some((d, lerp(ring_ll[k], ring_ll[k + 1], s)));
+                }
+            }
+        }
+        let q = near.expect("a checked outline has edges").1;
         (distance_m(lerp(a, b, t), q), from_site(t), t)
     }
 
@@ -253,6 +265,11 @@ fn to_geo(rings: &[Vec<[f64; 2]>]) -> geo::Polygon<f64> {
         )
     };
     geo::Polygon::new(ls(&rings[0]), rings[1..].iter().map(ls).collect())
+}
+
+/// The point at fraction `s` along a–b, in the plane.
+fn along(a: [f64; 2], b: [f64; 2], s: f64) -> [f64; 2] {
+    [a[0] + s * (b[0] - a[0]), a[1] + s * (b[1] - a[1])]
 }
 
 /// Fraction along a–b of its point nearest `p`, in the plane.
