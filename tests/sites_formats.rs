@@ -26,7 +26,10 @@ fn rect(x0: f64, y0: f64, x1: f64, y1: f64) -> Vec<[f64; 2]> {
 }
 
 /// Polygon sites (id, polygons of rings in metres) and where each lies.
-fn polygon_sites() -> Vec<(&'static str, Vec<Vec<Vec<[f64; 2]>>>)> {
+/// Polygons of rings of positions.
+type Polygons = Vec<Vec<Vec<[f64; 2]>>>;
+
+fn polygon_sites() -> Vec<(&'static str, Polygons)> {
     vec![
         // Crossed by the east–west road: distance 0.
         ("crossed", vec![vec![rect(80.0, -20.0, 120.0, 20.0)]]),
