@@ -122,9 +122,12 @@ pub fn sites_geojson(data: &[u8]) {
 
 /// Damage zones (GeoJSON polygons), applied to a small fixed network.
 pub fn zones(data: &[u8]) {
-    let Ok(zl) =
-        crate::ingest::zones::read_zones(&memory("zones.geojson", data), &Default::default(), None)
-    else {
+    let Ok(zl) = crate::ingest::zones::read_zones(
+        &memory("zones.geojson", data),
+        &Default::default(),
+        None,
+        None,
+    ) else {
         return;
     };
     let roads = br#"{"type":"FeatureCollection","features":[

@@ -330,6 +330,172 @@ case!(zip_bomb_inflates_beyond_its_header, |d| {
             "lanes.shp",
             "corrupt",
             "larger than its declared",
+// ---- Sites drawn as polygons ----
+
+/// A sites layer of one Polygon with the given ring (JSON positions).
+fn polygon_sites(d: &Path, ring: &str) -> std::path::PathBuf {
+    file(
+        d,
+        "sites.geojson",
+        fc(&[&format!(
+            r#"{{"type":"Feature","properties":{{"site_id":"h"}},"geometry":{{"type":"Polygon","coordinates":[{ring}]}}}}"#
+        )]),
+    )
+}
+
+case!(polygon_site_without_area, |d| {
+    // Every position on one line: no inside to place the site in, no outline to measure from.
+    let p = polygon_sites(d, "[[0,0.0001],[0.0005,0.0001],[0.001,0.0001],[0,0.0001]]");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.geojson",
+            "feature 0",
+            "field \"geometry\"",
+            "has no area",
+        ],
+    );
+});
+
+case!(polygon_site_ring_not_closed, |d| {
+    let p = polygon_sites(d, "[[0,0.0001],[0.0005,0.0001],[0.0005,0.0003],[0,0.0003]]");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.geojson",
+            "feature 0",
+            "ring 0 is not closed",
+            "RFC 7946",
+        ],
+    );
+});
+
+case!(polygon_site_crossing_itself, |d| {
+    // A bow tie: its ring crosses itself, so it has no one inside.
+    let p = polygon_sites(
+        d,
+        "[[0,0.0001],[0.0005,0.0003],[0.0005,0.0001],[0,0.0003],[0,0.0001]]",
+    );
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.geojson",
+            "feature 0",
+            "is not valid",
+            "give the site as a Point",
+        ],
+    );
+});
+
+// ---- CSV sites ----
+
+case!(csv_sites_row_with_another_separator, |d| {
+    let p = file(d, "sites.csv", "site_id;lon;lat\na;0;0\nb,0.001,0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.csv",
+            "line 3 has 1 field(s) where the header has 3",
+            "semicolon",
+        ],
+    );
+});
+
+case!(csv_sites_row_with_a_missing_field, |d| {
+    let p = file(d, "sites.csv", "site_id,lon,lat\na,0,0\nb,0.001\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &["sites.csv", "line 3 has 2 field(s) where the header has 3"],
+    );
+});
+
+case!(csv_sites_header_with_two_separators, |d| {
+    let p = file(d, "sites.csv", "site_id,lon;lat\na,0;0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.csv",
+            "line 1",
+            "several separators (comma, semicolon)",
+            "--sites-delimiter",
+        ],
+    );
+});
+
+case!(csv_sites_number_with_point_and_comma, |d| {
+    // "1.000,5" may be a thousands point and a decimal comma, or a slip: refused, not guessed.
+    let p = file(d, "sites.csv", "site_id;lon;lat\na;0;0\nb;1.000,5;0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.csv",
+            "feature 1",
+            "field \"lon\"",
+            "line 3",
+            "both a point and a comma",
+        ],
+    );
+});
+
+case!(csv_sites_decimal_comma_between_commas, |d| {
+    let p = file(d, "sites.csv", "site_id,lon,lat\na,\"0,0005\",0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "sites.csv",
+            "field \"lon\"",
+            "decimal comma is read only in files separated by a semicolon or a tab",
+        ],
+    );
+});
+
+case!(sites_delimiter_not_known, |d| {
+    let p = file(d, "sites.csv", "site_id|lon|lat\na|0|0\n");
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p), "--sites-delimiter", "|"],
+        &["--sites-delimiter", "not a CSV separator"],
+    );
+});
+
+// ---- GeoPackage sites and zones ----
+
+/// A GeoPackage of one layer `sites` (srs 4326) holding one feature with the given WKB geometry.
+fn gpkg_layer(d: &Path, name: &str, kind: &str, wkb: &[u8]) -> std::path::PathBuf {
+    let sql = format!(
+        "{GEOMETRY_COLUMNS}
+         INSERT INTO gpkg_geometry_columns VALUES ('sites', 'geom', '{kind}', 4326, 0, 0);
+         CREATE TABLE sites (fid INTEGER PRIMARY KEY, geom BLOB, site_id TEXT);
+         INSERT INTO sites VALUES (1, X'{}', 'h');",
+        blob(wkb)
+    );
+    gpkg(d, name, &sql)
+}
+
+case!(gpkg_sites_of_lines, |d| {
+    let mut wkb = vec![1u8];
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    wkb.extend_from_slice(&2u32.to_le_bytes());
+    for v in [0.0f64, 0.0001, 0.001, 0.0001] {
+        wkb.extend_from_slice(&v.to_le_bytes());
+    }
+    let p = gpkg_layer(d, "lines.gpkg", "LINESTRING", &wkb);
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "lines.gpkg",
+            "feature 0",
+            "field \"geometry\"",
+            "found LineString",
         ],
     );
 });
@@ -337,4 +503,95 @@ case!(zip_bomb_inflates_beyond_its_header, |d| {
 case!(same_road_layer_twice, |d| {
     let p = roads_ok(d);
     plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
+case!(gpkg_site_with_empty_geometry, |d| {
+    // The header's empty flag (GeoPackage 1.3 §2.1.3): a site that is nowhere is refused.
+    let sql = format!(
+        "{GEOMETRY_COLUMNS}
+         INSERT INTO gpkg_geometry_columns VALUES ('sites', 'geom', 'POINT', 4326, 0, 0);
+         CREATE TABLE sites (fid INTEGER PRIMARY KEY, geom BLOB, site_id TEXT);
+         INSERT INTO sites VALUES (1, X'4750001100000000', 'h');"
+    );
+    let p = gpkg(d, "empty.gpkg", &sql);
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "empty.gpkg",
+            "1 feature(s) of the sites layer have an empty geometry",
+        ],
+    );
+});
+
+case!(gpkg_sites_layer_not_there, |d| {
+    let bytes = std::fs::read(data("gpkg/streets.gpkg")).unwrap();
+    let p = file(d, "county.gpkg", bytes);
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p), "--sites-layer", "hospitals"],
+        &["county.gpkg", "no layer \"hospitals\"", "schools, streets"],
+    );
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&p)],
+        &[
+            "county.gpkg",
+            "several layers (schools, streets)",
+            "--sites-layer",
+        ],
+    );
+});
+
+case!(gpkg_sites_and_zones_without_geometry_column, |d| {
+    let p = gpkg(
+        d,
+        "table.gpkg",
+        "CREATE TABLE sites (fid INTEGER PRIMARY KEY, name TEXT);",
+    );
+    for flag in ["--sites", "--damage-zones"] {
+        plan_fails(
+            &roads_ok(d),
+            &[flag, &s(&p)],
+            &["table.gpkg", "not a GeoPackage with a geometry column"],
+        );
+    }
+});
+
+case!(gpkg_zones_of_points, |d| {
+    let mut wkb = vec![1u8];
+    wkb.extend_from_slice(&1u32.to_le_bytes());
+    for v in [0.0005f64, 0.0] {
+        wkb.extend_from_slice(&v.to_le_bytes());
+    }
+    let p = gpkg_layer(d, "points.gpkg", "POINT", &wkb);
+    plan_fails(
+        &roads_ok(d),
+        &["--damage-zones", &s(&p)],
+        &[
+            "points.gpkg",
+            "feature 0",
+            "damage zones must be Polygons, found Point",
+        ],
+    );
+});
+
+case!(layer_and_separator_options_without_their_input, |d| {
+    let sites = s(&file(
+        d,
+        "sites.geojson",
+        fc(&[&site_feature("a", 0.0, 0.0)]),
+    ));
+    let zones = s(&file(d, "zones.geojson", fc(&[])));
+    for (extra, needle) in [
+        (["--sites", &sites, "--sites-layer", "x"], "--sites-layer"),
+        (
+            ["--sites", &sites, "--sites-delimiter", ";"],
+            "--sites-delimiter",
+        ),
+        (
+            ["--damage-zones", &zones, "--zones-layer", "x"],
+            "--zones-layer",
+        ),
+    ] {
+        plan_fails(&roads_ok(d), &extra, &[needle]);
+    }
 });

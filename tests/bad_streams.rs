@@ -182,12 +182,17 @@ case!(archives_and_extracts_are_named, |d| {
 });
 
 case!(semicolon_separated_csv, |d| {
-    // RFC 4180 §2: fields are separated by commas.
-    let sites = file(d, "sites.csv", "site_id;lon;lat\na;0;0\n");
+    // RFC 4180 §2: fields are separated by commas. Sites are read with `;` and tabs too (told from
+    // the header line), but not with `|`; a manifest is comma-separated only.
+    let sites = file(d, "sites.csv", "site_id|lon|lat\na|0|0\n");
     plan_fails(
         &roads_ok(d),
         &["--sites", &s(&sites)],
-        &["sites.csv", "comma-separated", "';'"],
+        &[
+            "sites.csv",
+            "one column holding '|'",
+            "a semicolon or a tab",
+        ],
     );
     let m = file(d, "m.csv", "name;roads\nEastvane;roads.geojson\n");
     let out = d.join("out");

@@ -56,6 +56,9 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("lon_column", "\"x_lon\""),
     ("lat_column", "\"y_lat\""),
     ("sites_crs", "\"EPSG:4326\""),
+    ("sites_delimiter", "\"comma\""),
+    ("sites_layer", "\"hospitals\""),
+    ("zones_layer", "\"floods\""),
 ];
 
 fn example(key: &str) -> &'static str {
@@ -151,11 +154,17 @@ fn every_key_applies_alike_wherever_it_is_given() {
             "\"base.geojson\""
         }
     };
-    let sites_for = |key: &str| {
-        if key == "site_tags" {
-            "\"base.osm.pbf\""
+    let sites_for = |key: &str| match key {
+        "site_tags" => "\"base.osm.pbf\"",
+        "sites_layer" => "\"base.gpkg\"",
+        _ => "\"base.csv\"",
+    };
+    // `zones_layer` chooses among the layers of a GeoPackage.
+    let zones_for = |key: &str| {
+        if key == "zones_layer" {
+            "\"base-zones.gpkg\""
         } else {
-            "\"base.csv\""
+            "\"base-zones.geojson\""
         }
     };
     let lines = |skip: &str| -> String {
@@ -165,6 +174,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
             .map(|(k, v)| match *k {
                 "sites" => format!("{k} = {}\n", sites_for(skip)),
                 "roads" => format!("{k} = {}\n", roads_for(skip)),
+                "damage_zones" => format!("{k} = {}\n", zones_for(skip)),
                 _ => format!("{k} = {v}\n"),
             })
             .collect();
@@ -202,6 +212,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
                 cell(match *k {
                     "sites" => sites_for(key),
                     "roads" => roads_for(key),
+                    "damage_zones" => zones_for(key),
                     _ => v,
                 })
             })
@@ -290,7 +301,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
     };
     // Every key but those of a whole-network plan (backup links need a sites plan), the damage
     // field (the damage comes from `category_field` here), the site tags (for sites from an
-    // OpenStreetMap extract, tests/osm.rs) and the roads layer (GeoPackage, tests/gpkg.rs).
+    // OpenStreetMap extract, tests/osm.rs) and the layers of GeoPackages (tests/gpkg.rs,
+    // tests/sites_formats.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
@@ -301,6 +313,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
                 "damage_field",
                 "site_tags",
                 "roads_layer",
+                "sites_layer",
+                "zones_layer",
             ]
             .contains(k)
         })

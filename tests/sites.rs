@@ -40,6 +40,7 @@ fn site(i: usize, p: [f64; 2]) -> Site {
         name: None,
         priority: 1.0,
         pos: p,
+        outline: None,
         attributes: Default::default(),
     }
 }

@@ -113,6 +113,10 @@ pub const KEYS: &[Key] = &[
         j.zone_damage_field = Some(v.text()?);
         Ok(())
     }),
+    key("zones_layer", OptText, |j, v| {
+        j.zones_layer = v.opt_text()?;
+        Ok(())
+    }),
     key("zones_crs", OptText, |j, v| {
         j.zones_crs = v.opt_text()?;
         Ok(())
@@ -224,6 +228,14 @@ pub const KEYS: &[Key] = &[
     }),
     key("lat_column", OptText, |j, v| {
         j.lat_column = v.opt_text()?;
+        Ok(())
+    }),
+    key("sites_delimiter", OptText, |j, v| {
+        j.sites_delimiter = v.opt_text()?;
+        Ok(())
+    }),
+    key("sites_layer", OptText, |j, v| {
+        j.sites_layer = v.opt_text()?;
         Ok(())
     }),
     key("sites_crs", OptText, |j, v| {

@@ -115,6 +115,10 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub zones_crs: Option<String>,
 
+    /// The layer of a GeoPackage damage-zones file that holds several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub zones_layer: Option<String>,
+
     /// Field damage reports: GeoJSON points with a damage factor (or "closed") in
     /// --damage-points-field, each applied to the nearest road within --point-match-distance (the
     /// worst report wins).
@@ -193,6 +197,7 @@ impl PlanningArgs {
         o.damage_zones = self.damage_zones.clone().map(Source::File);
         o.zone_damage_field = self.zone_damage_field.clone();
         o.zones_crs = self.zones_crs.clone();
+        o.zones_layer = self.zones_layer.clone();
         o.damage_points = self.damage_points.clone().map(Source::File);
         o.damage_points_field = self.damage_points_field.clone();
         o.point_match_distance_m = self.point_match_distance;
@@ -221,7 +226,9 @@ pub enum EffortChoice {
 /// Critical sites and the plan that joins them.
 #[derive(Debug, Args)]
 pub struct SiteArgs {
-    /// Critical sites (hospitals, shelters, depots…): GeoJSON points, or CSV with lon/lat columns.
+    /// Critical sites (hospitals, shelters, depots…): points or polygons (a building outline,
+    /// attached at the road nearest to it) from GeoJSON, a Shapefile or a GeoPackage, or CSV with
+    /// lon/lat columns.
     /// With sites, the plan joins the sites only (a Steiner tree) instead of the whole network.
     #[arg(long, value_name = "FILE")]
     pub sites: Option<PathBuf>,
@@ -276,6 +283,15 @@ pub struct SiteArgs {
     #[arg(long, value_name = "EPSG:CODE")]
     pub sites_crs: Option<String>,
 
+    /// Field separator of a CSV sites file: `,` `;` or `tab` (default: told from the header
+    /// line). With `;` or tab a decimal comma is read (12,5).
+    #[arg(long, value_name = "SEPARATOR")]
+    pub sites_delimiter: Option<String>,
+
+    /// The layer of a GeoPackage sites file that holds several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub sites_layer: Option<String>,
+
     /// With --sites FILE.osm.pbf: tags choosing the sites, KEY=V1,V2 (repeatable; `*` any value).
     /// Default: amenity=hospital,clinic,school,fuel; healthcare=hospital,clinic;
     /// social_facility=shelter; emergency=assembly_point.
@@ -293,6 +309,8 @@ impl SiteArgs {
         o.lon_column = self.lon_column.clone();
         o.lat_column = self.lat_column.clone();
         o.sites_crs = self.sites_crs.clone();
+        o.sites_delimiter = self.sites_delimiter.clone();
+        o.sites_layer = self.sites_layer.clone();
         o.site_tags = self.site_tags.clone();
         o.max_attach_m = self.max_attach;
         o.hub = self.hub.clone();

@@ -66,35 +66,44 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
     for (si, site) in sites.iter().enumerate() {
         let p = site.pos;
         // Feet found in a frame at the site that wraps at ±180°; distances geodesic (true metres near
-        // the poles too).
+        // the poles too). A polygon site is measured from its outline (ties: nearest its point).
         let frame = Frame::at(p);
-        let (dlon, dlat) = wrap::reach_deg(max_attach_m, p[1].abs());
+        let placed = site.outline.as_ref().map(|o| o.placed(frame));
+        let reach = |a: [f64; 2], b: [f64; 2]| match &placed {
+            Some(o) => o.reach(a, b),
+            None => {
+                let (d, t) = frame.foot(a, b);
+                (d, 0.0, t)
+            }
+        };
+        let (lo, hi) = site.outline.as_ref().map_or((p, p), |o| o.bbox());
+        let (dlon, dlat) = wrap::reach_deg(max_attach_m, lo[1].abs().max(hi[1].abs()));
         let dlon = dlon.unwrap_or(360.0);
         let boxes = wrap::search_boxes(
-            [p[0] - dlon, p[1] - dlat],
-            [p[0] + dlon, p[1] + dlat],
+            [lo[0] - dlon, lo[1] - dlat],
+            [hi[0] + dlon, hi[1] + dlat],
             data_lon,
         );
-        let mut best: Option<(f64, u32, u32, f64)> = None;
+        let mut best: Option<(f64, f64, u32, u32, f64)> = None;
         let mut closed: Option<f64> = None;
         for s in boxes.iter().flat_map(|(lo, hi)| {
             tree.locate_in_envelope_intersecting(&AABB::from_corners(*lo, *hi))
         }) {
             let (e, k) = s.data;
-            let (d, t) = frame.foot(s.geom().from, s.geom().to);
+            let (d, tie, t) = reach(s.geom().from, s.geom().to);
             if d > max_attach_m {
                 continue;
             }
             if net.edges[e as usize].usable() {
-                if best.is_none_or(|(bd, be, bk, _)| (d, e, k) < (bd, be, bk)) {
-                    best = Some((d, e, k, t));
+                if best.is_none_or(|(bd, bt, be, bk, _)| (d, tie, e, k) < (bd, bt, be, bk)) {
+                    best = Some((d, tie, e, k, t));
                 }
             } else if closed.is_none_or(|c| d < c) {
                 closed = Some(d);
             }
         }
         match best {
-            Some((d, e, k, t)) => {
+            Some((d, _, e, k, t)) => {
                 cuts.entry(e).or_default().push(Cut {
                     seg: k as usize,
                     t,
@@ -114,7 +123,7 @@ pub fn attach_sites(net: &mut Network, sites: &[Site], max_attach_m: f64) -> Vec
                 let nearest = [0.0, -360.0, 360.0]
                     .into_iter()
                     .filter_map(|k| tree.nearest_neighbor(&[p[0] + k, p[1]]))
-                    .map(|s| frame.foot(s.geom().from, s.geom().to).0)
+                    .map(|s| reach(s.geom().from, s.geom().to).0)
                     .min_by(f64::total_cmp);
                 let failure = match closed {
                     Some(c) => format!(

@@ -39,6 +39,10 @@ pub struct GpkgSource {
     layer: Layer,
     /// The table's columns and whether each is part of the primary key.
     columns: Vec<(String, bool)>,
+    /// Every simple geometry decoded in GeoJSON's layout (sites, zones), not only lines (roads).
+    any_geometry: bool,
+    /// The input's role in summaries.
+    role: &'static str,
 }
 
 fn refuse(path: &Path, message: String) -> IngestError {
@@ -56,6 +60,19 @@ fn quote(name: &str) -> String {
 impl GpkgSource {
     /// Opens `source` and chooses its layer: `layer` by name, or the only one.
     pub fn open(source: &Source, layer: Option<&str>) -> Result<GpkgSource, IngestError> {
+        let mut s = Self::open_layer(source, layer, "--roads-layer", "roads")?;
+        s.any_geometry = false;
+        Ok(s)
+    }
+
+    /// Opens `source` as an input of another role (sites, zones): `flag` chooses among several
+    /// layers, and geometries of every simple type are decoded.
+    pub fn open_layer(
+        source: &Source,
+        layer: Option<&str>,
+        flag: &'static str,
+        role: &'static str,
+    ) -> Result<GpkgSource, IngestError> {
         let path = source.display_path();
         let Some(p) = source.path() else {
             return Err(refuse(
@@ -122,7 +139,7 @@ impl GpkgSource {
                     return Err(refuse(
                         &path,
                         format!(
-                            "holds several layers ({}); choose one with --roads-layer NAME",
+                            "holds several layers ({}); choose one with {flag} NAME",
                             names()
                         ),
                     ));
@@ -138,6 +155,8 @@ impl GpkgSource {
             conn,
             layer: chosen,
             columns,
+            any_geometry: true,
+            role,
         })
     }
 }
@@ -273,6 +292,15 @@ impl FeatureSource for GpkgSource {
                 if i == geom {
                     match v {
                         ValueRef::Null => {}
+                        ValueRef::Blob(b) if self.any_geometry => {
+                            match super::wkb::decode_feature(b).map_err(|m| fail(name, m))? {
+                                Some((kind, c)) => {
+                                    f.geometry_type = Some(kind.into());
+                                    f.coords = c;
+                                }
+                                None => f.geometry_type = Some("empty".into()),
+                            }
+                        }
                         ValueRef::Blob(b) => match decode(b).map_err(|m| fail(name, m))? {
                             Decoded::Lines(c) => {
                                 f.geometry_type = Some("MultiLineString".into());
@@ -321,7 +349,7 @@ impl FeatureSource for GpkgSource {
         Ok(SourceInfo {
             features: index,
             skipped,
-            input: super::osm::fingerprint(&self.source, "roads")?,
+            input: super::osm::fingerprint(&self.source, self.role)?,
             osm: false,
             features_cut_at_edge: 0,
         })

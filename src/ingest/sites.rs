@@ -1,7 +1,9 @@
 //! Critical sites (hospitals, shelters, depots, water plants): points from GeoJSON or CSV.
 
 use super::IngestError;
+use super::coords::Coords;
 use super::geojson::{ReadFailure, read_collection};
+use super::outline::Outline;
 use super::source::{HashingReader, InputRecord, Source};
 use serde_json::{Map, Value};
 use std::collections::HashMap;
@@ -38,6 +40,10 @@ pub struct SiteSettings {
     pub lat_column: Option<String>,
     /// The layer's CRS as `EPSG:NNNN` (default: the Shapefile's .prj, or WGS84 lon/lat).
     pub crs: Option<String>,
+    /// CSV field separator (`--sites-delimiter`); default: told from the header line.
+    pub delimiter: Option<u8>,
+    /// The layer of a GeoPackage holding several (`--sites-layer`).
+    pub layer: Option<String>,
     /// Tags choosing the sites of an OpenStreetMap extract (`--site-tags`); empty: the default set
     /// ([`super::osm_sites::DEFAULT_SITE_TAGS`]).
     pub osm_tags: Vec<super::cost_table::RoadFilter>,
@@ -54,8 +60,10 @@ pub struct Site {
     pub name: Option<String>,
     /// Priority: higher sites matter more (default 1).
     pub priority: f64,
-    /// Position, lon/lat WGS84.
+    /// Position, lon/lat WGS84 (for a polygon site, a point inside it: [`Outline::check`]).
     pub pos: [f64; 2],
+    /// The outline of a site drawn as a polygon, lon/lat; it attaches at the road nearest to it.
+    pub outline: Option<Outline>,
     /// All attributes of the input feature or row, carried through to the outputs.
     pub attributes: Map<String, Value>,
 }
@@ -110,12 +118,16 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     if ext.as_deref() == Some("shp") {
         return read_shapefile_sites(&path, settings);
     }
-    if super::reader::Format::of(source) == super::reader::Format::OsmPbf {
-        return super::osm_sites::read_osm_sites(source, settings);
+    match super::reader::Format::of(source) {
+        super::reader::Format::OsmPbf => return super::osm_sites::read_osm_sites(source, settings),
+        super::reader::Format::GeoPackage => {
+            return super::layered::read_gpkg_sites(source, settings);
+        }
+        _ => {}
     }
     let mut reader = source.open()?;
     let (mut sites, defaults) = match ext.as_deref() {
-        Some("csv") | Some("txt") => read_csv(&mut reader, &path, settings)?,
+        Some("csv") | Some("txt") => super::sites_csv::read_csv(&mut reader, &path, settings)?,
         _ => read_geojson(&mut reader, &path, settings)?,
     };
     let (sha256, bytes) =
@@ -132,8 +144,16 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     } else {
         for s in &sites {
             check_lonlat(&path, s.index, s.pos)?;
+            for p in s
+                .outline
+                .iter()
+                .flat_map(|o| o.polygons.iter().flatten().flatten())
+            {
+                check_lonlat(&path, s.index, *p)?;
+            }
         }
     }
+    finish_outlines(&path, &mut sites)?;
     check_unique(&path, &sites)?;
     Ok(SiteLayer {
         sites,
@@ -148,7 +168,12 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     })
 }
 
-fn feature_err(path: &Path, feature: usize, field: Option<&str>, message: String) -> IngestError {
+pub(super) fn feature_err(
+    path: &Path,
+    feature: usize,
+    field: Option<&str>,
+    message: String,
+) -> IngestError {
     IngestError::Feature {
         path: path.to_path_buf(),
         feature,
@@ -166,35 +191,11 @@ fn read_geojson<R: std::io::Read>(
     let mut defaults = SiteDefaults::default();
     // Keep every property: sites are few, and their attributes go to the outputs.
     read_collection_all(reader, |index, f, props| {
-        match f.geometry_type.as_deref() {
-            Some("Point") if f.coords.height == 1 => {}
-            Some(other) => {
-                return Err(feature_err(
-                    path,
-                    index,
-                    Some("geometry"),
-                    format!("sites must be Points, found {other}"),
-                ));
-            }
-            None => {
-                return Err(feature_err(
-                    path,
-                    index,
-                    Some("geometry"),
-                    "the site has no geometry".into(),
-                ));
-            }
-        }
-        let pos = f.coords.pos[0];
-        sites.push(make_site(
-            path,
-            index,
-            pos,
-            props,
-            f.id.as_ref(),
-            s,
-            &mut defaults,
-        )?);
+        let (pos, outline) = site_shape(f.geometry_type.as_deref(), &f.coords)
+            .map_err(|m| feature_err(path, index, Some("geometry"), m))?;
+        let mut site = make_site(path, index, pos, props, f.id.as_ref(), s, &mut defaults)?;
+        site.outline = outline;
+        sites.push(site);
         Ok(())
     })
     .map_err(|e| IngestError::from_read(path, e))?;
@@ -216,105 +217,6 @@ where
         },
     )
     .map(|_| ())
-}
-
-/// The separator of a header that is one column holding `;`, a tab or `|` (a CSV written with a
-/// separator other than the comma), if any.
-pub(crate) fn other_separator(headers: &csv::StringRecord) -> Option<char> {
-    if headers.len() != 1 {
-        return None;
-    }
-    [';', '\t', '|']
-        .into_iter()
-        .find(|c| headers[0].contains(*c))
-}
-
-fn read_csv<R: std::io::Read>(
-    reader: R,
-    path: &Path,
-    s: &SiteSettings,
-) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
-    let mut defaults = SiteDefaults::default();
-    let mut rdr =
-        csv::ReaderBuilder::new()
-            .flexible(false)
-            .from_reader(super::limits::LineLimit::new(
-                reader,
-                super::limits::MAX_CSV_ROW,
-            ));
-    let csv_err = |e: csv::Error| {
-        let line = e.position().map(|p| p.line()).unwrap_or(0);
-        // Not `Syntax`, whose message says GeoJSON.
-        IngestError::Io {
-            path: path.to_path_buf(),
-            source: std::io::Error::other(format!("not valid CSV at line {line}: {e}")),
-        }
-    };
-    let headers = rdr.headers().map_err(csv_err)?.clone();
-    let find =
-        |given: &Option<String>, defaults: &[&str], what: &str| -> Result<usize, IngestError> {
-            let names: Vec<&str> = match given {
-                Some(g) => vec![g.as_str()],
-                None => defaults.to_vec(),
-            };
-            names
-                .iter()
-                .find_map(|n| headers.iter().position(|h| h.trim() == *n))
-                .ok_or_else(|| IngestError::Feature {
-                    path: path.to_path_buf(),
-                    feature: 0,
-                    field: Some(names.join("|")),
-                    message: format!(
-                        "no {what} column; the columns are: {}",
-                        headers.iter().collect::<Vec<_>>().join(", ")
-                    ),
-                })
-        };
-    if let Some(sep) = other_separator(&headers) {
-        return Err(IngestError::Io {
-            path: path.to_path_buf(),
-            source: std::io::Error::other(format!(
-                "not comma-separated CSV: the header is one column holding {sep:?}; \
-                 reknit reads comma-separated CSV (RFC 4180): save it again with commas, or convert it, \
-                 e.g. ogr2ogr -f CSV -lco SEPARATOR=COMMA out.csv in.csv"
-            )),
-        });
-    }
-    let lon_i = find(&s.lon_column, LON_COLUMNS, "longitude")?;
-    let lat_i = find(&s.lat_column, LAT_COLUMNS, "latitude")?;
-    let mut sites = Vec::new();
-    for (index, rec) in rdr.records().enumerate() {
-        let rec = rec.map_err(csv_err)?;
-        let num = |i: usize| -> Result<f64, IngestError> {
-            let v = rec.get(i).unwrap_or("").trim();
-            v.parse::<f64>()
-                .ok()
-                .filter(|x| x.is_finite())
-                .ok_or_else(|| {
-                    feature_err(
-                        path,
-                        index,
-                        Some(&headers[i]),
-                        format!("{v:?} is not a number"),
-                    )
-                })
-        };
-        let pos = [num(lon_i)?, num(lat_i)?];
-        let mut attributes = Map::new();
-        for (h, v) in headers.iter().zip(rec.iter()) {
-            attributes.insert(h.to_string(), super::value::cell(v));
-        }
-        sites.push(make_site(
-            path,
-            index,
-            pos,
-            attributes,
-            None,
-            s,
-            &mut defaults,
-        )?);
-    }
-    Ok((sites, defaults))
 }
 
 /// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
@@ -351,6 +253,7 @@ pub(super) fn make_site(
         name: attributes.get(name_field).and_then(text),
         priority: priority(path, index, &attributes, s)?,
         pos,
+        outline: None,
         attributes,
     })
 }
@@ -400,7 +303,7 @@ fn priority(
     }
 }
 
-fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(), IngestError> {
+pub(super) fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(), IngestError> {
     if p[0].is_finite() && p[1].is_finite() && p[0].abs() <= 180.0 && p[1].abs() <= 90.0 {
         Ok(())
     } else {
@@ -416,7 +319,7 @@ fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(), IngestErro
     }
 }
 
-fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
+pub(super) fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
     let mut seen: HashMap<&str, usize> = HashMap::new();
     for s in sites {
         if let Some(first) = seen.insert(&s.id, s.index) {
@@ -434,22 +337,92 @@ fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
     Ok(())
 }
 
-/// Converts site positions from `crs` to WGS84 longitude/latitude.
-fn convert(path: &Path, crs: &super::crs::Crs, sites: &mut [Site]) -> Result<(), IngestError> {
+/// Converts site positions and outlines from `crs` to WGS84 longitude/latitude.
+pub(super) fn convert(
+    path: &Path,
+    crs: &super::crs::Crs,
+    sites: &mut [Site],
+) -> Result<(), IngestError> {
     for s in sites.iter_mut() {
-        s.pos = crs.to_lonlat(s.pos).ok_or_else(|| {
-            feature_err(
-                path,
-                s.index,
-                Some("geometry"),
-                format!(
-                    "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
-                    s.pos[0], s.pos[1], crs.name
-                ),
-            )
-        })?;
+        let mut points: Vec<&mut [f64; 2]> = vec![&mut s.pos];
+        points.extend(s.outline.iter_mut().flat_map(|o| o.positions_mut()));
+        for p in points {
+            convert_one(path, crs, s.index, p)?;
+        }
     }
     Ok(())
+}
+
+fn convert_one(
+    path: &Path,
+    crs: &super::crs::Crs,
+    index: usize,
+    pos: &mut [f64; 2],
+) -> Result<(), IngestError> {
+    *pos = crs.to_lonlat(*pos).ok_or_else(|| {
+        feature_err(
+            path,
+            index,
+            Some("geometry"),
+            format!(
+                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
+                pos[0], pos[1], crs.name
+            ),
+        )
+    })?;
+    Ok(())
+}
+
+/// Checks every polygon site's outline (in lon/lat) and places the site at its point inside.
+pub(super) fn finish_outlines(path: &Path, sites: &mut [Site]) -> Result<(), IngestError> {
+    for s in sites.iter_mut() {
+        if let Some(o) = &mut s.outline {
+            s.pos = o
+                .check()
+                .map_err(|m| feature_err(path, s.index, Some("geometry"), m))?;
+        }
+    }
+    Ok(())
+}
+
+/// A site's point, or its outline, from a feature's geometry in GeoJSON's layout (the GeoJSON
+/// and GeoPackage readers give it so); the outline's first position stands in for the point
+/// until [`finish_outlines`] places it.
+pub(super) fn site_shape(
+    kind: Option<&str>,
+    c: &Coords,
+) -> Result<([f64; 2], Option<Outline>), String> {
+    let rings = |from: usize, to: usize| -> Vec<Vec<[f64; 2]>> {
+        (from..to)
+            .map(|r| {
+                let start = if r == 0 { 0 } else { c.parts[r - 1] };
+                c.pos[start..c.parts[r]].to_vec()
+            })
+            .collect()
+    };
+    let polygons = match (kind, c.height) {
+        (Some("Point"), 1) => return Ok((c.pos[0], None)),
+        (Some(k), 0) => return Err(format!("the site's {k} is empty")),
+        (Some("Polygon"), 3) => vec![rings(0, c.parts.len())],
+        (Some("MultiPolygon"), 4) => {
+            let mut start = 0;
+            c.groups
+                .iter()
+                .map(|&end| {
+                    let p = rings(start, end);
+                    start = end;
+                    p
+                })
+                .collect()
+        }
+        (Some(other), _) => {
+            return Err(format!(
+                "sites must be Points, Polygons or MultiPolygons, found {other}"
+            ));
+        }
+        (None, _) => return Err("the site has no geometry".into()),
+    };
+    Ok((c.pos[0], Some(Outline { polygons })))
 }
 
 /// Sites from a point Shapefile, in the CRS of its `.prj` (or `--sites-crs`).
@@ -463,16 +436,28 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     for (index, item) in reader.records() {
         let (shape, record) =
             item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
-        let pos = match shape {
-            Shape::Point(p) => [p.x, p.y],
-            Shape::PointM(p) => [p.x, p.y],
-            Shape::PointZ(p) => [p.x, p.y],
+        let (pos, outline) = match shape {
+            Shape::Point(p) => ([p.x, p.y], None),
+            Shape::PointM(p) => ([p.x, p.y], None),
+            Shape::PointZ(p) => ([p.x, p.y], None),
+            Shape::Polygon(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+            }
+            Shape::PolygonM(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+            }
+            Shape::PolygonZ(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+            }
             other => {
                 return Err(feature_err(
                     path,
                     index,
                     Some("geometry"),
-                    format!("sites must be Points, found {}", other.shapetype()),
+                    format!(
+                        "sites must be Points or Polygons, found {}",
+                        other.shapetype()
+                    ),
                 ));
             }
         };
@@ -481,17 +466,12 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
             let value = numbers.value(index, &k, &v)?;
             attributes.insert(k, value);
         }
-        sites.push(make_site(
-            path,
-            index,
-            pos,
-            attributes,
-            None,
-            s,
-            &mut defaults,
-        )?);
+        let mut site = make_site(path, index, pos, attributes, None, s, &mut defaults)?;
+        site.outline = outline;
+        sites.push(site);
     }
     convert(path, &crs, &mut sites)?;
+    finish_outlines(path, &mut sites)?;
     check_unique(path, &sites)?;
     Ok(SiteLayer {
         sites,
@@ -501,4 +481,23 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
         },
         defaults,
     })
+}
+
+/// The outline of a Shapefile polygon: each outer ring starts a polygon, the holes after it
+/// belong to it (as for damage zones).
+fn shapefile_outline(rings: Vec<(bool, Vec<[f64; 2]>)>) -> ([f64; 2], Option<Outline>) {
+    let mut polygons: Vec<Vec<Vec<[f64; 2]>>> = Vec::new();
+    for (outer, ring) in rings {
+        match polygons.last_mut() {
+            Some(p) if !outer => p.push(ring),
+            _ => polygons.push(vec![ring]),
+        }
+    }
+    let first = polygons
+        .first()
+        .and_then(|p| p.first())
+        .and_then(|r| r.first())
+        .copied()
+        .unwrap_or([0.0, 0.0]);
+    (first, Some(Outline { polygons }))
 }

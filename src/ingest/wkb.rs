@@ -121,6 +121,120 @@ pub fn decode(blob: &[u8]) -> Result<Decoded, String> {
     Ok(Decoded::Lines(coords))
 }
 
+/// Decodes a GeoPackage geometry blob of any simple type into GeoJSON's layout (the type's name
+/// and its coordinates as [`super::coords`] nests them), for layers of points and polygons;
+/// `None` for an empty geometry. A GeometryCollection is named, not decoded.
+pub fn decode_feature(blob: &[u8]) -> Result<Option<(&'static str, Coords)>, String> {
+    let mut c = match header(blob)? {
+        Some(c) => c,
+        None => return Ok(None),
+    };
+    let le = c.order()?;
+    let (kind, dims) = kind_of(c.u32(le)?)?;
+    let mut out = Coords::default();
+    match kind {
+        1 => {
+            let (x, y) = point(&mut c, le, dims)?;
+            if x.is_nan() && y.is_nan() {
+                // An empty point is written as NaN ordinates (GeoPackage 1.3, §2.1.3.1.2).
+                return Ok(None);
+            }
+            out.pos.push([x, y]);
+            out.height = 1;
+        }
+        2 => {
+            line(&mut c, le, dims, &mut out)?;
+            out.height = 2;
+        }
+        3 => {
+            rings(&mut c, le, dims, &mut out)?;
+            out.groups.push(out.parts.len());
+            out.height = 3;
+        }
+        4..=6 => {
+            let n = c.u32(le)? as usize;
+            for _ in 0..n {
+                let le = c.order()?;
+                let (k, dims) = kind_of(c.u32(le)?)?;
+                if k != kind - 3 {
+                    return Err(format!("a {} holds a {}", name(kind), name(k)));
+                }
+                match k {
+                    1 => {
+                        let (x, y) = point(&mut c, le, dims)?;
+                        out.pos.push([x, y]);
+                        out.parts.push(out.pos.len());
+                    }
+                    2 => line(&mut c, le, dims, &mut out)?,
+                    _ => {
+                        rings(&mut c, le, dims, &mut out)?;
+                        out.groups.push(out.parts.len());
+                    }
+                }
+            }
+            out.height = kind as u8 - 2;
+        }
+        k => return Err(format!("a {}, which reknit does not read here", name(k))),
+    }
+    if out.pos.is_empty() {
+        return Ok(None);
+    }
+    Ok(Some((name(kind), out)))
+}
+
+/// Checks the blob's `GP` header and returns a cursor after it; `None` when flagged empty.
+fn header(blob: &[u8]) -> Result<Option<Cursor<'_>>, String> {
+    if blob.len() < 8 || &blob[..2] != b"GP" {
+        return Err("not a GeoPackage geometry (no \"GP\" header)".into());
+    }
+    let flags = blob[3];
+    if flags & 0b0010_0000 != 0 {
+        return Err("an extended GeoPackage geometry type, which reknit does not read".into());
+    }
+    let envelope = match (flags >> 1) & 0b111 {
+        0 => 0,
+        1 => 32,
+        2 | 3 => 48,
+        4 => 64,
+        e => return Err(format!("envelope code {e} is not one of 0 to 4")),
+    };
+    if flags & 0b0001_0000 != 0 {
+        return Ok(None);
+    }
+    if 8 + envelope > blob.len() {
+        return Err("the header's envelope runs past the end of the geometry".into());
+    }
+    Ok(Some(Cursor {
+        b: blob,
+        at: 8 + envelope,
+    }))
+}
+
+fn point(c: &mut Cursor, le: bool, dims: usize) -> Result<(f64, f64), String> {
+    let x = c.f64(le)?;
+    let y = c.f64(le)?;
+    for _ in 2..dims {
+        c.f64(le)?;
+    }
+    Ok((x, y))
+}
+
+/// Reads a polygon's rings (after its type code), each as a part.
+fn rings(c: &mut Cursor, le: bool, dims: usize, out: &mut Coords) -> Result<(), String> {
+    let n = c.u32(le)? as usize;
+    // Each ring takes at least its 4-byte count: a count beyond the bytes left is refused.
+    if n.saturating_mul(4) > c.b.len() - c.at {
+        return Err(format!(
+            "a polygon declares {n} rings, more than the geometry's {} bytes hold",
+            c.b.len()
+        ));
+    }
+    for _ in 0..n {
+        line(c, le, dims, out)?;
+    }
+    Ok(())
+}
+
 /// The base type (1 to 7) and the number of ordinates of a WKB type code (ISO: +1000 Z, +2000 M,
 /// +3000 ZM).
 fn kind_of(code: u32) -> Result<(u32, usize), String> {
@@ -238,6 +352,53 @@ mod tests {
             panic!()
         };
         assert_eq!(c.parts, vec![2, 4]);
+    }
+
+    #[test]
+    fn points_and_polygons_in_geojson_layout() {
+        // WKB Polygon: order, type 3, ring count, then each ring's count and points (ISO 19125-1
+        // §8.2.7, from memory).
+        let ring = [[0.0f64, 0.0], [1.0, 0.0], [1.0, 1.0], [0.0, 0.0]];
+        let mut poly = vec![1u8];
+        poly.extend_from_slice(&3u32.to_le_bytes());
+        poly.extend_from_slice(&2u32.to_le_bytes());
+        for _ in 0..2 {
+            poly.extend_from_slice(&4u32.to_le_bytes());
+            for p in ring {
+                poly.extend_from_slice(&p[0].to_le_bytes());
+                poly.extend_from_slice(&p[1].to_le_bytes());
+            }
+        }
+        let (kind, c) = decode_feature(&blob(&poly)).unwrap().unwrap();
+        assert_eq!((kind, c.height), ("Polygon", 3));
+        assert_eq!((c.parts.clone(), c.groups.clone()), (vec![4, 8], vec![2]));
+        let mut multi = vec![1u8];
+        multi.extend_from_slice(&6u32.to_le_bytes());
+        multi.extend_from_slice(&2u32.to_le_bytes());
+        multi.extend_from_slice(&poly);
+        multi.extend_from_slice(&poly);
+        let (kind, c) = decode_feature(&blob(&multi)).unwrap().unwrap();
+        assert_eq!((kind, c.height), ("MultiPolygon", 4));
+        assert_eq!(c.groups, vec![2, 4]);
+        let mut point = vec![0u8];
+        point.extend_from_slice(&1001u32.to_be_bytes());
+        for v in [5.0f64, 6.0, 7.0] {
+            point.extend_from_slice(&v.to_be_bytes());
+        }
+        let (kind, c) = decode_feature(&blob(&point)).unwrap().unwrap();
+        assert_eq!(
+            (kind, c.height, c.pos.clone()),
+            ("Point", 1, vec![[5.0, 6.0]])
+        );
+        let mut huge = vec![1u8];
+        huge.extend_from_slice(&3u32.to_le_bytes());
+        huge.extend_from_slice(&u32::MAX.to_le_bytes());
+        assert!(
+            decode_feature(&blob(&huge))
+                .unwrap_err()
+                .contains("declares")
+        );
+        assert_eq!(decode_feature(b"GP\x00\x11\x00\x00\x00\x00").unwrap(), None);
     }
 
     #[test]

@@ -35,18 +35,23 @@ pub struct ZoneLayer {
 }
 
 /// Reads damage zones from GeoJSON (Polygon / MultiPolygon features, lon/lat unless `crs` says
-/// otherwise); invalid polygons are errors naming the feature.
+/// otherwise), a Shapefile or a GeoPackage layer (`layer` chooses among several); invalid polygons
+/// are errors naming the feature.
 pub fn read_zones(
     source: &Source,
     rule: &DamageRule,
     crs: Option<&str>,
+    layer: Option<&str>,
 ) -> Result<ZoneLayer, IngestError> {
     let path = source.display_path();
+    if super::reader::Format::of(source) == super::reader::Format::GeoPackage {
+        return super::layered::read_gpkg_zones(source, rule, crs, layer);
+    }
     if path
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("shp"))
     {
-        return read_shapefile_zones(&path, rule, crs);
+        return super::zones_shp::read_shapefile_zones(&path, rule, crs);
     }
     let conv = match crs {
         Some(c) => Some(
@@ -59,60 +64,22 @@ pub fn read_zones(
     };
     let mut reader = source.open()?;
     let mut zones = Vec::new();
-    let fail = |feature: usize, field: &str, message: String| IngestError::Feature {
-        path: path.clone(),
-        feature,
-        field: Some(field.into()),
-        message,
-    };
     let mut defaulted = 0;
-    read_collection(&mut reader, std::slice::from_ref(&rule.field), |index, f| {
-        defaulted += usize::from(DamageRule::is_missing(f.prop(&rule.field)));
-        let damage = rule
-            .interpret(f.prop(&rule.field))
-            .map_err(|m| fail(index, &rule.field, m))?;
-        let c = &f.coords;
-        let polys: Vec<(usize, usize)> = match (f.geometry_type.as_deref(), c.height) {
-            (Some("Polygon"), 3) => vec![(0, c.parts.len())],
-            (Some("MultiPolygon"), 4) => {
-                let mut v = Vec::new();
-                let mut s = 0;
-                for &e in &c.groups {
-                    v.push((s, e));
-                    s = e;
-                }
-                v
-            }
-            (Some(k), _) => return Err(fail(index, "geometry", format!("damage zones must be Polygons, found {k}"))),
-            (None, _) => return Err(fail(index, "geometry", "the zone has no geometry".into())),
-        };
-        for (p0, p1) in polys {
-            let mut rings: Vec<Vec<[f64; 2]>> = Vec::new();
-            for r in p0..p1 {
-                let start = if r == 0 { 0 } else { c.parts[r - 1] };
-                let mut ring: Vec<[f64; 2]> = c.pos[start..c.parts[r]].to_vec();
-                if let Some(cv) = &conv {
-                    for p in ring.iter_mut() {
-                        *p = cv.to_lonlat(*p).ok_or_else(|| {
-                            fail(index, "geometry", format!("({}, {}) cannot be converted from {}", p[0], p[1], cv.name))
-                        })?;
-                    }
-                } else if let Some(p) = ring.iter().find(|p| !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0)) {
-                    return Err(fail(index, "geometry", format!("({}, {}) is not a longitude/latitude", p[0], p[1])));
-                }
-                if ring.len() < 4 || ring.first() != ring.last() {
-                    return Err(fail(
-                        index,
-                        "geometry",
-                        format!("ring {r} is not closed (RFC 7946 §3.1.6: at least 4 positions, first = last)"),
-                    ));
-                }
-                rings.push(ring);
-            }
-            zones.extend(make_zone(&path, index, rings, damage)?);
-        }
-        Ok(())
-    })
+    read_collection(
+        &mut reader,
+        std::slice::from_ref(&rule.field),
+        |index, f| {
+            add_zone_feature(
+                &path,
+                index,
+                &f,
+                rule,
+                conv.as_ref(),
+                &mut zones,
+                &mut defaulted,
+            )
+        },
+    )
     .map_err(|e| IngestError::from_read(&path, e))?;
     let (sha256, bytes) =
         HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
@@ -132,13 +99,96 @@ pub fn read_zones(
     })
 }
 
+/// Adds the zones of one feature (a Polygon or MultiPolygon in GeoJSON's layout, in lon/lat
+/// unless `conv` converts it); the GeoJSON and GeoPackage readers share it.
+pub(super) fn add_zone_feature(
+    path: &std::path::Path,
+    index: usize,
+    f: &super::geojson::RawFeature,
+    rule: &DamageRule,
+    conv: Option<&super::crs::Crs>,
+    zones: &mut Vec<Zone>,
+    defaulted: &mut usize,
+) -> Result<(), IngestError> {
+    let fail = |feature: usize, field: &str, message: String| IngestError::Feature {
+        path: path.to_path_buf(),
+        feature,
+        field: Some(field.into()),
+        message,
+    };
+    *defaulted += usize::from(DamageRule::is_missing(f.prop(&rule.field)));
+    let damage = rule
+        .interpret(f.prop(&rule.field))
+        .map_err(|m| fail(index, &rule.field, m))?;
+    let c = &f.coords;
+    let polys: Vec<(usize, usize)> = match (f.geometry_type.as_deref(), c.height) {
+        (Some("Polygon"), 3) => vec![(0, c.parts.len())],
+        (Some("MultiPolygon"), 4) => {
+            let mut v = Vec::new();
+            let mut s = 0;
+            for &e in &c.groups {
+                v.push((s, e));
+                s = e;
+            }
+            v
+        }
+        (Some(k), _) => {
+            return Err(fail(
+                index,
+                "geometry",
+                format!("damage zones must be Polygons, found {k}"),
+            ));
+        }
+        (None, _) => return Err(fail(index, "geometry", "the zone has no geometry".into())),
+    };
+    for (p0, p1) in polys {
+        let mut rings: Vec<Vec<[f64; 2]>> = Vec::new();
+        for r in p0..p1 {
+            let start = if r == 0 { 0 } else { c.parts[r - 1] };
+            let mut ring: Vec<[f64; 2]> = c.pos[start..c.parts[r]].to_vec();
+            if let Some(cv) = &conv {
+                for p in ring.iter_mut() {
+                    *p = cv.to_lonlat(*p).ok_or_else(|| {
+                        fail(
+                            index,
+                            "geometry",
+                            format!("({}, {}) cannot be converted from {}", p[0], p[1], cv.name),
+                        )
+                    })?;
+                }
+            } else if let Some(p) = ring
+                .iter()
+                .find(|p| !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0))
+            {
+                return Err(fail(
+                    index,
+                    "geometry",
+                    format!("({}, {}) is not a longitude/latitude", p[0], p[1]),
+                ));
+            }
+            if ring.len() < 4 || ring.first() != ring.last() {
+                return Err(fail(
+                    index,
+                    "geometry",
+                    format!(
+                        "ring {r} is not closed (RFC 7946 §3.1.6: at least 4 positions, first = last)"
+                    ),
+                ));
+            }
+            rings.push(ring);
+        }
+        zones.extend(make_zone(path, index, rings, damage)?);
+    }
+    Ok(())
+}
+
 /// Builds a validated zone from rings in lon/lat (outer first); errors name the feature.
 ///
 /// Each ring edge runs the short way round (RFC 7946 §3.1.1: the shortest line between two
 /// positions), so a ring that steps from 179° to -179° encloses the area across ±180°, not the rest
 /// of the world. Such a polygon is read with its longitudes unwrapped and cut at the meridian into
 /// one zone per side (the form RFC 7946 §3.1.9 recommends writing), so every zone lies within ±180°.
-fn make_zone(
+pub(super) fn make_zone(
     path: &std::path::Path,
     index: usize,
     mut rings: Vec<Vec<[f64; 2]>>,
@@ -229,100 +279,6 @@ fn make_zone(
         }
     }
     Ok(out)
-}
-
-/// Zones from a polygon Shapefile, in the CRS of its `.prj` (or `crs`). Each outer ring (clockwise
-/// in Shapefiles) starts a polygon; the holes that follow belong to it.
-fn read_shapefile_zones(
-    path: &std::path::Path,
-    rule: &DamageRule,
-    crs: Option<&str>,
-) -> Result<ZoneLayer, IngestError> {
-    use shapefile::Shape;
-    let conv = super::shapefile::layer_crs(path, crs)?;
-    let mut reader = super::shapefile::open_set(path)?;
-    let mut zones = Vec::new();
-    let numbers = reader.numeric_text();
-    let mut defaulted = 0;
-    for (index, item) in reader.records() {
-        let fail = |field: &str, message: String| IngestError::Feature {
-            path: path.to_path_buf(),
-            feature: index,
-            field: Some(field.into()),
-            message,
-        };
-        let (shape, record) =
-            item.map_err(|e| fail("geometry", format!("unreadable record: {e}")))?;
-        let value = match record.get(&rule.field) {
-            Some(v) => Some(numbers.value(index, &rule.field, v)?),
-            None => None,
-        };
-        defaulted += usize::from(DamageRule::is_missing(value.as_ref()));
-        let damage = rule
-            .interpret(value.as_ref())
-            .map_err(|m| fail(&rule.field, m))?;
-        let rings: Vec<(bool, Vec<[f64; 2]>)> = match &shape {
-            Shape::Polygon(p) => ring_list(p.rings(), |q| [q.x, q.y]),
-            Shape::PolygonZ(p) => ring_list(p.rings(), |q| [q.x, q.y]),
-            Shape::PolygonM(p) => ring_list(p.rings(), |q| [q.x, q.y]),
-            Shape::NullShape => continue,
-            other => {
-                return Err(fail(
-                    "geometry",
-                    format!("damage zones must be Polygons, found {}", other.shapetype()),
-                ));
-            }
-        };
-        let mut current: Vec<Vec<[f64; 2]>> = Vec::new();
-        for (outer, ring) in rings {
-            let mut ll = Vec::with_capacity(ring.len());
-            for p in ring {
-                ll.push(conv.to_lonlat(p).ok_or_else(|| {
-                    fail(
-                        "geometry",
-                        format!(
-                            "({}, {}) cannot be converted from {}",
-                            p[0], p[1], conv.name
-                        ),
-                    )
-                })?);
-            }
-            if outer && !current.is_empty() {
-                zones.extend(make_zone(
-                    path,
-                    index,
-                    std::mem::take(&mut current),
-                    damage,
-                )?);
-            }
-            current.push(ll);
-        }
-        zones.extend(make_zone(path, index, current, damage)?);
-    }
-    Ok(ZoneLayer {
-        zones,
-        defaulted,
-        input: InputRecord {
-            deleted_records: reader.deleted(),
-            ..super::shapefile::fingerprint(path, "damage zones")?
-        },
-    })
-}
-
-/// A Shapefile polygon's rings as (is outer, positions).
-fn ring_list<P>(
-    rings: &[shapefile::PolygonRing<P>],
-    xy: impl Fn(&P) -> [f64; 2],
-) -> Vec<(bool, Vec<[f64; 2]>)> {
-    rings
-        .iter()
-        .map(|r| {
-            (
-                matches!(r, shapefile::PolygonRing::Outer(_)),
-                r.points().iter().map(&xy).collect(),
-            )
-        })
-        .collect()
 }
 
 /// The pieces of a lon/lat polyline by zone cover: (length share of the whole line, index of the

@@ -79,6 +79,8 @@ pub struct PlanJob {
     pub zone_damage: crate::ingest::damage::DamageRule,
     /// The zones layer's CRS as EPSG:NNNN (default WGS84 lon/lat).
     pub zones_crs: Option<String>,
+    /// The layer of a GeoPackage damage-zones file (`--zones-layer`).
+    pub zones_layer: Option<String>,
     /// Field damage reports (points), each applied to the nearest road.
     pub reports: Option<Source>,
     /// How a field report's damage is read (`--damage-points-field`).

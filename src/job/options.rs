@@ -126,6 +126,12 @@ pub struct Options {
     pub lat_column: Option<String>,
     /// `--sites-crs`.
     pub sites_crs: Option<String>,
+    /// `--sites-delimiter`: `,`, `;` or `tab` (default: told from the header line).
+    pub sites_delimiter: Option<String>,
+    /// `--sites-layer`: the layer of a GeoPackage sites file holding several.
+    pub sites_layer: Option<String>,
+    /// `--zones-layer`: the layer of a GeoPackage damage-zones file holding several.
+    pub zones_layer: Option<String>,
     /// Damage points of earlier rounds (`reknit replan`), applied before the finished work and
     /// before `damage_points`, which a re-plan fills only with points given anew.
     pub earlier_damage_points: Vec<Source>,
@@ -169,6 +175,9 @@ impl Options {
             lon_column: None,
             lat_column: None,
             sites_crs: None,
+            sites_delimiter: None,
+            sites_layer: None,
+            zones_layer: None,
             earlier_damage_points: Vec::new(),
             field_work: None,
             site_tags: Vec::new(),

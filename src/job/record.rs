@@ -54,6 +54,9 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         },
         "filters": s.filters.iter().map(|f| format!("{} {}={}", if f.keep { "keep" } else { "drop" }, f.field, f.values.join(","))).collect::<Vec<_>>(),
         "sites_crs": ss.crs,
+        "sites_delimiter": ss.delimiter.map(crate::ingest::sites_csv::delimiter_name),
+        "sites_layer": ss.layer,
+        "zones_layer": job.zones_layer,
         "structure_field": s.structure_field,
         "attribution": s.attribution,
     })

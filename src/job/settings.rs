@@ -143,6 +143,13 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             lon_column: o.lon_column.clone(),
             lat_column: o.lat_column.clone(),
             crs: o.sites_crs.clone(),
+            delimiter: o
+                .sites_delimiter
+                .as_deref()
+                .map(crate::ingest::sites_csv::parse_delimiter)
+                .transpose()
+                .map_err(|m| refuse("--sites-delimiter", m))?,
+            layer: o.sites_layer.clone(),
             osm_tags: o
                 .site_tags
                 .iter()
@@ -174,6 +181,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             closed_value: o.road.closed_value.clone(),
         },
         zones_crs: o.zones_crs.clone(),
+        zones_layer: o.zones_layer.clone(),
         reports: o.damage_points.clone(),
         point_match_distance_m: o.point_match_distance_m.unwrap_or(50.0),
         crew_capacity: o.crew_capacity,
@@ -204,15 +212,37 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
     let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
-    let osm_sites = o.sites.as_ref().is_some_and(|s| {
-        crate::ingest::reader::Format::of(s) == crate::ingest::reader::Format::OsmPbf
-    });
+    let format = |s: &Option<crate::ingest::source::Source>, f| {
+        s.as_ref()
+            .is_some_and(|s| crate::ingest::reader::Format::of(s) == f)
+    };
+    use crate::ingest::reader::Format::{GeoPackage, OsmPbf};
+    let osm_sites = format(&o.sites, OsmPbf);
     const SITES: &str = "this option is about the sites layer: give --sites";
     const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 21] = [
+    let rules: [(&'static str, bool, bool, &'static str); 24] = [
+        (
+            "--sites-delimiter",
+            o.sites_delimiter.is_some(),
+            csv_sites,
+            "only a CSV sites file (.csv or .txt) has a field separator",
+        ),
+        (
+            "--sites-layer",
+            o.sites_layer.is_some(),
+            format(&o.sites, GeoPackage),
+            "only a GeoPackage sites file (--sites FILE.gpkg) holds layers to choose from",
+        ),
+        (
+            "--zones-layer",
+            o.zones_layer.is_some(),
+            format(&o.damage_zones, GeoPackage),
+            "only a GeoPackage damage-zones file (--damage-zones FILE.gpkg) holds layers to \
+             choose from",
+        ),
         (
             "--roads-layer",
             o.road.roads_layer.is_some(),

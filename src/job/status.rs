@@ -189,6 +189,7 @@ pub(super) mod tests {
                 name: None,
                 priority: 1.0,
                 pos: [0.0, 0.0],
+                outline: None,
                 attributes: Default::default(),
             })
             .collect();

@@ -210,6 +210,18 @@ pub const SETTINGS: &[(&str, Set)] = &[
         o.sites_crs = text(v)?;
         Ok(())
     }),
+    ("sites_delimiter", |o, v| {
+        o.sites_delimiter = text(v)?;
+        Ok(())
+    }),
+    ("sites_layer", |o, v| {
+        o.sites_layer = text(v)?;
+        Ok(())
+    }),
+    ("zones_layer", |o, v| {
+        o.zones_layer = text(v)?;
+        Ok(())
+    }),
     ("structure_field", |o, v| {
         o.road.structure_field = text(v)?;
         Ok(())

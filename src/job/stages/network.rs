@@ -55,7 +55,12 @@ pub(in crate::job) fn build(
     let mut zone_rings = Vec::new();
     if let Some(src) = &job.zones {
         let _s = progress.stage("applying damage zones");
-        let zl = read_zones(src, &job.zone_damage, job.zones_crs.as_deref())?;
+        let zl = read_zones(
+            src,
+            &job.zone_damage,
+            job.zones_crs.as_deref(),
+            job.zones_layer.as_deref(),
+        )?;
         zone_figures = (zl.zones.len(), apply_zones(&mut net, &zl));
         zone_rings = zl
             .zones
