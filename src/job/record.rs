@@ -56,5 +56,6 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "sites_crs": ss.crs,
         "structure_field": s.structure_field,
         "attribution": s.attribution,
+        "output_format": job.output_format.name(),
     })
 }
