@@ -56,6 +56,7 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("lon_column", "\"x_lon\""),
     ("lat_column", "\"y_lat\""),
     ("sites_crs", "\"EPSG:4326\""),
+    ("output_format", "\"gpkg\""),
 ];
 
 fn example(key: &str) -> &'static str {
