@@ -129,6 +129,44 @@ case!(replan_previous_setting_unknown, |d| {
     );
 });
 
+/// A first plan written as a GeoPackage (`--output-format gpkg`).
+fn first_gpkg(d: &Path) -> PathBuf {
+    let roads = write_collection(
+        d,
+        "roads.geojson",
+        &[line(
+            &[at_m(0.0, 0.0), at_m(100.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
+    );
+    let r1 = d.join("r1");
+    let o = plan_cli(&roads, &r1, &["-q", "--output-format", "gpkg"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    r1
+}
+
+case!(replan_previous_geopackage_missing, |d| {
+    let r1 = first_gpkg(d);
+    std::fs::remove_file(r1.join("layers.gpkg")).unwrap();
+    replan_fails(
+        d,
+        b"work_order,status\n",
+        &[],
+        &["layers.gpkg", "missing", "GeoPackage"],
+    );
+});
+
+case!(replan_previous_geopackage_not_sqlite, |d| {
+    let r1 = first_gpkg(d);
+    std::fs::write(r1.join("layers.gpkg"), b"not a database at all, just text").unwrap();
+    replan_fails(
+        d,
+        b"work_order,status\n",
+        &[],
+        &["layers.gpkg", "not a GeoPackage reknit wrote"],
+    );
+});
+
 case!(replan_into_the_previous_folder, |d| {
     let r1 = first(d);
     let f = file(d, "back.csv", b"work_order,status\n");

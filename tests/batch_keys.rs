@@ -59,6 +59,7 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("sites_delimiter", "\"comma\""),
     ("sites_layer", "\"hospitals\""),
     ("zones_layer", "\"floods\""),
+    ("output_format", "\"gpkg\""),
 ];
 
 fn example(key: &str) -> &'static str {

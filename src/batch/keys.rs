@@ -242,6 +242,12 @@ pub const KEYS: &[Key] = &[
         j.sites_crs = v.opt_text()?;
         Ok(())
     }),
+    key("output_format", Choice(&["geojson", "gpkg"]), |j, v| {
+        let t = v.text()?;
+        j.output_format = crate::export::sink::OutputFormat::from_name(&t)
+            .ok_or_else(|| format!("{t:?} is not an output format"))?;
+        Ok(())
+    }),
 ];
 
 /// The key of that name.

@@ -9,7 +9,7 @@ use std::process::ExitCode;
 /// Check a road layer's topology: writes qa.geojson (every change reknit makes to the geometry and
 /// every suspicion: merged vertices, joined undershoots, trimmed overshoots, removed duplicates,
 /// crossings left apart, dangling ends), network.geojson and summary.json (components with their
-/// sizes, dangles, counts).
+/// sizes, dangles, counts); with --output-format gpkg the two layers are tables of layers.gpkg.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
     /// Road centerline layer (GeoJSON or Shapefile).
@@ -34,6 +34,7 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
         &reknit::job::settings::road_settings(&a.network.road_options())?,
         &a.out,
         a.output.force,
+        a.output.format().unwrap_or_default(),
         &progress,
     )?;
     if !progress.quiet {

@@ -338,9 +338,22 @@ pub struct OutputArgs {
     /// Print the time each stage took (on stderr).
     #[arg(long, short)]
     pub verbose: bool,
+
+    /// Format of the map layers: geojson (one RFC 7946 file per layer; the default) or gpkg
+    /// (every layer in one GeoPackage, layers.gpkg). A re-plan keeps the previous plan's unless
+    /// given.
+    #[arg(long, value_name = "FORMAT", value_parser = ["geojson", "gpkg"])]
+    pub output_format: Option<String>,
 }
 
 impl OutputArgs {
+    /// The format given, if any.
+    pub fn format(&self) -> Option<reknit::export::sink::OutputFormat> {
+        self.output_format
+            .as_deref()
+            .and_then(reknit::export::sink::OutputFormat::from_name)
+    }
+
     pub fn progress(&self) -> Progress {
         Progress {
             quiet: self.quiet,

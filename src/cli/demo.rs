@@ -41,6 +41,7 @@ pub fn run(a: DemoArgs) -> anyhow::Result<ExitCode> {
     };
     let mut o = Options::new(roads, a.out);
     o.force = a.output.force;
+    o.output_format = a.output.format().unwrap_or_default();
     o.road = a.network.road_options();
     a.planning.apply(&mut o);
     o.whole_network = a.whole_network;

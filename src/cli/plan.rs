@@ -12,7 +12,8 @@ use std::process::ExitCode;
 /// critical sites given with --sites.
 ///
 /// Writes network.geojson (every edge), plan.geojson (the chosen edges), sites.geojson (with
-/// --sites) and summary.json into the output folder; nothing is written when the run fails.
+/// --sites) and summary.json into the output folder (with --output-format gpkg the layers are
+/// tables of one layers.gpkg); nothing is written when the run fails.
 #[derive(Debug, Args)]
 pub struct PlanArgs {
     /// Road centerline layer: GeoJSON (LineString/MultiLineString, WGS84 lon/lat unless --crs or a
@@ -52,6 +53,7 @@ pub fn run(a: PlanArgs) -> anyhow::Result<ExitCode> {
     let mut o = Options::new(first, a.out);
     o.more_roads = roads.collect();
     o.force = a.output.force;
+    o.output_format = a.output.format().unwrap_or_default();
     o.name = a.name.clone();
     o.road = a.network.road_options();
     a.planning.apply(&mut o);

@@ -63,6 +63,7 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
         damage_zones: a.damage_zones.map(Source::File),
         sites: a.sites.map(Source::File),
         label: a.label,
+        output_format: a.output.format(),
     };
     let summary = run(&req, &progress)?;
     // Work orders that matched nothing are listed, never guessed: say so where it is seen.

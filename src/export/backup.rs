@@ -1,7 +1,8 @@
 //! `backup.geojson` and the backup figures: the further repairs that keep every site joined to the
 //! hub after any single road failure, numbered after the plan's repairs.
 
-use super::geojson::{GeoJsonWriter, Prop};
+use super::geojson::Prop;
+use super::sink::LayerSink;
 use super::single_failures::{SingleFailureFigures, SiteFailures};
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::backup::Backup;
@@ -74,14 +75,12 @@ impl BackupLayer {
 
 /// Writes the added repairs as LineStrings in order: order, link, edge, road, length, damage,
 /// cost and the sites the link protects.
-pub fn write_backup<W: std::io::Write>(
-    w: W,
+pub fn write_backup<S: LayerSink + ?Sized>(
+    gj: &mut S,
     net: &Network,
     layer: &BackupLayer,
     ids: &super::work_order_id::WorkOrderIds,
-    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for r in &layer.rows {
         let edge = &net.edges[r.edge as usize];
         let meta = &net.features[edge.feature as usize];
@@ -116,6 +115,5 @@ pub fn write_backup<W: std::io::Write>(
             net.edge_geometry(r.edge as usize),
         )?;
     }
-    gj.finish()?;
     Ok(())
 }

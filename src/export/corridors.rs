@@ -2,7 +2,8 @@
 //! hub once the plan (and any backup links) is done, against the same trip on the undamaged
 //! network, and the further repairs offered where the detour is longer than `--max-detour`.
 
-use super::geojson::{GeoJsonWriter, Prop};
+use super::geojson::Prop;
+use super::sink::LayerSink;
 use crate::network::Network;
 use serde::Serialize;
 
@@ -99,13 +100,11 @@ fn route_points(net: &Network, from: u32, edges: &[u32]) -> Vec<[f64; 2]> {
 }
 
 /// Writes one LineString per corridor (sites on the hub's junction have none).
-pub fn write_corridors<W: std::io::Write>(
-    w: W,
+pub fn write_corridors<S: LayerSink + ?Sized>(
+    gj: &mut S,
     net: &Network,
     c: &CorridorLayer,
-    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for r in c.rows.iter().filter(|r| !r.edges.is_empty()) {
         let keys = r.fix.as_ref().map(|f| f.work_orders.join(";"));
         let num = |x: Option<f64>| x.map_or(Prop::Null, Prop::Num);
@@ -137,6 +136,5 @@ pub fn write_corridors<W: std::io::Write>(
             &route_points(net, r.junctions[0], &r.edges),
         )?;
     }
-    gj.finish()?;
     Ok(())
 }

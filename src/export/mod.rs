@@ -1,7 +1,9 @@
 //! Export stage: writes the network, the plan and the summary, all or nothing.
 //!
-//! Layers are RFC 7946 GeoJSON in WGS84 lon/lat with at most 7 decimals; every file is staged and
-//! moved into place together ([`staging`]), so outputs are byte-identical for the same inputs.
+//! Layers are written through one interface ([`sink::LayerSink`]): RFC 7946 GeoJSON files in
+//! WGS84 lon/lat with at most 7 decimals, or (`--output-format gpkg`) one GeoPackage
+//! ([`gpkg`]); every file is staged and moved into place together ([`staging`]), so outputs are
+//! byte-identical for the same inputs.
 
 pub mod backup;
 pub mod band;
@@ -9,8 +11,10 @@ pub mod clip;
 pub mod corridors;
 pub mod drawing;
 pub mod geojson;
+pub mod gpkg;
 pub mod guard;
 pub mod labels;
+pub mod layer_set;
 pub mod layout;
 pub mod legend;
 pub mod metrics;
@@ -24,7 +28,9 @@ pub mod report_parts;
 pub mod report_tables;
 pub mod scene;
 pub mod single_failures;
+pub mod sink;
 pub mod sites;
+pub mod specs;
 pub mod staging;
 pub mod strokes;
 pub mod structures;
@@ -36,7 +42,9 @@ pub mod work_orders;
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::Plan;
 use crate::solve::components::Components;
-use geojson::{GeoJsonWriter, Prop};
+use geojson::Prop;
+use layer_set::LayerJob;
+use sink::{LayerSink, OutputFormat};
 use std::path::PathBuf;
 pub use summary::Summary;
 
@@ -132,11 +140,15 @@ pub struct Outputs<'a> {
     pub budget: Option<f64>,
     /// The summary.
     pub summary: &'a Summary,
+    /// The format of the map layers.
+    pub format: OutputFormat,
 }
 
 /// The files of one output set in the order of [`staging::OUTPUT_NAMES`] (`summary.json` last):
-/// the layers every run writes plus the sites, single-failure, backup and corridor layers when there are any.
+/// the layers every run writes plus the sites, single-failure, backup and corridor layers when
+/// there are any, as GeoJSON files or all in `layers.gpkg`.
 pub fn output_names(
+    format: OutputFormat,
     sites: bool,
     single_failures: bool,
     backup: bool,
@@ -146,6 +158,8 @@ pub fn output_names(
         .iter()
         .copied()
         .filter(|n| match *n {
+            n if n.ends_with(".geojson") && format != OutputFormat::GeoJson => false,
+            sink::GPKG_FILE => format == OutputFormat::GeoPackage,
             "sites.geojson" => sites,
             "single-failures.geojson" => single_failures,
             "backup.geojson" => backup,
@@ -157,13 +171,12 @@ pub fn output_names(
         .collect()
 }
 
-/// Writes `network.geojson`, `plan.geojson`, `qa.geojson`, `sites.geojson` (when there are sites)
-/// and `summary.json` into `out` as one set.
+/// Writes the map layers (GeoJSON files, or `layers.gpkg`), the work orders, the pictures, the
+/// report and `summary.json` into `out` as one set.
 pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Result<(), ExportError> {
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
     let ids = o.keys;
-    st.write("qa.geojson", |w| write_qa(w, o.qa, attribution))?;
     st.write("work-orders.csv", |w| {
         work_orders::write_work_orders(
             w,
@@ -211,32 +224,18 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         svg?;
         png
     };
-    let layers = || {
-        rayon::join(
-            || {
-                st.write("network.geojson", |w| {
-                    write_edges(w, o.net, o.comps, None, None, ids, attribution)
-                })
-            },
-            || {
-                st.write("plan.geojson", |w| {
-                    write_edges(
-                        w,
-                        o.net,
-                        o.comps,
-                        Some(&o.plan.edges),
-                        Some(&order_of),
-                        ids,
-                        attribution,
-                    )
-                })
-            },
-        )
+    let all = plan_layers(o, &order_of);
+    let layers = || match o.format {
+        // The network and the plan are the big layers: side by side, the others after them.
+        OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true),
+        OutputFormat::GeoPackage => layer_set::write_gpkg(&st, &all, attribution),
     };
-    let (png, (a, b)) = rayon::join(pictures, layers);
+    let (png, written) = rayon::join(pictures, layers);
     let png = png?;
-    a?;
-    b?;
+    written?;
+    if o.format == OutputFormat::GeoJson {
+        layer_set::write_geojson(&st, &all[2..], attribution, false)?;
+    }
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
     st.write("report.html", |w| {
         report::write_report(
@@ -257,29 +256,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             },
         )
     })?;
-    if let Some(f) = o.single_failures {
-        st.write("single-failures.geojson", |w| {
-            single_failures::write_single_failures(w, o.net, f, ids, attribution)
-        })?;
-    }
-    if let Some(b) = o.backup {
-        st.write("backup.geojson", |w| {
-            backup::write_backup(w, o.net, b, ids, attribution)
-        })?;
-    }
-    if let Some(c) = o.corridors {
-        st.write("corridors.geojson", |w| {
-            corridors::write_corridors(w, o.net, c, attribution)
-        })?;
-    }
-    if let Some(c) = o.changes {
-        st.write("changes.geojson", |w| c.write(w, o.net, ids, attribution))?;
-    }
-    if let Some(rows) = o.sites {
-        st.write("sites.geojson", |w| {
-            sites::write_sites(w, rows, attribution)
-        })?;
-    }
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")
@@ -299,17 +275,60 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     st.commit()
 }
 
-/// Writes the given edges (all when `only` is `None`) as LineString features.
-fn write_edges<W: std::io::Write>(
-    w: W,
+/// Every layer of a plan, in the order of [`staging::OUTPUT_NAMES`] (the network and the plan
+/// first): those the run has.
+fn plan_layers<'a>(
+    o: &'a Outputs<'a>,
+    order_of: &'a std::collections::HashMap<u32, &'a crate::solve::order::Step>,
+) -> Vec<LayerJob<'a>> {
+    let (net, comps, ids) = (o.net, o.comps, o.keys);
+    let mut v = vec![
+        LayerJob::new(specs::edges("network", net, false), move |s| {
+            write_edges(s, net, comps, None, None, ids)
+        }),
+        LayerJob::new(specs::edges("plan", net, true), move |s| {
+            write_edges(s, net, comps, Some(&o.plan.edges), Some(order_of), ids)
+        }),
+    ];
+    if let Some(rows) = o.sites {
+        v.push(LayerJob::new(specs::sites(rows), move |s| {
+            sites::write_sites(s, rows)
+        }));
+    }
+    v.push(LayerJob::new(specs::qa(), move |s| write_qa(s, o.qa)));
+    if let Some(f) = o.single_failures {
+        v.push(LayerJob::new(specs::single_failures(), move |s| {
+            single_failures::write_single_failures(s, net, f, ids)
+        }));
+    }
+    if let Some(b) = o.backup {
+        v.push(LayerJob::new(specs::backup(net), move |s| {
+            backup::write_backup(s, net, b, ids)
+        }));
+    }
+    if let Some(c) = o.corridors {
+        v.push(LayerJob::new(specs::corridors(), move |s| {
+            corridors::write_corridors(s, net, c)
+        }));
+    }
+    if let Some(c) = o.changes {
+        v.push(LayerJob::new(specs::changes(), move |s| {
+            c.write(s, net, ids)
+        }));
+    }
+    v
+}
+
+/// Writes the given edges (all when `only` is `None`: the `network` layer; else the `plan`
+/// layer's, with their order, crew and days when `order_of` has them) as LineString features.
+pub fn write_edges<S: LayerSink + ?Sized>(
+    gj: &mut S,
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
     order_of: Option<&std::collections::HashMap<u32, &crate::solve::order::Step>>,
     keys: &work_order_id::WorkOrderIds,
-    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     let all: Vec<u32>;
     let ids = match only {
         Some(ids) => ids,
@@ -373,7 +392,6 @@ fn write_edges<W: std::io::Write>(
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
-    gj.finish()?;
     Ok(())
 }
 
@@ -388,12 +406,10 @@ pub(crate) fn damage_props(edge: &crate::network::Edge) -> [(&'static str, Prop<
 
 /// Writes QA points: kind (code and words), distance moved (or gap), and the input feature where
 /// known.
-pub fn write_qa<W: std::io::Write>(
-    w: W,
+pub fn write_qa<S: LayerSink + ?Sized>(
+    gj: &mut S,
     qa: &[crate::ingest::qa::QaPoint],
-    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for q in qa {
         gj.point(
             &[
@@ -408,11 +424,25 @@ pub fn write_qa<W: std::io::Write>(
             q.pos,
         )?;
     }
-    gj.finish()?;
     Ok(())
 }
 
-/// Writes every edge of the network (as `network.geojson`).
+/// The layers of `reknit check`: the noded network (every edge) and the QA points.
+pub fn check_layers<'a>(
+    net: &'a Network,
+    comps: &'a Components,
+    ids: &'a work_order_id::WorkOrderIds,
+    qa: &'a [crate::ingest::qa::QaPoint],
+) -> Vec<LayerJob<'a>> {
+    vec![
+        LayerJob::new(specs::edges("network", net, false), move |s| {
+            write_edges(s, net, comps, None, None, ids)
+        }),
+        LayerJob::new(specs::qa(), move |s| write_qa(s, qa)),
+    ]
+}
+
+/// Writes every edge of the network as a GeoJSON layer (as `network.geojson`).
 pub fn write_network<W: std::io::Write>(
     w: W,
     net: &Network,
@@ -420,5 +450,7 @@ pub fn write_network<W: std::io::Write>(
     attribution: Option<&str>,
 ) -> std::io::Result<()> {
     let ids = work_order_id::WorkOrderIds::new(net);
-    write_edges(w, net, comps, None, None, &ids, attribution)
+    let mut gj = geojson::GeoJsonWriter::layer(w, attribution)?;
+    write_edges(&mut gj, net, comps, None, None, &ids)?;
+    gj.finish().map(drop)
 }

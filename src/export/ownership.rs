@@ -17,6 +17,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "backup.geojson",
     "corridors.geojson",
     "changes.geojson",
+    "layers.gpkg",
     "plan.svg",
     "plan.png",
     "report.html",

@@ -1,7 +1,8 @@
 //! `single-failures.geojson` and its figures: which single road failures would cut sites off the
 //! hub (roads with no way round, in the graph sense defined in docs/algorithms.md).
 
-use super::geojson::{GeoJsonWriter, Prop};
+use super::geojson::Prop;
+use super::sink::LayerSink;
 use crate::ingest::sites::SiteLayer;
 use crate::network::Network;
 use crate::solve::fragility::Fragility;
@@ -82,14 +83,12 @@ impl SingleFailureLayer {
 
 /// Writes the roads cutting sites off as LineStrings: edge id, road, work-order key, length,
 /// and the sites its loss would cut off (ids, and how many).
-pub fn write_single_failures<W: std::io::Write>(
-    w: W,
+pub fn write_single_failures<S: LayerSink + ?Sized>(
+    gj: &mut S,
     net: &Network,
     layer: &SingleFailureLayer,
     ids: &super::work_order_id::WorkOrderIds,
-    attribution: Option<&str>,
 ) -> std::io::Result<()> {
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
     for (e, sites) in &layer.cutting {
         let edge = &net.edges[*e as usize];
         let meta = &net.features[edge.feature as usize];
@@ -106,6 +105,5 @@ pub fn write_single_failures<W: std::io::Write>(
             net.edge_geometry(*e as usize),
         )?;
     }
-    gj.finish()?;
     Ok(())
 }

@@ -1,8 +1,8 @@
 //! The sites layer: every site with its attributes, where it joined the network, and its status.
 
-use super::geojson::{GeoJsonWriter, Prop};
+use super::geojson::Prop;
+use super::sink::LayerSink;
 use serde_json::{Map, Value};
-use std::io::Write;
 
 /// One site as written to `sites.geojson`.
 #[derive(Debug, Clone)]
@@ -37,40 +37,40 @@ pub struct SiteRow {
     pub group: Option<usize>,
 }
 
+/// reknit's own properties of the sites layer.
+const OWN: [&str; 13] = [
+    "site_id",
+    "name",
+    "priority",
+    "hub",
+    "status",
+    "status_label",
+    "joined_to_hub",
+    "reason",
+    "group",
+    "junction",
+    "attach_distance_m",
+    "attach_lon",
+    "attach_lat",
+];
+
+/// The name an input attribute is written under: its own, or prefixed with `input_` when it is
+/// one of reknit's.
+pub fn output_name(k: &str) -> String {
+    match OWN.contains(&k) {
+        true => format!("input_{k}"),
+        false => k.to_string(),
+    }
+}
+
 /// Writes the sites as Point features; reknit's own properties first, the input's after them
 /// (an input property with the same name as one of reknit's is prefixed with `input_`).
-pub fn write_sites<W: Write>(
-    w: W,
-    rows: &[SiteRow],
-    attribution: Option<&str>,
-) -> std::io::Result<()> {
-    const OWN: [&str; 12] = [
-        "site_id",
-        "name",
-        "priority",
-        "hub",
-        "status",
-        "status_label",
-        "joined_to_hub",
-        "reason",
-        "group",
-        "junction",
-        "attach_distance_m",
-        "attach_lon",
-    ];
-    let mut gj = GeoJsonWriter::layer(w, attribution)?;
+pub fn write_sites<S: LayerSink + ?Sized>(gj: &mut S, rows: &[SiteRow]) -> std::io::Result<()> {
     for r in rows {
         let renamed: Vec<(String, &Value)> = r
             .attributes
             .iter()
-            .map(|(k, v)| {
-                let k = if OWN.contains(&k.as_str()) || k == "attach_lat" {
-                    format!("input_{k}")
-                } else {
-                    k.clone()
-                };
-                (k, v)
-            })
+            .map(|(k, v)| (output_name(k), v))
             .collect();
         let mut props: Vec<(&str, Prop)> = vec![
             ("site_id", Prop::Str(&r.id)),
@@ -104,6 +104,5 @@ pub fn write_sites<W: Write>(
         }
         gj.point(&props, r.pos)?;
     }
-    gj.finish()?;
     Ok(())
 }

@@ -192,6 +192,27 @@ impl Staging {
         Ok(())
     }
 
+    /// Writes one output file that `make` creates itself at the path it is given (a database,
+    /// which SQLite opens by name); the file is staged and committed like every other.
+    pub fn write_at<F>(&self, name: &str, make: F) -> Result<(), ExportError>
+    where
+        F: FnOnce(&Path) -> std::io::Result<()>,
+    {
+        debug_assert!(
+            OUTPUT_NAMES.contains(&name),
+            "{name} missing from OUTPUT_NAMES"
+        );
+        make(&self.dir.join(name)).map_err(|source| ExportError::Io {
+            path: self.given.join(name),
+            source,
+        })?;
+        self.written
+            .lock()
+            .unwrap_or_else(|p| p.into_inner())
+            .push(name.to_string());
+        Ok(())
+    }
+
     /// The names of the files written so far.
     pub fn names(&self) -> Vec<String> {
         self.written

@@ -57,6 +57,23 @@ fn quote(name: &str) -> String {
     format!("\"{}\"", name.replace('"', "\"\""))
 }
 
+/// Opens an SQLite file read-only and immutable (`immutable=1`: read as a file that cannot
+/// change, so no lock, journal or index is written beside it).
+pub fn open_immutable(p: &Path) -> rusqlite::Result<Connection> {
+    let mut uri = String::from("file:");
+    for c in p.to_string_lossy().chars() {
+        match c {
+            '%' | '?' | '#' => uri.push_str(&format!("%{:02X}", c as u32)),
+            _ => uri.push(c),
+        }
+    }
+    uri.push_str("?immutable=1");
+    Connection::open_with_flags(
+        &uri,
+        OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_URI,
+    )
+}
+
 impl GpkgSource {
     /// Opens `source` and chooses its layer: `layer` by name, or the only one.
     pub fn open(source: &Source, layer: Option<&str>) -> Result<GpkgSource, IngestError> {
@@ -90,20 +107,7 @@ impl GpkgSource {
                 format!("not a readable GeoPackage (SQLite) file: {e}"),
             )
         };
-        // immutable=1: read as a file that cannot change, so nothing is written beside it.
-        let mut uri = String::from("file:");
-        for c in p.to_string_lossy().chars() {
-            match c {
-                '%' | '?' | '#' => uri.push_str(&format!("%{:02X}", c as u32)),
-                _ => uri.push(c),
-            }
-        }
-        uri.push_str("?immutable=1");
-        let conn = Connection::open_with_flags(
-            &uri,
-            OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_URI,
-        )
-        .map_err(sql)?;
+        let conn = open_immutable(p).map_err(sql)?;
         let layers = layers(&conn).map_err(|e| {
             refuse(
                 &path,

@@ -50,12 +50,14 @@ pub struct CheckReport {
     pub dangles: usize,
 }
 
-/// Reads and nodes the roads, reporting crossings left apart too, and writes the check outputs.
+/// Reads and nodes the roads, reporting crossings left apart too, and writes the check outputs
+/// (the layers in `format`).
 pub fn run_check(
     roads: &Source,
     settings: &RoadSettings,
     out: &Path,
     force: bool,
+    format: export::sink::OutputFormat,
     progress: &Progress,
 ) -> Result<CheckReport, JobError> {
     let inputs: Vec<_> = roads
@@ -127,6 +129,7 @@ pub fn run_check(
             "node_crossings": settings.node_crossings,
             "damage_field": settings.damage.field,
             "crs": settings.crs,
+            "output_format": format.name(),
         }),
         geodesy,
         component_count: comps.count,
@@ -138,12 +141,9 @@ pub fn run_check(
     {
         let _s = progress.stage("writing outputs");
         let st = staging::Staging::begin(&out, force)?;
-        st.write("qa.geojson", |w| {
-            export::write_qa(w, &noding.qa_points, report.attribution.as_deref())
-        })?;
-        st.write("network.geojson", |w| {
-            export::write_network(w, &net, &comps, report.attribution.as_deref())
-        })?;
+        let ids = export::work_order_id::WorkOrderIds::new(&net);
+        let layers = export::check_layers(&net, &comps, &ids, &noding.qa_points);
+        export::layer_set::write(&st, format, &layers, report.attribution.as_deref())?;
         st.write("summary.json", |w| {
             serde_json::to_writer_pretty(&mut *w, &report)?;
             std::io::Write::write_all(w, b"\n")

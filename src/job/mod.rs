@@ -106,6 +106,8 @@ pub struct PlanJob {
     pub earlier_reports: Vec<Source>,
     /// What crews did since the previous plan (a re-plan only).
     pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
+    /// The format of the map layers (`--output-format`).
+    pub output_format: crate::export::sink::OutputFormat,
     /// Proof that [`settings::build`] made this job: no other code can.
     _checked: Checked,
 }

@@ -139,6 +139,8 @@ pub struct Options {
     pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
     /// `--site-tags` texts, `KEY=V1,V2` each (sites of an OpenStreetMap extract).
     pub site_tags: Vec<String>,
+    /// `--output-format` (default GeoJSON).
+    pub output_format: crate::export::sink::OutputFormat,
 }
 
 impl Options {
@@ -181,6 +183,7 @@ impl Options {
             earlier_damage_points: Vec::new(),
             field_work: None,
             site_tags: Vec::new(),
+            output_format: Default::default(),
         }
     }
 }

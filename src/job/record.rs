@@ -59,5 +59,6 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "zones_layer": job.zones_layer,
         "structure_field": s.structure_field,
         "attribution": s.attribution,
+        "output_format": job.output_format.name(),
     })
 }

@@ -192,6 +192,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
         redundancy: o.redundancy,
         earlier_reports: o.earlier_damage_points.clone(),
         field_work: o.field_work.clone(),
+        output_format: o.output_format,
         _checked: Checked(()),
     };
     ranges(&job)?;

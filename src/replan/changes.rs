@@ -3,7 +3,8 @@
 //! newly joined to the hub or newly cut off from it.
 
 use super::carry::Carried;
-use crate::export::geojson::{GeoJsonWriter, Prop};
+use crate::export::geojson::Prop;
+use crate::export::sink::LayerSink;
 use crate::export::work_order_id::WorkOrderIds;
 use crate::network::{Network, cost_to_repair_metres};
 use std::collections::BTreeMap;
@@ -154,14 +155,12 @@ impl Changes<'_> {
     }
 
     /// Writes the layer: a LineString per road change, a Point per site change.
-    pub fn write<W: std::io::Write>(
+    pub fn write<S: LayerSink + ?Sized>(
         &self,
-        w: W,
+        gj: &mut S,
         net: &Network,
         ids: &WorkOrderIds,
-        attribution: Option<&str>,
     ) -> std::io::Result<()> {
-        let mut gj = GeoJsonWriter::layer(w, attribution)?;
         for &(kind, target) in &self.rows {
             match target {
                 Target::Edge(e) => {
@@ -202,7 +201,6 @@ impl Changes<'_> {
                 }
             }
         }
-        gj.finish()?;
         Ok(())
     }
 }

@@ -12,6 +12,7 @@ pub mod changes;
 pub mod finished;
 pub mod history;
 pub mod previous;
+mod previous_gpkg;
 pub mod restore;
 mod round;
 pub mod warm;
@@ -95,6 +96,8 @@ pub struct Request {
     pub sites: Option<Source>,
     /// The round's label (a date, a shift), written in the history.
     pub label: Option<String>,
+    /// The format of the map layers; `None` keeps the previous plan's.
+    pub output_format: Option<crate::export::sink::OutputFormat>,
 }
 
 /// A CSV line whose work order names no piece of the previous plan or its backup links.

@@ -1,5 +1,7 @@
 //! The previous plan's folder, read and never written: its `summary.json` (settings, inputs,
-//! history), the work orders of `plan.geojson` and `backup.geojson`, and which sites were joined.
+//! history), the work orders of the `plan` and `backup` layers, and which sites were joined. The
+//! layers are GeoJSON files, or tables of `layers.gpkg` when the summary records
+//! `output_format` `gpkg`.
 
 use super::ReplanError;
 use super::history::{self, Round};
@@ -70,9 +72,35 @@ fn broken(path: &Path, message: impl Into<String>) -> ReplanError {
     }
 }
 
-fn layer(
-    path: &Path,
-) -> Result<Option<Vec<serde_json::Map<String, serde_json::Value>>>, ReplanError> {
+/// Where the previous plan's layers are.
+enum Store<'a> {
+    /// One GeoJSON file per layer in this folder.
+    Files(&'a Path),
+    /// Tables of this GeoPackage.
+    Gpkg(PathBuf),
+}
+
+impl Store<'_> {
+    /// The file an error about layer `name` names.
+    fn path(&self, name: &str) -> PathBuf {
+        match self {
+            Store::Files(dir) => dir.join(format!("{name}.geojson")),
+            Store::Gpkg(p) => p.clone(),
+        }
+    }
+
+    /// The properties of layer `name`'s features, or `None` when the run wrote no such layer.
+    fn layer(&self, name: &str) -> Result<Option<Vec<Props>>, ReplanError> {
+        match self {
+            Store::Files(_) => layer(&self.path(name)),
+            Store::Gpkg(p) => super::previous_gpkg::layer(p, name).map_err(|m| broken(p, m)),
+        }
+    }
+}
+
+type Props = serde_json::Map<String, serde_json::Value>;
+
+fn layer(path: &Path) -> Result<Option<Vec<Props>>, ReplanError> {
     if !path.exists() {
         return Ok(None);
     }
@@ -83,13 +111,19 @@ fn layer(
     Ok(Some(l.features.into_iter().map(|f| f.properties).collect()))
 }
 
-fn pieces(path: &Path, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
-    let Some(features) = layer(path)? else {
+fn pieces(store: &Store, name: &str, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
+    let path = &store.path(name);
+    let Some(features) = store.layer(name)? else {
         return match backup {
             true => Ok(Vec::new()),
             false => Err(broken(
                 path,
-                "missing: give the folder of a plan reknit wrote",
+                match store {
+                    Store::Files(_) => "missing: give the folder of a plan reknit wrote".into(),
+                    Store::Gpkg(_) => {
+                        format!("has no {name} layer: give the folder of a plan reknit wrote")
+                    }
+                },
             )),
         };
     };
@@ -112,7 +146,7 @@ fn pieces(path: &Path, backup: bool) -> Result<Vec<OldPiece>, ReplanError> {
                 }),
                 _ => Err(broken(
                     path,
-                    format!("feature {i}: no `work_order`, `cost` or `repair`"),
+                    format!("layer {name}, feature {i}: no `work_order`, `cost` or `repair`"),
                 )),
             }
         })
@@ -151,9 +185,23 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
         serde_json::Value::Null => history::first(total),
         h => serde_json::from_value(h).map_err(|e| broken(&sp, format!("`history`: {e}")))?,
     };
+    let store = match settings.get("output_format").and_then(|f| f.as_str()) {
+        Some("gpkg") => Store::Gpkg(dir.join(crate::export::sink::GPKG_FILE)),
+        _ => Store::Files(dir),
+    };
+    if let Store::Gpkg(p) = &store
+        && !p.exists()
+    {
+        return Err(broken(
+            p,
+            "missing: the previous plan's summary says its layers were written as a GeoPackage \
+             (output_format gpkg); give the folder of a plan reknit wrote",
+        ));
+    }
     let mut sites = BTreeMap::new();
-    let sites_path = dir.join("sites.geojson");
-    for (i, p) in layer(&sites_path)?
+    let sites_path = store.path("sites");
+    for (i, p) in store
+        .layer("sites")?
         .unwrap_or_default()
         .into_iter()
         .enumerate()
@@ -167,7 +215,7 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
             _ => {
                 return Err(broken(
                     &sites_path,
-                    format!("feature {i}: no `site_id` or joined flag"),
+                    format!("layer sites, feature {i}: no `site_id` or joined flag"),
                 ));
             }
         };
@@ -181,8 +229,8 @@ pub fn read(dir: &Path) -> Result<Previous, ReplanError> {
             .unwrap_or_default()
             .to_string(),
         history,
-        plan: pieces(&dir.join("plan.geojson"), false)?,
-        backup: pieces(&dir.join("backup.geojson"), true)?,
+        plan: pieces(&store, "plan", false)?,
+        backup: pieces(&store, "backup", true)?,
         sites,
         finished_to_date: match v.pointer("/replan/finished_to_date") {
             None | Some(serde_json::Value::Null) => Vec::new(),

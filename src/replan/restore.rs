@@ -6,6 +6,7 @@
 
 use super::ReplanError;
 use super::previous::{Previous, RecordedInput};
+use crate::export::sink::OutputFormat;
 use crate::ingest::source::Source;
 use crate::job::Options;
 use crate::solve::MstAlgorithm;
@@ -228,6 +229,10 @@ pub const SETTINGS: &[(&str, Set)] = &[
     }),
     ("attribution", |o, v| {
         o.road.attribution = text(v)?;
+        Ok(())
+    }),
+    ("output_format", |o, v| {
+        o.output_format = named(v, &OutputFormat::ALL, OutputFormat::name)?.unwrap_or_default();
         Ok(())
     }),
 ];

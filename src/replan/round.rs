@@ -46,6 +46,9 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     done.extend(prev.finished_to_date.iter().cloned());
     let mut o = Options::new(Source::File(PathBuf::new()), req.out.clone());
     restore::settings(&prev, &mut o)?;
+    if let Some(f) = req.output_format {
+        o.output_format = f;
+    }
     let mut had_roads = false;
     let mut roads_seen = false;
     let had_sites = prev.inputs.iter().any(|i| i.role == "sites");

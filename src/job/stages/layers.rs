@@ -68,6 +68,7 @@ pub(in crate::job) fn write(
     ));
     let rows = sites.map(rows::site_rows);
     summary.outputs = export::output_names(
+        job.output_format,
         rows.is_some(),
         p.single_failures.is_some(),
         p.backup.is_some(),
@@ -109,6 +110,7 @@ pub(in crate::job) fn write(
                 budget: job.budget,
                 site_ids: &site_ids,
                 summary: &summary,
+                format: job.output_format,
             },
         )?;
     }
@@ -159,11 +161,13 @@ fn replan_round<'a>(
         finished_to_date: w.finished.iter().cloned().collect(),
         changes: found.counts(),
     });
+    // The changes layer is a file of its own in GeoJSON, a table of layers.gpkg otherwise.
+    let geojson = job.output_format == export::sink::OutputFormat::GeoJson;
     let listed = std::mem::take(&mut summary.outputs);
     summary.outputs = export::staging::OUTPUT_NAMES
         .iter()
         .copied()
-        .filter(|n| *n == "changes.geojson" || listed.contains(n))
+        .filter(|n| (*n == "changes.geojson" && geojson) || listed.contains(n))
         .collect();
     Some(found)
 }
