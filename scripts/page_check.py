@@ -90,6 +90,9 @@ def main():
 
         repairs = [f for f in features(os.path.join(folder, "plan.geojson"))
                    if f["properties"].get("repair")]
+        # Repairs of 30 m or more: a shorter one may lie under a site's symbol, which a click picks first.
+        repairs = [f for f in repairs if f["properties"]["length_m"] >= 30] or repairs
+        repairs.sort(key=lambda f: f["properties"]["order"])
         picks = [repairs[i] for i in sorted({0, len(repairs) // 2, len(repairs) - 1})] if repairs else []
         out["repair_clicks"] = []
         for f in picks:

@@ -261,11 +261,12 @@ fn liechtenstein_page_in_chromium() {
     let d = tmp();
     let roads = data(LI_GEOJSON);
     // Ten sites on road vertices spread through the extract (every road damaged at the default).
-    let fc = read_fc(&roads);
+    let fc = read_json(&roads);
     let mut pts: Vec<[f64; 2]> = Vec::new();
-    for f in &fc.features {
-        if let Some(geojson::Value::LineString(c)) = f.geometry.as_ref().map(|g| &g.value) {
-            pts.push([c[0][0], c[0][1]]);
+    for f in fc["features"].as_array().unwrap() {
+        if f["geometry"]["type"] == "LineString" {
+            let c = &f["geometry"]["coordinates"][0];
+            pts.push([c[0].as_f64().unwrap(), c[1].as_f64().unwrap()]);
         }
     }
     pts.sort_by(|a, b| a[0].total_cmp(&b[0]).then(a[1].total_cmp(&b[1])));

@@ -1,13 +1,14 @@
 'use strict';
 // The map page's drawing: the data decoded from the JSON element, the view (centre and zoom in
 // metres of the district's local frame) and the layers drawn on the canvas in the picture's order
+// (corridors under the plan, so the repairs' day colours stay visible)
 // and colours. ui.js adds the controls. Text from the data is only ever set as text, never as markup.
 var reknitMap = (function () {
   var D = JSON.parse(document.getElementById('map-data').textContent);
   var R = D.res, C = D.colours;
   var canvas = document.getElementById('map');
   var ctx = canvas.getContext('2d');
-  var ORDER = ['zones', 'network', 'single_failures', 'plan', 'backup', 'corridors', 'qa', 'sites'];
+  var ORDER = ['zones', 'network', 'single_failures', 'corridors', 'plan', 'backup', 'qa', 'sites'];
   var STATUS = ['joined', 'not_attached', 'left_out_by_budget', 'unreachable'];
 
   // A feature: its leading numbers (m), its points in metres (p) and its bounding box (b).
@@ -166,7 +167,7 @@ var reknitMap = (function () {
       L.feats.forEach(function (f) {
         if (!meets(f.b, v)) return;
         var x = sx(f.p[0]), y = sy(f.p[1]);
-        ctx.moveTo(x, y - 4); ctx.lineTo(x + 4, y); ctx.lineTo(x, y + 4); ctx.lineTo(x - 4, y); ctx.closePath();
+        ctx.moveTo(x, y - 3); ctx.lineTo(x + 3, y); ctx.lineTo(x, y + 3); ctx.lineTo(x - 3, y); ctx.closePath();
         n++;
       });
       ctx.fillStyle = C.qa; ctx.fill();
