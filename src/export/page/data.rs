@@ -14,7 +14,7 @@ use crate::export::strokes::{Lines, Stroker};
 pub use crate::export::strokes::SIMPLIFY_ABOVE;
 
 /// The simplified page's grid is this many times finer than the picture's pixels.
-pub const FINER: f64 = 4.0;
+pub const FINER: f64 = 2.0;
 
 /// Site statuses in the order of the page's symbols.
 pub const STATUSES: [&str; 4] = ["joined", "not_attached", "left_out_by_budget", "unreachable"];

@@ -93,7 +93,7 @@ pub fn write_legend<W: Write>(w: &mut W, p: &Page) -> io::Result<()> {
     let lg = &p.drawing.legend;
     writeln!(
         w,
-        r#"<svg id="legend" width="{}" height="{}" font-family="DejaVu Sans, Arial, sans-serif">"#,
+        r#"<svg id="legend" width="{0}" height="{1}" viewBox="0 0 {0} {1}" font-family="DejaVu Sans, Arial, sans-serif">"#,
         lg.width + 1.0,
         lg.height + 1.0
     )?;

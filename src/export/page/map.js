@@ -57,7 +57,7 @@ var reknitMap = (function () {
 
   function fit() {
     size();
-    var b = extent(), pad = 24;
+    var b = extent(), pad = 52;
     var z = Math.min((W - 2 * pad) / Math.max(b[2] - b[0], 1), (H - 2 * pad) / Math.max(b[3] - b[1], 1));
     view.z = view.fitZ = Math.max(z, 1e-6);
     view.cx = (b[0] + b[2]) / 2; view.cy = (b[1] + b[3]) / 2;

@@ -111,12 +111,15 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     let colours = p.colours();
     j.strs(colours.iter().map(String::as_str)).raw(",");
     j.key("header").strs(super::work_orders::HEADER).raw(",");
+    // The last column (the caution) is the same sentence on every row: written once.
+    j.key("rowCaution").str(crate::cautions::WORK_ORDER).raw(",");
     j.key("rows").raw("[");
     for (i, r) in p.rows.iter().enumerate() {
         if i > 0 {
             j.raw(",");
         }
-        j.strs(r.iter().map(String::as_str));
+        debug_assert_eq!(r[23], crate::cautions::WORK_ORDER);
+        j.strs(r[..23].iter().map(String::as_str));
     }
     j.raw("],").key("info");
     info::write_info(&mut j, p);

@@ -80,7 +80,7 @@
     if (!s) {
       document.getElementById('info').textContent = 'Nothing here: click a repair or a site.';
     } else if (s.layer === 'plan' || s.layer === 'backup') {
-      var f = M.layers[s.layer].feats[s.index], row = D.rows[f.m[s.layer === 'plan' ? 1 : 0]];
+      var f = M.layers[s.layer].feats[s.index], row = D.rows[f.m[s.layer === 'plan' ? 1 : 0]].concat([D.rowCaution]);
       table('Work order ' + row[0] + (s.layer === 'backup' ? ' (backup link)' : ''), D.header, row);
     } else {
       var info = D.info[s.layer], titles = { sites: 'Site', qa: 'Geometry check', single_failures: 'Road with no way round', corridors: 'Corridor' };
