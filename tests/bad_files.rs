@@ -365,7 +365,7 @@ case!(hostile_names_in_a_shapefile_road_layer, |d| {
     drop(w);
     write_wgs84_prj(&p);
     let out = plan_ok(d, &["--roads", &s(&p), "--whole-network"]);
-    for name in ["plan.svg", "report.html", "work-orders.csv"] {
+    for name in ["plan.svg", "report.html", "map.html", "work-orders.csv"] {
         let text = std::fs::read_to_string(out.join(name)).unwrap();
         let bad = text
             .chars()

@@ -327,7 +327,7 @@ case!(control_characters_in_names_reach_no_output, |d| {
             d,
             &["--roads", &s(&roads), "--sites", &s(&sites), "--force"],
         );
-        for name in ["plan.svg", "report.html", "work-orders.csv"] {
+        for name in ["plan.svg", "report.html", "map.html", "work-orders.csv"] {
             let text = std::fs::read_to_string(out.join(name)).unwrap();
             let bad = text
                 .chars()

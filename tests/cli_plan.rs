@@ -16,6 +16,7 @@ fn demo_joins_the_sites_and_reports_them() {
         [
             ".reknit-outputs",
             "corridors.geojson",
+            "map.html",
             "network.geojson",
             "plan.geojson",
             "plan.png",
@@ -81,6 +82,7 @@ fn whole_network_demo_writes_a_complete_consistent_set() {
         listing(&out),
         [
             ".reknit-outputs",
+            "map.html",
             "network.geojson",
             "plan.geojson",
             "plan.png",
@@ -240,6 +242,7 @@ fn existing_outputs_need_force() {
         listing(&out),
         [
             ".reknit-outputs",
+            "map.html",
             "network.geojson",
             "plan.geojson",
             "plan.png",

@@ -81,7 +81,7 @@ pub struct CorridorLayer {
 }
 
 /// The route's points from the hub, each edge's geometry turned to run onward.
-fn route_points(net: &Network, from: u32, edges: &[u32]) -> Vec<[f64; 2]> {
+pub(crate) fn route_points(net: &Network, from: u32, edges: &[u32]) -> Vec<[f64; 2]> {
     let mut pts: Vec<[f64; 2]> = Vec::new();
     let mut at = from;
     for &e in edges {

@@ -65,6 +65,33 @@ impl Frame {
     pub fn map_bottom(&self) -> f64 {
         self.map.1 + self.map.3
     }
+
+    /// Metres east and north of the district's south-west corner in the frame's local
+    /// equirectangular projection: the map page's coordinates.
+    pub fn metres(&self, p: [f64; 2]) -> (f64, f64) {
+        let (x, y) = self.px(p);
+        self.px_metres((x, y))
+    }
+
+    /// The metres (as [`Frame::metres`]) of a pixel position.
+    pub fn px_metres(&self, (x, y): (f64, f64)) -> (f64, f64) {
+        ((x - self.origin.0) / self.scale, (self.origin.1 - y) / self.scale)
+    }
+
+    /// The projection behind [`Frame::metres`]: western longitudes a turn east or not, the
+    /// south-west corner (lon, lat), and metres per degree of longitude and of latitude.
+    pub fn projection(&self) -> (bool, [f64; 2], f64, f64) {
+        (self.east, self.lo, self.mx, self.my)
+    }
+
+    /// The same frame with `k` times as many pixels each way (a finer grid for snapping).
+    pub fn finer(&self, k: f64) -> Frame {
+        Frame {
+            scale: self.scale * k,
+            origin: (self.origin.0 * k, self.origin.1 * k),
+            ..self.clone()
+        }
+    }
 }
 
 /// The bounds of the network and the sites, lon/lat, and whether western longitudes go a turn

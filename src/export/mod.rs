@@ -19,6 +19,7 @@ pub mod layout;
 pub mod legend;
 pub mod metrics;
 pub mod ownership;
+pub mod page;
 pub mod palette;
 pub mod picture;
 pub mod raster;
@@ -206,8 +207,8 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         attribution,
     };
     // The picture and the two big layers are independent: write them side by side.
+    let drawn = drawing::prepare(&scene);
     let pictures = || -> Result<Vec<u8>, ExportError> {
-        let drawn = drawing::prepare(&scene);
         let (svg, png) = rayon::join(
             || {
                 st.write("plan.svg", |w| {
@@ -253,6 +254,32 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                 backup: o.backup,
                 budget: o.budget,
                 scheduled: o.scheduled,
+            },
+        )
+    })?;
+    st.write("map.html", |w| {
+        let rows: Vec<[String; 25]> = work_orders::rows(
+            o.net,
+            o.steps,
+            o.backup.map_or(&[][..], |b| &b.rows[..]),
+            o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+            o.site_ids,
+            ids,
+            text::plain,
+        )
+        .collect();
+        page::write_page(
+            w,
+            &page::Page {
+                scene: &scene,
+                drawing: &drawn,
+                sites: o.sites.unwrap_or_default(),
+                qa: o.qa,
+                single_failures: o.single_failures,
+                backup: o.backup,
+                corridors: o.corridors,
+                rows: &rows,
+                keys: ids,
             },
         )
     })?;

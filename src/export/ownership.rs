@@ -21,6 +21,7 @@ pub const OUTPUT_NAMES: &[&str] = &[
     "plan.svg",
     "plan.png",
     "report.html",
+    "map.html",
     "summary.json",
 ];
 

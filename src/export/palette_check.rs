@@ -279,6 +279,27 @@ fn roads_sites_and_paper_stand_apart_from_every_day() {
 }
 
 #[test]
+fn the_map_pages_own_colours_stand_apart_from_every_day_and_each_other() {
+    let page = [SINGLE_FAILURE, CORRIDOR, QA_POINT];
+    for c in page {
+        for other in every_day_colour().iter().map(String::as_str).chain([
+            ROAD,
+            PLAN_INTACT,
+            IMPASSABLE,
+            DAMAGED,
+            BACKUP,
+            INK,
+            PAPER,
+        ]) {
+            for (view, m) in &VIEWS {
+                let d = de00(seen(c, m), seen(other, m));
+                assert!(d >= OTHERS, "{c} against {other}, {view}: ΔE00 {d}");
+            }
+        }
+    }
+}
+
+#[test]
 fn bins_hold_consecutive_days_and_none_is_empty() {
     for days in 1..=300 {
         let b = bins(days);

@@ -1,4 +1,5 @@
-//! `report.html`: one self-contained page (no scripts, no network, prints on A4 and Letter) for
+//! `report.html`: one self-contained page (no scripts, no network, prints on A4 and Letter; its one
+//! link is to `map.html` beside it) for
 //! coordinators without GIS software: the cautions, the map, the figures, the repairs in order
 //! with their work orders, the sites, the budget, the damage reports, the single failures, the
 //! geometry checks, the inputs, the settings and a glossary of the terms it uses.
@@ -109,7 +110,7 @@ pub fn write_report<W: Write>(mut w: W, c: &Context) -> io::Result<()> {
     }
     writeln!(
         w,
-        "<h2>Map</h2><img alt=\"map of the plan\" src=\"data:image/png;base64,{}\">",
+        "<h2>Map</h2><p class=\"map-link\"><a href=\"map.html\">Open the interactive map (map.html)</a>: pan, zoom, switch layers, click a repair for its work order; it works offline from this folder.</p><img alt=\"map of the plan\" src=\"data:image/png;base64,{}\">",
         base64(c.png)
     )?;
     write_figures(&mut w, c)?;

@@ -68,6 +68,39 @@ pub fn html(s: &str) -> String {
     xml(s)
 }
 
+/// Text from the inputs for the map page's data: control characters replaced, as in the other
+/// outputs. The page shows it only as text (never as markup), and [`script_json`] makes the data
+/// safe inside its script element.
+pub fn plain(s: &str) -> Cow<'_, str> {
+    if !s.chars().any(char::is_control) {
+        return Cow::Borrowed(s);
+    }
+    Cow::Owned(
+        s.chars()
+            .map(|c| if c.is_control() { REPLACEMENT } else { c })
+            .collect(),
+    )
+}
+
+/// JSON text made safe inside an HTML `<script>` element: `<`, `>` and `&` (which can only occur
+/// inside JSON strings) and the line separators U+2028 and U+2029 become `\u` escapes, so no
+/// name can close the element, open a comment or end a line of the script. The value is unchanged
+/// for any JSON parser (RFC 8259 §7: any character may be escaped).
+pub fn script_json(json: &str) -> String {
+    let mut out = String::with_capacity(json.len() + 16);
+    for c in json.chars() {
+        match c {
+            '<' => out.push_str("\\u003c"),
+            '>' => out.push_str("\\u003e"),
+            '&' => out.push_str("\\u0026"),
+            '\u{2028}' => out.push_str("\\u2028"),
+            '\u{2029}' => out.push_str("\\u2029"),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
 /// Text for the terminal: control characters other than the line feed shown as `\u{…}` escapes,
 /// so no name can move the cursor, clear the screen or change colours.
 pub fn terminal(s: &str) -> Cow<'_, str> {
@@ -118,5 +151,20 @@ mod tests {
         assert_eq!(xml("a\u{1}<b>"), "a\u{FFFD}&lt;b&gt;");
         assert_eq!(csv_cell("a\u{7}b"), "a\u{FFFD}b");
         assert_eq!(terminal("a\u{1b}[2Jb\nc"), "a\\u{1b}[2Jb\nc");
+    }
+
+    #[test]
+    fn script_json_cannot_close_the_script_and_reads_back_whole() {
+        let name = "</script><script>alert('x')</script> \"quoted\" <!-- & \u{2028}\u{2029}";
+        let json = serde_json::to_string(&serde_json::json!({ "road": name })).unwrap();
+        let safe = script_json(&json);
+        for banned in ["<", ">", "&", "\u{2028}", "\u{2029}"] {
+            assert!(!safe.contains(banned), "{banned:?} left in {safe}");
+        }
+        // Any JSON parser reads the same value back (RFC 8259 §7).
+        let back: serde_json::Value = serde_json::from_str(&safe).unwrap();
+        assert_eq!(back["road"], name);
+        assert_eq!(plain("a\u{1b}[2Jb"), "a\u{FFFD}[2Jb");
+        assert_eq!(plain("</script>"), "</script>");
     }
 }

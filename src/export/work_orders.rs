@@ -8,53 +8,52 @@ use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::order::Step;
 use std::io::Write;
 
-/// Writes the work orders: order, crew, first and last day (empty without `--crew-capacity`), edge, source feature, road, length, damage, cost, ends,
-/// the sites each repair completes, its purpose (`plan`; `backup` for backup links and `detour` for
-/// the optional repairs that shorten corridors, neither of which has a crew or days), then the columns crews hand back: the work-order key (stable across re-plans,
-/// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
-/// and `verified_on`, and the fixed caution sentence.
-pub fn write_work_orders<W: Write>(
-    w: W,
-    net: &Network,
-    steps: &[Step],
-    backup: &[BackupRow],
-    detour: &[u32],
-    site_ids: &[String],
-    ids: &super::work_order_id::WorkOrderIds,
-) -> std::io::Result<()> {
-    let mut c = csv::Writer::from_writer(w);
-    let io = |e: csv::Error| std::io::Error::other(e.to_string());
-    c.write_record([
-        "order",
-        "crew",
-        "first_day",
-        "last_day",
-        "edge",
-        "source_index",
-        "source_layer",
-        "source_id",
-        "road",
-        "length_m",
-        "damage",
-        "category",
-        "cost",
-        "from_lon",
-        "from_lat",
-        "to_lon",
-        "to_lat",
-        "completes_sites",
-        "purpose",
-        "work_order",
-        "structure",
-        "status",
-        "verified_by",
-        "verified_on",
-        "caution",
-    ])
-    .map_err(io)?;
+/// The columns of `work-orders.csv`, in order.
+pub const HEADER: [&str; 25] = [
+    "order",
+    "crew",
+    "first_day",
+    "last_day",
+    "edge",
+    "source_index",
+    "source_layer",
+    "source_id",
+    "road",
+    "length_m",
+    "damage",
+    "category",
+    "cost",
+    "from_lon",
+    "from_lat",
+    "to_lon",
+    "to_lat",
+    "completes_sites",
+    "purpose",
+    "work_order",
+    "structure",
+    "status",
+    "verified_by",
+    "verified_on",
+    "caution",
+];
+
+/// A text cell on its way out: [`csv_cell`] for the CSV, [`super::text::plain`] for the map page.
+pub type Cell = fn(&str) -> std::borrow::Cow<'_, str>;
+
+/// The work-order rows, one per repair in order (the columns of [`HEADER`]): the plan's repairs,
+/// then the backup links' and the detour offers'; free text passes through `cell`.
+pub fn rows<'a>(
+    net: &'a Network,
+    steps: &'a [Step],
+    backup: &'a [BackupRow],
+    detour: &'a [u32],
+    site_ids: &'a [String],
+    ids: &'a super::work_order_id::WorkOrderIds,
+    cell: Cell,
+) -> impl Iterator<Item = [String; 25]> + 'a {
     let rows = steps
         .iter()
-        .map(|s| {
+        .map(move |s| {
             let completes: Vec<&str> = s
                 .completes
                 .iter()
@@ -81,7 +80,7 @@ pub fn write_work_orders<W: Write>(
                 (e, order, Default::default(), String::new(), "detour")
             })
         });
-    for (edge, order, [crew, first_day, last_day], completes, purpose) in rows {
+    rows.map(move |(edge, order, [crew, first_day, last_day], completes, purpose)| {
         let e = &net.edges[edge as usize];
         let meta = &net.features[e.feature as usize];
         let g = net.edge_geometry(edge as usize);
@@ -92,37 +91,58 @@ pub fn write_work_orders<W: Write>(
             Some(v) => v.to_string(),
             None => String::new(),
         };
-        c.write_record([
+        [
             order.to_string(),
             crew,
             first_day,
             last_day,
             edge.to_string(),
             meta.source_index.to_string(),
-            csv_cell(net.source_layer(e.feature).unwrap_or_default()).into_owned(),
-            csv_cell(&id).into_owned(),
-            csv_cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
+            cell(net.source_layer(e.feature).unwrap_or_default()).into_owned(),
+            cell(&id).into_owned(),
+            cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(e.length_m, 3),
             // Numeric, or empty for an impassable road (never repaired, so never written here).
             e.damage
                 .factor()
                 .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
-            csv_cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
+            cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
             crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
             f7(a[0]),
             f7(a[1]),
             f7(b[0]),
             f7(b[1]),
-            csv_cell(&completes).into_owned(),
+            cell(&completes).into_owned(),
             purpose.to_string(),
-            csv_cell(&ids.key(net, edge)).into_owned(),
-            csv_cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
+            cell(&ids.key(net, edge)).into_owned(),
+            cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
             String::new(),
             String::new(),
             String::new(),
             crate::cautions::WORK_ORDER.to_string(),
-        ])
-        .map_err(io)?;
+        ]
+    })
+}
+
+/// Writes the work orders (the rows of [`rows`]): order, crew, first and last day (empty without `--crew-capacity`), edge, source feature, road, length, damage, cost, ends,
+/// the sites each repair completes, its purpose (`plan`; `backup` for backup links and `detour` for
+/// the optional repairs that shorten corridors, neither of which has a crew or days), then the columns crews hand back: the work-order key (stable across re-plans,
+/// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
+/// and `verified_on`, and the fixed caution sentence.
+pub fn write_work_orders<W: Write>(
+    w: W,
+    net: &Network,
+    steps: &[Step],
+    backup: &[BackupRow],
+    detour: &[u32],
+    site_ids: &[String],
+    ids: &super::work_order_id::WorkOrderIds,
+) -> std::io::Result<()> {
+    let mut c = csv::Writer::from_writer(w);
+    let io = |e: csv::Error| std::io::Error::other(e.to_string());
+    c.write_record(HEADER).map_err(io)?;
+    for row in rows(net, steps, backup, detour, site_ids, ids, csv_cell) {
+        c.write_record(row).map_err(io)?;
     }
     c.flush()
 }
