@@ -7,7 +7,7 @@ mod common;
 use common::exact::{arb_instance, dreyfus_wagner};
 use proptest::prelude::*;
 use reknit::solve::graph::{Csr, EdgeList, UNUSABLE};
-use reknit::solve::steiner::dual_ascent::dual_ascent;
+use reknit::solve::steiner::dual_ascent::{dual_ascent, dual_ascent_from};
 use reknit::solve::steiner::exact::connected;
 use reknit::solve::steiner::fixing::{reduced_cost_doomed, special_distance_doomed};
 use reknit::solve::steiner::paths::Workspace;
@@ -51,6 +51,71 @@ proptest! {
         prop_assert_eq!(left.min(upper), opt);
         let sd = special_distance_doomed(rg, &csr, it);
         prop_assert_eq!(optimum_without(rg, rt, &sd), Some(opt));
+    }
+
+    /// Dual ascents from every terminal as root: each bound stays at or below the optimum
+    /// (Dreyfus–Wagner), and the union of their reduced-cost tests at limit U + 1 (U a real tree's
+    /// cost) still keeps the optimum, as does the union of the tests at limit U, up to U itself.
+    #[test]
+    fn ascents_from_every_root_keep_an_optimum((g, terms) in arb_instance()) {
+        let mut terms = terms;
+        terms.sort_unstable();
+        let red = reduce(&g, &terms);
+        prop_assume!(red.terminals.len() >= 2);
+        let (rg, rt, it) = (&red.graph, &red.terminals, &red.is_terminal);
+        let csr = Csr::from_edges(rg);
+        let opt = dreyfus_wagner(rg, rt);
+        let upper = rg.total(&mehlhorn(rg, &csr, rt, it, &mut Workspace::new(rg.vertices)).edges);
+        let mut keep = vec![false; rg.len()];
+        let mut strict = vec![false; rg.len()];
+        for &root in rt {
+            let b = dual_ascent_from(rg, &csr, rt, root, u64::MAX);
+            prop_assert!(b.complete && b.value <= opt, "root {}: bound {} > {}", root, b.value, opt);
+            prop_assert_eq!(b.root, root);
+            let k = reduced_cost_doomed(rg, &csr, it, root, &b, upper + 1);
+            let s = reduced_cost_doomed(rg, &csr, it, root, &b, upper);
+            for e in 0..rg.len() {
+                keep[e] |= k[e];
+                strict[e] |= s[e];
+            }
+        }
+        prop_assert_eq!(optimum_without(rg, rt, &keep), Some(opt));
+        let left = optimum_without(rg, rt, &strict).unwrap_or(u64::MAX);
+        prop_assert_eq!(left.min(upper), opt);
+    }
+
+    /// One exact step with ascents from several roots, started from a real tree: the bound it
+    /// reports never exceeds the optimum (Dreyfus–Wagner) unless the held tree is already optimal,
+    /// the held tree never gets dearer, and the edges left still hold an optimal tree whenever the
+    /// held one is not optimal.
+    #[test]
+    fn a_step_with_many_roots_keeps_an_optimum((g, terms) in arb_instance(), roots in 1usize..5) {
+        use reknit::solve::steiner::exact::{Incumbent, step};
+        let mut terms = terms;
+        terms.sort_unstable();
+        let red = reduce(&g, &terms);
+        prop_assume!(red.terminals.len() >= 2);
+        let (rg, rt, it) = (&red.graph, &red.terminals, &red.is_terminal);
+        let csr = Csr::from_edges(rg);
+        let opt = dreyfus_wagner(rg, rt);
+        let start = mehlhorn(rg, &csr, rt, it, &mut Workspace::new(rg.vertices)).edges;
+        let mut best = Incumbent { cost: rg.total(&start), edges: start };
+        let mut ws = Workspace::new(rg.vertices);
+        let s = step(rg.clone(), rt, &mut best, Effort::Normal, roots, &mut ws);
+        prop_assert!(best.cost >= opt);
+        prop_assert_eq!(rg.total(&best.edges), best.cost);
+        match s.bound {
+            None => prop_assert_eq!(best.cost, opt, "closed, so the held tree is optimal"),
+            Some(b) => {
+                prop_assert!(b <= opt, "bound {} above the optimum {}", b, opt);
+                let mut gone = vec![true; rg.len()];
+                for &e in &s.alive {
+                    gone[e as usize] = false;
+                }
+                let left = optimum_without(rg, rt, &gone).unwrap_or(u64::MAX);
+                prop_assert_eq!(left.min(best.cost), opt);
+            }
+        }
     }
 
     /// Merging shortest-path trees from every terminal: a merged tree is a tree over the terminals

@@ -68,6 +68,10 @@ pub struct Limits {
     pub deadline: Option<Instant>,
 }
 
+/// Dual ascents per round of a step below the root (one: more cost about their share of time per
+/// step and closed no more subproblems on SteinLib D).
+pub const NODE_ASCENTS: usize = 1;
+
 /// Searches `g` (positive costs) for a tree over `terminals` cheaper than `best` within `limits`,
 /// starting from the lower bound `bound`. `report(best cost, bound)` hears of every improvement of
 /// either.
@@ -123,7 +127,14 @@ pub fn search(
         let mut terms: Vec<u32> = terminals.iter().chain(&open.include).copied().collect();
         terms.sort_unstable();
         terms.dedup();
-        let s = exact::step(sub, &terms, &mut best, Effort::Normal, &mut ws);
+        let s = exact::step(
+            sub,
+            &terms,
+            &mut best,
+            Effort::Normal,
+            NODE_ASCENTS,
+            &mut ws,
+        );
         if let Some(b) = s.bound {
             let b = b.max(open.bound);
             if let (true, Some(v)) = (b < best.cost, s.branch) {

@@ -23,8 +23,10 @@ pub struct Bound {
     pub saturated: Vec<bool>,
     /// Reduced cost of every arc, indexed by adjacency entry: entry `k` of vertex `w` (neighbour
     /// `u`) holds the arc u→w. Empty when no ascent ran. With `value` it prices any tree rooted at
-    /// the first terminal: its cost is at least `value` plus the reduced costs of its arcs.
+    /// `root`: its cost is at least `value` plus the reduced costs of its arcs.
     pub reduced: Vec<u64>,
+    /// The terminal the ascent's arcs point away from.
+    pub root: u32,
 }
 
 impl Bound {
@@ -35,12 +37,28 @@ impl Bound {
             complete,
             saturated: Vec::new(),
             reduced: Vec::new(),
+            root: 0,
         }
     }
 }
 
-/// Runs the dual ascent with at most about `budget` arc visits.
+/// Runs the dual ascent rooted at the first terminal with at most about `budget` arc visits.
 pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> Bound {
+    match terminals.first() {
+        Some(&root) => dual_ascent_from(g, csr, terminals, root, budget),
+        None => dual_ascent_from(g, csr, terminals, 0, budget),
+    }
+}
+
+/// Runs the dual ascent rooted at `root` (one of `terminals`) with at most about `budget` arc
+/// visits. Each root gives its own bound and reduced costs; none is best for every graph.
+pub fn dual_ascent_from(
+    g: &EdgeList,
+    csr: &Csr,
+    terminals: &[u32],
+    root: u32,
+    budget: u64,
+) -> Bound {
     if terminals.len() < 2 {
         return Bound {
             saturated: vec![false; g.len()],
@@ -48,7 +66,6 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         };
     }
     let n = g.vertices;
-    let root = terminals[0];
     // Reduced cost of arc u→w for adjacency entry i of u is kept on the mirrored entry of w, so the
     // arcs entering w are w's own adjacency entries: rc_in[i] for entry i of w means arc target→w.
     let mut rc_in: Vec<u64> = csr.edge.iter().map(|&e| g.cost[e as usize]).collect();
@@ -56,8 +73,11 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
     let mut round = 0u32;
     let mut lb = 0u64;
     let mut work = 0u64;
-    let mut heap: BinaryHeap<Reverse<(usize, u32)>> =
-        terminals[1..].iter().map(|&t| Reverse((1, t))).collect();
+    let mut heap: BinaryHeap<Reverse<(usize, u32)>> = terminals
+        .iter()
+        .filter(|&&t| t != root)
+        .map(|&t| Reverse((1, t)))
+        .collect();
     let mut w_set: Vec<u32> = Vec::new();
     let mut cut: Vec<usize> = Vec::new();
     while let Some(Reverse((size, t))) = heap.pop() {
@@ -123,6 +143,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
                 complete: false,
                 saturated: saturated(g, csr, &rc_in),
                 reduced: rc_in,
+                root,
             };
         }
     }
@@ -131,6 +152,7 @@ pub fn dual_ascent(g: &EdgeList, csr: &Csr, terminals: &[u32], budget: u64) -> B
         complete: true,
         saturated: saturated(g, csr, &rc_in),
         reduced: rc_in,
+        root,
     }
 }
 

@@ -6,11 +6,12 @@
 //! tests ([`fixing`]) against the best tree held. Every tree cheaper than that best tree survives, so
 //! the lower bound found holds for the whole subproblem.
 
-use super::dual_ascent::{Bound, dual_ascent};
+use super::dual_ascent::{Bound, dual_ascent_from};
 use super::paths::Workspace;
 use super::{Effort, fixing, polish, reduce, sph, tree};
 use crate::solve::disjoint::DisjointSets;
 use crate::solve::graph::{Csr, EdgeList, UNUSABLE};
+use rayon::prelude::*;
 
 /// Rounds of bound and reduction per step (each shrinks the graph; later ones rarely pay).
 const ROUNDS: usize = 4;
@@ -37,12 +38,14 @@ pub struct Incumbent {
 }
 
 /// Runs one step on `g` (the base graph with ruled-out edges at [`UNUSABLE`]) for `terminals`,
-/// improving `best` when a cheaper tree turns up.
+/// improving `best` when a cheaper tree turns up; each round runs dual ascents from up to `roots`
+/// terminals.
 pub fn step(
     mut g: EdgeList,
     terminals: &[u32],
     best: &mut Incumbent,
     effort: Effort,
+    roots: usize,
     ws: &mut Workspace,
 ) -> Step {
     let mut lb = 0u64;
@@ -62,25 +65,10 @@ pub fn step(
         let rg = &red.graph;
         let csr = Csr::from_edges(rg);
         let it = &red.is_terminal;
-        let bound = if red.terminals.len() >= 2 {
-            let size = rg.vertices + rg.len();
-            let budget = effort.bound_budget(size).unwrap_or(u64::MAX);
-            dual_ascent(rg, &csr, &red.terminals, budget)
-        } else {
-            Bound::zero(true)
-        };
-        work += 2 * rg.len() as u64 * red.terminals.len() as u64;
-        lb = lb.max(bound.value);
-        // A tree on the saturated arcs, which join every terminal to the root.
-        let t = if red.terminals.len() >= 2 {
-            let sat = saturated_graph(rg, &bound);
-            let sat_csr = Csr::from_edges(&sat);
-            let t = sph::sph(&sat, &sat_csr, &red.terminals, it, red.terminals[0], ws);
-            let t = tree::mst_prune(rg, &csr, &t, it);
-            polish(rg, &csr, it, t, ws, effort)
-        } else {
-            Vec::new()
-        };
+        let bounds = ascents(rg, &csr, &red.terminals, effort, roots);
+        work += (2 * rg.len() * red.terminals.len() * bounds.len()) as u64;
+        lb = lb.max(bounds.iter().map(|b| b.value).max().unwrap_or(0));
+        let t = da_tree(rg, &csr, it, &red.terminals, &bounds, effort, ws);
         let edges = reduce::expand(&g, &red, &t, terminals);
         let cost = tree::cost(&g, &edges);
         if cost < best.cost {
@@ -93,9 +81,13 @@ pub fn step(
         }
         let mut doomed = vec![false; rg.len()];
         if red.terminals.len() >= 2 {
-            let root = red.terminals[0];
-            let rc = fixing::reduced_cost_doomed(rg, &csr, it, root, &bound, best.cost);
-            doomed = rc;
+            // Each ascent's test keeps every tree cheaper than the best one, so their union does.
+            for b in &bounds {
+                let rc = fixing::reduced_cost_doomed(rg, &csr, it, b.root, b, best.cost);
+                for (d, r) in doomed.iter_mut().zip(rc) {
+                    *d |= r;
+                }
+            }
             // The special-distance test looks only at costs, which later rounds do not change.
             if round == 0 {
                 let sd = fixing::special_distance_doomed(rg, &csr, it);
@@ -137,6 +129,68 @@ pub fn step(
         }
     }
     unreachable!("the last round returns")
+}
+
+/// Dual ascents (complete, or within `effort`'s budget) from up to `roots` terminals spread over
+/// `terminals`, the first always among them; side by side on both cores, in a fixed order.
+pub fn ascents(
+    rg: &EdgeList,
+    csr: &Csr,
+    terminals: &[u32],
+    effort: Effort,
+    roots: usize,
+) -> Vec<Bound> {
+    let k = terminals.len();
+    if k < 2 {
+        return vec![Bound::zero(true)];
+    }
+    let r = roots.clamp(1, k);
+    let budget = effort
+        .bound_budget(rg.vertices + rg.len())
+        .unwrap_or(u64::MAX);
+    let picks: Vec<u32> = (0..r).map(|i| terminals[i * k / r]).collect();
+    picks
+        .par_iter()
+        .map(|&root| dual_ascent_from(rg, csr, terminals, root, budget))
+        .collect()
+}
+
+/// The cheapest tree grown on the saturated arcs of the ascents (each joins every terminal to its
+/// root), polished; empty with fewer than two terminals.
+pub fn da_tree(
+    rg: &EdgeList,
+    csr: &Csr,
+    it: &[bool],
+    terminals: &[u32],
+    bounds: &[Bound],
+    effort: Effort,
+    ws: &mut Workspace,
+) -> Vec<u32> {
+    if terminals.len() < 2 {
+        return Vec::new();
+    }
+    let mut trees: Vec<(u64, Vec<u32>)> = bounds
+        .iter()
+        .filter(|b| b.complete && b.saturated.len() == rg.len())
+        .map(|b| {
+            let sat = saturated_graph(rg, b);
+            let sat_csr = Csr::from_edges(&sat);
+            let t = sph::sph(&sat, &sat_csr, terminals, it, b.root, ws);
+            let t = tree::mst_prune(rg, csr, &t, it);
+            (tree::cost(rg, &t), t)
+        })
+        .collect();
+    trees.sort();
+    trees.dedup();
+    let mut best: Option<(u64, Vec<u32>)> = None;
+    for (_, t) in trees.into_iter().take(2) {
+        let t = polish(rg, csr, it, t, ws, effort);
+        let c = tree::cost(rg, &t);
+        if best.as_ref().is_none_or(|b| c < b.0) {
+            best = Some((c, t));
+        }
+    }
+    best.map(|b| b.1).unwrap_or_default()
 }
 
 /// The reduced graph with only the edges that have a saturated arc.

@@ -10,8 +10,10 @@
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
 //!    graphs at quick effort, where the ascent is cut short).
-//! 4. When the ascent completed and a gap is left: [`exact`] steps (reductions by bound, [`fixing`])
-//!    and, at thorough effort, [`branch`]-and-bound on vertices, within a fixed number of steps.
+//! 4. When the ascent completed and a gap is left: the [`root`] step (reductions by bound from
+//!    ascents at several roots, [`fixing`], then the heuristics again on what is left) and, at
+//!    thorough effort, [`branch`]-and-bound on vertices ([`exact`] steps), within a fixed number of
+//!    steps.
 //! 5. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
 //!
 //! All choices are deterministic for a given [`Effort`].
@@ -25,6 +27,7 @@ pub mod mehlhorn;
 pub mod merge;
 pub mod paths;
 pub mod reduce;
+pub mod root;
 pub mod sph;
 pub mod tree;
 pub mod vertex_moves;
@@ -273,14 +276,22 @@ pub fn steiner_tree_watched(
         };
         report(cost, bound.value.min(cost));
         if bound.complete && bound.value < cost && (nodes > 0 || watch.deadline.is_some()) {
-            let held = exact::Incumbent { edges: best, cost };
-            let limits = branch::Limits {
-                nodes,
-                deadline: watch.deadline,
-            };
-            let out = branch::search(rg, &red.terminals, held, bound.value, limits, &mut report);
-            best = out.best.edges;
-            bound.value = bound.value.max(out.lower_bound);
+            let mut held = exact::Incumbent { edges: best, cost };
+            let mut ws = Workspace::new(rg.vertices);
+            let rest = root::root_step(rg, &red.terminals, &mut held, effort, &mut ws);
+            let mut low = rest.bound.map_or(held.cost, |b| b.max(bound.value));
+            report(held.cost, low.min(held.cost));
+            if let Some(sub) = rest.graph.filter(|_| nodes > 1 || watch.deadline.is_some()) {
+                let limits = branch::Limits {
+                    nodes: nodes.saturating_sub(1),
+                    deadline: watch.deadline,
+                };
+                let out = branch::search(&sub, &red.terminals, held, low, limits, &mut report);
+                held = out.best;
+                low = low.max(out.lower_bound);
+            }
+            best = held.edges;
+            bound.value = bound.value.max(low.min(tree::cost(rg, &best)));
         }
     }
     let edges = reduce::expand(g, &red, &best, &terms);
@@ -306,7 +317,7 @@ pub fn steiner_tree_watched(
 
 /// Shortest-path trees from spread-out roots; the cheapest few are polished by local search and the
 /// best tree is returned (reduced edge ids).
-fn heuristics(
+pub(crate) fn heuristics(
     rg: &EdgeList,
     csr: &Csr,
     red: &reduce::Reduced,
