@@ -346,6 +346,10 @@ fn plan_layers<'a>(
     v
 }
 
+/// How many of an edge's fields the `network` layer has: those before `repair`, where the plan's
+/// own fields begin (checked on every edge in debug builds).
+const NETWORK_FIELDS: usize = 14;
+
 /// Writes the given edges (all when `only` is `None`: the `network` layer; else the `plan`
 /// layer's, with their order, crew and days when `order_of` has them) as LineString features.
 pub fn write_edges<S: LayerSink + ?Sized>(
@@ -412,10 +416,11 @@ pub fn write_edges<S: LayerSink + ?Sized>(
             ("first_day", int(step.and_then(|s| s.first_day))),
             ("last_day", int(step.and_then(|s| s.last_day))),
         ];
+        debug_assert_eq!(props[NETWORK_FIELDS].0, "repair");
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..13]
+            &props[..NETWORK_FIELDS]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
