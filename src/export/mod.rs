@@ -175,7 +175,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, &crate::solve::order::Step> =
+    let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
         .backup
@@ -299,26 +299,21 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     st.commit()
 }
 
-/// Writes the given edges (all when `only` is `None`) as LineString features.
-fn write_edges<W: std::io::Write>(
+/// Writes the given edges (all when `only` is `None`) as LineString features, formatted on every
+/// thread in blocks and written in order (the same bytes whatever the thread count).
+fn write_edges<W: std::io::Write + Send>(
     w: W,
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
-    order_of: Option<&std::collections::HashMap<u32, &crate::solve::order::Step>>,
+    order_of: Option<&crate::fxhash::FxHashMap<u32, &crate::solve::order::Step>>,
     keys: &work_order_id::WorkOrderIds,
     attribution: Option<&str>,
 ) -> std::io::Result<()> {
     let mut gj = GeoJsonWriter::layer(w, attribution)?;
-    let all: Vec<u32>;
-    let ids = match only {
-        Some(ids) => ids,
-        None => {
-            all = (0..net.edges.len() as u32).collect();
-            &all
-        }
-    };
-    for &e in ids {
+    let n = only.map_or(net.edges.len(), <[u32]>::len);
+    gj.features_in_parallel(n, |i, out, key| {
+        let e = only.map_or(i as u32, |ids| ids[i]);
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
         let [damage, impassable] = damage_props(edge);
@@ -333,7 +328,7 @@ fn write_edges<W: std::io::Write>(
             Prop::Null
         };
         let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
-        let key = keys.key(net, e);
+        keys.key_into(key, net, e);
         let step = order_of.and_then(|m| m.get(&e));
         let int = |x: Option<u32>| x.map_or(Prop::Null, |v| Prop::Int(v as i64));
         let props = [
@@ -355,7 +350,7 @@ fn write_edges<W: std::io::Write>(
                 "structure",
                 meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
             ),
-            ("work_order", Prop::Str(&key)),
+            ("work_order", Prop::Str(key)),
             ("repair", Prop::Bool(edge.cost > 0)),
             ("order", int(step.map(|s| s.order))),
             ("crew", int(step.and_then(|s| s.crew))),
@@ -367,8 +362,8 @@ fn write_edges<W: std::io::Write>(
         } else {
             &props[..13]
         };
-        gj.line(props, net.edge_geometry(e as usize))?;
-    }
+        out.line(props, net.edge_geometry(e as usize));
+    })?;
     gj.finish()?;
     Ok(())
 }
@@ -409,7 +404,7 @@ pub fn write_qa<W: std::io::Write>(
 }
 
 /// Writes every edge of the network (as `network.geojson`).
-pub fn write_network<W: std::io::Write>(
+pub fn write_network<W: std::io::Write + Send>(
     w: W,
     net: &Network,
     comps: &Components,
