@@ -21,17 +21,20 @@ if ! "$py" -c 'import numpy, scipy, pyproj' 2>/dev/null; then
   echo "scripts/bench-scale.sh: $py lacks numpy/scipy/pyproj; run 'bash scripts/test --test words' once" >&2
   exit 1
 fi
-cargo build --quiet --release --bin reknit --example synth_roads
+# REKNIT_BIN names another reknit binary (e.g. a copy of an earlier build) and skips the build.
+bin=${REKNIT_BIN:-target/release/reknit}
+[ -n "${REKNIT_BIN:-}" ] || cargo build --quiet --release --bin reknit --example synth_roads
 data=target/bench-data; mkdir -p "$data"
 res=$data/scale.jsonl; : > "$res"
 
 # seconds wall and peak kB from a GNU time -v log
 wall_of() { awk -F': ' '/Elapsed \(wall clock\)/ {n=split($2,t,":"); s=0; for(i=1;i<=n;i++) s=s*60+t[i]; print s}' "$1"; }
 rss_of() { awk '/Maximum resident set size/ {print $NF}' "$1"; }
+cpu_of() { awk -F': ' '/User time|System time/ {s+=$2} END {print s}' "$1"; }
 load() { cut -d' ' -f1 /proc/loadavg; }
 
 run_reknit() { # layer out log
-  "$timer" -v target/release/reknit plan --roads "$1" --out "$2" --snap 0 --force --quiet 2> "$3"
+  "$timer" -v "$bin" plan --roads "$1" --out "$2" --snap 0 --force --quiet 2> "$3"
 }
 run_peer() { # layer out log
   "$timer" -v "$py" scripts/peer_plan_numpy.py "$1" "$2" > "$2.json" 2> "$3"
@@ -50,7 +53,7 @@ for n in "${sizes[@]}"; do
     fi
     ours=$("$py" -c "import json;print(json.load(open('$out/summary.json'))['total_cost'])")
     theirs=$("$py" -c "import json;print(json.load(open('$peer.json'))['total_cost'])")
-    echo "{\"features\":$n,\"run\":$r,\"reknit_s\":$(wall_of "$data/scale-time-r.txt"),\"reknit_kb\":$(rss_of "$data/scale-time-r.txt"),\"peer_s\":$(wall_of "$data/scale-time-p.txt"),\"peer_kb\":$(rss_of "$data/scale-time-p.txt"),\"reknit_total\":$ours,\"peer_total\":$theirs,\"load\":\"$l0 $(load)\",\"peer\":$(cat "$peer.json")}" >> "$res"
+    echo "{\"features\":$n,\"run\":$r,\"reknit_s\":$(wall_of "$data/scale-time-r.txt"),\"reknit_kb\":$(rss_of "$data/scale-time-r.txt"),\"reknit_cpu\":$(cpu_of "$data/scale-time-r.txt"),\"peer_cpu\":$(cpu_of "$data/scale-time-p.txt"),\"peer_s\":$(wall_of "$data/scale-time-p.txt"),\"peer_kb\":$(rss_of "$data/scale-time-p.txt"),\"reknit_total\":$ours,\"peer_total\":$theirs,\"load\":\"$l0 $(load)\",\"peer\":$(cat "$peer.json")}" >> "$res"
   done
   rm -f "$peer" "$peer.json"
 done
@@ -82,10 +85,12 @@ for n in sorted({r["features"] for r in rows}):
             f"peak {kb / 1024:.0f} MB = {kb * 1024 / n:.0f} bytes per feature")
     if "peer_s" in rs[0]:
         ratios = [r["peer_s"] / r["reknit_s"] for r in rs]
+        cpu = [r["peer_cpu"] / r["reknit_cpu"] for r in rs]
         bad = [r for r in rs if abs(r["reknit_total"] - r["peer_total"]) > 0.0005]
         line += (f"; peer median {statistics.median(r['peer_s'] for r in rs):.2f} s; "
                  f"median paired ratio peer/reknit {statistics.median(ratios):.1f}x "
-                 f"(range {min(ratios):.1f}-{max(ratios):.1f}, {len(rs)} runs); "
+                 f"(range {min(ratios):.1f}-{max(ratios):.1f}, {len(rs)} runs), "
+                 f"CPU time (user + system) {statistics.median(cpu):.1f}x; "
                  f"total cost {rs[0]['reknit_total']} vs {rs[0]['peer_total']}"
                  + (" AGREE" if not bad else f" DISAGREE in {len(bad)} runs"))
     loads = " | ".join(r["load"] for r in rs)

@@ -74,15 +74,19 @@ pub fn prepare(scene: &Scene) -> Drawing {
         .map(|s| st.edge(s.edge as usize))
         .collect();
     let repairs: Vec<(String, Lines)> = if st.simplify {
-        let mut by_day: Vec<(String, Lines)> = Vec::new();
-        for (s, l) in scene.steps.iter().zip(&repair_lines) {
+        // Runs of repairs of one colour, drawn at the picture's resolution like the roads.
+        let mut by_day: Vec<(String, Vec<usize>)> = Vec::new();
+        for s in scene.steps {
             let c = scene.day_colour(s.last_day.unwrap_or(1));
             match by_day.last_mut() {
-                Some((last, lines)) if *last == c => lines.push(l.clone()),
-                _ => by_day.push((c, vec![l.clone()])),
+                Some((last, edges)) if *last == c => edges.push(s.edge as usize),
+                _ => by_day.push((c, vec![s.edge as usize])),
             }
         }
         by_day
+            .into_iter()
+            .map(|(c, edges)| (c, st.edges(edges.into_iter())))
+            .collect()
     } else {
         scene
             .steps

@@ -189,7 +189,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             ids,
         )
     })?;
-    let order_of: std::collections::HashMap<u32, &crate::solve::order::Step> =
+    let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
         .backup
@@ -306,7 +306,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
 /// first): those the run has.
 fn plan_layers<'a>(
     o: &'a Outputs<'a>,
-    order_of: &'a std::collections::HashMap<u32, &'a crate::solve::order::Step>,
+    order_of: &'a crate::fxhash::FxHashMap<u32, &'a crate::solve::order::Step>,
 ) -> Vec<LayerJob<'a>> {
     let (net, comps, ids) = (o.net, o.comps, o.keys);
     let mut v = vec![
@@ -357,18 +357,12 @@ pub fn write_edges<S: LayerSink + ?Sized>(
     net: &Network,
     comps: &Components,
     only: Option<&[u32]>,
-    order_of: Option<&std::collections::HashMap<u32, &crate::solve::order::Step>>,
+    order_of: Option<&crate::fxhash::FxHashMap<u32, &crate::solve::order::Step>>,
     keys: &work_order_id::WorkOrderIds,
 ) -> std::io::Result<()> {
-    let all: Vec<u32>;
-    let ids = match only {
-        Some(ids) => ids,
-        None => {
-            all = (0..net.edges.len() as u32).collect();
-            &all
-        }
-    };
-    for &e in ids {
+    let n = only.map_or(net.edges.len(), <[u32]>::len);
+    gj.lines_each(n, &|i, out, key| {
+        let e = only.map_or(i as u32, |ids| ids[i]);
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
         let [damage, impassable] = damage_props(edge);
@@ -383,7 +377,7 @@ pub fn write_edges<S: LayerSink + ?Sized>(
             Prop::Null
         };
         let source_id = meta.source_id.as_ref().map_or(Prop::Null, Prop::Json);
-        let key = keys.key(net, e);
+        keys.key_into(key, net, e);
         let step = order_of.and_then(|m| m.get(&e));
         let int = |x: Option<u32>| x.map_or(Prop::Null, |v| Prop::Int(v as i64));
         let props = [
@@ -409,7 +403,7 @@ pub fn write_edges<S: LayerSink + ?Sized>(
                 "structure",
                 meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
             ),
-            ("work_order", Prop::Str(&key)),
+            ("work_order", Prop::Str(key)),
             ("repair", Prop::Bool(edge.cost > 0)),
             ("order", int(step.map(|s| s.order))),
             ("crew", int(step.and_then(|s| s.crew))),
@@ -422,8 +416,8 @@ pub fn write_edges<S: LayerSink + ?Sized>(
         } else {
             &props[..NETWORK_FIELDS]
         };
-        gj.line(props, net.edge_geometry(e as usize))?;
-    }
+        out.line(props, net.edge_geometry(e as usize));
+    })?;
     Ok(())
 }
 
@@ -475,7 +469,7 @@ pub fn check_layers<'a>(
 }
 
 /// Writes every edge of the network as a GeoJSON layer (as `network.geojson`).
-pub fn write_network<W: std::io::Write>(
+pub fn write_network<W: std::io::Write + Send>(
     w: W,
     net: &Network,
     comps: &Components,

@@ -15,15 +15,68 @@ pub trait LayerSink {
     fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) -> io::Result<()>;
     /// One Point feature (lon/lat).
     fn point(&mut self, props: &[(&str, Prop)], c: [f64; 2]) -> io::Result<()>;
+
+    /// The LineString features `make` gives for each of `0..n`, in that order; `make` also gets
+    /// a scratch string for text a property borrows. A sink may format them on several threads
+    /// (the bytes are those of one by one); by default they go through [`LayerSink::line`].
+    fn lines_each(&mut self, n: usize, make: &LineMaker) -> io::Result<()> {
+        let mut seq = OneByOne {
+            sink: self,
+            failed: None,
+        };
+        let mut scratch = String::new();
+        for i in 0..n {
+            make(i, &mut seq, &mut scratch);
+            if let Some(e) = seq.failed.take() {
+                return Err(e);
+            }
+        }
+        Ok(())
+    }
 }
 
-impl<W: Write> LayerSink for GeoJsonWriter<W> {
+/// What [`LayerSink::lines_each`] calls for each feature.
+pub type LineMaker<'m> = dyn Fn(usize, &mut dyn LineOut, &mut String) + Sync + 'm;
+
+/// Takes the LineString features made for [`LayerSink::lines_each`].
+pub trait LineOut {
+    /// One LineString feature (lon/lat).
+    fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]);
+}
+
+/// Passes features to a sink one by one, keeping the first error.
+struct OneByOne<'s, S: ?Sized> {
+    sink: &'s mut S,
+    failed: Option<io::Error>,
+}
+
+impl<S: LayerSink + ?Sized> LineOut for OneByOne<'_, S> {
+    fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) {
+        if self.failed.is_none()
+            && let Err(e) = self.sink.line(props, coords)
+        {
+            self.failed = Some(e);
+        }
+    }
+}
+
+impl LineOut for super::geojson::FeatureText<'_> {
+    fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) {
+        super::geojson::FeatureText::line(self, props, coords)
+    }
+}
+
+impl<W: Write + Send> LayerSink for GeoJsonWriter<W> {
     fn line(&mut self, props: &[(&str, Prop)], coords: &[[f64; 2]]) -> io::Result<()> {
         GeoJsonWriter::line(self, props, coords)
     }
 
     fn point(&mut self, props: &[(&str, Prop)], c: [f64; 2]) -> io::Result<()> {
         GeoJsonWriter::point(self, props, c)
+    }
+
+    fn lines_each(&mut self, n: usize, make: &LineMaker) -> io::Result<()> {
+        self.features_in_parallel(n, |i, out, scratch| make(i, out, scratch))
     }
 }
 

@@ -5,8 +5,10 @@
 //! steps as the picture has pixels of road, however many roads the district has.
 
 use super::layout::Frame;
+use crate::fxhash::FxHasher;
 use crate::network::Network;
 use std::collections::HashSet;
+use std::hash::BuildHasherDefault;
 
 /// Above this many geometry points the network is drawn at the picture's resolution (a few
 /// hundred thousand points already make an SVG of megabytes with detail no screen shows).
@@ -66,7 +68,10 @@ impl<'a> Stroker<'a> {
             let (a, b) = ((a.0 as i32, a.1 as i32), (b.0 as i32, b.1 as i32));
             if a <= b { (a, b) } else { (b, a) }
         };
-        let mut seen: HashSet<((i32, i32), (i32, i32))> = HashSet::new();
+        // Millions of steps on a national layer: a fast hash (membership only, so the order of
+        // the output does not depend on it).
+        let mut seen: HashSet<((i32, i32), (i32, i32)), BuildHasherDefault<FxHasher>> =
+            HashSet::default();
         for e in edges {
             let pts = self.edge(e);
             let mut cur: Vec<(f64, f64)> = Vec::new();
@@ -75,7 +80,7 @@ impl<'a> Stroker<'a> {
                     if cur.is_empty() {
                         cur.push(w[0]);
                     }
-                    cur.push(w[1]);
+                    extend_straight(&mut cur, w[1]);
                 } else if cur.len() >= 2 {
                     lines.push(std::mem::take(&mut cur));
                 } else {
@@ -85,13 +90,32 @@ impl<'a> Stroker<'a> {
             if cur.len() >= 2 {
                 // Continue the previous line when this one starts where it ended.
                 match lines.last_mut() {
-                    Some(last) if last.last() == cur.first() => last.extend_from_slice(&cur[1..]),
+                    Some(last) if last.last() == cur.first() => {
+                        for &p in &cur[1..] {
+                            extend_straight(last, p);
+                        }
+                    }
                     _ => lines.push(cur),
                 }
             }
         }
         lines
     }
+}
+
+/// Adds `p` to a snapped line, moving its last point instead when the line runs straight on in
+/// the same direction: the drawing is the same, with one point for a run of pixel steps.
+fn extend_straight(line: &mut Vec<(f64, f64)>, p: (f64, f64)) {
+    if let [.., a, b] = line[..] {
+        let (dx1, dy1, dx2, dy2) = (b.0 - a.0, b.1 - a.1, p.0 - b.0, p.1 - b.1);
+        if dx1 * dy2 == dy1 * dx2 && dx1 * dx2 + dy1 * dy2 > 0.0 {
+            if let Some(last) = line.last_mut() {
+                *last = p;
+            }
+            return;
+        }
+    }
+    line.push(p);
 }
 
 /// SVG path data for polylines (one decimal; whole pixels print without one).

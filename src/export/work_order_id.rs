@@ -18,6 +18,7 @@
 //! repeats are counted within its layer: two layers with the same ids give distinct keys, and a
 //! layer's keys do not depend on the other layers. A run of one layer keeps the keys above.
 
+use crate::decimal::push_digits;
 use crate::fxhash::FxHashMap;
 use crate::network::Network;
 
@@ -108,9 +109,19 @@ impl WorkOrderIds {
 
     /// The key of edge `e`.
     pub fn key(&self, net: &Network, e: u32) -> String {
+        let mut k = String::new();
+        self.key_into(&mut k, net, e);
+        k
+    }
+
+    /// Writes the key of edge `e` into `k` (cleared first): layers and work orders make one per
+    /// edge, millions on a national layer, so the buffer is reused and no number allocates.
+    pub fn key_into(&self, k: &mut String, net: &Network, e: u32) {
+        use serde_json::Value;
         let edge = &net.edges[e as usize];
         let meta = &net.features[edge.feature as usize];
-        let mut k = String::from("WO-");
+        k.clear();
+        k.push_str("WO-");
         if net.layers.len() > 1 {
             let label = net.source_layer(edge.feature).unwrap_or_default();
             for ch in label.chars() {
@@ -123,30 +134,59 @@ impl WorkOrderIds {
             }
             k.push(':');
         }
-        match meta.source_id.as_ref().and_then(id_text) {
-            Some(t) => {
-                for (i, ch) in t.chars().enumerate() {
-                    match ch {
-                        '%' => k.push_str("%25"),
-                        '/' => k.push_str("%2F"),
-                        '#' if i == 0 => k.push_str("%23"),
-                        c => k.push(c),
-                    }
-                }
-                let n = self.occurrence[edge.feature as usize];
-                if n > 1 {
-                    k.push_str(&format!("/{n}"));
+        let escape = |k: &mut String, t: &str| {
+            for (i, ch) in t.chars().enumerate() {
+                match ch {
+                    '%' => k.push_str("%25"),
+                    '/' => k.push_str("%2F"),
+                    '#' if i == 0 => k.push_str("%23"),
+                    c => k.push(c),
                 }
             }
-            None => k.push_str(&format!("#{}", meta.source_index)),
+        };
+        let named = match meta.source_id.as_ref() {
+            // Text as `id_text` gives it, without the copy.
+            Some(Value::String(s)) if !s.trim().is_empty() => {
+                escape(k, s.trim());
+                true
+            }
+            Some(v) => match id_text(v) {
+                Some(t) => {
+                    escape(k, &t);
+                    true
+                }
+                None => false,
+            },
+            None => false,
+        };
+        if named {
+            let n = self.occurrence[edge.feature as usize];
+            if n > 1 {
+                k.push('/');
+                push_digits(k, u64::from(n), 1);
+            }
+        } else {
+            k.push('#');
+            push_digits(k, u64::from(meta.source_index), 1);
         }
         let s = self.start_m[e as usize];
-        k.push_str(&format!("-{}-{}", metres(s), metres(s + edge.length_m)));
+        k.push('-');
+        push_metres(k, metres(s));
+        k.push('-');
+        push_metres(k, metres(s + edge.length_m));
         if let Some(r) = self.repeat.get(&e) {
-            k.push_str(&format!("+{r}"));
+            k.push('+');
+            push_digits(k, u64::from(*r), 1);
         }
-        k
     }
+}
+
+/// Whole metres as `format!("{}")` writes an i64.
+fn push_metres(k: &mut String, m: i64) {
+    if m < 0 {
+        k.push('-');
+    }
+    push_digits(k, m.unsigned_abs(), 1);
 }
 
 /// The number of the layer feature `f` came from.
