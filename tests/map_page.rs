@@ -37,7 +37,9 @@ fn demo(d: &Path, name: &str, extra: &[&str]) -> PathBuf {
 
 /// The data element of a page, parsed.
 fn page_data(html: &str) -> Value {
-    let start = html.find(r#"<script type="application/json" id="map-data">"#).unwrap();
+    let start = html
+        .find(r#"<script type="application/json" id="map-data">"#)
+        .unwrap();
     let body = &html[start..];
     let body = &body[body.find('>').unwrap() + 1..body.find("</script>").unwrap()];
     serde_json::from_str(body).unwrap()
@@ -46,14 +48,31 @@ fn page_data(html: &str) -> Value {
 #[test]
 fn every_plan_writes_a_self_contained_page_linked_from_the_report() {
     let d = tmp();
-    let out = demo(d.path(), "demo", &["--crew-capacity", "3000", "--redundancy"]);
+    let out = demo(
+        d.path(),
+        "demo",
+        &["--crew-capacity", "3000", "--redundancy"],
+    );
     let html = std::fs::read_to_string(out.join("map.html")).unwrap();
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
-    assert!(report.contains(r#"<a href="map.html">"#), "report links the page");
+    assert!(
+        report.contains(r#"<a href="map.html">"#),
+        "report links the page"
+    );
     // Nothing the browser would fetch: no source, link, import, url() or request call.
     for banned in [
-        " src=", " href=", "@import", "url(", "http:", "https:", "fetch(", "XMLHttpRequest",
-        "import(", "<link", "<iframe", "<img",
+        " src=",
+        " href=",
+        "@import",
+        "url(",
+        "http:",
+        "https:",
+        "fetch(",
+        "XMLHttpRequest",
+        "import(",
+        "<link",
+        "<iframe",
+        "<img",
     ] {
         assert!(!html.contains(banned), "map.html contains {banned}");
     }
@@ -79,7 +98,13 @@ fn every_plan_writes_a_self_contained_page_linked_from_the_report() {
     }
     // The summary lists the page among the outputs.
     let s = read_json(&out.join("summary.json"));
-    assert!(s["outputs"].as_array().unwrap().iter().any(|v| v == "map.html"));
+    assert!(
+        s["outputs"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|v| v == "map.html")
+    );
 }
 
 #[test]
@@ -97,11 +122,15 @@ fn the_page_is_byte_identical_with_one_or_two_threads() {
         assert!(o.status.success(), "{}", stderr(&o));
         pages.push(std::fs::read(out.join("map.html")).unwrap());
     }
-    assert!(pages[0] == pages[1], "map.html differs between 1 and 2 threads");
+    assert!(
+        pages[0] == pages[1],
+        "map.html differs between 1 and 2 threads"
+    );
 }
 
 /// Roads whose names hold markup, quotes, a script end and a control character.
-const HOSTILE: &str = "</script><script>document.title='pwned'</script> \\\"Quay\\\" 'Row' <!-- & \\u001b[2J";
+const HOSTILE: &str =
+    "</script><script>document.title='pwned'</script> \\\"Quay\\\" 'Row' <!-- & \\u001b[2J";
 
 fn hostile_plan(d: &Path) -> PathBuf {
     let name = format!(r#"{{"name":"{HOSTILE}","damage":0.5}}"#);
@@ -110,9 +139,18 @@ fn hostile_plan(d: &Path) -> PathBuf {
         "roads.geojson",
         &[
             line(&[at_m(0.0, 0.0), at_m(400.0, 0.0)], &name),
-            line(&[at_m(400.0, 0.0), at_m(400.0, 300.0)], r#"{"name":"Mill Lane","damage":0.3}"#),
-            line(&[at_m(400.0, 300.0), at_m(0.0, 300.0)], r#"{"name":"Top","damage":0}"#),
-            line(&[at_m(0.0, 300.0), at_m(0.0, 0.0)], r#"{"name":"Side","damage":0.8}"#),
+            line(
+                &[at_m(400.0, 0.0), at_m(400.0, 300.0)],
+                r#"{"name":"Mill Lane","damage":0.3}"#,
+            ),
+            line(
+                &[at_m(400.0, 300.0), at_m(0.0, 300.0)],
+                r#"{"name":"Top","damage":0}"#,
+            ),
+            line(
+                &[at_m(0.0, 300.0), at_m(0.0, 0.0)],
+                r#"{"name":"Side","damage":0.8}"#,
+            ),
         ],
     );
     plan_quiet(d, "hostile", &roads, &[])
@@ -141,7 +179,8 @@ fn names_with_markup_stay_text_in_the_page() {
         .iter()
         .map(|r| r[road].as_str().unwrap())
         .collect();
-    let expected = "</script><script>document.title='pwned'</script> \"Quay\" 'Row' <!-- & \u{FFFD}[2J";
+    let expected =
+        "</script><script>document.title='pwned'</script> \"Quay\" 'Row' <!-- & \u{FFFD}[2J";
     assert!(names.contains(&expected), "{names:?}");
 }
 
@@ -205,7 +244,10 @@ fn judge(out: &Path, r: &Value) {
         .iter()
         .chain(r["resources"].as_array().unwrap())
         .collect();
-    assert!(!r["requests"].as_array().unwrap().is_empty(), "no request logged at all");
+    assert!(
+        !r["requests"].as_array().unwrap().is_empty(),
+        "no request logged at all"
+    );
     for u in urls {
         assert!(u.as_str().unwrap().starts_with("file:"), "request {u}");
     }
@@ -215,7 +257,11 @@ fn judge(out: &Path, r: &Value) {
         for (layer, file) in LAYER_FILES {
             if out.join(file).exists() {
                 let n = read_fc(&out.join(file)).features.len();
-                assert_eq!(drawn[layer].as_u64().unwrap_or(0), n as u64, "{layer} drawn");
+                assert_eq!(
+                    drawn[layer].as_u64().unwrap_or(0),
+                    n as u64,
+                    "{layer} drawn"
+                );
             }
         }
     }
@@ -223,7 +269,11 @@ fn judge(out: &Path, r: &Value) {
     // A switched-off layer draws nothing; the others are untouched.
     for (layer, after) in r["off"].as_object().unwrap() {
         for (other, n) in after.as_object().unwrap() {
-            let want = if other == layer { &Value::from(0) } else { &drawn[other] };
+            let want = if other == layer {
+                &Value::from(0)
+            } else {
+                &drawn[other]
+            };
             assert_eq!(n, want, "{other} with {layer} switched off");
         }
     }
@@ -247,7 +297,11 @@ fn judge(out: &Path, r: &Value) {
 #[test]
 fn demo_page_in_chromium() {
     let d = tmp();
-    let out = demo(d.path(), "demo", &["--crew-capacity", "3000", "--redundancy"]);
+    let out = demo(
+        d.path(),
+        "demo",
+        &["--crew-capacity", "3000", "--redundancy"],
+    );
     let Some(r) = browser("chromium-map-page-demo", &out, "demo.png") else {
         return;
     };
@@ -278,7 +332,12 @@ fn liechtenstein_page_in_chromium() {
         d.path(),
         "li",
         &roads,
-        &["--sites", sites.to_str().unwrap(), "--crew-capacity", "20000"],
+        &[
+            "--sites",
+            sites.to_str().unwrap(),
+            "--crew-capacity",
+            "20000",
+        ],
     );
     let Some(r) = browser("chromium-map-page-liechtenstein", &out, "liechtenstein.png") else {
         return;

@@ -282,13 +282,7 @@ fn report_is_self_contained_and_carries_the_figures() {
     // is to the interactive map beside it.
     assert_eq!(html.matches(" href=").count(), 1);
     assert!(html.contains(r#" href="map.html""#));
-    for banned in [
-        "<script",
-        "@import",
-        "url(",
-        "src=\"http",
-        "src=\"file",
-    ] {
+    for banned in ["<script", "@import", "url(", "src=\"http", "src=\"file"] {
         assert!(!html.contains(banned), "contains {banned}");
     }
     assert_eq!(

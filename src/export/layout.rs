@@ -75,7 +75,10 @@ impl Frame {
 
     /// The metres (as [`Frame::metres`]) of a pixel position.
     pub fn px_metres(&self, (x, y): (f64, f64)) -> (f64, f64) {
-        ((x - self.origin.0) / self.scale, (self.origin.1 - y) / self.scale)
+        (
+            (x - self.origin.0) / self.scale,
+            (self.origin.1 - y) / self.scale,
+        )
     }
 
     /// The projection behind [`Frame::metres`]: western longitudes a turn east or not, the

@@ -10,14 +10,19 @@
 
 use super::Page;
 use super::encode::Json;
-use crate::export::strokes::{Lines, Stroker};
 pub use crate::export::strokes::SIMPLIFY_ABOVE;
+use crate::export::strokes::{Lines, Stroker};
 
 /// The simplified page's grid is this many times finer than the picture's pixels.
 pub const FINER: f64 = 2.0;
 
 /// Site statuses in the order of the page's symbols.
-pub const STATUSES: [&str; 4] = ["joined", "not_attached", "left_out_by_budget", "unreachable"];
+pub const STATUSES: [&str; 4] = [
+    "joined",
+    "not_attached",
+    "left_out_by_budget",
+    "unreachable",
+];
 
 /// Network line styles: intact road, damaged road outside the plan, impassable road.
 const INTACT: i64 = 0;
@@ -49,20 +54,21 @@ pub fn write_layers(j: &mut Json, p: &Page) -> Option<f64> {
             j.feature(meta, exact(e));
         }
     };
-    let many = |j: &mut Json, meta: &[i64], first: &mut bool, edges: &mut dyn Iterator<Item = usize>| {
-        if st.simplify {
-            let lines: Lines = st.edges(edges);
-            for l in lines {
-                sep(j, first);
-                j.feature(meta, l.into_iter().map(m));
+    let many =
+        |j: &mut Json, meta: &[i64], first: &mut bool, edges: &mut dyn Iterator<Item = usize>| {
+            if st.simplify {
+                let lines: Lines = st.edges(edges);
+                for l in lines {
+                    sep(j, first);
+                    j.feature(meta, l.into_iter().map(m));
+                }
+            } else {
+                for e in edges {
+                    sep(j, first);
+                    j.feature(meta, exact(e));
+                }
             }
-        } else {
-            for e in edges {
-                sep(j, first);
-                j.feature(meta, exact(e));
-            }
-        }
-    };
+        };
     let planned = scene.planned();
     let colours = p.colours();
     j.raw("{");
@@ -159,7 +165,13 @@ fn layer(
     fill: impl FnOnce(&mut Json, &mut bool),
 ) {
     sep(j, lf);
-    j.key(name).raw("{").key("meta").int(meta).raw(",").key("f").raw("[");
+    j.key(name)
+        .raw("{")
+        .key("meta")
+        .int(meta)
+        .raw(",")
+        .key("f")
+        .raw("[");
     let mut first = true;
     fill(j, &mut first);
     j.raw("]}");
@@ -172,4 +184,3 @@ fn sep(j: &mut Json, first: &mut bool) {
     }
     *first = false;
 }
-

@@ -12,7 +12,10 @@ pub const RESOLUTION_M: f64 = 0.5;
 
 /// A point in metres east and north of the district's south-west corner, as whole grid steps.
 pub fn quantise((x, y): (f64, f64)) -> (i64, i64) {
-    ((x / RESOLUTION_M).round() as i64, (y / RESOLUTION_M).round() as i64)
+    (
+        (x / RESOLUTION_M).round() as i64,
+        (y / RESOLUTION_M).round() as i64,
+    )
 }
 
 /// The JSON text of the page's data, built in one string.
@@ -134,9 +137,19 @@ mod tests {
             assert_eq!(back.len(), pts.len());
             for (a, b) in pts.iter().zip(&back) {
                 // Rounding to the nearest step: the error is at most half a step on each axis.
-                assert!((a.0 - b.0).abs() <= RESOLUTION_M / 2.0 + 1e-9, "{a:?} {b:?}");
-                assert!((a.1 - b.1).abs() <= RESOLUTION_M / 2.0 + 1e-9, "{a:?} {b:?}");
-                assert_eq!(quantise(*a), quantise(*b), "a point read back quantises the same");
+                assert!(
+                    (a.0 - b.0).abs() <= RESOLUTION_M / 2.0 + 1e-9,
+                    "{a:?} {b:?}"
+                );
+                assert!(
+                    (a.1 - b.1).abs() <= RESOLUTION_M / 2.0 + 1e-9,
+                    "{a:?} {b:?}"
+                );
+                assert_eq!(
+                    quantise(*a),
+                    quantise(*b),
+                    "a point read back quantises the same"
+                );
             }
         }
     }

@@ -13,7 +13,10 @@ use std::io::{self, Write};
 
 /// Writes one info table: `{"fields":[…],"rows":[[…],…]}`.
 fn table<'r>(j: &mut Json, fields: &[&str], rows: impl Iterator<Item = Vec<String>> + 'r) {
-    j.raw("{").key("fields").strs(fields.iter().copied()).raw(",");
+    j.raw("{")
+        .key("fields")
+        .strs(fields.iter().copied())
+        .raw(",");
     j.key("rows").raw("[");
     for (i, r) in rows.enumerate() {
         if i > 0 {
@@ -112,7 +115,9 @@ pub fn write_legend<W: Write>(w: &mut W, p: &Page) -> io::Result<()> {
         );
         row(w, &s, "road with no way round (its loss cuts sites off)")?;
     }
-    if p.corridors.is_some_and(|c| c.rows.iter().any(|r| !r.edges.is_empty())) {
+    if p.corridors
+        .is_some_and(|c| c.rows.iter().any(|r| !r.edges.is_empty()))
+    {
         let s = format!(
             r#"<line x1="2" y1="8" x2="32" y2="8" stroke="{CORRIDOR}" stroke-width="2.5" stroke-dasharray="2 3"/>"#
         );

@@ -83,7 +83,8 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     j.num(lo[0], 9).raw(",").num(lo[1], 9).raw(",");
     j.num(mx, 6).raw(",").num(my, 6).raw("],");
     j.key("base").num(p.drawing.frame.base, 3).raw(",");
-    j.key("scheduled").raw(if scene.scheduled { "true" } else { "false" });
+    j.key("scheduled")
+        .raw(if scene.scheduled { "true" } else { "false" });
     j.raw(",").key("colours").raw("{");
     for (i, (k, v)) in [
         ("road", palette::ROAD),
@@ -112,7 +113,9 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     j.strs(colours.iter().map(String::as_str)).raw(",");
     j.key("header").strs(super::work_orders::HEADER).raw(",");
     // The last column (the caution) is the same sentence on every row: written once.
-    j.key("rowCaution").str(crate::cautions::WORK_ORDER).raw(",");
+    j.key("rowCaution")
+        .str(crate::cautions::WORK_ORDER)
+        .raw(",");
     j.key("rows").raw("[");
     for (i, r) in p.rows.iter().enumerate() {
         if i > 0 {
@@ -145,7 +148,11 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     writeln!(w, "{}", info::BODY)?;
     info::write_legend(&mut w, p)?;
     writeln!(w, "</aside></main>")?;
-    writeln!(w, "<footer id=\"band\"><p id=\"caution\">{}</p>", html(scene.caution))?;
+    writeln!(
+        w,
+        "<footer id=\"band\"><p id=\"caution\">{}</p>",
+        html(scene.caution)
+    )?;
     if let Some(a) = scene.attribution {
         writeln!(w, "<p id=\"attribution\">Data: {}</p>", html(a))?;
     }
@@ -154,8 +161,14 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
         w,
         "<noscript><p>This map needs JavaScript; report.html and the layers hold the same plan.</p></noscript>"
     )?;
-    writeln!(w, "<script type=\"application/json\" id=\"map-data\">{data}</script>")?;
-    writeln!(w, "<script>\n{SCRIPT}\n{SCRIPT_UI}</script>\n</body></html>")?;
+    writeln!(
+        w,
+        "<script type=\"application/json\" id=\"map-data\">{data}</script>"
+    )?;
+    writeln!(
+        w,
+        "<script>\n{SCRIPT}\n{SCRIPT_UI}</script>\n</body></html>"
+    )?;
     w.flush()
 }
 
