@@ -366,10 +366,12 @@ fn write_edges<W: std::io::Write>(
             ("first_day", int(step.and_then(|s| s.first_day))),
             ("last_day", int(step.and_then(|s| s.last_day))),
         ];
+        // The network layer stops before the plan's own properties (from `repair` on).
         let props = if only.is_some() {
             &props[..]
         } else {
-            &props[..13]
+            let plan_own = props.iter().position(|(k, _)| *k == "repair");
+            &props[..plan_own.unwrap_or(props.len())]
         };
         gj.line(props, net.edge_geometry(e as usize))?;
     }
