@@ -65,9 +65,17 @@ fn keys(out: &Path) -> Vec<(String, i64, String)> {
         .iter()
         .map(|f| {
             (
-                f.property("source_layer").unwrap().as_str().unwrap().to_string(),
+                f.property("source_layer")
+                    .unwrap()
+                    .as_str()
+                    .unwrap()
+                    .to_string(),
                 f.property("source_index").unwrap().as_i64().unwrap(),
-                f.property("work_order").unwrap().as_str().unwrap().to_string(),
+                f.property("work_order")
+                    .unwrap()
+                    .as_str()
+                    .unwrap()
+                    .to_string(),
             )
         })
         .collect();
@@ -89,11 +97,22 @@ fn three_layers_make_one_network_and_keep_their_layer() {
     // Same ids in a.geojson and b.geojson: the keys name the layer, so they stay apart.
     let distinct: BTreeSet<&str> = k.iter().map(|x| x.2.as_str()).collect();
     assert_eq!(distinct.len(), k.len(), "{k:?}");
-    assert!(k.iter().any(|x| x.2.starts_with("WO-a.geojson:r1-")), "{k:?}");
-    assert!(k.iter().any(|x| x.2.starts_with("WO-b.geojson:r1-")), "{k:?}");
+    assert!(
+        k.iter().any(|x| x.2.starts_with("WO-a.geojson:r1-")),
+        "{k:?}"
+    );
+    assert!(
+        k.iter().any(|x| x.2.starts_with("WO-b.geojson:r1-")),
+        "{k:?}"
+    );
     // The work orders carry the layer too.
     let csv = std::fs::read_to_string(out.join("work-orders.csv")).unwrap();
-    assert!(csv.lines().next().unwrap().contains("source_index,source_layer,source_id"));
+    assert!(
+        csv.lines()
+            .next()
+            .unwrap()
+            .contains("source_index,source_layer,source_id")
+    );
     // Each layer is an input with its own SHA-256 (FIPS 180-4, computed here with sha2).
     use sha2::{Digest, Sha256};
     let roads: Vec<&serde_json::Value> = s["inputs"]
@@ -136,18 +155,21 @@ fn crs_applies_to_layers_without_their_own() {
     let utm = write_collection(
         d.path(),
         "utm.geojson",
-        &[line(&[[500000.0, 0.0], [500100.0, 0.0]], r#"{"damage":0.5}"#)],
+        &[line(
+            &[[500000.0, 0.0], [500100.0, 0.0]],
+            r#"{"damage":0.5}"#,
+        )],
     );
-    let shp = common::bad::shapefile_roads(
-        d.path(),
-        "lonlat.shp",
-        &[vec![[15.0, 0.0], [15.0, 0.001]]],
-    );
+    let shp =
+        common::bad::shapefile_roads(d.path(), "lonlat.shp", &[vec![[15.0, 0.0], [15.0, 0.001]]]);
     let out = plan_layers(d.path(), "out", &[utm, shp], &["--crs", "EPSG:32633"]);
     let s = read_json(&out.join("summary.json"));
     assert_eq!(s["counts"]["components"], 1, "the layers meet at 15°E");
     let crs = s["geodesy"]["input_crs"].as_str().unwrap();
-    assert!(crs.contains("utm.geojson") && crs.contains("lonlat.shp"), "{crs}");
+    assert!(
+        crs.contains("utm.geojson") && crs.contains("lonlat.shp"),
+        "{crs}"
+    );
     // 100 m of UTM grid near the central meridian (scale 0.9996) and 0.001° of latitude
     // (about 110.6 m at the equator, from memory).
     let len = s["counts"]["network_length_m"].as_f64().unwrap();
@@ -203,7 +225,12 @@ fn a_replan_finds_both_layers_again() {
     w.flush().unwrap();
     let r2 = d.path().join("r2");
     let o = reknit()
-        .args(["replan", &s(&r1), "--finished", &s(&d.path().join("back.csv"))])
+        .args([
+            "replan",
+            &s(&r1),
+            "--finished",
+            &s(&d.path().join("back.csv")),
+        ])
         .args(["--out", &s(&r2), "-q"])
         .output()
         .unwrap();

@@ -106,7 +106,8 @@ pub fn merge(mut parts: Vec<LineLayer>) -> LineLayer {
             out.native.extend_from_slice(&p.native);
         }
         out.part_ends.extend(p.part_ends.iter().map(|e| e + c0));
-        out.part_feature.extend(p.part_feature.iter().map(|f| f + f0));
+        out.part_feature
+            .extend(p.part_feature.iter().map(|f| f + f0));
         out.features.extend(p.features);
         let (s, t) = (&mut out.stats, &p.stats);
         s.features_read += t.features_read;

@@ -243,10 +243,15 @@ pub fn read_lines_as(
         },
     };
     finish_coordinates(&mut layer, &path, &crs)?;
-    let name = path
+    // The input's own file name (a zip's, not its member's).
+    let given = layer
+        .input
+        .as_ref()
+        .map_or_else(|| path.clone(), |i| PathBuf::from(&i.path));
+    let name = given
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| path.display().to_string());
+        .unwrap_or_else(|| given.display().to_string());
     layer.layers = vec![super::layers::SourceLayer {
         label: match source.layer_name() {
             Some(t) => format!("{name}:{t}"),

@@ -36,8 +36,11 @@ pub fn role_rank(role: &str) -> u8 {
 
 /// Every input of a job with its role, in the order `summary.json` records them.
 pub fn job_inputs(job: &PlanJob) -> Vec<(&'static str, Source)> {
-    let mut v: Vec<(&'static str, Source)> =
-        job.road_layers().into_iter().map(|s| ("roads", s)).collect();
+    let mut v: Vec<(&'static str, Source)> = job
+        .road_layers()
+        .into_iter()
+        .map(|s| ("roads", s))
+        .collect();
     v.extend(job.zones.clone().map(|s| ("damage zones", s)));
     v.extend(
         job.earlier_reports
