@@ -74,9 +74,11 @@ proptest! {
             prop_assert_eq!(b.root, root);
             let k = reduced_cost_doomed(rg, &csr, it, root, &b, upper + 1);
             let s = reduced_cost_doomed(rg, &csr, it, root, &b, upper);
-            for e in 0..rg.len() {
-                keep[e] |= k[e];
-                strict[e] |= s[e];
+            for (d, x) in keep.iter_mut().zip(k) {
+                *d |= x;
+            }
+            for (d, x) in strict.iter_mut().zip(s) {
+                *d |= x;
             }
         }
         prop_assert_eq!(optimum_without(rg, rt, &keep), Some(opt));
