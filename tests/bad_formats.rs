@@ -330,6 +330,13 @@ case!(zip_bomb_inflates_beyond_its_header, |d| {
             "lanes.shp",
             "corrupt",
             "larger than its declared",
+        ],
+    );
+});
+
+case!(same_road_layer_twice, |d| {
+    let p = roads_ok(d);
+    plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
 // ---- Sites drawn as polygons ----
 
 /// A sites layer of one Polygon with the given ring (JSON positions).
@@ -500,9 +507,6 @@ case!(gpkg_sites_of_lines, |d| {
     );
 });
 
-case!(same_road_layer_twice, |d| {
-    let p = roads_ok(d);
-    plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
 case!(gpkg_site_with_empty_geometry, |d| {
     // The header's empty flag (GeoPackage 1.3 §2.1.3): a site that is nowhere is refused.
     let sql = format!(

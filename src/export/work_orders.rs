@@ -80,48 +80,50 @@ pub fn rows<'a>(
                 (e, order, Default::default(), String::new(), "detour")
             })
         });
-    rows.map(move |(edge, order, [crew, first_day, last_day], completes, purpose)| {
-        let e = &net.edges[edge as usize];
-        let meta = &net.features[e.feature as usize];
-        let g = net.edge_geometry(edge as usize);
-        let (a, b) = (g[0], g[g.len() - 1]);
-        let f7 = |x: f64| crate::decimal::trimmed(x, 7);
-        let id = match &meta.source_id {
-            Some(serde_json::Value::String(s)) => s.clone(),
-            Some(v) => v.to_string(),
-            None => String::new(),
-        };
-        [
-            order.to_string(),
-            crew,
-            first_day,
-            last_day,
-            edge.to_string(),
-            meta.source_index.to_string(),
-            cell(net.source_layer(e.feature).unwrap_or_default()).into_owned(),
-            cell(&id).into_owned(),
-            cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
-            crate::decimal::fixed(e.length_m, 3),
-            // Numeric, or empty for an impassable road (never repaired, so never written here).
-            e.damage
-                .factor()
-                .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
-            cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
-            crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
-            f7(a[0]),
-            f7(a[1]),
-            f7(b[0]),
-            f7(b[1]),
-            cell(&completes).into_owned(),
-            purpose.to_string(),
-            cell(&ids.key(net, edge)).into_owned(),
-            cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
-            String::new(),
-            String::new(),
-            String::new(),
-            crate::cautions::WORK_ORDER.to_string(),
-        ]
-    })
+    rows.map(
+        move |(edge, order, [crew, first_day, last_day], completes, purpose)| {
+            let e = &net.edges[edge as usize];
+            let meta = &net.features[e.feature as usize];
+            let g = net.edge_geometry(edge as usize);
+            let (a, b) = (g[0], g[g.len() - 1]);
+            let f7 = |x: f64| crate::decimal::trimmed(x, 7);
+            let id = match &meta.source_id {
+                Some(serde_json::Value::String(s)) => s.clone(),
+                Some(v) => v.to_string(),
+                None => String::new(),
+            };
+            [
+                order.to_string(),
+                crew,
+                first_day,
+                last_day,
+                edge.to_string(),
+                meta.source_index.to_string(),
+                cell(net.source_layer(e.feature).unwrap_or_default()).into_owned(),
+                cell(&id).into_owned(),
+                cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
+                crate::decimal::fixed(e.length_m, 3),
+                // Numeric, or empty for an impassable road (never repaired, so never written here).
+                e.damage
+                    .factor()
+                    .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
+                cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
+                crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
+                f7(a[0]),
+                f7(a[1]),
+                f7(b[0]),
+                f7(b[1]),
+                cell(&completes).into_owned(),
+                purpose.to_string(),
+                cell(&ids.key(net, edge)).into_owned(),
+                cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
+                String::new(),
+                String::new(),
+                String::new(),
+                crate::cautions::WORK_ORDER.to_string(),
+            ]
+        },
+    )
 }
 
 /// Writes the work orders (the rows of [`rows`]): order, crew, first and last day (empty without `--crew-capacity`), edge, source feature, road, length, damage, cost, ends,
