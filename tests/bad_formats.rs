@@ -337,6 +337,8 @@ case!(zip_bomb_inflates_beyond_its_header, |d| {
 case!(same_road_layer_twice, |d| {
     let p = roads_ok(d);
     plan_fails(&p, &["--roads", &s(&p)], &["roads.geojson", "given twice"]);
+});
+
 // ---- Sites drawn as polygons ----
 
 /// A sites layer of one Polygon with the given ring (JSON positions).
