@@ -47,7 +47,7 @@ impl FeatureSource for GeoJsonSource {
         sink: &mut dyn FnMut(usize, RawFeature) -> Result<(), IngestError>,
     ) -> Result<SourceInfo, IngestError> {
         let mut reader = self.source.open()?;
-        let info = read_collection(&mut reader, wanted, |index, f| sink(index, f))
+        let info = read_collection(&mut reader, wanted, sink)
             .map_err(|e| IngestError::from_read(&self.path, e))?;
         self.crs = info.crs;
         let (sha256, bytes) =
