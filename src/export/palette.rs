@@ -35,10 +35,10 @@ pub const PAPER: &str = "#ffffff";
 /// Roads with no way round on the map page: a wide yellow halo under the lines (the picture does
 /// not draw them).
 pub const SINGLE_FAILURE: &str = "#f7d117";
-/// Corridors from the hub on the map page, drawn dotted over the plan: rose.
-pub const CORRIDOR: &str = "#d6336c";
-/// Geometry-check (QA) points on the map page: dark olive diamonds.
-pub const QA_POINT: &str = "#66660a";
+/// Corridors from the hub on the map page, drawn dotted over the plan: navy.
+pub const CORRIDOR: &str = "#000088";
+/// Geometry-check (QA) points on the map page: dark maroon diamonds.
+pub const QA_POINT: &str = "#553333";
 
 /// The most days that each get a colour of their own; more days share this many bins.
 pub const DISTINCT_DAYS: u32 = 6;
