@@ -166,7 +166,7 @@ mod tests {
         let mut frac = v % POW10[d];
         s.push_str(&int.to_string());
         if trim {
-            while d > 0 && frac % 10 == 0 {
+            while d > 0 && frac.is_multiple_of(10) {
                 frac /= 10;
                 d -= 1;
             }

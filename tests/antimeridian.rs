@@ -58,7 +58,7 @@ fn drawn(out: &Path) -> Vec<f64> {
         .skip(1)
         .flat_map(|rest| {
             let d = &rest[..rest.find('"').unwrap()];
-            d.split(|c: char| c == 'M' || c == 'L' || c == 'Z' || c == ' ')
+            d.split(['M', 'L', 'Z', ' '])
                 .filter(|t| !t.is_empty())
                 .map(|t| t.parse::<f64>().unwrap())
                 .collect::<Vec<_>>()

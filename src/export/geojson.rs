@@ -319,7 +319,7 @@ mod tests {
     fn parallel_blocks_write_the_same_bytes_whatever_the_thread_count() {
         let n = 3 * BLOCK * 4 + 17; // several rounds of blocks, the last one partial
         let coords = |i: usize| -> Vec<[f64; 2]> {
-            let x = if i % 97 == 0 {
+            let x = if i.is_multiple_of(97) {
                 179.9
             } else {
                 (i as f64) * 1e-4 - 50.0

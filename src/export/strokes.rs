@@ -5,10 +5,7 @@
 //! steps as the picture has pixels of road, however many roads the district has.
 
 use super::layout::Frame;
-use crate::fxhash::FxHasher;
 use crate::network::Network;
-use std::collections::HashSet;
-use std::hash::BuildHasherDefault;
 
 /// Above this many geometry points the network is drawn at the picture's resolution (a few
 /// hundred thousand points already make an SVG of megabytes with detail no screen shows).
@@ -70,8 +67,7 @@ impl<'a> Stroker<'a> {
         };
         // Millions of steps on a national layer: a fast hash (membership only, so the order of
         // the output does not depend on it).
-        let mut seen: HashSet<((i32, i32), (i32, i32)), BuildHasherDefault<FxHasher>> =
-            HashSet::default();
+        let mut seen: crate::fxhash::FxHashSet<((i32, i32), (i32, i32))> = Default::default();
         for e in edges {
             let pts = self.edge(e);
             let mut cur: Vec<(f64, f64)> = Vec::new();
