@@ -2,8 +2,8 @@
 //! hub after any single road failure, numbered after the plan's repairs.
 
 use super::geojson::Prop;
-use super::sink::LayerSink;
 use super::single_failures::{SingleFailureFigures, SiteFailures};
+use super::sink::LayerSink;
 use crate::network::{Network, cost_to_repair_metres};
 use crate::solve::backup::Backup;
 use serde::Serialize;

@@ -152,7 +152,13 @@ mod tests {
         assert_eq!(b.len(), 49 + 32);
         // The project's GeoPackage reader (ingest::wkb) reads both kinds back.
         let mut m = Vec::new();
-        lines(&mut m, &[&[[179.0, 0.0], [180.0, 1.0]], &[[-180.0, 1.0], [-179.0, 2.0]]]);
+        lines(
+            &mut m,
+            &[
+                &[[179.0, 0.0], [180.0, 1.0]],
+                &[[-180.0, 1.0], [-179.0, 2.0]],
+            ],
+        );
         assert_eq!(m.len(), 40 + 9 + 2 * (9 + 32));
         for (blob, n) in [(&b, 2), (&m, 4)] {
             match crate::ingest::wkb::decode(blob).unwrap() {

@@ -161,12 +161,15 @@ impl GpkgWriter {
             .map_err(sql)?;
         let index = self
             .conn
-            .prepare(&format!("INSERT INTO {} VALUES (?1, ?2, ?3, ?4, ?5)", quote(&rtree)))
+            .prepare(&format!(
+                "INSERT INTO {} VALUES (?1, ?2, ?3, ?4, ?5)",
+                quote(&rtree)
+            ))
             .map_err(sql)?;
         let mut table = table::Table::new(spec.fields.clone(), insert, index);
         fill(&mut table)?;
         let (extent, seen) = (table.extent, table.seen);
-        drop(table);
+        table.index()?;
         let kinds = [
             (seen.point, "POINT"),
             (seen.line, "LINESTRING"),
