@@ -169,7 +169,7 @@ impl GpkgWriter {
         let mut table = table::Table::new(spec.fields.clone(), insert, index);
         fill(&mut table)?;
         let (extent, seen) = (table.extent, table.seen);
-        drop(table);
+        table.index()?;
         let kinds = [
             (seen.point, "POINT"),
             (seen.line, "LINESTRING"),
