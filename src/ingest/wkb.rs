@@ -68,30 +68,9 @@ impl Cursor<'_> {
 
 /// Decodes a GeoPackage geometry blob; the error says what is wrong with it.
 pub fn decode(blob: &[u8]) -> Result<Decoded, String> {
-    if blob.len() < 8 || &blob[..2] != b"GP" {
-        return Err("not a GeoPackage geometry (no \"GP\" header)".into());
-    }
-    let flags = blob[3];
-    if flags & 0b0010_0000 != 0 {
-        return Err("an extended GeoPackage geometry type, which reknit does not read".into());
-    }
-    let envelope = match (flags >> 1) & 0b111 {
-        0 => 0,
-        1 => 32,
-        2 | 3 => 48,
-        4 => 64,
-        e => return Err(format!("envelope code {e} is not one of 0 to 4")),
-    };
-    if flags & 0b0001_0000 != 0 {
+    let Some(mut c) = header(blob)? else {
         return Ok(Decoded::Empty);
-    }
-    let mut c = Cursor {
-        b: blob,
-        at: 8 + envelope,
     };
-    if c.at > blob.len() {
-        return Err("the header's envelope runs past the end of the geometry".into());
-    }
     let le = c.order()?;
     let code = c.u32(le)?;
     let (kind, dims) = kind_of(code)?;
