@@ -191,7 +191,8 @@ fn main() -> std::io::Result<()> {
             a[2].parse().expect("SIDE"),
             a[3].parse().expect("INTACT"),
             &a[4],
-            a.get(5).map_or(7, |p| p.parse().expect("PAIRS")),
+            a.get(5)
+                .map_or(7, |p| p.parse::<usize>().expect("PAIRS").max(1)),
         ),
         Some("steiner") if a.len() == 4 => {
             steiner(a[2].parse().expect("SIDE"), a[3].parse().expect("SITES"));
