@@ -260,7 +260,9 @@ pub fn steiner_tree_watched(
             best = polish(rg, &csr, &red.is_terminal, first.edges, &mut ws, effort);
         }
         let it = &red.is_terminal;
-        if bound.complete {
+        // A tree at the bound is optimal: nothing below can improve it.
+        let open = bound.value < tree::cost(rg, &best);
+        if open && bound.complete {
             // The dual-ascent heuristic: trees on the saturated edges (they join every terminal to
             // the root) from many roots, the best polished; they differ from the shortest-path
             // trees where those go wrong, which makes them good partners in the merge below.
@@ -276,7 +278,7 @@ pub fn steiner_tree_watched(
             }
         }
         let (trees, steps) = effort.merging();
-        if trees >= 2 {
+        if open && trees >= 2 {
             pool.push((tree::cost(rg, &best), best.clone()));
             if let Some(t) = merge::merged(rg, &red.terminals, pool, trees, steps) {
                 let t = polish(rg, &csr, it, t, &mut ws, effort);
