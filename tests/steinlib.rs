@@ -87,13 +87,14 @@ fn series_b_normal() {
 #[test]
 fn series_c_normal() {
     let (mean, worst, _) = run_series("C/", Effort::Normal);
-    assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
+    assert!(mean <= 0.001 && worst <= 0.05, "mean {mean}, worst {worst}");
 }
 
 #[test]
 fn series_d_normal() {
     let (mean, worst, _) = run_series("D/", Effort::Normal);
-    assert!(mean <= 0.01 && worst <= 0.05, "mean {mean}, worst {worst}");
+    // Normal effort's target on C and D: a mean gap of at most 0.1 %.
+    assert!(mean <= 0.001 && worst <= 0.05, "mean {mean}, worst {worst}");
 }
 
 #[test]

@@ -10,15 +10,18 @@
 //!    far from optimal it can be; then [`mehlhorn`]'s 2-approximation, which replaces the tree in
 //!    the rare case it is cheaper and whose own bound replaces Wong's when higher (as on large
 //!    graphs at quick effort, where the ascent is cut short).
-//! 4. When the ascent completed and a gap is left: the [`root`] step (reductions by bound from
+//! 4. When the ascent completed: the [`da_heuristic`] (trees grown on the saturated edges from many
+//!    roots, polished), merged with the trees of step 2.
+//! 5. When the ascent completed and a gap is left: the [`root`] step (reductions by bound from
 //!    ascents at several roots, [`fixing`], then the heuristics again on what is left) and, at
 //!    thorough effort, [`branch`]-and-bound on vertices ([`exact`] steps), within a fixed number of
 //!    steps.
-//! 5. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
+//! 6. [`reduce::expand`]: back to road edges, with the intact roads that join the pieces.
 //!
 //! All choices are deterministic for a given [`Effort`].
 
 pub mod branch;
+pub mod da_heuristic;
 pub mod dual_ascent;
 pub mod exact;
 pub mod fixing;
@@ -140,6 +143,17 @@ impl Effort {
         }
     }
 
+    /// The dual-ascent heuristic: from how many roots trees are grown on the saturated edges, and
+    /// how many of the best get the full local search (fewer on big graphs, as for the starts).
+    fn dual_trees(self, size: usize) -> (usize, usize) {
+        let size = size.max(1);
+        match self {
+            Effort::Quick => (1, 1),
+            Effort::Normal => ((4_000_000 / size).clamp(8, 256), self.polished(size) * 2),
+            Effort::Thorough => ((40_000_000 / size).clamp(32, 2000), 32),
+        }
+    }
+
     /// Solution merging after the heuristics: how many of the best distinct trees are joined, and
     /// the most branch-and-bound steps spent on their union (none at quick effort).
     fn merging(self) -> (usize, u64) {
@@ -220,7 +234,7 @@ pub fn steiner_tree_watched(
         let size = rg.vertices + rg.len();
         // The bound and the heuristics are independent: compute them side by side, with
         // Mehlhorn's tree on the bound's side to even out the two.
-        let ((b, first), (heuristic, mut ws)) = rayon::join(
+        let ((b, first), ((heuristic, mut pool), mut ws)) = rayon::join(
             || {
                 let b = match effort.bound_budget(size) {
                     Some(budget) => dual_ascent::dual_ascent(rg, &csr, &red.terminals, budget),
@@ -232,7 +246,7 @@ pub fn steiner_tree_watched(
             },
             || {
                 let mut ws = Workspace::new(rg.vertices);
-                (heuristics(rg, &csr, &red, effort, &mut ws), ws)
+                (heuristics_pool(rg, &csr, &red, effort, &mut ws, false), ws)
             },
         );
         bound = b;
@@ -245,26 +259,32 @@ pub fn steiner_tree_watched(
         if tree::cost(rg, &first.edges) < tree::cost(rg, &best) {
             best = polish(rg, &csr, &red.is_terminal, first.edges, &mut ws, effort);
         }
-        if bound.complete {
-            // The saturated edges join every terminal to the root: a tree there is a strong start.
-            let it = &red.is_terminal;
-            let sat = EdgeList {
-                vertices: rg.vertices,
-                ends: rg.ends.clone(),
-                cost: rg
-                    .cost
-                    .iter()
-                    .zip(&bound.saturated)
-                    .map(|(&c, &s)| if s { c } else { crate::solve::graph::UNUSABLE })
-                    .collect(),
-            };
-            let sat_csr = Csr::from_edges(&sat);
-            let root = red.terminals[0];
-            let t = sph::sph(&sat, &sat_csr, &red.terminals, it, root, &mut ws);
-            let t = tree::mst_prune(rg, &csr, &t, it);
-            let t = polish(rg, &csr, it, t, &mut ws, effort);
-            if tree::cost(rg, &t) < tree::cost(rg, &best) {
-                best = t;
+        let it = &red.is_terminal;
+        // A tree at the bound is optimal: nothing below can improve it.
+        let open = bound.value < tree::cost(rg, &best);
+        if open && bound.complete {
+            // The dual-ascent heuristic: trees on the saturated edges (they join every terminal to
+            // the root) from many roots, the best polished; they differ from the shortest-path
+            // trees where those go wrong, which makes them good partners in the merge below.
+            let (roots, polished) = effort.dual_trees(size);
+            let da = da_heuristic::trees(rg, &csr, it, &red.terminals, &bound, roots, &mut ws);
+            for (_, t) in da.into_iter().take(polished) {
+                let t = polish(rg, &csr, it, t, &mut ws, effort);
+                let c = tree::cost(rg, &t);
+                if c < tree::cost(rg, &best) {
+                    best = t.clone();
+                }
+                pool.push((c, t));
+            }
+        }
+        let (trees, steps) = effort.merging();
+        if open && trees >= 2 {
+            pool.push((tree::cost(rg, &best), best.clone()));
+            if let Some(t) = merge::merged(rg, &red.terminals, pool, trees, steps) {
+                let t = polish(rg, &csr, it, t, &mut ws, effort);
+                if tree::cost(rg, &t) < tree::cost(rg, &best) {
+                    best = t;
+                }
             }
         }
         let cost = tree::cost(rg, &best);
@@ -324,6 +344,20 @@ pub(crate) fn heuristics(
     effort: Effort,
     ws: &mut Workspace,
 ) -> Vec<u32> {
+    heuristics_pool(rg, csr, red, effort, ws, true).0
+}
+
+/// [`heuristics`], also returning every polished tree with its cost (the pool merging draws on);
+/// without `merge`, the caller merges the pool (with trees of its own: one merge of all the trees
+/// found more than two merges of parts of them on SteinLib D).
+fn heuristics_pool(
+    rg: &EdgeList,
+    csr: &Csr,
+    red: &reduce::Reduced,
+    effort: Effort,
+    ws: &mut Workspace,
+    merge: bool,
+) -> (Vec<u32>, Vec<(u64, Vec<u32>)>) {
     let it = &red.is_terminal;
     let mut best = Vec::new();
     let mut best_cost = u64::MAX;
@@ -353,13 +387,14 @@ pub(crate) fn heuristics(
             best_cost = c;
         }
     }
-    // Restarts from shortest-path trees on randomly perturbed costs (fixed seed), each polished
-    // with the true costs: they escape the local optima the plain starts share.
+    // Restarts from shortest-path trees on randomly perturbed costs (fixed seed, each cost times a
+    // factor in [1, 2)), each polished with the true costs: they escape the local optima the plain
+    // starts share (noise of up to 25 % left them there on SteinLib D).
     let mut rng = crate::rng::Rng::new(0x5EED_0000 ^ k as u64);
     let mut noisy = rg.clone();
     for _ in 0..effort.perturbed(size) {
         for (c, &orig) in noisy.cost.iter_mut().zip(&rg.cost) {
-            *c = orig * (1000 + rng.below(250)) / 1000;
+            *c = orig * (1000 + rng.below(1000)) / 1000;
         }
         let root = red.terminals[rng.below(k as u64) as usize];
         let t = sph::sph(&noisy, csr, &red.terminals, it, root, ws);
@@ -375,17 +410,19 @@ pub(crate) fn heuristics(
     let best = polish(rg, csr, it, best, ws, effort);
     // The best trees share most of their edges and differ where the choice is hard: an exact
     // search on their union often finds what none of them has.
+    pool.push((tree::cost(rg, &best), best.clone()));
     let (trees, steps) = effort.merging();
-    if trees >= 2 && k >= 2 {
-        pool.push((tree::cost(rg, &best), best.clone()));
-        if let Some(t) = merge::merged(rg, &red.terminals, pool, trees, steps) {
+    if merge && trees >= 2 && k >= 2 {
+        if let Some(t) = merge::merged(rg, &red.terminals, pool.clone(), trees, steps) {
             let t = polish(rg, csr, it, t, ws, effort);
-            if tree::cost(rg, &t) < tree::cost(rg, &best) {
-                return t;
+            let c = tree::cost(rg, &t);
+            if c < tree::cost(rg, &best) {
+                pool.push((c, t.clone()));
+                return (t, pool);
             }
         }
     }
-    best
+    (best, pool)
 }
 
 /// Alternates path-based and vertex-based local search until neither improves the tree.
