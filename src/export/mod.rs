@@ -178,6 +178,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
     let ids = o.keys;
+    crate::progress::mem_mark("write: start");
     st.write("work-orders.csv", |w| {
         work_orders::write_work_orders(
             w,
@@ -189,6 +190,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             ids,
         )
     })?;
+    crate::progress::mem_mark("write: work orders");
     let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
@@ -208,6 +210,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     };
     // The picture and the two big layers are independent: write them side by side.
     let drawn = drawing::prepare(&scene);
+    crate::progress::mem_mark("write: drawing prepared");
     let pictures = || -> Result<Vec<u8>, ExportError> {
         let (svg, png) = rayon::join(
             || {
@@ -226,6 +229,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         png
     };
     let all = plan_layers(o, &order_of);
+    crate::progress::mem_mark("write: plan_layers");
     let layers = || match o.format {
         // The network and the plan are the big layers: side by side, the others after them.
         OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true),
@@ -234,10 +238,12 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let (png, written) = rayon::join(pictures, layers);
     let png = png?;
     written?;
+    crate::progress::mem_mark("write: pictures + big layers");
     if o.format == OutputFormat::GeoJson {
         layer_set::write_geojson(&st, &all[2..], attribution, false)?;
     }
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
+    crate::progress::mem_mark("write: small layers+png");
     st.write("report.html", |w| {
         report::write_report(
             w,
@@ -258,16 +264,18 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         )
     })?;
     st.write("map.html", |w| {
-        let rows: Vec<[String; 25]> = work_orders::rows(
-            o.net,
-            o.steps,
-            o.backup.map_or(&[][..], |b| &b.rows[..]),
-            o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-            o.site_ids,
-            ids,
-            text::plain,
-        )
-        .collect();
+        let rows = |f: &mut dyn FnMut(&[String; 25])| {
+            work_orders::rows(
+                o.net,
+                o.steps,
+                o.backup.map_or(&[][..], |b| &b.rows[..]),
+                o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+                o.site_ids,
+                ids,
+                text::plain,
+            )
+            .for_each(|r| f(&r))
+        };
         page::write_page(
             w,
             &page::Page {
@@ -283,6 +291,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             },
         )
     })?;
+    crate::progress::mem_mark("write: report+page");
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")
