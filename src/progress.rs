@@ -84,8 +84,10 @@ pub fn peak_memory_mb() -> Option<u64> {
     Some(kb / 1024)
 }
 
-/// TEMP memory trace: prints current and peak resident memory since the last mark, then resets the
-/// peak (Linux `clear_refs` 5), when `REKNIT_MEM_TRACE` is set.
+/// With `REKNIT_MEM_TRACE` set (a profiling aid, Linux only): prints the resident memory now and
+/// its peak since the previous mark, then resets the peak (`/proc/self/clear_refs` 5) so each
+/// line tells what one step held. The reset also lowers what `--verbose` and GNU time report as
+/// the run's peak: measure the peak in a run without it.
 pub fn mem_mark(label: &str) {
     if std::env::var_os("REKNIT_MEM_TRACE").is_none() {
         return;

@@ -178,7 +178,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
     let ids = o.keys;
-    crate::progress::mem_mark("write: start");
     st.write("work-orders.csv", |w| {
         work_orders::write_work_orders(
             w,
@@ -190,7 +189,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             ids,
         )
     })?;
-    crate::progress::mem_mark("write: work orders");
     let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
@@ -210,7 +208,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     };
     // The picture and the two big layers are independent: write them side by side.
     let drawn = drawing::prepare(&scene);
-    crate::progress::mem_mark("write: drawing prepared");
     let pictures = || -> Result<Vec<u8>, ExportError> {
         let (svg, png) = rayon::join(
             || {
@@ -229,7 +226,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         png
     };
     let all = plan_layers(o, &order_of);
-    crate::progress::mem_mark("write: plan_layers");
     let layers = || match o.format {
         // The network and the plan are the big layers: side by side, the others after them.
         OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true),
@@ -238,12 +234,10 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let (png, written) = rayon::join(pictures, layers);
     let png = png?;
     written?;
-    crate::progress::mem_mark("write: pictures + big layers");
     if o.format == OutputFormat::GeoJson {
         layer_set::write_geojson(&st, &all[2..], attribution, false)?;
     }
     st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
-    crate::progress::mem_mark("write: small layers+png");
     st.write("report.html", |w| {
         report::write_report(
             w,
@@ -291,7 +285,6 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             },
         )
     })?;
-    crate::progress::mem_mark("write: report+page");
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")
