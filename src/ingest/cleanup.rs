@@ -111,10 +111,7 @@ fn compact(net: &mut Network, keep: &[bool]) {
     }
     net.junctions.truncate(kept_junctions);
     let (mut kept, mut end) = (0, 0);
-    for i in 0..net.edges.len() {
-        if !keep[i] {
-            continue;
-        }
+    for (i, _) in keep.iter().enumerate().filter(|(_, k)| **k) {
         let (a, b) = (net.geom_offsets[i], net.geom_offsets[i + 1]);
         net.geom.copy_within(a..b, end);
         let mut e = net.edges[i].clone();

@@ -48,7 +48,7 @@ pub struct Page<'a> {
     /// The work-order rows, as in `work-orders.csv` (plan repairs first, then backup links).
     /// Given a function, calls it on each row in turn: rows are made one at a time, never all held
     /// at once (on a national network they would outweigh the page itself).
-    pub rows: &'a dyn Fn(&mut dyn FnMut(&[String; 25])),
+    pub rows: &'a EachRow<'a>,
     /// The work-order keys of the network's pieces.
     pub keys: &'a super::work_order_id::WorkOrderIds,
 }
@@ -73,6 +73,9 @@ impl Page<'_> {
         colours.iter().position(|x| *x == c).map_or(0, |i| i as i64)
     }
 }
+
+/// Calls the function it is given on each work-order row in turn.
+pub type EachRow<'a> = dyn Fn(&mut dyn FnMut(&[String; 25])) + 'a;
 
 /// Writes the page.
 pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
