@@ -83,3 +83,28 @@ pub fn peak_memory_mb() -> Option<u64> {
     let kb: u64 = line.split_whitespace().nth(1)?.parse().ok()?;
     Some(kb / 1024)
 }
+
+/// With `REKNIT_MEM_TRACE` set (a profiling aid, Linux only): prints the resident memory now and
+/// its peak since the previous mark, then resets the peak (`/proc/self/clear_refs` 5) so each
+/// line tells what one step held. The reset also lowers what `--verbose` and GNU time report as
+/// the run's peak: measure the peak in a run without it.
+pub fn mem_mark(label: &str) {
+    if std::env::var_os("REKNIT_MEM_TRACE").is_none() {
+        return;
+    }
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let get = |k: &str| {
+        status
+            .lines()
+            .find(|l| l.starts_with(k))
+            .and_then(|l| l.split_whitespace().nth(1)?.parse::<u64>().ok())
+            .unwrap_or(0)
+            / 1024
+    };
+    eprintln!(
+        "MEM {label:<40} now {:>6} MB  peak {:>6} MB",
+        get("VmRSS:"),
+        get("VmHWM:")
+    );
+    let _ = std::fs::write("/proc/self/clear_refs", "5");
+}

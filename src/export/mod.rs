@@ -258,16 +258,18 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         )
     })?;
     st.write("map.html", |w| {
-        let rows: Vec<[String; 25]> = work_orders::rows(
-            o.net,
-            o.steps,
-            o.backup.map_or(&[][..], |b| &b.rows[..]),
-            o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-            o.site_ids,
-            ids,
-            text::plain,
-        )
-        .collect();
+        let rows = |f: &mut dyn FnMut(&[String; 25])| {
+            work_orders::rows(
+                o.net,
+                o.steps,
+                o.backup.map_or(&[][..], |b| &b.rows[..]),
+                o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+                o.site_ids,
+                ids,
+                text::plain,
+            )
+            .for_each(|r| f(&r))
+        };
         page::write_page(
             w,
             &page::Page {

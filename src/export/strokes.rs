@@ -57,9 +57,23 @@ impl<'a> Stroker<'a> {
     /// breaks where it meets one) and the lines are as few as the drawing allows.
     pub fn edges(&self, edges: impl Iterator<Item = usize>) -> Lines {
         let mut lines = Lines::new();
+        self.each_line(edges, |l| lines.push(l));
+        lines
+    }
+
+    /// The lines of [`Stroker::edges`], handed to `out` one by one in the same order, so that a
+    /// caller writing them out never holds them all (one line waits: the next may continue it).
+    pub fn each_line(
+        &self,
+        edges: impl Iterator<Item = usize>,
+        mut out: impl FnMut(Vec<(f64, f64)>),
+    ) {
         if !self.simplify {
-            lines.extend(edges.map(|e| self.edge(e)).filter(|l| l.len() >= 2));
-            return lines;
+            edges
+                .map(|e| self.edge(e))
+                .filter(|l| l.len() >= 2)
+                .for_each(out);
+            return;
         }
         let key = |a: (f64, f64), b: (f64, f64)| {
             let (a, b) = ((a.0 as i32, a.1 as i32), (b.0 as i32, b.1 as i32));
@@ -68,6 +82,12 @@ impl<'a> Stroker<'a> {
         // Millions of steps on a national layer: a fast hash (membership only, so the order of
         // the output does not depend on it).
         let mut seen: crate::fxhash::FxHashSet<((i32, i32), (i32, i32))> = Default::default();
+        let mut last: Option<Vec<(f64, f64)>> = None;
+        let mut push = |line: Vec<(f64, f64)>, last: &mut Option<Vec<(f64, f64)>>| {
+            if let Some(done) = last.replace(line) {
+                out(done);
+            }
+        };
         for e in edges {
             let pts = self.edge(e);
             let mut cur: Vec<(f64, f64)> = Vec::new();
@@ -78,24 +98,27 @@ impl<'a> Stroker<'a> {
                     }
                     extend_straight(&mut cur, w[1]);
                 } else if cur.len() >= 2 {
-                    lines.push(std::mem::take(&mut cur));
+                    push(std::mem::take(&mut cur), &mut last);
                 } else {
                     cur.clear();
                 }
             }
             if cur.len() >= 2 {
                 // Continue the previous line when this one starts where it ended.
-                match lines.last_mut() {
-                    Some(last) if last.last() == cur.first() => {
+                match last.as_mut() {
+                    Some(prev) if prev.last() == cur.first() => {
                         for &p in &cur[1..] {
-                            extend_straight(last, p);
+                            extend_straight(prev, p);
                         }
                     }
-                    _ => lines.push(cur),
+                    _ => push(cur, &mut last),
                 }
             }
         }
-        lines
+        drop(seen);
+        if let Some(done) = last {
+            out(done);
+        }
     }
 }
 

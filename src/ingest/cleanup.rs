@@ -89,6 +89,9 @@ fn within(a: &[[f64; 2]], b: &[[f64; 2]], tol: f64) -> bool {
 }
 
 /// Keeps the flagged edges and the junctions they use, renumbered in order.
+///
+/// Done in place (kept items only ever move towards the front), so the clean-up never holds a
+/// second copy of the network's largest arrays.
 fn compact(net: &mut Network, keep: &[bool]) {
     let mut used = vec![false; net.junctions.len()];
     for (i, e) in net.edges.iter().enumerate() {
@@ -98,28 +101,95 @@ fn compact(net: &mut Network, keep: &[bool]) {
         }
     }
     let mut new_id = vec![u32::MAX; net.junctions.len()];
-    let mut junctions = Vec::new();
+    let mut kept_junctions = 0;
     for (j, &u) in used.iter().enumerate() {
         if u {
-            new_id[j] = junctions.len() as u32;
-            junctions.push(net.junctions[j]);
+            new_id[j] = kept_junctions as u32;
+            net.junctions[kept_junctions] = net.junctions[j];
+            kept_junctions += 1;
         }
     }
-    let mut edges = Vec::new();
-    let mut geom = Vec::new();
-    let mut offsets = vec![0];
-    for (i, e) in net.edges.iter().enumerate() {
-        if keep[i] {
-            let mut e = e.clone();
-            e.from = new_id[e.from as usize];
-            e.to = new_id[e.to as usize];
-            edges.push(e);
-            geom.extend_from_slice(net.edge_geometry(i));
-            offsets.push(geom.len());
+    net.junctions.truncate(kept_junctions);
+    let (mut kept, mut end) = (0, 0);
+    for (i, _) in keep.iter().enumerate().filter(|(_, k)| **k) {
+        let (a, b) = (net.geom_offsets[i], net.geom_offsets[i + 1]);
+        net.geom.copy_within(a..b, end);
+        let mut e = net.edges[i].clone();
+        e.from = new_id[e.from as usize];
+        e.to = new_id[e.to as usize];
+        net.edges[kept] = e;
+        // Offset `kept` is read no more (its edge `i >= kept` was read above): the new start.
+        net.geom_offsets[kept] = end;
+        end += b - a;
+        kept += 1;
+    }
+    net.edges.truncate(kept);
+    net.edges.shrink_to_fit();
+    net.geom.truncate(end);
+    net.geom.shrink_to_fit();
+    net.geom_offsets.truncate(kept);
+    net.geom_offsets.push(end);
+    net.geom_offsets.shrink_to_fit();
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::ingest::damage::Damage;
+    use crate::network::{Edge, FeatureMeta};
+
+    fn edge(from: u32, to: u32, feature: u32) -> Edge {
+        Edge {
+            from,
+            to,
+            length_m: 1.0 + f64::from(feature),
+            damage: Damage::Factor(1.0),
+            cost: 1000,
+            feature,
         }
     }
-    net.junctions = junctions;
-    net.edges = edges;
-    net.geom = geom;
-    net.geom_offsets = offsets;
+
+    /// Compacting in place gives what copying the kept edges into fresh arrays gives.
+    #[test]
+    fn compact_in_place_keeps_flagged_edges_and_their_junctions() {
+        let j = |x: f64| [x, 0.0];
+        let mut net = Network {
+            junctions: vec![j(0.0), j(1.0), j(2.0), j(3.0), j(4.0)],
+            edges: vec![edge(0, 1, 0), edge(1, 2, 1), edge(2, 3, 2), edge(3, 4, 3)],
+            geom_offsets: vec![0, 2, 5, 7, 10],
+            geom: vec![
+                j(0.0),
+                j(1.0),
+                j(1.0),
+                j(1.5),
+                j(2.0),
+                j(2.0),
+                j(3.0),
+                j(3.0),
+                j(3.5),
+                j(4.0),
+            ],
+            features: (0..4)
+                .map(|i| FeatureMeta {
+                    source_index: i,
+                    source_id: None,
+                    damage: Damage::Factor(1.0),
+                    category: None,
+                    label: None,
+                    structure: None,
+                })
+                .collect(),
+            layers: Vec::new(),
+        };
+        net.validate().unwrap();
+        // Dropping the first and the third edge leaves junctions 1..=4 minus junction 0.
+        compact(&mut net, &[false, true, false, true]);
+        net.validate().unwrap();
+        assert_eq!(net.junctions, vec![j(1.0), j(2.0), j(3.0), j(4.0)]);
+        assert_eq!(net.edges, vec![edge(0, 1, 1), edge(2, 3, 3)]);
+        assert_eq!(net.geom_offsets, vec![0, 3, 6]);
+        assert_eq!(net.edge_geometry(0), &[j(1.0), j(1.5), j(2.0)]);
+        assert_eq!(net.edge_geometry(1), &[j(3.0), j(3.5), j(4.0)]);
+        assert_eq!(net.geom.capacity(), 6, "the freed tail is given back");
+    }
 }

@@ -23,24 +23,24 @@ use rayon::prelude::*;
 pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
     let n = coords.len();
     let grid = Grid::new(coords, snap_m);
-    let mut keyed: Vec<(u64, u32)> = coords
+    // Cell key and vertex as three u32 (12 bytes, not the 16 of a padded (u64, u32)): sorted
+    // lexicographically they are in (key, vertex) order. This array sets noding's peak memory.
+    let mut keyed: Vec<Keyed> = coords
         .par_iter()
         .enumerate()
-        .map(|(i, p)| (grid.key(*p), i as u32))
+        .map(|(i, p)| {
+            let k = grid.key(*p);
+            [(k >> 32) as u32, k as u32, i as u32]
+        })
         .collect();
     keyed.par_sort_unstable();
-    // Start of every run of equal cell keys.
-    let mut starts: Vec<u32> = Vec::new();
-    for i in 0..keyed.len() {
-        if i == 0 || keyed[i].0 != keyed[i - 1].0 {
-            starts.push(i as u32);
-        }
-    }
+    crate::progress::mem_mark("cluster: keyed+sorted");
+    // Start of every run of equal cell keys (counted first: the array is exactly as long as needed).
+    let new_cell = |i: usize| i == 0 || keyed[i][..2] != keyed[i - 1][..2];
+    let cells = (0..keyed.len()).filter(|&i| new_cell(i)).count();
+    let mut starts: Vec<u32> = Vec::with_capacity(cells + 1);
+    starts.extend((0..keyed.len()).filter(|&i| new_cell(i)).map(|i| i as u32));
     starts.push(keyed.len() as u32);
-    let cell_keys: Vec<u64> = starts[..starts.len() - 1]
-        .iter()
-        .map(|&s| keyed[s as usize].0)
-        .collect();
 
     // Per cell: the first vertex at each exact position, and whether another position lies within
     // the tolerance (in this cell or a neighbouring one). Cells are taken in chunks to keep tasks
@@ -48,7 +48,6 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
     use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
     const CONTESTED: u32 = 1 << 31;
     let slots: Vec<AtomicU32> = (0..n).map(|_| AtomicU32::new(0)).collect();
-    let cells = cell_keys.len();
     (0..cells.div_ceil(4096)).into_par_iter().for_each(|chunk| {
         let mut local: Vec<(u64, u64, u32)> = Vec::new();
         for ci in chunk * 4096..((chunk + 1) * 4096).min(cells) {
@@ -58,7 +57,7 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
                 (canonical_lon(p[0]).to_bits(), (p[1] + 0.0).to_bits(), i)
             };
             local.clear();
-            local.extend(cell.iter().map(|&(_, i)| bits(i)));
+            local.extend(cell.iter().map(|k| bits(k[2])));
             if local.len() > 1 {
                 local.sort_unstable();
             }
@@ -66,13 +65,7 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
             while k < local.len() {
                 let (x, y, first) = local[k];
                 let contested = snap_m > 0.0
-                    && grid.has_other_within(
-                        coords,
-                        coords[first as usize],
-                        &cell_keys,
-                        &starts,
-                        &keyed,
-                    );
+                    && grid.has_other_within(coords, coords[first as usize], &starts, &keyed);
                 let value = first | if contested { CONTESTED } else { 0 };
                 while k < local.len() && local[k].0 == x && local[k].1 == y {
                     slots[local[k].2 as usize].store(value, Relaxed);
@@ -83,7 +76,7 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
     });
     drop(keyed);
     drop(starts);
-    drop(cell_keys);
+    crate::progress::mem_mark("cluster: cells scanned");
     let mut contested = vec![false; n];
     let mut rep: Vec<u32> = slots
         .into_iter()
@@ -97,11 +90,13 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
     if snap_m > 0.0 {
         greedy_snap(coords, snap_m, &contested, &mut rep);
     }
-    // Number clusters by first appearance: a representative always precedes its members.
-    let mut cid = vec![0u32; n];
+    drop(contested);
+    // Number clusters by first appearance, in place: a representative always precedes its
+    // members, so its entry already holds its cluster when a member reads it.
+    let mut cid = rep;
     let mut founders = Vec::new();
     for i in 0..n {
-        let r = rep[i] as usize;
+        let r = cid[i] as usize;
         if r == i {
             cid[i] = founders.len() as u32;
             founders.push(i as u32);
@@ -109,8 +104,12 @@ pub fn cluster(coords: &[[f64; 2]], snap_m: f64) -> (Vec<u32>, Vec<u32>) {
             cid[i] = cid[r];
         }
     }
+    founders.shrink_to_fit();
     (cid, founders)
 }
+
+/// A vertex keyed by its grid cell: the key's high and low halves, then the vertex.
+type Keyed = [u32; 3];
 
 /// Grid cells about eight times the tolerance wide, in degrees, conservative over the data's
 /// latitudes. Columns divide the whole turn of longitude evenly and wrap at ±180° (the last column's
@@ -211,16 +210,20 @@ impl Grid {
         &self,
         coords: &[[f64; 2]],
         p: [f64; 2],
-        cell_keys: &[u64],
         starts: &[u32],
-        keyed: &[(u64, u32)],
+        keyed: &[Keyed],
     ) -> bool {
+        let cells = &starts[..starts.len() - 1];
+        let key_at = |s: &u32| {
+            let k = keyed[*s as usize];
+            (u64::from(k[0]) << 32) | u64::from(k[1])
+        };
         for c in self.neighbourhood(p) {
-            let Ok(ci) = cell_keys.binary_search(&Self::pack(c)) else {
+            let Ok(ci) = cells.binary_search_by_key(&Self::pack(c), key_at) else {
                 continue;
             };
-            for &(_, j) in &keyed[starts[ci] as usize..starts[ci + 1] as usize] {
-                let q = coords[j as usize];
+            for k in &keyed[starts[ci] as usize..starts[ci + 1] as usize] {
+                let q = coords[k[2] as usize];
                 if !same_place(q, p) && self.within(p, q).is_some() {
                     return true;
                 }

@@ -78,7 +78,9 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         ..Default::default()
     };
     let mut qa: Vec<QaPoint> = Vec::new();
+    crate::progress::mem_mark("noding: start (layer read)");
     let (cid, founders) = super::cluster::cluster(&layer.coords, snap_m);
+    crate::progress::mem_mark("noding: cluster");
     let mut centres: Vec<[f64; 2]> = founders.iter().map(|&f| layer.coords[f as usize]).collect();
     let mut centres_native: Vec<[f64; 2]> = if layer.native.is_empty() {
         Vec::new()
@@ -141,6 +143,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     layer.coords = Vec::new();
     layer.native = Vec::new();
     layer.part_ends = Vec::new();
+    crate::progress::mem_mark("noding: sequences");
 
     // Repairs of digitising errors: undershoots joined, crossings joined or reported.
     {
@@ -174,6 +177,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     }
     drop(degree);
     drop(is_end);
+    crate::progress::mem_mark("noding: repairs+junctions");
 
     // Split at junctions into pieces (ranges of `seq`), dropping duplicates.
     // (start, end, feature) as u32: a third of the memory of usize ranges on big layers.
@@ -205,40 +209,10 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     drop(seen);
     drop(seen_exact);
     drop((seq_ends, seq_feature));
+    crate::progress::mem_mark("noding: pieces");
 
-    // Edges with geometry, lengths measured in parallel: planar × unit in the source's conformal
-    // projection when it kept its native coordinates, geodesic otherwise.
-    let native = &centres_native;
-    let to_meter = layer.to_meter;
-    let feats = &layer.features;
-    let edges: Vec<Edge> = pieces
-        .par_iter()
-        .map(|&(a, b, f)| {
-            let (a, b) = (a as usize, b as usize);
-            let length_m = if native.is_empty() {
-                polyline_length_m(seq[a..b].iter().map(|&c| centres[c as usize]))
-            } else {
-                seq[a..b]
-                    .windows(2)
-                    .map(|w| {
-                        let (p, q) = (native[w[0] as usize], native[w[1] as usize]);
-                        (q[0] - p[0]).hypot(q[1] - p[1])
-                    })
-                    .sum::<f64>()
-                    * to_meter
-            };
-            let damage = feats[f as usize].damage;
-            Edge {
-                from: junction_of[seq[a] as usize],
-                to: junction_of[seq[b - 1] as usize],
-                length_m,
-                damage,
-                cost: cost_of(length_m, damage),
-                feature: f,
-            }
-        })
-        .collect();
-    drop(junction_of);
+    // Geometry first, then the edges measured on it: the cluster centres and the sequences are
+    // freed before the edge array is allocated (the largest arrays are never all held at once).
     let mut geom_offsets = Vec::with_capacity(pieces.len() + 1);
     geom_offsets.push(0);
     let mut geom = Vec::with_capacity(pieces.iter().map(|p| (p.1 - p.0) as usize).sum());
@@ -250,8 +224,44 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         );
         geom_offsets.push(geom.len());
     }
+    crate::progress::mem_mark("noding: geom");
+    drop(centres);
+    // Lengths measured in parallel: planar × unit in the source's conformal projection when it
+    // kept its native coordinates (the sequences index those), geodesic otherwise.
+    let native = &centres_native;
+    let to_meter = layer.to_meter;
+    let feats = &layer.features;
+    let (geom_ref, offsets_ref, seq_ref, jof) = (&geom, &geom_offsets, &seq, &junction_of);
+    let edges: Vec<Edge> = pieces
+        .par_iter()
+        .enumerate()
+        .map(|(k, &(a, b, f))| {
+            let length_m = if native.is_empty() {
+                polyline_length_m(geom_ref[offsets_ref[k]..offsets_ref[k + 1]].iter().copied())
+            } else {
+                seq_ref[a as usize..b as usize]
+                    .windows(2)
+                    .map(|w| {
+                        let (p, q) = (native[w[0] as usize], native[w[1] as usize]);
+                        (q[0] - p[0]).hypot(q[1] - p[1])
+                    })
+                    .sum::<f64>()
+                    * to_meter
+            };
+            let damage = feats[f as usize].damage;
+            Edge {
+                from: jof[seq_ref[a as usize] as usize],
+                to: jof[seq_ref[b as usize - 1] as usize],
+                length_m,
+                damage,
+                cost: cost_of(length_m, damage),
+                feature: f,
+            }
+        })
+        .collect();
     // The working arrays are not needed by the clean-up: free them before it allocates.
-    drop((pieces, seq, centres, centres_native));
+    drop((pieces, seq, centres_native, junction_of));
+    crate::progress::mem_mark("noding: edges+geom");
     let mut net = Network {
         junctions,
         edges,
@@ -263,6 +273,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     let (trimmed, near) = super::cleanup::clean(&mut net, snap_m, &mut qa);
     stats.overshoots_trimmed = trimmed;
     stats.near_duplicates_dropped = near;
+    crate::progress::mem_mark("noding: cleanup");
     // Dead ends, as suspicions for the analyst.
     let mut degree = vec![0u32; net.junctions.len()];
     for e in &net.edges {
@@ -285,6 +296,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         *stats.qa.entry(q.kind.code().to_string()).or_default() += 1;
     }
     stats.qa_points = qa;
+    crate::progress::mem_mark("noding: end");
     (net, stats)
 }
 

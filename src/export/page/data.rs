@@ -11,7 +11,7 @@
 use super::Page;
 use super::encode::Json;
 pub use crate::export::strokes::SIMPLIFY_ABOVE;
-use crate::export::strokes::{Lines, Stroker};
+use crate::export::strokes::Stroker;
 
 /// The simplified page's grid is this many times finer than the picture's pixels.
 pub const FINER: f64 = 2.0;
@@ -57,11 +57,11 @@ pub fn write_layers(j: &mut Json, p: &Page) -> Option<f64> {
     let many =
         |j: &mut Json, meta: &[i64], first: &mut bool, edges: &mut dyn Iterator<Item = usize>| {
             if st.simplify {
-                let lines: Lines = st.edges(edges);
-                for l in lines {
+                // Written as they are made: the lines of a national network are never all held.
+                st.each_line(edges, |l| {
                     sep(j, first);
                     j.feature(meta, l.into_iter().map(m));
-                }
+                });
             } else {
                 for e in edges {
                     sep(j, first);

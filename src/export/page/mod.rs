@@ -46,7 +46,9 @@ pub struct Page<'a> {
     /// Corridors from the hub.
     pub corridors: Option<&'a CorridorLayer>,
     /// The work-order rows, as in `work-orders.csv` (plan repairs first, then backup links).
-    pub rows: &'a [[String; 25]],
+    /// Given a function, calls it on each row in turn: rows are made one at a time, never all held
+    /// at once (on a national network they would outweigh the page itself).
+    pub rows: &'a EachRow<'a>,
     /// The work-order keys of the network's pieces.
     pub keys: &'a super::work_order_id::WorkOrderIds,
 }
@@ -71,6 +73,9 @@ impl Page<'_> {
         colours.iter().position(|x| *x == c).map_or(0, |i| i as i64)
     }
 }
+
+/// Calls the function it is given on each work-order row in turn.
+pub type EachRow<'a> = dyn Fn(&mut dyn FnMut(&[String; 25])) + 'a;
 
 /// Writes the page.
 pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
@@ -117,13 +122,15 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
         .str(crate::cautions::WORK_ORDER)
         .raw(",");
     j.key("rows").raw("[");
-    for (i, r) in p.rows.iter().enumerate() {
-        if i > 0 {
+    let mut first = true;
+    (p.rows)(&mut |r| {
+        if !first {
             j.raw(",");
         }
+        first = false;
         debug_assert_eq!(r[24], crate::cautions::WORK_ORDER);
         j.strs(r[..24].iter().map(String::as_str));
-    }
+    });
     j.raw("],").key("info");
     info::write_info(&mut j, p);
     j.raw(",").key("layers");
