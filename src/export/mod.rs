@@ -178,17 +178,19 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
     let ids = o.keys;
-    st.write("work-orders.csv", |w| {
-        work_orders::write_work_orders(
-            w,
-            o.net,
-            o.steps,
-            o.backup.map_or(&[][..], |b| &b.rows[..]),
-            o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-            o.site_ids,
-            ids,
-        )
-    })?;
+    let work_orders = || {
+        st.write("work-orders.csv", |w| {
+            work_orders::write_work_orders(
+                w,
+                o.net,
+                o.steps,
+                o.backup.map_or(&[][..], |b| &b.rows[..]),
+                o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+                o.site_ids,
+                ids,
+            )
+        })
+    };
     let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
@@ -206,9 +208,12 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         caution: crate::cautions::SHORT,
         attribution,
     };
-    // The picture and the two big layers are independent: write them side by side.
-    let drawn = drawing::prepare(&scene);
-    let pictures = || -> Result<Vec<u8>, ExportError> {
+    // Every file is made from the plan alone, none from another file (only the report embeds
+    // the PNG picture), so they are written side by side: each file's bytes are the same
+    // whichever thread writes it and whenever, and staging lists them by name.
+    let (drawn, orders) = rayon::join(|| drawing::prepare(&scene), work_orders);
+    orders?;
+    let pictures = || -> Result<(), ExportError> {
         let (svg, png) = rayon::join(
             || {
                 st.write("plan.svg", |w| {
@@ -223,68 +228,69 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
             },
         );
         svg?;
-        png
+        let png = png?;
+        st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
+        st.write("report.html", |w| {
+            report::write_report(
+                w,
+                &report::Context {
+                    title: o.title,
+                    png: &png,
+                    summary: o.summary,
+                    net: o.net,
+                    steps: o.steps,
+                    keys: ids,
+                    sites: o.sites.unwrap_or_default(),
+                    site_ids: o.site_ids,
+                    single_failures: o.single_failures,
+                    backup: o.backup,
+                    budget: o.budget,
+                    scheduled: o.scheduled,
+                },
+            )
+        })
+    };
+    let map_page = || {
+        st.write("map.html", |w| {
+            let rows = |f: &mut dyn FnMut(&[String; 25])| {
+                work_orders::rows(
+                    o.net,
+                    o.steps,
+                    o.backup.map_or(&[][..], |b| &b.rows[..]),
+                    o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+                    o.site_ids,
+                    ids,
+                    text::plain,
+                )
+                .for_each(|r| f(&r))
+            };
+            page::write_page(
+                w,
+                &page::Page {
+                    scene: &scene,
+                    drawing: &drawn,
+                    sites: o.sites.unwrap_or_default(),
+                    qa: o.qa,
+                    single_failures: o.single_failures,
+                    backup: o.backup,
+                    corridors: o.corridors,
+                    rows: &rows,
+                    keys: ids,
+                },
+            )
+        })
     };
     let all = plan_layers(o, &order_of);
     let layers = || match o.format {
         // The network and the plan are the big layers: side by side, the others after them.
-        OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true),
+        OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true)
+            .and_then(|()| layer_set::write_geojson(&st, &all[2..], attribution, false)),
         OutputFormat::GeoPackage => layer_set::write_gpkg(&st, &all, attribution),
     };
-    let (png, written) = rayon::join(pictures, layers);
-    let png = png?;
+    let ((pictured, paged), written) = rayon::join(|| rayon::join(pictures, map_page), layers);
+    pictured?;
+    paged?;
     written?;
-    if o.format == OutputFormat::GeoJson {
-        layer_set::write_geojson(&st, &all[2..], attribution, false)?;
-    }
-    st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
-    st.write("report.html", |w| {
-        report::write_report(
-            w,
-            &report::Context {
-                title: o.title,
-                png: &png,
-                summary: o.summary,
-                net: o.net,
-                steps: o.steps,
-                keys: ids,
-                sites: o.sites.unwrap_or_default(),
-                site_ids: o.site_ids,
-                single_failures: o.single_failures,
-                backup: o.backup,
-                budget: o.budget,
-                scheduled: o.scheduled,
-            },
-        )
-    })?;
-    st.write("map.html", |w| {
-        let rows = |f: &mut dyn FnMut(&[String; 25])| {
-            work_orders::rows(
-                o.net,
-                o.steps,
-                o.backup.map_or(&[][..], |b| &b.rows[..]),
-                o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-                o.site_ids,
-                ids,
-                text::plain,
-            )
-            .for_each(|r| f(&r))
-        };
-        page::write_page(
-            w,
-            &page::Page {
-                scene: &scene,
-                drawing: &drawn,
-                sites: o.sites.unwrap_or_default(),
-                qa: o.qa,
-                single_failures: o.single_failures,
-                backup: o.backup,
-                corridors: o.corridors,
-                rows: &rows,
-                keys: ids,
-            },
-        )
-    })?;
     st.write("summary.json", |w| {
         serde_json::to_writer_pretty(&mut *w, o.summary)?;
         std::io::Write::write_all(w, b"\n")

@@ -180,7 +180,9 @@ impl Staging {
             source,
         };
         let f = File::create(&path).map_err(err)?;
-        let mut w = BufWriter::with_capacity(1 << 20, f);
+        // Big layers hand over blocks of about a megabyte: a block at least as long as the
+        // buffer goes straight to the file instead of being copied through the buffer first.
+        let mut w = BufWriter::with_capacity(1 << 18, f);
         fill(&mut w).map_err(err)?;
         w.flush().map_err(err)?;
         // Synced in commit, all together: the kernel writes this one back meanwhile.

@@ -5,6 +5,9 @@
 //! in memory. Members may come in any order (a `bbox` before `features` is fine), and only the
 //! properties a caller asks for are kept.
 
+#[path = "geojson_batches.rs"]
+mod batches;
+
 use super::coords::{Coords, CoordsSeed};
 use super::scan::{Position, Scanner};
 use serde::de::{self, DeserializeSeed, IgnoredAny, MapAccess, Visitor};
@@ -212,55 +215,7 @@ where
         Some(_) => return Err(unexpected(sc, "an array of features")),
         None => return Err(unexpected(sc, "an array of features")),
     }
-    let mut index = info.features;
-    loop {
-        match sc.peek().map_err(io)? {
-            Some(b']') => {
-                sc.bump();
-                break;
-            }
-            Some(_) => {}
-            None => {
-                return Err(ReadFailure::Syntax {
-                    message: at("unexpected end of file", sc.position()),
-                    feature: Some(index),
-                });
-            }
-        }
-        let Some((text, pos)) = sc.value().map_err(|e| io_fail(e, Some(index)))? else {
-            return Err(ReadFailure::Syntax {
-                message: at("unexpected end of file inside the feature", sc.position()),
-                feature: Some(index),
-            });
-        };
-        let mut de = serde_json::Deserializer::from_slice(text);
-        let feature = FeatureSeed {
-            wanted,
-            collect_keys: index == 0,
-        }
-        .deserialize(&mut de)
-        .and_then(|f| de.end().map(|_| f))
-        .map_err(|e| syntax(&e, pos, Some(index)))?;
-        sink(index, feature).map_err(ReadFailure::Callback)?;
-        index += 1;
-        match sc.peek().map_err(io)? {
-            Some(b',') => sc.bump(),
-            Some(b']') => {}
-            Some(_) => {
-                return Err(ReadFailure::Syntax {
-                    message: at("expected ',' or ']' after a feature", sc.position()),
-                    feature: Some(index),
-                });
-            }
-            None => {
-                return Err(ReadFailure::Syntax {
-                    message: at("unexpected end of file", sc.position()),
-                    feature: Some(index),
-                });
-            }
-        }
-    }
-    info.features = index;
+    info.features = batches::read_features(sc, wanted, sink, info.features)?;
     Ok(())
 }
 

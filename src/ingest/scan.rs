@@ -78,14 +78,17 @@ impl<R: Read> Scanner<R> {
         Ok(n > 0)
     }
 
+    /// Moves past `n` bytes, counting lines and (UTF-8 characters) columns: counts over whole
+    /// slices, which the compiler turns into wide loops, not a branch per byte.
     fn advance(&mut self, n: usize) {
-        for &b in &self.buf[self.pos..self.pos + n] {
-            if b == b'\n' {
-                self.line += 1;
-                self.col = 1;
-            } else if b & 0xC0 != 0x80 {
-                self.col += 1;
+        let s = &self.buf[self.pos..self.pos + n];
+        let chars = |s: &[u8]| s.iter().filter(|&&b| b & 0xC0 != 0x80).count();
+        match s.iter().rposition(|&b| b == b'\n') {
+            Some(last) => {
+                self.line += s.iter().filter(|&&b| b == b'\n').count();
+                self.col = 1 + chars(&s[last + 1..]);
             }
+            None => self.col += chars(s),
         }
         self.pos += n;
     }
@@ -261,6 +264,28 @@ mod tests {
         assert!(s.value().unwrap_err().to_string().contains("4 KiB"));
         let mut s = Scanner::new(std::io::Read::chain(&b"[\""[..], std::io::repeat(b'a')));
         assert!(s.value().unwrap_err().to_string().contains("64 MiB"));
+    }
+
+    #[test]
+    fn columns_count_characters_not_bytes() {
+        // Each value's start, counted character by character as a reference.
+        let text = "[\"é\"]\n  \"aü\u{1F600}\" \n\n\t{\"k\":\"ñ\n\"}  7";
+        let mut s = Scanner::new(text.as_bytes());
+        let mut starts = Vec::new();
+        while let Some((v, p)) = s.value().unwrap() {
+            starts.push((String::from_utf8(v.to_vec()).unwrap(), p));
+        }
+        let reference = |value: &str| {
+            let at = text.find(value).unwrap();
+            let before = &text[..at];
+            let line = before.matches('\n').count() + 1;
+            let column = before.rsplit('\n').next().unwrap().chars().count() + 1;
+            Position { line, column }
+        };
+        assert_eq!(starts.len(), 4);
+        for (v, p) in starts {
+            assert_eq!(p, reference(&v), "{v}");
+        }
     }
 
     #[test]

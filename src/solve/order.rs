@@ -54,18 +54,25 @@ const NONE: u32 = u32::MAX;
 
 fn root_trees(g: &EdgeList, plan: &[u32], roots: &[u32]) -> Rooted {
     let n = g.vertices;
-    let mut adj: Vec<Vec<(u32, u32)>> = Vec::new();
-    let mut slot = vec![NONE; n];
+    // Neighbours along the plan as flat arrays (v's are adj[first[v]..first[v + 1]], in plan
+    // order), not a list per vertex.
+    let mut first = vec![0u32; n + 1];
     for &e in plan {
         for v in g.ends[e as usize] {
-            if slot[v as usize] == NONE {
-                slot[v as usize] = adj.len() as u32;
-                adj.push(Vec::new());
-            }
+            first[v as usize + 1] += 1;
         }
+    }
+    for v in 1..first.len() {
+        first[v] += first[v - 1];
+    }
+    let mut next = first.clone();
+    let mut adj = vec![(0u32, 0u32); 2 * plan.len()];
+    for &e in plan {
         let [a, b] = g.ends[e as usize];
-        adj[slot[a as usize] as usize].push((b, e));
-        adj[slot[b as usize] as usize].push((a, e));
+        for (v, w) in [(a, b), (b, a)] {
+            adj[next[v as usize] as usize] = (w, e);
+            next[v as usize] += 1;
+        }
     }
     let mut parent_edge = vec![NONE; n];
     let mut parent = vec![NONE; n];
@@ -77,10 +84,7 @@ fn root_trees(g: &EdgeList, plan: &[u32], roots: &[u32]) -> Rooted {
         seen[r as usize] = true;
         let mut stack = vec![r];
         while let Some(v) = stack.pop() {
-            if slot[v as usize] == NONE {
-                continue;
-            }
-            for &(w, e) in &adj[slot[v as usize] as usize] {
+            for &(w, e) in &adj[first[v as usize] as usize..first[v as usize + 1] as usize] {
                 if !seen[w as usize] {
                     seen[w as usize] = true;
                     parent[w as usize] = v;
@@ -216,17 +220,31 @@ pub fn order_whole_network(
     length_m: &[f64],
 ) -> Vec<Step> {
     let t = root_trees(g, plan, roots);
-    // Children of every vertex in the rooted forest.
-    let mut children: std::collections::HashMap<u32, Vec<(u32, u32)>> = Default::default();
-    for &e in plan {
+    // Children of every vertex in the rooted forest, as flat arrays (vertex v's children are
+    // kids[first[v]..first[v + 1]], in plan order): no map and no list per vertex.
+    let parent_child = |e: u32| {
         let [a, b] = g.ends[e as usize];
-        let (p, c) = if t.parent[b as usize] == a && t.parent_edge[b as usize] == e {
+        if t.parent[b as usize] == a && t.parent_edge[b as usize] == e {
             (a, b)
         } else {
             (b, a)
-        };
-        children.entry(p).or_default().push((c, e));
+        }
+    };
+    let mut first = vec![0u32; g.vertices + 1];
+    for &e in plan {
+        first[parent_child(e).0 as usize + 1] += 1;
     }
+    for v in 1..first.len() {
+        first[v] += first[v - 1];
+    }
+    let mut next = first.clone();
+    let mut kids = vec![(0u32, 0u32); plan.len()];
+    for &e in plan {
+        let (p, c) = parent_child(e);
+        kids[next[p as usize] as usize] = (c, e);
+        next[p as usize] += 1;
+    }
+    let children = |v: u32| &kids[first[v as usize] as usize..first[v as usize + 1] as usize];
     let key = |e: u32| {
         let c = g.cost[e as usize] as f64;
         let l = length_m[e as usize].max(1e-3);
@@ -235,10 +253,8 @@ pub fn order_whole_network(
     let mut heap: BinaryHeap<Reverse<(u64, u32, u32)>> = BinaryHeap::new();
     let mut steps = Vec::new();
     for &r in roots {
-        if let Some(ch) = children.get(&r) {
-            for &(c, e) in ch {
-                heap.push(Reverse((key(e), e, c)));
-            }
+        for &(c, e) in children(r) {
+            heap.push(Reverse((key(e), e, c)));
         }
     }
     while let Some(Reverse((_, e, c))) = heap.pop() {
@@ -253,10 +269,8 @@ pub fn order_whole_network(
                 completes: Vec::new(),
             });
         }
-        if let Some(ch) = children.get(&c) {
-            for &(c2, e2) in ch {
-                heap.push(Reverse((key(e2), e2, c2)));
-            }
+        for &(c2, e2) in children(c) {
+            heap.push(Reverse((key(e2), e2, c2)));
         }
     }
     steps
