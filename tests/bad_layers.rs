@@ -4,7 +4,6 @@
 
 mod common;
 use common::bad::*;
-use common::*;
 use std::path::Path;
 
 /// A GeoPackage written here with SQLite: the required tables, a WGS84 layer `table` of
