@@ -55,7 +55,7 @@ fn main() {
         LayerJob::new(specs::edges("plan", net, true), move |s| {
             write_edges(s, net, comps, Some(plan_edges), None, ids)
         }),
-        LayerJob::new(specs::qa(), move |s| reknit::export::write_qa(s, qa)),
+        LayerJob::new(specs::qa(), move |s| reknit::export::write_qa(s, net, qa)),
     ];
     let tmp = tempfile::tempdir_in(Path::new(env!("CARGO_MANIFEST_DIR")).join("target"))
         .expect("scratch folder under target/");

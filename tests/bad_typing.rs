@@ -352,3 +352,46 @@ fn manifest_values_mean_what_the_same_flags_mean_in_every_format() {
         assert_eq!(batch_summary(d, &m), cli, "{f:?}: CSV manifest");
     }
 }
+
+/// A point Shapefile set of two sites by the two test roads, `site_id` and `name` fields (WGS84
+/// .prj); `name` of the first is `Cafe` (patched by the caller).
+fn cafe_sites(d: &Path) -> PathBuf {
+    let p = d.join("cafes.shp");
+    let table = TableWriterBuilder::new()
+        .add_character_field(FieldName::try_from("site_id").unwrap(), 8)
+        .add_character_field(FieldName::try_from("name").unwrap(), 8);
+    let mut w = shapefile::Writer::from_path(&p, table).unwrap();
+    for (id, name, lon) in [("a", "Cafe", 0.0), ("b", "Bar", 0.001)] {
+        let mut r = Record::default();
+        r.insert("site_id".into(), FieldValue::Character(Some(id.into())));
+        r.insert("name".into(), FieldValue::Character(Some(name.into())));
+        w.write_shape_and_record(&shapefile::Point::new(lon, 0.0), &r)
+            .unwrap();
+    }
+    drop(w);
+    write_wgs84_prj(&p);
+    p
+}
+
+case!(dbf_code_page_from_language_driver, |d| {
+    // No .cpg: the language driver byte (dBASE header byte 29) 0x57 says Windows-1252 (ESRI's
+    // code page list, from memory), so the byte 0xE9 is "é", not a replacement character.
+    let sites = cafe_sites(d);
+    let dbf = sites.with_extension("dbf");
+    let mut b = std::fs::read(&dbf).unwrap();
+    b[29] = 0x57;
+    let at = b.windows(4).position(|w| w == b"Cafe").unwrap();
+    b[at + 3] = 0xE9;
+    std::fs::write(&dbf, b).unwrap();
+    let out = plan_ok(d, &["--roads", &s(&roads_ok(d)), "--sites", &s(&sites)]);
+    let text = std::fs::read_to_string(out.join("sites.geojson")).unwrap();
+    assert!(text.contains("Café"), "{text}");
+    std::fs::remove_dir_all(out).unwrap();
+    // A .cpg naming a code page no decoder knows: refused, not read as UTF-8.
+    std::fs::write(sites.with_extension("cpg"), "KLINGON-1").unwrap();
+    plan_fails(
+        &roads_ok(d),
+        &["--sites", &s(&sites)],
+        &["cafes.cpg", "KLINGON-1", "cannot decode"],
+    );
+});

@@ -271,3 +271,75 @@ fn a_manifest_lists_road_layers() {
         assert_eq!(sum["counts"]["components"], 1);
     }
 }
+
+/// Layer `b.geojson` repeats its first road as its third feature: the QA point for the dropped
+/// copy names that feature by its position in its own layer and by the layer.
+fn layers_with_a_duplicate(d: &Path) -> Vec<PathBuf> {
+    let a = layer(d, "a.geojson", 0.0, &["r1", "r2"]);
+    let b = write_collection(
+        d,
+        "b.geojson",
+        &[
+            line(&[[0.002, 0.0], [0.003, 0.0]], r#"{"id":"q1"}"#),
+            line(&[[0.003, 0.0], [0.004, 0.0]], r#"{"id":"q2"}"#),
+            line(&[[0.002, 0.0], [0.003, 0.0]], r#"{"id":"q3"}"#),
+        ],
+    );
+    vec![a, b]
+}
+
+/// The removed-duplicate QA points of `qa.geojson`: (source_layer, source_index).
+fn duplicate_points(out: &Path) -> Vec<(String, i64)> {
+    read_fc(&out.join("qa.geojson"))
+        .features
+        .iter()
+        .filter(|f| f.property("kind").unwrap() == "removed_duplicate")
+        .map(|f| {
+            (
+                f.property("source_layer")
+                    .unwrap()
+                    .as_str()
+                    .unwrap()
+                    .to_string(),
+                f.property("source_index").unwrap().as_i64().unwrap(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn qa_points_name_the_layer_and_the_position_in_it() {
+    let d = tmp();
+    let layers = layers_with_a_duplicate(d.path());
+    let out = plan_layers(d.path(), "out", &layers, &[]);
+    assert_eq!(duplicate_points(&out), vec![("b.geojson".to_string(), 2)]);
+}
+
+#[test]
+fn check_takes_several_layers_as_plan_does() {
+    let d = tmp();
+    let layers = layers_with_a_duplicate(d.path());
+    let o = d.path().join("checked");
+    let mut args: Vec<String> = vec!["check".into(), "-q".into(), "--out".into(), s(&o)];
+    for l in &layers {
+        args.extend(["--roads".into(), s(l)]);
+    }
+    let r = reknit().args(&args).output().unwrap();
+    assert!(r.status.success(), "{}", stderr(&r));
+    assert_eq!(duplicate_points(&o), vec![("b.geojson".to_string(), 2)]);
+    let s = read_json(&o.join("summary.json"));
+    let roads = s["inputs"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|i| i["role"] == "roads")
+        .count();
+    assert_eq!(roads, 2, "both layers are recorded as inputs");
+    let net = read_fc(&o.join("network.geojson"));
+    let labels: BTreeSet<&str> = net
+        .features
+        .iter()
+        .map(|f| f.property("source_layer").unwrap().as_str().unwrap())
+        .collect();
+    assert_eq!(labels, BTreeSet::from(["a.geojson", "b.geojson"]));
+}

@@ -272,13 +272,25 @@ fn csv_sites_with_named_columns_and_an_explicit_hub() {
 }
 
 #[test]
-fn no_sites_and_one_site_are_trivial_plans() {
+fn one_site_is_a_trivial_plan_and_no_sites_are_refused() {
     let d = tmp();
     let roads = two_towns(d.path());
-    for (name, pts) in [
-        ("none.geojson", vec![]),
-        ("one.geojson", vec![("only", pt(10., 10.), 1.)]),
-    ] {
+    // No sites: nothing to connect, refused rather than written as an empty plan.
+    let none = sites_fc(d.path(), "none.geojson", &[]);
+    let o = run(&[
+        "plan",
+        "--roads",
+        roads.to_str().unwrap(),
+        "--sites",
+        none.to_str().unwrap(),
+        "--out",
+        d.path().join("out-none").to_str().unwrap(),
+    ]);
+    assert!(!o.status.success());
+    assert!(stderr(&o).contains("holds no sites"), "{}", stderr(&o));
+    assert!(!d.path().join("out-none").exists());
+    let (name, pts) = ("one.geojson", vec![("only", pt(10., 10.), 1.)]);
+    {
         let sites = sites_fc(d.path(), name, &pts);
         let out = d.path().join(format!("out-{name}"));
         let o = run(&[

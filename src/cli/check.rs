@@ -12,9 +12,10 @@ use std::process::ExitCode;
 /// sizes, dangles, counts); with --output-format gpkg the two layers are tables of layers.gpkg.
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Road centerline layer (GeoJSON or Shapefile).
-    #[arg(long, value_name = "FILE")]
-    roads: PathBuf,
+    /// Road centerline layer, in any format `plan` reads. Give it again for more layers, checked
+    /// as one network (each feature keeps its layer as `source_layer`).
+    #[arg(long, value_name = "FILE", required = true)]
+    roads: Vec<PathBuf>,
 
     /// Output folder (created if absent).
     #[arg(long, value_name = "DIR")]
@@ -30,7 +31,7 @@ pub struct CheckArgs {
 pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
     let progress = a.output.progress();
     let r = reknit::job::check::run_check(
-        &Source::File(a.roads),
+        &a.roads.into_iter().map(Source::File).collect::<Vec<_>>(),
         &reknit::job::settings::road_settings(&a.network.road_options())?,
         &a.out,
         a.output.force,

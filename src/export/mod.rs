@@ -330,7 +330,7 @@ fn plan_layers<'a>(
             sites::write_sites(s, rows)
         }));
     }
-    v.push(LayerJob::new(specs::qa(), move |s| write_qa(s, o.qa)));
+    v.push(LayerJob::new(specs::qa(), move |s| write_qa(s, net, o.qa)));
     if let Some(f) = o.single_failures {
         v.push(LayerJob::new(specs::single_failures(), move |s| {
             single_failures::write_single_failures(s, net, f, ids)
@@ -439,12 +439,16 @@ pub(crate) fn damage_props(edge: &crate::network::Edge) -> [(&'static str, Prop<
 }
 
 /// Writes QA points: kind (code and words), distance moved (or gap), and the input feature where
-/// known.
+/// known, as its position in its source layer and that layer's label.
 pub fn write_qa<S: LayerSink + ?Sized>(
     gj: &mut S,
+    net: &Network,
     qa: &[crate::ingest::qa::QaPoint],
 ) -> std::io::Result<()> {
     for q in qa {
+        let meta = q
+            .feature
+            .and_then(|f| net.features.get(f as usize).map(|m| (f, m)));
         gj.point(
             &[
                 ("kind", Prop::Str(q.kind.code())),
@@ -452,7 +456,12 @@ pub fn write_qa<S: LayerSink + ?Sized>(
                 ("distance_m", Prop::Fixed3(q.distance_m)),
                 (
                     "source_index",
-                    q.feature.map_or(Prop::Null, |f| Prop::Int(f as i64)),
+                    meta.map_or(Prop::Null, |(_, m)| Prop::Int(m.source_index as i64)),
+                ),
+                (
+                    "source_layer",
+                    meta.and_then(|(f, _)| net.source_layer(f))
+                        .map_or(Prop::Null, Prop::Str),
                 ),
             ],
             q.pos,
@@ -472,7 +481,7 @@ pub fn check_layers<'a>(
         LayerJob::new(specs::edges("network", net, false), move |s| {
             write_edges(s, net, comps, None, None, ids)
         }),
-        LayerJob::new(specs::qa(), move |s| write_qa(s, qa)),
+        LayerJob::new(specs::qa(), move |s| write_qa(s, net, qa)),
     ]
 }
 

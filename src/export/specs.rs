@@ -63,6 +63,7 @@ pub fn qa() -> LayerSpec {
             ("kind_label", T),
             ("distance_m", R),
             ("source_index", I),
+            ("source_layer", T),
         ],
     )
 }

@@ -31,7 +31,7 @@ pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, u
                 kind: QaKind::TrimmedOvershoot,
                 pos: net.junctions[tip as usize],
                 distance_m: e.length_m,
-                feature: Some(net.features[e.feature as usize].source_index),
+                feature: Some(e.feature),
             });
         }
     }
@@ -65,7 +65,7 @@ pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, u
                         kind: QaKind::RemovedNearDuplicate,
                         pos: gb[gb.len() / 2],
                         distance_m: 0.0,
-                        feature: Some(net.features[net.edges[b].feature as usize].source_index),
+                        feature: Some(net.edges[b].feature),
                     });
                 }
             }

@@ -74,6 +74,38 @@ pub fn open_immutable(p: &Path) -> rusqlite::Result<Connection> {
     )
 }
 
+/// Refuses a GeoPackage with a non-empty write-ahead log (`NAME-wal`) or rollback journal
+/// (`NAME-journal`) beside it: the file is read as one that cannot change, so committed edits
+/// still in the log would be missed (and a journal means a write was cut short).
+pub fn unmerged_log(p: &Path) -> Result<(), String> {
+    for (suffix, what) in [
+        (
+            "-wal",
+            "a write-ahead log holding edits not yet merged into it",
+        ),
+        (
+            "-journal",
+            "a rollback journal (a write to it was cut short or is under way)",
+        ),
+    ] {
+        let mut log = p.as_os_str().to_owned();
+        log.push(suffix);
+        let log = std::path::PathBuf::from(log);
+        if let Ok(m) = std::fs::metadata(&log)
+            && m.len() > 0
+        {
+            return Err(format!(
+                "{} lies beside it, {what} ({} bytes); reknit reads the GeoPackage as a file that \
+                 does not change and would miss them: close the program that has it open, or \
+                 merge the log (sqlite3 FILE 'PRAGMA wal_checkpoint(TRUNCATE)'), then run again",
+                log.display(),
+                m.len()
+            ));
+        }
+    }
+    Ok(())
+}
+
 impl GpkgSource {
     /// Opens `source` and chooses its layer: `layer` by name, or the only one.
     pub fn open(source: &Source, layer: Option<&str>) -> Result<GpkgSource, IngestError> {
@@ -107,6 +139,7 @@ impl GpkgSource {
                 format!("not a readable GeoPackage (SQLite) file: {e}"),
             )
         };
+        unmerged_log(p).map_err(|m| refuse(&path, m))?;
         let conn = open_immutable(p).map_err(sql)?;
         let layers = layers(&conn).map_err(|e| {
             refuse(
@@ -339,7 +372,18 @@ impl FeatureSource for GpkgSource {
                             })?
                             .trim(),
                     ),
-                    ValueRef::Blob(_) => continue,
+                    // Binary data is neither a number nor text: read as "no value" it would
+                    // silently default a damage, a priority or an id, so it is refused.
+                    ValueRef::Blob(b) => {
+                        return Err(fail(
+                            name,
+                            format!(
+                                "binary data (a BLOB of {} bytes), not a number or text; store \
+                                 the field as INTEGER, REAL or TEXT",
+                                b.len()
+                            ),
+                        ));
+                    }
                 };
                 f.props.push((name.clone(), value));
             }

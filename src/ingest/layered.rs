@@ -87,6 +87,15 @@ pub fn read_gpkg_zones(
     let info = src.features(&wanted, &mut |index, f| {
         add_zone_feature(&path, index, &f, rule, conv, &mut zones, &mut defaulted)
     })?;
+    if let Some(n) = info.skipped.get("empty geometry") {
+        return Err(IngestError::Io {
+            path,
+            source: std::io::Error::other(format!(
+                "{n} feature(s) of the damage zones layer have an empty geometry; a damage zone \
+                 needs a polygon"
+            )),
+        });
+    }
     Ok(ZoneLayer {
         zones,
         input: info.input,

@@ -18,6 +18,9 @@ pub const MAX_FEATURE: usize = 1 << 30;
 /// Largest member of a zip archive once inflated (a Shapefile's `.shp`, `.shx` or `.dbf`): 1 GiB;
 /// sidecar texts (`.prj`, `.cpg`) are held to [`MAX_SMALL_FILE`].
 pub const MAX_ZIP_MEMBER: u64 = 1 << 30;
+/// Largest Shapefile set inside a zip archive, its `.shp`, `.shx` and `.dbf` inflated together:
+/// 1 GiB (all of it is held in memory at once). A larger set is read from its unzipped files.
+pub const MAX_ZIP_SET: u64 = 1 << 30;
 /// Largest single CSV row: 1 MiB.
 pub const MAX_CSV_ROW: usize = 1 << 20;
 

@@ -37,6 +37,7 @@ pub mod sites;
 pub mod sites_csv;
 pub mod source;
 pub mod structures;
+pub mod valid;
 pub mod value;
 pub mod wkb;
 pub mod wrap;

@@ -95,7 +95,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
             let d = distance_m(layer.coords[i], centre);
             stats.max_move_m = stats.max_move_m.max(d);
             let part = layer.part_ends.partition_point(|&e| e <= i);
-            let f = layer.features[layer.part_feature[part] as usize].source_index;
+            let f = layer.part_feature[part];
             let m = moved.entry(c).or_insert((0.0, f));
             m.0 = m.0.max(d);
         }
@@ -128,7 +128,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
                     kind: QaKind::RemovedZeroLength,
                     pos: centres[c as usize],
                     distance_m: 0.0,
-                    feature: Some(layer.features[layer.part_feature[p] as usize].source_index),
+                    feature: Some(layer.part_feature[p]),
                 });
             }
             seq.truncate(before);
@@ -198,7 +198,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
                         kind: QaKind::RemovedDuplicate,
                         pos: centres[piece[piece.len() / 2] as usize],
                         distance_m: 0.0,
-                        feature: Some(layer.features[seq_feature[k] as usize].source_index),
+                        feature: Some(seq_feature[k]),
                     });
                 }
                 a = i;

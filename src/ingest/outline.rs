@@ -64,7 +64,7 @@ impl Outline {
                      the site as a Point instead"
                 ));
             }
-            if let Err(e) = geo::Validation::check_validation(&polygon) {
+            if let Err(e) = super::valid::check_polygon(&polygon) {
                 return Err(format!(
                     "polygon {pi} is not valid ({e}); fix the outline (e.g. a ring crossing itself), \
                      or give the site as a Point"

@@ -88,6 +88,7 @@ pub struct QaPoint {
     pub pos: [f64; 2],
     /// How far geometry moved (or the gap), metres.
     pub distance_m: f64,
-    /// The input feature concerned (0-based position), when one is.
+    /// The road feature concerned, as its position in the network's feature list (not its
+    /// position in its source file: `Network::features` gives that and its layer), when one is.
     pub feature: Option<u32>,
 }

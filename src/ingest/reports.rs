@@ -62,7 +62,12 @@ pub fn read_reports(
             if f.geometry_type.as_deref() != Some("Point") || f.coords.height != 1 {
                 return Err(fail("geometry", "damage reports must be Points".into()));
             }
-            let p = f.coords.pos[0];
+            let Some(&p) = f.coords.pos.first() else {
+                return Err(fail(
+                    "geometry",
+                    "the report's Point is empty (no position)".into(),
+                ));
+            };
             if !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0) {
                 return Err(fail(
                     "geometry",
@@ -82,6 +87,17 @@ pub fn read_reports(
         },
     )
     .map_err(|e| IngestError::from_read(&path, e))?;
+    // No report at all would plan as if nothing were damaged: refused, not read as "no damage".
+    if out.is_empty() {
+        return Err(IngestError::Io {
+            path,
+            source: std::io::Error::other(
+                "the damage reports layer holds no reports (no features): a plan would treat \
+                 every road as undamaged; give at least one report, or plan without \
+                 --damage-points",
+            ),
+        });
+    }
     let (sha256, bytes) =
         HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
             path: path.clone(),

@@ -12,6 +12,8 @@ const CHUNK: usize = 1 << 20;
 pub struct Scanner<R> {
     r: R,
     buf: Vec<u8>,
+    /// Bytes read per refill ([`CHUNK`]; smaller in tests, so values straddle refills).
+    chunk: usize,
     pos: usize,
     eof: bool,
     /// 1-based line of `buf[pos]`.
@@ -32,9 +34,15 @@ pub struct Position {
 impl<R: Read> Scanner<R> {
     /// A scanner over `r`.
     pub fn new(r: R) -> Self {
+        Self::with_chunk(r, CHUNK)
+    }
+
+    /// A scanner over `r` reading `chunk` bytes per refill.
+    fn with_chunk(r: R, chunk: usize) -> Self {
         Scanner {
             r,
-            buf: Vec::with_capacity(CHUNK),
+            buf: Vec::with_capacity(chunk),
+            chunk: chunk.max(1),
             pos: 0,
             eof: false,
             line: 1,
@@ -60,7 +68,7 @@ impl<R: Read> Scanner<R> {
             self.pos = 0;
         }
         let old = self.buf.len();
-        self.buf.resize(old + CHUNK, 0);
+        self.buf.resize(old + self.chunk, 0);
         let n = loop {
             match self.r.read(&mut self.buf[old..]) {
                 Ok(n) => break n,
@@ -122,6 +130,8 @@ impl<R: Read> Scanner<R> {
             return Ok(None);
         }
         let start = self.position();
+        // Every offset kept across `fill` is relative to `self.pos`: a refill moves the unread
+        // bytes to the front of the buffer, so absolute indices would point at the wrong bytes.
         let mut i = self.pos;
         let mut depth = 0usize;
         let mut in_str = false;
@@ -147,7 +157,7 @@ impl<R: Read> Scanner<R> {
                 match b {
                     b'"' => {
                         in_str = true;
-                        str_start = i;
+                        str_start = i - self.pos;
                     }
                     b'{' | b'[' => depth += 1,
                     b'}' | b']' => {
@@ -167,7 +177,7 @@ impl<R: Read> Scanner<R> {
                 }
             }
             let consumed = i - self.pos;
-            self.check_size(consumed, in_str.then(|| i - str_start), depth)?;
+            self.check_size(consumed, in_str.then(|| consumed - str_start), depth)?;
             if !self.fill()? {
                 if depth == 0 && !in_str && i > self.pos {
                     // A scalar running to the end of the input.
@@ -264,6 +274,56 @@ mod tests {
         assert!(s.value().unwrap_err().to_string().contains("4 KiB"));
         let mut s = Scanner::new(std::io::Read::chain(&b"[\""[..], std::io::repeat(b'a')));
         assert!(s.value().unwrap_err().to_string().contains("64 MiB"));
+    }
+
+    /// Long strings, numbers, keys and skipped values straddling many refills of a small buffer
+    /// come out whole, for every chunk size from 1 byte up.
+    #[test]
+    fn values_straddle_refills() {
+        let long = "é".repeat(300);
+        let num = format!("-{}.{}e-7", "9".repeat(200), "1".repeat(100));
+        let text = format!(
+            "{{\"type\":\"FeatureCollection\",\"{long}\":[\"{long}\",{num}],\"features\":[{{\"properties\":{{\"name\":\"{long}\\\"{long}\",\"d\":{num}}}}}]}} {num} \"{long}\""
+        );
+        let want: Vec<Vec<u8>> = {
+            let mut s = Scanner::new(text.as_bytes());
+            std::iter::from_fn(|| s.value().unwrap().map(|(v, _)| v.to_vec())).collect()
+        };
+        assert_eq!(want.len(), 3);
+        assert_eq!(want[1], num.as_bytes());
+        for chunk in [1, 2, 3, 7, 64, 333, 1000] {
+            let mut s = Scanner::with_chunk(text.as_bytes(), chunk);
+            // Walk into the collection and cut each member value too, as the GeoJSON reader does.
+            assert_eq!(s.peek().unwrap(), Some(b'{'));
+            s.bump();
+            let mut members = Vec::new();
+            loop {
+                let (k, _) = s.value().unwrap().unwrap();
+                let k = k.to_vec();
+                assert_eq!(s.peek().unwrap(), Some(b':'));
+                s.bump();
+                let (v, _) = s.value().unwrap().unwrap();
+                members.push((k, v.to_vec()));
+                match s.peek().unwrap() {
+                    Some(b',') => s.bump(),
+                    _ => break,
+                }
+            }
+            assert_eq!(members.len(), 3, "chunk {chunk}");
+            assert_eq!(members[1].0, format!("\"{long}\"").as_bytes());
+            assert!(
+                members[2]
+                    .1
+                    .ends_with(format!("\"d\":{num}}}}}]").as_bytes())
+            );
+            s.bump();
+            assert_eq!(s.value().unwrap().unwrap().0, want[1], "chunk {chunk}");
+            assert_eq!(s.value().unwrap().unwrap().0, want[2], "chunk {chunk}");
+            assert!(s.value().unwrap().is_none());
+            // The whole text as one value, too.
+            let mut s = Scanner::with_chunk(text.as_bytes(), chunk);
+            assert_eq!(s.value().unwrap().unwrap().0, want[0], "chunk {chunk}");
+        }
     }
 
     #[test]

@@ -15,7 +15,37 @@ pub struct Member {
     /// The path shown in messages (inside a zip: the archive's path, then the member's name).
     pub path: PathBuf,
     /// The whole content.
-    pub bytes: Arc<[u8]>,
+    pub bytes: Shared,
+}
+
+/// A file's content, shared without copying: a `Vec` moved in as read (turning it into an
+/// `Arc<[u8]>` would copy it, briefly doubling the memory a large `.shp` or `.dbf` takes).
+#[derive(Debug, Clone, Default)]
+pub struct Shared(Arc<Vec<u8>>);
+
+impl std::ops::Deref for Shared {
+    type Target = [u8];
+    fn deref(&self) -> &[u8] {
+        &self.0
+    }
+}
+
+impl AsRef<[u8]> for Shared {
+    fn as_ref(&self) -> &[u8] {
+        &self.0
+    }
+}
+
+impl From<Vec<u8>> for Shared {
+    fn from(v: Vec<u8>) -> Self {
+        Shared(Arc::new(v))
+    }
+}
+
+impl From<&[u8]> for Shared {
+    fn from(v: &[u8]) -> Self {
+        Shared(Arc::new(v.to_vec()))
+    }
 }
 
 /// A small text sidecar (`.prj`, `.cpg`): its path and its text, or why it cannot be read (kept
@@ -108,7 +138,7 @@ impl SetFiles {
     }
 }
 
-type Bytes = Cursor<Arc<[u8]>>;
+type Bytes = Cursor<Shared>;
 
 /// An open Shapefile set: shapes from the .shp (through its checked .shx), records from the .dbf,
 /// and which records the .dbf flags deleted.
@@ -170,6 +200,30 @@ pub fn open_set(path: &Path) -> Result<ShapeSet, IngestError> {
     open_files(&SetFiles::from_disk(path)?)
 }
 
+/// The code page a dBASE language driver byte (header byte 29) names, when the text decoder
+/// knows it; `None` leaves the table to the reader's default (UTF-8, read lossily). The table is
+/// the language driver IDs that Shapefile writers use (from memory: ESRI's code page list; the
+/// dBASE IV/V ones such as 0x03, 0x64 and 0xC8 agree with the table reader's own).
+fn driver_code_page(byte: u8) -> Option<shapefile::dbase::encoding::DynEncoding> {
+    let name = match byte {
+        0x03 | 0x57 | 0x58 | 0x59 => "1252",
+        0x13 | 0x7B => "932",
+        0x4D | 0x7A => "936",
+        0x4E | 0x79 => "949",
+        0x4F | 0x78 => "BIG5",
+        0x50 | 0x7C => "874",
+        0x26 | 0x65 => "866",
+        0x7D => "1255",
+        0x7E => "1256",
+        0xC8 => "1250",
+        0xC9 => "1251",
+        0xCA => "1254",
+        0xCB => "1253",
+        _ => return None,
+    };
+    shapefile::dbase::encoding::DynEncoding::from_name(name)
+}
+
 /// Opens a set held in memory. The .dbf text is decoded by its declared code page (a .cpg, else
 /// the dBASE language driver byte); a table declared or assumed UTF-8 is read lossily (undecodable
 /// bytes become U+FFFD) rather than refused. A .dbf whose record count differs from the number of
@@ -182,11 +236,22 @@ pub fn open_files(files: &SetFiles) -> Result<ShapeSet, IngestError> {
     let cursor = |m: &Member| Cursor::new(m.bytes.clone());
     let shapes = shapefile::ShapeReader::with_shx(cursor(&files.shp), cursor(&files.shx))
         .map_err(|e| refuse(shp, shapefile_error(shp, e)))?;
-    let declared = files
-        .cpg
-        .as_ref()
-        .and_then(|c| c.text.as_ref().ok())
-        .and_then(|label| dbase::encoding::DynEncoding::from_name(label));
+    let declared = match files.cpg.as_ref().map(|c| (c, c.text.as_ref())) {
+        Some((c, Ok(label))) if !label.trim().is_empty() => Some(
+            dbase::encoding::DynEncoding::from_name(label).ok_or_else(|| {
+                refuse(
+                    &c.path,
+                    format!(
+                        "names the code page {:?}, which reknit cannot decode: the table's text \
+                         would be read wrongly; write a code page name it knows (UTF-8, 1252, \
+                         ISO-8859-1, 1251, 936…) into it, or remove it if the table is UTF-8",
+                        label.trim()
+                    ),
+                )
+            })?,
+        ),
+        _ => files.dbf.bytes.get(29).and_then(|&b| driver_code_page(b)),
+    };
     let dbf_fail = |e: dbase::Error| refuse(dbf, format!("not a readable dBASE table: {e}"));
     let table = match declared {
         Some(enc) => dbase::ReaderBuilder::new()

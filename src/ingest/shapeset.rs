@@ -102,7 +102,7 @@ struct RawField {
 pub struct NumericText {
     /// The table.
     pub dbf: std::path::PathBuf,
-    bytes: std::sync::Arc<[u8]>,
+    bytes: super::set_files::Shared,
     header: usize,
     record: usize,
     fields: Vec<RawField>,

@@ -111,8 +111,23 @@ pub fn reads_as_csv(source: &Source) -> bool {
     matches!(extension(source).as_deref(), Some("csv") | Some("txt"))
 }
 
-/// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by extension.
+/// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by
+/// extension. A layer with no sites is refused: a plan for nothing would look like a plan.
 pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
+    let layer = read_sites_any(source, settings)?;
+    if layer.sites.is_empty() {
+        return Err(IngestError::Io {
+            path: source.display_path(),
+            source: std::io::Error::other(
+                "the sites layer holds no sites (no features, or a header and no rows): there is \
+                 nothing to connect; give a layer with at least one site, or plan without --sites",
+            ),
+        });
+    }
+    Ok(layer)
+}
+
+fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
     let path = source.display_path();
     let ext = extension(source);
     if ext.as_deref() == Some("shp") {

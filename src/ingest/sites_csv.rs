@@ -143,6 +143,23 @@ pub(super) fn read_csv<R: BufRead>(
              it again with one of those"
         )));
     }
+    // A column name given twice: the position would come from one column and the attribute
+    // written from the other, so the file is refused rather than one read silently.
+    for (i, h) in headers.iter().enumerate() {
+        if let Some(j) = headers.iter().take(i).position(|g| g.trim() == h.trim()) {
+            return Err(IngestError::Feature {
+                path: path.to_path_buf(),
+                feature: 0,
+                field: Some(h.trim().to_string()),
+                message: format!(
+                    "the header names the column {:?} twice (columns {} and {}): rename one",
+                    h.trim(),
+                    j + 1,
+                    i + 1
+                ),
+            });
+        }
+    }
     let find =
         |given: &Option<String>, defaults: &[&str], what: &str| -> Result<usize, IngestError> {
             let names: Vec<&str> = match given {

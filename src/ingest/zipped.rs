@@ -8,7 +8,7 @@
 //! the archive); the message lists them.
 
 use super::IngestError;
-use super::limits::{MAX_SMALL_FILE, MAX_ZIP_MEMBER};
+use super::limits::{MAX_SMALL_FILE, MAX_ZIP_MEMBER, MAX_ZIP_SET};
 use super::set_files::{Member, SetFiles, Sidecar};
 use super::source::{HashingReader, InputRecord, Source};
 use std::io::{Cursor, Read};
@@ -75,6 +75,14 @@ pub fn set_from_zip(
             format!("not a readable zip archive (truncated, or not a zip?): {e}"),
         )
     })?;
+    if archive.has_duplicate_names() {
+        // The zip reader keeps one copy per name: the names come from the central directory.
+        let start = archive.central_directory_start() as usize;
+        let bytes = archive.into_inner().into_inner();
+        let names = central_names(&bytes, start);
+        let message = twice(&names).unwrap_or_else(|| twice_message(None));
+        return Err(refuse(&path, message));
+    }
     let mut names: Vec<String> = Vec::new();
     for i in 0..archive.len() {
         match archive.name_for_index(i) {
@@ -88,6 +96,9 @@ pub fn set_from_zip(
             }
         }
     }
+    if let Some(message) = twice(&names) {
+        return Err(refuse(&path, message));
+    }
     let stem = choose(&path, &names, pick)?;
     let find = |ext: &str| {
         names
@@ -95,8 +106,10 @@ pub fn set_from_zip(
             .find(|n| strip_ext(n, ext) == Some(stem.as_str()))
             .cloned()
     };
+    let (shp_name, shx_name, dbf_name) = (find("shp"), find("shx"), find("dbf"));
+    set_size(&mut archive, &path, [&shp_name, &shx_name, &dbf_name])?;
     let mut member = |name: Option<String>, what: &str, ext: &str| match name {
-        Some(n) => read_member(&mut archive, &path, &n, MAX_ZIP_MEMBER),
+        Some(n) => read_member(&mut archive, &path, &n, MAX_ZIP_MEMBER, header_check(ext)),
         None => Err(refuse(
             &path,
             format!(
@@ -105,12 +118,12 @@ pub fn set_from_zip(
             ),
         )),
     };
-    let shp = member(find("shp"), "shapes", "shp")?;
-    let shx = member(find("shx"), "index", "shx")?;
-    let dbf = member(find("dbf"), "attribute table", "dbf")?;
+    let shp = member(shp_name, "shapes", "shp")?;
+    let shx = member(shx_name, "index", "shx")?;
+    let dbf = member(dbf_name, "attribute table", "dbf")?;
     let mut sidecar = |ext: &str| {
         find(ext).map(|n| {
-            let text = read_member(&mut archive, &path, &n, MAX_SMALL_FILE)
+            let text = read_member(&mut archive, &path, &n, MAX_SMALL_FILE, None)
                 .map_err(|e| e.to_string())
                 .and_then(|m| {
                     super::limits::small_text(m.bytes.to_vec()).map_err(|e| e.to_string())
@@ -132,6 +145,66 @@ pub fn set_from_zip(
         },
         record,
     ))
+}
+
+/// The message for the first data member named twice (letter case of the extension aside:
+/// `roads.shp` and `roads.SHP` are one file to a reader matching extensions), if any. Readers
+/// disagree on which copy counts, so such an archive is refused rather than one copy read.
+fn twice(names: &[String]) -> Option<String> {
+    let mut seen: std::collections::HashMap<String, (usize, &str)> = Default::default();
+    for (i, n) in names.iter().enumerate().filter(|(_, n)| is_data(n)) {
+        let key = match n.rsplit_once('.') {
+            Some((stem, ext)) if !ext.contains('/') => {
+                format!("{stem}.{}", ext.to_ascii_lowercase())
+            }
+            _ => n.clone(),
+        };
+        if let Some((j, first)) = seen.get(&key) {
+            return Some(twice_message(Some((*j, *first, i, n.as_str()))));
+        }
+        seen.insert(key, (i, n));
+    }
+    None
+}
+
+fn twice_message(pair: Option<(usize, &str, usize, &str)>) -> String {
+    let which = match pair {
+        Some((j, a, i, b)) => format!(": member {j} \"{a}\" and member {i} \"{b}\""),
+        None => String::new(),
+    };
+    format!(
+        "holds two members with the same name{which}; tools differ on which copy they read, so \
+         remove one and zip the set again"
+    )
+}
+
+/// The member names in the central directory starting at `start` (APPNOTE 6.3 §4.3.12: each
+/// header's signature `PK\x01\x02`, name length at 28, extra and comment lengths at 30 and 32,
+/// the name at 46), in order; every copy of a name, unlike the zip reader's own table.
+fn central_names(b: &[u8], start: usize) -> Vec<String> {
+    let u16_at = |i: usize| {
+        b.get(i..i + 2)
+            .map(|x| u16::from_le_bytes([x[0], x[1]]) as usize)
+    };
+    let mut names = Vec::new();
+    let sig = b"PK\x01\x02";
+    // The reader's offset is from the archive's start; should anything precede it, the first
+    // header is looked for instead.
+    let mut i = match b.get(start..start + 4) {
+        Some(s) if s == sig => start,
+        _ => b.windows(4).position(|w| w == sig).unwrap_or(b.len()),
+    };
+    while b.get(i..i + 4) == Some(&sig[..]) {
+        let (Some(n), Some(e), Some(c)) = (u16_at(i + 28), u16_at(i + 30), u16_at(i + 32)) else {
+            break;
+        };
+        let Some(name) = b.get(i + 46..i + 46 + n) else {
+            break;
+        };
+        names.push(String::from_utf8_lossy(name).into_owned());
+        i += 46 + n + e + c;
+    }
+    names
 }
 
 /// The path shown for member `name` of the archive at `zip`.
@@ -209,14 +282,82 @@ fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, I
     }
 }
 
+/// Refuses a set whose `.shp`, `.shx` and `.dbf` declare more than [`MAX_ZIP_SET`] bytes
+/// inflated together, before any of them is inflated (each is then held to its declared size).
+fn set_size(
+    archive: &mut Archive,
+    zip: &Path,
+    names: [&Option<String>; 3],
+) -> Result<(), IngestError> {
+    let mut total = 0u64;
+    for n in names.into_iter().flatten() {
+        let f = archive
+            .by_name(n)
+            .map_err(|e| refuse(zip, format!("member {n}: cannot be read: {e}")))?;
+        total = total.saturating_add(f.size());
+    }
+    if total > MAX_ZIP_SET {
+        return Err(refuse(
+            zip,
+            format!(
+                "its Shapefile set declares {total} bytes inflated (.shp, .shx and .dbf together), \
+                 more than the {} MiB reknit inflates from a zip archive (a zip bomb?); unzip a \
+                 set this large and give its .shp",
+                MAX_ZIP_SET >> 20
+            ),
+        ));
+    }
+    Ok(())
+}
+
+/// What a member's first bytes must say, checked before the rest is inflated: a `.shp` or
+/// `.shx` starts with the file code 9994 (big-endian); a `.dbf` header declares a header length
+/// of at least 33 bytes (32, a field descriptor or none, and the terminator).
+pub type HeaderCheck = fn(&[u8]) -> Result<(), String>;
+
+fn header_check(ext: &str) -> Option<HeaderCheck> {
+    match ext {
+        "shp" | "shx" => Some(shape_header as HeaderCheck),
+        "dbf" => Some(table_header as HeaderCheck),
+        _ => None,
+    }
+}
+
+fn shape_header(b: &[u8]) -> Result<(), String> {
+    let code = b
+        .get(..4)
+        .map(|c| i32::from_be_bytes([c[0], c[1], c[2], c[3]]));
+    match code {
+        Some(9994) => Ok(()),
+        Some(c) => Err(format!(
+            "is not a Shapefile part: its header's file code is {c}, not 9994"
+        )),
+        None => Err("is not a Shapefile part: shorter than its 100-byte header".into()),
+    }
+}
+
+fn table_header(b: &[u8]) -> Result<(), String> {
+    match b.get(8..10) {
+        Some(h) if u16::from_le_bytes([h[0], h[1]]) >= 33 => Ok(()),
+        Some(h) => Err(format!(
+            "is not a dBASE table: its header declares a header length of {} bytes (at least \
+             33 expected)",
+            u16::from_le_bytes([h[0], h[1]])
+        )),
+        None => Err("is not a dBASE table: shorter than its 32-byte header".into()),
+    }
+}
+
 /// Inflates member `name` whole, refusing more than `cap` bytes (by its declared size before
 /// inflating, and by what it actually inflates to) and any member whose content disagrees with
-/// its declared size or checksum.
+/// its declared size or checksum. `check` looks at the first 100 bytes before the rest is
+/// inflated, so a member that is not what its name says costs no memory.
 pub fn read_member(
     archive: &mut Archive,
     zip: &Path,
     name: &str,
     cap: u64,
+    check: Option<HeaderCheck>,
 ) -> Result<Member, IngestError> {
     let fail = |message: String| refuse(zip, format!("member {name}: {message}"));
     let mut f = archive
@@ -230,11 +371,22 @@ pub fn read_member(
     if declared > cap {
         return Err(fail(format!("declares {declared} bytes inflated, {limit}")));
     }
-    let mut out = Vec::new();
+    let corrupt = |e: std::io::Error| fail(format!("is corrupt: {e}"));
+    let mut head = Vec::with_capacity(100);
     (&mut f)
-        .take(declared + 1)
+        .take(declared.min(100))
+        .read_to_end(&mut head)
+        .map_err(corrupt)?;
+    if let Some(check) = check {
+        check(&head).map_err(fail)?;
+    }
+    // Room for one byte beyond the declared size, so an overlong member is seen without growing.
+    let mut out = Vec::with_capacity(declared as usize + 1);
+    out.extend_from_slice(&head);
+    (&mut f)
+        .take(declared + 1 - head.len() as u64)
         .read_to_end(&mut out)
-        .map_err(|e| fail(format!("is corrupt: {e}")))?;
+        .map_err(corrupt)?;
     let got = out.len() as u64;
     if got > declared {
         return Err(fail(format!(

@@ -8,7 +8,7 @@ use super::damage::{Damage, DamageRule};
 use super::geojson::read_collection;
 use super::source::{HashingReader, InputRecord, Source};
 use crate::network::{Network, cost_of};
-use geo::{Contains, Coord, LineString, Point, Polygon, Validation};
+use geo::{Contains, Coord, LineString, Point, Polygon};
 use rayon::prelude::*;
 use rstar::{AABB, RTree, primitives::GeomWithData, primitives::Rectangle};
 
@@ -38,6 +38,27 @@ pub struct ZoneLayer {
 /// otherwise), a Shapefile or a GeoPackage layer (`layer` chooses among several); invalid polygons
 /// are errors naming the feature.
 pub fn read_zones(
+    source: &Source,
+    rule: &DamageRule,
+    crs: Option<&str>,
+    layer: Option<&str>,
+) -> Result<ZoneLayer, IngestError> {
+    let zones = read_zones_any(source, rule, crs, layer)?;
+    // No zone at all would plan as if nothing were damaged: refused, not read as "no damage".
+    if zones.zones.is_empty() {
+        return Err(IngestError::Io {
+            path: source.display_path(),
+            source: std::io::Error::other(
+                "the damage zones layer holds no zones (no features): a plan would treat every \
+                 road as undamaged; give a layer with at least one polygon, or plan without \
+                 --damage-zones",
+            ),
+        });
+    }
+    Ok(zones)
+}
+
+fn read_zones_any(
     source: &Source,
     rule: &DamageRule,
     crs: Option<&str>,
@@ -141,6 +162,14 @@ pub(super) fn add_zone_feature(
         }
         (None, _) => return Err(fail(index, "geometry", "the zone has no geometry".into())),
     };
+    // An empty geometry is refused like a null one: the zone's damage would apply nowhere.
+    if c.pos.is_empty() || polys.iter().all(|&(a, b)| a == b) {
+        return Err(fail(
+            index,
+            "geometry",
+            "the zone's geometry is empty (no positions)".into(),
+        ));
+    }
     for (p0, p1) in polys {
         let mut rings: Vec<Vec<[f64; 2]>> = Vec::new();
         for r in p0..p1 {
@@ -238,7 +267,7 @@ pub(super) fn make_zone(
         return Ok(Vec::new());
     };
     let polygon = Polygon::new(outer, ls.collect());
-    if let Err(e) = polygon.check_validation() {
+    if let Err(e) = super::valid::check_polygon(&polygon) {
         return Err(fail(format!(
             "the polygon is not valid ({e}); fix it before use"
         )));

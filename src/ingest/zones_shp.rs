@@ -40,7 +40,12 @@ pub(super) fn read_shapefile_zones(
             Shape::Polygon(p) => ring_list(p.rings(), |q| [q.x, q.y]),
             Shape::PolygonZ(p) => ring_list(p.rings(), |q| [q.x, q.y]),
             Shape::PolygonM(p) => ring_list(p.rings(), |q| [q.x, q.y]),
-            Shape::NullShape => continue,
+            Shape::NullShape => {
+                return Err(fail(
+                    "geometry",
+                    "the zone has no geometry (a null shape)".into(),
+                ));
+            }
             other => {
                 return Err(fail(
                     "geometry",

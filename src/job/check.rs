@@ -50,10 +50,10 @@ pub struct CheckReport {
     pub dangles: usize,
 }
 
-/// Reads and nodes the roads, reporting crossings left apart too, and writes the check outputs
-/// (the layers in `format`).
+/// Reads and nodes the road layers (one or more, made into one network as `plan` does), reporting
+/// crossings left apart too, and writes the check outputs (the layers in `format`).
 pub fn run_check(
-    roads: &Source,
+    roads: &[Source],
     settings: &RoadSettings,
     out: &Path,
     force: bool,
@@ -61,8 +61,8 @@ pub fn run_check(
     progress: &Progress,
 ) -> Result<CheckReport, JobError> {
     let inputs: Vec<_> = roads
-        .path()
-        .into_iter()
+        .iter()
+        .filter_map(Source::path)
         .chain(settings.cost_table_file.as_deref())
         .map(crate::export::guard::InputPath::File)
         .collect();
@@ -70,14 +70,19 @@ pub fn run_check(
     staging::preflight(&out, force)?;
     let layer = {
         let _s = progress.stage("reading roads");
-        ingest::roads::read_roads(roads, settings)?
+        ingest::layers::read_layers(roads, settings)?
     };
     let read = layer.stats.clone();
     let attribution = ingest::attribution::attribution(
         settings.attribution.as_deref(),
-        layer.osm_fields || ingest::attribution::osm_file(roads),
+        layer.osm_fields || roads.iter().any(ingest::attribution::osm_file),
     );
-    let inputs: Vec<_> = layer.input.clone().into_iter().collect();
+    let inputs: Vec<_> = layer
+        .input
+        .iter()
+        .chain(&layer.more_inputs)
+        .cloned()
+        .collect();
     let geodesy = crate::export::summary::Geodesy {
         input_crs: layer.crs_name.clone(),
         length_method: layer.length_method.clone(),
