@@ -27,8 +27,11 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         .collect();
     let (mut done, mut started, mut unmatched) = (BTreeSet::new(), BTreeSet::new(), Vec::new());
     let mut finished_m = 0.0;
+    let mut done_unmatched: Vec<(usize, String)> = Vec::new();
     for r in rows {
         match cost_of.get(r.work_order.as_str()) {
+            // Finished work that names nothing would be planned again at full cost: refused below.
+            None if r.done => done_unmatched.push((r.line, r.work_order)),
             None => unmatched.push(UnmatchedRow {
                 line: r.line,
                 work_order: r.work_order,
@@ -42,6 +45,29 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
             }
         }
     }
+    if let Some(&(first, _)) = done_unmatched.first() {
+        let listed: Vec<String> = done_unmatched
+            .iter()
+            .take(20)
+            .map(|(l, k)| format!("line {l} `{k}`"))
+            .collect();
+        let more = match done_unmatched.len() > 20 {
+            true => format!(" and {} more", done_unmatched.len() - 20),
+            false => String::new(),
+        };
+        return Err(ReplanError::Finished {
+            path: req.finished.clone(),
+            line: first,
+            message: format!(
+                "{} work order(s) marked done name no work order of the previous plan {} ({}{more}): \
+                 finished work that matches nothing would be planned again; correct the keys \
+                 against its work-orders.csv or clear their status",
+                done_unmatched.len(),
+                req.previous.display(),
+                listed.join(", ")
+            ),
+        });
+    }
     let finished_this_round = done.len();
     done.extend(prev.finished_to_date.iter().cloned());
     let mut o = Options::new(Source::File(PathBuf::new()), req.out.clone());
@@ -54,7 +80,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     let had_sites = prev.inputs.iter().any(|i| i.role == "sites");
     for rec in &prev.inputs {
         let anew = match rec.role.as_str() {
-            "roads" => req.roads.is_some(),
+            "roads" => !req.roads.is_empty(),
             "damage zones" => req.damage_zones.is_some(),
             "sites" => req.sites.is_some(),
             "damage reports" | "cost table" => false,
@@ -83,12 +109,23 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
             _ => o.road.cost_table = src.path().map(PathBuf::from),
         }
     }
-    if !had_roads && req.roads.is_none() {
+    if !had_roads && req.roads.is_empty() {
         return Err(prev.broken("no roads input recorded: give --roads".into()));
     }
-    if let Some(r) = &req.roads {
-        o.roads = r.clone();
-        o.more_roads.clear();
+    // Work-order keys name their layer when there are several, so a different number of layers
+    // would match nothing and plan finished work again: refused.
+    let recorded_roads = prev.inputs.iter().filter(|i| i.role == "roads").count();
+    if !req.roads.is_empty() && req.roads.len() != recorded_roads {
+        return Err(prev.broken(format!(
+                "the previous plan read {recorded_roads} road layer(s) and {} were given with \
+                 --roads: give --roads once per layer, in the previous plan's order, so its \
+                 work-order keys match",
+            req.roads.len()
+        )));
+    }
+    if let Some((first, rest)) = req.roads.split_first() {
+        o.roads = first.clone();
+        o.more_roads = rest.to_vec();
     }
     o.damage_zones = req.damage_zones.clone().or(o.damage_zones);
     o.damage_points = req.damage_points.clone();
