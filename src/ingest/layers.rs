@@ -163,3 +163,50 @@ mod tests {
         assert_eq!(label_of(&[], 0), None);
     }
 }
+
+/// Refuses a network in which one of several road layers lost all, or nearly all (nine in ten, at
+/// ten features or more), of its features to lines collapsed to single points: the sign of a layer
+/// read in the wrong CRS (a `--crs` in metres applied to longitudes and latitudes shrinks the layer
+/// to a few metres), which would otherwise drop out of the network without a word.
+pub fn check_layers_kept(
+    net: &crate::network::Network,
+    stats: &super::noding::NodingStats,
+    snap_m: f64,
+) -> Result<(), IngestError> {
+    if net.layers.len() < 2 {
+        return Ok(());
+    }
+    let n = net.features.len();
+    let mut has_edge = vec![false; n];
+    for e in &net.edges {
+        has_edge[e.feature as usize] = true;
+    }
+    let mut collapsed = vec![false; n];
+    for q in &stats.qa_points {
+        if let (super::qa::QaKind::RemovedZeroLength, Some(f)) = (q.kind, q.feature) {
+            collapsed[f as usize] = true;
+        }
+    }
+    for (i, l) in net.layers.iter().enumerate() {
+        let end = net.layers.get(i + 1).map_or(n, |m| m.first_feature as usize);
+        let range = l.first_feature as usize..end;
+        let total = range.len();
+        let lost = range.filter(|&f| collapsed[f] && !has_edge[f]).count();
+        if total > 0 && (lost == total || (total >= 10 && lost * 10 >= total * 9)) {
+            return Err(IngestError::Crs {
+                path: std::path::PathBuf::from(&l.label),
+                message: format!(
+                    "road layer `{}`: {lost} of its {total} feature(s) collapsed to single points \
+                     when vertices closer than --snap {snap_m} m were merged, so the layer would \
+                     drop out of the network: its CRS is probably wrong. With several layers, \
+                     --crs applies to every layer without a CRS of its own (a Shapefile without \
+                     .prj, a GeoJSON without a `crs` member); give the layer a CRS of its own (a \
+                     .prj, or a `crs` member such as \"urn:ogc:def:crs:OGC:1.3:CRS84\" for \
+                     longitude/latitude) or leave out --crs",
+                    l.label
+                ),
+            });
+        }
+    }
+    Ok(())
+}
