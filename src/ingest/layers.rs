@@ -4,7 +4,7 @@
 //!
 //! Each layer keeps a label, written as `source_layer` beside `source_index` in the outputs: the
 //! file's name (for a GeoPackage, `name.gpkg:TABLE`), or the path as given when two layers share a
-//! file name. The same file given twice is refused (its roads would all be duplicates).
+//! file name, with `~2`, `~3`, … on a label an earlier layer still holds (unique by construction). The same file given twice is refused (its roads would all be duplicates).
 
 use super::IngestError;
 use super::reader::{open_source, read_lines_as};
@@ -129,8 +129,27 @@ pub fn merge(mut parts: Vec<LineLayer>) -> LineLayer {
 }
 
 /// Replaces labels that two layers share by each layer's path as given (a GeoPackage keeps its
-/// `:TABLE`).
+/// `:TABLE`), then makes every label unique by construction: a label still taken by an earlier
+/// layer (a GeoPackage `g.gpkg` table `roads` beside a file named `g.gpkg:roads`) gets `~2`, `~3`,
+/// … (the first free), so work-order keys, which name the layer, never repeat.
 fn relabel(parts: &mut [LineLayer]) {
+    paths_for_shared(parts);
+    let mut taken = std::collections::BTreeSet::new();
+    for p in parts.iter_mut() {
+        let base = p.layers[0].label.clone();
+        let mut label = base.clone();
+        let mut k = 2;
+        while taken.contains(&label) {
+            label = format!("{base}~{k}");
+            k += 1;
+        }
+        taken.insert(label.clone());
+        p.layers[0].label = label;
+    }
+}
+
+/// Replaces labels that two layers share by each layer's path as given.
+fn paths_for_shared(parts: &mut [LineLayer]) {
     let labels: Vec<String> = parts.iter().map(|p| p.layers[0].label.clone()).collect();
     for (i, p) in parts.iter_mut().enumerate() {
         if labels.iter().filter(|l| **l == labels[i]).count() > 1
@@ -161,6 +180,38 @@ mod tests {
         assert_eq!(label_of(&layers, 2), Some("a.geojson"));
         assert_eq!(label_of(&layers, 3), Some("b.zip"));
         assert_eq!(label_of(&[], 0), None);
+    }
+
+    /// A GeoPackage table `roads` and a file named `g.gpkg:roads` in one folder share a label
+    /// and a path-based label: the second gets `~2`, and a third layer really named `…~2` `~3`.
+    #[test]
+    fn labels_are_unique_by_construction() {
+        let part = |label: &str, path: &str| {
+            let mut l = LineLayer::default();
+            l.layers.push(SourceLayer {
+                label: label.into(),
+                first_feature: 0,
+            });
+            l.input = Some(crate::ingest::source::InputRecord {
+                role: "roads".into(),
+                path: path.into(),
+                sha256: String::new(),
+                bytes: 0,
+                deleted_records: 0,
+            });
+            l
+        };
+        let mut parts = vec![
+            part("g.gpkg:roads", "d/g.gpkg"),
+            part("g.gpkg:roads", "d/g.gpkg:roads"),
+            part("d/g.gpkg:roads~2", "d/g.gpkg:roads~2"),
+        ];
+        relabel(&mut parts);
+        let labels: Vec<&str> = parts.iter().map(|p| p.layers[0].label.as_str()).collect();
+        assert_eq!(
+            labels,
+            ["d/g.gpkg:roads", "d/g.gpkg:roads~2", "d/g.gpkg:roads~2~2"]
+        );
     }
 }
 
