@@ -70,13 +70,13 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
     // Work orders that matched nothing are listed, never guessed: say so where it is seen.
     if let Some(r) = summary.replan.as_ref().filter(|_| !progress.quiet) {
         if !r.rows_matching_nothing.is_empty() {
-            eprintln!(
+            reknit::say!(
                 "note: {} line(s) of the sheet name no work order of the previous plan (summary.json replan.rows_matching_nothing)",
                 r.rows_matching_nothing.len()
             );
         }
         if !r.keys_matching_nothing.is_empty() {
-            eprintln!(
+            reknit::say!(
                 "note: {} work order(s) name no piece of the new road network (summary.json replan.keys_matching_nothing)",
                 r.keys_matching_nothing.len()
             );
