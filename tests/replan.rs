@@ -646,3 +646,35 @@ fn a_two_layer_plan_is_replanned_with_both_layers() {
     assert_eq!(s["replan"]["keys_matching_nothing"], serde_json::json!([]));
     assert!(repairs(&d.path().join("r2")).is_empty());
 }
+
+/// Settings that choose within an input file belong to it: a plan of `;`-separated CSV sites
+/// re-planned with the sites given anew as GeoJSON drops `--sites-delimiter` instead of refusing
+/// the new file for a setting replan cannot take.
+#[test]
+fn sites_given_anew_in_another_format_drop_the_old_files_settings() {
+    let d = district();
+    let sites = read_json(&d.path().join("sites.geojson"));
+    let mut csv = String::from("lon;lat\n");
+    for f in sites["features"].as_array().unwrap() {
+        let c = &f["geometry"]["coordinates"];
+        csv.push_str(&format!("{};{}\n", c[0], c[1]));
+    }
+    std::fs::write(d.path().join("sites.csv"), csv).unwrap();
+    ok(at(
+        d.path(),
+        &[
+            "plan", "--roads", "roads.geojson", "--sites", "sites.csv", "--sites-delimiter", ";",
+            "--out", "r1", "-q",
+        ],
+    ));
+    sheet(&d.path().join("back.csv"), &d.path().join("r1"), b',', false, |_| "");
+    ok(at(
+        d.path(),
+        &[
+            "replan", "r1", "--finished", "back.csv", "--sites", "sites.geojson", "--out", "r2",
+            "-q",
+        ],
+    ));
+    let s = summary(&d.path().join("r2"));
+    assert_eq!(s["settings"]["sites_delimiter"], Value::Null);
+}

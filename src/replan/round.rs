@@ -127,6 +127,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         o.roads = first.clone();
         o.more_roads = rest.to_vec();
     }
+    forget_choices_of_other_files(req, &prev, &mut o);
     o.damage_zones = req.damage_zones.clone().or(o.damage_zones);
     o.damage_points = req.damage_points.clone();
     if req.sites.is_some() {
@@ -152,6 +153,40 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         rows_matching_nothing: unmatched,
     }));
     Ok(crate::job::build(&o)?)
+}
+
+/// Settings that choose within an input file (a GeoPackage's or a zip's layer, a CSV's separator
+/// and columns) belong to that file: an input given anew keeps them only when it is the same file
+/// again (the same file names, in order); else they are dropped, as replan cannot take them anew,
+/// and a new file in another format would be refused for a setting it cannot use.
+fn forget_choices_of_other_files(req: &Request, prev: &previous::Previous, o: &mut Options) {
+    let name = |p: &std::path::Path| p.file_name().map(|n| n.to_os_string());
+    let same = |role: &str, given: &[Source]| {
+        let recorded = prev
+            .inputs
+            .iter()
+            .filter(|i| i.role == role)
+            .map(|i| name(std::path::Path::new(&i.path)));
+        given.iter().map(|s| name(&s.display_path())).eq(recorded)
+    };
+    if !req.roads.is_empty() && !same("roads", &req.roads) {
+        o.road.roads_layer = None;
+    }
+    if let Some(s) = &req.sites
+        && !same("sites", std::slice::from_ref(s))
+    {
+        o.sites_layer = None;
+        if !crate::ingest::sites::reads_as_csv(s) {
+            o.sites_delimiter = None;
+            o.lon_column = None;
+            o.lat_column = None;
+        }
+    }
+    if let Some(z) = &req.damage_zones
+        && !same("damage zones", std::slice::from_ref(z))
+    {
+        o.zones_layer = None;
+    }
 }
 
 /// Runs the round: [`prepare`], then the ordinary stages.
