@@ -418,7 +418,10 @@ fn stderr_is_written_through_one_function() {
             }
         }
     }
-    assert!(found.is_empty(), "printing macros that can panic: {found:?}");
+    assert!(
+        found.is_empty(),
+        "printing macros that can panic: {found:?}"
+    );
 }
 
 #[test]
@@ -429,9 +432,16 @@ fn a_closed_stderr_changes_no_exit_code() {
     let roads = write_collection(
         d.path(),
         "roads.geojson",
-        &[line(&[at_m(0.0, 0.0), at_m(200.0, 0.0)], r#"{"damage":0.5}"#)],
+        &[line(
+            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
     );
-    let bad = file(d.path(), "bad.geojson", b"{\"type\":\"FeatureCollection\",\"features\":[");
+    let bad = file(
+        d.path(),
+        "bad.geojson",
+        b"{\"type\":\"FeatureCollection\",\"features\":[",
+    );
     for (input, out, code) in [(&roads, "ok", 0), (&bad, "refused", 2)] {
         let (reader, writer) = std::io::pipe().unwrap();
         drop(reader);

@@ -447,6 +447,12 @@ case!(crs_collapses_one_of_several_layers, |d| {
     plan_fails(
         &p,
         &["--roads", &s(&q), "--crs", "EPSG:32631", "--whole-network"],
-        &["lonlat.geojson", "3 of its 3", "collapsed", "CRS is probably wrong", "--crs"],
+        &[
+            "lonlat.geojson",
+            "3 of its 3",
+            "collapsed",
+            "CRS is probably wrong",
+            "--crs",
+        ],
     );
 });

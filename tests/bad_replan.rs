@@ -190,7 +190,13 @@ case!(replan_done_line_names_no_work_order, |d| {
         d,
         sheet.as_bytes(),
         &[],
-        &["back.csv", "line 3", "WO-NOWHERE-0-1", "done", "planned again"],
+        &[
+            "back.csv",
+            "line 3",
+            "WO-NOWHERE-0-1",
+            "done",
+            "planned again",
+        ],
     );
 });
 
@@ -208,7 +214,16 @@ case!(replan_fewer_road_layers_than_the_previous_plan, |d| {
     let roads = d.join("roads.geojson");
     std::fs::remove_dir_all(&r1).unwrap();
     let o = reknit()
-        .args(["plan", "--roads", &s(&roads), "--roads", &s(&east), "--out", &s(&r1), "-q"])
+        .args([
+            "plan",
+            "--roads",
+            &s(&roads),
+            "--roads",
+            &s(&east),
+            "--out",
+            &s(&r1),
+            "-q",
+        ])
         .output()
         .unwrap();
     assert!(o.status.success(), "{}", stderr(&o));

@@ -370,7 +370,12 @@ fn the_same_road_in_two_layers_keeps_its_worst_damage_in_either_order() {
     );
     let mut seen = Vec::new();
     for (name, order) in [("ab", [&intact, &hit]), ("ba", [&hit, &intact])] {
-        let out = plan_layers(d.path(), name, &[order[0].clone(), order[1].clone()], &["--whole-network"]);
+        let out = plan_layers(
+            d.path(),
+            name,
+            &[order[0].clone(), order[1].clone()],
+            &["--whole-network"],
+        );
         let sum = read_json(&out.join("summary.json"));
         let differed = read_fc(&out.join("qa.geojson"))
             .features

@@ -627,7 +627,14 @@ fn a_two_layer_plan_is_replanned_with_both_layers() {
     ok(at(
         d.path(),
         &[
-            "plan", "--roads", "west.geojson", "--roads", "east.geojson", "--out", "r1", "-q",
+            "plan",
+            "--roads",
+            "west.geojson",
+            "--roads",
+            "east.geojson",
+            "--out",
+            "r1",
+            "-q",
         ],
     ));
     let r1 = d.path().join("r1");
@@ -637,8 +644,17 @@ fn a_two_layer_plan_is_replanned_with_both_layers() {
     ok(at(
         d.path(),
         &[
-            "replan", "r1", "--finished", "back.csv", "--roads", "west.geojson", "--roads",
-            "east.geojson", "--out", "r2", "-q",
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--roads",
+            "west.geojson",
+            "--roads",
+            "east.geojson",
+            "--out",
+            "r2",
+            "-q",
         ],
     ));
     let s = summary(&d.path().join("r2"));
@@ -663,15 +679,36 @@ fn sites_given_anew_in_another_format_drop_the_old_files_settings() {
     ok(at(
         d.path(),
         &[
-            "plan", "--roads", "roads.geojson", "--sites", "sites.csv", "--sites-delimiter", ";",
-            "--out", "r1", "-q",
+            "plan",
+            "--roads",
+            "roads.geojson",
+            "--sites",
+            "sites.csv",
+            "--sites-delimiter",
+            ";",
+            "--out",
+            "r1",
+            "-q",
         ],
     ));
-    sheet(&d.path().join("back.csv"), &d.path().join("r1"), b',', false, |_| "");
+    sheet(
+        &d.path().join("back.csv"),
+        &d.path().join("r1"),
+        b',',
+        false,
+        |_| "",
+    );
     ok(at(
         d.path(),
         &[
-            "replan", "r1", "--finished", "back.csv", "--sites", "sites.geojson", "--out", "r2",
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--sites",
+            "sites.geojson",
+            "--out",
+            "r2",
             "-q",
         ],
     ));

@@ -312,7 +312,10 @@ fn an_input_attribute_never_takes_a_name_written_already() {
     let roads = write_collection(
         d.path(),
         "roads.geojson",
-        &[line(&[at_m(0.0, 0.0), at_m(200.0, 0.0)], r#"{"damage":0.5}"#)],
+        &[line(
+            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
     );
     let props = |i: usize| {
         format!(r#"{{"site_id":"S{i}","name":"Clinic {i}","input_name":"user value {i}"}}"#)

@@ -41,7 +41,10 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
     if !progress.quiet {
         reknit::say!(
             "{} junctions, {} edges in {} component(s); {} dangling ends",
-            r.counts.junctions, r.counts.edges, r.component_count, r.dangles
+            r.counts.junctions,
+            r.counts.edges,
+            r.component_count,
+            r.dangles
         );
         for (kind, n) in &r.counts.qa {
             reknit::say!("  {n:>8}  {}", reknit::ingest::qa::QaKind::label_of(kind));

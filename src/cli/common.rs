@@ -370,7 +370,11 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
     let c = &summary.counts;
     reknit::say!(
         "{} junctions, {} edges ({} damaged, {} closed) in {} component(s)",
-        c.junctions, c.edges, c.edges_damaged, c.edges_closed, c.components
+        c.junctions,
+        c.edges,
+        c.edges_damaged,
+        c.edges_closed,
+        c.components
     );
     reknit::say!(
         "plan: {} edges, {} to repair, {} repair-metres over {} m of road",
@@ -429,7 +433,8 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
     if let Some(st) = summary.structures.as_ref().filter(|st| st.planned > 0) {
         reknit::say!(
             "structures: {} planned road(s) on a bridge, culvert or tunnel ({} to repair): inspect before use",
-            st.planned, st.repairs
+            st.planned,
+            st.repairs
         );
     }
     reknit::say!("outputs written to {}", out.display());

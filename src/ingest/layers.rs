@@ -239,7 +239,10 @@ pub fn check_layers_kept(
         }
     }
     for (i, l) in net.layers.iter().enumerate() {
-        let end = net.layers.get(i + 1).map_or(n, |m| m.first_feature as usize);
+        let end = net
+            .layers
+            .get(i + 1)
+            .map_or(n, |m| m.first_feature as usize);
         let range = l.first_feature as usize..end;
         let total = range.len();
         let lost = range.filter(|&f| collapsed[f] && !has_edge[f]).count();

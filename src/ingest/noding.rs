@@ -188,14 +188,16 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         for i in s0 + 1..e {
             if junction_of[seq[i] as usize] != u32::MAX {
                 let piece = &seq[a..=i];
-                if let Some(kept) = earlier_piece(piece, &seq, &pieces, &mut seen, &mut seen_exact) {
+                if let Some(kept) = earlier_piece(piece, &seq, &pieces, &mut seen, &mut seen_exact)
+                {
                     stats.duplicate_edges_dropped += 1;
                     // The same road given twice keeps its worst damage, whichever came first.
                     let (mine, theirs) = (
                         feats_damage(&layer, seq_feature[k]),
-                        worse.get(&kept).copied().unwrap_or_else(|| {
-                            feats_damage(&layer, pieces[kept as usize].2)
-                        }),
+                        worse
+                            .get(&kept)
+                            .copied()
+                            .unwrap_or_else(|| feats_damage(&layer, pieces[kept as usize].2)),
                     );
                     let kind = if mine == theirs {
                         QaKind::RemovedDuplicate

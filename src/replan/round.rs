@@ -117,7 +117,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     let recorded_roads = prev.inputs.iter().filter(|i| i.role == "roads").count();
     if !req.roads.is_empty() && req.roads.len() != recorded_roads {
         return Err(prev.broken(format!(
-                "the previous plan read {recorded_roads} road layer(s) and {} were given with \
+            "the previous plan read {recorded_roads} road layer(s) and {} were given with \
                  --roads: give --roads once per layer, in the previous plan's order, so its \
                  work-order keys match",
             req.roads.len()
