@@ -71,7 +71,7 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
     if let Some(r) = summary.replan.as_ref().filter(|_| !progress.quiet) {
         if !r.rows_matching_nothing.is_empty() {
             reknit::say!(
-                "note: {} line(s) of the sheet name no work order of the previous plan (summary.json replan.rows_matching_nothing)",
+                "note: {} line(s) of the sheet marked started name no work order of the previous plan (summary.json replan.rows_matching_nothing)",
                 r.rows_matching_nothing.len()
             );
         }
