@@ -4,7 +4,8 @@
 //!
 //! Each layer keeps a label, written as `source_layer` beside `source_index` in the outputs: the
 //! file's name (for a GeoPackage, `name.gpkg:TABLE`), or the path as given when two layers share a
-//! file name, with `~2`, `~3`, … on a label an earlier layer still holds (unique by construction). The same file given twice is refused (its roads would all be duplicates).
+//! file name, with `~2`, `~3`, … on a label an earlier layer still holds (unique by
+//! construction). The same file given twice is refused (its roads would all be duplicates).
 
 use super::IngestError;
 use super::reader::{open_source, read_lines_as};
@@ -165,56 +166,6 @@ fn paths_for_shared(parts: &mut [LineLayer]) {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn labels_by_first_feature() {
-        let l = |label: &str, first_feature| SourceLayer {
-            label: label.into(),
-            first_feature,
-        };
-        let layers = [l("a.geojson", 0), l("b.zip", 3)];
-        assert_eq!(label_of(&layers, 0), Some("a.geojson"));
-        assert_eq!(label_of(&layers, 2), Some("a.geojson"));
-        assert_eq!(label_of(&layers, 3), Some("b.zip"));
-        assert_eq!(label_of(&[], 0), None);
-    }
-
-    /// A GeoPackage table `roads` and a file named `g.gpkg:roads` in one folder share a label
-    /// and a path-based label: the second gets `~2`, and a third layer really named `…~2` `~3`.
-    #[test]
-    fn labels_are_unique_by_construction() {
-        let part = |label: &str, path: &str| {
-            let mut l = LineLayer::default();
-            l.layers.push(SourceLayer {
-                label: label.into(),
-                first_feature: 0,
-            });
-            l.input = Some(crate::ingest::source::InputRecord {
-                role: "roads".into(),
-                path: path.into(),
-                sha256: String::new(),
-                bytes: 0,
-                deleted_records: 0,
-            });
-            l
-        };
-        let mut parts = vec![
-            part("g.gpkg:roads", "d/g.gpkg"),
-            part("g.gpkg:roads", "d/g.gpkg:roads"),
-            part("d/g.gpkg:roads~2", "d/g.gpkg:roads~2"),
-        ];
-        relabel(&mut parts);
-        let labels: Vec<&str> = parts.iter().map(|p| p.layers[0].label.as_str()).collect();
-        assert_eq!(
-            labels,
-            ["d/g.gpkg:roads", "d/g.gpkg:roads~2", "d/g.gpkg:roads~2~2"]
-        );
-    }
-}
-
 /// Refuses a network in which one of several road layers lost all, or nearly all (nine in ten, at
 /// ten features or more), of its features to lines collapsed to single points: the sign of a layer
 /// read in the wrong CRS (a `--crs` in metres applied to longitudes and latitudes shrinks the layer
@@ -263,4 +214,53 @@ pub fn check_layers_kept(
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn labels_by_first_feature() {
+        let l = |label: &str, first_feature| SourceLayer {
+            label: label.into(),
+            first_feature,
+        };
+        let layers = [l("a.geojson", 0), l("b.zip", 3)];
+        assert_eq!(label_of(&layers, 0), Some("a.geojson"));
+        assert_eq!(label_of(&layers, 2), Some("a.geojson"));
+        assert_eq!(label_of(&layers, 3), Some("b.zip"));
+        assert_eq!(label_of(&[], 0), None);
+    }
+
+    /// A GeoPackage table `roads` and a file named `g.gpkg:roads` in one folder share a label
+    /// and a path-based label: the second gets `~2`, and a third layer really named `…~2` `~3`.
+    #[test]
+    fn labels_are_unique_by_construction() {
+        let part = |label: &str, path: &str| LineLayer {
+            layers: vec![SourceLayer {
+                label: label.into(),
+                first_feature: 0,
+            }],
+            input: Some(crate::ingest::source::InputRecord {
+                role: "roads".into(),
+                path: path.into(),
+                sha256: String::new(),
+                bytes: 0,
+                deleted_records: 0,
+            }),
+            ..Default::default()
+        };
+        let mut parts = vec![
+            part("g.gpkg:roads", "d/g.gpkg"),
+            part("g.gpkg:roads", "d/g.gpkg:roads"),
+            part("d/g.gpkg:roads~2", "d/g.gpkg:roads~2"),
+        ];
+        relabel(&mut parts);
+        let labels: Vec<&str> = parts.iter().map(|p| p.layers[0].label.as_str()).collect();
+        assert_eq!(
+            labels,
+            ["d/g.gpkg:roads", "d/g.gpkg:roads~2", "d/g.gpkg:roads~2~2"]
+        );
+    }
 }
