@@ -13,7 +13,7 @@ fn main() -> ExitCode {
     match cli::run(args) {
         Ok(code) => code,
         Err(e) => {
-            eprintln!(
+            reknit::say!(
                 "reknit: error: {}",
                 reknit::export::text::terminal(&message(&e))
             );

@@ -45,10 +45,10 @@ impl Progress {
         }
     }
 
-    /// Prints a note on stderr unless quiet.
+    /// Prints a note on stderr unless quiet (through [`say`]: a closed stderr is not an error).
     pub fn note(&self, msg: &str) {
         if !self.quiet {
-            eprintln!("{msg}");
+            crate::say!("{msg}");
         }
     }
 }
@@ -64,7 +64,7 @@ impl Drop for Stage {
     fn drop(&mut self) {
         self.bar.finish_and_clear();
         if self.verbose {
-            eprintln!(
+            crate::say!(
                 "{:>10.3} s  {}{}",
                 self.start.elapsed().as_secs_f64(),
                 self.name,
@@ -101,10 +101,26 @@ pub fn mem_mark(label: &str) {
             .unwrap_or(0)
             / 1024
     };
-    eprintln!(
+    say(format_args!(
         "MEM {label:<40} now {:>6} MB  peak {:>6} MB",
         get("VmRSS:"),
         get("VmHWM:")
-    );
+    ));
     let _ = std::fs::write("/proc/self/clear_refs", "5");
+}
+
+/// Writes one line on stderr and ignores a failure: a stderr whose reader has gone
+/// (`reknit … 2>&1 | head -1`) must neither stop the run nor change its exit code, as the
+/// standard `eprintln!` would by panicking.
+pub fn say(args: std::fmt::Arguments) {
+    use std::io::Write;
+    let _ = writeln!(std::io::stderr().lock(), "{args}");
+}
+
+/// [`say`] with `format!` arguments: the one way reknit writes a line to stderr.
+#[macro_export]
+macro_rules! say {
+    ($($t:tt)*) => {
+        $crate::progress::say(format_args!($($t)*))
+    };
 }

@@ -389,3 +389,69 @@ case!(hostile_names_in_a_shapefile_road_layer, |d| {
     seen.sort();
     assert_eq!(seen, ["-Main\u{FFFD}[31m", "=HYPERLINK(\"x\")", "@Fen"]);
 });
+
+#[test]
+fn stderr_is_written_through_one_function() {
+    // `eprintln!` and `println!` panic when the stream's reader has gone (exit 101): every line
+    // for the terminal goes through `reknit::say!`, which ignores that.
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+    let mut stack = vec![root];
+    let mut found = Vec::new();
+    while let Some(dir) = stack.pop() {
+        for e in std::fs::read_dir(&dir).unwrap() {
+            let p = e.unwrap().path();
+            let name = p.file_name().unwrap().to_string_lossy().into_owned();
+            if p.is_dir() {
+                stack.push(p);
+            } else if name.ends_with(".rs") && !name.ends_with("_tests.rs") {
+                let text = std::fs::read_to_string(&p).unwrap();
+                let code = text.split("#[cfg(test)]").next().unwrap();
+                for (n, l) in code.lines().enumerate() {
+                    let l = l.trim_start();
+                    let call = ["eprintln!(", "println!(", "eprint!(", "print!("]
+                        .iter()
+                        .any(|m| l.contains(m));
+                    if call && !l.starts_with("//") {
+                        found.push(format!("{}:{}", p.display(), n + 1));
+                    }
+                }
+            }
+        }
+    }
+    assert!(
+        found.is_empty(),
+        "printing macros that can panic: {found:?}"
+    );
+}
+
+#[test]
+fn a_closed_stderr_changes_no_exit_code() {
+    // `reknit … 2>&1 | head -1`: stderr is a pipe whose reader has gone. A plan still exits 0
+    // and a refused input still exits 2 (never 101, a panic).
+    let d = tmp();
+    let roads = write_collection(
+        d.path(),
+        "roads.geojson",
+        &[line(
+            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
+    );
+    let bad = file(
+        d.path(),
+        "bad.geojson",
+        b"{\"type\":\"FeatureCollection\",\"features\":[",
+    );
+    for (input, out, code) in [(&roads, "ok", 0), (&bad, "refused", 2)] {
+        let (reader, writer) = std::io::pipe().unwrap();
+        drop(reader);
+        let status = reknit()
+            .args(["plan", "--roads", &s(input), "--whole-network", "--out"])
+            .arg(d.path().join(out))
+            .stderr(writer)
+            .stdout(std::process::Stdio::null())
+            .status()
+            .unwrap();
+        assert_eq!(status.code(), Some(code), "{out}");
+    }
+}

@@ -425,3 +425,34 @@ case!(ten_million_vertex_line, |d| {
     // 0.9999999° of longitude on the equator: 111,319.49 m × 0.9999999 (from memory).
     assert!((len - 111_319.38).abs() < 5.0, "{len}");
 });
+
+case!(crs_collapses_one_of_several_layers, |d| {
+    // A longitude/latitude layer without a `crs` member beside a UTM zone 31N layer without
+    // one: `--crs EPSG:32631` applies to both, and reads the first's degrees as metres, so its
+    // 100 m roads shrink to a millimetre and collapse when vertices are merged.
+    let lonlat: Vec<String> = (0..3)
+        .map(|i| {
+            let x = 100.0 * i as f64;
+            line(&[at_m(x, 0.0), at_m(x + 100.0, 0.0)], r#"{"damage":0.5}"#)
+        })
+        .collect();
+    let p = write_collection(d, "lonlat.geojson", &lonlat);
+    let utm: Vec<String> = (0..3)
+        .map(|i| {
+            let x = 500_000.0 + 100.0 * i as f64;
+            line(&[[x, 10_000.0], [x + 100.0, 10_000.0]], r#"{"damage":0.5}"#)
+        })
+        .collect();
+    let q = write_collection(d, "utm.geojson", &utm);
+    plan_fails(
+        &p,
+        &["--roads", &s(&q), "--crs", "EPSG:32631", "--whole-network"],
+        &[
+            "lonlat.geojson",
+            "3 of its 3",
+            "collapsed",
+            "CRS is probably wrong",
+            "--crs",
+        ],
+    );
+});

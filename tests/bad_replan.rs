@@ -182,3 +182,56 @@ case!(replan_into_the_previous_folder, |d| {
     .into();
     fails_with(d, &r1, &args, &["r1"]);
 });
+
+case!(replan_done_line_names_no_work_order, |d| {
+    let k = keys(&first(d));
+    let sheet = format!("work_order,status\n{},done\nWO-NOWHERE-0-1,done\n", k[0]);
+    replan_fails(
+        d,
+        sheet.as_bytes(),
+        &[],
+        &[
+            "back.csv",
+            "line 3",
+            "WO-NOWHERE-0-1",
+            "done",
+            "planned again",
+        ],
+    );
+});
+
+case!(replan_fewer_road_layers_than_the_previous_plan, |d| {
+    // A first plan of two layers, re-planned with one of them.
+    let r1 = first(d);
+    let east = write_collection(
+        d,
+        "east.geojson",
+        &[line(
+            &[at_m(300.0, 0.0), at_m(400.0, 0.0)],
+            r#"{"id":"E0","damage":0.5}"#,
+        )],
+    );
+    let roads = d.join("roads.geojson");
+    std::fs::remove_dir_all(&r1).unwrap();
+    let o = reknit()
+        .args([
+            "plan",
+            "--roads",
+            &s(&roads),
+            "--roads",
+            &s(&east),
+            "--out",
+            &s(&r1),
+            "-q",
+        ])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let sheet = format!("work_order,status\n{},done\n", keys(&r1)[0]);
+    replan_fails(
+        d,
+        sheet.as_bytes(),
+        &["--roads", &s(&roads)],
+        &["summary.json", "2 road layer(s)", "1 were given", "--roads"],
+    );
+});

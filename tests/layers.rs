@@ -343,3 +343,55 @@ fn check_takes_several_layers_as_plan_does() {
         .collect();
     assert_eq!(labels, BTreeSet::from(["a.geojson", "b.geojson"]));
 }
+
+/// The same three roads in two layers: layer `intact.geojson` undamaged, layer `hit.geojson` at
+/// damage 1 with its middle road closed. Each road keeps its worst damage whatever the order of
+/// `--roads`: the same plan both ways, and QA points saying the damage differed.
+#[test]
+fn the_same_road_in_two_layers_keeps_its_worst_damage_in_either_order() {
+    let d = tmp();
+    let roads = |name: &str, props: [&str; 3]| {
+        let f: Vec<String> = (0..3)
+            .map(|i| {
+                let x = i as f64 * 0.001;
+                line(&[[x, 0.0], [x + 0.001, 0.0]], props[i])
+            })
+            .collect();
+        write_collection(d.path(), name, &f)
+    };
+    let intact = roads("intact.geojson", [r#"{"damage":0}"#; 3]);
+    let hit = roads(
+        "hit.geojson",
+        [
+            r#"{"damage":1}"#,
+            r#"{"damage":"closed"}"#,
+            r#"{"damage":1}"#,
+        ],
+    );
+    let mut seen = Vec::new();
+    for (name, order) in [("ab", [&intact, &hit]), ("ba", [&hit, &intact])] {
+        let out = plan_layers(
+            d.path(),
+            name,
+            &[order[0].clone(), order[1].clone()],
+            &["--whole-network"],
+        );
+        let sum = read_json(&out.join("summary.json"));
+        let differed = read_fc(&out.join("qa.geojson"))
+            .features
+            .iter()
+            .filter(|f| f.property("kind").unwrap() == "removed_duplicate_other_damage")
+            .count();
+        assert_eq!(differed, 3, "{name}");
+        seen.push((
+            sum["total_cost"].as_f64().unwrap(),
+            sum["repair_length_m"].as_f64().unwrap(),
+            sum["counts"]["components"].as_u64().unwrap(),
+        ));
+    }
+    assert_eq!(seen[0], seen[1]);
+    // The end roads are repaired at damage 1 (not left at the intact layer's 0), and the closed
+    // middle road is repaired in neither order: 2 roads of 0.001° on the equator, 111.32 m each
+    // (WGS84 equatorial radius 6378137 m × π / 180 000, from memory).
+    assert!((seen[0].1 - 2.0 * 111.32).abs() < 0.1, "{seen:?}");
+}

@@ -529,7 +529,8 @@ fn a_changed_input_is_asked_for_anew() {
 }
 
 /// A road layer given anew is matched by work-order keys: the keys of a road taken out of it
-/// and a sheet line naming no work order of the previous plan are listed, never guessed.
+/// and a started sheet line naming no work order of the previous plan are listed, never guessed
+/// (a done line naming nothing is refused: tests/bad_replan.rs).
 #[test]
 fn keys_that_match_nothing_are_listed() {
     let d = district();
@@ -546,7 +547,7 @@ fn keys_that_match_nothing_are_listed() {
         .iter()
         .map(|c| match c.as_str() {
             "work_order" => "WO-NOWHERE-0-1",
-            "status" => "done",
+            "status" => "started",
             _ => "",
         })
         .collect();
@@ -601,4 +602,116 @@ fn keys_that_match_nothing_are_listed() {
         s["history"][1]["finished_repair_m"].as_f64().unwrap(),
         rows[0]["cost"].parse::<f64>().unwrap()
     );
+}
+
+/// A plan of two road layers re-planned with both layers given anew (`--roads` twice): every
+/// finished repair is matched in its own layer and none is planned again.
+#[test]
+fn a_two_layer_plan_is_replanned_with_both_layers() {
+    let d = tmp();
+    // Two layers of three damaged roads in a row each, joined end to end.
+    let layer = |name: &str, x0: f64| {
+        let lines: Vec<String> = (0..3)
+            .map(|i| {
+                let x = x0 + 100.0 * i as f64;
+                line(
+                    &[at_m(x, 0.0), at_m(x + 100.0, 0.0)],
+                    &format!(r#"{{"id":"R{i}","damage":0.5}}"#),
+                )
+            })
+            .collect();
+        write_collection(d.path(), name, &lines);
+    };
+    layer("west.geojson", 0.0);
+    layer("east.geojson", 300.0);
+    ok(at(
+        d.path(),
+        &[
+            "plan",
+            "--roads",
+            "west.geojson",
+            "--roads",
+            "east.geojson",
+            "--out",
+            "r1",
+            "-q",
+        ],
+    ));
+    let r1 = d.path().join("r1");
+    let (_, rows) = work_orders(&r1);
+    assert!(rows.len() >= 2, "{rows:?}");
+    sheet(&d.path().join("back.csv"), &r1, b',', false, |_| "done");
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--roads",
+            "west.geojson",
+            "--roads",
+            "east.geojson",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
+    let s = summary(&d.path().join("r2"));
+    assert_eq!(s["replan"]["finished_repairs"], rows.len());
+    assert_eq!(s["replan"]["keys_matching_nothing"], serde_json::json!([]));
+    assert!(repairs(&d.path().join("r2")).is_empty());
+}
+
+/// Settings that choose within an input file belong to it: a plan of `;`-separated CSV sites
+/// re-planned with the sites given anew as GeoJSON drops `--sites-delimiter` instead of refusing
+/// the new file for a setting replan cannot take.
+#[test]
+fn sites_given_anew_in_another_format_drop_the_old_files_settings() {
+    let d = district();
+    let sites = read_json(&d.path().join("sites.geojson"));
+    let mut csv = String::from("lon;lat\n");
+    for f in sites["features"].as_array().unwrap() {
+        let c = &f["geometry"]["coordinates"];
+        csv.push_str(&format!("{};{}\n", c[0], c[1]));
+    }
+    std::fs::write(d.path().join("sites.csv"), csv).unwrap();
+    ok(at(
+        d.path(),
+        &[
+            "plan",
+            "--roads",
+            "roads.geojson",
+            "--sites",
+            "sites.csv",
+            "--sites-delimiter",
+            ";",
+            "--out",
+            "r1",
+            "-q",
+        ],
+    ));
+    sheet(
+        &d.path().join("back.csv"),
+        &d.path().join("r1"),
+        b',',
+        false,
+        |_| "",
+    );
+    ok(at(
+        d.path(),
+        &[
+            "replan",
+            "r1",
+            "--finished",
+            "back.csv",
+            "--sites",
+            "sites.geojson",
+            "--out",
+            "r2",
+            "-q",
+        ],
+    ));
+    let s = summary(&d.path().join("r2"));
+    assert_eq!(s["settings"]["sites_delimiter"], Value::Null);
 }

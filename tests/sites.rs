@@ -314,3 +314,45 @@ fn one_site_is_a_trivial_plan_and_no_sites_are_refused() {
         );
     }
 }
+
+/// A site holding both `name` (one of reknit's own properties) and `input_name`: the input `name`
+/// steps round the input `input_name` to `input_name_2`, and no property is written twice in
+/// `sites.geojson` (RFC 8259 §4: names within an object should be unique).
+#[test]
+fn an_input_attribute_never_takes_a_name_written_already() {
+    let d = tmp();
+    let roads = write_collection(
+        d.path(),
+        "roads.geojson",
+        &[line(
+            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
+    );
+    let props = |i: usize| {
+        format!(r#"{{"site_id":"S{i}","name":"Clinic {i}","input_name":"user value {i}"}}"#)
+    };
+    let sites = write_collection(
+        d.path(),
+        "sites.geojson",
+        &[
+            point(at_m(0.0, 0.0), &props(0)),
+            point(at_m(200.0, 0.0), &props(1)),
+        ],
+    );
+    let out = d.path().join("out");
+    let o = plan_cli(&roads, &out, &["--sites", sites.to_str().unwrap(), "-q"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = std::fs::read_to_string(out.join("sites.geojson")).unwrap();
+    for (name, times) in [
+        ("\"input_name\":", 2),
+        ("\"input_name_2\":", 2),
+        ("\"input_site_id\":", 2),
+    ] {
+        assert_eq!(text.matches(name).count(), times, "{name} in {text}");
+    }
+    let fc = read_json(&out.join("sites.geojson"));
+    let p = &fc["features"][0]["properties"];
+    assert_eq!(p["input_name"], "user value 0");
+    assert_eq!(p["input_name_2"], "Clinic 0");
+}

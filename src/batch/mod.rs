@@ -125,7 +125,7 @@ pub fn run_batch(opts: &BatchOptions) -> Result<BatchSummary, BatchError> {
                     let row = pool.install(|| run_district(d, opts));
                     if opts.progress.verbose && !opts.progress.quiet {
                         bar.suspend(|| {
-                            eprintln!(
+                            crate::say!(
                                 "{}: {}{}",
                                 d.name,
                                 row.status,

@@ -80,7 +80,7 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
     let s = run_batch(&opts)?;
     if !a.quiet {
         let unchanged = s.rows.iter().filter(|r| r.status == "unchanged").count();
-        eprintln!(
+        reknit::say!(
             "{} of {} district(s) run{}: {} ok, {} unchanged, {} failed",
             s.rows.len(),
             s.districts,
@@ -93,7 +93,7 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
             s.failed
         );
         for r in s.rows.iter().filter(|r| r.status == "failed") {
-            eprintln!(
+            reknit::say!(
                 "  failed: {}: {}",
                 reknit::export::text::terminal(&r.name),
                 reknit::export::text::terminal(r.error.as_deref().unwrap_or(""))
@@ -110,7 +110,7 @@ pub fn run(a: BatchArgs) -> anyhow::Result<ExitCode> {
 
 pub fn merge(a: MergeArgs) -> anyhow::Result<ExitCode> {
     let s = merge_shards::merge(&a.dir)?;
-    eprintln!(
+    reknit::say!(
         "merged {} district(s) into {}: {} failed",
         s.rows.len(),
         a.dir.join("batch-summary.csv").display(),

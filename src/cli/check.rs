@@ -39,14 +39,17 @@ pub fn run(a: CheckArgs) -> anyhow::Result<ExitCode> {
         &progress,
     )?;
     if !progress.quiet {
-        eprintln!(
+        reknit::say!(
             "{} junctions, {} edges in {} component(s); {} dangling ends",
-            r.counts.junctions, r.counts.edges, r.component_count, r.dangles
+            r.counts.junctions,
+            r.counts.edges,
+            r.component_count,
+            r.dangles
         );
         for (kind, n) in &r.counts.qa {
-            eprintln!("  {n:>8}  {}", reknit::ingest::qa::QaKind::label_of(kind));
+            reknit::say!("  {n:>8}  {}", reknit::ingest::qa::QaKind::label_of(kind));
         }
-        eprintln!("outputs written to {}", a.out.display());
+        reknit::say!("outputs written to {}", a.out.display());
         super::common::print_cautions(r.attribution.as_deref());
     }
     Ok(ExitCode::SUCCESS)

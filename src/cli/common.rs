@@ -368,11 +368,15 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         return;
     }
     let c = &summary.counts;
-    eprintln!(
+    reknit::say!(
         "{} junctions, {} edges ({} damaged, {} closed) in {} component(s)",
-        c.junctions, c.edges, c.edges_damaged, c.edges_closed, c.components
+        c.junctions,
+        c.edges,
+        c.edges_damaged,
+        c.edges_closed,
+        c.components
     );
-    eprintln!(
+    reknit::say!(
         "plan: {} edges, {} to repair, {} repair-metres over {} m of road",
         summary.plan_edges,
         summary.plan.repair_edges,
@@ -380,7 +384,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         fixed(summary.repair_length_m, 3)
     );
     if let Some(s) = &summary.sites {
-        eprintln!(
+        reknit::say!(
             "sites: {} of {} joined to the hub; lower bound {} repair-metres ({})",
             s.joined_to_hub,
             s.total,
@@ -398,7 +402,7 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             }
         );
         for u in &s.not_joined {
-            eprintln!(
+            reknit::say!(
                 "  {} {}: {}",
                 terminal(&u.id),
                 u.status_label,
@@ -406,11 +410,11 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
             );
         }
         if let Some(n) = &s.note {
-            eprintln!("  note: {}", terminal(n));
+            reknit::say!("  note: {}", terminal(n));
         }
     }
     if let Some(f) = &summary.single_failures {
-        eprintln!(
+        reknit::say!(
             "single failures: {} road(s) with no way round would each cut sites off the hub; {} of \
              {} site(s) checked depend on one (single-failures.geojson){}",
             f.roads_cutting_off_sites,
@@ -427,19 +431,20 @@ pub fn print_result(summary: &Summary, out: &std::path::Path, progress: &Progres
         );
     }
     if let Some(st) = summary.structures.as_ref().filter(|st| st.planned > 0) {
-        eprintln!(
+        reknit::say!(
             "structures: {} planned road(s) on a bridge, culvert or tunnel ({} to repair): inspect before use",
-            st.planned, st.repairs
+            st.planned,
+            st.repairs
         );
     }
-    eprintln!("outputs written to {}", out.display());
+    reknit::say!("outputs written to {}", out.display());
     print_cautions(summary.attribution.as_deref());
 }
 
 /// Prints the cautions paragraph (the text of the picture's band) and any attribution.
 pub fn print_cautions(attribution: Option<&str>) {
-    eprintln!("{}", reknit::cautions::SHORT);
+    reknit::say!("{}", reknit::cautions::SHORT);
     if let Some(a) = attribution {
-        eprintln!("{}", terminal(a));
+        reknit::say!("{}", terminal(a));
     }
 }

@@ -39,9 +39,10 @@ pub struct ReplanArgs {
     #[arg(long, value_name = "FILE")]
     sites: Option<PathBuf>,
 
-    /// A road layer given anew, matched to the previous plan by work-order keys.
+    /// The road layers given anew, matched to the previous plan by work-order keys: give --roads
+    /// once per layer the previous plan read (as many layers, in the same order).
     #[arg(long, value_name = "FILE")]
-    roads: Option<PathBuf>,
+    roads: Vec<PathBuf>,
 
     /// A label for this round in the history (a date, a shift); none by default.
     #[arg(long, value_name = "TEXT")]
@@ -58,7 +59,7 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
         finished: a.finished,
         out: a.out.clone(),
         force: a.output.force,
-        roads: a.roads.map(Source::File),
+        roads: a.roads.into_iter().map(Source::File).collect(),
         damage_points: a.damage_points.map(Source::File),
         damage_zones: a.damage_zones.map(Source::File),
         sites: a.sites.map(Source::File),
@@ -69,13 +70,13 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
     // Work orders that matched nothing are listed, never guessed: say so where it is seen.
     if let Some(r) = summary.replan.as_ref().filter(|_| !progress.quiet) {
         if !r.rows_matching_nothing.is_empty() {
-            eprintln!(
-                "note: {} line(s) of the sheet name no work order of the previous plan (summary.json replan.rows_matching_nothing)",
+            reknit::say!(
+                "note: {} line(s) of the sheet marked started name no work order of the previous plan (summary.json replan.rows_matching_nothing)",
                 r.rows_matching_nothing.len()
             );
         }
         if !r.keys_matching_nothing.is_empty() {
-            eprintln!(
+            reknit::say!(
                 "note: {} work order(s) name no piece of the new road network (summary.json replan.keys_matching_nothing)",
                 r.keys_matching_nothing.len()
             );

@@ -3,6 +3,7 @@
 use super::geojson::Prop;
 use super::sink::LayerSink;
 use serde_json::{Map, Value};
+use std::collections::{BTreeMap, BTreeSet};
 
 /// One site as written to `sites.geojson`.
 #[derive(Debug, Clone)]
@@ -54,23 +55,42 @@ const OWN: [&str; 13] = [
     "attach_lat",
 ];
 
-/// The name an input attribute is written under: its own, or prefixed with `input_` when it is
-/// one of reknit's.
-pub fn output_name(k: &str) -> String {
-    match OWN.contains(&k) {
-        true => format!("input_{k}"),
-        false => k.to_string(),
+/// The names the input attributes `keys` (every key any site holds) are written under, by both
+/// the GeoJSON and the GeoPackage writer: its own, or `input_<key>` when it is one of reknit's,
+/// with the first free `_2`, `_3`, … when that is taken too (by reknit's or by another input
+/// attribute, such as an input `input_name` beside an input `name`), so no name is written twice.
+pub fn output_names<'a>(keys: impl IntoIterator<Item = &'a String>) -> BTreeMap<String, String> {
+    let keys: BTreeSet<&String> = keys.into_iter().collect();
+    let mut used: BTreeSet<String> = OWN.iter().map(|k| k.to_string()).collect();
+    let mut out = BTreeMap::new();
+    // Attributes that keep their names are placed first, so a renamed one steps round them.
+    for k in keys.iter().filter(|k| !OWN.contains(&k.as_str())) {
+        used.insert(k.to_string());
+        out.insert(k.to_string(), k.to_string());
     }
+    for k in keys.iter().filter(|k| OWN.contains(&k.as_str())) {
+        let base = format!("input_{k}");
+        let mut name = base.clone();
+        let mut n = 2;
+        while used.contains(&name) {
+            name = format!("{base}_{n}");
+            n += 1;
+        }
+        used.insert(name.clone());
+        out.insert(k.to_string(), name);
+    }
+    out
 }
 
 /// Writes the sites as Point features; reknit's own properties first, the input's after them
-/// (an input property with the same name as one of reknit's is prefixed with `input_`).
+/// (renamed by [`output_names`] where one would repeat a name).
 pub fn write_sites<S: LayerSink + ?Sized>(gj: &mut S, rows: &[SiteRow]) -> std::io::Result<()> {
+    let names = output_names(rows.iter().flat_map(|r| r.attributes.keys()));
     for r in rows {
-        let renamed: Vec<(String, &Value)> = r
+        let renamed: Vec<(&str, &Value)> = r
             .attributes
             .iter()
-            .map(|(k, v)| (output_name(k), v))
+            .map(|(k, v)| (names.get(k).map_or(k.as_str(), String::as_str), v))
             .collect();
         let mut props: Vec<(&str, Prop)> = vec![
             ("site_id", Prop::Str(&r.id)),
@@ -100,9 +120,31 @@ pub fn write_sites<S: LayerSink + ?Sized>(gj: &mut S, rows: &[SiteRow]) -> std::
             ),
         ];
         for (k, v) in &renamed {
-            props.push((k.as_str(), Prop::Json(v)));
+            props.push((k, Prop::Json(v)));
         }
         gj.point(&props, r.pos)?;
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Renamed attributes step round every name already taken, own or input.
+    #[test]
+    fn output_names_never_repeat() {
+        let keys: Vec<String> = ["name", "input_name", "input_name_2", "group", "Group"]
+            .map(String::from)
+            .to_vec();
+        let names = output_names(&keys);
+        assert_eq!(names["input_name"], "input_name");
+        assert_eq!(names["input_name_2"], "input_name_2");
+        assert_eq!(names["name"], "input_name_3");
+        assert_eq!(names["group"], "input_group");
+        assert_eq!(names["Group"], "Group");
+        let all: BTreeSet<&String> = names.values().collect();
+        assert_eq!(all.len(), keys.len());
+        assert!(all.iter().all(|n| !OWN.contains(&n.as_str())));
+    }
 }

@@ -90,15 +90,10 @@ pub fn sites(rows: &[super::sites::SiteRow]) -> LayerSpec {
             ("attach_lat", R),
         ],
     );
-    let mut keys: Vec<&String> = rows.iter().flat_map(|r| r.attributes.keys()).collect();
-    keys.sort();
-    keys.dedup();
-    for k in keys {
-        let kind = kind_of_values(rows.iter().filter_map(|r| r.attributes.get(k)));
-        s.fields.push(Field {
-            name: super::sites::output_name(k),
-            kind,
-        });
+    let names = super::sites::output_names(rows.iter().flat_map(|r| r.attributes.keys()));
+    for (k, name) in names {
+        let kind = kind_of_values(rows.iter().filter_map(|r| r.attributes.get(&k)));
+        s.fields.push(Field { name, kind });
     }
     s
 }

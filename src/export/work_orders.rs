@@ -143,7 +143,17 @@ pub fn write_work_orders<W: Write>(
     let mut c = csv::Writer::from_writer(w);
     let io = |e: csv::Error| std::io::Error::other(e.to_string());
     c.write_record(HEADER).map_err(io)?;
+    // Crews hand the sheet back by key, so a key on two rows would mark the wrong road finished:
+    // keys are unique by construction, and a repeat is a bug that stops the run.
+    let key_col = HEADER.iter().position(|h| *h == "work_order").unwrap_or(0);
+    let mut seen = std::collections::HashSet::new();
     for row in rows(net, steps, backup, detour, site_ids, ids, csv_cell) {
+        if !seen.insert(row[key_col].clone()) {
+            return Err(std::io::Error::other(format!(
+                "internal error (a bug): work-order key {} is on two rows",
+                row[key_col]
+            )));
+        }
         c.write_record(row).map_err(io)?;
     }
     c.flush()

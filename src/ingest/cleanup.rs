@@ -60,9 +60,19 @@ pub fn clean(net: &mut Network, snap_m: f64, qa: &mut Vec<QaPoint>) -> (usize, u
                 if keep[b] && within(net.edge_geometry(a), net.edge_geometry(b), snap_m) {
                     keep[b] = false;
                     near += 1;
+                    // The same road given twice keeps its worst damage, whichever came first.
+                    let (da, db) = (net.edges[a].damage, net.edges[b].damage);
+                    let kind = if da == db {
+                        QaKind::RemovedNearDuplicate
+                    } else {
+                        let e = &mut net.edges[a];
+                        e.damage = da.worst(db);
+                        e.cost = crate::network::cost_of(e.length_m, e.damage);
+                        QaKind::DuplicateDamageDiffered
+                    };
                     let gb = net.edge_geometry(b);
                     qa.push(QaPoint {
-                        kind: QaKind::RemovedNearDuplicate,
+                        kind,
                         pos: gb[gb.len() / 2],
                         distance_m: 0.0,
                         feature: Some(net.edges[b].feature),

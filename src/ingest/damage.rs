@@ -28,6 +28,15 @@ impl Damage {
         }
     }
 
+    /// The worse of two damages for one road given twice: closed beats any factor, a higher
+    /// factor a lower one (so the result does not depend on which copy came first).
+    pub fn worst(self, other: Damage) -> Damage {
+        match (self, other) {
+            (Damage::Closed, _) | (_, Damage::Closed) => Damage::Closed,
+            (Damage::Factor(a), Damage::Factor(b)) => Damage::Factor(a.max(b)),
+        }
+    }
+
     /// The factor, or `None` for a closed piece.
     pub fn factor(self) -> Option<f64> {
         match self {

@@ -4,7 +4,8 @@
 //!
 //! Each layer keeps a label, written as `source_layer` beside `source_index` in the outputs: the
 //! file's name (for a GeoPackage, `name.gpkg:TABLE`), or the path as given when two layers share a
-//! file name. The same file given twice is refused (its roads would all be duplicates).
+//! file name, with `~2`, `~3`, … on a label an earlier layer still holds (unique by
+//! construction). The same file given twice is refused (its roads would all be duplicates).
 
 use super::IngestError;
 use super::reader::{open_source, read_lines_as};
@@ -129,8 +130,27 @@ pub fn merge(mut parts: Vec<LineLayer>) -> LineLayer {
 }
 
 /// Replaces labels that two layers share by each layer's path as given (a GeoPackage keeps its
-/// `:TABLE`).
+/// `:TABLE`), then makes every label unique by construction: a label still taken by an earlier
+/// layer (a GeoPackage `g.gpkg` table `roads` beside a file named `g.gpkg:roads`) gets `~2`, `~3`,
+/// … (the first free), so work-order keys, which name the layer, never repeat.
 fn relabel(parts: &mut [LineLayer]) {
+    paths_for_shared(parts);
+    let mut taken = std::collections::BTreeSet::new();
+    for p in parts.iter_mut() {
+        let base = p.layers[0].label.clone();
+        let mut label = base.clone();
+        let mut k = 2;
+        while taken.contains(&label) {
+            label = format!("{base}~{k}");
+            k += 1;
+        }
+        taken.insert(label.clone());
+        p.layers[0].label = label;
+    }
+}
+
+/// Replaces labels that two layers share by each layer's path as given.
+fn paths_for_shared(parts: &mut [LineLayer]) {
     let labels: Vec<String> = parts.iter().map(|p| p.layers[0].label.clone()).collect();
     for (i, p) in parts.iter_mut().enumerate() {
         if labels.iter().filter(|l| **l == labels[i]).count() > 1
@@ -144,6 +164,56 @@ fn relabel(parts: &mut [LineLayer]) {
             p.layers[0].label = format!("{}{table}", input.path);
         }
     }
+}
+
+/// Refuses a network in which one of several road layers lost all, or nearly all (nine in ten, at
+/// ten features or more), of its features to lines collapsed to single points: the sign of a layer
+/// read in the wrong CRS (a `--crs` in metres applied to longitudes and latitudes shrinks the layer
+/// to a few metres), which would otherwise drop out of the network without a word.
+pub fn check_layers_kept(
+    net: &crate::network::Network,
+    stats: &super::noding::NodingStats,
+    snap_m: f64,
+) -> Result<(), IngestError> {
+    if net.layers.len() < 2 {
+        return Ok(());
+    }
+    let n = net.features.len();
+    let mut has_edge = vec![false; n];
+    for e in &net.edges {
+        has_edge[e.feature as usize] = true;
+    }
+    let mut collapsed = vec![false; n];
+    for q in &stats.qa_points {
+        if let (super::qa::QaKind::RemovedZeroLength, Some(f)) = (q.kind, q.feature) {
+            collapsed[f as usize] = true;
+        }
+    }
+    for (i, l) in net.layers.iter().enumerate() {
+        let end = net
+            .layers
+            .get(i + 1)
+            .map_or(n, |m| m.first_feature as usize);
+        let range = l.first_feature as usize..end;
+        let total = range.len();
+        let lost = range.filter(|&f| collapsed[f] && !has_edge[f]).count();
+        if total > 0 && (lost == total || (total >= 10 && lost * 10 >= total * 9)) {
+            return Err(IngestError::Crs {
+                path: std::path::PathBuf::from(&l.label),
+                message: format!(
+                    "road layer `{}`: {lost} of its {total} feature(s) collapsed to single points \
+                     when vertices closer than --snap {snap_m} m were merged, so the layer would \
+                     drop out of the network: its CRS is probably wrong. With several layers, \
+                     --crs applies to every layer without a CRS of its own (a Shapefile without \
+                     .prj, a GeoJSON without a `crs` member); give the layer a CRS of its own (a \
+                     .prj, or a `crs` member such as \"urn:ogc:def:crs:OGC:1.3:CRS84\" for \
+                     longitude/latitude) or leave out --crs",
+                    l.label
+                ),
+            });
+        }
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -161,5 +231,36 @@ mod tests {
         assert_eq!(label_of(&layers, 2), Some("a.geojson"));
         assert_eq!(label_of(&layers, 3), Some("b.zip"));
         assert_eq!(label_of(&[], 0), None);
+    }
+
+    /// A GeoPackage table `roads` and a file named `g.gpkg:roads` in one folder share a label
+    /// and a path-based label: the second gets `~2`, and a third layer really named `…~2` `~3`.
+    #[test]
+    fn labels_are_unique_by_construction() {
+        let part = |label: &str, path: &str| LineLayer {
+            layers: vec![SourceLayer {
+                label: label.into(),
+                first_feature: 0,
+            }],
+            input: Some(crate::ingest::source::InputRecord {
+                role: "roads".into(),
+                path: path.into(),
+                sha256: String::new(),
+                bytes: 0,
+                deleted_records: 0,
+            }),
+            ..Default::default()
+        };
+        let mut parts = vec![
+            part("g.gpkg:roads", "d/g.gpkg"),
+            part("g.gpkg:roads", "d/g.gpkg:roads"),
+            part("d/g.gpkg:roads~2", "d/g.gpkg:roads~2"),
+        ];
+        relabel(&mut parts);
+        let labels: Vec<&str> = parts.iter().map(|p| p.layers[0].label.as_str()).collect();
+        assert_eq!(
+            labels,
+            ["d/g.gpkg:roads", "d/g.gpkg:roads~2", "d/g.gpkg:roads~2~2"]
+        );
     }
 }

@@ -183,6 +183,7 @@ pub fn build_network(
             ),
         });
     }
+    layers::check_layers_kept(&net, &stats, settings.snap_m)?;
     check_cost_total(&net, &path)?;
     Ok((net, stats))
 }

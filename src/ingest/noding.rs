@@ -184,22 +184,39 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     let mut pieces: Vec<(u32, u32, u32)> = Vec::new();
     let mut seen: FxHashMap<u64, u32> = FxHashMap::default();
     let mut seen_exact: std::collections::HashMap<Vec<u32>, u32> = Default::default();
+    // Pieces whose damage a dropped duplicate made worse (few: only where damage differed).
+    let mut worse: FxHashMap<u32, crate::ingest::damage::Damage> = FxHashMap::default();
     let mut s0 = 0;
     for (k, &e) in seq_ends.iter().enumerate() {
         let mut a = s0;
         for i in s0 + 1..e {
             if junction_of[seq[i] as usize] != u32::MAX {
                 let piece = &seq[a..=i];
-                if is_new_piece(piece, &seq, &pieces, &mut seen, &mut seen_exact) {
-                    pieces.push((a as u32, (i + 1) as u32, seq_feature[k]));
-                } else {
+                if let Some(kept) = earlier_piece(piece, &seq, &pieces, &mut seen, &mut seen_exact)
+                {
                     stats.duplicate_edges_dropped += 1;
+                    // The same road given twice keeps its worst damage, whichever came first.
+                    let (mine, theirs) = (
+                        feats_damage(&layer, seq_feature[k]),
+                        worse
+                            .get(&kept)
+                            .copied()
+                            .unwrap_or_else(|| feats_damage(&layer, pieces[kept as usize].2)),
+                    );
+                    let kind = if mine == theirs {
+                        QaKind::RemovedDuplicate
+                    } else {
+                        worse.insert(kept, mine.worst(theirs));
+                        QaKind::DuplicateDamageDiffered
+                    };
                     qa.push(QaPoint {
-                        kind: QaKind::RemovedDuplicate,
+                        kind,
                         pos: centres[piece[piece.len() / 2] as usize],
                         distance_m: 0.0,
                         feature: Some(seq_feature[k]),
                     });
+                } else {
+                    pieces.push((a as u32, (i + 1) as u32, seq_feature[k]));
                 }
                 a = i;
             }
@@ -248,7 +265,10 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
                     .sum::<f64>()
                     * to_meter
             };
-            let damage = feats[f as usize].damage;
+            let damage = worse
+                .get(&(k as u32))
+                .copied()
+                .unwrap_or(feats[f as usize].damage);
             Edge {
                 from: jof[seq_ref[a as usize] as usize],
                 to: jof[seq_ref[b as usize - 1] as usize],
@@ -300,26 +320,32 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
     (net, stats)
 }
 
-/// Records `piece` and returns true unless an identical piece (either direction) was seen before.
-fn is_new_piece(
+/// A feature's damage as read.
+fn feats_damage(layer: &LineLayer, f: u32) -> crate::ingest::damage::Damage {
+    layer.features[f as usize].damage
+}
+
+/// Records `piece` (as the next piece) and returns `None`, or the earlier identical piece (either
+/// direction) when there is one.
+fn earlier_piece(
     piece: &[u32],
     seq: &[u32],
     pieces: &[(u32, u32, u32)],
     seen: &mut FxHashMap<u64, u32>,
     seen_exact: &mut std::collections::HashMap<Vec<u32>, u32>,
-) -> bool {
+) -> Option<u32> {
     let h = hash_canonical(piece);
     let id = pieces.len() as u32;
     match seen.get(&h) {
         None => {
             seen.insert(h, id);
-            true
+            None
         }
         Some(&other) => {
             let (a, b, _) = pieces[other as usize];
             let (a, b) = (a as usize, b as usize);
             if same_piece(&seq[a..b], piece) {
-                return false;
+                return Some(other);
             }
             // A hash collision between different pieces: fall back to exact keys.
             let canon: Vec<u32> = if reversed_is_smaller(piece) {
@@ -328,10 +354,10 @@ fn is_new_piece(
                 piece.to_vec()
             };
             match seen_exact.entry(canon) {
-                std::collections::hash_map::Entry::Occupied(_) => false,
+                std::collections::hash_map::Entry::Occupied(o) => Some(*o.get()),
                 std::collections::hash_map::Entry::Vacant(v) => {
                     v.insert(id);
-                    true
+                    None
                 }
             }
         }

@@ -14,6 +14,9 @@ pub enum QaKind {
     RemovedDuplicate,
     /// An edge running within the tolerance of another between the same junctions was removed.
     RemovedNearDuplicate,
+    /// An edge identical or near to another was removed and the two had different damage: the
+    /// worst was kept (closed beats any factor, a higher factor a lower one).
+    DuplicateDamageDiffered,
     /// A line that collapsed to a point was removed.
     RemovedZeroLength,
     /// Two lines cross without a shared vertex and were joined there (`--node-crossings`).
@@ -27,12 +30,13 @@ pub enum QaKind {
 
 impl QaKind {
     /// Every kind, in the order docs/outputs.md lists them.
-    pub const ALL: [QaKind; 9] = [
+    pub const ALL: [QaKind; 10] = [
         QaKind::MergedVertices,
         QaKind::JoinedUndershoot,
         QaKind::TrimmedOvershoot,
         QaKind::RemovedDuplicate,
         QaKind::RemovedNearDuplicate,
+        QaKind::DuplicateDamageDiffered,
         QaKind::RemovedZeroLength,
         QaKind::NodedCrossing,
         QaKind::CrossingLeftApart,
@@ -47,6 +51,7 @@ impl QaKind {
             QaKind::TrimmedOvershoot => "trimmed_overshoot",
             QaKind::RemovedDuplicate => "removed_duplicate",
             QaKind::RemovedNearDuplicate => "removed_near_duplicate",
+            QaKind::DuplicateDamageDiffered => "removed_duplicate_other_damage",
             QaKind::RemovedZeroLength => "removed_zero_length",
             QaKind::NodedCrossing => "crossing_joined",
             QaKind::CrossingLeftApart => "crossing_left_apart",
@@ -71,6 +76,7 @@ impl QaKind {
             QaKind::TrimmedOvershoot => "trimmed overshoot",
             QaKind::RemovedDuplicate => "removed duplicate",
             QaKind::RemovedNearDuplicate => "removed near-duplicate",
+            QaKind::DuplicateDamageDiffered => "removed duplicate with other damage, worst kept",
             QaKind::RemovedZeroLength => "removed zero-length line",
             QaKind::NodedCrossing => "crossing joined",
             QaKind::CrossingLeftApart => "crossing left apart",

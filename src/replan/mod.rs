@@ -86,8 +86,8 @@ pub struct Request {
     pub out: PathBuf,
     /// Replace outputs already in `out`.
     pub force: bool,
-    /// A road layer given anew.
-    pub roads: Option<Source>,
+    /// The road layers given anew (none: the recorded ones); as many as the previous plan read.
+    pub roads: Vec<Source>,
     /// Damage points found since, added to the earlier ones.
     pub damage_points: Option<Source>,
     /// Damage zones given anew, replacing the earlier ones.
@@ -100,7 +100,8 @@ pub struct Request {
     pub output_format: Option<crate::export::sink::OutputFormat>,
 }
 
-/// A CSV line whose work order names no piece of the previous plan or its backup links.
+/// A CSV line whose work order names no piece of the previous plan or its backup links (a line
+/// marked done that names nothing is refused; a started one is listed).
 #[derive(Debug, Clone, Serialize)]
 pub struct UnmatchedRow {
     /// Its line in the sheet (the header is 1).
@@ -155,7 +156,8 @@ pub struct ReplanFigures {
     pub started_repairs: Vec<String>,
     /// Finished repairs now damaged again (a point given anew on them, or closed): not intact.
     pub finished_damaged_again: Vec<String>,
-    /// Sheet lines whose work order names nothing in the previous plan.
+    /// Sheet lines marked started whose work order names nothing in the previous plan (a line
+    /// marked done that names nothing stops the run).
     pub rows_matching_nothing: Vec<UnmatchedRow>,
     /// Keys of the previous plan or of the sheet that name no piece of the new network (a road
     /// layer given anew): listed, never guessed.

@@ -27,8 +27,11 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         .collect();
     let (mut done, mut started, mut unmatched) = (BTreeSet::new(), BTreeSet::new(), Vec::new());
     let mut finished_m = 0.0;
+    let mut done_unmatched: Vec<(usize, String)> = Vec::new();
     for r in rows {
         match cost_of.get(r.work_order.as_str()) {
+            // Finished work that names nothing would be planned again at full cost: refused below.
+            None if r.done => done_unmatched.push((r.line, r.work_order)),
             None => unmatched.push(UnmatchedRow {
                 line: r.line,
                 work_order: r.work_order,
@@ -42,6 +45,29 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
             }
         }
     }
+    if let Some(&(first, _)) = done_unmatched.first() {
+        let listed: Vec<String> = done_unmatched
+            .iter()
+            .take(20)
+            .map(|(l, k)| format!("line {l} `{k}`"))
+            .collect();
+        let more = match done_unmatched.len() > 20 {
+            true => format!(" and {} more", done_unmatched.len() - 20),
+            false => String::new(),
+        };
+        return Err(ReplanError::Finished {
+            path: req.finished.clone(),
+            line: first,
+            message: format!(
+                "{} work order(s) marked done name no work order of the previous plan {} ({}{more}): \
+                 finished work that matches nothing would be planned again; correct the keys \
+                 against its work-orders.csv or clear their status",
+                done_unmatched.len(),
+                req.previous.display(),
+                listed.join(", ")
+            ),
+        });
+    }
     let finished_this_round = done.len();
     done.extend(prev.finished_to_date.iter().cloned());
     let mut o = Options::new(Source::File(PathBuf::new()), req.out.clone());
@@ -54,7 +80,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     let had_sites = prev.inputs.iter().any(|i| i.role == "sites");
     for rec in &prev.inputs {
         let anew = match rec.role.as_str() {
-            "roads" => req.roads.is_some(),
+            "roads" => !req.roads.is_empty(),
             "damage zones" => req.damage_zones.is_some(),
             "sites" => req.sites.is_some(),
             "damage reports" | "cost table" => false,
@@ -83,13 +109,25 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
             _ => o.road.cost_table = src.path().map(PathBuf::from),
         }
     }
-    if !had_roads && req.roads.is_none() {
+    if !had_roads && req.roads.is_empty() {
         return Err(prev.broken("no roads input recorded: give --roads".into()));
     }
-    if let Some(r) = &req.roads {
-        o.roads = r.clone();
-        o.more_roads.clear();
+    // Work-order keys name their layer when there are several, so a different number of layers
+    // would match nothing and plan finished work again: refused.
+    let recorded_roads = prev.inputs.iter().filter(|i| i.role == "roads").count();
+    if !req.roads.is_empty() && req.roads.len() != recorded_roads {
+        return Err(prev.broken(format!(
+            "the previous plan read {recorded_roads} road layer(s) and {} were given with \
+                 --roads: give --roads once per layer, in the previous plan's order, so its \
+                 work-order keys match",
+            req.roads.len()
+        )));
     }
+    if let Some((first, rest)) = req.roads.split_first() {
+        o.roads = first.clone();
+        o.more_roads = rest.to_vec();
+    }
+    forget_choices_of_other_files(req, &prev, &mut o);
     o.damage_zones = req.damage_zones.clone().or(o.damage_zones);
     o.damage_points = req.damage_points.clone();
     if req.sites.is_some() {
@@ -115,6 +153,40 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         rows_matching_nothing: unmatched,
     }));
     Ok(crate::job::build(&o)?)
+}
+
+/// Settings that choose within an input file (a GeoPackage's or a zip's layer, a CSV's separator
+/// and columns) belong to that file: an input given anew keeps them only when it is the same file
+/// again (the same file names, in order); else they are dropped, as replan cannot take them anew,
+/// and a new file in another format would be refused for a setting it cannot use.
+fn forget_choices_of_other_files(req: &Request, prev: &previous::Previous, o: &mut Options) {
+    let name = |p: &std::path::Path| p.file_name().map(|n| n.to_os_string());
+    let same = |role: &str, given: &[Source]| {
+        let recorded = prev
+            .inputs
+            .iter()
+            .filter(|i| i.role == role)
+            .map(|i| name(std::path::Path::new(&i.path)));
+        given.iter().map(|s| name(&s.display_path())).eq(recorded)
+    };
+    if !req.roads.is_empty() && !same("roads", &req.roads) {
+        o.road.roads_layer = None;
+    }
+    if let Some(s) = &req.sites
+        && !same("sites", std::slice::from_ref(s))
+    {
+        o.sites_layer = None;
+        if !crate::ingest::sites::reads_as_csv(s) {
+            o.sites_delimiter = None;
+            o.lon_column = None;
+            o.lat_column = None;
+        }
+    }
+    if let Some(z) = &req.damage_zones
+        && !same("damage zones", std::slice::from_ref(z))
+    {
+        o.zones_layer = None;
+    }
 }
 
 /// Runs the round: [`prepare`], then the ordinary stages.
