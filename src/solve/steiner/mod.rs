@@ -412,14 +412,16 @@ fn heuristics_pool(
     // search on their union often finds what none of them has.
     pool.push((tree::cost(rg, &best), best.clone()));
     let (trees, steps) = effort.merging();
-    if merge && trees >= 2 && k >= 2 {
-        if let Some(t) = merge::merged(rg, &red.terminals, pool.clone(), trees, steps) {
-            let t = polish(rg, csr, it, t, ws, effort);
-            let c = tree::cost(rg, &t);
-            if c < tree::cost(rg, &best) {
-                pool.push((c, t.clone()));
-                return (t, pool);
-            }
+    if merge
+        && trees >= 2
+        && k >= 2
+        && let Some(t) = merge::merged(rg, &red.terminals, pool.clone(), trees, steps)
+    {
+        let t = polish(rg, csr, it, t, ws, effort);
+        let c = tree::cost(rg, &t);
+        if c < tree::cost(rg, &best) {
+            pool.push((c, t.clone()));
+            return (t, pool);
         }
     }
     (best, pool)
