@@ -290,19 +290,22 @@ fn set_size(
     names: [&Option<String>; 3],
 ) -> Result<(), IngestError> {
     let mut total = 0u64;
+    let mut each = Vec::new();
     for n in names.into_iter().flatten() {
         let f = archive
             .by_name(n)
             .map_err(|e| refuse(zip, format!("member {n}: cannot be read: {e}")))?;
         total = total.saturating_add(f.size());
+        each.push(format!("{n} {} bytes", f.size()));
     }
     if total > MAX_ZIP_SET {
         return Err(refuse(
             zip,
             format!(
-                "its Shapefile set declares {total} bytes inflated (.shp, .shx and .dbf together), \
-                 more than the {} MiB reknit inflates from a zip archive (a zip bomb?); unzip a \
-                 set this large and give its .shp",
+                "its Shapefile set declares {total} bytes inflated ({}), more than the {} MiB \
+                 reknit inflates from a zip archive (a zip bomb?); unzip a set this large and \
+                 give its .shp",
+                each.join(", "),
                 MAX_ZIP_SET >> 20
             ),
         ));
