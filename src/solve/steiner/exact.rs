@@ -173,7 +173,7 @@ pub fn da_tree(
         .iter()
         .filter(|b| b.complete && b.saturated.len() == rg.len())
         .map(|b| {
-            let sat = saturated_graph(rg, b);
+            let sat = super::da_heuristic::saturated(rg, b);
             let sat_csr = Csr::from_edges(&sat);
             let t = sph::sph(&sat, &sat_csr, terminals, it, b.root, ws);
             let t = tree::mst_prune(rg, csr, &t, it);
@@ -191,23 +191,6 @@ pub fn da_tree(
         }
     }
     best.map(|b| b.1).unwrap_or_default()
-}
-
-/// The reduced graph with only the edges that have a saturated arc.
-fn saturated_graph(rg: &EdgeList, bound: &Bound) -> EdgeList {
-    EdgeList {
-        vertices: rg.vertices,
-        ends: rg.ends.clone(),
-        cost: rg
-            .cost
-            .iter()
-            .enumerate()
-            .map(|(e, &c)| match bound.saturated.get(e) {
-                Some(true) => c,
-                _ => UNUSABLE,
-            })
-            .collect(),
-    }
 }
 
 /// Whether all `terminals` share one component over usable edges.
