@@ -92,7 +92,11 @@ pub fn prepare(scene: &Scene) -> Drawing {
             .steps
             .iter()
             .zip(&repair_lines)
-            .map(|(s, l)| (scene.day_colour(s.last_day.unwrap_or(1)), vec![l.clone()]))
+            .map(|(s, l)| {
+                let mut one = Lines::new();
+                one.push(l);
+                (scene.day_colour(s.last_day.unwrap_or(1)), one)
+            })
             .collect()
     };
     let (x, y, w, h) = frame.map;

@@ -178,19 +178,15 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let st = staging::Staging::begin(out, force)?;
     let attribution = o.summary.attribution.as_deref();
     let ids = o.keys;
-    let work_orders = || {
-        st.write("work-orders.csv", |w| {
-            work_orders::write_work_orders(
-                w,
-                o.net,
-                o.steps,
-                o.backup.map_or(&[][..], |b| &b.rows[..]),
-                o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-                o.site_ids,
-                ids,
-            )
-        })
+    let sheet = work_orders::Sheet {
+        net: o.net,
+        steps: o.steps,
+        backup: o.backup.map_or(&[][..], |b| &b.rows[..]),
+        detour: o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
+        site_ids: o.site_ids,
+        ids,
     };
+    let work_orders = || st.write("work-orders.csv", |w| work_orders::write_work_orders(w, sheet));
     let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
@@ -211,8 +207,10 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     // Every file is made from the plan alone, none from another file (only the report embeds
     // the PNG picture), so they are written side by side: each file's bytes are the same
     // whichever thread writes it and whenever, and staging lists them by name.
+    crate::progress::mem_mark("writing: start");
     let (drawn, orders) = rayon::join(|| drawing::prepare(&scene), work_orders);
     orders?;
+    crate::progress::mem_mark("writing: drawing prepared, work orders");
     let pictures = || -> Result<(), ExportError> {
         let (svg, png) = rayon::join(
             || {
@@ -229,6 +227,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         );
         svg?;
         let png = png?;
+        crate::progress::mem_mark("writing: svg and png");
         st.write("plan.png", |w| std::io::Write::write_all(w, &png))?;
         st.write("report.html", |w| {
             report::write_report(
@@ -248,20 +247,14 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                     scheduled: o.scheduled,
                 },
             )
-        })
+        })?;
+        crate::progress::mem_mark("writing: report");
+        Ok(())
     };
     let map_page = || {
         st.write("map.html", |w| {
             let rows = |f: &mut dyn FnMut(&[String; 25])| {
-                work_orders::rows(
-                    o.net,
-                    o.steps,
-                    o.backup.map_or(&[][..], |b| &b.rows[..]),
-                    o.corridors.map_or(&[][..], |c| &c.detour_repairs[..]),
-                    o.site_ids,
-                    ids,
-                    text::plain,
-                )
+                work_orders::rows(sheet, text::plain)
                 .for_each(|r| f(&r))
             };
             page::write_page(
@@ -278,7 +271,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
                     keys: ids,
                 },
             )
-        })
+        })?;
+        crate::progress::mem_mark("writing: map page");
+        Ok(())
     };
     let all = plan_layers(o, &order_of);
     let layers = || match o.format {
@@ -286,6 +281,11 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         OutputFormat::GeoJson => layer_set::write_geojson(&st, &all[..2], attribution, true)
             .and_then(|()| layer_set::write_geojson(&st, &all[2..], attribution, false)),
         OutputFormat::GeoPackage => layer_set::write_gpkg(&st, &all, attribution),
+    };
+    let layers = || {
+        layers()?;
+        crate::progress::mem_mark("writing: layers");
+        Ok::<(), ExportError>(())
     };
     let ((pictured, paged), written) = rayon::join(|| rayon::join(pictures, map_page), layers);
     pictured?;

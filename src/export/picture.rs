@@ -40,13 +40,15 @@ fn lines_group<W: Write>(
     w: &mut W,
     id: &str,
     style: &str,
-    lines: &[Vec<(f64, f64)>],
+    lines: &super::strokes::Lines,
 ) -> io::Result<()> {
     writeln!(
         w,
         r#"<g id="{id}" fill="none" stroke-linecap="round" stroke-linejoin="round" {style}>"#
     )?;
-    for chunk in lines.chunks(LINES_PER_PATH) {
+    let mut rest = lines.iter().peekable();
+    while rest.peek().is_some() {
+        let chunk = rest.by_ref().take(LINES_PER_PATH);
         writeln!(w, r#"<path d="{}"/>"#, path_data(chunk))?;
     }
     writeln!(w, "</g>")
@@ -78,8 +80,7 @@ pub fn write_drawing<W2: Write>(w: W2, scene: &Scene, d: &Drawing, lines: bool) 
             r#"<g id="damage-zones" fill="{ZONE_FILL}" stroke="{ZONE_EDGE}" stroke-width="1">"#
         )?;
         for ring in &d.zones {
-            let l = vec![ring.clone()];
-            writeln!(w, r#"<path d="{}Z"/>"#, path_data(&l))?;
+            writeln!(w, r#"<path d="{}Z"/>"#, path_data([ring]))?;
         }
         writeln!(w, "</g>")?;
         let b = |k: f64| Fixed(base * k, 2);

@@ -42,9 +42,9 @@ pub fn parse_overlay(svg: &[u8]) -> Result<usvg::Tree, String> {
 
 /// Strokes polylines in batches of about 64k points: one path for a million roads would make
 /// tiny-skia hold its whole stroked outline at once (hundreds of MB); batches keep it small.
-fn stroke_lines(
+fn stroke_lines<'a>(
     pixmap: &mut Pixmap,
-    lines: &[Vec<(f64, f64)>],
+    lines: impl IntoIterator<Item = &'a [(f64, f64)]>,
     hex: &str,
     width: f64,
     dash: Option<[f32; 2]>,
@@ -148,11 +148,8 @@ pub fn render_drawing(scene: &Scene, d: &Drawing) -> Result<Vec<u8>, String> {
     while k < d.repairs.len() {
         let c = &d.repairs[k].0;
         let run = d.repairs[k..].iter().take_while(|r| &r.0 == c).count();
-        let lines: Vec<Vec<(f64, f64)>> = d.repairs[k..k + run]
-            .iter()
-            .flat_map(|r| r.1.iter().cloned())
-            .collect();
-        stroke_lines(&mut pixmap, &lines, c, b * 3.0, None);
+        let lines = d.repairs[k..k + run].iter().flat_map(|r| r.1.iter());
+        stroke_lines(&mut pixmap, lines, c, b * 3.0, None);
         k += run;
     }
     // The overlay: everything but the road lines, as SVG on a transparent background.

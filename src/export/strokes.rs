@@ -12,8 +12,60 @@ use std::hash::{BuildHasherDefault, Hasher};
 /// hundred thousand points already make an SVG of megabytes with detail no screen shows).
 pub const SIMPLIFY_ABOVE: usize = 150_000;
 
-/// Polylines in pixels.
-pub type Lines = Vec<Vec<(f64, f64)>>;
+/// Polylines in pixels, their points in one array: a national layer draws millions of lines, and
+/// a `Vec` per line would cost a header and an allocation each (more than its points).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Lines {
+    points: Vec<(f64, f64)>,
+    /// `ends[i]`: one past the last point of line `i` in `points`.
+    ends: Vec<usize>,
+}
+
+impl Lines {
+    /// No lines.
+    pub fn new() -> Lines {
+        Lines::default()
+    }
+
+    /// Adds a line at the end.
+    pub fn push(&mut self, line: &[(f64, f64)]) {
+        self.points.extend_from_slice(line);
+        self.ends.push(self.points.len());
+    }
+
+    /// How many lines.
+    pub fn len(&self) -> usize {
+        self.ends.len()
+    }
+
+    /// True when there is no line.
+    pub fn is_empty(&self) -> bool {
+        self.ends.is_empty()
+    }
+
+    /// The lines in order.
+    pub fn iter(&self) -> impl Iterator<Item = &[(f64, f64)]> + '_ {
+        let starts = std::iter::once(0).chain(self.ends.iter().copied());
+        starts
+            .zip(self.ends.iter().copied())
+            .map(|(a, b)| &self.points[a..b])
+    }
+
+    /// Gives back the room the arrays grew beyond their contents.
+    fn shrink_to_fit(&mut self) {
+        self.points.shrink_to_fit();
+        self.ends.shrink_to_fit();
+    }
+}
+
+impl<'a> IntoIterator for &'a Lines {
+    type Item = &'a [(f64, f64)];
+    type IntoIter = Box<dyn Iterator<Item = &'a [(f64, f64)]> + 'a>;
+
+    fn into_iter(self) -> Self::IntoIter {
+        Box::new(self.iter())
+    }
+}
 
 /// Snaps lines to the pixel grid, or keeps them exact.
 pub struct Stroker<'a> {
@@ -65,7 +117,8 @@ impl<'a> Stroker<'a> {
     /// breaks where it meets one) and the lines are as few as the drawing allows.
     pub fn edges(&self, edges: impl Iterator<Item = usize>) -> Lines {
         let mut lines = Lines::new();
-        self.each_line(edges, |l| lines.push(l));
+        self.each_line(edges, |l| lines.push(&l));
+        lines.shrink_to_fit();
         lines
     }
 
@@ -251,9 +304,10 @@ fn extend_straight(line: &mut Vec<(f64, f64)>, p: (f64, f64)) {
 }
 
 /// SVG path data for polylines (one decimal; whole pixels print without one).
-pub fn path_data(lines: &[Vec<(f64, f64)>]) -> String {
-    let mut d = String::with_capacity(lines.len() * 24);
+pub fn path_data<L: AsRef<[(f64, f64)]>>(lines: impl IntoIterator<Item = L>) -> String {
+    let mut d = String::new();
     for l in lines {
+        let l = l.as_ref();
         for (i, &(x, y)) in l.iter().enumerate() {
             d.push(if i == 0 { 'M' } else { 'L' });
             crate::decimal::push_decimal(&mut d, x, 1, true);

@@ -40,17 +40,37 @@ pub const HEADER: [&str; 25] = [
 /// A text cell on its way out: [`csv_cell`] for the CSV, [`super::text::plain`] for the map page.
 pub type Cell = fn(&str) -> std::borrow::Cow<'_, str>;
 
+/// What the work-order rows are made of: the network, the plan's repairs in order, the backup
+/// links' and detour offers' repairs, the site ids and the work-order keys.
+#[derive(Clone, Copy)]
+pub struct Sheet<'a> {
+    /// The road network.
+    pub net: &'a Network,
+    /// The plan's repairs in order.
+    pub steps: &'a [Step],
+    /// The backup links' repairs.
+    pub backup: &'a [BackupRow],
+    /// The optional repairs that shorten corridors (edges).
+    pub detour: &'a [u32],
+    /// Site ids, by site number.
+    pub site_ids: &'a [String],
+    /// The work-order keys.
+    pub ids: &'a super::work_order_id::WorkOrderIds,
+}
+
 /// The work-order rows, one per repair in order (the columns of [`HEADER`]): the plan's repairs,
-/// then the backup links' and the detour offers'; free text passes through `cell`.
-pub fn rows<'a>(
-    net: &'a Network,
-    steps: &'a [Step],
-    backup: &'a [BackupRow],
-    detour: &'a [u32],
-    site_ids: &'a [String],
-    ids: &'a super::work_order_id::WorkOrderIds,
-    cell: Cell,
-) -> impl Iterator<Item = [String; 25]> + 'a {
+/// then the backup links' and the detour offers'; free text passes through `cell`. Each reader
+/// (the CSV, the map page) makes its own pass: holding the rows of a national plan would cost
+/// far more memory than making them twice.
+pub fn rows<'a>(sheet: Sheet<'a>, cell: Cell) -> impl Iterator<Item = [String; 25]> + 'a {
+    let Sheet {
+        net,
+        steps,
+        backup,
+        detour,
+        site_ids,
+        ids,
+    } = sheet;
     let rows = steps
         .iter()
         .map(move |s| {
@@ -131,15 +151,7 @@ pub fn rows<'a>(
 /// the optional repairs that shorten corridors, neither of which has a crew or days), then the columns crews hand back: the work-order key (stable across re-plans,
 /// see [`super::work_order_id`]), the structure the road lies on, blank `status`, `verified_by`
 /// and `verified_on`, and the fixed caution sentence.
-pub fn write_work_orders<W: Write>(
-    w: W,
-    net: &Network,
-    steps: &[Step],
-    backup: &[BackupRow],
-    detour: &[u32],
-    site_ids: &[String],
-    ids: &super::work_order_id::WorkOrderIds,
-) -> std::io::Result<()> {
+pub fn write_work_orders<W: Write>(w: W, sheet: Sheet<'_>) -> std::io::Result<()> {
     let mut c = csv::Writer::from_writer(w);
     let io = |e: csv::Error| std::io::Error::other(e.to_string());
     c.write_record(HEADER).map_err(io)?;
@@ -147,7 +159,7 @@ pub fn write_work_orders<W: Write>(
     // keys are unique by construction, and a repeat is a bug that stops the run.
     let key_col = HEADER.iter().position(|h| *h == "work_order").unwrap_or(0);
     let mut seen = std::collections::HashSet::new();
-    for row in rows(net, steps, backup, detour, site_ids, ids, csv_cell) {
+    for row in rows(sheet, csv_cell) {
         if !seen.insert(row[key_col].clone()) {
             return Err(std::io::Error::other(format!(
                 "internal error (a bug): work-order key {} is on two rows",

@@ -7,6 +7,7 @@ pub mod batch;
 pub mod exact;
 pub mod external;
 pub mod joined;
+pub mod replan;
 pub mod zipped;
 
 use std::path::{Path, PathBuf};
