@@ -29,9 +29,16 @@ const INTACT: i64 = 0;
 const DAMAGED: i64 = 1;
 const IMPASSABLE: i64 = 2;
 
-/// Writes the layers object and returns the simplification grid's metres per step, when the
-/// network was simplified.
-pub fn write_layers(j: &mut Json, p: &Page) -> Option<f64> {
+/// The simplification grid's metres per step, when the page simplifies the network.
+pub fn grid_m(p: &Page) -> Option<f64> {
+    let frame = p.drawing.frame.finer(FINER);
+    Stroker::new(p.scene.net, &frame)
+        .simplify
+        .then(|| 1.0 / frame.scale)
+}
+
+/// Writes the layers object (simplified when [`grid_m`] says so).
+pub fn write_layers(j: &mut Json, p: &Page) {
     let scene = p.scene;
     let net = scene.net;
     let frame = p.drawing.frame.finer(FINER);
@@ -153,7 +160,6 @@ pub fn write_layers(j: &mut Json, p: &Page) -> Option<f64> {
         });
     }
     j.raw("}");
-    st.simplify.then(|| 1.0 / frame.scale)
 }
 
 /// Writes `"name":{"meta":n,"f":[…]}`, after a comma unless it is the first layer.

@@ -1,10 +1,12 @@
 //! The map page's data text: coordinates quantised to whole steps of [`RESOLUTION_M`] metres in the
 //! picture's local frame and written as offsets from the previous point (small integers, so a large
 //! network stays a few bytes a point), and text from the inputs written as JSON strings with its
-//! control characters replaced. [`Json::finish`] passes the whole text through
-//! [`script_json`](crate::export::text::script_json), so nothing in it can end the script element.
+//! control characters replaced. The text passes through
+//! [`script_json`](crate::export::text::script_json) on its way out, so nothing in it can end the
+//! script element.
 
 use crate::export::text::{plain, script_json};
+use std::io::{self, Write};
 
 /// The grid step of the page's coordinates, metres: finer than any road's width, so the page
 /// shows no error a reader could see (common practice, no source).
@@ -18,16 +20,55 @@ pub fn quantise((x, y): (f64, f64)) -> (i64, i64) {
     )
 }
 
-/// The JSON text of the page's data, built in one string.
+/// Text waiting in a streaming [`Json`] before it goes to its writer.
+const SPILL_AT: usize = 1 << 20;
+
+/// The JSON text of the page's data: built in one string ([`Json::default`], [`Json::finish`]),
+/// or passed on to a writer a megabyte at a time ([`Json::streaming`], [`Json::end`]), so a
+/// national network's page never holds its data text whole.
 #[derive(Default)]
-pub struct Json {
+pub struct Json<'w> {
     buf: String,
+    out: Option<&'w mut dyn Write>,
+    failed: Option<io::Error>,
 }
 
-impl Json {
+impl<'w> Json<'w> {
+    /// A text passed on to `out` as it is made (see [`Json::end`]).
+    pub fn streaming(out: &'w mut dyn Write) -> Json<'w> {
+        Json {
+            buf: String::new(),
+            out: Some(out),
+            failed: None,
+        }
+    }
+
+    /// Passes the text made so far on to the writer, when there is one and the text is long:
+    /// a spill always holds whole characters, so escaping it alone escapes the whole text.
+    fn spill(&mut self, at: usize) {
+        if self.buf.len() < at {
+            return;
+        }
+        if let Some(out) = self.out.as_mut() {
+            if self.failed.is_none()
+                && let Err(e) = out.write_all(escaped(&self.buf).as_bytes())
+            {
+                self.failed = Some(e);
+            }
+            self.buf.clear();
+        }
+    }
+
+    /// Writes what is left of a streaming text; the first write error, if any.
+    pub fn end(mut self) -> io::Result<()> {
+        self.spill(0);
+        self.failed.map_or(Ok(()), Err)
+    }
+
     /// Appends JSON syntax or a number written by the caller.
     pub fn raw(&mut self, s: &str) -> &mut Self {
         self.buf.push_str(s);
+        self.spill(SPILL_AT);
         self
     }
 
@@ -95,15 +136,18 @@ impl Json {
         self.raw("]");
     }
 
-    /// The text, safe inside a `<script>` element.
+    /// The text, safe inside a `<script>` element (of a text built in one string).
     pub fn finish(self) -> String {
-        // Most pages have nothing to escape: keep the text rather than copy it (on a national
-        // network the copy would double the page's share of the peak memory).
-        if self.buf.contains(['<', '>', '&', '\u{2028}', '\u{2029}']) {
-            script_json(&self.buf)
-        } else {
-            self.buf
-        }
+        escaped(&self.buf).into_owned()
+    }
+}
+
+/// `text` made safe inside a `<script>` element; most text has nothing to escape and is kept.
+fn escaped(text: &str) -> std::borrow::Cow<'_, str> {
+    if text.contains(['<', '>', '&', '\u{2028}', '\u{2029}']) {
+        std::borrow::Cow::Owned(script_json(text))
+    } else {
+        std::borrow::Cow::Borrowed(text)
     }
 }
 
@@ -168,6 +212,30 @@ mod tests {
         j.feature(&[], pts);
         let text = j.finish();
         assert!(text.len() < 16 + 100 * 4, "{} bytes", text.len());
+    }
+
+    #[test]
+    fn a_streamed_text_is_the_text_built_whole() {
+        let make = |j: &mut Json| {
+            j.raw("[");
+            for i in 0..200_000 {
+                if i > 0 {
+                    j.raw(",");
+                }
+                j.str(if i % 3 == 0 { "a<b&c\u{2028}" } else { "plain" });
+                j.feature(&[i], [(i as f64, 2.0 * i as f64)]);
+            }
+            j.raw("]");
+        };
+        let mut whole = Json::default();
+        make(&mut whole);
+        let whole = whole.finish();
+        let mut out = Vec::new();
+        let mut j = Json::streaming(&mut out);
+        make(&mut j);
+        j.end().unwrap();
+        assert!(whole.len() > 2 * SPILL_AT, "the text spills more than once");
+        assert_eq!(String::from_utf8(out).unwrap(), whole);
     }
 
     #[test]

@@ -81,7 +81,47 @@ pub type EachRow<'a> = dyn Fn(&mut dyn FnMut(&[String; 25])) + 'a;
 pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     let mut w = io::BufWriter::new(w);
     let scene = p.scene;
-    let mut j = Json::default();
+    let simplified = data::grid_m(p);
+    let title = html(scene.title);
+    writeln!(
+        w,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
+    )?;
+    writeln!(w, "<title>{title} — map of the plan</title>")?;
+    writeln!(w, "<style>{CSS}</style></head><body>")?;
+    writeln!(w, "<header><h1>{title} — map of the plan</h1>")?;
+    let note = simplified.map_or_else(String::new, |g| simplified_note(p, g));
+    writeln!(w, "<p id=\"page-note\">{}</p></header>", html(&note))?;
+    writeln!(w, "{}", info::BODY)?;
+    info::write_legend(&mut w, p)?;
+    writeln!(w, "</aside></main>")?;
+    writeln!(
+        w,
+        "<footer id=\"band\"><p id=\"caution\">{}</p>",
+        html(scene.caution)
+    )?;
+    if let Some(a) = scene.attribution {
+        writeln!(w, "<p id=\"attribution\">Data: {}</p>", html(a))?;
+    }
+    writeln!(w, "</footer>")?;
+    writeln!(
+        w,
+        "<noscript><p>This map needs JavaScript; report.html and the layers hold the same plan.</p></noscript>"
+    )?;
+    write!(w, "<script type=\"application/json\" id=\"map-data\">")?;
+    write_data(&mut w, p, simplified)?;
+    writeln!(w, "</script>")?;
+    writeln!(
+        w,
+        "<script>\n{SCRIPT}\n{SCRIPT_UI}</script>\n</body></html>"
+    )?;
+    w.flush()
+}
+
+/// Writes the page's data (the JSON text inside its script element) as it is made.
+fn write_data(w: &mut dyn Write, p: &Page, simplified: Option<f64>) -> io::Result<()> {
+    let scene = p.scene;
+    let mut j = Json::streaming(w);
     let (east, lo, mx, my) = p.drawing.frame.projection();
     j.raw("{").key("res").num(encode::RESOLUTION_M, 3).raw(",");
     j.key("proj").raw("[").int(i64::from(east)).raw(",");
@@ -134,49 +174,14 @@ pub fn write_page<W: Write>(w: W, p: &Page) -> io::Result<()> {
     j.raw("],").key("info");
     info::write_info(&mut j, p);
     j.raw(",").key("layers");
-    let simplified = data::write_layers(&mut j, p);
+    data::write_layers(&mut j, p);
     j.raw(",").key("simplified");
     match simplified {
         Some(g) => j.num(g, 1),
         None => j.raw("null"),
     };
     j.raw("}");
-    let data = j.finish();
-    let title = html(scene.title);
-    writeln!(
-        w,
-        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
-    )?;
-    writeln!(w, "<title>{title} — map of the plan</title>")?;
-    writeln!(w, "<style>{CSS}</style></head><body>")?;
-    writeln!(w, "<header><h1>{title} — map of the plan</h1>")?;
-    let note = simplified.map_or_else(String::new, |g| simplified_note(p, g));
-    writeln!(w, "<p id=\"page-note\">{}</p></header>", html(&note))?;
-    writeln!(w, "{}", info::BODY)?;
-    info::write_legend(&mut w, p)?;
-    writeln!(w, "</aside></main>")?;
-    writeln!(
-        w,
-        "<footer id=\"band\"><p id=\"caution\">{}</p>",
-        html(scene.caution)
-    )?;
-    if let Some(a) = scene.attribution {
-        writeln!(w, "<p id=\"attribution\">Data: {}</p>", html(a))?;
-    }
-    writeln!(w, "</footer>")?;
-    writeln!(
-        w,
-        "<noscript><p>This map needs JavaScript; report.html and the layers hold the same plan.</p></noscript>"
-    )?;
-    writeln!(
-        w,
-        "<script type=\"application/json\" id=\"map-data\">{data}</script>"
-    )?;
-    writeln!(
-        w,
-        "<script>\n{SCRIPT}\n{SCRIPT_UI}</script>\n</body></html>"
-    )?;
-    w.flush()
+    j.end()
 }
 
 /// The sentence the page shows when it draws a simplified network.
