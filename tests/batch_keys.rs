@@ -59,6 +59,9 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("sites_delimiter", "\"comma\""),
     ("sites_layer", "\"hospitals\""),
     ("zones_layer", "\"floods\""),
+    ("damage_points_crs", "\"EPSG:4326\""),
+    ("damage_points_delimiter", "\"semicolon\""),
+    ("damage_points_layer", "\"reports\""),
     ("output_format", "\"gpkg\""),
 ];
 
@@ -303,7 +306,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
     // Every key but those of a whole-network plan (backup links need a sites plan), the damage
     // field (the damage comes from `category_field` here), the site tags (for sites from an
     // OpenStreetMap extract, tests/osm.rs) and the layers of GeoPackages (tests/gpkg.rs,
-    // tests/sites_formats.rs).
+    // tests/sites_formats.rs), and the CSV separator and layer of field reports (the reports here
+    // are GeoJSON; tests/damage_points_formats.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
@@ -316,6 +320,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
                 "roads_layer",
                 "sites_layer",
                 "zones_layer",
+                "damage_points_delimiter",
+                "damage_points_layer",
             ]
             .contains(k)
         })
