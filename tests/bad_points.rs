@@ -66,7 +66,13 @@ case!(csv_point_and_comma_as_decimal_marks, |d| {
     plan_fails(
         &roads_ok(d),
         &["--sites", &s(&sites)],
-        &["sites.csv", "line 2", "\"0.000\"", "\"0,0001\"", "same decimal mark"],
+        &[
+            "sites.csv",
+            "line 2",
+            "\"0.000\"",
+            "\"0,0001\"",
+            "same decimal mark",
+        ],
     );
     let reports = points_csv(d, "p.csv", "lon;lat;damage\n0,0001;0,0001;2.500\n");
     plan_fails(
@@ -76,7 +82,7 @@ case!(csv_point_and_comma_as_decimal_marks, |d| {
     );
 });
 
-case!(csv_delimiter_option_names_the_separator_the_header_holds, |d| {
+case!(csv_separator_option_names_the_right_one, |d| {
     // A semicolon file read with `--sites-delimiter tab`: reknit reads semicolons, so the advice
     // is the option's right value, not to save the file again.
     let sites = file(d, "sites.csv", "id;lon;lat\nA;0,0001;0,0001\n");
@@ -89,7 +95,12 @@ case!(csv_delimiter_option_names_the_separator_the_header_holds, |d| {
     let reports = points_csv(d, "p.csv", "lon;lat\n0,0001;0,0001\n");
     plan_cli_err(
         d,
-        &["--damage-points", &reports, "--damage-points-delimiter", "tab"],
+        &[
+            "--damage-points",
+            &reports,
+            "--damage-points-delimiter",
+            "tab",
+        ],
         &["p.csv", "--damage-points-delimiter ;"],
     );
 });
@@ -124,17 +135,28 @@ case!(points_of_the_wrong_geometry, |d| {
     plan_cli_err(
         d,
         &["--damage-points", &s(&shp)],
-        &["p.shp", "feature 0", "damage reports must be Points", "Polygon"],
+        &[
+            "p.shp",
+            "feature 0",
+            "damage reports must be Points",
+            "Polygon",
+        ],
     );
     let gj = file(
         d,
         "p.geojson",
-        fc(&[r#"{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[0,0],[0.001,0]]}}"#]),
+        fc(&[
+            r#"{"type":"Feature","properties":{},"geometry":{"type":"LineString","coordinates":[[0,0],[0.001,0]]}}"#,
+        ]),
     );
     plan_cli_err(
         d,
         &["--damage-points", &s(&gj)],
-        &["p.geojson", "feature 0", "damage reports must be Points, found LineString"],
+        &[
+            "p.geojson",
+            "feature 0",
+            "damage reports must be Points, found LineString",
+        ],
     );
 });
 
@@ -182,7 +204,10 @@ case!(points_options_without_their_input, |d| {
     plan_cli_err(
         d,
         &["--damage-points", &s(&gj), "--damage-points-delimiter", ";"],
-        &["--damage-points-delimiter", "only a CSV damage reports file"],
+        &[
+            "--damage-points-delimiter",
+            "only a CSV damage reports file",
+        ],
     );
     plan_cli_err(
         d,
@@ -204,7 +229,11 @@ case!(points_options_without_their_input, |d| {
 
 case!(points_csv_empty_or_without_coordinates, |d| {
     let empty = points_csv(d, "p.csv", "lon,lat,damage\n");
-    plan_cli_err(d, &["--damage-points", &empty], &["p.csv", "holds no reports"]);
+    plan_cli_err(
+        d,
+        &["--damage-points", &empty],
+        &["p.csv", "holds no reports"],
+    );
     let no_lon = points_csv(d, "q.csv", "east,north,damage\n1,2,3\n");
     plan_cli_err(
         d,
@@ -224,11 +253,8 @@ case!(points_csv_empty_or_without_coordinates, |d| {
 fn shapefile_points(d: &Path, name: &str, at: &[[f64; 2]], kind: &str) -> std::path::PathBuf {
     use shapefile::dbase::{FieldName, FieldValue, Record, TableWriterBuilder};
     let p = d.join(name);
-    let table = TableWriterBuilder::new().add_numeric_field(
-        FieldName::try_from("damage").unwrap(),
-        8,
-        2,
-    );
+    let table =
+        TableWriterBuilder::new().add_numeric_field(FieldName::try_from("damage").unwrap(), 8, 2);
     let mut r = Record::default();
     r.insert("damage".into(), FieldValue::Numeric(Some(2.0)));
     if kind == "Point" {

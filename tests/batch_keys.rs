@@ -171,6 +171,12 @@ fn every_key_applies_alike_wherever_it_is_given() {
             "\"base-zones.geojson\""
         }
     };
+    // The separator and the layer options of field reports need a CSV file and a GeoPackage.
+    let points_for = |key: &str| match key {
+        "damage_points_delimiter" => "\"base-reports.csv\"",
+        "damage_points_layer" => "\"base-reports.gpkg\"",
+        _ => "\"base-reports.geojson\"",
+    };
     let lines = |skip: &str| -> String {
         let mut l: String = base
             .iter()
@@ -179,6 +185,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
                 "sites" => format!("{k} = {}\n", sites_for(skip)),
                 "roads" => format!("{k} = {}\n", roads_for(skip)),
                 "damage_zones" => format!("{k} = {}\n", zones_for(skip)),
+                "damage_points" => format!("{k} = {}\n", points_for(skip)),
                 _ => format!("{k} = {v}\n"),
             })
             .collect();
@@ -217,6 +224,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
                     "sites" => sites_for(key),
                     "roads" => roads_for(key),
                     "damage_zones" => zones_for(key),
+                    "damage_points" => points_for(key),
                     _ => v,
                 })
             })

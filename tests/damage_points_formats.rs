@@ -60,11 +60,19 @@ fn geojson(d: &Path) -> PathBuf {
 fn csv(d: &Path, name: &str, sep: &str, comma_decimal: bool) -> PathBuf {
     let num = |x: f64| {
         let t = x.to_string();
-        if comma_decimal { t.replace('.', ",") } else { t }
+        if comma_decimal {
+            t.replace('.', ",")
+        } else {
+            t
+        }
     };
     let mut text = format!("report{sep}lon{sep}lat{sep}damage\r\n");
     for ((id, _, dmg), p) in REPORTS.iter().zip(positions()) {
-        let dmg = if comma_decimal { dmg.replace('.', ",") } else { dmg.to_string() };
+        let dmg = if comma_decimal {
+            dmg.replace('.', ",")
+        } else {
+            dmg.to_string()
+        };
         // A quoted id, as spreadsheets write text (RFC 4180 §2.5).
         text += &format!("\"{id}\"{sep}{}{sep}{}{sep}{dmg}\r\n", num(p[0]), num(p[1]));
     }
@@ -169,11 +177,20 @@ fn the_same_reports_plan_alike_in_every_format() {
     ];
     let mut first: Option<Vec<(String, Vec<u8>)>> = None;
     for (i, f) in files.iter().enumerate() {
-        let o = outputs(d, &format!("out{i}"), &roads, &["--damage-points", f.to_str().unwrap()]);
+        let o = outputs(
+            d,
+            &format!("out{i}"),
+            &roads,
+            &["--damage-points", f.to_str().unwrap()],
+        );
         // The reports change the plan: read as nothing, they would leave every road at 1.2.
         let summary = String::from_utf8_lossy(&o[2].1).to_string();
         assert!(summary.contains("\"read\":5"), "{}: {summary}", f.display());
-        assert!(summary.contains("\"applied\":4"), "{}: {summary}", f.display());
+        assert!(
+            summary.contains("\"applied\":4"),
+            "{}: {summary}",
+            f.display()
+        );
         match &first {
             None => first = Some(o),
             Some(a) => {
@@ -205,11 +222,21 @@ fn reports_in_a_projected_crs_read_alike() {
     let mut text = String::from("report;x;y;damage\n");
     for ((id, _, dmg), p) in REPORTS.iter().zip(positions()) {
         let [x, y] = web_mercator(p);
-        text += &format!("{id};{};{};{}\n", x.to_string().replace('.', ","), y.to_string().replace('.', ","), dmg.replace('.', ","));
+        text += &format!(
+            "{id};{};{};{}\n",
+            x.to_string().replace('.', ","),
+            y.to_string().replace('.', ","),
+            dmg.replace('.', ",")
+        );
     }
     let projected = d.join("reports-3857.csv");
     std::fs::write(&projected, text).unwrap();
-    let a = outputs(d, "a", &roads, &["--damage-points", geojson(d).to_str().unwrap()]);
+    let a = outputs(
+        d,
+        "a",
+        &roads,
+        &["--damage-points", geojson(d).to_str().unwrap()],
+    );
     let b = outputs(
         d,
         "b",
@@ -232,7 +259,10 @@ fn reports_in_a_projected_crs_read_alike() {
     );
     assert!(!o.status.success());
     let e = stderr(&o);
-    assert!(e.contains("reports-3857.csv") && e.contains("feature 1"), "{e}");
+    assert!(
+        e.contains("reports-3857.csv") && e.contains("feature 1"),
+        "{e}"
+    );
     assert!(e.contains("--damage-points-crs"), "{e}");
     let summary = read_json(&d.join("b/summary.json"));
     assert_eq!(summary["settings"]["damage_points_crs"], "EPSG:3857");
@@ -309,7 +339,11 @@ fn sites_read_from_a_zipped_shapefile_as_from_the_set() {
     let table =
         TableWriterBuilder::new().add_character_field(FieldName::try_from("site_id").unwrap(), 10);
     let mut w = shapefile::Writer::from_path(&p, table).unwrap();
-    for (id, [x, y]) in [("a", [10.0, 20.0]), ("b", [390.0, 10.0]), ("c", [190.0, 290.0])] {
+    for (id, [x, y]) in [
+        ("a", [10.0, 20.0]),
+        ("b", [390.0, 10.0]),
+        ("c", [190.0, 290.0]),
+    ] {
         let mut r = Record::default();
         r.insert("site_id".into(), FieldValue::Character(Some(id.into())));
         let q = at_m(x, y);
@@ -319,8 +353,18 @@ fn sites_read_from_a_zipped_shapefile_as_from_the_set() {
     drop(w);
     write_wgs84_prj(&p);
     let z = common::zipped::zip_owned(d, "sites.zip", &common::zipped::set_entries(&p, ""));
-    let a = plan_quiet(d, "a", &roads, &["--sites", p.to_str().unwrap(), "--hub", "a"]);
-    let b = plan_quiet(d, "b", &roads, &["--sites", z.to_str().unwrap(), "--hub", "a"]);
+    let a = plan_quiet(
+        d,
+        "a",
+        &roads,
+        &["--sites", p.to_str().unwrap(), "--hub", "a"],
+    );
+    let b = plan_quiet(
+        d,
+        "b",
+        &roads,
+        &["--sites", z.to_str().unwrap(), "--hub", "a"],
+    );
     for f in ["work-orders.csv", "plan.geojson"] {
         assert_eq!(
             std::fs::read(a.join(f)).unwrap(),
