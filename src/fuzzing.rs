@@ -141,8 +141,11 @@ pub fn zones(data: &[u8]) {
 
 /// Field damage reports (GeoJSON points).
 pub fn reports(data: &[u8]) {
-    let _ =
-        crate::ingest::reports::read_reports(&memory("reports.geojson", data), &Default::default());
+    let _ = crate::ingest::reports::read_reports(
+        &memory("reports.geojson", data),
+        &Default::default(),
+        &Default::default(),
+    );
 }
 
 /// The cost table (TOML) and lookups in it.

@@ -59,6 +59,9 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("sites_delimiter", "\"comma\""),
     ("sites_layer", "\"hospitals\""),
     ("zones_layer", "\"floods\""),
+    ("damage_points_crs", "\"EPSG:4326\""),
+    ("damage_points_delimiter", "\"semicolon\""),
+    ("damage_points_layer", "\"reports\""),
     ("output_format", "\"gpkg\""),
 ];
 
@@ -168,6 +171,12 @@ fn every_key_applies_alike_wherever_it_is_given() {
             "\"base-zones.geojson\""
         }
     };
+    // The separator and the layer options of field reports need a CSV file and a GeoPackage.
+    let points_for = |key: &str| match key {
+        "damage_points_delimiter" => "\"base-reports.csv\"",
+        "damage_points_layer" => "\"base-reports.gpkg\"",
+        _ => "\"base-reports.geojson\"",
+    };
     let lines = |skip: &str| -> String {
         let mut l: String = base
             .iter()
@@ -176,6 +185,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
                 "sites" => format!("{k} = {}\n", sites_for(skip)),
                 "roads" => format!("{k} = {}\n", roads_for(skip)),
                 "damage_zones" => format!("{k} = {}\n", zones_for(skip)),
+                "damage_points" => format!("{k} = {}\n", points_for(skip)),
                 _ => format!("{k} = {v}\n"),
             })
             .collect();
@@ -214,6 +224,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
                     "sites" => sites_for(key),
                     "roads" => roads_for(key),
                     "damage_zones" => zones_for(key),
+                    "damage_points" => points_for(key),
                     _ => v,
                 })
             })
@@ -303,7 +314,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
     // Every key but those of a whole-network plan (backup links need a sites plan), the damage
     // field (the damage comes from `category_field` here), the site tags (for sites from an
     // OpenStreetMap extract, tests/osm.rs) and the layers of GeoPackages (tests/gpkg.rs,
-    // tests/sites_formats.rs).
+    // tests/sites_formats.rs), and the CSV separator and layer of field reports (the reports here
+    // are GeoJSON; tests/damage_points_formats.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
@@ -316,6 +328,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
                 "roads_layer",
                 "sites_layer",
                 "zones_layer",
+                "damage_points_delimiter",
+                "damage_points_layer",
             ]
             .contains(k)
         })

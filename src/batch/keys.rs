@@ -242,6 +242,18 @@ pub const KEYS: &[Key] = &[
         j.sites_crs = v.opt_text()?;
         Ok(())
     }),
+    key("damage_points_crs", OptText, |j, v| {
+        j.damage_points_crs = v.opt_text()?;
+        Ok(())
+    }),
+    key("damage_points_delimiter", OptText, |j, v| {
+        j.damage_points_delimiter = v.opt_text()?;
+        Ok(())
+    }),
+    key("damage_points_layer", OptText, |j, v| {
+        j.damage_points_layer = v.opt_text()?;
+        Ok(())
+    }),
     key("output_format", Choice(&["geojson", "gpkg"]), |j, v| {
         let t = v.text()?;
         j.output_format = crate::export::sink::OutputFormat::from_name(&t)

@@ -119,9 +119,9 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "NAME")]
     pub zones_layer: Option<String>,
 
-    /// Field damage reports: GeoJSON points with a damage factor (or "closed") in
-    /// --damage-points-field, each applied to the nearest road within --point-match-distance (the
-    /// worst report wins).
+    /// Field damage reports: points with a damage factor (or "closed") in --damage-points-field,
+    /// from GeoJSON, CSV with lon/lat (or x/y) columns, a Shapefile (also zipped) or a GeoPackage;
+    /// each is applied to the nearest road within --point-match-distance (the worst report wins).
     #[arg(long, value_name = "FILE")]
     pub damage_points: Option<std::path::PathBuf>,
 
@@ -134,6 +134,21 @@ pub struct PlanningArgs {
     /// farther reports are listed. Only with --damage-points.
     #[arg(long, value_name = "METRES")]
     pub point_match_distance: Option<f64>,
+
+    /// The field reports layer's CRS as EPSG:NNNN (default: its .prj or GeoPackage SRS, or WGS84
+    /// longitude/latitude). Only with --damage-points.
+    #[arg(long, value_name = "EPSG:CODE")]
+    pub damage_points_crs: Option<String>,
+
+    /// Field separator of a CSV field reports file: `,` `;` or `tab` (default: told from the
+    /// header line). With `;` or tab a decimal comma is read (12,5).
+    #[arg(long, value_name = "SEPARATOR")]
+    pub damage_points_delimiter: Option<String>,
+
+    /// The layer of a GeoPackage (or the set of a zipped Shapefile) field reports file that holds
+    /// several (the message lists them).
+    #[arg(long, value_name = "NAME")]
+    pub damage_points_layer: Option<String>,
 
     /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
     /// giving the most priority per repair-metre are joined to the hub first, within the budget;
@@ -201,6 +216,9 @@ impl PlanningArgs {
         o.damage_points = self.damage_points.clone().map(Source::File);
         o.damage_points_field = self.damage_points_field.clone();
         o.point_match_distance_m = self.point_match_distance;
+        o.damage_points_crs = self.damage_points_crs.clone();
+        o.damage_points_delimiter = self.damage_points_delimiter.clone();
+        o.damage_points_layer = self.damage_points_layer.clone();
         o.crew_capacity = self.crew_capacity;
         o.crews = self.crews;
         o.max_detour = self.max_detour;

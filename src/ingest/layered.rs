@@ -1,7 +1,7 @@
-//! Sites and damage zones from a GeoPackage layer (OGC GeoPackage Encoding Standard 1.3), read
+//! Point layers (sites, damage reports) and damage zones from a GeoPackage layer (OGC GeoPackage Encoding Standard 1.3), read
 //! through the same [`FeatureSource`] as GeoPackage roads: a file holding several layers needs
-//! `--sites-layer` or `--zones-layer` (the message lists them), and the CRS is the layer's own
-//! (`--sites-crs` / `--zones-crs` override it; the undefined systems, `srs_id` 0 and -1, mean WGS84
+//! the layer's option (`--sites-layer`, `--damage-points-layer`, `--zones-layer`; the message
+//! lists them), and the CRS is the layer's own (the `--…-crs` options override it; the undefined systems, `srs_id` 0 and -1, mean WGS84
 //! longitude/latitude unless overridden).
 //!
 //! Sites are points, polygons or multipolygons (polygon sites: [`super::outline`]); zones are
@@ -13,14 +13,10 @@ use super::IngestError;
 use super::crs::Crs;
 use super::damage::DamageRule;
 use super::gpkg::GpkgSource;
+use super::points::{PointFeature, PointLayer, PointSpec, feature_err, shape, to_lonlat, user_crs};
 use super::reader::FeatureSource;
-use super::sites::{
-    SiteDefaults, SiteLayer, SiteSettings, check_unique, convert, feature_err, finish_outlines,
-    make_site, site_shape,
-};
 use super::source::Source;
 use super::zones::{ZoneLayer, add_zone_feature};
-use serde_json::Map;
 
 /// The CRS of the layer: the user's, else the layer's own, else WGS84.
 fn layer_crs(src: &GpkgSource, user: Option<&str>) -> Result<Crs, IngestError> {
@@ -33,39 +29,53 @@ fn layer_crs(src: &GpkgSource, user: Option<&str>) -> Result<Crs, IngestError> {
     }
 }
 
-/// Reads the sites of a GeoPackage layer (`--sites-layer` chooses among several).
-pub fn read_gpkg_sites(source: &Source, s: &SiteSettings) -> Result<SiteLayer, IngestError> {
-    let mut src = GpkgSource::open_layer(source, s.layer.as_deref(), "--sites-layer", "sites")?;
+/// Reads the points (or outlines) of a GeoPackage layer (the layer option chooses among several),
+/// converted from the layer's CRS. A feature with an empty geometry is refused: a site or a
+/// report must be somewhere.
+pub fn read_gpkg_points(source: &Source, spec: &PointSpec) -> Result<PointLayer, IngestError> {
+    let mut src =
+        GpkgSource::open_layer(source, spec.layer.as_deref(), spec.layer_flag, spec.role)?;
     let path = src.path().to_path_buf();
-    let crs = layer_crs(&src, s.crs.as_deref())?;
-    let mut sites = Vec::new();
-    let mut defaults = SiteDefaults::default();
+    let crs = match user_crs(&path, spec)? {
+        Some(c) => c,
+        None => src.declared_crs()?.unwrap_or_else(Crs::wgs84),
+    };
+    let layer = src.layer_name();
+    let mut features = Vec::new();
     let all = [super::geojson::ALL_PROPERTIES.to_string()];
     let info = src.features(&all, &mut |index, f| {
-        let (pos, outline) = site_shape(f.geometry_type.as_deref(), &f.coords)
+        let (pos, outline) = shape(spec, f.geometry_type.as_deref(), &f.coords)
             .map_err(|m| feature_err(&path, index, Some("geometry"), m))?;
-        let attributes: Map<_, _> = f.props.into_iter().collect();
-        let mut site = make_site(&path, index, pos, attributes, None, s, &mut defaults)?;
-        site.outline = outline;
-        sites.push(site);
+        features.push(PointFeature {
+            index,
+            pos,
+            outline,
+            attributes: f.props.into_iter().collect(),
+            member_id: None,
+        });
         Ok(())
     })?;
     if let Some(n) = info.skipped.get("empty geometry") {
         return Err(IngestError::Io {
             path,
             source: std::io::Error::other(format!(
-                "{n} feature(s) of the sites layer have an empty geometry; a site needs a point \
-                 or a polygon"
+                "{n} feature(s) of the {} layer have an empty geometry; a {} needs {}",
+                spec.role,
+                spec.kind,
+                if spec.polygons {
+                    "a point or a polygon"
+                } else {
+                    "a point"
+                }
             )),
         });
     }
-    convert(&path, &crs, &mut sites)?;
-    finish_outlines(&path, &mut sites)?;
-    check_unique(&path, &sites)?;
-    Ok(SiteLayer {
-        sites,
+    to_lonlat(&path, Some(&crs), spec, &mut features)?;
+    Ok(PointLayer {
+        features,
         input: info.input,
-        defaults,
+        path,
+        layer,
     })
 }
 

@@ -1,10 +1,10 @@
-//! Field damage reports: points with a factor (or "closed"), each applied to the nearest road within
-//! a distance. The worst report on a road wins; reports that find no road are listed.
+//! Field damage reports: points with a factor (or "closed") from GeoJSON, CSV, a Shapefile (also
+//! zipped) or a GeoPackage, each applied to the nearest road within a distance. The worst report on a road wins; reports that find no road are listed.
 
 use super::IngestError;
 use super::damage::{Damage, DamageRule};
-use super::geojson::read_collection;
-use super::source::{HashingReader, InputRecord, Source};
+use super::points::{PointSpec, read_points};
+use super::source::{InputRecord, Source};
 use super::wrap::{self, Frame};
 use crate::network::{Network, cost_of};
 use rstar::primitives::{GeomWithData, Line};
@@ -41,76 +41,77 @@ pub struct ReportFigures {
     pub touched: Vec<u32>,
 }
 
-/// Reads point reports from GeoJSON (lon/lat).
+/// How damage reports are read: the choices the user gave for the layer (`--damage-points-crs`,
+/// `--damage-points-delimiter`, `--damage-points-layer`).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ReportSettings {
+    /// The layer's CRS as `EPSG:NNNN` (default: the Shapefile's .prj, the GeoPackage layer's SRS,
+    /// or WGS84 lon/lat).
+    pub crs: Option<String>,
+    /// CSV field separator; default: told from the header line.
+    pub delimiter: Option<u8>,
+    /// The layer of a GeoPackage, or the set of a zip, holding several.
+    pub layer: Option<String>,
+}
+
+impl ReportSettings {
+    /// How the generic point reader reads a damage reports layer whose damage is in `field`.
+    pub fn point_spec(&self, field: &str) -> PointSpec {
+        PointSpec {
+            kind: "damage report",
+            role: "damage reports",
+            crs_flag: "--damage-points-crs",
+            delimiter_flag: "--damage-points-delimiter",
+            layer_flag: "--damage-points-layer",
+            column_flags: "a column named lon/lat, longitude/latitude or x/y",
+            polygons: false,
+            crs: self.crs.clone(),
+            delimiter: self.delimiter,
+            layer: self.layer.clone(),
+            lon_column: None,
+            lat_column: None,
+            number_columns: vec![field.to_string()],
+        }
+    }
+}
+
+/// Reads point reports from any point layer format ([`super::points`]): GeoJSON, CSV, Shapefile
+/// (also zipped) or GeoPackage, positions converted to lon/lat.
 pub fn read_reports(
     source: &Source,
     rule: &DamageRule,
+    settings: &ReportSettings,
 ) -> Result<(Vec<Report>, InputRecord), IngestError> {
-    let path = source.display_path();
-    let mut reader = source.open()?;
-    let mut out = Vec::new();
-    read_collection(
-        &mut reader,
-        std::slice::from_ref(&rule.field),
-        |index, f| {
-            let fail = |field: &str, message: String| IngestError::Feature {
-                path: path.clone(),
-                feature: index,
-                field: Some(field.into()),
-                message,
-            };
-            if f.geometry_type.as_deref() != Some("Point") || f.coords.height != 1 {
-                return Err(fail("geometry", "damage reports must be Points".into()));
-            }
-            let Some(&p) = f.coords.pos.first() else {
-                return Err(fail(
-                    "geometry",
-                    "the report's Point is empty (no position)".into(),
-                ));
-            };
-            if !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0) {
-                return Err(fail(
-                    "geometry",
-                    format!("({}, {}) is not a longitude/latitude", p[0], p[1]),
-                ));
-            }
-            let damage = rule
-                .interpret(f.prop(&rule.field))
-                .map_err(|m| fail(&rule.field, m))?;
-            out.push(Report {
-                index,
-                pos: p,
-                damage,
-                defaulted: DamageRule::is_missing(f.prop(&rule.field)),
-            });
-            Ok(())
-        },
-    )
-    .map_err(|e| IngestError::from_read(&path, e))?;
+    let layer = read_points(source, &settings.point_spec(&rule.field))?;
+    let path = layer.path;
+    let mut out = Vec::with_capacity(layer.features.len());
+    for f in layer.features {
+        let value = f.attributes.get(&rule.field);
+        let damage = rule.interpret(value).map_err(|m| IngestError::Feature {
+            path: path.clone(),
+            feature: f.index,
+            field: Some(rule.field.clone()),
+            message: m,
+        })?;
+        out.push(Report {
+            index: f.index,
+            pos: f.pos,
+            damage,
+            defaulted: DamageRule::is_missing(value),
+        });
+    }
     // No report at all would plan as if nothing were damaged: refused, not read as "no damage".
     if out.is_empty() {
         return Err(IngestError::Io {
             path,
             source: std::io::Error::other(
-                "the damage reports layer holds no reports (no features): a plan would treat \
-                 every road as undamaged; give at least one report, or plan without \
-                 --damage-points",
+                "the damage reports layer holds no reports (no features, or a header and no \
+                 rows): a plan would treat every road as undamaged; give at least one report, or \
+                 plan without --damage-points",
             ),
         });
     }
-    let (sha256, bytes) =
-        HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
-            path: path.clone(),
-            source,
-        })?;
-    let rec = InputRecord {
-        role: "damage reports".into(),
-        path: path.display().to_string(),
-        bytes,
-        sha256,
-        deleted_records: 0,
-    };
-    Ok((out, rec))
+    Ok((out, layer.input))
 }
 
 /// Applies each report to the nearest road within `max_m` metres.

@@ -1,30 +1,19 @@
-//! Critical sites (hospitals, shelters, depots, water plants): points from GeoJSON or CSV.
+//! Critical sites (hospitals, shelters, depots, water plants): points or outlines from any point
+//! layer format ([`super::points`]) or an OpenStreetMap extract, with their ids, names and
+//! priorities.
 
 use super::IngestError;
-use super::coords::Coords;
-use super::geojson::{ReadFailure, read_collection};
 use super::outline::Outline;
-use super::source::{HashingReader, InputRecord, Source};
+use super::points::{PointSpec, read_points};
+use super::source::{InputRecord, Source};
 use serde_json::{Map, Value};
 use std::collections::HashMap;
 use std::path::Path;
 
+pub use super::points::{LAT_COLUMNS, LON_COLUMNS, reads_as_csv};
+
 /// Property names tried for a site's id when no `--site-id-field` is given (after the GeoJSON `id`).
 pub const SITE_ID_FIELDS: &[&str] = &["site_id", "id", "ID", "fid", "FID", "name", "NAME"];
-/// Column names tried for longitude in CSV files.
-pub const LON_COLUMNS: &[&str] = &[
-    "lon",
-    "lng",
-    "long",
-    "longitude",
-    "x",
-    "LON",
-    "Longitude",
-    "X",
-];
-/// Column names tried for latitude in CSV files.
-pub const LAT_COLUMNS: &[&str] = &["lat", "latitude", "y", "LAT", "Latitude", "Y"];
-
 /// How sites are read.
 #[derive(Debug, Clone, Default)]
 pub struct SiteSettings {
@@ -96,23 +85,7 @@ impl SiteDefaults {
     }
 }
 
-/// The sites file's extension, lower case: it decides the format (`csv`/`txt` CSV, `shp`
-/// Shapefile, else GeoJSON).
-fn extension(source: &Source) -> Option<String> {
-    source
-        .display_path()
-        .extension()
-        .and_then(|e| e.to_str())
-        .map(|e| e.to_ascii_lowercase())
-}
-
-/// True when the sites are read as CSV (the only format with lon/lat columns).
-pub fn reads_as_csv(source: &Source) -> bool {
-    matches!(extension(source).as_deref(), Some("csv") | Some("txt"))
-}
-
-/// Reads sites from GeoJSON (Point features) or CSV (lon/lat columns, header required), by
-/// extension. A layer with no sites is refused: a plan for nothing would look like a plan.
+/// Reads sites from any point layer format or an OpenStreetMap extract, by the file's name. A layer with no sites is refused: a plan for nothing would look like a plan.
 pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
     let layer = read_sites_any(source, settings)?;
     if layer.sites.is_empty() {
@@ -127,112 +100,62 @@ pub fn read_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     Ok(layer)
 }
 
+impl SiteSettings {
+    /// How the generic point reader reads a sites layer: its words, options and choices.
+    pub fn point_spec(&self) -> PointSpec {
+        PointSpec {
+            kind: "site",
+            role: "sites",
+            crs_flag: "--sites-crs",
+            delimiter_flag: "--sites-delimiter",
+            layer_flag: "--sites-layer",
+            column_flags: "--lon-column/--lat-column",
+            polygons: true,
+            crs: self.crs.clone(),
+            delimiter: self.delimiter,
+            layer: self.layer.clone(),
+            lon_column: self.lon_column.clone(),
+            lat_column: self.lat_column.clone(),
+            number_columns: vec![
+                self.priority_field
+                    .clone()
+                    .unwrap_or_else(|| "priority".into()),
+            ],
+        }
+    }
+}
+
 fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer, IngestError> {
-    let path = source.display_path();
-    let ext = extension(source);
-    if ext.as_deref() == Some("shp") {
-        return read_shapefile_sites(&path, settings);
+    if super::reader::Format::of(source) == super::reader::Format::OsmPbf {
+        return super::osm_sites::read_osm_sites(source, settings);
     }
-    match super::reader::Format::of(source) {
-        super::reader::Format::OsmPbf => return super::osm_sites::read_osm_sites(source, settings),
-        super::reader::Format::GeoPackage => {
-            return super::layered::read_gpkg_sites(source, settings);
-        }
-        _ => {}
-    }
-    let mut reader = source.open()?;
-    let (mut sites, defaults) = match ext.as_deref() {
-        Some("csv") | Some("txt") => super::sites_csv::read_csv(&mut reader, &path, settings)?,
-        _ => read_geojson(&mut reader, &path, settings)?,
-    };
-    let (sha256, bytes) =
-        HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
-            path: path.clone(),
-            source,
-        })?;
-    if let Some(c) = &settings.crs {
-        let crs = super::crs::Crs::from_user(c).map_err(|message| IngestError::Crs {
-            path: path.clone(),
-            message,
-        })?;
-        convert(&path, &crs, &mut sites)?;
-    } else {
-        for s in &sites {
-            check_lonlat(&path, s.index, s.pos)?;
-            for p in s
-                .outline
-                .iter()
-                .flat_map(|o| o.polygons.iter().flatten().flatten())
-            {
-                check_lonlat(&path, s.index, *p)?;
-            }
-        }
+    let layer = read_points(source, &settings.point_spec())?;
+    let path = layer.path;
+    let mut defaults = SiteDefaults::default();
+    let mut sites = Vec::with_capacity(layer.features.len());
+    for f in layer.features {
+        let mut site = make_site(
+            &path,
+            f.index,
+            f.pos,
+            f.attributes,
+            f.member_id.as_ref(),
+            settings,
+            &mut defaults,
+        )?;
+        site.outline = f.outline;
+        sites.push(site);
     }
     finish_outlines(&path, &mut sites)?;
     check_unique(&path, &sites)?;
     Ok(SiteLayer {
         sites,
-        input: InputRecord {
-            role: "sites".into(),
-            path: path.display().to_string(),
-            bytes,
-            sha256,
-            deleted_records: 0,
-        },
+        input: layer.input,
         defaults,
     })
 }
 
-pub(super) fn feature_err(
-    path: &Path,
-    feature: usize,
-    field: Option<&str>,
-    message: String,
-) -> IngestError {
-    IngestError::Feature {
-        path: path.to_path_buf(),
-        feature,
-        field: field.map(str::to_string),
-        message,
-    }
-}
-
-fn read_geojson<R: std::io::Read>(
-    reader: R,
-    path: &Path,
-    s: &SiteSettings,
-) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
-    let mut sites = Vec::new();
-    let mut defaults = SiteDefaults::default();
-    // Keep every property: sites are few, and their attributes go to the outputs.
-    read_collection_all(reader, |index, f, props| {
-        let (pos, outline) = site_shape(f.geometry_type.as_deref(), &f.coords)
-            .map_err(|m| feature_err(path, index, Some("geometry"), m))?;
-        let mut site = make_site(path, index, pos, props, f.id.as_ref(), s, &mut defaults)?;
-        site.outline = outline;
-        sites.push(site);
-        Ok(())
-    })
-    .map_err(|e| IngestError::from_read(path, e))?;
-    Ok((sites, defaults))
-}
-
-/// Like [`read_collection`] but hands every feature's full property map to the callback.
-fn read_collection_all<R, F>(reader: R, mut sink: F) -> Result<(), ReadFailure<IngestError>>
-where
-    R: std::io::Read,
-    F: FnMut(usize, super::geojson::RawFeature, Map<String, Value>) -> Result<(), IngestError>,
-{
-    read_collection(
-        reader,
-        &[super::geojson::ALL_PROPERTIES.to_string()],
-        |i, mut f| {
-            let props: Map<String, Value> = std::mem::take(&mut f.props).into_iter().collect();
-            sink(i, f, props)
-        },
-    )
-    .map(|_| ())
-}
+pub(super) use super::points::feature_err;
 
 /// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
 /// such as `site_id` or `name`, else `site-N`; the display name and the priority likewise.
@@ -318,22 +241,6 @@ fn priority(
     }
 }
 
-pub(super) fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(), IngestError> {
-    if p[0].is_finite() && p[1].is_finite() && p[0].abs() <= 180.0 && p[1].abs() <= 90.0 {
-        Ok(())
-    } else {
-        Err(feature_err(
-            path,
-            index,
-            Some("geometry"),
-            format!(
-                "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90)",
-                p[0], p[1]
-            ),
-        ))
-    }
-}
-
 pub(super) fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestError> {
     let mut seen: HashMap<&str, usize> = HashMap::new();
     for s in sites {
@@ -352,42 +259,6 @@ pub(super) fn check_unique(path: &Path, sites: &[Site]) -> Result<(), IngestErro
     Ok(())
 }
 
-/// Converts site positions and outlines from `crs` to WGS84 longitude/latitude.
-pub(super) fn convert(
-    path: &Path,
-    crs: &super::crs::Crs,
-    sites: &mut [Site],
-) -> Result<(), IngestError> {
-    for s in sites.iter_mut() {
-        let mut points: Vec<&mut [f64; 2]> = vec![&mut s.pos];
-        points.extend(s.outline.iter_mut().flat_map(|o| o.positions_mut()));
-        for p in points {
-            convert_one(path, crs, s.index, p)?;
-        }
-    }
-    Ok(())
-}
-
-fn convert_one(
-    path: &Path,
-    crs: &super::crs::Crs,
-    index: usize,
-    pos: &mut [f64; 2],
-) -> Result<(), IngestError> {
-    *pos = crs.to_lonlat(*pos).ok_or_else(|| {
-        feature_err(
-            path,
-            index,
-            Some("geometry"),
-            format!(
-                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
-                pos[0], pos[1], crs.name
-            ),
-        )
-    })?;
-    Ok(())
-}
-
 /// Checks every polygon site's outline (in lon/lat) and places the site at its point inside.
 pub(super) fn finish_outlines(path: &Path, sites: &mut [Site]) -> Result<(), IngestError> {
     for s in sites.iter_mut() {
@@ -398,121 +269,4 @@ pub(super) fn finish_outlines(path: &Path, sites: &mut [Site]) -> Result<(), Ing
         }
     }
     Ok(())
-}
-
-/// A site's point, or its outline, from a feature's geometry in GeoJSON's layout (the GeoJSON
-/// and GeoPackage readers give it so); the outline's first position stands in for the point
-/// until [`finish_outlines`] places it.
-pub(super) fn site_shape(
-    kind: Option<&str>,
-    c: &Coords,
-) -> Result<([f64; 2], Option<Outline>), String> {
-    let rings = |from: usize, to: usize| -> Vec<Vec<[f64; 2]>> {
-        (from..to)
-            .map(|r| {
-                let start = if r == 0 { 0 } else { c.parts[r - 1] };
-                c.pos[start..c.parts[r]].to_vec()
-            })
-            .collect()
-    };
-    let polygons = match (kind, c.height) {
-        (Some("Point"), 1) => return Ok((c.pos[0], None)),
-        (Some(k), 0) => return Err(format!("the site's {k} is empty")),
-        (Some("Polygon"), 3) => vec![rings(0, c.parts.len())],
-        (Some("MultiPolygon"), 4) => {
-            let mut start = 0;
-            c.groups
-                .iter()
-                .map(|&end| {
-                    let p = rings(start, end);
-                    start = end;
-                    p
-                })
-                .collect()
-        }
-        (Some(other), _) => {
-            return Err(format!(
-                "sites must be Points, Polygons or MultiPolygons, found {other}"
-            ));
-        }
-        (None, _) => return Err("the site has no geometry".into()),
-    };
-    Ok((c.pos[0], Some(Outline { polygons })))
-}
-
-/// Sites from a point Shapefile, in the CRS of its `.prj` (or `--sites-crs`).
-fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, IngestError> {
-    use shapefile::Shape;
-    let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
-    let mut reader = super::shapefile::open_set(path)?;
-    let mut sites = Vec::new();
-    let mut defaults = SiteDefaults::default();
-    let numbers = reader.numeric_text();
-    for (index, item) in reader.records() {
-        let (shape, record) =
-            item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
-        let (pos, outline) = match shape {
-            Shape::Point(p) => ([p.x, p.y], None),
-            Shape::PointM(p) => ([p.x, p.y], None),
-            Shape::PointZ(p) => ([p.x, p.y], None),
-            Shape::Polygon(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
-            Shape::PolygonM(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
-            Shape::PolygonZ(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
-            other => {
-                return Err(feature_err(
-                    path,
-                    index,
-                    Some("geometry"),
-                    format!(
-                        "sites must be Points or Polygons, found {}",
-                        other.shapetype()
-                    ),
-                ));
-            }
-        };
-        let mut attributes = Map::new();
-        for (k, v) in record {
-            let value = numbers.value(index, &k, &v)?;
-            attributes.insert(k, value);
-        }
-        let mut site = make_site(path, index, pos, attributes, None, s, &mut defaults)?;
-        site.outline = outline;
-        sites.push(site);
-    }
-    convert(path, &crs, &mut sites)?;
-    finish_outlines(path, &mut sites)?;
-    check_unique(path, &sites)?;
-    Ok(SiteLayer {
-        sites,
-        input: InputRecord {
-            deleted_records: reader.deleted(),
-            ..super::shapefile::fingerprint(path, "sites")?
-        },
-        defaults,
-    })
-}
-
-/// The outline of a Shapefile polygon: each outer ring starts a polygon, the holes after it
-/// belong to it (as for damage zones).
-fn shapefile_outline(rings: Vec<(bool, Vec<[f64; 2]>)>) -> ([f64; 2], Option<Outline>) {
-    let mut polygons: Vec<Vec<Vec<[f64; 2]>>> = Vec::new();
-    for (outer, ring) in rings {
-        match polygons.last_mut() {
-            Some(p) if !outer => p.push(ring),
-            _ => polygons.push(vec![ring]),
-        }
-    }
-    let first = polygons
-        .first()
-        .and_then(|p| p.first())
-        .and_then(|r| r.first())
-        .copied()
-        .unwrap_or([0.0, 0.0]);
-    (first, Some(Outline { polygons }))
 }

@@ -1,18 +1,11 @@
-//! Sites from CSV: a header line, then one row per site with longitude and latitude columns.
+//! CSV separators and numbers, for every CSV point layer ([`super::csv_points`]).
 //!
 //! The separator is a comma, a semicolon or a tab: told from the header line (the one of the
-//! three it holds outside quotes), or given with `--sites-delimiter`. A header holding more than
-//! one of them is refused (say which with `--sites-delimiter`). With a semicolon or a tab, a
-//! number may be written with a decimal comma ("12,5" is 12.5, as spreadsheets in much of Europe
-//! export it): in coordinates and the priority. A number with both a point and a comma ("1.234,5")
-//! is refused rather than guessed. A UTF-8 byte-order mark is skipped; fields may be quoted ("…",
-//! a quote inside written twice), so a name may hold the separator.
-
-use super::IngestError;
-use super::sites::{LAT_COLUMNS, LON_COLUMNS, Site, SiteDefaults, SiteSettings, feature_err};
-use serde_json::Map;
-use std::io::BufRead;
-use std::path::Path;
+//! three it holds outside quotes), or given with the layer's option (`--sites-delimiter`,
+//! `--damage-points-delimiter`). A header holding more than one of them is refused. With a
+//! semicolon or a tab, a number may be written with a decimal comma ("12,5" is 12.5, as
+//! spreadsheets in much of Europe export it), one decimal mark per file ([`super::csv_rfc`]). A
+//! number with both a point and a comma ("1.234,5") is refused rather than guessed.
 
 /// The separators told from a header line, with their names for messages.
 pub const DELIMITERS: &[(u8, &str)] = &[(b',', "comma"), (b';', "semicolon"), (b'\t', "tab")];
@@ -86,149 +79,6 @@ pub fn number(cell: &str, decimal_comma: bool) -> Option<f64> {
         return super::value::number(&format!("{a}.{b}"));
     }
     super::value::number(t)
-}
-
-/// Reads CSV sites (coordinates in the layer's CRS, converted by the caller).
-pub(super) fn read_csv<R: BufRead>(
-    mut reader: R,
-    path: &Path,
-    s: &SiteSettings,
-) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
-    let io = |e: std::io::Error| IngestError::Io {
-        path: path.to_path_buf(),
-        source: e,
-    };
-    let refuse = |m: String| io(std::io::Error::other(m));
-    let delimiter = match s.delimiter {
-        Some(d) => d,
-        None => {
-            let head = reader.fill_buf().map_err(io)?;
-            let line_end = head.iter().position(|&b| b == b'\n').unwrap_or(head.len());
-            detect(&head[..line_end]).map_err(|m| refuse(format!("line 1: {m}")))?
-        }
-    };
-    let sep = delimiter_name(delimiter);
-    let decimal_comma = delimiter != b',';
-    let mut defaults = SiteDefaults::default();
-    let mut rdr = csv::ReaderBuilder::new()
-        .delimiter(delimiter)
-        .flexible(false)
-        .from_reader(super::limits::LineLimit::new(
-            reader,
-            super::limits::MAX_CSV_ROW,
-        ));
-    let csv_err = |e: csv::Error| {
-        let line = e.position().map(|p| p.line()).unwrap_or(0);
-        // Not `Syntax`, whose message says GeoJSON.
-        let message = match e.kind() {
-            csv::ErrorKind::UnequalLengths {
-                expected_len, len, ..
-            } => format!(
-                "line {line} has {len} field(s) where the header has {expected_len} (separated by \
-                 {sep}): a row with a separator of another kind, or a missing or extra field"
-            ),
-            _ => format!("not valid CSV at line {line}: {e}"),
-        };
-        refuse(message)
-    };
-    let headers = rdr.headers().map_err(csv_err)?.clone();
-    if headers.len() == 1
-        && let Some(other) = ['|', ';', '\t', ',']
-            .iter()
-            .find(|c| headers[0].contains(**c))
-    {
-        return Err(refuse(format!(
-            "the header is one column holding {other:?}, and the columns are separated by {sep}: \
-             reknit reads CSV separated by a comma, a semicolon or a tab (--sites-delimiter); save \
-             it again with one of those"
-        )));
-    }
-    // A column name given twice: the position would come from one column and the attribute
-    // written from the other, so the file is refused rather than one read silently.
-    for (i, h) in headers.iter().enumerate() {
-        if let Some(j) = headers.iter().take(i).position(|g| g.trim() == h.trim()) {
-            return Err(IngestError::Feature {
-                path: path.to_path_buf(),
-                feature: 0,
-                field: Some(h.trim().to_string()),
-                message: format!(
-                    "the header names the column {:?} twice (columns {} and {}): rename one",
-                    h.trim(),
-                    j + 1,
-                    i + 1
-                ),
-            });
-        }
-    }
-    let find =
-        |given: &Option<String>, defaults: &[&str], what: &str| -> Result<usize, IngestError> {
-            let names: Vec<&str> = match given {
-                Some(g) => vec![g.as_str()],
-                None => defaults.to_vec(),
-            };
-            names
-                .iter()
-                .find_map(|n| headers.iter().position(|h| h.trim() == *n))
-                .ok_or_else(|| IngestError::Feature {
-                    path: path.to_path_buf(),
-                    feature: 0,
-                    field: Some(names.join("|")),
-                    message: format!(
-                        "no {what} column; the columns are: {}",
-                        headers.iter().collect::<Vec<_>>().join(", ")
-                    ),
-                })
-        };
-    let lon_i = find(&s.lon_column, LON_COLUMNS, "longitude")?;
-    let lat_i = find(&s.lat_column, LAT_COLUMNS, "latitude")?;
-    let priority = s.priority_field.as_deref().unwrap_or("priority");
-    let mut sites = Vec::new();
-    for (index, rec) in rdr.records().enumerate() {
-        let rec = rec.map_err(csv_err)?;
-        let line = rec.position().map_or(0, |p| p.line());
-        let num = |i: usize| -> Result<f64, IngestError> {
-            let v = rec.get(i).unwrap_or("").trim();
-            number(v, decimal_comma).ok_or_else(|| {
-                let hint = if decimal_comma && v.contains(',') && v.contains('.') {
-                    " (both a point and a comma: write one decimal mark only)"
-                } else if !decimal_comma && v.contains(',') {
-                    " (a decimal comma is read only in files separated by a semicolon or a tab)"
-                } else {
-                    ""
-                };
-                feature_err(
-                    path,
-                    index,
-                    Some(&headers[i]),
-                    format!("line {line}: {v:?} is not a number{hint}"),
-                )
-            })
-        };
-        let pos = [num(lon_i)?, num(lat_i)?];
-        let mut attributes = Map::new();
-        for (i, (h, v)) in headers.iter().zip(rec.iter()).enumerate() {
-            let read_as_number = i == lon_i || i == lat_i || h.trim() == priority;
-            // Coordinates and the priority written with a decimal comma are typed as the same
-            // cells written with a point.
-            let value = match number(v, decimal_comma) {
-                Some(_) if decimal_comma && read_as_number && v.contains(',') => {
-                    super::value::cell(&v.replacen(',', ".", 1))
-                }
-                _ => super::value::cell(v),
-            };
-            attributes.insert(h.to_string(), value);
-        }
-        sites.push(super::sites::make_site(
-            path,
-            index,
-            pos,
-            attributes,
-            None,
-            s,
-            &mut defaults,
-        )?);
-    }
-    Ok((sites, defaults))
 }
 
 #[cfg(test)]

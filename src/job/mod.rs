@@ -85,6 +85,8 @@ pub struct PlanJob {
     pub reports: Option<Source>,
     /// How a field report's damage is read (`--damage-points-field`).
     pub report_damage: crate::ingest::damage::DamageRule,
+    /// How the field reports layers are read (`--damage-points-crs`, `-delimiter`, `-layer`).
+    pub report_settings: crate::ingest::reports::ReportSettings,
     /// Largest distance from a field report to the road it is matched to, metres.
     pub point_match_distance_m: f64,
     /// Repair-metres a crew completes per day; spreads the repairs over crews and days (none without it).

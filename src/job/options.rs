@@ -90,6 +90,12 @@ pub struct Options {
     pub damage_points: Option<Source>,
     /// `--point-match-distance`, metres (default 50).
     pub point_match_distance_m: Option<f64>,
+    /// `--damage-points-crs`.
+    pub damage_points_crs: Option<String>,
+    /// `--damage-points-delimiter`: `,`, `;` or `tab` (default: told from the header line).
+    pub damage_points_delimiter: Option<String>,
+    /// `--damage-points-layer`.
+    pub damage_points_layer: Option<String>,
     /// `--budget`, repair-metres.
     pub budget: Option<f64>,
     /// `--redundancy`.
@@ -159,6 +165,9 @@ impl Options {
             zones_crs: None,
             damage_points: None,
             point_match_distance_m: None,
+            damage_points_crs: None,
+            damage_points_delimiter: None,
+            damage_points_layer: None,
             budget: None,
             redundancy: false,
             crew_capacity: None,

@@ -11,7 +11,7 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
     let sites_plan = job.sites.is_some() && !job.whole_network;
     let when = |used: bool, v: serde_json::Value| if used { v } else { serde_json::Value::Null };
     let evidence = job.zones.is_some() || job.has_reports();
-    serde_json::json!({
+    let mut all = serde_json::json!({
         "name": job.name,
         "snap_m": s.snap_m,
         "damage_field": when(s.category_field.is_none(), s.damage.field.clone().into()),
@@ -60,5 +60,16 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "structure_field": s.structure_field,
         "attribution": s.attribution,
         "output_format": job.output_format.name(),
-    })
+    });
+    // Apart: one macro call this long reaches the compiler's recursion limit.
+    let r = &job.report_settings;
+    let reports = serde_json::json!({
+        "damage_points_crs": r.crs,
+        "damage_points_delimiter": r.delimiter.map(crate::ingest::sites_csv::delimiter_name),
+        "damage_points_layer": r.layer,
+    });
+    if let (Some(all), serde_json::Value::Object(more)) = (all.as_object_mut(), reports) {
+        all.extend(more);
+    }
+    all
 }

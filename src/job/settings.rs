@@ -129,6 +129,7 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
     let road_settings = typed_road_settings(&o.road)?;
     check_crs("--zones-crs", o.zones_crs.as_deref())?;
     check_crs("--sites-crs", o.sites_crs.as_deref())?;
+    check_crs("--damage-points-crs", o.damage_points_crs.as_deref())?;
     let job = PlanJob {
         roads: o.roads.clone(),
         more_roads: o.more_roads.clone(),
@@ -180,6 +181,16 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             default: 1.0,
             closed_value: o.road.closed_value.clone(),
         },
+        report_settings: crate::ingest::reports::ReportSettings {
+            crs: o.damage_points_crs.clone(),
+            delimiter: o
+                .damage_points_delimiter
+                .as_deref()
+                .map(crate::ingest::sites_csv::parse_delimiter)
+                .transpose()
+                .map_err(|m| refuse("--damage-points-delimiter", m))?,
+            layer: o.damage_points_layer.clone(),
+        },
         zones_crs: o.zones_crs.clone(),
         zones_layer: o.zones_layer.clone(),
         reports: o.damage_points.clone(),
@@ -213,6 +224,10 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
     let sites_plan = o.sites.is_some() && !o.whole_network;
     let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
     let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
+    // Replan reads the earlier rounds' reports again with the same choices.
+    let report_files = || o.damage_points.iter().chain(&o.earlier_damage_points);
+    let csv_points = report_files().any(reads_as_csv);
+    let layered_points = report_files().any(|s| crate::ingest::reader::Format::of(s).has_layers());
     let format = |s: &Option<crate::ingest::source::Source>, f| {
         s.as_ref()
             .is_some_and(|s| crate::ingest::reader::Format::of(s) == f)
@@ -224,7 +239,26 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 24] = [
+    let rules: [(&'static str, bool, bool, &'static str); 27] = [
+        (
+            "--damage-points-crs",
+            o.damage_points_crs.is_some(),
+            points,
+            "this is the field reports' CRS: give --damage-points",
+        ),
+        (
+            "--damage-points-delimiter",
+            o.damage_points_delimiter.is_some(),
+            csv_points,
+            "only a CSV damage reports file (.csv or .txt) has a field separator",
+        ),
+        (
+            "--damage-points-layer",
+            o.damage_points_layer.is_some(),
+            layered_points,
+            "only a GeoPackage or zipped Shapefile damage reports file (--damage-points \
+             FILE.gpkg or FILE.zip) holds layers to choose from",
+        ),
         (
             "--sites-delimiter",
             o.sites_delimiter.is_some(),
@@ -234,8 +268,11 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
         (
             "--sites-layer",
             o.sites_layer.is_some(),
-            format(&o.sites, GeoPackage),
-            "only a GeoPackage sites file (--sites FILE.gpkg) holds layers to choose from",
+            o.sites
+                .as_ref()
+                .is_some_and(|s| crate::ingest::reader::Format::of(s).has_layers()),
+            "only a GeoPackage or zipped Shapefile sites file (--sites FILE.gpkg or FILE.zip) \
+             holds layers to choose from",
         ),
         (
             "--zones-layer",

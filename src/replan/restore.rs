@@ -223,6 +223,18 @@ pub const SETTINGS: &[(&str, Set)] = &[
         o.zones_layer = text(v)?;
         Ok(())
     }),
+    ("damage_points_crs", |o, v| {
+        o.damage_points_crs = text(v)?;
+        Ok(())
+    }),
+    ("damage_points_delimiter", |o, v| {
+        o.damage_points_delimiter = text(v)?;
+        Ok(())
+    }),
+    ("damage_points_layer", |o, v| {
+        o.damage_points_layer = text(v)?;
+        Ok(())
+    }),
     ("structure_field", |o, v| {
         o.road.structure_field = text(v)?;
         Ok(())

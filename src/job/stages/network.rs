@@ -97,7 +97,7 @@ pub(in crate::job) fn build(
         let _s = progress.stage("applying damage reports");
         let mut reports = Vec::new();
         for src in sources {
-            let (mut more, rec) = read_reports(src, &job.report_damage)?;
+            let (mut more, rec) = read_reports(src, &job.report_damage, &job.report_settings)?;
             // Feature indices count on through the layers of one batch, in round order.
             let offset = reports.len() + report_figures.as_ref().map_or(0, |f| f.read);
             more.iter_mut().for_each(|r| r.index += offset);
