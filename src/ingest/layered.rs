@@ -50,15 +50,6 @@ pub fn read_gpkg_sites(source: &Source, s: &SiteSettings) -> Result<SiteLayer, I
         sites.push(site);
         Ok(())
     })?;
-    if let Some(n) = info.skipped.get("empty geometry") {
-        return Err(IngestError::Io {
-            path,
-            source: std::io::Error::other(format!(
-                "{n} feature(s) of the sites layer have an empty geometry; a site needs a point \
-                 or a polygon"
-            )),
-        });
-    }
     convert(&path, &crs, &mut sites)?;
     finish_outlines(&path, &mut sites)?;
     check_unique(&path, &sites)?;
@@ -87,15 +78,6 @@ pub fn read_gpkg_zones(
     let info = src.features(&wanted, &mut |index, f| {
         add_zone_feature(&path, index, &f, rule, conv, &mut zones, &mut defaulted)
     })?;
-    if let Some(n) = info.skipped.get("empty geometry") {
-        return Err(IngestError::Io {
-            path,
-            source: std::io::Error::other(format!(
-                "{n} feature(s) of the damage zones layer have an empty geometry; a damage zone \
-                 needs a polygon"
-            )),
-        });
-    }
     Ok(ZoneLayer {
         zones,
         input: info.input,

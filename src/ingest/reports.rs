@@ -71,7 +71,11 @@ pub fn read_reports(
             if !(p[0].abs() <= 180.0 && p[1].abs() <= 90.0) {
                 return Err(fail(
                     "geometry",
-                    format!("({}, {}) is not a longitude/latitude", p[0], p[1]),
+                    format!(
+                        "{} is not a longitude/latitude in WGS84 range (±180, ±90): damage \
+                         reports are read as WGS84 longitude/latitude; reproject the layer",
+                        crate::decimal::position(p)
+                    ),
                 ));
             }
             let damage = rule

@@ -141,8 +141,11 @@ fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
         _ => {}
     }
     let mut reader = source.open()?;
-    let (mut sites, defaults) = match ext.as_deref() {
-        Some("csv") | Some("txt") => super::sites_csv::read_csv(&mut reader, &path, settings)?,
+    let (mut sites, defaults, declared) = match ext.as_deref() {
+        Some("csv") | Some("txt") => {
+            let (sites, defaults) = super::sites_csv::read_csv(&mut reader, &path, settings)?;
+            (sites, defaults, None)
+        }
         _ => read_geojson(&mut reader, &path, settings)?,
     };
     let (sha256, bytes) =
@@ -155,6 +158,8 @@ fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
             path: path.clone(),
             message,
         })?;
+        convert(&path, &crs, &mut sites)?;
+    } else if let Some(crs) = declared.filter(|c| !c.is_wgs84()) {
         convert(&path, &crs, &mut sites)?;
     } else {
         for s in &sites {
@@ -197,15 +202,16 @@ pub(super) fn feature_err(
     }
 }
 
+/// Sites from GeoJSON, with the layer's own CRS (its legacy `crs` member, read as for roads).
 fn read_geojson<R: std::io::Read>(
     reader: R,
     path: &Path,
     s: &SiteSettings,
-) -> Result<(Vec<Site>, SiteDefaults), IngestError> {
+) -> Result<(Vec<Site>, SiteDefaults, Option<super::crs::Crs>), IngestError> {
     let mut sites = Vec::new();
     let mut defaults = SiteDefaults::default();
     // Keep every property: sites are few, and their attributes go to the outputs.
-    read_collection_all(reader, |index, f, props| {
+    let member = read_collection_all(reader, |index, f, props| {
         let (pos, outline) = site_shape(f.geometry_type.as_deref(), &f.coords)
             .map_err(|m| feature_err(path, index, Some("geometry"), m))?;
         let mut site = make_site(path, index, pos, props, f.id.as_ref(), s, &mut defaults)?;
@@ -214,11 +220,19 @@ fn read_geojson<R: std::io::Read>(
         Ok(())
     })
     .map_err(|e| IngestError::from_read(path, e))?;
-    Ok((sites, defaults))
+    // --sites-crs overrides the member, as --crs does a road layer's.
+    let declared = match (&s.crs, member) {
+        (None, Some(m)) => Some(super::crs::crs_member(path, Some(&m), "--sites-crs")?),
+        _ => None,
+    };
+    Ok((sites, defaults, declared))
 }
 
 /// Like [`read_collection`] but hands every feature's full property map to the callback.
-fn read_collection_all<R, F>(reader: R, mut sink: F) -> Result<(), ReadFailure<IngestError>>
+fn read_collection_all<R, F>(
+    reader: R,
+    mut sink: F,
+) -> Result<Option<Value>, ReadFailure<IngestError>>
 where
     R: std::io::Read,
     F: FnMut(usize, super::geojson::RawFeature, Map<String, Value>) -> Result<(), IngestError>,
@@ -231,7 +245,7 @@ where
             sink(i, f, props)
         },
     )
-    .map(|_| ())
+    .map(|info| info.crs)
 }
 
 /// A site from its attributes: the id from `--site-id-field`, else the GeoJSON `id`, else a field
@@ -327,8 +341,9 @@ pub(super) fn check_lonlat(path: &Path, index: usize, p: [f64; 2]) -> Result<(),
             index,
             Some("geometry"),
             format!(
-                "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90)",
-                p[0], p[1]
+                "{} is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, {}",
+                crate::decimal::position(p),
+                super::crs::hint("--sites-crs")
             ),
         ))
     }
@@ -380,8 +395,8 @@ fn convert_one(
             index,
             Some("geometry"),
             format!(
-                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
-                pos[0], pos[1], crs.name
+                "{} cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --sites-crs and the layer's units",
+                crate::decimal::position(*pos), crs.name
             ),
         )
     })?;
@@ -443,27 +458,27 @@ pub(super) fn site_shape(
 /// Sites from a point Shapefile, in the CRS of its `.prj` (or `--sites-crs`).
 fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, IngestError> {
     use shapefile::Shape;
-    let crs = super::shapefile::layer_crs(path, s.crs.as_deref())?;
+    let crs = super::shapefile::layer_crs(path, s.crs.as_deref(), "--sites-crs")?;
     let mut reader = super::shapefile::open_set(path)?;
     let mut sites = Vec::new();
     let mut defaults = SiteDefaults::default();
     let numbers = reader.numeric_text();
+    let fields = reader.fields();
     for (index, item) in reader.records() {
-        let (shape, record) =
-            item.map_err(|e| feature_err(path, index, None, format!("unreadable record: {e}")))?;
+        let (shape, record) = item.map_err(|e| {
+            let (field, message) = super::set_errors::record(path, &fields, e);
+            feature_err(path, index, field.as_deref(), message)
+        })?;
         let (pos, outline) = match shape {
             Shape::Point(p) => ([p.x, p.y], None),
             Shape::PointM(p) => ([p.x, p.y], None),
             Shape::PointZ(p) => ([p.x, p.y], None),
-            Shape::Polygon(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
-            Shape::PolygonM(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
-            Shape::PolygonZ(p) => {
-                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-            }
+            Shape::Polygon(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
+            Shape::PolygonM(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
+            Shape::PolygonZ(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
             other => {
                 return Err(feature_err(
                     path,
@@ -498,21 +513,16 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
     })
 }
 
-/// The outline of a Shapefile polygon: each outer ring starts a polygon, the holes after it
-/// belong to it (as for damage zones).
-fn shapefile_outline(rings: Vec<(bool, Vec<[f64; 2]>)>) -> ([f64; 2], Option<Outline>) {
-    let mut polygons: Vec<Vec<Vec<[f64; 2]>>> = Vec::new();
-    for (outer, ring) in rings {
-        match polygons.last_mut() {
-            Some(p) if !outer => p.push(ring),
-            _ => polygons.push(vec![ring]),
-        }
-    }
+/// The outline of a Shapefile polygon, its rings assembled by [`super::zones_shp::assemble`].
+fn shapefile_outline(
+    rings: Vec<(bool, Vec<[f64; 2]>)>,
+) -> Result<([f64; 2], Option<Outline>), String> {
+    let polygons = super::zones_shp::assemble(rings)?;
     let first = polygons
         .first()
         .and_then(|p| p.first())
         .and_then(|r| r.first())
         .copied()
         .unwrap_or([0.0, 0.0]);
-    (first, Some(Outline { polygons }))
+    Ok((first, Some(Outline { polygons })))
 }
