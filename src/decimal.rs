@@ -175,7 +175,14 @@ mod tests {
         assert_eq!(shown(-0.0), "0");
         assert_eq!(shown(5e-324), "5e-324");
         assert_eq!(shown(f64::NAN), "NaN");
-        for x in [1e308, -1e-300, 123456789012345.67, 0.1 + 0.2, f64::MAX, f64::MIN_POSITIVE] {
+        for x in [
+            1e308,
+            -1e-300,
+            123456789012345.67,
+            0.1 + 0.2,
+            f64::MAX,
+            f64::MIN_POSITIVE,
+        ] {
             let t = shown(x);
             assert!(t.len() <= 25, "{t}");
             assert_eq!(t.parse::<f64>().unwrap(), x, "{t} reads back");

@@ -120,15 +120,40 @@ fn removed_lines_leave_no_junction_behind() {
     let road = vec![pt(0., 0.), pt(100., 0.)];
     let cases: [(&str, Vec<Vec<[f64; 2]>>, f64); 5] = [
         // A part whose two vertices are identical, far from the road, snapping off.
-        ("zero length", vec![road.clone(), vec![pt(500., 500.), pt(500., 500.)]], 0.0),
+        (
+            "zero length",
+            vec![road.clone(), vec![pt(500., 500.), pt(500., 500.)]],
+            0.0,
+        ),
         // A part shorter than the tolerance, far from the road.
-        ("collapsed by the tolerance", vec![road.clone(), vec![pt(500., 500.), pt(500.2, 500.)]], 0.5),
+        (
+            "collapsed by the tolerance",
+            vec![road.clone(), vec![pt(500., 500.), pt(500.2, 500.)]],
+            0.5,
+        ),
         // A one-vertex loop: its start and its end are one point.
-        ("self-loop of one point", vec![vec![pt(300., 0.), pt(300., 0.), pt(300., 0.)], road.clone()], 0.0),
+        (
+            "self-loop of one point",
+            vec![vec![pt(300., 0.), pt(300., 0.), pt(300., 0.)], road.clone()],
+            0.0,
+        ),
         // The same road twice, then a zero-length part at its end.
-        ("duplicate", vec![road.clone(), road.clone(), vec![pt(100., 0.), pt(100., 0.)]], 0.0),
+        (
+            "duplicate",
+            vec![road.clone(), road.clone(), vec![pt(100., 0.), pt(100., 0.)]],
+            0.0,
+        ),
         // A stub shorter than the tolerance past a junction (trimmed) beside a collapsed part.
-        ("trimmed", vec![road.clone(), vec![pt(50., 0.), pt(50., 50.)], vec![pt(100., 0.), pt(100.3, 0.)], vec![pt(700., 0.), pt(700., 0.)]], 0.5),
+        (
+            "trimmed",
+            vec![
+                road.clone(),
+                vec![pt(50., 0.), pt(50., 50.)],
+                vec![pt(100., 0.), pt(100.3, 0.)],
+                vec![pt(700., 0.), pt(700., 0.)],
+            ],
+            0.5,
+        ),
     ];
     for (what, lines, snap) in cases {
         let (n, s) = node(layer(&lines), snap);

@@ -174,9 +174,8 @@ impl Crs {
             return Ok(c);
         }
         let name = wkt_name(wkt).unwrap_or_else(|| "the .prj's CRS".into());
-        let proj = proj4wkt::wkt_to_projstring(wkt).map_err(|e| {
-            format!("cannot read the CRS {name:?}: {e}")
-        })?;
+        let proj = proj4wkt::wkt_to_projstring(wkt)
+            .map_err(|e| format!("cannot read the CRS {name:?}: {e}"))?;
         let datum = wkt_datum(wkt).unwrap_or_default();
         let mut note = None;
         let proj = if WGS84_LIKE.iter().any(|d| d.eq_ignore_ascii_case(&datum)) || datum.is_empty()
@@ -389,7 +388,10 @@ pub fn crs_member(
         .map(|c| format!("EPSG:{c}"));
     let name = crs
         .as_str()
-        .or_else(|| crs.pointer("/properties/name").and_then(serde_json::Value::as_str))
+        .or_else(|| {
+            crs.pointer("/properties/name")
+                .and_then(serde_json::Value::as_str)
+        })
         .map(str::to_string)
         .or(code_member)
         .unwrap_or_default();
@@ -514,19 +516,35 @@ mod tests {
         use serde_json::json;
         let p = std::path::Path::new("x.geojson");
         for (member, name) in [
-            (json!({"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32632"}}), "EPSG:32632"),
-            (json!({"type":"name","properties":{"name":"EPSG:32632"}}), "EPSG:32632"),
+            (
+                json!({"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32632"}}),
+                "EPSG:32632",
+            ),
+            (
+                json!({"type":"name","properties":{"name":"EPSG:32632"}}),
+                "EPSG:32632",
+            ),
             (json!("EPSG:32632"), "EPSG:32632"),
-            (json!({"type":"EPSG","properties":{"code":32632}}), "EPSG:32632"),
+            (
+                json!({"type":"EPSG","properties":{"code":32632}}),
+                "EPSG:32632",
+            ),
             (json!("urn:ogc:def:crs:OGC:1.3:CRS84"), "EPSG:4326"),
         ] {
             let c = crs_member(p, Some(&member), "--crs").unwrap();
             assert_eq!(c.name, name, "{member}");
         }
-        let e = crs_member(p, Some(&json!({"type":"name","properties":{"name":"my grid"}})), "--sites-crs")
-            .unwrap_err()
-            .to_string();
-        assert!(e.contains("--sites-crs EPSG:NNNN") && !e.contains("--crs "), "{e}");
+        let e = crs_member(
+            p,
+            Some(&json!({"type":"name","properties":{"name":"my grid"}})),
+            "--sites-crs",
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.contains("--sites-crs EPSG:NNNN") && !e.contains("--crs "),
+            "{e}"
+        );
         assert_eq!(option_for("damage zones"), "--zones-crs");
     }
 

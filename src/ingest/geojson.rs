@@ -244,8 +244,7 @@ fn io_fail<E>(e: std::io::Error, feature: Option<usize>) -> ReadFailure<E> {
 
 /// The message for a comma before a closing bracket: JSON has none (RFC 8259 §4, §5), and a
 /// reader that allowed it would accept files other tools refuse.
-pub(super) const TRAILING_COMMA: &str =
-    "a comma right before the closing bracket (a trailing comma is not JSON, RFC 8259 §4 and §5); \
+pub(super) const TRAILING_COMMA: &str = "a comma right before the closing bracket (a trailing comma is not JSON, RFC 8259 §4 and §5); \
      remove it";
 
 fn at(msg: &str, p: Position) -> String {

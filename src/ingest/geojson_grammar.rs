@@ -31,8 +31,14 @@ fn refusal(s: &str) -> Option<String> {
 fn trailing_commas_are_refused_with_their_position() {
     let ok = feature("", LINE);
     let features = refusal(&text("", &format!("{ok},"))).unwrap();
-    assert!(features.contains("trailing comma") && features.contains("line 1 column"), "{features}");
-    let top = refusal(&format!(r#"{{"type":"FeatureCollection","features":[{ok}],}}"#)).unwrap();
+    assert!(
+        features.contains("trailing comma") && features.contains("line 1 column"),
+        "{features}"
+    );
+    let top = refusal(&format!(
+        r#"{{"type":"FeatureCollection","features":[{ok}],}}"#
+    ))
+    .unwrap();
     assert!(top.contains("trailing comma"), "{top}");
     // Inside a feature serde_json refuses them: in the feature, its properties (kept or
     // skipped), its geometry and its coordinate arrays.
@@ -55,7 +61,17 @@ fn trailing_commas_are_refused_with_their_position() {
 fn numbers_outside_the_grammar_are_refused() {
     // RFC 8259 §6: no leading zeros, no NaN or Infinity, no plus sign, no hexadecimal, no bare
     // point; in coordinates, in kept and in skipped properties, and in skipped collection members.
-    for bad in ["01", "NaN", "Infinity", "-Infinity", "+1", "0x10", ".5", "1.", "-"] {
+    for bad in [
+        "01",
+        "NaN",
+        "Infinity",
+        "-Infinity",
+        "+1",
+        "0x10",
+        ".5",
+        "1.",
+        "-",
+    ] {
         for s in [
             text("", &feature("", &format!("[[0,0],[1,{bad}]]"))),
             text("", &feature(&format!(r#""kept":{bad}"#), LINE)),
@@ -90,7 +106,12 @@ fn comments_quotes_and_control_characters_are_refused() {
 #[test]
 fn a_second_top_level_value_is_refused() {
     let one = text("", &feature("", LINE));
-    for s in [format!("{one}{one}"), format!("{one} 1"), format!("{one} x"), format!("{one}]")] {
+    for s in [
+        format!("{one}{one}"),
+        format!("{one} 1"),
+        format!("{one} x"),
+        format!("{one}]"),
+    ] {
         let m = refusal(&s).unwrap_or_else(|| panic!("accepted: {s}"));
         assert!(m.contains("the end of the file"), "{m}");
     }
@@ -108,5 +129,8 @@ fn lone_surrogates_are_refused_where_read_and_allowed_where_skipped() {
     let skipped = text("", &feature(r#""other":"a\ud800b""#, LINE));
     assert_eq!(refusal(&skipped), None);
     // A proper pair is a character.
-    assert_eq!(refusal(&text("", &feature(r#""kept":"\ud83d\ude00""#, LINE))), None);
+    assert_eq!(
+        refusal(&text("", &feature(r#""kept":"\ud83d\ude00""#, LINE))),
+        None
+    );
 }

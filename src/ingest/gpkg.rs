@@ -160,9 +160,8 @@ impl GpkgSource {
                 ),
             )
         })?;
-        let names = || {
-            super::limits::listed(&layers.iter().map(|l| l.table.as_str()).collect::<Vec<_>>())
-        };
+        let names =
+            || super::limits::listed(&layers.iter().map(|l| l.table.as_str()).collect::<Vec<_>>());
         let layer = match (pick.name, layers.as_slice()) {
             (Some(_), [_]) if pick.where_several => None,
             (name, _) => name,

@@ -165,9 +165,9 @@ pub fn open_source(
     several: bool,
 ) -> Result<Box<dyn FeatureSource>, IngestError> {
     Ok(match Format::of(source) {
-        Format::Shapefile | Format::ZippedShapefile => {
-            Box::new(super::shapefile::ShapefileSource::open(source, pick(settings, several))?)
-        }
+        Format::Shapefile | Format::ZippedShapefile => Box::new(
+            super::shapefile::ShapefileSource::open(source, pick(settings, several))?,
+        ),
         Format::OsmPbf => {
             if !several {
                 super::osm::check_user_crs(source, settings)?;

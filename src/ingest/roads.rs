@@ -260,7 +260,8 @@ pub fn finish_coordinates(
             i,
             format!(
                 "{} cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --crs and the layer's units",
-                crate::decimal::position(p), crs.name
+                crate::decimal::position(p),
+                crs.name
             ),
         ));
     }

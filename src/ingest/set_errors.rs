@@ -9,9 +9,7 @@ use std::path::Path;
 pub fn record(shp: &Path, fields: &[String], e: shapefile::Error) -> (Option<String>, String) {
     match e {
         shapefile::Error::DbaseError(e) => {
-            let field = e
-                .field_index()
-                .and_then(|i| fields.get(i.0).cloned());
+            let field = e.field_index().and_then(|i| fields.get(i.0).cloned());
             let dbf = shp.with_extension("dbf");
             let what = match &field {
                 Some(_) => dbf_value(&e),
@@ -53,9 +51,9 @@ pub fn dbf_table(e: &dbase::Error) -> String {
                 .into()
         }
         K::IoError(io) => format!("cannot be read ({})", io.kind()),
-        K::InvalidFieldType(c) => format!(
-            "a field has the type code {c:?}, which is not a dBASE field type"
-        ),
+        K::InvalidFieldType(c) => {
+            format!("a field has the type code {c:?}, which is not a dBASE field type")
+        }
         K::MissingMemoFile | K::ErrorOpeningMemoFile(_) => {
             "a Memo field needs its .dbt file, which is missing or unreadable".into()
         }
@@ -85,9 +83,7 @@ pub fn shp_message(e: &shapefile::Error) -> String {
         E::MismatchShapeType { requested, actual } => {
             format!("a record holds a {actual} in a layer of {requested}s")
         }
-        E::InvalidShapeRecordSize => {
-            "a record's declared size does not match its contents".into()
-        }
+        E::InvalidShapeRecordSize => "a record's declared size does not match its contents".into(),
         E::AllocationLimitExceeded { requested_bytes } => format!(
             "a record declares counts needing {requested_bytes} bytes, more than the file holds"
         ),

@@ -249,6 +249,22 @@ pub fn open_files(files: &SetFiles) -> Result<ShapeSet, IngestError> {
             ));
         }
     }
+    // The .shp and .shx headers declare their file's length in 16-bit words (bytes 24 to 27,
+    // big-endian): a file shorter than it says is truncated, and is named before a reader
+    // runs out of bytes inside it.
+    for m in [&files.shp, &files.shx] {
+        let words = i32::from_be_bytes([m.bytes[24], m.bytes[25], m.bytes[26], m.bytes[27]]);
+        let declared = i64::from(words) * 2;
+        if declared > m.bytes.len() as i64 {
+            return Err(refuse(
+                &m.path,
+                format!(
+                    "its header declares {declared} bytes but the file holds {}: it is truncated",
+                    m.bytes.len()
+                ),
+            ));
+        }
+    }
     let shapes = shapefile::ShapeReader::with_shx(cursor(&files.shp), cursor(&files.shx))
         .map_err(|e| refuse(shp, shapefile_error(shp, e)))?;
     let declared = match files.cpg.as_ref().map(|c| (c, c.text.as_ref())) {

@@ -212,7 +212,10 @@ pub fn layer_crs(path: &Path, user: Option<&str>, option: &str) -> Result<Crs, I
         .map(|e| path.with_extension(e))
         .find(|p| p.exists())
         .ok_or_else(|| {
-            crs_err(format!("has no .prj file beside it: {}", super::crs::hint(option)))
+            crs_err(format!(
+                "has no .prj file beside it: {}",
+                super::crs::hint(option)
+            ))
         })?;
     let wkt = super::limits::read_small_text(&prj).map_err(|source| IngestError::Io {
         path: prj.clone(),

@@ -473,12 +473,18 @@ fn read_shapefile_sites(path: &Path, s: &SiteSettings) -> Result<SiteLayer, Inge
             Shape::Point(p) => ([p.x, p.y], None),
             Shape::PointM(p) => ([p.x, p.y], None),
             Shape::PointZ(p) => ([p.x, p.y], None),
-            Shape::Polygon(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
-            Shape::PolygonM(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
-            Shape::PolygonZ(p) => shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
-                .map_err(|m| feature_err(path, index, Some("geometry"), m))?,
+            Shape::Polygon(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(path, index, Some("geometry"), m))?
+            }
+            Shape::PolygonM(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(path, index, Some("geometry"), m))?
+            }
+            Shape::PolygonZ(p) => {
+                shapefile_outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(path, index, Some("geometry"), m))?
+            }
             other => {
                 return Err(feature_err(
                     path,

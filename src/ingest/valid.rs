@@ -141,7 +141,9 @@ pub fn overlapping_parts(parts: &[Polygon<f64>]) -> Option<(usize, usize)> {
         boxes
             .iter()
             .enumerate()
-            .filter_map(|(i, b)| b.map(|b| GeomWithData::new(Rectangle::from_corners(b.lower(), b.upper()), i)))
+            .filter_map(|(i, b)| {
+                b.map(|b| GeomWithData::new(Rectangle::from_corners(b.lower(), b.upper()), i))
+            })
             .collect(),
     );
     for (i, b) in boxes.iter().enumerate() {
@@ -162,6 +164,31 @@ pub fn overlapping_parts(parts: &[Polygon<f64>]) -> Option<(usize, usize)> {
     None
 }
 
+/// Refuses a feature whose parts (a MultiPolygon's, or a Shapefile record's outer rings)
+/// overlap: the ground they share would be counted twice, and such a MultiPolygon is not valid
+/// (OGC Simple Features); every format's zones pass here.
+pub(super) fn zone_parts_apart(
+    path: &std::path::Path,
+    zones: &[super::zones::Zone],
+) -> Result<(), super::IngestError> {
+    for group in zones.chunk_by(|a, b| a.feature == b.feature) {
+        let parts: Vec<Polygon<f64>> = group.iter().map(|z| z.polygon.clone()).collect();
+        if let Some((a, b)) = overlapping_parts(&parts) {
+            return Err(super::IngestError::Feature {
+                path: path.to_path_buf(),
+                feature: group[0].feature,
+                field: Some("geometry".into()),
+                message: format!(
+                    "parts {a} and {b} of the zone overlap (OGC Simple Features: the parts of a \
+                     MultiPolygon do not overlap); merge them into one polygon in a GIS \
+                     (dissolve), or give them as separate features"
+                ),
+            });
+        }
+    }
+    Ok(())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -170,13 +197,25 @@ mod tests {
     #[test]
     fn overlapping_parts_are_found_and_touching_ones_allowed() {
         let sq = |x: f64, y: f64, s: f64| {
-            Polygon::new(ring(&[(x, y), (x + s, y), (x + s, y + s), (x, y + s)]), vec![])
+            Polygon::new(
+                ring(&[(x, y), (x + s, y), (x + s, y + s), (x, y + s)]),
+                vec![],
+            )
         };
-        assert_eq!(overlapping_parts(&[sq(0.0, 0.0, 2.0), sq(1.0, 1.0, 2.0)]), Some((0, 1)));
+        assert_eq!(
+            overlapping_parts(&[sq(0.0, 0.0, 2.0), sq(1.0, 1.0, 2.0)]),
+            Some((0, 1))
+        );
         // One part inside another overlaps it too.
-        assert_eq!(overlapping_parts(&[sq(9.0, 9.0, 1.0), sq(0.0, 0.0, 1.0), sq(0.2, 0.2, 0.5)]), Some((1, 2)));
+        assert_eq!(
+            overlapping_parts(&[sq(9.0, 9.0, 1.0), sq(0.0, 0.0, 1.0), sq(0.2, 0.2, 0.5)]),
+            Some((1, 2))
+        );
         // Sharing an edge, or a corner, is no overlap.
-        assert_eq!(overlapping_parts(&[sq(0.0, 0.0, 1.0), sq(1.0, 0.0, 1.0), sq(2.0, 1.0, 1.0)]), None);
+        assert_eq!(
+            overlapping_parts(&[sq(0.0, 0.0, 1.0), sq(1.0, 0.0, 1.0), sq(2.0, 1.0, 1.0)]),
+            None
+        );
     }
 
     /// The library's own verdict and message (geo 0.33 `Validation`, the quadratic check this

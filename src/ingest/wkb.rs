@@ -450,20 +450,34 @@ mod tests {
         assert!(decode(&blob(&w)).is_ok());
         w.extend_from_slice(&[0, 0, 0]);
         let e = decode(&blob(&w)).unwrap_err();
-        assert!(e.contains("3 byte(s) follow the end of the LineString"), "{e}");
+        assert!(
+            e.contains("3 byte(s) follow the end of the LineString"),
+            "{e}"
+        );
         let mut point = vec![1];
         point.extend_from_slice(&1u32.to_le_bytes());
         point.extend_from_slice(&1.5f64.to_le_bytes());
         point.extend_from_slice(&2.5f64.to_le_bytes());
         assert!(decode_feature(&blob(&point)).unwrap().is_some());
         point.push(7);
-        assert!(decode_feature(&blob(&point)).unwrap_err().contains("1 byte(s) follow"));
+        assert!(
+            decode_feature(&blob(&point))
+                .unwrap_err()
+                .contains("1 byte(s) follow")
+        );
         // ISO/IEC 13249-3 type codes: 10 CurvePolygon, 9 CompoundCurve (with Z: 1009).
-        for (code, what) in [(10u32, "CurvePolygon"), (1009, "CompoundCurve"), (17, "Triangle")] {
+        for (code, what) in [
+            (10u32, "CurvePolygon"),
+            (1009, "CompoundCurve"),
+            (17, "Triangle"),
+        ] {
             let mut c = vec![1];
             c.extend_from_slice(&code.to_le_bytes());
             c.extend_from_slice(&0u32.to_le_bytes());
-            for e in [decode_feature(&blob(&c)).unwrap_err(), decode(&blob(&c)).unwrap_err()] {
+            for e in [
+                decode_feature(&blob(&c)).unwrap_err(),
+                decode(&blob(&c)).unwrap_err(),
+            ] {
                 assert!(e.contains(what) && e.contains("linearise"), "{e}");
             }
         }

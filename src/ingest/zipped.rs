@@ -100,7 +100,10 @@ pub fn set_from_zip(
         return Err(refuse(&path, message));
     }
     // With several road inputs, a zip of one set is read whole whatever --roads-layer names.
-    let sets = names.iter().filter(|n| strip_ext(n, "shp").is_some()).count();
+    let sets = names
+        .iter()
+        .filter(|n| strip_ext(n, "shp").is_some())
+        .count();
     let pick = match pick.name {
         Some(_) if pick.where_several && sets == 1 => None,
         name => name,

@@ -44,7 +44,7 @@ pub fn read_zones(
     layer: Option<&str>,
 ) -> Result<ZoneLayer, IngestError> {
     let zones = read_zones_any(source, rule, crs, layer)?;
-    check_parts(&source.display_path(), &zones.zones)?;
+    super::valid::zone_parts_apart(&source.display_path(), &zones.zones)?;
     // No zone at all would plan as if nothing were damaged: refused, not read as "no damage".
     if zones.zones.is_empty() {
         return Err(IngestError::Io {
@@ -94,7 +94,9 @@ fn read_zones_any(
         &mut reader,
         std::slice::from_ref(&rule.field),
         |index, f| match &conv {
-            Some(c) => add_zone_feature(&path, index, &f, rule, Some(c), &mut zones, &mut defaulted),
+            Some(c) => {
+                add_zone_feature(&path, index, &f, rule, Some(c), &mut zones, &mut defaulted)
+            }
             None => {
                 waiting.push((index, f));
                 Ok(())
@@ -125,28 +127,6 @@ fn read_zones_any(
             deleted_records: 0,
         },
     })
-}
-
-/// Refuses a feature whose parts (a MultiPolygon's, or a Shapefile record's outer rings)
-/// overlap: the ground they share would be counted twice, and such a MultiPolygon is not valid
-/// (OGC Simple Features); every format's zones pass here.
-fn check_parts(path: &std::path::Path, zones: &[Zone]) -> Result<(), IngestError> {
-    for group in zones.chunk_by(|a, b| a.feature == b.feature) {
-        let parts: Vec<Polygon<f64>> = group.iter().map(|z| z.polygon.clone()).collect();
-        if let Some((a, b)) = super::valid::overlapping_parts(&parts) {
-            return Err(IngestError::Feature {
-                path: path.to_path_buf(),
-                feature: group[0].feature,
-                field: Some("geometry".into()),
-                message: format!(
-                    "parts {a} and {b} of the zone overlap (OGC Simple Features: the parts of a \
-                     MultiPolygon do not overlap); merge them into one polygon in a GIS \
-                     (dissolve), or give them as separate features"
-                ),
-            });
-        }
-    }
-    Ok(())
 }
 
 /// Adds the zones of one feature (a Polygon or MultiPolygon in GeoJSON's layout, in lon/lat
@@ -210,7 +190,11 @@ pub(super) fn add_zone_feature(
                         fail(
                             index,
                             "geometry",
-                            format!("{} cannot be converted from {}", crate::decimal::position(*p), cv.name),
+                            format!(
+                                "{} cannot be converted from {}",
+                                crate::decimal::position(*p),
+                                cv.name
+                            ),
                         )
                     })?;
                 }

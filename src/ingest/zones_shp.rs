@@ -183,7 +183,13 @@ mod tests {
     use super::assemble;
 
     fn square(x: f64, y: f64, size: f64, clockwise: bool) -> (bool, Vec<[f64; 2]>) {
-        let mut r = vec![[x, y], [x + size, y], [x + size, y + size], [x, y + size], [x, y]];
+        let mut r = vec![
+            [x, y],
+            [x + size, y],
+            [x + size, y + size],
+            [x, y + size],
+            [x, y],
+        ];
         if clockwise {
             r.reverse();
         }
@@ -192,7 +198,11 @@ mod tests {
 
     #[test]
     fn a_hole_before_its_shell_goes_to_the_shell() {
-        let p = assemble(vec![square(2.0, 2.0, 1.0, false), square(0.0, 0.0, 10.0, true)]).unwrap();
+        let p = assemble(vec![
+            square(2.0, 2.0, 1.0, false),
+            square(0.0, 0.0, 10.0, true),
+        ])
+        .unwrap();
         assert_eq!(p.len(), 1);
         assert_eq!(p[0].len(), 2);
         assert_eq!(p[0][1][0], [2.0, 2.0], "the hole follows its shell");
@@ -230,7 +240,10 @@ mod tests {
 
     #[test]
     fn a_hole_outside_every_shell_is_refused_and_a_lone_reversed_ring_is_a_shell() {
-        let e = assemble(vec![square(0.0, 0.0, 1.0, true), square(5.0, 5.0, 1.0, false)]);
+        let e = assemble(vec![
+            square(0.0, 0.0, 1.0, true),
+            square(5.0, 5.0, 1.0, false),
+        ]);
         assert!(e.unwrap_err().contains("ring 1 is a hole"));
         let p = assemble(vec![square(0.0, 0.0, 1.0, false)]).unwrap();
         assert_eq!(p.len(), 1);

@@ -109,10 +109,14 @@ fn own_options(e: ReplanError) -> ReplanError {
         return e;
     }
     ReplanError::PlanOptions(format!(
-        "{message} ({} {} option(s) of reknit plan: a re-plan keeps the settings recorded in the \
+        "{message} ({} {} of reknit plan: a re-plan keeps the settings recorded in the \
          previous plan's summary.json; to change them, run reknit plan again)",
         foreign.join(", "),
-        if foreign.len() == 1 { "is an" } else { "are" },
+        if foreign.len() == 1 {
+            "is an option"
+        } else {
+            "are options"
+        },
     ))
 }
 
