@@ -118,7 +118,8 @@ fn line_collapsing_to_a_point_is_dropped_and_counted() {
 #[test]
 fn removed_lines_leave_no_junction_behind() {
     let road = vec![pt(0., 0.), pt(100., 0.)];
-    let cases: [(&str, Vec<Vec<[f64; 2]>>, f64); 5] = [
+    type Lines = Vec<Vec<[f64; 2]>>;
+    let cases: [(&str, Lines, f64); 5] = [
         // A part whose two vertices are identical, far from the road, snapping off.
         (
             "zero length",
