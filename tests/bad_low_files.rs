@@ -331,22 +331,20 @@ case!(crs_member_as_a_string, |d| {
     assert_eq!(read_json(&out.join("summary.json"))["counts"]["edges"], 1);
 });
 
-case!(
-    roads_layer_with_a_one_set_zip_and_a_several_layer_gpkg,
-    |d| {
-        // With several --roads, --roads-layer chooses within inputs holding several layers; a zip
-        // of one set is read whole. A name that chooses within no input is refused.
-        let roads = shapefile_roads(d, "roads.shp", &two_roads());
-        let zip = zip_owned(d, "roads.zip", &set_entries(&roads, ""));
-        let line = |x: f64| {
-            let mut body = 2u32.to_le_bytes().to_vec();
-            body.extend(xy(x, 0.0));
-            body.extend(xy(x + 0.001, 0.0));
-            blob(2, &body)
-        };
-        let gpkg = d.join("two.gpkg");
-        let c = rusqlite::Connection::open(&gpkg).unwrap();
-        c.execute_batch(&format!(
+case!(roads_layer_picks_where_several, |d| {
+    // With several --roads, --roads-layer chooses within inputs holding several layers; a zip
+    // of one set is read whole. A name that chooses within no input is refused.
+    let roads = shapefile_roads(d, "roads.shp", &two_roads());
+    let zip = zip_owned(d, "roads.zip", &set_entries(&roads, ""));
+    let line = |x: f64| {
+        let mut body = 2u32.to_le_bytes().to_vec();
+        body.extend(xy(x, 0.0));
+        body.extend(xy(x + 0.001, 0.0));
+        blob(2, &body)
+    };
+    let gpkg = d.join("two.gpkg");
+    let c = rusqlite::Connection::open(&gpkg).unwrap();
+    c.execute_batch(&format!(
         "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
          organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
          INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
@@ -364,27 +362,26 @@ case!(
         line(0.003)
     ))
     .unwrap();
-        drop(c);
-        let out = plan_ok(
-            d,
-            &[
-                "--roads",
-                &s(&zip),
-                "--roads",
-                &s(&gpkg),
-                "--roads-layer",
-                "Roads2",
-                "--whole-network",
-            ],
-        );
-        // Two roads from the zip, two from Roads2, none from Roads1.
-        assert_eq!(read_json(&out.join("summary.json"))["counts"]["edges"], 4);
-        std::fs::remove_dir_all(&out).unwrap();
-        let other = shapefile_roads(d, "other.shp", &[vec![[0.004, 0.0], [0.005, 0.0]]]);
-        plan_fails(
-            &zip,
-            &["--roads", &s(&other), "--roads-layer", "Roads2"],
-            &["--roads-layer", "\"Roads2\" chose no layer"],
-        );
-    }
-);
+    drop(c);
+    let out = plan_ok(
+        d,
+        &[
+            "--roads",
+            &s(&zip),
+            "--roads",
+            &s(&gpkg),
+            "--roads-layer",
+            "Roads2",
+            "--whole-network",
+        ],
+    );
+    // Two roads from the zip, two from Roads2, none from Roads1.
+    assert_eq!(read_json(&out.join("summary.json"))["counts"]["edges"], 4);
+    std::fs::remove_dir_all(&out).unwrap();
+    let other = shapefile_roads(d, "other.shp", &[vec![[0.004, 0.0], [0.005, 0.0]]]);
+    plan_fails(
+        &zip,
+        &["--roads", &s(&other), "--roads-layer", "Roads2"],
+        &["--roads-layer", "\"Roads2\" chose no layer"],
+    );
+});
