@@ -145,9 +145,49 @@ pub fn trimmed(x: f64, decimals: usize) -> String {
     s
 }
 
+/// `x` for a message: as written when short, in scientific notation when very large or very
+/// small, so a hostile figure (1e308) never fills a screen; at most about 25 characters.
+pub fn shown(x: f64) -> String {
+    let a = x.abs();
+    if x == 0.0 {
+        "0".into()
+    } else if a.is_finite() && !(1e-6..1e15).contains(&a) {
+        format!("{x:e}")
+    } else {
+        format!("{x}")
+    }
+}
+
+/// A position `(x, y)` for a message, each figure through [`shown`].
+pub fn position(p: [f64; 2]) -> String {
+    format!("({}, {})", shown(p[0]), shown(p[1]))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn shown_numbers_are_short_and_exact() {
+        assert_eq!(shown(1e308), "1e308");
+        assert_eq!(shown(-1.7976931348623157e308), "-1.7976931348623157e308");
+        assert_eq!(shown(12.5), "12.5");
+        assert_eq!(shown(-0.0), "0");
+        assert_eq!(shown(5e-324), "5e-324");
+        assert_eq!(shown(f64::NAN), "NaN");
+        for x in [
+            1e308,
+            -1e-300,
+            123456789012345.67,
+            0.1 + 0.2,
+            f64::MAX,
+            f64::MIN_POSITIVE,
+        ] {
+            let t = shown(x);
+            assert!(t.len() <= 25, "{t}");
+            assert_eq!(t.parse::<f64>().unwrap(), x, "{t} reads back");
+        }
+    }
 
     /// The digits as the first version made them (one division per digit): every figure in
     /// the outputs must come out byte for byte as before.

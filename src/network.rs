@@ -136,6 +136,15 @@ impl Network {
                 return Err(format!("edge {i} names a feature out of range"));
             }
         }
+        // A junction no edge ends at would count as a component of its own.
+        let mut used = vec![false; n];
+        for e in &self.edges {
+            used[e.from as usize] = true;
+            used[e.to as usize] = true;
+        }
+        if let Some(j) = used.iter().position(|u| !u) {
+            return Err(format!("junction {j} ends no edge"));
+        }
         Ok(())
     }
 }

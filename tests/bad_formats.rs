@@ -523,7 +523,7 @@ case!(gpkg_site_with_empty_geometry, |d| {
         &["--sites", &s(&p)],
         &[
             "empty.gpkg",
-            "1 feature(s) of the sites layer have an empty geometry",
+            "feature 0, field \"geom\": the geometry is empty",
         ],
     );
 });

@@ -433,6 +433,8 @@ fn every_case_is_listed_in_the_docs() {
         "tests/bad_bounds.rs",
         "tests/bad_layers.rs",
         "tests/bad_points.rs",
+        "tests/bad_low.rs",
+        "tests/bad_low_files.rs",
     ] {
         names.extend(case_names(&std::fs::read_to_string(root.join(f)).unwrap()));
     }

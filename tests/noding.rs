@@ -113,6 +113,62 @@ fn line_collapsing_to_a_point_is_dropped_and_counted() {
     assert_eq!(n.edges.len(), 1);
 }
 
+/// Every way a line can vanish leaves no junction behind: a junction no edge ends at would be a
+/// component of its own (a phantom in the component count and the plan forest).
+#[test]
+fn removed_lines_leave_no_junction_behind() {
+    let road = vec![pt(0., 0.), pt(100., 0.)];
+    type Lines = Vec<Vec<[f64; 2]>>;
+    let cases: [(&str, Lines, f64); 5] = [
+        // A part whose two vertices are identical, far from the road, snapping off.
+        (
+            "zero length",
+            vec![road.clone(), vec![pt(500., 500.), pt(500., 500.)]],
+            0.0,
+        ),
+        // A part shorter than the tolerance, far from the road.
+        (
+            "collapsed by the tolerance",
+            vec![road.clone(), vec![pt(500., 500.), pt(500.2, 500.)]],
+            0.5,
+        ),
+        // A one-vertex loop: its start and its end are one point.
+        (
+            "self-loop of one point",
+            vec![vec![pt(300., 0.), pt(300., 0.), pt(300., 0.)], road.clone()],
+            0.0,
+        ),
+        // The same road twice, then a zero-length part at its end.
+        (
+            "duplicate",
+            vec![road.clone(), road.clone(), vec![pt(100., 0.), pt(100., 0.)]],
+            0.0,
+        ),
+        // A stub shorter than the tolerance past a junction (trimmed) beside a collapsed part.
+        (
+            "trimmed",
+            vec![
+                road.clone(),
+                vec![pt(50., 0.), pt(50., 50.)],
+                vec![pt(100., 0.), pt(100.3, 0.)],
+                vec![pt(700., 0.), pt(700., 0.)],
+            ],
+            0.5,
+        ),
+    ];
+    for (what, lines, snap) in cases {
+        let (n, s) = node(layer(&lines), snap);
+        n.validate().unwrap_or_else(|e| panic!("{what}: {e}"));
+        assert_eq!(s.junctions, n.junctions.len(), "{what}");
+        let mut used = vec![false; n.junctions.len()];
+        for e in &n.edges {
+            used[e.from as usize] = true;
+            used[e.to as usize] = true;
+        }
+        assert!(used.iter().all(|&u| u), "{what}: a junction ends no edge");
+    }
+}
+
 #[test]
 fn closed_ring_becomes_a_loop_at_one_junction() {
     let (n, _) = node(
@@ -157,6 +213,21 @@ proptest! {
         // Every junction is an end or a meeting point: no junction of degree 2 unless two lines meet
         // end to end there or a line revisits it.
         prop_assert_eq!(s.junctions, n.junctions.len());
+    }
+
+    /// With snapping on, lines collapse, merge and get trimmed: the invariants (no junction left
+    /// without an edge among them) still hold.
+    #[test]
+    fn snapped_noding_keeps_the_invariants(
+        lines in proptest::collection::vec(
+            proptest::collection::vec((0i32..12, 0i32..12), 2..6), 1..20),
+        snap in prop_oneof![Just(0.0), Just(20.0), Just(60.0)]
+    ) {
+        let lines: Vec<Vec<[f64; 2]>> = lines.iter()
+            .map(|l| l.iter().map(|&(x, y)| pt(x as f64 * 50.0, y as f64 * 50.0)).collect())
+            .collect();
+        let (n, _) = node(layer(&lines), snap);
+        n.validate().map_err(TestCaseError::fail)?;
     }
 }
 

@@ -36,7 +36,7 @@ pub fn merge(dir: &Path) -> Result<BatchSummary, BatchError> {
              remove those of the other run",
             first.file,
             first.n,
-            mixed.join(", ")
+            crate::ingest::limits::listed(&mixed)
         )));
     }
     for p in &parts {
@@ -57,7 +57,7 @@ pub fn merge(dir: &Path) -> Result<BatchSummary, BatchError> {
     if !missing.is_empty() {
         return Err(err(format!(
             "shards not yet finished: {}",
-            missing.join(", ")
+            crate::ingest::limits::listed(&missing)
         )));
     }
     let districts = first.summary.districts;

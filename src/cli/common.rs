@@ -56,7 +56,8 @@ pub struct NetworkArgs {
 
     /// The layer of a GeoPackage road file that holds several, or the Shapefile set of a .zip
     /// that holds several (its name without .shp, or its path inside the archive); the message
-    /// lists them.
+    /// lists them. With several --roads it chooses in each input holding several layers; one
+    /// holding a single layer is read whole.
     #[arg(long, value_name = "NAME")]
     pub roads_layer: Option<String>,
 

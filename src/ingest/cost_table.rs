@@ -161,11 +161,7 @@ impl CostTable {
             .ok_or_else(|| {
                 format!(
                     "unknown damage category {name:?}; known categories: {}",
-                    self.categories
-                        .keys()
-                        .cloned()
-                        .collect::<Vec<_>>()
-                        .join(", ")
+                    super::limits::listed(&self.categories.keys().collect::<Vec<_>>())
                 )
             })
     }

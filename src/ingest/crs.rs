@@ -164,7 +164,8 @@ impl Crs {
         Crs::from_epsg(code)
     }
 
-    /// A CRS from the WKT of a `.prj` file (ESRI or OGC WKT 1, or WKT 2).
+    /// A CRS from the WKT of a `.prj` file (ESRI or OGC WKT 1, or WKT 2); the error ends where
+    /// the caller adds [`hint`] with the option of its layer kind.
     pub fn from_wkt(wkt: &str) -> Result<Crs, String> {
         let wkt = wkt.trim().trim_start_matches('\u{feff}');
         if let Some(code) = top_level_epsg(wkt)
@@ -173,9 +174,8 @@ impl Crs {
             return Ok(c);
         }
         let name = wkt_name(wkt).unwrap_or_else(|| "the .prj's CRS".into());
-        let proj = proj4wkt::wkt_to_projstring(wkt).map_err(|e| {
-            format!("cannot read the CRS {name:?}: {e}; give the CRS as --crs EPSG:NNNN")
-        })?;
+        let proj = proj4wkt::wkt_to_projstring(wkt)
+            .map_err(|e| format!("cannot read the CRS {name:?}: {e}"))?;
         let datum = wkt_datum(wkt).unwrap_or_default();
         let mut note = None;
         let proj = if WGS84_LIKE.iter().any(|d| d.eq_ignore_ascii_case(&datum)) || datum.is_empty()
@@ -195,8 +195,7 @@ impl Crs {
             set_towgs84(&proj, shift)
         } else {
             return Err(format!(
-                "the CRS {name:?} uses the datum {datum:?}, whose shift to WGS84 reknit does not know; \
-                 give the CRS as --crs EPSG:NNNN"
+                "the CRS {name:?} uses the datum {datum:?}, whose shift to WGS84 reknit does not know"
             ));
         };
         Crs::from_proj_string(name, &proj, note)
@@ -353,28 +352,60 @@ fn wkt_datum(wkt: &str) -> Option<String> {
     Some(rest[start..end].to_string())
 }
 
+/// The option that gives the CRS of a layer of `role` (as inputs are named in summaries): every
+/// CRS message names the option that applies to the layer it is about, and that option works.
+pub fn option_for(role: &str) -> &'static str {
+    match role {
+        "sites" => "--sites-crs",
+        "damage zones" => "--zones-crs",
+        "damage reports" => "--damage-points-crs",
+        _ => "--crs",
+    }
+}
+
+/// The advice ending a CRS message about a layer whose CRS is given with `option`.
+pub fn hint(option: &str) -> String {
+    format!("give the layer's CRS with {option} EPSG:NNNN")
+}
+
 /// The CRS of a legacy GeoJSON `crs` member: WGS84 when absent, the named EPSG code when it names
-/// one, an error otherwise.
+/// one, an error otherwise; `option` is the one that gives this layer's CRS instead.
+///
+/// The 2008 GeoJSON specification (§3.1) writes it `{"type":"name","properties":{"name":…}}`;
+/// its older `{"type":"EPSG","properties":{"code":N}}` and a bare string naming a code are read
+/// too (common practice, no source): each names its CRS plainly.
 pub fn crs_member(
     path: &std::path::Path,
     crs: Option<&serde_json::Value>,
+    option: &str,
 ) -> Result<Crs, super::IngestError> {
     let Some(crs) = crs.filter(|c| !c.is_null()) else {
         return Ok(Crs::wgs84());
     };
+    let code_member = crs
+        .pointer("/properties/code")
+        .and_then(serde_json::Value::as_u64)
+        .filter(|_| crs.get("type").and_then(|t| t.as_str()) == Some("EPSG"))
+        .map(|c| format!("EPSG:{c}"));
     let name = crs
-        .pointer("/properties/name")
-        .and_then(serde_json::Value::as_str)
-        .unwrap_or("");
+        .as_str()
+        .or_else(|| {
+            crs.pointer("/properties/name")
+                .and_then(serde_json::Value::as_str)
+        })
+        .map(str::to_string)
+        .or(code_member)
+        .unwrap_or_default();
     let lonlat = [
         "urn:ogc:def:crs:OGC:1.3:CRS84",
         "urn:ogc:def:crs:OGC::CRS84",
         "CRS84",
     ];
-    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name)) {
+    if lonlat.iter().any(|n| n.eq_ignore_ascii_case(name.trim())) {
         return Ok(Crs::wgs84());
     }
     let code = name
+        .trim()
         .rsplit([':', '/'])
         .next()
         .filter(|_| name.to_ascii_uppercase().contains("EPSG"))
@@ -384,13 +415,20 @@ pub fn crs_member(
             path: path.to_path_buf(),
             message: format!("the layer's crs member names {name}: {message}"),
         }),
-        None => Err(super::IngestError::Crs {
-            path: path.to_path_buf(),
-            message: format!(
-                "the layer declares the coordinate reference system {crs}, which names no EPSG code; \
-                 give it with --crs EPSG:NNNN or reproject the layer to WGS84 longitude/latitude (RFC 7946)"
-            ),
-        }),
+        None => {
+            let mut shown = crs.to_string();
+            if shown.chars().count() > 200 {
+                shown = shown.chars().take(200).collect::<String>() + "…";
+            }
+            Err(super::IngestError::Crs {
+                path: path.to_path_buf(),
+                message: format!(
+                    "the layer's crs member {shown} names no EPSG code reknit can read; {} or \
+                     reproject the layer to WGS84 longitude/latitude (RFC 7946)",
+                    hint(option)
+                ),
+            })
+        }
     }
 }
 
@@ -470,8 +508,45 @@ mod tests {
         // An unknown datum is refused, never silently unshifted.
         let odd = az.replace("D_North_American_1983", "D_Atlantis_1900");
         let e = Crs::from_wkt(&odd).unwrap_err();
-        assert!(e.contains("Atlantis") && e.contains("--crs"), "{e}");
+        assert!(e.contains("Atlantis"), "{e}");
         assert!(Crs::from_wkt("PROJCS[garbage").is_err());
+    }
+
+    #[test]
+    fn crs_members_in_each_spelling() {
+        use serde_json::json;
+        let p = std::path::Path::new("x.geojson");
+        for (member, name) in [
+            (
+                json!({"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32632"}}),
+                "EPSG:32632",
+            ),
+            (
+                json!({"type":"name","properties":{"name":"EPSG:32632"}}),
+                "EPSG:32632",
+            ),
+            (json!("EPSG:32632"), "EPSG:32632"),
+            (
+                json!({"type":"EPSG","properties":{"code":32632}}),
+                "EPSG:32632",
+            ),
+            (json!("urn:ogc:def:crs:OGC:1.3:CRS84"), "EPSG:4326"),
+        ] {
+            let c = crs_member(p, Some(&member), "--crs").unwrap();
+            assert_eq!(c.name, name, "{member}");
+        }
+        let e = crs_member(
+            p,
+            Some(&json!({"type":"name","properties":{"name":"my grid"}})),
+            "--sites-crs",
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.contains("--sites-crs EPSG:NNNN") && !e.contains("--crs "),
+            "{e}"
+        );
+        assert_eq!(option_for("damage zones"), "--zones-crs");
     }
 
     #[test]

@@ -7,6 +7,9 @@
 
 #[path = "geojson_batches.rs"]
 mod batches;
+#[cfg(test)]
+#[path = "geojson_grammar.rs"]
+mod grammar;
 
 use super::coords::{Coords, CoordsSeed};
 use super::scan::{Position, Scanner};
@@ -182,7 +185,15 @@ where
             }
         }
         match sc.peek().map_err(io)? {
-            Some(b',') => sc.bump(),
+            Some(b',') => {
+                sc.bump();
+                if sc.peek().map_err(io)? == Some(b'}') {
+                    return Err(ReadFailure::Syntax {
+                        message: at(TRAILING_COMMA, sc.position()),
+                        feature: None,
+                    });
+                }
+            }
             Some(b'}') => {}
             Some(_) => return Err(unexpected(&sc, "',' or '}'")),
             None => return Err(eof(&sc, None)),
@@ -230,6 +241,11 @@ fn io_fail<E>(e: std::io::Error, feature: Option<usize>) -> ReadFailure<E> {
         ReadFailure::Io(e)
     }
 }
+
+/// The message for a comma before a closing bracket: JSON has none (RFC 8259 §4, §5), and a
+/// reader that allowed it would accept files other tools refuse.
+pub(super) const TRAILING_COMMA: &str = "a comma right before the closing bracket (a trailing comma is not JSON, RFC 8259 §4 and §5); \
+     remove it";
 
 fn at(msg: &str, p: Position) -> String {
     format!("{msg} at line {} column {}", p.line, p.column)

@@ -6,7 +6,7 @@
 //! With one thread (`RAYON_NUM_THREADS=1`, or inside a one-thread pool) the same steps run in
 //! turn on the calling thread.
 
-use super::{FeatureSeed, RawFeature, ReadFailure, at, io_fail, syntax};
+use super::{FeatureSeed, RawFeature, ReadFailure, TRAILING_COMMA, at, io_fail, syntax};
 use crate::ingest::scan::{Position, Scanner};
 use serde::de::DeserializeSeed;
 use std::io::Read;
@@ -147,7 +147,15 @@ fn cut<R: Read, E>(sc: &mut Scanner<R>, b: &mut Batch, first: usize) -> Stop<E> 
         }
         match sc.peek() {
             Err(e) => return Stop::Failed(io_fail(e, None)),
-            Ok(Some(b',')) => sc.bump(),
+            Ok(Some(b',')) => {
+                sc.bump();
+                if let Ok(Some(b']')) = sc.peek() {
+                    return Stop::Failed(ReadFailure::Syntax {
+                        message: at(TRAILING_COMMA, sc.position()),
+                        feature: None,
+                    });
+                }
+            }
             Ok(Some(b']')) => {}
             Ok(Some(_)) => return eof(sc, "expected ',' or ']' after a feature", index + 1),
             Ok(None) => return eof(sc, "unexpected end of file", index + 1),

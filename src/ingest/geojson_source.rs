@@ -37,7 +37,7 @@ impl FeatureSource for GeoJsonSource {
         // No crs member: the file declares nothing, and RFC 7946 §4 makes that WGS84.
         match self.crs.as_ref().filter(|c| !c.is_null()) {
             None => Ok(None),
-            Some(c) => super::crs::crs_member(&self.path, Some(c)).map(Some),
+            Some(c) => super::crs::crs_member(&self.path, Some(c), "--crs").map(Some),
         }
     }
 

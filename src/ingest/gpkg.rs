@@ -43,6 +43,8 @@ pub struct GpkgSource {
     any_geometry: bool,
     /// The input's role in summaries.
     role: &'static str,
+    /// The layer was chosen by its name.
+    named: bool,
 }
 
 fn refuse(path: &Path, message: String) -> IngestError {
@@ -107,9 +109,9 @@ pub fn unmerged_log(p: &Path) -> Result<(), String> {
 }
 
 impl GpkgSource {
-    /// Opens `source` and chooses its layer: `layer` by name, or the only one.
-    pub fn open(source: &Source, layer: Option<&str>) -> Result<GpkgSource, IngestError> {
-        let mut s = Self::open_layer(source, layer, "--roads-layer", "roads")?;
+    /// Opens `source` and chooses its road layer: by name, or the only one.
+    pub fn open(source: &Source, pick: super::reader::Pick) -> Result<GpkgSource, IngestError> {
+        let mut s = Self::open_pick(source, pick, "--roads-layer", "roads")?;
         s.any_geometry = false;
         Ok(s)
     }
@@ -119,6 +121,15 @@ impl GpkgSource {
     pub fn open_layer(
         source: &Source,
         layer: Option<&str>,
+        flag: &'static str,
+        role: &'static str,
+    ) -> Result<GpkgSource, IngestError> {
+        Self::open_pick(source, super::reader::Pick::always(layer), flag, role)
+    }
+
+    fn open_pick(
+        source: &Source,
+        pick: super::reader::Pick,
         flag: &'static str,
         role: &'static str,
     ) -> Result<GpkgSource, IngestError> {
@@ -149,12 +160,11 @@ impl GpkgSource {
                 ),
             )
         })?;
-        let names = || {
-            layers
-                .iter()
-                .map(|l| l.table.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
+        let names =
+            || super::limits::listed(&layers.iter().map(|l| l.table.as_str()).collect::<Vec<_>>());
+        let layer = match (pick.name, layers.as_slice()) {
+            (Some(_), [_]) if pick.where_several => None,
+            (name, _) => name,
         };
         let chosen = match layer {
             Some(name) => layers.iter().find(|l| l.table == name).ok_or_else(|| {
@@ -194,6 +204,7 @@ impl GpkgSource {
             columns,
             any_geometry: true,
             role,
+            named: layer.is_some(),
         })
     }
 }
@@ -240,13 +251,14 @@ impl FeatureSource for GpkgSource {
                 |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
             )
             .ok();
+        let hint = super::crs::hint(super::crs::option_for(self.role));
         let crs_err = |message: String| IngestError::Crs {
             path: self.path.clone(),
-            message: format!("layer \"{}\": {message}", self.layer.table),
+            message: format!("layer \"{}\": {message}; {hint}", self.layer.table),
         };
         let Some((org, code, wkt)) = row else {
             return Err(crs_err(format!(
-                "srs_id {id} is not in gpkg_spatial_ref_sys; give the layer's CRS with --crs EPSG:NNNN"
+                "srs_id {id} is not in gpkg_spatial_ref_sys"
             )));
         };
         if org.eq_ignore_ascii_case("EPSG")
@@ -260,6 +272,10 @@ impl FeatureSource for GpkgSource {
 
     fn layer_name(&self) -> Option<String> {
         Some(self.layer.table.clone())
+    }
+
+    fn chosen_by_name(&self) -> bool {
+        self.named
     }
 
     fn declared_fields(&self) -> Option<DeclaredFields> {
@@ -386,6 +402,17 @@ impl FeatureSource for GpkgSource {
                     }
                 };
                 f.props.push((name.clone(), value));
+            }
+            if f.geometry_type.as_deref() == Some("empty") && self.any_geometry {
+                // Each site and each zone needs its geometry: refused, naming the feature.
+                return Err(fail(
+                    &columns[geom].0,
+                    format!(
+                        "the geometry is empty (a Point of NaN ordinates is GeoPackage's empty \
+                         point, §2.1.3.1.2); each feature of the {} layer needs a geometry",
+                        self.role
+                    ),
+                ));
             }
             if f.geometry_type.as_deref() == Some("empty") {
                 *skipped.entry("empty geometry".into()).or_default() += 1;

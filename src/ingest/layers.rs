@@ -45,9 +45,23 @@ pub fn read_layers(sources: &[Source], settings: &RoadSettings) -> Result<LineLa
         }
     }
     let mut parts = Vec::with_capacity(sources.len());
+    let mut named = false;
     for s in sources {
         let mut src = open_source(s, settings, several)?;
+        named |= src.chosen_by_name();
         parts.push(read_lines_as(src.as_mut(), settings, several)?);
+    }
+    // With several inputs --roads-layer chooses only in those holding several layers: a name
+    // that chose nothing is refused, never ignored.
+    if let (true, Some(name), false) = (several, &settings.layer, named) {
+        return Err(IngestError::Setting {
+            name: "--roads-layer",
+            message: format!(
+                "{name:?} chose no layer: with several --roads inputs it chooses within each \
+                 GeoPackage or zip that holds several layers (one holding a single layer is read \
+                 whole), and none of them holds several; leave it out"
+            ),
+        });
     }
     Ok(merge(parts))
 }

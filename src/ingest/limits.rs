@@ -24,6 +24,19 @@ pub const MAX_ZIP_SET: u64 = 1 << 30;
 /// Largest single CSV row: 1 MiB.
 pub const MAX_CSV_ROW: usize = 1 << 20;
 
+/// Items a message lists before it says how many more there are.
+pub const LISTED: usize = 20;
+
+/// At most [`LISTED`] of `items`, comma-separated, then "and K more": every message that lists
+/// what an input holds stays one short line, however much it holds.
+pub fn listed<S: AsRef<str>>(items: &[S]) -> String {
+    let shown: Vec<&str> = items.iter().take(LISTED).map(AsRef::as_ref).collect();
+    match items.len().saturating_sub(LISTED) {
+        0 => shown.join(", "),
+        more => format!("{} and {more} more", shown.join(", ")),
+    }
+}
+
 /// The UTF-8 encoding of U+FEFF, written by some editors and spreadsheets at the start of a file.
 pub const UTF8_BOM: &[u8] = b"\xEF\xBB\xBF";
 
@@ -178,6 +191,14 @@ impl<R: Read> Read for LineLimit<R> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn long_lists_are_cut() {
+        let items: Vec<String> = (0..60_000).map(|i| format!("set{i}.shp")).collect();
+        let m = listed(&items);
+        assert!(m.ends_with("set19.shp and 59980 more"), "{m}");
+        assert_eq!(listed(&items[..2]), "set0.shp, set1.shp");
+    }
 
     #[test]
     fn bom_is_skipped_and_utf16_named() {

@@ -34,6 +34,7 @@ pub mod repair;
 pub mod reports;
 pub mod roads;
 pub mod scan;
+pub mod set_errors;
 pub mod set_files;
 pub mod shapefile;
 pub mod shapeset;

@@ -166,11 +166,13 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
 
     // Junctions: line ends, and clusters where the distinct road segments meeting there are not
     // exactly two (so duplicated or overlapping lines do not turn their shared vertices into junctions).
+    // A cluster no remaining segment touches (a dropped zero-length part, a line collapsed by the
+    // CRS or the tolerance, an end moved by a join) is no junction: it would be a phantom component.
     let (degree, is_end) = super::repair::segment_degrees(&seq, &seq_ends, centres.len());
     let mut junction_of = vec![u32::MAX; centres.len()];
     let mut junctions = Vec::new();
     for c in 0..centres.len() {
-        if is_end[c] || degree[c] != 2 {
+        if degree[c] > 0 && (is_end[c] || degree[c] != 2) {
             junction_of[c] = junctions.len() as u32;
             junctions.push(centres[c]);
         }

@@ -77,6 +77,13 @@ impl Outline {
                 ));
             }
         }
+        let parts: Vec<geo::Polygon<f64>> = self.polygons.iter().map(|r| to_geo(r)).collect();
+        if let Some((a, b)) = super::valid::overlapping_parts(&parts) {
+            return Err(format!(
+                "polygons {a} and {b} of the site overlap (OGC Simple Features: the parts of a \
+                 MultiPolygon do not overlap); merge them into one polygon in a GIS (dissolve)"
+            ));
+        }
         let p = self.inside_point().ok_or("the polygon has no inside")?;
         Ok([super::wrap::fold(p[0]), p[1]])
     }

@@ -126,8 +126,8 @@ pub fn read_points(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
 fn text_layer(source: &Source, spec: &PointSpec, csv: bool) -> Result<PointLayer, IngestError> {
     let path = source.display_path();
     let mut reader = source.open()?;
-    let mut features = if csv {
-        super::csv_points::read(&mut reader, &path, spec)?
+    let (mut features, member) = if csv {
+        (super::csv_points::read(&mut reader, &path, spec)?, None)
     } else {
         read_geojson(&mut reader, &path, spec)?
     };
@@ -136,7 +136,12 @@ fn text_layer(source: &Source, spec: &PointSpec, csv: bool) -> Result<PointLayer
             path: path.clone(),
             source,
         })?;
-    let crs = user_crs(&path, spec)?;
+    // The option overrides a GeoJSON layer's legacy `crs` member, as --crs does a road layer's.
+    let crs = match (user_crs(&path, spec)?, member) {
+        (Some(c), _) => Some(c),
+        (None, Some(m)) => Some(super::crs::crs_member(&path, Some(&m), spec.crs_flag)?),
+        (None, None) => None,
+    };
     to_lonlat(&path, crs.as_ref(), spec, &mut features)?;
     Ok(PointLayer {
         features,
@@ -180,14 +185,15 @@ pub(super) fn feature_err(
     }
 }
 
+/// The features of a GeoJSON point layer and its legacy `crs` member, if it has one.
 fn read_geojson<R: std::io::Read>(
     reader: R,
     path: &Path,
     spec: &PointSpec,
-) -> Result<Vec<PointFeature>, IngestError> {
+) -> Result<(Vec<PointFeature>, Option<serde_json::Value>), IngestError> {
     let mut out = Vec::new();
     // Keep every property: point layers are small, and their attributes go to the outputs.
-    read_collection(
+    let info = read_collection(
         reader,
         &[super::geojson::ALL_PROPERTIES.to_string()],
         |index, mut f| {
@@ -204,7 +210,7 @@ fn read_geojson<R: std::io::Read>(
         },
     )
     .map_err(|e| IngestError::from_read(path, e))?;
-    Ok(out)
+    Ok((out, info.crs))
 }
 
 /// A feature's point, or its outline, from a geometry in GeoJSON's layout (the GeoJSON and
@@ -279,9 +285,11 @@ pub(super) fn to_lonlat(
                             index,
                             Some("geometry"),
                             format!(
-                                "({}, {}) cannot be converted from {} to longitude/latitude: it is \
+                                "{} cannot be converted from {} to longitude/latitude: it is \
                              implausible for that CRS; check {} and the layer's units",
-                                p[0], p[1], crs.name, spec.crs_flag
+                                crate::decimal::position(*p),
+                                crs.name,
+                                spec.crs_flag
                             ),
                         )
                     })?
@@ -308,9 +316,10 @@ fn check_lonlat(
         index,
         Some("geometry"),
         format!(
-            "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90); a layer in another \
-             CRS needs {} EPSG:NNNN",
-            p[0], p[1], spec.crs_flag
+            "{} is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, \
+             {}",
+            crate::decimal::position(p),
+            super::crs::hint(spec.crs_flag)
         ),
     ))
 }

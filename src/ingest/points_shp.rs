@@ -1,6 +1,6 @@
 //! Point layers from a Shapefile set, on disk or the one set in a zip archive (the layer option
 //! chooses among several): Point shapes (plain, M, Z), and Polygon shapes where the layer takes
-//! outlines (each outer ring starts a polygon, the holes after it belong to it). The CRS is the
+//! outlines (each hole in the outer ring that contains it, whatever their order). The CRS is the
 //! user's option, else the `.prj`; a set without either is refused.
 
 use super::IngestError;
@@ -8,7 +8,7 @@ use super::crs::Crs;
 use super::outline::Outline;
 use super::points::{PointFeature, PointLayer, PointSpec, feature_err, to_lonlat, user_crs};
 use super::reader::Format;
-use super::set_files::{SetFiles, open_files, shapefile_error};
+use super::set_files::{SetFiles, open_files};
 use super::source::Source;
 use shapefile::Shape;
 
@@ -16,7 +16,8 @@ use shapefile::Shape;
 pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, IngestError> {
     let (files, zip) = match (Format::of(source), source.path()) {
         (Format::ZippedShapefile, _) => {
-            let (files, record) = super::zipped::set_from_zip(source, spec.layer.as_deref())?;
+            let pick = super::reader::Pick::always(spec.layer.as_deref());
+            let (files, record, _) = super::zipped::set_from_zip(source, pick)?;
             (files, Some(record))
         }
         (_, Some(p)) => (SetFiles::from_disk(p)?, None),
@@ -34,15 +35,12 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
     };
     let mut set = open_files(&files)?;
     let numbers = set.numeric_text();
+    let fields = set.fields();
     let mut features = Vec::new();
     for (index, item) in set.records() {
         let (shape, record) = item.map_err(|e| {
-            feature_err(
-                &path,
-                index,
-                None,
-                format!("unreadable record: {}", shapefile_error(&path, e)),
-            )
+            let (field, message) = super::set_errors::record(&path, &fields, e);
+            feature_err(&path, index, field.as_deref(), message)
         })?;
         let (pos, outline) = match shape {
             Shape::Point(p) => ([p.x, p.y], None),
@@ -50,12 +48,15 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
             Shape::PointZ(p) => ([p.x, p.y], None),
             Shape::Polygon(p) if spec.polygons => {
                 outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(&path, index, Some("geometry"), m))?
             }
             Shape::PolygonM(p) if spec.polygons => {
                 outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(&path, index, Some("geometry"), m))?
             }
             Shape::PolygonZ(p) if spec.polygons => {
                 outline(super::zones_shp::ring_list(p.rings(), |q| [q.x, q.y]))
+                    .map_err(|m| feature_err(&path, index, Some("geometry"), m))?
             }
             Shape::NullShape => {
                 return Err(feature_err(
@@ -133,21 +134,15 @@ fn declared_crs(files: &SetFiles, spec: &PointSpec) -> Result<Crs, IngestError> 
     })
 }
 
-/// The outline of a Shapefile polygon: each outer ring starts a polygon, the holes after it
-/// belong to it (as for damage zones).
-fn outline(rings: Vec<(bool, Vec<[f64; 2]>)>) -> ([f64; 2], Option<Outline>) {
-    let mut polygons: Vec<Vec<Vec<[f64; 2]>>> = Vec::new();
-    for (outer, ring) in rings {
-        match polygons.last_mut() {
-            Some(p) if !outer => p.push(ring),
-            _ => polygons.push(vec![ring]),
-        }
-    }
+/// The outline of a Shapefile polygon, its rings assembled by [`super::zones_shp::assemble`]
+/// (each hole to the outer ring that contains it, whatever their order).
+fn outline(rings: Vec<(bool, Vec<[f64; 2]>)>) -> Result<([f64; 2], Option<Outline>), String> {
+    let polygons = super::zones_shp::assemble(rings)?;
     let first = polygons
         .first()
         .and_then(|p| p.first())
         .and_then(|r| r.first())
         .copied()
         .unwrap_or([0.0, 0.0]);
-    (first, Some(Outline { polygons }))
+    Ok((first, Some(Outline { polygons })))
 }

@@ -108,6 +108,11 @@ pub trait FeatureSource {
         None
     }
 
+    /// True when the layer was chosen by its name (`--roads-layer`), not read as the only one.
+    fn chosen_by_name(&self) -> bool {
+        false
+    }
+
     /// The attribute names the file declares up front, when it has a table of them; a field the
     /// user names is then checked before any feature is read.
     fn declared_fields(&self) -> Option<DeclaredFields> {
@@ -123,6 +128,34 @@ pub trait FeatureSource {
     ) -> Result<SourceInfo, IngestError>;
 }
 
+/// How `--roads-layer` chooses within one input (a zip of Shapefile sets, a GeoPackage).
+#[derive(Debug, Clone, Copy)]
+pub struct Pick<'a> {
+    /// The name given, if any.
+    pub name: Option<&'a str>,
+    /// One of several road inputs: an input holding a single layer is read whole, and the name
+    /// chooses only in inputs that hold several (some input must hold it: [`super::layers`]).
+    pub where_several: bool,
+}
+
+impl<'a> Pick<'a> {
+    /// The name, always applied (one input, or sites and zones).
+    pub fn always(name: Option<&'a str>) -> Pick<'a> {
+        Pick {
+            name,
+            where_several: false,
+        }
+    }
+}
+
+/// The road layers' pick: `--roads-layer`, applied where it means something when `several`.
+fn pick(settings: &RoadSettings, several: bool) -> Pick<'_> {
+    Pick {
+        name: settings.layer.as_deref(),
+        where_several: several,
+    }
+}
+
 /// Opens the reader of `source`'s format: the one place a format is chosen.
 /// With `several` layers in the run, `--crs` applies only to layers without a CRS of their own, so
 /// an extract's WGS84 is never in question.
@@ -133,7 +166,7 @@ pub fn open_source(
 ) -> Result<Box<dyn FeatureSource>, IngestError> {
     Ok(match Format::of(source) {
         Format::Shapefile | Format::ZippedShapefile => Box::new(
-            super::shapefile::ShapefileSource::open(source, settings.layer.as_deref())?,
+            super::shapefile::ShapefileSource::open(source, pick(settings, several))?,
         ),
         Format::OsmPbf => {
             if !several {
@@ -143,7 +176,7 @@ pub fn open_source(
         }
         Format::GeoPackage => Box::new(super::gpkg::GpkgSource::open(
             source,
-            settings.layer.as_deref(),
+            pick(settings, several),
         )?),
         Format::GeoJson => Box::new(super::geojson_source::GeoJsonSource::new(source)),
     })
@@ -235,11 +268,15 @@ pub fn read_lines_as(
             ),
         });
     }
+    // One layer: --crs overrides what it declares. Several: each keeps the CRS it declares and
+    // --crs gives it to those declaring none, or one they declare unreadably (the message for
+    // an unreadable .prj asks for --crs, so --crs must then work).
     let crs = match (user_crs, several) {
         (Some(c), false) => c,
-        (user, _) => match (source.declared_crs()?, user) {
-            (Some(c), _) | (None, Some(c)) => c,
-            (None, None) => source.default_crs()?,
+        (user, _) => match (source.declared_crs(), user) {
+            (Ok(Some(c)), _) | (Ok(None), Some(c)) | (Err(IngestError::Crs { .. }), Some(c)) => c,
+            (Ok(None), None) => source.default_crs()?,
+            (Err(e), _) => return Err(e),
         },
     };
     finish_coordinates(&mut layer, &path, &crs)?;
@@ -267,7 +304,7 @@ fn listed(names: &[String]) -> String {
     if names.is_empty() {
         "(none)".into()
     } else {
-        names.join(", ")
+        super::limits::listed(names)
     }
 }
 

@@ -244,8 +244,8 @@ pub fn finish_coordinates(
                 layer,
                 i,
                 format!(
-                    "({}, {}) is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, give its CRS with --crs EPSG:NNNN",
-                    p[0], p[1]
+                    "{} is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, give its CRS with --crs EPSG:NNNN",
+                    crate::decimal::position(p)
                 ),
             ));
         }
@@ -259,8 +259,9 @@ pub fn finish_coordinates(
             layer,
             i,
             format!(
-                "({}, {}) cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --crs and the layer's units",
-                p[0], p[1], crs.name
+                "{} cannot be converted from {} to longitude/latitude: it is implausible for that CRS; check --crs and the layer's units",
+                crate::decimal::position(p),
+                crs.name
             ),
         ));
     }
@@ -392,8 +393,8 @@ pub(super) fn add_feature(
                 return Err(fail(
                     Some("geometry"),
                     format!(
-                        "line {pi} vertex {vi} ({}, {}) is not a finite number",
-                        p[0], p[1]
+                        "line {pi} vertex {vi} {} is not a finite number",
+                        crate::decimal::position(*p)
                     ),
                 ));
             }

@@ -234,6 +234,37 @@ pub fn open_files(files: &SetFiles) -> Result<ShapeSet, IngestError> {
     use shapefile::dbase;
     let (shp, dbf) = (&files.shp.path, &files.dbf.path);
     let cursor = |m: &Member| Cursor::new(m.bytes.clone());
+    // Headers: 100 bytes for .shp and .shx (ESRI Shapefile Technical Description, 1998), 32
+    // for .dbf (dBASE III, common practice, no source); a shorter file is named before any
+    // reader stumbles on it.
+    for (m, header) in [(&files.shp, 100), (&files.shx, 100), (&files.dbf, 32)] {
+        if m.bytes.len() < header {
+            return Err(refuse(
+                &m.path,
+                format!(
+                    "the file holds {} byte(s), fewer than its {header}-byte header: it is empty \
+                     or truncated",
+                    m.bytes.len()
+                ),
+            ));
+        }
+    }
+    // The .shp and .shx headers declare their file's length in 16-bit words (bytes 24 to 27,
+    // big-endian): a file shorter than it says is truncated, and is named before a reader
+    // runs out of bytes inside it.
+    for m in [&files.shp, &files.shx] {
+        let words = i32::from_be_bytes([m.bytes[24], m.bytes[25], m.bytes[26], m.bytes[27]]);
+        let declared = i64::from(words) * 2;
+        if declared > m.bytes.len() as i64 {
+            return Err(refuse(
+                &m.path,
+                format!(
+                    "its header declares {declared} bytes but the file holds {}: it is truncated",
+                    m.bytes.len()
+                ),
+            ));
+        }
+    }
     let shapes = shapefile::ShapeReader::with_shx(cursor(&files.shp), cursor(&files.shx))
         .map_err(|e| refuse(shp, shapefile_error(shp, e)))?;
     let declared = match files.cpg.as_ref().map(|c| (c, c.text.as_ref())) {
@@ -252,7 +283,7 @@ pub fn open_files(files: &SetFiles) -> Result<ShapeSet, IngestError> {
         ),
         _ => files.dbf.bytes.get(29).and_then(|&b| driver_code_page(b)),
     };
-    let dbf_fail = |e: dbase::Error| refuse(dbf, format!("not a readable dBASE table: {e}"));
+    let dbf_fail = |e: dbase::Error| refuse(dbf, super::set_errors::dbf_table(&e));
     let table = match declared {
         Some(enc) => dbase::ReaderBuilder::new()
             .with_encoding(enc)
@@ -307,6 +338,6 @@ pub fn shapefile_error(path: &Path, e: shapefile::Error) -> String {
                 path.with_extension("shx").display()
             )
         }
-        other => other.to_string(),
+        other => super::set_errors::shp_message(&other),
     }
 }

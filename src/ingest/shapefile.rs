@@ -10,7 +10,7 @@ use super::coords::Coords;
 use super::crs::Crs;
 use super::geojson::RawFeature;
 use super::reader::{DeclaredFields, FeatureSource, Format, SourceInfo};
-use super::set_files::{SetFiles, open_files, shapefile_error, sibling};
+use super::set_files::{SetFiles, open_files, sibling};
 pub use super::set_files::{SetItem, ShapeSet, open_set};
 use super::source::{HashingReader, InputRecord, Source};
 use serde_json::Value;
@@ -27,18 +27,23 @@ pub struct ShapefileSource {
     /// The zip archive's record, when the set came from one (a set on disk is fingerprinted
     /// with its sidecars, [`fingerprint`]).
     zip: Option<InputRecord>,
+    /// The set was chosen in its zip by name.
+    named: bool,
 }
 
 impl ShapefileSource {
     /// Opens the set named by `source`: a `.shp` with its sidecars, or the one set in a `.zip`
     /// (`pick` names it when the archive holds several).
-    pub fn open(source: &Source, pick: Option<&str>) -> Result<ShapefileSource, IngestError> {
-        let (files, zip) = match (Format::of(source), source.path()) {
+    pub fn open(
+        source: &Source,
+        pick: super::reader::Pick,
+    ) -> Result<ShapefileSource, IngestError> {
+        let (files, zip, named) = match (Format::of(source), source.path()) {
             (Format::ZippedShapefile, _) => {
-                let (files, record) = super::zipped::set_from_zip(source, pick)?;
-                (files, Some(record))
+                let (files, record, named) = super::zipped::set_from_zip(source, pick)?;
+                (files, Some(record), named)
             }
-            (_, Some(p)) => (SetFiles::from_disk(p)?, None),
+            (_, Some(p)) => (SetFiles::from_disk(p)?, None, false),
             (_, None) => {
                 return Err(IngestError::Io {
                     path: source.display_path(),
@@ -52,6 +57,7 @@ impl ShapefileSource {
             files,
             set,
             zip,
+            named,
         })
     }
 }
@@ -107,15 +113,19 @@ impl FeatureSource for ShapefileSource {
         })?;
         Crs::from_wkt(text).map(Some).map_err(|m| IngestError::Crs {
             path: prj.path.clone(),
-            message: m,
+            message: format!("{m}; {}", super::crs::hint("--crs")),
         })
     }
 
     fn default_crs(&self) -> Result<Crs, IngestError> {
         Err(IngestError::Crs {
             path: self.path.clone(),
-            message: "has no .prj file beside it: give the layer's CRS with --crs EPSG:NNNN".into(),
+            message: format!("has no .prj file beside it: {}", super::crs::hint("--crs")),
         })
+    }
+
+    fn chosen_by_name(&self) -> bool {
+        self.named
     }
 
     fn declared_fields(&self) -> Option<DeclaredFields> {
@@ -139,15 +149,16 @@ impl FeatureSource for ShapefileSource {
             skipped.insert("flagged deleted in the .dbf".into(), deleted);
         }
         let numbers = self.set.numeric_text();
+        let fields = self.set.fields();
         for (index, item) in self.set.records() {
-            let (shape, record) = item.map_err(|e| IngestError::Feature {
-                path: path.clone(),
-                feature: index,
-                field: None,
-                message: format!(
-                    "unreadable shape or attribute record: {}",
-                    shapefile_error(&path, e)
-                ),
+            let (shape, record) = item.map_err(|e| {
+                let (field, message) = super::set_errors::record(&path, &fields, e);
+                IngestError::Feature {
+                    path: path.clone(),
+                    feature: index,
+                    field,
+                    message,
+                }
             })?;
             let coords = match lines(&shape) {
                 Ok(c) => c,
@@ -186,8 +197,9 @@ impl FeatureSource for ShapefileSource {
     }
 }
 
-/// The layer's CRS: `--crs`, else its `.prj`; a Shapefile without either is an error.
-pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
+/// The layer's CRS: the user's (given with `option`), else its `.prj`; a Shapefile without
+/// either is an error naming `option`.
+pub fn layer_crs(path: &Path, user: Option<&str>, option: &str) -> Result<Crs, IngestError> {
     let crs_err = |message: String| IngestError::Crs {
         path: path.to_path_buf(),
         message,
@@ -200,7 +212,10 @@ pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
         .map(|e| path.with_extension(e))
         .find(|p| p.exists())
         .ok_or_else(|| {
-            crs_err("has no .prj file beside it: give the layer's CRS with --crs EPSG:NNNN".into())
+            crs_err(format!(
+                "has no .prj file beside it: {}",
+                super::crs::hint(option)
+            ))
         })?;
     let wkt = super::limits::read_small_text(&prj).map_err(|source| IngestError::Io {
         path: prj.clone(),
@@ -208,7 +223,7 @@ pub fn layer_crs(path: &Path, user: Option<&str>) -> Result<Crs, IngestError> {
     })?;
     Crs::from_wkt(&wkt).map_err(|m| IngestError::Crs {
         path: prj.clone(),
-        message: m,
+        message: format!("{m}; {}", super::crs::hint(option)),
     })
 }
 

@@ -91,8 +91,10 @@ pub fn decode(blob: &[u8]) -> Result<Decoded, String> {
                 line(&mut c, le, dims, &mut coords)?;
             }
         }
+        k if k >= 8 => return Err(not_read(k)),
         k => return Ok(Decoded::Other(name(k))),
     }
+    ends_here(&c, kind)?;
     if coords.pos.is_empty() {
         return Ok(Decoded::Empty);
     }
@@ -116,6 +118,7 @@ pub fn decode_feature(blob: &[u8]) -> Result<Option<(&'static str, Coords)>, Str
             let (x, y) = point(&mut c, le, dims)?;
             if x.is_nan() && y.is_nan() {
                 // An empty point is written as NaN ordinates (GeoPackage 1.3, §2.1.3.1.2).
+                ends_here(&c, kind)?;
                 return Ok(None);
             }
             out.pos.push([x, y]);
@@ -153,8 +156,9 @@ pub fn decode_feature(blob: &[u8]) -> Result<Option<(&'static str, Coords)>, Str
             }
             out.height = kind as u8 - 2;
         }
-        k => return Err(format!("a {}, which reknit does not read here", name(k))),
+        k => return Err(not_read(k)),
     }
+    ends_here(&c, kind)?;
     if out.pos.is_empty() {
         return Ok(None);
     }
@@ -224,12 +228,14 @@ fn kind_of(code: u32) -> Result<(u32, usize), String> {
         3 => 4,
         _ => return Err(format!("geometry type code {code} is not a WKB type")),
     };
-    if !(1..=7).contains(&kind) {
+    if !(1..=17).contains(&kind) {
         return Err(format!("geometry type code {code} is not a WKB type"));
     }
     Ok((kind, dims))
 }
 
+/// The WKB name of a base type code (ISO 19125-1 and ISO/IEC 13249-3: 8 to 17 are curves,
+/// surfaces and triangles).
 fn name(kind: u32) -> &'static str {
     match kind {
         1 => "Point",
@@ -238,8 +244,46 @@ fn name(kind: u32) -> &'static str {
         4 => "MultiPoint",
         5 => "MultiLineString",
         6 => "MultiPolygon",
-        _ => "GeometryCollection",
+        7 => "GeometryCollection",
+        8 => "CircularString",
+        9 => "CompoundCurve",
+        10 => "CurvePolygon",
+        11 => "MultiCurve",
+        12 => "MultiSurface",
+        13 => "Curve",
+        14 => "Surface",
+        15 => "PolyhedralSurface",
+        16 => "TIN",
+        _ => "Triangle",
     }
+}
+
+/// Why a geometry of a type reknit does not read is refused, with what to do about it.
+fn not_read(kind: u32) -> String {
+    if kind >= 8 {
+        format!(
+            "a {} (WKB type {kind}), which reknit does not read: convert it to straight-segment \
+             lines or polygons in a GIS (linearise the curves) and give the layer again",
+            name(kind)
+        )
+    } else {
+        format!("a {}, which reknit does not read here", name(kind))
+    }
+}
+
+/// Refuses bytes left after the geometry: a blob holds one geometry and nothing else (GeoPackage
+/// 1.3, §2.1.3), so more bytes mean a damaged blob or a count written wrong.
+fn ends_here(c: &Cursor, kind: u32) -> Result<(), String> {
+    let left = c.b.len() - c.at;
+    if left > 0 {
+        return Err(format!(
+            "{left} byte(s) follow the end of the {} in a geometry of {} bytes: the blob is \
+             damaged or its counts are wrong",
+            name(kind),
+            c.b.len()
+        ));
+    }
+    Ok(())
 }
 
 /// Reads one line's points (after its type code) as a new part; a line with no points adds none.
@@ -397,6 +441,49 @@ mod tests {
             decode(b"GP\x00\x11\x00\x00\x00\x00").unwrap(),
             Decoded::Empty
         );
+    }
+
+    #[test]
+    fn bytes_after_the_geometry_and_curved_types_are_refused() {
+        // GeoPackage 1.3 §2.1.3: the blob is the header and one WKB geometry, nothing after it.
+        let mut w = linestring(true, 2, &[[1.0, 2.0, 0.0], [3.0, 4.0, 0.0]], 2);
+        assert!(decode(&blob(&w)).is_ok());
+        w.extend_from_slice(&[0, 0, 0]);
+        let e = decode(&blob(&w)).unwrap_err();
+        assert!(
+            e.contains("3 byte(s) follow the end of the LineString"),
+            "{e}"
+        );
+        let mut point = vec![1];
+        point.extend_from_slice(&1u32.to_le_bytes());
+        point.extend_from_slice(&1.5f64.to_le_bytes());
+        point.extend_from_slice(&2.5f64.to_le_bytes());
+        assert!(decode_feature(&blob(&point)).unwrap().is_some());
+        point.push(7);
+        assert!(
+            decode_feature(&blob(&point))
+                .unwrap_err()
+                .contains("1 byte(s) follow")
+        );
+        // ISO/IEC 13249-3 type codes: 10 CurvePolygon, 9 CompoundCurve (with Z: 1009).
+        for (code, what) in [
+            (10u32, "CurvePolygon"),
+            (1009, "CompoundCurve"),
+            (17, "Triangle"),
+        ] {
+            let mut c = vec![1];
+            c.extend_from_slice(&code.to_le_bytes());
+            c.extend_from_slice(&0u32.to_le_bytes());
+            for e in [
+                decode_feature(&blob(&c)).unwrap_err(),
+                decode(&blob(&c)).unwrap_err(),
+            ] {
+                assert!(e.contains(what) && e.contains("linearise"), "{e}");
+            }
+        }
+        let mut c = vec![1];
+        c.extend_from_slice(&18u32.to_le_bytes());
+        assert!(decode(&blob(&c)).unwrap_err().contains("is not a WKB type"));
     }
 
     proptest::proptest! {

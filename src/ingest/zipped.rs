@@ -46,8 +46,8 @@ fn strip_ext<'a>(name: &'a str, ext: &str) -> Option<&'a str> {
 /// `pick` chooses among several sets, by file name without `.shp` or path inside the archive.
 pub fn set_from_zip(
     source: &Source,
-    pick: Option<&str>,
-) -> Result<(SetFiles, InputRecord), IngestError> {
+    pick: super::reader::Pick,
+) -> Result<(SetFiles, InputRecord, bool), IngestError> {
     let path = source.display_path();
     let mut reader = source.open_binary()?;
     let mut bytes = Vec::new();
@@ -99,6 +99,15 @@ pub fn set_from_zip(
     if let Some(message) = twice(&names) {
         return Err(refuse(&path, message));
     }
+    // With several road inputs, a zip of one set is read whole whatever --roads-layer names.
+    let sets = names
+        .iter()
+        .filter(|n| strip_ext(n, "shp").is_some())
+        .count();
+    let pick = match pick.name {
+        Some(_) if pick.where_several && sets == 1 => None,
+        name => name,
+    };
     let stem = choose(&path, &names, pick)?;
     let find = |ext: &str| {
         names
@@ -144,6 +153,7 @@ pub fn set_from_zip(
             cpg,
         },
         record,
+        pick.is_some(),
     ))
 }
 
@@ -217,10 +227,7 @@ fn inside(zip: &Path, name: &str) -> PathBuf {
 fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, IngestError> {
     let sets: Vec<&str> = names.iter().filter_map(|n| strip_ext(n, "shp")).collect();
     let listed = |v: &[&str]| {
-        v.iter()
-            .map(|s| format!("{s}.shp"))
-            .collect::<Vec<_>>()
-            .join(", ")
+        super::limits::listed(&v.iter().map(|s| format!("{s}.shp")).collect::<Vec<_>>())
     };
     let file_stem = |s: &str| s.rsplit('/').next().unwrap_or(s).to_string();
     let chosen: Vec<&str> = match pick {
@@ -235,21 +242,17 @@ fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, I
     };
     match (chosen.as_slice(), pick) {
         ([one], _) => Ok(one.to_string()),
-        ([], None) => {
-            let shown: Vec<&str> = names.iter().take(20).map(String::as_str).collect();
-            Err(refuse(
-                path,
-                format!(
-                    "holds no Shapefile set (no .shp member); its members are: {}{}",
-                    if shown.is_empty() {
-                        "(none)".into()
-                    } else {
-                        shown.join(", ")
-                    },
-                    if names.len() > 20 { ", …" } else { "" }
-                ),
-            ))
-        }
+        ([], None) => Err(refuse(
+            path,
+            format!(
+                "holds no Shapefile set (no .shp member); its members are: {}",
+                if names.is_empty() {
+                    "(none)".into()
+                } else {
+                    super::limits::listed(names)
+                },
+            ),
+        )),
         ([], Some(p)) => Err(refuse(
             path,
             format!(
@@ -366,6 +369,18 @@ pub fn read_member(
     let mut f = archive
         .by_name(name)
         .map_err(|e| fail(format!("cannot be read: {e}")))?;
+    // Only Stored (0) and Deflate (8) are read (APPNOTE.TXT §4.4.5): a member packed another way
+    // is not corrupt, and the analyst can re-zip it.
+    #[allow(deprecated)]
+    let method = f.compression().to_u16();
+    if method != 0 && method != 8 {
+        return Err(fail(format!(
+            "is compressed with {} (zip method {method}), which reknit does not read; re-zip the \
+             set with the ordinary Deflate method (for example `zip -Z deflate NEW.zip` and the \
+             set's files, or a file manager's \"compress\")",
+            zip::CompressionMethod::name_from_u16(method)
+        )));
+    }
     let declared = f.size();
     let limit = format!(
         "more than the {} MiB reknit inflates for one member of this kind (a zip bomb?)",

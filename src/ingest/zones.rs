@@ -44,6 +44,7 @@ pub fn read_zones(
     layer: Option<&str>,
 ) -> Result<ZoneLayer, IngestError> {
     let zones = read_zones_any(source, rule, crs, layer)?;
+    super::valid::zone_parts_apart(&source.display_path(), &zones.zones)?;
     // No zone at all would plan as if nothing were damaged: refused, not read as "no damage".
     if zones.zones.is_empty() {
         return Err(IngestError::Io {
@@ -86,22 +87,30 @@ fn read_zones_any(
     let mut reader = source.open()?;
     let mut zones = Vec::new();
     let mut defaulted = 0;
-    read_collection(
+    // Without --zones-crs the layer's own `crs` member decides (read as for roads), and it may
+    // come after the features: they wait, unconverted, until the whole collection is read.
+    let mut waiting = Vec::new();
+    let info = read_collection(
         &mut reader,
         std::slice::from_ref(&rule.field),
-        |index, f| {
-            add_zone_feature(
-                &path,
-                index,
-                &f,
-                rule,
-                conv.as_ref(),
-                &mut zones,
-                &mut defaulted,
-            )
+        |index, f| match &conv {
+            Some(c) => {
+                add_zone_feature(&path, index, &f, rule, Some(c), &mut zones, &mut defaulted)
+            }
+            None => {
+                waiting.push((index, f));
+                Ok(())
+            }
         },
     )
     .map_err(|e| IngestError::from_read(&path, e))?;
+    if conv.is_none() {
+        let declared = super::crs::crs_member(&path, info.crs.as_ref(), "--zones-crs")?;
+        let declared = (!declared.is_wgs84()).then_some(&declared);
+        for (index, f) in waiting {
+            add_zone_feature(&path, index, &f, rule, declared, &mut zones, &mut defaulted)?;
+        }
+    }
     let (sha256, bytes) =
         HashingReader::finish_buffered(reader).map_err(|source| IngestError::Io {
             path: path.clone(),
@@ -181,7 +190,11 @@ pub(super) fn add_zone_feature(
                         fail(
                             index,
                             "geometry",
-                            format!("({}, {}) cannot be converted from {}", p[0], p[1], cv.name),
+                            format!(
+                                "{} cannot be converted from {}",
+                                crate::decimal::position(*p),
+                                cv.name
+                            ),
                         )
                     })?;
                 }
@@ -192,7 +205,12 @@ pub(super) fn add_zone_feature(
                 return Err(fail(
                     index,
                     "geometry",
-                    format!("({}, {}) is not a longitude/latitude", p[0], p[1]),
+                    format!(
+                        "{} is not a longitude/latitude in WGS84 range (±180, ±90); if the layer \
+                         is projected, {}",
+                        crate::decimal::position(*p),
+                        super::crs::hint("--zones-crs")
+                    ),
                 ));
             }
             if ring.len() < 4 || ring.first() != ring.last() {

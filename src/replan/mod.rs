@@ -63,6 +63,61 @@ pub enum ReplanError {
     /// The run itself failed.
     #[error(transparent)]
     Job(#[from] JobError),
+    /// A message of the run that names options only `reknit plan` has, with what that means here.
+    #[error("{0}")]
+    PlanOptions(String),
+}
+
+/// The options of `reknit replan` (src/cli/replan.rs and its output options; tests/bad_low.rs
+/// checks the list against `reknit replan --help`).
+pub const OPTIONS: &[&str] = &[
+    "--finished",
+    "--out",
+    "--damage-points",
+    "--damage-zones",
+    "--sites",
+    "--roads",
+    "--label",
+    "--force",
+    "--quiet",
+    "--verbose",
+    "--output-format",
+    "--help",
+];
+
+/// Messages from the stages a re-plan shares with `reknit plan` advise plan's options; a re-plan
+/// reads its settings from the previous folder, so such a message says so and how to change them.
+fn own_options(e: ReplanError) -> ReplanError {
+    if !matches!(e, ReplanError::Setting(_) | ReplanError::Job(_)) {
+        return e;
+    }
+    let message = e.to_string();
+    let mut foreign: Vec<&str> = Vec::new();
+    let mut rest = message.as_str();
+    while let Some(at) = rest.find("--") {
+        let tail = &rest[at..];
+        let end = 2 + tail[2..]
+            .find(|c: char| !(c.is_ascii_lowercase() || c == '-'))
+            .unwrap_or(tail.len() - 2);
+        let option = tail[..end].trim_end_matches('-');
+        if option.len() > 2 && !OPTIONS.contains(&option) && !foreign.contains(&option) {
+            foreign.push(option);
+        }
+        rest = &tail[end.max(2)..];
+    }
+    if foreign.is_empty() {
+        return e;
+    }
+    ReplanError::PlanOptions(format!(
+        "{message} ({} {} of reknit plan: a re-plan keeps the settings recorded in the \
+         previous plan's summary.json; to change them, run reknit plan again)",
+        foreign.join(", "),
+        if foreign.len() == 1 {
+            "is an option"
+        } else {
+            "are options"
+        },
+    ))
 }
 
 impl previous::Previous {
@@ -166,4 +221,27 @@ pub struct ReplanFigures {
     pub finished_to_date: Vec<String>,
     /// Changes by code, as in `changes.geojson`.
     pub changes: BTreeMap<&'static str, usize>,
+}
+
+#[cfg(test)]
+mod own_options_tests {
+    use super::*;
+
+    #[test]
+    fn plan_options_in_a_message_are_explained() {
+        let e = ReplanError::Setting(crate::ingest::IngestError::Crs {
+            path: "roads.shp".into(),
+            message: "has no .prj file beside it: give the layer's CRS with --crs EPSG:NNNN; \
+                      or --sites and --crs again"
+                .into(),
+        });
+        let m = own_options(e).to_string();
+        assert!(m.contains("(--crs is an option of reknit plan"), "{m}");
+        assert!(!m.contains("--sites is"), "{m}");
+        let ok = ReplanError::Setting(crate::ingest::IngestError::Crs {
+            path: "z".into(),
+            message: "give --damage-zones anew".into(),
+        });
+        assert!(matches!(own_options(ok), ReplanError::Setting(_)));
+    }
 }

@@ -191,6 +191,6 @@ fn forget_choices_of_other_files(req: &Request, prev: &previous::Previous, o: &m
 
 /// Runs the round: [`prepare`], then the ordinary stages.
 pub fn run(req: &Request, progress: &Progress) -> Result<crate::export::Summary, ReplanError> {
-    let job = prepare(req)?;
-    Ok(crate::job::run_plan(&job, progress)?)
+    let job = prepare(req).map_err(super::own_options)?;
+    crate::job::run_plan(&job, progress).map_err(|e| super::own_options(e.into()))
 }
