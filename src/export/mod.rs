@@ -186,7 +186,11 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
         site_ids: o.site_ids,
         ids,
     };
-    let work_orders = || st.write("work-orders.csv", |w| work_orders::write_work_orders(w, sheet));
+    let work_orders = || {
+        st.write("work-orders.csv", |w| {
+            work_orders::write_work_orders(w, sheet)
+        })
+    };
     let order_of: crate::fxhash::FxHashMap<u32, &crate::solve::order::Step> =
         o.steps.iter().map(|s| (s.edge, s)).collect();
     let backup_edges: Vec<u32> = o
@@ -254,8 +258,7 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     let map_page = || {
         st.write("map.html", |w| {
             let rows = |f: &mut dyn FnMut(&[String; 25])| {
-                work_orders::rows(sheet, text::plain)
-                .for_each(|r| f(&r))
+                work_orders::rows(sheet, text::plain).for_each(|r| f(&r))
             };
             page::write_page(
                 w,

@@ -81,7 +81,13 @@ impl District {
 
     /// Writes `back.csv` from the work orders of `r1`, comma-separated (see [`sheet`]).
     pub fn sheet(&self, status: impl Fn(usize) -> &'static str) {
-        sheet(&self.join("back.csv"), &self.join("r1"), b',', false, status);
+        sheet(
+            &self.join("back.csv"),
+            &self.join("r1"),
+            b',',
+            false,
+            status,
+        );
     }
 }
 
