@@ -1,7 +1,8 @@
 //! Minimum spanning forest by Kruskal's algorithm over a compact edge list.
 //!
-//! Intact (zero-cost) edges need no sorting: they come first, in id order. The rest are taken in
-//! rounds, after the filtering scheme of Filter-Kruskal (Osipov, Sanders & Singler 2009): each round
+//! Intact (zero-cost) edges need no sorting: they come first, in id order, and so do the edges of
+//! the cheapest positive cost when they are many (intact roads weighed 1, say). The rest are taken
+//! in rounds, after the filtering scheme of Filter-Kruskal (Osipov, Sanders & Singler 2009): each round
 //! takes the edges up to a sampled median key that still join two trees (the check runs in parallel
 //! against the forest so far), sorts them and scans them with disjoint sets. On road networks most
 //! heavier edges close a cycle by the time their round comes and are never sorted. Keys pack
@@ -21,6 +22,9 @@ const LAST_ROUND_BELOW: usize = 1 << 15;
 
 /// How many edges ahead the scan starts loading disjoint-set entries.
 const LOOK_AHEAD: usize = 8;
+
+/// The cheapest positive cost gets its own unsorted pass when at least one edge in this many has it.
+const MANY_CHEAPEST: usize = 16;
 
 /// How many edges the pivot sample aims to look at.
 const SAMPLE: usize = 4096;
@@ -42,25 +46,38 @@ pub fn kruskal(g: &EdgeList) -> Vec<u32> {
             return forest.ids();
         }
     }
-    drop(intact);
-    let max_cost = g
+    let spread = g
         .cost
         .par_iter()
-        .copied()
-        .filter(|&c| c != UNUSABLE)
-        .max()
-        .unwrap_or(0);
+        .fold(Spread::default, |s, &c| s.with(c))
+        .reduce(Spread::default, Spread::merge);
     let id_bits = 64 - (g.len() as u64).leading_zeros();
-    let cost_bits = 64 - max_cost.leading_zeros();
+    let cost_bits = 64 - spread.max.leading_zeros();
     if id_bits + cost_bits > 64 {
         wide_costs(g, &mut ds, &mut forest);
         return forest.ids();
     }
+    let mut done = 0; // keys up to here have had their round (every key is above 0)
+    // When many edges share the cheapest positive cost (all intact roads at cost 1, say), they too
+    // come next in id order with no sorting: in (cost, id) order nothing else comes between.
+    if spread.at_min > 0 && spread.at_min >= g.len() / MANY_CHEAPEST {
+        count = 0;
+        for ((&c, &[a, b]), e) in g.cost.iter().zip(&g.ends).zip(0u32..) {
+            intact[count] = e;
+            count += usize::from((c == spread.min) & (a != b));
+        }
+        for &e in &intact[..count] {
+            if forest.take(g, &mut ds, e) {
+                return forest.ids();
+            }
+        }
+        done = (spread.min << id_bits) | ((1u64 << id_bits) - 1);
+    }
+    drop(intact);
     let id_of = |k: u64| (k & ((1u64 << id_bits) - 1)) as u32;
     let half = g.len() / 2;
     let (mut first, mut second, mut sorted, mut scratch) = (vec![], vec![], vec![], vec![]);
     let mut roots = Vec::new();
-    let mut done = 0; // keys up to here have had their round (every key is above 0)
     loop {
         // A snapshot of every junction's tree, taken in parallel: the scans below then compare two
         // nearby entries per edge instead of walking the trees.
@@ -127,6 +144,52 @@ pub fn kruskal(g: &EdgeList) -> Vec<u32> {
             return forest.ids();
         }
         done = upto;
+    }
+}
+
+/// The cheapest positive usable cost, how many edges have it, and the largest usable cost.
+#[derive(Clone, Copy)]
+struct Spread {
+    min: Cost,
+    at_min: usize,
+    max: Cost,
+}
+
+impl Default for Spread {
+    fn default() -> Self {
+        Spread {
+            min: UNUSABLE,
+            at_min: 0,
+            max: 0,
+        }
+    }
+}
+
+impl Spread {
+    #[inline]
+    fn with(mut self, c: Cost) -> Self {
+        if c != 0 && c != UNUSABLE {
+            if c < self.min {
+                self.min = c;
+                self.at_min = 0;
+            }
+            self.at_min += usize::from(c == self.min);
+            self.max = self.max.max(c);
+        }
+        self
+    }
+
+    fn merge(a: Self, b: Self) -> Self {
+        let at_min = match a.min.cmp(&b.min) {
+            std::cmp::Ordering::Less => a.at_min,
+            std::cmp::Ordering::Greater => b.at_min,
+            std::cmp::Ordering::Equal => a.at_min + b.at_min,
+        };
+        Spread {
+            min: a.min.min(b.min),
+            at_min,
+            max: a.max.max(b.max),
+        }
     }
 }
 
@@ -276,7 +339,7 @@ mod tests {
     #[test]
     fn rounds_match_prim_edge_for_edge() {
         type Draw = fn(&mut Rng) -> Cost;
-        let draws: [(&str, Draw); 4] = [
+        let draws: [(&str, Draw); 5] = [
             ("wide", |r| 1 + r.below(1 << 20)),
             ("ties", |r| 1 + r.below(3)),
             ("half intact", |r| {
@@ -288,6 +351,13 @@ mod tests {
             }),
             ("mostly intact", |r| {
                 if r.below(10) < 9 { 0 } else { 1 + r.below(100) }
+            }),
+            // Many edges at the cheapest positive cost take their own unsorted pass, after the
+            // free ones.
+            ("mostly cost 7", |r| match r.below(10) {
+                0 => 0,
+                1 | 2 => 7 + r.below(5000),
+                _ => 7,
             }),
         ];
         for (i, (name, draw)) in draws.into_iter().enumerate() {
