@@ -25,6 +25,7 @@ pub mod decimal;
 pub mod export;
 pub mod fuzzing;
 mod fxhash;
+pub mod heap;
 pub mod ingest;
 pub mod job;
 pub mod network;

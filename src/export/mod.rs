@@ -211,6 +211,9 @@ pub fn write_outputs(out: &guard::CheckedOut, force: bool, o: &Outputs) -> Resul
     // Every file is made from the plan alone, none from another file (only the report embeds
     // the PNG picture), so they are written side by side: each file's bytes are the same
     // whichever thread writes it and whenever, and staging lists them by name.
+    // What reading, noding and solving freed goes back to the system before the writers'
+    // buffers come on top of the network and the plan.
+    crate::heap::release_freed();
     crate::progress::mem_mark("writing: start");
     let (drawn, orders) = rayon::join(|| drawing::prepare(&scene), work_orders);
     orders?;
