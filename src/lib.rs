@@ -35,6 +35,7 @@ pub mod rng;
 pub mod sample;
 pub mod solve;
 pub mod synthetic;
+pub mod texts;
 
 pub use job::{JobError, PlanJob, run_plan};
 pub use network::Network;

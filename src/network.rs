@@ -6,6 +6,7 @@
 //! junction and ends at its `to` junction; closed edges carry cost 0 and are never part of a plan.
 
 use crate::ingest::damage::Damage;
+use crate::texts::{Text, TextTable};
 use serde_json::Value;
 
 /// Cost in milli-repair-metres (one repair-metre is one metre of road at damage factor 1.0).
@@ -33,13 +34,13 @@ pub struct FeatureMeta {
     pub source_id: Option<Value>,
     /// The damage read from the feature's attributes (factor × class rate).
     pub damage: Damage,
-    /// The damage category, when damage comes from a category field.
-    pub category: Option<Box<str>>,
+    /// The damage category, when damage comes from a category field (text in [`Network::texts`]).
+    pub category: Option<Text>,
     /// Road name and reference number (`name (ref)`), when the input has them.
-    pub label: Option<Box<str>>,
+    pub label: Option<Text>,
     /// The structure the road lies on (`bridge`, `tunnel`, `culvert`, …), when its attributes say
     /// so (see [`crate::ingest::structures`]).
-    pub structure: Option<Box<str>>,
+    pub structure: Option<Text>,
 }
 
 /// One road piece between two junctions.
@@ -79,6 +80,8 @@ pub struct Network {
     pub geom: Vec<[f64; 2]>,
     /// Input features, indexed by [`Edge::feature`].
     pub features: Vec<FeatureMeta>,
+    /// The features' texts (names, categories, structures), each kept once.
+    pub texts: TextTable,
     /// The input layers the features came from, in order, each with its first feature.
     pub layers: Vec<crate::ingest::layers::SourceLayer>,
 }
@@ -87,6 +90,11 @@ impl Network {
     /// The label of the input layer feature `feature` came from (`source_layer` in the outputs).
     pub fn source_layer(&self, feature: u32) -> Option<&str> {
         crate::ingest::layers::label_of(&self.layers, feature)
+    }
+
+    /// The text of a feature's handle (its `label`, `category` or `structure`).
+    pub fn text(&self, t: Option<Text>) -> Option<&str> {
+        self.texts.get(t)
     }
 
     /// The vertices of edge `e`, from its `from` junction to its `to` junction.

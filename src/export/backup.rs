@@ -100,7 +100,7 @@ pub fn write_backup<S: LayerSink + ?Sized>(
                     "source_id",
                     meta.source_id.as_ref().map_or(Prop::Null, Prop::Json),
                 ),
-                ("road", meta.label.as_deref().map_or(Prop::Null, Prop::Str)),
+                ("road", net.text(meta.label).map_or(Prop::Null, Prop::Str)),
                 ("length_m", Prop::Fixed3(edge.length_m)),
                 damage,
                 impassable,
@@ -108,7 +108,7 @@ pub fn write_backup<S: LayerSink + ?Sized>(
                 ("protects_sites", Prop::Str(&joined)),
                 (
                     "structure",
-                    meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
+                    net.text(meta.structure).map_or(Prop::Null, Prop::Str),
                 ),
                 ("work_order", Prop::Str(&ids.key(net, r.edge))),
             ],

@@ -411,11 +411,11 @@ pub fn write_edges<S: LayerSink + ?Sized>(
             ("source_id", source_id),
             (
                 "category",
-                meta.category.as_deref().map_or(Prop::Null, Prop::Str),
+                net.text(meta.category).map_or(Prop::Null, Prop::Str),
             ),
             (
                 "structure",
-                meta.structure.as_deref().map_or(Prop::Null, Prop::Str),
+                net.text(meta.structure).map_or(Prop::Null, Prop::Str),
             ),
             ("work_order", Prop::Str(key)),
             ("repair", Prop::Bool(edge.cost > 0)),

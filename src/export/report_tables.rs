@@ -17,7 +17,7 @@ fn road_cells(c: &Context, e: u32) -> String {
     format!(
         "<td><code>{}</code></td><td>{}</td>",
         esc(&c.keys.key(c.net, e)),
-        esc(meta.label.as_deref().unwrap_or("(no name)"))
+        esc(c.net.text(meta.label).unwrap_or("(no name)"))
     )
 }
 
@@ -29,8 +29,8 @@ fn figure_cells(c: &Context, e: u32) -> String {
         "<td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td>",
         fixed(edge.length_m, 1),
         fixed(cost_to_repair_metres(edge.cost), 1),
-        meta.structure
-            .as_deref()
+        c.net
+            .text(meta.structure)
             .map_or(String::new(), |s| format!("{} — inspect", esc(s)))
     )
 }
@@ -185,7 +185,7 @@ pub fn write_damage_reports<W: Write>(w: &mut W, c: &Context) -> io::Result<()> 
         )?;
         for (i, feature, d, damage) in f.matched.iter().take(MAX_ROWS) {
             let meta = &c.net.features[*feature as usize];
-            let road = match (&meta.label, &meta.source_id) {
+            let road = match (c.net.text(meta.label), &meta.source_id) {
                 (Some(l), _) => esc(l),
                 (None, Some(id)) => esc(&id.to_string()),
                 (None, None) => format!("road #{}", meta.source_index),
@@ -261,7 +261,7 @@ pub fn write_failures<W: Write>(w: &mut W, c: &Context) -> io::Result<()> {
                     format!(
                         "{} {}",
                         esc(&c.keys.key(c.net, e)),
-                        esc(meta.label.as_deref().unwrap_or("(no name)"))
+                        esc(c.net.text(meta.label).unwrap_or("(no name)"))
                     )
                 })
                 .collect();

@@ -96,7 +96,7 @@ pub fn write_single_failures<S: LayerSink + ?Sized>(
         gj.line(
             &[
                 ("edge", Prop::Int(*e as i64)),
-                ("road", meta.label.as_deref().map_or(Prop::Null, Prop::Str)),
+                ("road", net.text(meta.label).map_or(Prop::Null, Prop::Str)),
                 ("work_order", Prop::Str(&ids.key(net, *e))),
                 ("length_m", Prop::Fixed3(edge.length_m)),
                 ("sites_cut_off", Prop::Str(&joined)),

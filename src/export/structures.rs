@@ -47,11 +47,7 @@ pub fn figures(
     backup_edges: &[u32],
     field: Option<&str>,
 ) -> StructureFigures {
-    let on = |e: u32| {
-        net.features[net.edges[e as usize].feature as usize]
-            .structure
-            .as_deref()
-    };
+    let on = |e: u32| net.text(net.features[net.edges[e as usize].feature as usize].structure);
     let network_edges = (0..net.edges.len() as u32)
         .filter(|&e| on(e).is_some())
         .count();
@@ -74,7 +70,7 @@ pub fn figures(
             work_order: ids.key(net, e),
             edge: e,
             structure: on(e).unwrap_or_default().to_string(),
-            road: meta.label.as_deref().map(str::to_string),
+            road: net.text(meta.label).map(str::to_string),
             repair: edge.cost > 0,
             purpose,
         }

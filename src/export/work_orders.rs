@@ -121,13 +121,13 @@ pub fn rows<'a>(sheet: Sheet<'a>, cell: Cell) -> impl Iterator<Item = [String; 2
                 meta.source_index.to_string(),
                 cell(net.source_layer(e.feature).unwrap_or_default()).into_owned(),
                 cell(&id).into_owned(),
-                cell(meta.label.as_deref().unwrap_or_default()).into_owned(),
+                cell(net.text(meta.label).unwrap_or_default()).into_owned(),
                 crate::decimal::fixed(e.length_m, 3),
                 // Numeric, or empty for an impassable road (never repaired, so never written here).
                 e.damage
                     .factor()
                     .map_or(String::new(), |f| crate::decimal::trimmed(f, 6)),
-                cell(meta.category.as_deref().unwrap_or_default()).into_owned(),
+                cell(net.text(meta.category).unwrap_or_default()).into_owned(),
                 crate::decimal::fixed(cost_to_repair_metres(e.cost), 3),
                 f7(a[0]),
                 f7(a[1]),
@@ -136,7 +136,7 @@ pub fn rows<'a>(sheet: Sheet<'a>, cell: Cell) -> impl Iterator<Item = [String; 2
                 cell(&completes).into_owned(),
                 purpose.to_string(),
                 cell(&ids.key(net, edge)).into_owned(),
-                cell(meta.structure.as_deref().unwrap_or_default()).into_owned(),
+                cell(net.text(meta.structure).unwrap_or_default()).into_owned(),
                 String::new(),
                 String::new(),
                 String::new(),

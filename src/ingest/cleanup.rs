@@ -189,6 +189,7 @@ mod tests {
                     structure: None,
                 })
                 .collect(),
+            texts: Default::default(),
             layers: Vec::new(),
         };
         net.validate().unwrap();

@@ -11,6 +11,7 @@ use super::IngestError;
 use super::reader::{open_source, read_lines_as};
 use super::roads::{LineLayer, RoadSettings};
 use super::source::Source;
+use crate::network::FeatureMeta;
 
 /// One input layer's place in a [`LineLayer`] or network: its label and its first feature.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
@@ -123,7 +124,16 @@ pub fn merge(mut parts: Vec<LineLayer>) -> LineLayer {
         out.part_ends.extend(p.part_ends.iter().map(|e| e + c0));
         out.part_feature
             .extend(p.part_feature.iter().map(|f| f + f0));
-        out.features.extend(p.features);
+        // Each layer's text handles are renumbered into the one table.
+        let moved = out.texts.absorb(&p.texts);
+        let re = |t| crate::texts::TextTable::moved(&moved, t);
+        out.features
+            .extend(p.features.into_iter().map(|m| FeatureMeta {
+                category: re(m.category),
+                label: re(m.label),
+                structure: re(m.structure),
+                ..m
+            }));
         let (s, t) = (&mut out.stats, &p.stats);
         s.features_read += t.features_read;
         s.features_used += t.features_used;

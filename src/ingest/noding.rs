@@ -290,6 +290,7 @@ pub fn node_with(mut layer: LineLayer, opts: NodingOptions) -> (Network, NodingS
         geom_offsets,
         geom,
         features: layer.features,
+        texts: layer.texts,
         layers: layer.layers,
     };
     let (trimmed, near) = super::cleanup::clean(&mut net, snap_m, &mut qa);

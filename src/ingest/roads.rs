@@ -160,6 +160,8 @@ pub struct LineLayer {
     pub part_feature: Vec<u32>,
     /// Attributes of each feature that contributed lines.
     pub features: Vec<FeatureMeta>,
+    /// The features' texts, each kept once.
+    pub texts: crate::texts::TextTable,
     /// Counts from reading.
     pub stats: ReadStats,
     /// Path, size and fingerprint of the input.
@@ -475,9 +477,11 @@ pub(super) fn add_feature(
         source_index: index as u32,
         source_id,
         damage,
-        category: category.map(String::into_boxed_str),
-        label: label.map(String::into_boxed_str),
-        structure: super::structures::of(&f, settings.structure_field.as_deref()),
+        category: layer.texts.intern_opt(category.as_deref()),
+        label: layer.texts.intern_opt(label.as_deref()),
+        structure: layer
+            .texts
+            .intern_opt(super::structures::of(&f, settings.structure_field.as_deref()).as_deref()),
     });
     layer.osm_fields |= super::attribution::OSM_FIELDS
         .iter()

@@ -60,7 +60,7 @@ pub fn write_info(j: &mut Json, p: &Page) {
         let edge = &net.edges[*e as usize];
         let meta = &net.features[edge.feature as usize];
         vec![
-            meta.label.as_deref().unwrap_or_default().to_string(),
+            net.text(meta.label).unwrap_or_default().to_string(),
             p.keys.key(net, *e),
             fixed(edge.length_m, 3),
             sites.join(";"),
