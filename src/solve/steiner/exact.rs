@@ -37,6 +37,22 @@ pub struct Incumbent {
     pub cost: u64,
 }
 
+impl Incumbent {
+    /// Takes `edges` when they are a tree over `terminals` in `g` cheaper than the one held, and
+    /// says whether it did. Whatever a heuristic hands back is checked first: one that found no
+    /// tree (an ascent stopped at its budget grows none) hands back too few edges at too low a
+    /// cost, and such a set must never become the plan.
+    pub fn offer(&mut self, g: &EdgeList, terminals: &[u32], edges: Vec<u32>) -> bool {
+        let cost = tree::cost(g, &edges);
+        if cost >= self.cost || tree::check_steiner_tree(g, &edges, terminals).is_err() {
+            return false;
+        }
+        self.edges = edges;
+        self.cost = cost;
+        true
+    }
+}
+
 /// Runs one step on `g` (the base graph with ruled-out edges at [`UNUSABLE`]) for `terminals`,
 /// improving `best` when a cheaper tree turns up; each round runs dual ascents from up to `roots`
 /// terminals.
@@ -69,11 +85,8 @@ pub fn step(
         work += (2 * rg.len() * red.terminals.len() * bounds.len()) as u64;
         lb = lb.max(bounds.iter().map(|b| b.value).max().unwrap_or(0));
         let t = da_tree(rg, &csr, it, &red.terminals, &bounds, effort, ws);
-        let edges = reduce::expand(&g, &red, &t, terminals);
-        let cost = tree::cost(&g, &edges);
-        if cost < best.cost {
-            best.edges = edges;
-            best.cost = cost;
+        if let Some(t) = &t {
+            best.offer(&g, terminals, reduce::expand(&g, &red, t, terminals));
         }
         if lb >= best.cost {
             closed.work = work;
@@ -123,7 +136,7 @@ pub fn step(
             return Step {
                 bound: Some(lb),
                 alive,
-                branch: branch_vertex(&g, &red, rg, &t, &doomed),
+                branch: branch_vertex(&g, &red, rg, t.as_deref().unwrap_or_default(), &doomed),
                 work,
             };
         }
@@ -156,7 +169,8 @@ pub fn ascents(
 }
 
 /// The cheapest tree grown on the saturated arcs of the ascents (each joins every terminal to its
-/// root), polished; empty with fewer than two terminals.
+/// root), polished; empty with fewer than two terminals, `None` when no ascent completed (an
+/// ascent stopped at its budget has not saturated a path to every terminal).
 pub fn da_tree(
     rg: &EdgeList,
     csr: &Csr,
@@ -165,9 +179,9 @@ pub fn da_tree(
     bounds: &[Bound],
     effort: Effort,
     ws: &mut Workspace,
-) -> Vec<u32> {
+) -> Option<Vec<u32>> {
     if terminals.len() < 2 {
-        return Vec::new();
+        return Some(Vec::new());
     }
     let mut trees: Vec<(u64, Vec<u32>)> = bounds
         .iter()
@@ -190,7 +204,7 @@ pub fn da_tree(
             best = Some((c, t));
         }
     }
-    best.map(|b| b.1).unwrap_or_default()
+    best.map(|b| b.1)
 }
 
 /// Whether all `terminals` share one component over usable edges.
@@ -240,4 +254,80 @@ fn branch_vertex(
     // Back to a vertex of g in the zero-cost component the reduced vertex stands for.
     let want = red.component[pick as usize];
     (0..g.vertices as u32).find(|&v| red.super_of[v as usize] == want)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::solve::steiner::mehlhorn::mehlhorn;
+
+    /// A path 0 - 1 - 2 - 3 with a chord 0 - 2.
+    fn path() -> EdgeList {
+        EdgeList {
+            vertices: 4,
+            ends: vec![[0, 1], [1, 2], [2, 3], [0, 2]],
+            cost: vec![5, 5, 5, 7],
+        }
+    }
+
+    #[test]
+    fn only_a_cheaper_tree_is_taken() {
+        let g = path();
+        let mut held = Incumbent {
+            edges: vec![0, 1, 2],
+            cost: 15,
+        };
+        // No edges, or edges that leave terminal 3 out, cost less but are no tree over the
+        // terminals.
+        assert!(!held.offer(&g, &[0, 3], vec![]));
+        assert!(!held.offer(&g, &[0, 3], vec![0, 1]));
+        assert!(!held.offer(&g, &[0, 3], vec![0, 1, 2, 3])); // a cycle, and dearer
+        assert_eq!((held.edges.clone(), held.cost), (vec![0, 1, 2], 15));
+        assert!(held.offer(&g, &[0, 3], vec![2, 3]));
+        assert_eq!((held.edges.clone(), held.cost), (vec![2, 3], 12));
+        assert!(!held.offer(&g, &[0, 3], vec![0, 1, 2]));
+    }
+
+    /// A step whose dual ascents all stop at their work budget grows no tree on saturated arcs;
+    /// the best tree held must stay a real tree (an empty set once stood in for it, cost 0).
+    #[test]
+    fn a_step_whose_ascents_stop_early_keeps_a_real_tree() {
+        let g = crate::synthetic::grid_graph(120, 0.0, 5);
+        let mut ds = DisjointSets::new(g.vertices);
+        for e in 0..g.len() {
+            if g.usable(e) {
+                ds.union(g.ends[e][0], g.ends[e][1]);
+            }
+        }
+        let home = ds.find(0);
+        let terminals: Vec<u32> = (0..g.vertices as u32)
+            .step_by(97)
+            .filter(|&v| ds.find(v) == home)
+            .collect();
+        let red = reduce::reduce(&g, &terminals);
+        let rcsr = Csr::from_edges(&red.graph);
+        let early = ascents(&red.graph, &rcsr, &red.terminals, Effort::Quick, 4);
+        assert!(
+            early.iter().all(|b| !b.complete),
+            "the case under test needs ascents stopped by their budget"
+        );
+        let csr = Csr::from_edges(&g);
+        let mut is_terminal = vec![false; g.vertices];
+        for &t in &terminals {
+            is_terminal[t as usize] = true;
+        }
+        let mut ws = Workspace::new(g.vertices);
+        let m = mehlhorn(&g, &csr, &terminals, &is_terminal, &mut ws);
+        let mut held = Incumbent {
+            cost: tree::cost(&g, &m.edges),
+            edges: m.edges,
+        };
+        let before = held.cost;
+        step(g.clone(), &terminals, &mut held, Effort::Quick, 4, &mut ws);
+        assert_eq!(
+            tree::check_steiner_tree(&g, &held.edges, &terminals),
+            Ok(())
+        );
+        assert!(held.cost <= before && held.cost > 0);
+    }
 }

@@ -7,7 +7,7 @@
 
 use super::exact::{self, Incumbent};
 use super::paths::Workspace;
-use super::{Effort, heuristics, reduce, tree};
+use super::{Effort, heuristics, reduce};
 use crate::solve::graph::{Csr, EdgeList, UNUSABLE};
 
 /// Dual ascents per round of the root step (from terminals spread over the list, the first among
@@ -52,12 +52,7 @@ pub fn root_step(
         let csr = Csr::from_edges(&red.graph);
         let mut ws = Workspace::new(red.graph.vertices);
         let t = heuristics(&red.graph, &csr, &red, effort, &mut ws);
-        let edges = reduce::expand(&sub, &red, &t, terminals);
-        let cost = tree::cost(g, &edges);
-        if cost < best.cost {
-            best.edges = edges;
-            best.cost = cost;
-        }
+        best.offer(g, terminals, reduce::expand(&sub, &red, &t, terminals));
     }
     if bound >= best.cost {
         return Rest {
