@@ -33,17 +33,18 @@ impl Notes {
 /// many more), each cut when long ([`crate::ingest::limits::excerpt`]).
 pub(super) fn list<'a>(ids: impl IntoIterator<Item = &'a str>) -> String {
     use crate::ingest::limits::{LISTED, excerpt, listed};
-    let mut n = 0;
-    let mut items: Vec<String> = Vec::new();
-    for id in ids {
-        // `listed` counts the rest: empty placeholders cost nothing to hold.
-        items.push(if n < LISTED {
-            excerpt(id)
-        } else {
-            String::new()
-        });
-        n += 1;
-    }
+    // `listed` counts the rest: empty placeholders cost nothing to hold.
+    let items: Vec<String> = ids
+        .into_iter()
+        .enumerate()
+        .map(|(n, id)| {
+            if n < LISTED {
+                excerpt(id)
+            } else {
+                String::new()
+            }
+        })
+        .collect();
     listed(&items)
 }
 
