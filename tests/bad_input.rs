@@ -433,6 +433,7 @@ fn every_case_is_listed_in_the_docs() {
         "tests/bad_bounds.rs",
         "tests/bad_layers.rs",
         "tests/bad_points.rs",
+        "tests/bad_point_places.rs",
         "tests/bad_low.rs",
         "tests/bad_low_files.rs",
     ] {

@@ -81,7 +81,13 @@ case!(dbf_numeric_field_holding_text, |d| {
     plan_fails(
         &roads,
         &["--whole-network"],
-        &["roads.dbf", "feature 0", "field \"name\"", "not a number"],
+        &[
+            "roads.dbf",
+            "feature 0",
+            "field \"name\"",
+            "\"Road 0\"",
+            "not a number",
+        ],
     );
     let o = run(&["plan", "--roads", &s(&roads), "--out", &s(&d.join("o"))]);
     let m = stderr(&o);

@@ -62,6 +62,8 @@ const EXAMPLES: &[(&str, &str)] = &[
     ("damage_points_crs", "\"EPSG:4326\""),
     ("damage_points_delimiter", "\"semicolon\""),
     ("damage_points_layer", "\"reports\""),
+    ("damage_points_lon_column", "\"lon\""),
+    ("damage_points_lat_column", "\"lat\""),
     ("output_format", "\"gpkg\""),
 ];
 
@@ -175,6 +177,7 @@ fn every_key_applies_alike_wherever_it_is_given() {
     let points_for = |key: &str| match key {
         "damage_points_delimiter" => "\"base-reports.csv\"",
         "damage_points_layer" => "\"base-reports.gpkg\"",
+        "damage_points_lon_column" | "damage_points_lat_column" => "\"base-reports.csv\"",
         _ => "\"base-reports.geojson\"",
     };
     let lines = |skip: &str| -> String {
@@ -315,7 +318,7 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
     // field (the damage comes from `category_field` here), the site tags (for sites from an
     // OpenStreetMap extract, tests/osm.rs) and the layers of GeoPackages (tests/gpkg.rs,
     // tests/sites_formats.rs), and the CSV separator and layer of field reports (the reports here
-    // are GeoJSON; tests/damage_points_formats.rs).
+    // are GeoJSON; tests/damage_points_formats.rs; their CSV columns, tests/bad_points.rs).
     let used: Vec<(&str, &str)> = EXAMPLES
         .iter()
         .copied()
@@ -330,6 +333,8 @@ fn a_manifest_gives_the_outputs_of_the_same_flags() {
                 "zones_layer",
                 "damage_points_delimiter",
                 "damage_points_layer",
+                "damage_points_lon_column",
+                "damage_points_lat_column",
             ]
             .contains(k)
         })

@@ -254,6 +254,14 @@ pub const KEYS: &[Key] = &[
         j.damage_points_layer = v.opt_text()?;
         Ok(())
     }),
+    key("damage_points_lon_column", OptText, |j, v| {
+        j.damage_points_lon_column = v.opt_text()?;
+        Ok(())
+    }),
+    key("damage_points_lat_column", OptText, |j, v| {
+        j.damage_points_lat_column = v.opt_text()?;
+        Ok(())
+    }),
     key("output_format", Choice(&["geojson", "gpkg"]), |j, v| {
         let t = v.text()?;
         j.output_format = crate::export::sink::OutputFormat::from_name(&t)

@@ -259,6 +259,23 @@ fn place(what: &str, n: usize, name: Option<&str>) -> String {
     }
 }
 
+/// A CSV error with its line counted as the reader splits rows (CRLF, LF or CR), not as the
+/// `csv` crate counts them (LF only).
+fn csv_error(text: &str, e: &csv::Error) -> String {
+    let line = e.position().map_or(0, |p| {
+        crate::ingest::csv_lines::line_at(text.as_bytes(), p.byte())
+    });
+    match e.kind() {
+        csv::ErrorKind::UnequalLengths {
+            expected_len, len, ..
+        } => format!(
+            "not valid CSV: line {line} has {len} field(s) where the header has {expected_len}"
+        ),
+        csv::ErrorKind::Utf8 { .. } => format!("not valid CSV: line {line} is not UTF-8"),
+        _ => format!("not valid CSV at line {line}"),
+    }
+}
+
 fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
     let mut r = csv::Reader::from_reader(text.as_bytes());
     let headers: Vec<String> = r
@@ -291,10 +308,11 @@ fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
     let name_col = columns.iter().position(|k| k.name == "name");
     let mut entries = Vec::new();
     for (i, rec) in r.records().enumerate() {
-        let rec = rec.map_err(|e| format!("not valid CSV: {e}"))?;
+        let rec = rec.map_err(|e| csv_error(text, &e))?;
         let name = name_col
             .and_then(|c| rec.get(c))
             .filter(|n| !n.trim().is_empty());
+        // Rows are counted as records (a quoted cell may span lines; the header is row 1).
         let place = place("row", i + 2, name.map(str::trim));
         let mut values = BTreeMap::new();
         for (k, cell) in columns.iter().zip(rec.iter()) {
@@ -309,4 +327,18 @@ fn read_csv(text: &str, base: &Path) -> Result<Vec<Entry>, String> {
         entries.push(Entry { place, values });
     }
     Ok(entries)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_short_row_names_its_line_whatever_the_line_ends() {
+        for end in ["\n", "\r\n", "\r"] {
+            let t = ["name,roads", "A,a.geojson", "B", ""].join(end);
+            let e = read_csv(&t, Path::new(".")).map(|_| ()).unwrap_err();
+            assert!(e.contains("line 3 has 1 field(s)"), "{end:?}: {e}");
+        }
+    }
 }

@@ -151,6 +151,16 @@ pub struct PlanningArgs {
     #[arg(long, value_name = "NAME")]
     pub damage_points_layer: Option<String>,
 
+    /// CSV column with the field reports' longitudes (default: lon, lng, longitude or x). Only
+    /// with a CSV --damage-points file.
+    #[arg(long, value_name = "COLUMN")]
+    pub damage_points_lon_column: Option<String>,
+
+    /// CSV column with the field reports' latitudes (default: lat, latitude or y). Only with a
+    /// CSV --damage-points file.
+    #[arg(long, value_name = "COLUMN")]
+    pub damage_points_lat_column: Option<String>,
+
     /// Most repair-metres to spend (with --sites): when joining every site costs more, the sites
     /// giving the most priority per repair-metre are joined to the hub first, within the budget;
     /// the rest are listed with the cost to add each.
@@ -220,6 +230,8 @@ impl PlanningArgs {
         o.damage_points_crs = self.damage_points_crs.clone();
         o.damage_points_delimiter = self.damage_points_delimiter.clone();
         o.damage_points_layer = self.damage_points_layer.clone();
+        o.damage_points_lon_column = self.damage_points_lon_column.clone();
+        o.damage_points_lat_column = self.damage_points_lat_column.clone();
         o.crew_capacity = self.crew_capacity;
         o.crews = self.crews;
         o.max_detour = self.max_detour;

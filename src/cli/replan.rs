@@ -27,9 +27,35 @@ pub struct ReplanArgs {
     #[arg(long, value_name = "DIR")]
     out: PathBuf,
 
-    /// Damage points found since the previous plan, added to the earlier ones.
+    /// Damage points found since the previous plan, added to the earlier ones (each earlier
+    /// round's file is read as its round read it).
     #[arg(long, value_name = "FILE")]
     damage_points: Option<PathBuf>,
+
+    /// The CRS of the --damage-points given anew as EPSG:NNNN (default: the one recorded, else
+    /// its .prj or GeoPackage SRS, or WGS84 longitude/latitude).
+    #[arg(long, value_name = "EPSG:CODE")]
+    damage_points_crs: Option<String>,
+
+    /// Field separator of a CSV --damage-points given anew: `,` `;` or `tab` (default: the one
+    /// recorded, else told from the header line).
+    #[arg(long, value_name = "SEPARATOR")]
+    damage_points_delimiter: Option<String>,
+
+    /// The layer of a GeoPackage (or the set of a zipped Shapefile) --damage-points given anew
+    /// that holds several.
+    #[arg(long, value_name = "NAME")]
+    damage_points_layer: Option<String>,
+
+    /// CSV column with the longitudes of the --damage-points given anew (default: the one
+    /// recorded, else lon, lng, longitude or x).
+    #[arg(long, value_name = "COLUMN")]
+    damage_points_lon_column: Option<String>,
+
+    /// CSV column with the latitudes of the --damage-points given anew (default: the one
+    /// recorded, else lat, latitude or y).
+    #[arg(long, value_name = "COLUMN")]
+    damage_points_lat_column: Option<String>,
 
     /// Damage zones given anew, replacing the earlier ones.
     #[arg(long, value_name = "FILE")]
@@ -61,6 +87,13 @@ pub fn run_replan(a: ReplanArgs) -> anyhow::Result<ExitCode> {
         force: a.output.force,
         roads: a.roads.into_iter().map(Source::File).collect(),
         damage_points: a.damage_points.map(Source::File),
+        damage_points_read: reknit::job::ReportOptions {
+            crs: a.damage_points_crs,
+            delimiter: a.damage_points_delimiter,
+            layer: a.damage_points_layer,
+            lon_column: a.damage_points_lon_column,
+            lat_column: a.damage_points_lat_column,
+        },
         damage_zones: a.damage_zones.map(Source::File),
         sites: a.sites.map(Source::File),
         label: a.label,

@@ -99,7 +99,8 @@ impl CostTable {
                     }
                     other => {
                         return Err(format!(
-                            "category {k:?}: {other} is neither a factor nor \"closed\""
+                            "category {k:?}: {} is neither a factor nor \"closed\"",
+                            super::limits::excerpt(&other.to_string())
                         ));
                     }
                 };
@@ -124,7 +125,8 @@ impl CostTable {
                             .unwrap_or(f64::NAN);
                         if !(r.is_finite() && (0.0..=super::damage::MAX_FACTOR).contains(&r)) {
                             return Err(format!(
-                                "class rate {k:?} = {r} is not a rate from 0 to 1000"
+                                "class rate {k:?} = {} is not a rate from 0 to 1000",
+                                crate::decimal::shown(r)
                             ));
                         }
                         if k == "default" {

@@ -7,7 +7,9 @@
 //! [`PointSpec::number_columns`]) may use a decimal comma, one mark for the whole file.
 
 use super::IngestError;
+use super::csv_lines::LineTable;
 use super::csv_rfc::{QuoteCheck, decimal_mark};
+use super::limits::{excerpt, listed};
 use super::points::{LAT_COLUMNS, LON_COLUMNS, PointFeature, PointSpec, feature_err};
 use super::sites_csv::{DELIMITERS, delimiter_name, detect, number};
 use serde_json::Map;
@@ -29,7 +31,10 @@ pub(super) fn read<R: BufRead>(
         Some(d) => d,
         None => {
             let head = reader.fill_buf().map_err(|e| refuse(e.to_string()))?;
-            let line_end = head.iter().position(|&b| b == b'\n').unwrap_or(head.len());
+            let line_end = head
+                .iter()
+                .position(|&b| b == b'\n' || b == b'\r')
+                .unwrap_or(head.len());
             detect(&head[..line_end])
                 .map_err(|m| refuse(format!("line 1: {}", m.replace("--sites-delimiter", flag))))?
         }
@@ -38,12 +43,17 @@ pub(super) fn read<R: BufRead>(
     let mut rdr = csv::ReaderBuilder::new()
         .delimiter(delimiter)
         .flexible(false)
-        .from_reader(super::limits::LineLimit::new(
+        .from_reader(LineTable::new(super::limits::LineLimit::new(
             QuoteCheck::new(reader, delimiter),
             super::limits::MAX_CSV_ROW,
-        ));
-    let csv_err = |e: csv::Error| {
-        let line = e.position().map(|p| p.line()).unwrap_or(0);
+        )));
+    // Lines as the reader splits records (CRLF, LF or CR), not as `csv` counts them (LF only).
+    let line_of = |rdr: &csv::Reader<_>, p: Option<&csv::Position>| {
+        p.map_or(0, |p| {
+            LineTable::line_at(csv::Reader::get_ref(rdr), p.byte())
+        })
+    };
+    let csv_err = |e: csv::Error, line: u64| {
         // Not `Syntax`, whose message says GeoJSON.
         refuse(match e.kind() {
             csv::ErrorKind::UnequalLengths {
@@ -57,7 +67,13 @@ pub(super) fn read<R: BufRead>(
             _ => format!("not valid CSV at line {line}: {e}"),
         })
     };
-    let headers = rdr.headers().map_err(csv_err)?.clone();
+    let headers = match rdr.headers() {
+        Ok(h) => h.clone(),
+        Err(e) => {
+            let line = line_of(&rdr, e.position());
+            return Err(csv_err(e, line));
+        }
+    };
     if headers.len() == 1 {
         one_column(&headers[0], delimiter, spec).map_err(refuse)?;
     }
@@ -71,7 +87,7 @@ pub(super) fn read<R: BufRead>(
                 Some(h.trim()),
                 format!(
                     "the header names the column {:?} twice (columns {} and {}): rename one",
-                    h.trim(),
+                    excerpt(h.trim()),
                     j + 1,
                     i + 1
                 ),
@@ -94,7 +110,7 @@ pub(super) fn read<R: BufRead>(
                     format!(
                         "no {what} column (give its name with {}); the columns are: {}",
                         spec.column_flags,
-                        headers.iter().collect::<Vec<_>>().join(", ")
+                        listed(&headers.iter().map(excerpt).collect::<Vec<_>>())
                     ),
                 )
             })
@@ -107,9 +123,16 @@ pub(super) fn read<R: BufRead>(
         .map(|(i, h)| i == lon_i || i == lat_i || spec.number_columns.iter().any(|c| c == h.trim()))
         .collect();
     let mut rows = Vec::new();
-    for rec in rdr.records() {
-        let rec = rec.map_err(csv_err)?;
-        rows.push((rec.position().map_or(0, |p| p.line()), rec));
+    loop {
+        let mut rec = csv::StringRecord::new();
+        match rdr.read_record(&mut rec) {
+            Ok(true) => rows.push((line_of(&rdr, rec.position()), rec)),
+            Ok(false) => break,
+            Err(e) => {
+                let line = line_of(&rdr, e.position());
+                return Err(csv_err(e, line));
+            }
+        }
     }
     let cells = rows.iter().flat_map(|(line, rec)| {
         rec.iter()
@@ -135,7 +158,7 @@ pub(super) fn read<R: BufRead>(
                     path,
                     index,
                     Some(&headers[i]),
-                    format!("line {line}: {v:?} is not a number{hint}"),
+                    format!("line {line}: {:?} is not a number{hint}", excerpt(v)),
                 )
             })
         };

@@ -31,8 +31,8 @@ pub struct QuoteCheck<R> {
     inner: R,
     delimiter: u8,
     state: State,
-    /// Line number (1-based) of the byte being looked at.
-    line: u64,
+    /// Line of the byte being looked at (CRLF, LF or CR ends a line).
+    lines: super::csv_lines::LineCount,
     /// Line where the open quoted field started.
     opened: u64,
 }
@@ -44,7 +44,7 @@ impl<R> QuoteCheck<R> {
             inner,
             delimiter,
             state: State::Start,
-            line: 1,
+            lines: Default::default(),
             opened: 0,
         }
     }
@@ -54,7 +54,7 @@ impl<R> QuoteCheck<R> {
         let end = b == self.delimiter || b == b'\n' || b == b'\r';
         self.state = match (self.state, b) {
             (Start, b'"') => {
-                self.opened = self.line;
+                self.opened = self.lines.line();
                 Quoted
             }
             (Start | Plain, _) if end => Start,
@@ -63,7 +63,7 @@ impl<R> QuoteCheck<R> {
                     "line {}: a quote inside a field that does not start with one; a field \
                      holding quotes is enclosed in quotes, each quote inside written twice \
                      (RFC 4180 §2.5–2.7)",
-                    self.line
+                    self.lines.line()
                 ));
             }
             (Start | Plain, _) => Plain,
@@ -75,13 +75,12 @@ impl<R> QuoteCheck<R> {
                 return Err(format!(
                     "line {}: text after the closing quote of a field (a quoted field opened on \
                      line {}); a quote inside a quoted field is written twice (RFC 4180 §2.7)",
-                    self.line, self.opened
+                    self.lines.line(),
+                    self.opened
                 ));
             }
         };
-        if b == b'\n' {
-            self.line += 1;
-        }
+        self.lines.step(b);
         Ok(())
     }
 }
@@ -126,13 +125,18 @@ pub fn decimal_mark<'a>(
             comma = Some((line, column, t));
         }
     }
+    use super::limits::excerpt;
     match (point, comma) {
         (Some((pl, pc, pt)), Some((cl, cc, ct))) => Err(format!(
             "line {pl}, column {pc}: {pt:?} has a decimal point, while line {cl}, column {cc}: \
              {ct:?} has a decimal comma; in a file separated by a semicolon or a tab a point may \
              be a thousands separator ({pt:?} could mean {}), so every number must use the same \
              decimal mark",
-            pt.replace('.', "")
+            excerpt(&pt.replace('.', "")),
+            pc = excerpt(pc),
+            pt = excerpt(pt),
+            cc = excerpt(cc),
+            ct = excerpt(ct),
         )),
         (_, comma) => Ok(comma.is_some()),
     }
@@ -159,6 +163,9 @@ mod tests {
             open.contains("line 2") && open.contains("never closed"),
             "{open}"
         );
+        // Old Mac line ends (CR alone) count lines as LF does.
+        let open = check("id,name\rA,x\rB,\"oops,10\rC,x\r", b',').unwrap_err();
+        assert!(open.contains("line 3"), "{open}");
         let after = check("a,\"b\"c,d\n", b',').unwrap_err();
         assert!(after.contains("after the closing quote"), "{after}");
         let inside = check("a;b\"c;d\n", b';').unwrap_err();

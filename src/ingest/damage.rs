@@ -104,7 +104,9 @@ impl DamageRule {
                     Ok(v) => v,
                     Err(_) => {
                         return Err(format!(
-                            "value {s:?} is not a number (use a factor ≥ 0, or \"{}\" for impassable)",
+                            "value {:?} is not a number (use a factor ≥ 0, or \"{}\" for \
+                             impassable)",
+                            super::limits::excerpt(s),
                             self.closed_value
                         ));
                     }
@@ -112,7 +114,8 @@ impl DamageRule {
             }
             Some(other) => {
                 return Err(format!(
-                    "value {other} is not a number (use a factor ≥ 0, or \"{}\" for impassable)",
+                    "value {} is not a number (use a factor ≥ 0, or \"{}\" for impassable)",
+                    super::limits::excerpt(&other.to_string()),
                     self.closed_value
                 ));
             }
@@ -124,14 +127,18 @@ impl DamageRule {
 /// Validates a numeric factor: finite, negative means closed, at most [`MAX_FACTOR`].
 pub fn check_factor(factor: f64) -> Result<Damage, String> {
     if !factor.is_finite() {
-        return Err(format!("value {factor} is not a finite number"));
+        return Err(format!(
+            "value {} is not a finite number",
+            crate::decimal::shown(factor)
+        ));
     }
     if factor < 0.0 {
         return Ok(Damage::Closed);
     }
     if factor > MAX_FACTOR {
         return Err(format!(
-            "value {factor} exceeds the largest accepted damage factor {MAX_FACTOR}"
+            "value {} exceeds the largest accepted damage factor {MAX_FACTOR}",
+            crate::decimal::shown(factor)
         ));
     }
     Ok(Damage::Factor(factor))

@@ -36,10 +36,12 @@ pub fn read_gpkg_points(source: &Source, spec: &PointSpec) -> Result<PointLayer,
     let mut src =
         GpkgSource::open_layer(source, spec.layer.as_deref(), spec.layer_flag, spec.role)?;
     let path = src.path().to_path_buf();
-    let crs = match user_crs(&path, spec)? {
-        Some(c) => c,
-        None => src.declared_crs()?.unwrap_or_else(Crs::wgs84),
+    let named = match user_crs(&path, spec)? {
+        Some(c) => Some(c),
+        None => src.declared_crs()?,
     };
+    let described = named.as_ref().map(Crs::describe);
+    let crs = named.unwrap_or_else(Crs::wgs84);
     let layer = src.layer_name();
     let mut features = Vec::new();
     let all = [super::geojson::ALL_PROPERTIES.to_string()];
@@ -76,6 +78,7 @@ pub fn read_gpkg_points(source: &Source, spec: &PointSpec) -> Result<PointLayer,
         input: info.input,
         path,
         layer,
+        crs: described,
     })
 }
 

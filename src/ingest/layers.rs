@@ -226,13 +226,14 @@ pub fn check_layers_kept(
                 path: std::path::PathBuf::from(&l.label),
                 message: format!(
                     "road layer `{}`: {lost} of its {total} feature(s) collapsed to single points \
-                     when vertices closer than --snap {snap_m} m were merged, so the layer would \
+                     when vertices closer than --snap {} m were merged, so the layer would \
                      drop out of the network: its CRS is probably wrong. With several layers, \
                      --crs applies to every layer without a CRS of its own (a Shapefile without \
                      .prj, a GeoJSON without a `crs` member); give the layer a CRS of its own (a \
                      .prj, or a `crs` member such as \"urn:ogc:def:crs:OGC:1.3:CRS84\" for \
                      longitude/latitude) or leave out --crs",
-                    l.label
+                    l.label,
+                    crate::decimal::shown(snap_m)
                 ),
             });
         }

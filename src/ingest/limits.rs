@@ -37,6 +37,18 @@ pub fn listed<S: AsRef<str>>(items: &[S]) -> String {
     }
 }
 
+/// Characters of a value a message quotes before it cuts the rest.
+pub const QUOTED: usize = 60;
+
+/// `text` for a message: whole when at most [`QUOTED`] characters, else its first [`QUOTED`] and
+/// how many characters there are, so a value of megabytes never fills a screen.
+pub fn excerpt(text: &str) -> String {
+    match text.char_indices().nth(QUOTED) {
+        None => text.to_string(),
+        Some((at, _)) => format!("{}… ({} characters)", &text[..at], text.chars().count()),
+    }
+}
+
 /// The UTF-8 encoding of U+FEFF, written by some editors and spreadsheets at the start of a file.
 pub const UTF8_BOM: &[u8] = b"\xEF\xBB\xBF";
 
@@ -173,7 +185,12 @@ impl<R: Read> Read for LineLimit<R> {
     fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
         let n = self.inner.read(buf)?;
         for &b in &buf[..n] {
-            self.run = if b == b'\n' { 0 } else { self.run + 1 };
+            // CR alone ends a row too (old Mac line ends), as the CSV reader splits them.
+            self.run = if b == b'\n' || b == b'\r' {
+                0
+            } else {
+                self.run + 1
+            };
             if self.run > self.max {
                 return Err(io::Error::new(
                     io::ErrorKind::InvalidData,
@@ -198,6 +215,13 @@ mod tests {
         let m = listed(&items);
         assert!(m.ends_with("set19.shp and 59980 more"), "{m}");
         assert_eq!(listed(&items[..2]), "set0.shp, set1.shp");
+        assert_eq!(excerpt("short"), "short");
+        let long = "é".repeat(100_000);
+        let cut = excerpt(&long);
+        assert!(
+            cut.ends_with("… (100000 characters)") && cut.chars().count() < 90,
+            "{cut}"
+        );
     }
 
     #[test]

@@ -152,6 +152,7 @@ pub fn read_osm_sites(source: &Source, settings: &SiteSettings) -> Result<SiteLa
         sites,
         input: fingerprint(source, "sites")?,
         defaults,
+        origin: None,
     })
 }
 

@@ -90,6 +90,21 @@ pub struct PointLayer {
     pub path: PathBuf,
     /// The GeoPackage layer or zipped set read, when the format has layers.
     pub layer: Option<String>,
+    /// The CRS the positions were converted from (given or declared), described; `None` when the
+    /// layer named none and was read as WGS84 longitude/latitude.
+    pub crs: Option<String>,
+}
+
+impl PointLayer {
+    /// Where the layer came from, for [`super::elsewhere::check_near`].
+    pub fn origin(&self, spec: &PointSpec) -> super::elsewhere::LayerOrigin {
+        super::elsewhere::LayerOrigin {
+            path: self.path.clone(),
+            role: spec.role,
+            crs_flag: spec.crs_flag,
+            crs: self.crs.clone(),
+        }
+    }
 }
 
 /// True when `source` is read as CSV (`.csv` or `.txt`).
@@ -154,6 +169,7 @@ fn text_layer(source: &Source, spec: &PointSpec, csv: bool) -> Result<PointLayer
         },
         path,
         layer: None,
+        crs: crs.map(|c| c.describe()),
     })
 }
 

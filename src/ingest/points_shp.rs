@@ -39,7 +39,7 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
     let mut features = Vec::new();
     for (index, item) in set.records() {
         let (shape, record) = item.map_err(|e| {
-            let (field, message) = super::set_errors::record(&path, &fields, e);
+            let (field, message) = super::set_errors::record(&path, &fields, &numbers, index, e);
             feature_err(&path, index, field.as_deref(), message)
         })?;
         let (pos, outline) = match shape {
@@ -107,6 +107,7 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
         },
         path,
         layer,
+        crs: Some(crs.describe()),
     })
 }
 

@@ -52,6 +52,10 @@ pub struct ReportSettings {
     pub delimiter: Option<u8>,
     /// The layer of a GeoPackage, or the set of a zip, holding several.
     pub layer: Option<String>,
+    /// CSV longitude column (`--damage-points-lon-column`; default: [`super::points::LON_COLUMNS`]).
+    pub lon_column: Option<String>,
+    /// CSV latitude column (`--damage-points-lat-column`; default: [`super::points::LAT_COLUMNS`]).
+    pub lat_column: Option<String>,
 }
 
 impl ReportSettings {
@@ -63,16 +67,27 @@ impl ReportSettings {
             crs_flag: "--damage-points-crs",
             delimiter_flag: "--damage-points-delimiter",
             layer_flag: "--damage-points-layer",
-            column_flags: "a column named lon/lat, longitude/latitude or x/y",
+            column_flags: "--damage-points-lon-column/--damage-points-lat-column",
             polygons: false,
             crs: self.crs.clone(),
             delimiter: self.delimiter,
             layer: self.layer.clone(),
-            lon_column: None,
-            lat_column: None,
+            lon_column: self.lon_column.clone(),
+            lat_column: self.lat_column.clone(),
             number_columns: vec![field.to_string()],
         }
     }
+}
+
+/// The reports of one layer with where they came from.
+#[derive(Debug, Clone)]
+pub struct ReportLayer {
+    /// Reports in input order.
+    pub reports: Vec<Report>,
+    /// Path, size and SHA-256 of the input.
+    pub input: InputRecord,
+    /// Where the layer came from, for the check against the roads' extent.
+    pub origin: super::elsewhere::LayerOrigin,
 }
 
 /// Reads point reports from any point layer format ([`super::points`]): GeoJSON, CSV, Shapefile
@@ -81,8 +96,10 @@ pub fn read_reports(
     source: &Source,
     rule: &DamageRule,
     settings: &ReportSettings,
-) -> Result<(Vec<Report>, InputRecord), IngestError> {
-    let layer = read_points(source, &settings.point_spec(&rule.field))?;
+) -> Result<ReportLayer, IngestError> {
+    let spec = settings.point_spec(&rule.field);
+    let layer = read_points(source, &spec)?;
+    let origin = layer.origin(&spec);
     let path = layer.path;
     let mut out = Vec::with_capacity(layer.features.len());
     for f in layer.features {
@@ -111,7 +128,11 @@ pub fn read_reports(
             ),
         });
     }
-    Ok((out, layer.input))
+    Ok(ReportLayer {
+        reports: out,
+        input: layer.input,
+        origin,
+    })
 }
 
 /// Applies each report to the nearest road within `max_m` metres.

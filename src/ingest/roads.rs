@@ -93,8 +93,9 @@ impl RoadSettings {
             return Err(IngestError::Setting {
                 name: "--snap",
                 message: format!(
-                    "{} m is outside 0 to {MAX_SNAP_M} m (a tolerance this large would merge separate roads)",
-                    self.snap_m
+                    "{} m is outside 0 to {MAX_SNAP_M} m (a tolerance this large would merge \
+                     separate roads)",
+                    crate::decimal::shown(self.snap_m)
                 ),
             });
         }
@@ -103,7 +104,8 @@ impl RoadSettings {
             return Err(IngestError::Setting {
                 name: "--default-damage",
                 message: format!(
-                    "{d} is not a factor from 0 to {} (negative means closed)",
+                    "{} is not a factor from 0 to {} (negative means closed)",
+                    crate::decimal::shown(d),
                     super::damage::MAX_FACTOR
                 ),
             });

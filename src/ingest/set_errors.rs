@@ -4,15 +4,25 @@
 use shapefile::dbase;
 use std::path::Path;
 
-/// What went wrong reading a record of a set: the field concerned (for an attribute) and a plain
-/// message naming the file. `fields` are the .dbf's field names in table order.
-pub fn record(shp: &Path, fields: &[String], e: shapefile::Error) -> (Option<String>, String) {
+/// What went wrong reading record `index` of a set: the field concerned (for an attribute) and a
+/// plain message naming the file, quoting the value as written when the field is numeric or
+/// logical (`numbers`). `fields` are the .dbf's field names in table order.
+pub fn record(
+    shp: &Path,
+    fields: &[String],
+    numbers: &super::shapeset::NumericText,
+    index: usize,
+    e: shapefile::Error,
+) -> (Option<String>, String) {
     match e {
         shapefile::Error::DbaseError(e) => {
             let field = e.field_index().and_then(|i| fields.get(i.0).cloned());
             let dbf = shp.with_extension("dbf");
             let what = match &field {
-                Some(_) => dbf_value(&e),
+                Some(f) => match numbers.written(index, f) {
+                    Some(v) => format!("{:?}: {}", v, dbf_value(&e)),
+                    None => dbf_value(&e),
+                },
                 None => dbf_table(&e),
             };
             (field, format!("{}: {what}", dbf.display()))
@@ -103,7 +113,13 @@ mod tests {
     fn messages_carry_no_debugging_dump() {
         let eof = || std::io::Error::from(std::io::ErrorKind::UnexpectedEof);
         let p = Path::new("a/roads.shp");
-        let (field, m) = record(p, &[], shapefile::Error::IoError(eof()));
+        let (field, m) = record(
+            p,
+            &[],
+            &Default::default(),
+            0,
+            shapefile::Error::IoError(eof()),
+        );
         assert_eq!(field.as_deref(), Some("geometry"));
         assert!(m.starts_with("a/roads.shp: the file ends"), "{m}");
         for e in [

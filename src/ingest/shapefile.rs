@@ -152,7 +152,8 @@ impl FeatureSource for ShapefileSource {
         let fields = self.set.fields();
         for (index, item) in self.set.records() {
             let (shape, record) = item.map_err(|e| {
-                let (field, message) = super::set_errors::record(&path, &fields, e);
+                let (field, message) =
+                    super::set_errors::record(&path, &fields, &numbers, index, e);
                 IngestError::Feature {
                     path: path.clone(),
                     feature: index,

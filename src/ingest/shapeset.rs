@@ -109,6 +109,15 @@ pub struct NumericText {
 }
 
 impl NumericText {
+    /// The text record `feature`'s numeric or logical `field` holds as written, trimmed and cut
+    /// for a message ([`super::limits::excerpt`]); `None` for other fields.
+    pub fn written(&self, feature: usize, field: &str) -> Option<String> {
+        let f = self.fields.iter().find(|f| f.name == field)?;
+        let at = self.header + feature * self.record + f.offset;
+        let raw = self.bytes.get(at..at + f.len)?.trim_ascii();
+        Some(super::limits::excerpt(&String::from_utf8_lossy(raw)))
+    }
+
     /// The value of record `feature`'s `field` under the typing rule: a numeric field keeps the
     /// text it was written with when a number would not reproduce it ("007", "+1", "3.50", more
     /// digits than a double holds), and its overflow marker (all `*`) is refused; a logical field

@@ -66,6 +66,9 @@ pub struct SiteLayer {
     pub input: InputRecord,
     /// How many sites took a default because their layer lacks the field.
     pub defaults: SiteDefaults,
+    /// Where a point layer came from, for the check against the roads' extent (`None` for an
+    /// OpenStreetMap extract, always longitude/latitude).
+    pub origin: Option<super::elsewhere::LayerOrigin>,
 }
 
 /// Counts of sites that took a default for want of a value: such defaults change the plan, so
@@ -129,7 +132,9 @@ fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
     if super::reader::Format::of(source) == super::reader::Format::OsmPbf {
         return super::osm_sites::read_osm_sites(source, settings);
     }
-    let layer = read_points(source, &settings.point_spec())?;
+    let spec = settings.point_spec();
+    let layer = read_points(source, &spec)?;
+    let origin = layer.origin(&spec);
     let path = layer.path;
     let mut defaults = SiteDefaults::default();
     let mut sites = Vec::with_capacity(layer.features.len());
@@ -152,6 +157,7 @@ fn read_sites_any(source: &Source, settings: &SiteSettings) -> Result<SiteLayer,
         sites,
         input: layer.input,
         defaults,
+        origin: Some(origin),
     })
 }
 
@@ -215,7 +221,10 @@ fn priority(
                     path,
                     index,
                     Some(field),
-                    format!("priority {n} is not a number ≥ 0"),
+                    format!(
+                        "priority {} is not a number ≥ 0",
+                        super::limits::excerpt(&n.to_string())
+                    ),
                 )
             }),
         Some(Value::String(t)) if t.trim().is_empty() => Ok(1.0),
@@ -229,14 +238,20 @@ fn priority(
                     path,
                     index,
                     Some(field),
-                    format!("priority {t:?} is not a number ≥ 0"),
+                    format!(
+                        "priority {:?} is not a number ≥ 0",
+                        super::limits::excerpt(t)
+                    ),
                 )
             }),
         Some(other) => Err(feature_err(
             path,
             index,
             Some(field),
-            format!("priority {other} is not a number ≥ 0"),
+            format!(
+                "priority {} is not a number ≥ 0",
+                super::limits::excerpt(&other.to_string())
+            ),
         )),
     }
 }

@@ -39,7 +39,7 @@ pub fn detect(header: &[u8]) -> Result<u8, String> {
     for &b in header {
         match b {
             b'"' => quoted = !quoted,
-            b'\n' if !quoted => break,
+            b'\n' | b'\r' if !quoted => break,
             _ if !quoted => {
                 if let Some(i) = DELIMITERS.iter().position(|(c, _)| *c == b) {
                     seen[i] = true;

@@ -28,7 +28,7 @@ pub(super) fn read_shapefile_zones(
             message,
         };
         let (shape, record) = item.map_err(|e| {
-            let (field, message) = super::set_errors::record(path, &fields, e);
+            let (field, message) = super::set_errors::record(path, &fields, &numbers, index, e);
             IngestError::Feature {
                 path: path.to_path_buf(),
                 feature: index,

@@ -23,7 +23,7 @@ pub mod summary;
 
 pub use fingerprint::{fingerprint, job_fingerprint};
 pub use joined::SiteReach;
-pub use options::{Options, RoadOptions};
+pub use options::{Options, ReportOptions, RoadOptions};
 pub use record::settings_json;
 pub use settings::build;
 pub use status::SiteStatus;
@@ -106,6 +106,9 @@ pub struct PlanJob {
     /// Damage points of earlier rounds of a re-plan, applied before the finished work; `reports`
     /// then holds only points given anew.
     pub earlier_reports: Vec<Source>,
+    /// How each of `earlier_reports` is read (as its own round read it); empty: with
+    /// `report_settings`.
+    pub earlier_report_settings: Vec<crate::ingest::reports::ReportSettings>,
     /// What crews did since the previous plan (a re-plan only).
     pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
     /// The format of the map layers (`--output-format`).

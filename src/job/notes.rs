@@ -4,6 +4,7 @@
 //! field report that matched no road: each silently shapes the plan unless it is said. Every note
 //! goes to stderr (unless `--quiet`), to `summary.json` `notes` and to the report.
 
+use crate::decimal::shown;
 use crate::export::summary::Note;
 use crate::ingest::ReadStats;
 use crate::ingest::RoadSettings;
@@ -28,14 +29,23 @@ impl Notes {
     }
 }
 
-/// Up to ten ids joined by commas, then how many more.
+/// Ids for a message as every list is ([`crate::ingest::limits::listed`]: the first 20, then how
+/// many more), each cut when long ([`crate::ingest::limits::excerpt`]).
 pub(super) fn list<'a>(ids: impl IntoIterator<Item = &'a str>) -> String {
-    let all: Vec<&str> = ids.into_iter().collect();
-    let mut s = all.iter().take(10).copied().collect::<Vec<_>>().join(", ");
-    if all.len() > 10 {
-        s.push_str(&format!(" and {} more", all.len() - 10));
-    }
-    s
+    use crate::ingest::limits::{LISTED, excerpt, listed};
+    // `listed` counts the rest: empty placeholders cost nothing to hold.
+    let items: Vec<String> = ids
+        .into_iter()
+        .enumerate()
+        .map(|(n, id)| {
+            if n < LISTED {
+                excerpt(id)
+            } else {
+                String::new()
+            }
+        })
+        .collect();
+    listed(&items)
 }
 
 /// "1 road" / "3 roads".
@@ -70,7 +80,7 @@ fn factor_words(f: f64) -> String {
     } else if f == 1.0 {
         "factor 1 (full reconstruction)".into()
     } else {
-        format!("factor {f}")
+        format!("factor {}", shown(f))
     }
 }
 
@@ -190,11 +200,12 @@ pub(super) fn reports(notes: &mut Notes, fig: &ReportFigures, distance_m: f64) {
     notes.push(
         "damage_reports_unmatched",
         format!(
-            "{} of {} {} farther than {distance_m} m (--point-match-distance) from every road and changed nothing \
-             (summary.json damage_reports.unmatched lists them)",
+            "{} of {} {} farther than {} m (--point-match-distance) from every road and changed \
+             nothing (summary.json damage_reports.unmatched lists them)",
             count(fig.unmatched.len(), "damage report", "damage reports"),
             fig.read,
-            verb(fig.unmatched.len(), "lies", "lie")
+            verb(fig.unmatched.len(), "lies", "lie"),
+            shown(distance_m),
         ),
     );
 }
@@ -219,13 +230,13 @@ pub(super) fn unattached(
     notes.push(
         "sites_not_attached",
         format!(
-            "{} no usable road within --max-attach {max_attach_m} m and take no part in the \
-             plan: {}",
+            "{} no usable road within --max-attach {} m and take no part in the plan: {}",
             if far.len() == 1 {
                 "1 site has".to_string()
             } else {
                 format!("{} sites have", far.len())
             },
+            shown(max_attach_m),
             list(far)
         ),
     );
@@ -236,14 +247,17 @@ mod tests {
     use super::*;
 
     #[test]
-    fn lists_stop_at_ten() {
-        let ids: Vec<String> = (1..=12).map(|i| format!("s{i}")).collect();
+    fn lists_stop_at_twenty_and_long_ids_are_cut() {
+        let ids: Vec<String> = (1..=22).map(|i| format!("s{i}")).collect();
         let s = list(ids.iter().map(String::as_str));
         assert!(
-            s.starts_with("s1, s2,") && s.ends_with("s10 and 2 more"),
+            s.starts_with("s1, s2,") && s.ends_with("s20 and 2 more"),
             "{s}"
         );
         assert_eq!(list(["a"]), "a");
+        let long = "x".repeat(1 << 20);
+        assert!(list([long.as_str()]).len() < 100);
+        assert_eq!(factor_words(1e300), "factor 1e300");
     }
 
     #[test]

@@ -61,6 +61,22 @@ impl Default for RoadOptions {
     }
 }
 
+/// How one field reports file is read, as given: its `--damage-points-crs`, `-delimiter`,
+/// `-layer`, `-lon-column` and `-lat-column`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ReportOptions {
+    /// The layer's CRS (`EPSG:NNNN`).
+    pub crs: Option<String>,
+    /// The CSV separator: `,`, `;` or `tab`.
+    pub delimiter: Option<String>,
+    /// The GeoPackage layer or zipped set.
+    pub layer: Option<String>,
+    /// The CSV longitude column.
+    pub lon_column: Option<String>,
+    /// The CSV latitude column.
+    pub lat_column: Option<String>,
+}
+
 /// Every option of `reknit plan` (and of a manifest district). Options that only mean something
 /// with another input (`--max-attach` with `--sites`, `--point-match-distance` with `--damage-points`)
 /// are `None` unless given, so that giving one without its input can be refused.
@@ -96,6 +112,10 @@ pub struct Options {
     pub damage_points_delimiter: Option<String>,
     /// `--damage-points-layer`.
     pub damage_points_layer: Option<String>,
+    /// `--damage-points-lon-column`: the CSV field reports' longitude column.
+    pub damage_points_lon_column: Option<String>,
+    /// `--damage-points-lat-column`: the CSV field reports' latitude column.
+    pub damage_points_lat_column: Option<String>,
     /// `--budget`, repair-metres.
     pub budget: Option<f64>,
     /// `--redundancy`.
@@ -141,6 +161,9 @@ pub struct Options {
     /// Damage points of earlier rounds (`reknit replan`), applied before the finished work and
     /// before `damage_points`, which a re-plan fills only with points given anew.
     pub earlier_damage_points: Vec<Source>,
+    /// How each of `earlier_damage_points` is read, as its own round read it (`reknit replan`);
+    /// empty: every reports file is read with this run's `--damage-points-*` options.
+    pub earlier_damage_points_read: Vec<ReportOptions>,
     /// What crews did since the previous plan (`reknit replan` only; `None` for a first plan).
     pub field_work: Option<std::sync::Arc<crate::replan::FieldWork>>,
     /// `--site-tags` texts, `KEY=V1,V2` each (sites of an OpenStreetMap extract).
@@ -168,6 +191,8 @@ impl Options {
             damage_points_crs: None,
             damage_points_delimiter: None,
             damage_points_layer: None,
+            damage_points_lon_column: None,
+            damage_points_lat_column: None,
             budget: None,
             redundancy: false,
             crew_capacity: None,
@@ -190,6 +215,7 @@ impl Options {
             sites_layer: None,
             zones_layer: None,
             earlier_damage_points: Vec::new(),
+            earlier_damage_points_read: Vec::new(),
             field_work: None,
             site_tags: Vec::new(),
             output_format: Default::default(),

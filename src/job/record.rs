@@ -67,9 +67,32 @@ pub fn settings_json(job: &PlanJob) -> serde_json::Value {
         "damage_points_crs": r.crs,
         "damage_points_delimiter": r.delimiter.map(crate::ingest::sites_csv::delimiter_name),
         "damage_points_layer": r.layer,
+        "damage_points_lon_column": r.lon_column,
+        "damage_points_lat_column": r.lat_column,
+        // How each earlier round's reports file was read, in the order of the inputs.
+        "damage_points_earlier": when(
+            !job.earlier_reports.is_empty(),
+            job.earlier_reports
+                .iter()
+                .enumerate()
+                .map(|(i, _)| report_json(job.earlier_report_settings.get(i).unwrap_or(r)))
+                .collect::<Vec<_>>()
+                .into(),
+        ),
     });
     if let (Some(all), serde_json::Value::Object(more)) = (all.as_object_mut(), reports) {
         all.extend(more);
     }
     all
+}
+
+/// How one reports file is read, as [`crate::replan::restore`] reads it back.
+fn report_json(r: &crate::ingest::reports::ReportSettings) -> serde_json::Value {
+    serde_json::json!({
+        "crs": r.crs,
+        "delimiter": r.delimiter.map(crate::ingest::sites_csv::delimiter_name),
+        "layer": r.layer,
+        "lon_column": r.lon_column,
+        "lat_column": r.lat_column,
+    })
 }

@@ -5,8 +5,10 @@
 //! district fill an [`Options`] and call it, so a setting is read and checked the same way wherever
 //! it is given. [`road_settings`] is its part for `reknit check`.
 
-use super::options::{Options, RoadOptions};
+use super::options::{Options, ReportOptions, RoadOptions};
 use super::{Checked, MAX_ATTACH_LIMIT_M, PlanJob};
+use crate::decimal::shown;
+use crate::ingest::reports::ReportSettings;
 
 /// Longest `--time-limit`, seconds (a week): a clock so far out is a mistake, not a plan.
 pub const MAX_TIME_LIMIT_S: f64 = 604_800.0;
@@ -181,16 +183,18 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
             default: 1.0,
             closed_value: o.road.closed_value.clone(),
         },
-        report_settings: crate::ingest::reports::ReportSettings {
+        report_settings: report_settings(&ReportOptions {
             crs: o.damage_points_crs.clone(),
-            delimiter: o
-                .damage_points_delimiter
-                .as_deref()
-                .map(crate::ingest::sites_csv::parse_delimiter)
-                .transpose()
-                .map_err(|m| refuse("--damage-points-delimiter", m))?,
+            delimiter: o.damage_points_delimiter.clone(),
             layer: o.damage_points_layer.clone(),
-        },
+            lon_column: o.damage_points_lon_column.clone(),
+            lat_column: o.damage_points_lat_column.clone(),
+        })?,
+        earlier_report_settings: o
+            .earlier_damage_points_read
+            .iter()
+            .map(report_settings)
+            .collect::<Result<_, _>>()?,
         zones_crs: o.zones_crs.clone(),
         zones_layer: o.zones_layer.clone(),
         reports: o.damage_points.clone(),
@@ -208,6 +212,23 @@ fn typed(o: &Options) -> Result<PlanJob, IngestError> {
     };
     ranges(&job)?;
     Ok(job)
+}
+
+/// How a field reports file is read, its options checked.
+fn report_settings(r: &ReportOptions) -> Result<ReportSettings, IngestError> {
+    check_crs("--damage-points-crs", r.crs.as_deref())?;
+    Ok(ReportSettings {
+        crs: r.crs.clone(),
+        delimiter: r
+            .delimiter
+            .as_deref()
+            .map(crate::ingest::sites_csv::parse_delimiter)
+            .transpose()
+            .map_err(|m| refuse("--damage-points-delimiter", m))?,
+        layer: r.layer.clone(),
+        lon_column: r.lon_column.clone(),
+        lat_column: r.lat_column.clone(),
+    })
 }
 
 /// Refuses options that only mean something with an input or a kind of plan this run does not
@@ -239,7 +260,9 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
                            other sites are read by their geometry";
     const SITES_PLAN: &str =
         "this option is about a sites plan: give --sites (and not --whole-network)";
-    let rules: [(&'static str, bool, bool, &'static str); 27] = [
+    const REPORT_COLUMNS: &str = "only a CSV damage reports file (.csv or .txt) has coordinate \
+                                  columns; other reports are read by their geometry";
+    let rules: [(&'static str, bool, bool, &'static str); 29] = [
         (
             "--damage-points-crs",
             o.damage_points_crs.is_some(),
@@ -258,6 +281,18 @@ pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
             layered_points,
             "only a GeoPackage or zipped Shapefile damage reports file (--damage-points \
              FILE.gpkg or FILE.zip) holds layers to choose from",
+        ),
+        (
+            "--damage-points-lon-column",
+            o.damage_points_lon_column.is_some(),
+            csv_points,
+            REPORT_COLUMNS,
+        ),
+        (
+            "--damage-points-lat-column",
+            o.damage_points_lat_column.is_some(),
+            csv_points,
+            REPORT_COLUMNS,
         ),
         (
             "--sites-delimiter",
@@ -423,7 +458,7 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             "--max-attach",
             format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.max_attach_m
+                shown(job.max_attach_m)
             ),
         ));
     }
@@ -432,7 +467,7 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
     {
         return Err(refuse(
             "--budget",
-            format!("{b} repair-metres is not a number ≥ 0"),
+            format!("{} repair-metres is not a number ≥ 0", shown(b)),
         ));
     }
     if let Some(t) = job.time_limit_s
@@ -440,7 +475,10 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
     {
         return Err(refuse(
             "--time-limit",
-            format!("{t} seconds is not a number above 0 and at most {MAX_TIME_LIMIT_S}"),
+            format!(
+                "{} seconds is not a number above 0 and at most {MAX_TIME_LIMIT_S}",
+                shown(t)
+            ),
         ));
     }
     if let Some(c) = job.crew_capacity
@@ -449,7 +487,9 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
         return Err(refuse(
             "--crew-capacity",
             format!(
-                "{c} repair-metres per day is not a positive number of at least 0.001 (costs are counted in thousandths)"
+                "{} repair-metres per day is not a positive number of at least 0.001 (costs are \
+                 counted in thousandths)",
+                shown(c)
             ),
         ));
     }
@@ -465,7 +505,8 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
         return Err(refuse(
             "--max-detour",
             format!(
-                "{r} is not a number ≥ 1 (a corridor is never shorter than the undamaged trip)"
+                "{} is not a number ≥ 1 (a corridor is never shorter than the undamaged trip)",
+                shown(r)
             ),
         ));
     }
@@ -476,7 +517,7 @@ fn ranges(job: &PlanJob) -> Result<(), IngestError> {
             "--point-match-distance",
             format!(
                 "{} m is outside 0 to {MAX_ATTACH_LIMIT_M} m",
-                job.point_match_distance_m
+                shown(job.point_match_distance_m)
             ),
         ));
     }

@@ -213,6 +213,7 @@ pub(super) mod tests {
             sites,
             input,
             defaults: Default::default(),
+            origin: None,
         };
         (sl, attachments)
     }

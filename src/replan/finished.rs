@@ -70,17 +70,9 @@ pub fn read(path: &Path, text: &str) -> Result<Vec<Row>, ReplanError> {
         .flexible(true)
         .from_reader(text.as_bytes());
     let mut rows: Vec<Row> = Vec::new();
-    // Lines counted from byte offsets (a quoted cell may span lines; the header is line 1). After
-    // a CRLF line end the reader stops past the CR: a record's offset may point at the LF before
-    // it, so line ends at the offset are skipped first.
-    let line_at = |byte: u64| {
-        let b = text.as_bytes();
-        let mut at = (byte as usize).min(b.len());
-        while at < b.len() && (b[at] == b'\n' || b[at] == b'\r') {
-            at += 1;
-        }
-        b[..at].iter().filter(|&&c| c == b'\n').count() + 1
-    };
+    // Lines counted from byte offsets as the reader splits records (CRLF, LF or CR; a quoted
+    // cell may span lines; the header is line 1).
+    let line_at = |byte: u64| crate::ingest::csv_lines::line_at(text.as_bytes(), byte) as usize;
     for rec in r.records() {
         let rec = rec.map_err(|e| {
             let line = e.position().map_or(0, |p| line_at(p.byte()));
@@ -146,6 +138,16 @@ mod tests {
         assert_eq!(rows[0].work_order, "-WO-a-0-5");
         assert!(rows[0].done);
         assert_eq!((rows[1].line, rows[1].done), (4, false));
+    }
+
+    #[test]
+    fn old_mac_line_ends_name_their_line() {
+        let e = read(
+            Path::new("w.csv"),
+            "work_order,status\rWO-a,done\rWO-b,half\r",
+        )
+        .unwrap_err();
+        assert!(e.to_string().contains("line 3"), "{e}");
     }
 
     #[test]

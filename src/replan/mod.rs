@@ -13,6 +13,7 @@ pub mod finished;
 pub mod history;
 pub mod previous;
 mod previous_gpkg;
+mod reports_read;
 pub mod restore;
 mod round;
 pub mod warm;
@@ -74,6 +75,11 @@ pub const OPTIONS: &[&str] = &[
     "--finished",
     "--out",
     "--damage-points",
+    "--damage-points-crs",
+    "--damage-points-delimiter",
+    "--damage-points-layer",
+    "--damage-points-lon-column",
+    "--damage-points-lat-column",
     "--damage-zones",
     "--sites",
     "--roads",
@@ -145,6 +151,9 @@ pub struct Request {
     pub roads: Vec<Source>,
     /// Damage points found since, added to the earlier ones.
     pub damage_points: Option<Source>,
+    /// How `damage_points` is read (`--damage-points-crs`, `-delimiter`, `-layer`,
+    /// `-lon-column`, `-lat-column` given anew); an option not given keeps the recorded one.
+    pub damage_points_read: crate::job::ReportOptions,
     /// Damage zones given anew, replacing the earlier ones.
     pub damage_zones: Option<Source>,
     /// Sites given anew, replacing the earlier ones.

@@ -7,6 +7,7 @@
 use super::ReplanError;
 use super::previous::{Previous, RecordedInput};
 use crate::export::sink::OutputFormat;
+use crate::ingest::limits::excerpt;
 use crate::ingest::source::Source;
 use crate::job::Options;
 use crate::solve::MstAlgorithm;
@@ -19,11 +20,16 @@ pub const JOINED_FIELDS: &[&str] = &["joined_to_hub"];
 
 type Set = fn(&mut Options, &Value) -> Result<(), String>;
 
+/// A recorded value for a message, cut when long (a damaged summary may hold anything).
+fn shown(v: &Value) -> String {
+    excerpt(&v.to_string())
+}
+
 fn text(v: &Value) -> Result<Option<String>, String> {
     match v {
         Value::Null => Ok(None),
         Value::String(s) => Ok(Some(s.clone())),
-        _ => Err(format!("{v} is not text")),
+        _ => Err(format!("{} is not text", shown(v))),
     }
 }
 fn num(v: &Value) -> Result<Option<f64>, String> {
@@ -32,12 +38,12 @@ fn num(v: &Value) -> Result<Option<f64>, String> {
         _ => v
             .as_f64()
             .map(Some)
-            .ok_or_else(|| format!("{v} is not a number")),
+            .ok_or_else(|| format!("{} is not a number", shown(v))),
     }
 }
 fn flag(v: &Value) -> Result<bool, String> {
     v.as_bool()
-        .ok_or_else(|| format!("{v} is not true or false"))
+        .ok_or_else(|| format!("{} is not true or false", shown(v)))
 }
 fn named<T: Copy>(v: &Value, all: &[T], name: fn(T) -> &'static str) -> Result<Option<T>, String> {
     match text(v)? {
@@ -47,7 +53,7 @@ fn named<T: Copy>(v: &Value, all: &[T], name: fn(T) -> &'static str) -> Result<O
             .copied()
             .find(|&a| name(a) == t)
             .map(Some)
-            .ok_or_else(|| format!("\"{t}\" is not known")),
+            .ok_or_else(|| format!("\"{}\" is not known", excerpt(&t))),
     }
 }
 
@@ -159,7 +165,7 @@ pub const SETTINGS: &[(&str, Set)] = &[
             _ => Some(
                 v.as_u64()
                     .and_then(|n| u32::try_from(n).ok())
-                    .ok_or_else(|| format!("{v} is not a whole number of crews"))?,
+                    .ok_or_else(|| format!("{} is not a whole number of crews", shown(v)))?,
             ),
         };
         Ok(())
@@ -192,7 +198,12 @@ pub const SETTINGS: &[(&str, Set)] = &[
             match f.split_once(' ') {
                 Some(("keep", rule)) => o.road.keep_where.push(rule.into()),
                 Some(("drop", rule)) => o.road.drop_where.push(rule.into()),
-                _ => return Err(format!("\"{f}\" is not `keep F=V` or `drop F=V`")),
+                _ => {
+                    return Err(format!(
+                        "\"{}\" is not `keep F=V` or `drop F=V`",
+                        excerpt(f)
+                    ));
+                }
             }
         }
         Ok(())
@@ -235,6 +246,31 @@ pub const SETTINGS: &[(&str, Set)] = &[
         o.damage_points_layer = text(v)?;
         Ok(())
     }),
+    ("damage_points_lon_column", |o, v| {
+        o.damage_points_lon_column = text(v)?;
+        Ok(())
+    }),
+    ("damage_points_lat_column", |o, v| {
+        o.damage_points_lat_column = text(v)?;
+        Ok(())
+    }),
+    ("damage_points_earlier", |o, v| {
+        if v.is_null() {
+            return Ok(());
+        }
+        for r in v.as_array().ok_or("not a list")? {
+            let get = |k: &str| text(r.get(k).unwrap_or(&Value::Null));
+            o.earlier_damage_points_read
+                .push(crate::job::ReportOptions {
+                    crs: get("crs")?,
+                    delimiter: get("delimiter")?,
+                    layer: get("layer")?,
+                    lon_column: get("lon_column")?,
+                    lat_column: get("lat_column")?,
+                });
+        }
+        Ok(())
+    }),
     ("structure_field", |o, v| {
         o.road.structure_field = text(v)?;
         Ok(())
@@ -264,7 +300,8 @@ pub fn settings(prev: &Previous, o: &mut Options) -> Result<(), ReplanError> {
     for (key, v) in &prev.settings {
         let Some((_, set)) = SETTINGS.iter().find(|(k, _)| k == key) else {
             return Err(prev.broken(format!(
-                "setting `{key}` is not known to this version of reknit"
+                "setting `{}` is not known to this version of reknit",
+                excerpt(key)
             )));
         };
         set(o, v).map_err(|m| prev.broken(format!("setting `{key}`: {m}")))?;
@@ -309,8 +346,6 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
         }
         tried.push(cand);
     }
-    // Name the places looked at, the nearest few (the ancestors go up to the root).
-    tried.truncate(4);
     let flag = INPUTS
         .iter()
         .find(|(r, _)| *r == rec.role)
@@ -319,7 +354,17 @@ pub fn input(prev: &Previous, rec: &RecordedInput) -> Result<Source, ReplanError
         Some(f) => format!("give it anew with {f}"),
         None => format!("put the file recorded back at {}", rec.path),
     };
-    let looked: Vec<String> = tried.iter().map(|t| t.display().to_string()).collect();
+    // Name the places looked at: the nearest few, then how many more (the ancestors go up to the
+    // root).
+    let mut looked: Vec<String> = tried
+        .iter()
+        .take(4)
+        .map(|t| t.display().to_string())
+        .collect();
+    if tried.len() > 4 {
+        let last = looked.pop().unwrap_or_default();
+        looked.push(format!("{last} and {} more", tried.len() - 4));
+    }
     Err(ReplanError::Input {
         role: rec.role.clone(),
         path: rec.path.clone(),

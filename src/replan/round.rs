@@ -49,7 +49,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
         let listed: Vec<String> = done_unmatched
             .iter()
             .take(20)
-            .map(|(l, k)| format!("line {l} `{k}`"))
+            .map(|(l, k)| format!("line {l} `{}`", crate::ingest::limits::excerpt(k)))
             .collect();
         let more = match done_unmatched.len() > 20 {
             true => format!(" and {} more", done_unmatched.len() - 20),
@@ -129,6 +129,7 @@ pub fn prepare(req: &Request) -> Result<PlanJob, ReplanError> {
     }
     forget_choices_of_other_files(req, &prev, &mut o);
     o.damage_zones = req.damage_zones.clone().or(o.damage_zones);
+    super::reports_read::choose(req, &prev, &mut o)?;
     o.damage_points = req.damage_points.clone();
     if req.sites.is_some() {
         o.sites = req.sites.clone();

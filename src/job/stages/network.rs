@@ -3,6 +3,7 @@
 
 use crate::export::work_order_id::WorkOrderIds;
 use crate::ingest::attach::{Attachment, attach_sites};
+use crate::ingest::elsewhere::{Extent, LayerOrigin, check_near};
 use crate::ingest::noding::NodingStats;
 use crate::ingest::reports::{ReportFigures, apply_reports, read_reports};
 use crate::ingest::roads::LineLayer;
@@ -50,6 +51,16 @@ pub(in crate::job) fn build(
         let _s = progress.stage("noding");
         build_network(roads, &job.road_settings, false)?
     };
+    // A layer lying wholly away from the roads is refused before any of it is applied.
+    let roads_extent = Extent::of(net.geom.iter().copied());
+    let near = |origin: Option<&LayerOrigin>, points: &[[f64; 2]]| match (origin, &roads_extent) {
+        (Some(o), Some(e)) => check_near(o, points, e),
+        _ => Ok(()),
+    };
+    if let Some(sl) = sites {
+        let points: Vec<[f64; 2]> = sl.sites.iter().map(|s| s.pos).collect();
+        near(sl.origin.as_ref(), &points)?;
+    }
     let mut inputs = Vec::new();
     let mut zone_figures = (0usize, 0usize);
     let mut zone_rings = Vec::new();
@@ -86,9 +97,20 @@ pub(in crate::job) fn build(
     // every piece no new point touched), then the points given anew.
     let mut report_figures: Option<ReportFigures> = None;
     let mut touched = Vec::new();
+    // Each earlier file is read as its own round read it.
+    let earlier = job.earlier_reports.iter().enumerate().map(|(i, s)| {
+        let read = job.earlier_report_settings.get(i);
+        (s, read.unwrap_or(&job.report_settings))
+    });
     let batches = [
-        (job.earlier_reports.iter().collect::<Vec<_>>(), false),
-        (job.reports.iter().collect(), true),
+        (earlier.collect::<Vec<_>>(), false),
+        (
+            job.reports
+                .iter()
+                .map(|s| (s, &job.report_settings))
+                .collect(),
+            true,
+        ),
     ];
     for (sources, new) in batches {
         if sources.is_empty() {
@@ -96,8 +118,11 @@ pub(in crate::job) fn build(
         }
         let _s = progress.stage("applying damage reports");
         let mut reports = Vec::new();
-        for src in sources {
-            let (mut more, rec) = read_reports(src, &job.report_damage, &job.report_settings)?;
+        for (src, settings) in sources {
+            let read = read_reports(src, &job.report_damage, settings)?;
+            let points: Vec<[f64; 2]> = read.reports.iter().map(|r| r.pos).collect();
+            near(Some(&read.origin), &points)?;
+            let (mut more, rec) = (read.reports, read.input);
             // Feature indices count on through the layers of one batch, in round order.
             let offset = reports.len() + report_figures.as_ref().map_or(0, |f| f.read);
             more.iter_mut().for_each(|r| r.index += offset);

@@ -100,10 +100,11 @@ pub(in crate::job) fn plan(
             notes.push(
                 "budget_limits_plan",
                 format!(
-                    "the full plan would cost {} repair-metres, more than the budget of {b}: \
+                    "the full plan would cost {} repair-metres, more than the budget of {}: \
                      the plan spends {} on the sites giving the most priority per \
                      repair-metre, joined to the hub first",
                     crate::decimal::Fixed(cost_to_repair_metres(cut.full_cost), 3),
+                    crate::decimal::shown(b),
                     crate::decimal::Fixed(cost_to_repair_metres(plan.total_cost), 3)
                 ),
             );
