@@ -243,7 +243,7 @@ pub fn has(o: &Options, needs: Needs) -> bool {
         LayeredSites => sites.is_some_and(layered),
         OsmSites => sites.is_some_and(|s| Format::of(s) == Format::OsmPbf),
         SitesPlan => sites.is_some() && !o.whole_network,
-        WholeNetworkPlan => !(sites.is_some() && !o.whole_network),
+        WholeNetworkPlan => sites.is_none() || o.whole_network,
         Points => reports.next().is_some(),
         CsvPoints => reports.any(reads_as_csv),
         LayeredPoints => reports.any(layered),
