@@ -429,14 +429,7 @@ fn a_closed_stderr_changes_no_exit_code() {
     // `reknit … 2>&1 | head -1`: stderr is a pipe whose reader has gone. A plan still exits 0
     // and a refused input still exits 2 (never 101, a panic).
     let d = tmp();
-    let roads = write_collection(
-        d.path(),
-        "roads.geojson",
-        &[line(
-            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
-            r#"{"damage":0.5}"#,
-        )],
-    );
+    let roads = one_damaged_road(d.path());
     let bad = file(
         d.path(),
         "bad.geojson",

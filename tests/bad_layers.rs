@@ -16,21 +16,13 @@ fn gpkg(
     columns: &str,
     rows: &str,
 ) -> std::path::PathBuf {
-    let p = d.join(name);
-    let c = rusqlite::Connection::open(&p).unwrap();
-    c.execute_batch(&format!(
-        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
-         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
-         INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
-         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);
-         CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, \
-         geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);
-         INSERT INTO gpkg_geometry_columns VALUES ('{table}', 'geom', '{kind}', 4326, 0, 0);
-         CREATE TABLE {table} (fid INTEGER PRIMARY KEY, geom BLOB{columns});
-         {rows}"
-    ))
-    .unwrap();
-    p
+    let layer = GpkgLayer {
+        table,
+        kind,
+        srs_id: 4326,
+        columns,
+    };
+    gpkg_with(d, name, &[layer], rows)
 }
 
 /// A GeoPackage geometry blob (GeoPackage Encoding Standard 1.3 §2.1.3: little-endian header, no

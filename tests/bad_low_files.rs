@@ -14,27 +14,19 @@ use std::path::{Path, PathBuf};
 
 /// A GeoPackage with a WGS84 layer `sites` of points (`site_id` TEXT) holding `rows` (SQL values).
 fn gpkg_sites(d: &Path, name: &str, rows: &[String]) -> PathBuf {
-    let p = d.join(name);
-    let c = rusqlite::Connection::open(&p).unwrap();
     let values: Vec<String> = rows
         .iter()
         .enumerate()
         .map(|(i, g)| format!("({}, {g}, 'S{i}')", i + 1))
         .collect();
-    c.execute_batch(&format!(
-        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
-         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
-         INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
-         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);
-         CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, \
-         geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);
-         INSERT INTO gpkg_geometry_columns VALUES ('sites', 'geom', 'GEOMETRY', 4326, 0, 0);
-         CREATE TABLE sites (fid INTEGER PRIMARY KEY, geom BLOB, site_id TEXT);
-         INSERT INTO sites VALUES {};",
-        values.join(", ")
-    ))
-    .unwrap();
-    p
+    let layer = GpkgLayer {
+        table: "sites",
+        kind: "GEOMETRY",
+        srs_id: 4326,
+        columns: ", site_id TEXT",
+    };
+    let rows = format!("INSERT INTO sites VALUES {};", values.join(", "));
+    gpkg_with(d, name, &[layer], &rows)
 }
 
 /// A geometry blob: GeoPackage header (little-endian, no envelope, srs 4326), then a
@@ -99,10 +91,14 @@ case!(dbf_numeric_field_holding_text, |d| {
 
 case!(shapefile_members_empty_or_truncated, |d| {
     // An empty .shx, .shp or .dbf is named, with its size, never "failed to fill whole buffer".
-    for (ext, keep) in [("shx", 0usize), ("shp", 50), ("dbf", 10)] {
-        let sub = d.join(ext);
+    // Each variant spoils its own copy of the two roads, in a folder of its own.
+    let roads_in = |folder: &str| {
+        let sub = d.join(folder);
         std::fs::create_dir(&sub).unwrap();
-        let roads = shapefile_roads(&sub, "roads.shp", &two_roads());
+        shapefile_roads(&sub, "roads.shp", &two_roads())
+    };
+    for (ext, keep) in [("shx", 0usize), ("shp", 50), ("dbf", 10)] {
+        let roads = roads_in(ext);
         let member = roads.with_extension(ext);
         let b = std::fs::read(&member).unwrap();
         std::fs::write(&member, &b[..keep]).unwrap();
@@ -117,9 +113,7 @@ case!(shapefile_members_empty_or_truncated, |d| {
         );
     }
     // A .shx of its header alone, whose header declares the index that should follow.
-    let sub = d.join("header_only");
-    std::fs::create_dir(&sub).unwrap();
-    let roads = shapefile_roads(&sub, "roads.shp", &two_roads());
+    let roads = roads_in("header_only");
     let shx = roads.with_extension("shx");
     let b = std::fs::read(&shx).unwrap();
     std::fs::write(&shx, &b[..100]).unwrap();
@@ -348,27 +342,24 @@ case!(roads_layer_picks_where_several, |d| {
         body.extend(xy(x + 0.001, 0.0));
         blob(2, &body)
     };
-    let gpkg = d.join("two.gpkg");
-    let c = rusqlite::Connection::open(&gpkg).unwrap();
-    c.execute_batch(&format!(
-        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
-         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
-         INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
-         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);
-         CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, \
-         geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);
-         INSERT INTO gpkg_geometry_columns VALUES ('Roads1', 'geom', 'LINESTRING', 4326, 0, 0);
-         INSERT INTO gpkg_geometry_columns VALUES ('Roads2', 'geom', 'LINESTRING', 4326, 0, 0);
-         CREATE TABLE Roads1 (fid INTEGER PRIMARY KEY, geom BLOB);
-         CREATE TABLE Roads2 (fid INTEGER PRIMARY KEY, geom BLOB);
-         INSERT INTO Roads1 VALUES (1, {});
-         INSERT INTO Roads2 VALUES (1, {}), (2, {});",
-        line(0.01),
-        line(0.002),
-        line(0.003)
-    ))
-    .unwrap();
-    drop(c);
+    let roads_layer = |table| GpkgLayer {
+        table,
+        kind: "LINESTRING",
+        srs_id: 4326,
+        columns: "",
+    };
+    let gpkg = gpkg_with(
+        d,
+        "two.gpkg",
+        &[roads_layer("Roads1"), roads_layer("Roads2")],
+        &format!(
+            "INSERT INTO Roads1 VALUES (1, {});
+             INSERT INTO Roads2 VALUES (1, {}), (2, {});",
+            line(0.01),
+            line(0.002),
+            line(0.003)
+        ),
+    );
     let out = plan_ok(
         d,
         &[

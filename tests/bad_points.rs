@@ -160,12 +160,17 @@ case!(points_of_the_wrong_geometry, |d| {
     );
 });
 
-case!(points_zip_or_gpkg_with_several_layers, |d| {
+/// A zip of two point Shapefile sets (`a` and `b`) at `d/name`.
+fn two_sets_zipped(d: &Path, name: &str) -> std::path::PathBuf {
     let a = shapefile_points(d, "a.shp", &[[0.0001, 0.0001]], "Point");
     let b = shapefile_points(d, "b.shp", &[[0.0002, 0.0001]], "Point");
     let mut entries = common::zipped::set_entries(&a, "");
     entries.extend(common::zipped::set_entries(&b, ""));
-    let z = common::zipped::zip_owned(d, "p.zip", &entries);
+    common::zipped::zip_owned(d, name, &entries)
+}
+
+case!(points_zip_or_gpkg_with_several_layers, |d| {
+    let z = two_sets_zipped(d, "p.zip");
     plan_cli_err(
         d,
         &["--damage-points", &s(&z)],
@@ -177,26 +182,58 @@ case!(points_zip_or_gpkg_with_several_layers, |d| {
         &["--damage-points", &s(&z), "--damage-points-layer", "c"],
         &["p.zip", "no Shapefile set named \"c\""],
     );
-    let g = d.join("p.gpkg");
-    let c = rusqlite::Connection::open(&g).unwrap();
-    c.execute_batch(
-        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
-         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
-         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);
-         CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, \
-         geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);
-         INSERT INTO gpkg_geometry_columns VALUES ('day1', 'geom', 'POINT', 0, 0, 0);
-         INSERT INTO gpkg_geometry_columns VALUES ('day2', 'geom', 'POINT', 0, 0, 0);
-         CREATE TABLE day1 (fid INTEGER PRIMARY KEY, geom BLOB);
-         CREATE TABLE day2 (fid INTEGER PRIMARY KEY, geom BLOB);",
-    )
-    .unwrap();
-    drop(c);
+    let day = |table| GpkgLayer {
+        table,
+        kind: "POINT",
+        srs_id: 0,
+        columns: "",
+    };
+    let g = gpkg_with(d, "p.gpkg", &[day("day1"), day("day2")], "");
     plan_cli_err(
         d,
         &["--damage-points", &s(&g)],
         &["p.gpkg", "day1, day2", "--damage-points-layer"],
     );
+});
+
+case!(layer_messages_name_the_kinds_own_options, |d| {
+    // The zip and GeoPackage readers are shared by roads, sites, reports and zones: each message
+    // names the options of the layer it is about, never the roads' ones.
+    let z = two_sets_zipped(d, "s.zip");
+    let e = plan_cli_err(
+        d,
+        &["--sites", &s(&z)],
+        &[
+            "s.zip",
+            "2 Shapefile sets",
+            "choose one with --sites-layer NAME",
+        ],
+    );
+    assert!(!e.contains("--roads-layer"), "{e}");
+    // A GeoPackage layer whose srs_id is not in gpkg_spatial_ref_sys: the advice is the CRS option
+    // of the layer's kind.
+    for (input, option) in [
+        ("--sites", "--sites-crs"),
+        ("--damage-points", "--damage-points-crs"),
+        ("--damage-zones", "--zones-crs"),
+    ] {
+        let layer = GpkgLayer {
+            table: "layer1",
+            kind: "GEOMETRY",
+            srs_id: 99,
+            columns: "",
+        };
+        let g = gpkg_with(d, &format!("{}.gpkg", &input[2..]), &[layer], "");
+        let e = plan_cli_err(
+            d,
+            &[input, &s(&g)],
+            &[
+                "srs_id 99",
+                &format!("give the layer's CRS with {option} EPSG:NNNN"),
+            ],
+        );
+        assert!(!e.contains("--crs "), "{e}");
+    }
 });
 
 case!(points_options_without_their_input, |d| {

@@ -321,14 +321,7 @@ fn one_site_is_a_trivial_plan_and_no_sites_are_refused() {
 #[test]
 fn an_input_attribute_never_takes_a_name_written_already() {
     let d = tmp();
-    let roads = write_collection(
-        d.path(),
-        "roads.geojson",
-        &[line(
-            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
-            r#"{"damage":0.5}"#,
-        )],
-    );
+    let roads = one_damaged_road(d.path());
     let props = |i: usize| {
         format!(r#"{{"site_id":"S{i}","name":"Clinic {i}","input_name":"user value {i}"}}"#)
     };

@@ -355,12 +355,7 @@ fn wkt_datum(wkt: &str) -> Option<String> {
 /// The option that gives the CRS of a layer of `role` (as inputs are named in summaries): every
 /// CRS message names the option that applies to the layer it is about, and that option works.
 pub fn option_for(role: &str) -> &'static str {
-    match role {
-        "sites" => "--sites-crs",
-        "damage zones" => "--zones-crs",
-        "damage reports" => "--damage-points-crs",
-        _ => "--crs",
-    }
+    super::kind::LayerKind::of_role(role).crs_flag
 }
 
 /// The advice ending a CRS message about a layer whose CRS is given with `option`.

@@ -26,7 +26,6 @@ pub(super) fn read<R: BufRead>(
         path: path.to_path_buf(),
         source: std::io::Error::other(m),
     };
-    let flag = spec.delimiter_flag;
     let delimiter = match spec.delimiter {
         Some(d) => d,
         None => {
@@ -35,8 +34,8 @@ pub(super) fn read<R: BufRead>(
                 .iter()
                 .position(|&b| b == b'\n' || b == b'\r')
                 .unwrap_or(head.len());
-            detect(&head[..line_end])
-                .map_err(|m| refuse(format!("line 1: {}", m.replace("--sites-delimiter", flag))))?
+            detect(&head[..line_end], spec.kind.delimiter_flag)
+                .map_err(|m| refuse(format!("line 1: {m}")))?
         }
     };
     let sep = delimiter_name(delimiter);
@@ -195,7 +194,7 @@ fn one_column(header: &str, delimiter: u8, spec: &PointSpec) -> Result<(), Strin
         .find(|(c, _)| *c != delimiter && header.contains(*c as char))
     {
         let given = match spec.delimiter {
-            Some(_) => format!(" (as {} says)", spec.delimiter_flag),
+            Some(_) => format!(" (as {} says)", spec.kind.delimiter_flag),
             None => String::new(),
         };
         let shown = if *c == b'\t' {
@@ -207,7 +206,7 @@ fn one_column(header: &str, delimiter: u8, spec: &PointSpec) -> Result<(), Strin
             "the header is one column holding a {name}, and the columns are read as separated \
              by a {sep}{given}: give {} {shown}, or leave the option out (the separator is told \
              from the header line)",
-            spec.delimiter_flag
+            spec.kind.delimiter_flag
         ));
     }
     if let Some(other) = ['|'].iter().find(|c| header.contains(**c)) {
@@ -215,7 +214,7 @@ fn one_column(header: &str, delimiter: u8, spec: &PointSpec) -> Result<(), Strin
             "the header is one column holding {other:?}, and the columns are separated by {sep}: \
              reknit reads CSV separated by a comma, a semicolon or a tab ({}); save it again \
              with one of those",
-            spec.delimiter_flag
+            spec.kind.delimiter_flag
         ));
     }
     Ok(())

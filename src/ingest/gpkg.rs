@@ -11,6 +11,7 @@
 use super::IngestError;
 use super::crs::Crs;
 use super::geojson::RawFeature;
+use super::kind::LayerKind;
 use super::reader::{DeclaredFields, FeatureSource, SourceInfo};
 use super::source::Source;
 use super::wkb::{Decoded, decode};
@@ -41,8 +42,8 @@ pub struct GpkgSource {
     columns: Vec<(String, bool)>,
     /// Every simple geometry decoded in GeoJSON's layout (sites, zones), not only lines (roads).
     any_geometry: bool,
-    /// The input's role in summaries.
-    role: &'static str,
+    /// The kind of layer read: its role in summaries, its options in messages.
+    kind: &'static LayerKind,
     /// The layer was chosen by its name.
     named: bool,
 }
@@ -111,28 +112,23 @@ pub fn unmerged_log(p: &Path) -> Result<(), String> {
 impl GpkgSource {
     /// Opens `source` and chooses its road layer: by name, or the only one.
     pub fn open(source: &Source, pick: super::reader::Pick) -> Result<GpkgSource, IngestError> {
-        let mut s = Self::open_pick(source, pick, "--roads-layer", "roads")?;
+        let mut s = Self::open_pick(source, pick)?;
         s.any_geometry = false;
         Ok(s)
     }
 
-    /// Opens `source` as an input of another role (sites, zones): `flag` chooses among several
+    /// Opens `source` as an input of another kind (sites, zones): `layer` chooses among several
     /// layers, and geometries of every simple type are decoded.
     pub fn open_layer(
         source: &Source,
         layer: Option<&str>,
-        flag: &'static str,
-        role: &'static str,
+        kind: &'static LayerKind,
     ) -> Result<GpkgSource, IngestError> {
-        Self::open_pick(source, super::reader::Pick::always(layer), flag, role)
+        Self::open_pick(source, super::reader::Pick::always(layer, kind))
     }
 
-    fn open_pick(
-        source: &Source,
-        pick: super::reader::Pick,
-        flag: &'static str,
-        role: &'static str,
-    ) -> Result<GpkgSource, IngestError> {
+    fn open_pick(source: &Source, pick: super::reader::Pick) -> Result<GpkgSource, IngestError> {
+        let flag = pick.kind.layer_flag;
         let path = source.display_path();
         let Some(p) = source.path() else {
             return Err(refuse(
@@ -203,7 +199,7 @@ impl GpkgSource {
             layer: chosen,
             columns,
             any_geometry: true,
-            role,
+            kind: pick.kind,
             named: layer.is_some(),
         })
     }
@@ -251,7 +247,7 @@ impl FeatureSource for GpkgSource {
                 |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)),
             )
             .ok();
-        let hint = super::crs::hint(super::crs::option_for(self.role));
+        let hint = super::crs::hint(self.kind.crs_flag);
         let crs_err = |message: String| IngestError::Crs {
             path: self.path.clone(),
             message: format!("layer \"{}\": {message}; {hint}", self.layer.table),
@@ -410,7 +406,7 @@ impl FeatureSource for GpkgSource {
                     format!(
                         "the geometry is empty (a Point of NaN ordinates is GeoPackage's empty \
                          point, §2.1.3.1.2); each feature of the {} layer needs a geometry",
-                        self.role
+                        self.kind.role
                     ),
                 ));
             }
@@ -424,7 +420,7 @@ impl FeatureSource for GpkgSource {
         Ok(SourceInfo {
             features: index,
             skipped,
-            input: super::osm::fingerprint(&self.source, self.role)?,
+            input: super::osm::fingerprint(&self.source, self.kind.role)?,
             osm: false,
             features_cut_at_edge: 0,
         })

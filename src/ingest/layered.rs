@@ -33,8 +33,7 @@ fn layer_crs(src: &GpkgSource, user: Option<&str>) -> Result<Crs, IngestError> {
 /// converted from the layer's CRS. A feature with an empty geometry is refused: a site or a
 /// report must be somewhere.
 pub fn read_gpkg_points(source: &Source, spec: &PointSpec) -> Result<PointLayer, IngestError> {
-    let mut src =
-        GpkgSource::open_layer(source, spec.layer.as_deref(), spec.layer_flag, spec.role)?;
+    let mut src = GpkgSource::open_layer(source, spec.layer.as_deref(), spec.kind)?;
     let path = src.path().to_path_buf();
     let named = match user_crs(&path, spec)? {
         Some(c) => Some(c),
@@ -62,8 +61,8 @@ pub fn read_gpkg_points(source: &Source, spec: &PointSpec) -> Result<PointLayer,
             path,
             source: std::io::Error::other(format!(
                 "{n} feature(s) of the {} layer have an empty geometry; a {} needs {}",
-                spec.role,
-                spec.kind,
+                spec.kind.role,
+                spec.kind.noun,
                 if spec.polygons {
                     "a point or a polygon"
                 } else {
@@ -89,7 +88,7 @@ pub fn read_gpkg_zones(
     crs: Option<&str>,
     layer: Option<&str>,
 ) -> Result<ZoneLayer, IngestError> {
-    let mut src = GpkgSource::open_layer(source, layer, "--zones-layer", "damage zones")?;
+    let mut src = GpkgSource::open_layer(source, layer, &super::kind::DAMAGE_ZONES)?;
     let path = src.path().to_path_buf();
     let crs = layer_crs(&src, crs)?;
     // WGS84 positions are range-checked; any other CRS checks them as it converts.

@@ -20,6 +20,7 @@ pub mod geodesy;
 pub mod geojson;
 pub mod geojson_source;
 pub mod gpkg;
+pub mod kind;
 pub mod layered;
 pub mod layers;
 pub mod limits;
@@ -137,6 +138,58 @@ pub enum IngestError {
 }
 
 impl IngestError {
+    /// The same error with its message (the words after the file, feature and field) passed
+    /// through `f`: context known only to a caller is added once here, every variant alike.
+    pub fn map_message(self, f: impl FnOnce(String) -> String) -> IngestError {
+        use IngestError::*;
+        match self {
+            Io { path, source } => Io {
+                path,
+                source: std::io::Error::new(source.kind(), f(source.to_string())),
+            },
+            Syntax {
+                path,
+                feature,
+                message,
+            } => Syntax {
+                path,
+                feature,
+                message: f(message),
+            },
+            NotCollection { path, message } => NotCollection {
+                path,
+                message: f(message),
+            },
+            Feature {
+                path,
+                feature,
+                field,
+                message,
+            } => Feature {
+                path,
+                feature,
+                field,
+                message: f(message),
+            },
+            Crs { path, message } => Crs {
+                path,
+                message: f(message),
+            },
+            Empty { path, detail } => Empty {
+                path,
+                detail: f(detail),
+            },
+            Unrepresentable { path, message } => Unrepresentable {
+                path,
+                message: f(message),
+            },
+            Setting { name, message } => Setting {
+                name,
+                message: f(message),
+            },
+        }
+    }
+
     /// The error for a failed GeoJSON read of `path` (the callback's own errors pass through).
     pub fn from_read(path: &std::path::Path, e: geojson::ReadFailure<IngestError>) -> IngestError {
         let path = path.to_path_buf();
@@ -219,4 +272,33 @@ pub fn check_cost_total(net: &Network, path: &std::path::Path) -> Result<(), Ing
         });
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod message_tests {
+    use super::IngestError;
+
+    #[test]
+    fn map_message_keeps_the_variant_file_and_feature() {
+        let e = IngestError::Feature {
+            path: "a.geojson".into(),
+            feature: 3,
+            field: Some("damage".into()),
+            message: "is not a number".into(),
+        }
+        .map_message(|m| format!("{m} (more)"));
+        assert_eq!(
+            e.to_string(),
+            "a.geojson: feature 3, field \"damage\": is not a number (more)"
+        );
+        let e = IngestError::Io {
+            path: "b.zip".into(),
+            source: std::io::Error::new(std::io::ErrorKind::NotFound, "gone"),
+        }
+        .map_message(|m| format!("{m}!"));
+        assert!(
+            matches!(&e, IngestError::Io { source, .. } if source.kind() == std::io::ErrorKind::NotFound)
+        );
+        assert_eq!(e.to_string(), "b.zip: cannot read: gone!");
+    }
 }

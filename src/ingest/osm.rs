@@ -294,20 +294,11 @@ impl FeatureSource for OsmRoads {
     }
 }
 
-/// Adds the way's OpenStreetMap id to a message about one feature.
+/// Adds the way's OpenStreetMap id to a message about one feature (other errors are not about
+/// the way alone).
 fn name_way(e: IngestError, id: i64) -> IngestError {
     match e {
-        IngestError::Feature {
-            path,
-            feature,
-            field,
-            message,
-        } => IngestError::Feature {
-            path,
-            feature,
-            field,
-            message: format!("{message} (OpenStreetMap way {id})"),
-        },
+        IngestError::Feature { .. } => e.map_message(|m| format!("{m} (OpenStreetMap way {id})")),
         other => other,
     }
 }

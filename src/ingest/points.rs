@@ -5,12 +5,13 @@
 //! Each feature comes with its attributes and where it came from (file, layer, feature number);
 //! positions are converted to WGS84 longitude/latitude from the layer's CRS: the user's option,
 //! else the Shapefile's `.prj` or the GeoPackage layer's SRS, else WGS84 (a Shapefile without a
-//! `.prj` is refused). Messages name the input kind and its own options ([`PointSpec`]).
+//! `.prj` is refused). Messages name the input kind and its own options ([`LayerKind`]).
 
 use super::IngestError;
 use super::coords::Coords;
 use super::crs::Crs;
 use super::geojson::read_collection;
+use super::kind::LayerKind;
 use super::outline::Outline;
 use super::reader::Format;
 use super::source::{HashingReader, InputRecord, Source};
@@ -19,18 +20,11 @@ use std::path::{Path, PathBuf};
 
 /// What a point layer is and how to read it: the words and options its messages name, and the
 /// reading choices the user gave.
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone)]
 pub struct PointSpec {
-    /// One feature, for messages: "site", "damage report".
-    pub kind: &'static str,
-    /// The layer's role in summaries and messages: "sites", "damage reports".
-    pub role: &'static str,
-    /// The option naming the layer's CRS (`--sites-crs`).
-    pub crs_flag: &'static str,
-    /// The option naming a CSV file's separator (`--sites-delimiter`).
-    pub delimiter_flag: &'static str,
-    /// The option choosing a GeoPackage layer or a zipped set (`--sites-layer`).
-    pub layer_flag: &'static str,
+    /// The kind of layer (sites, damage reports): its words, and the options its messages name
+    /// (the shared zip, Shapefile, GeoPackage and CSV readers take it too).
+    pub kind: &'static LayerKind,
     /// The options naming the coordinate columns, for messages (`--lon-column/--lat-column`).
     pub column_flags: &'static str,
     /// True when polygons and multipolygons are read (sites drawn as outlines).
@@ -84,7 +78,7 @@ pub struct PointFeature {
 pub struct PointLayer {
     /// Features in input order.
     pub features: Vec<PointFeature>,
-    /// Path, size and SHA-256 of the input (role: [`PointSpec::role`]).
+    /// Path, size and SHA-256 of the input (role: the kind's [`LayerKind::role`]).
     pub input: InputRecord,
     /// The file messages name (inside a zip: the archive's path and the member's name).
     pub path: PathBuf,
@@ -100,8 +94,8 @@ impl PointLayer {
     pub fn origin(&self, spec: &PointSpec) -> super::elsewhere::LayerOrigin {
         super::elsewhere::LayerOrigin {
             path: self.path.clone(),
-            role: spec.role,
-            crs_flag: spec.crs_flag,
+            role: spec.kind.role,
+            crs_flag: spec.kind.crs_flag,
             crs: self.crs.clone(),
         }
     }
@@ -115,25 +109,22 @@ pub fn reads_as_csv(source: &Source) -> bool {
 
 /// Reads a point layer in any supported format (by the file's name), positions in WGS84.
 pub fn read_points(source: &Source, spec: &PointSpec) -> Result<PointLayer, IngestError> {
-    let retargeted = |e| retarget(e, spec);
     let mut layer = match Format::of(source) {
-        Format::Shapefile | Format::ZippedShapefile => {
-            super::points_shp::read(source, spec).map_err(retargeted)?
-        }
-        Format::GeoPackage => super::layered::read_gpkg_points(source, spec).map_err(retargeted)?,
+        Format::Shapefile | Format::ZippedShapefile => super::points_shp::read(source, spec)?,
+        Format::GeoPackage => super::layered::read_gpkg_points(source, spec)?,
         Format::OsmPbf => {
             return Err(IngestError::Io {
                 path: source.display_path(),
                 source: std::io::Error::other(format!(
                     "an OpenStreetMap extract holds no {}",
-                    spec.role
+                    spec.kind.role
                 )),
             });
         }
         Format::GeoJson if reads_as_csv(source) => text_layer(source, spec, true)?,
         Format::GeoJson => text_layer(source, spec, false)?,
     };
-    layer.input.role = spec.role.into();
+    layer.input.role = spec.kind.role.into();
     Ok(layer)
 }
 
@@ -154,14 +145,14 @@ fn text_layer(source: &Source, spec: &PointSpec, csv: bool) -> Result<PointLayer
     // The option overrides a GeoJSON layer's legacy `crs` member, as --crs does a road layer's.
     let crs = match (user_crs(&path, spec)?, member) {
         (Some(c), _) => Some(c),
-        (None, Some(m)) => Some(super::crs::crs_member(&path, Some(&m), spec.crs_flag)?),
+        (None, Some(m)) => Some(super::crs::crs_member(&path, Some(&m), spec.kind.crs_flag)?),
         (None, None) => None,
     };
     to_lonlat(&path, crs.as_ref(), spec, &mut features)?;
     Ok(PointLayer {
         features,
         input: InputRecord {
-            role: spec.role.into(),
+            role: spec.kind.role.into(),
             path: path.display().to_string(),
             bytes,
             sha256,
@@ -180,7 +171,7 @@ pub(super) fn user_crs(path: &Path, spec: &PointSpec) -> Result<Option<Crs>, Ing
         .map(|c| {
             Crs::from_user(c).map_err(|message| IngestError::Crs {
                 path: path.to_path_buf(),
-                message: format!("{}: {message}", spec.crs_flag),
+                message: format!("{}: {message}", spec.kind.crs_flag),
             })
         })
         .transpose()
@@ -248,7 +239,10 @@ pub(super) fn shape(
     let polygons = match (kind, c.height) {
         (Some("Point"), 1) if !c.pos.is_empty() => return Ok((c.pos[0], None)),
         (Some(k), 0) | (Some(k @ "Point"), _) => {
-            return Err(format!("the {}'s {k} is empty (no position)", spec.kind));
+            return Err(format!(
+                "the {}'s {k} is empty (no position)",
+                spec.kind.noun
+            ));
         }
         (Some("Polygon"), 3) if spec.polygons => vec![rings(0, c.parts.len())],
         (Some("MultiPolygon"), 4) if spec.polygons => {
@@ -263,7 +257,7 @@ pub(super) fn shape(
                 .collect()
         }
         (Some(other), _) => return Err(wrong_geometry(spec, other)),
-        (None, _) => return Err(format!("the {} has no geometry", spec.kind)),
+        (None, _) => return Err(format!("the {} has no geometry", spec.kind.noun)),
     };
     Ok((c.pos[0], Some(Outline { polygons })))
 }
@@ -273,10 +267,10 @@ pub(super) fn wrong_geometry(spec: &PointSpec, found: &str) -> String {
     if spec.polygons {
         format!(
             "{} must be Points, Polygons or MultiPolygons, found {found}",
-            spec.role
+            spec.kind.role
         )
     } else {
-        format!("{} must be Points, found {found}", spec.role)
+        format!("{} must be Points, found {found}", spec.kind.role)
     }
 }
 
@@ -305,7 +299,7 @@ pub(super) fn to_lonlat(
                              implausible for that CRS; check {} and the layer's units",
                                 crate::decimal::position(*p),
                                 crs.name,
-                                spec.crs_flag
+                                spec.kind.crs_flag
                             ),
                         )
                     })?
@@ -335,38 +329,7 @@ fn check_lonlat(
             "{} is not a longitude/latitude in WGS84 range (±180, ±90); if the layer is projected, \
              {}",
             crate::decimal::position(p),
-            super::crs::hint(spec.crs_flag)
+            super::crs::hint(spec.kind.crs_flag)
         ),
     ))
-}
-
-/// The shared Shapefile, zip and GeoPackage readers name the roads' options; a point layer's
-/// messages name its own.
-fn retarget(e: IngestError, spec: &PointSpec) -> IngestError {
-    let fix = |m: String| {
-        m.replace("--roads-layer", spec.layer_flag)
-            .replace("--crs ", &format!("{} ", spec.crs_flag))
-    };
-    match e {
-        IngestError::Io { path, source } => IngestError::Io {
-            path,
-            source: std::io::Error::new(source.kind(), fix(source.to_string())),
-        },
-        IngestError::Crs { path, message } => IngestError::Crs {
-            path,
-            message: fix(message),
-        },
-        IngestError::Feature {
-            path,
-            feature,
-            field,
-            message,
-        } => IngestError::Feature {
-            path,
-            feature,
-            field,
-            message: fix(message),
-        },
-        other => other,
-    }
 }

@@ -16,7 +16,7 @@ use shapefile::Shape;
 pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, IngestError> {
     let (files, zip) = match (Format::of(source), source.path()) {
         (Format::ZippedShapefile, _) => {
-            let pick = super::reader::Pick::always(spec.layer.as_deref());
+            let pick = super::reader::Pick::always(spec.layer.as_deref(), spec.kind);
             let (files, record, _) = super::zipped::set_from_zip(source, pick)?;
             (files, Some(record))
         }
@@ -63,7 +63,7 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
                     &path,
                     index,
                     Some("geometry"),
-                    format!("the {} has no geometry (a null shape)", spec.kind),
+                    format!("the {} has no geometry (a null shape)", spec.kind.noun),
                 ));
             }
             other => {
@@ -97,7 +97,7 @@ pub(super) fn read(source: &Source, spec: &PointSpec) -> Result<PointLayer, Inge
     });
     let input = match zip {
         Some(record) => record,
-        None => super::shapefile::fingerprint(&path, spec.role)?,
+        None => super::shapefile::fingerprint(&path, spec.kind.role)?,
     };
     Ok(PointLayer {
         features,
@@ -118,7 +118,7 @@ fn declared_crs(files: &SetFiles, spec: &PointSpec) -> Result<Crs, IngestError> 
             path: files.shp.path.clone(),
             message: format!(
                 "has no .prj file beside it: give the layer's CRS with {} EPSG:NNNN",
-                spec.crs_flag
+                spec.kind.crs_flag
             ),
         });
     };
@@ -126,7 +126,7 @@ fn declared_crs(files: &SetFiles, spec: &PointSpec) -> Result<Crs, IngestError> 
         path: prj.path.clone(),
         source: std::io::Error::other(format!(
             "{m}; give the layer's CRS with {} EPSG:NNNN",
-            spec.crs_flag
+            spec.kind.crs_flag
         )),
     })?;
     Crs::from_wkt(text).map_err(|m| IngestError::Crs {

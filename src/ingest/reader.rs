@@ -128,21 +128,25 @@ pub trait FeatureSource {
     ) -> Result<SourceInfo, IngestError>;
 }
 
-/// How `--roads-layer` chooses within one input (a zip of Shapefile sets, a GeoPackage).
+/// How a layer option (`--roads-layer`, `--sites-layer`…) chooses within one input (a zip of
+/// Shapefile sets, a GeoPackage).
 #[derive(Debug, Clone, Copy)]
 pub struct Pick<'a> {
     /// The name given, if any.
     pub name: Option<&'a str>,
+    /// The kind of layer chosen: its messages name its options.
+    pub kind: &'static super::kind::LayerKind,
     /// One of several road inputs: an input holding a single layer is read whole, and the name
     /// chooses only in inputs that hold several (some input must hold it: [`super::layers`]).
     pub where_several: bool,
 }
 
 impl<'a> Pick<'a> {
-    /// The name, always applied (one input, or sites and zones).
-    pub fn always(name: Option<&'a str>) -> Pick<'a> {
+    /// The name, always applied (one input, or sites and zones), for a layer of `kind`.
+    pub fn always(name: Option<&'a str>, kind: &'static super::kind::LayerKind) -> Pick<'a> {
         Pick {
             name,
+            kind,
             where_several: false,
         }
     }
@@ -152,6 +156,7 @@ impl<'a> Pick<'a> {
 fn pick(settings: &RoadSettings, several: bool) -> Pick<'_> {
     Pick {
         name: settings.layer.as_deref(),
+        kind: &super::kind::ROADS,
         where_several: several,
     }
 }

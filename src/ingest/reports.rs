@@ -62,11 +62,7 @@ impl ReportSettings {
     /// How the generic point reader reads a damage reports layer whose damage is in `field`.
     pub fn point_spec(&self, field: &str) -> PointSpec {
         PointSpec {
-            kind: "damage report",
-            role: "damage reports",
-            crs_flag: "--damage-points-crs",
-            delimiter_flag: "--damage-points-delimiter",
-            layer_flag: "--damage-points-layer",
+            kind: &super::kind::DAMAGE_REPORTS,
             column_flags: "--damage-points-lon-column/--damage-points-lat-column",
             polygons: false,
             crs: self.crs.clone(),

@@ -29,6 +29,8 @@ pub struct ShapefileSource {
     zip: Option<InputRecord>,
     /// The set was chosen in its zip by name.
     named: bool,
+    /// The kind of layer read (roads): its messages name its CRS option.
+    kind: &'static super::kind::LayerKind,
 }
 
 impl ShapefileSource {
@@ -58,6 +60,7 @@ impl ShapefileSource {
             set,
             zip,
             named,
+            kind: pick.kind,
         })
     }
 }
@@ -113,14 +116,17 @@ impl FeatureSource for ShapefileSource {
         })?;
         Crs::from_wkt(text).map(Some).map_err(|m| IngestError::Crs {
             path: prj.path.clone(),
-            message: format!("{m}; {}", super::crs::hint("--crs")),
+            message: format!("{m}; {}", super::crs::hint(self.kind.crs_flag)),
         })
     }
 
     fn default_crs(&self) -> Result<Crs, IngestError> {
         Err(IngestError::Crs {
             path: self.path.clone(),
-            message: format!("has no .prj file beside it: {}", super::crs::hint("--crs")),
+            message: format!(
+                "has no .prj file beside it: {}",
+                super::crs::hint(self.kind.crs_flag)
+            ),
         })
     }
 

@@ -107,11 +107,7 @@ impl SiteSettings {
     /// How the generic point reader reads a sites layer: its words, options and choices.
     pub fn point_spec(&self) -> PointSpec {
         PointSpec {
-            kind: "site",
-            role: "sites",
-            crs_flag: "--sites-crs",
-            delimiter_flag: "--sites-delimiter",
-            layer_flag: "--sites-layer",
+            kind: &super::kind::SITES,
             column_flags: "--lon-column/--lat-column",
             polygons: true,
             crs: self.crs.clone(),

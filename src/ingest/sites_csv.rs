@@ -32,8 +32,9 @@ pub fn delimiter_name(d: u8) -> &'static str {
 }
 
 /// The separator of a header line: the one of comma, semicolon and tab it holds outside quotes;
-/// a comma when it holds none (one column). The error names those it holds when several.
-pub fn detect(header: &[u8]) -> Result<u8, String> {
+/// a comma when it holds none (one column). The error names those it holds when several, and the
+/// layer's option that says which (`flag`).
+pub fn detect(header: &[u8], flag: &str) -> Result<u8, String> {
     let mut quoted = false;
     let mut seen = [false; 3];
     for &b in header {
@@ -59,7 +60,7 @@ pub fn detect(header: &[u8]) -> Result<u8, String> {
         [_] => Ok(DELIMITERS[seen.iter().position(|s| *s).unwrap()].0),
         _ => Err(format!(
             "the header line holds several separators ({}); say which one separates the \
-             columns with --sites-delimiter",
+             columns with {flag}",
             found.join(", ")
         )),
     }
@@ -87,14 +88,14 @@ mod tests {
 
     #[test]
     fn separators_are_told_from_the_header() {
-        assert_eq!(detect(b"id,lon,lat"), Ok(b','));
-        assert_eq!(detect(b"id;lon;lat\r"), Ok(b';'));
-        assert_eq!(detect(b"id\tlon\tlat"), Ok(b'\t'));
+        assert_eq!(detect(b"id,lon,lat", "--sites-delimiter"), Ok(b','));
+        assert_eq!(detect(b"id;lon;lat\r", "--sites-delimiter"), Ok(b';'));
+        assert_eq!(detect(b"id\tlon\tlat", "--sites-delimiter"), Ok(b'\t'));
         // A separator inside quotes is part of a name.
-        assert_eq!(detect(b"\"a,b\";lon;lat"), Ok(b';'));
-        assert_eq!(detect(b"lon"), Ok(b','));
+        assert_eq!(detect(b"\"a,b\";lon;lat", "--sites-delimiter"), Ok(b';'));
+        assert_eq!(detect(b"lon", "--sites-delimiter"), Ok(b','));
         assert!(
-            detect(b"id,lon;lat")
+            detect(b"id,lon;lat", "--sites-delimiter")
                 .unwrap_err()
                 .contains("comma, semicolon")
         );

@@ -63,7 +63,7 @@ pub fn set_from_zip(
             source,
         })?;
     let record = InputRecord {
-        role: "roads".into(),
+        role: pick.kind.role.into(),
         path: path.display().to_string(),
         bytes: size,
         sha256,
@@ -104,11 +104,12 @@ pub fn set_from_zip(
         .iter()
         .filter(|n| strip_ext(n, "shp").is_some())
         .count();
+    let flag = pick.kind.layer_flag;
     let pick = match pick.name {
         Some(_) if pick.where_several && sets == 1 => None,
         name => name,
     };
-    let stem = choose(&path, &names, pick)?;
+    let stem = choose(&path, &names, pick, flag)?;
     let find = |ext: &str| {
         names
             .iter()
@@ -224,7 +225,12 @@ fn inside(zip: &Path, name: &str) -> PathBuf {
 
 /// The stem (member path without `.shp`) of the set to read: the only one, or the one `pick`
 /// names; otherwise a message listing what the archive holds.
-fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, IngestError> {
+fn choose(
+    path: &Path,
+    names: &[String],
+    pick: Option<&str>,
+    flag: &str,
+) -> Result<String, IngestError> {
     let sets: Vec<&str> = names.iter().filter_map(|n| strip_ext(n, "shp")).collect();
     let listed = |v: &[&str]| {
         super::limits::listed(&v.iter().map(|s| format!("{s}.shp")).collect::<Vec<_>>())
@@ -267,7 +273,7 @@ fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, I
         (many, None) => Err(refuse(
             path,
             format!(
-                "holds {} Shapefile sets ({}); choose one with --roads-layer NAME (its file name \
+                "holds {} Shapefile sets ({}); choose one with {flag} NAME (its file name \
                  without .shp, or its path inside the archive)",
                 many.len(),
                 listed(many)
@@ -277,7 +283,7 @@ fn choose(path: &Path, names: &[String], pick: Option<&str>) -> Result<String, I
             path,
             format!(
                 "holds {} Shapefile sets named \"{p}\" ({}); give its path inside the archive to \
-                 --roads-layer",
+                 {flag}",
                 many.len(),
                 listed(many)
             ),
@@ -445,16 +451,31 @@ mod tests {
         let names: Vec<String> = ["a/roads.shp", "b/roads.shp", "b/rivers.shp", "notes.txt"]
             .map(String::from)
             .to_vec();
-        assert_eq!(choose(p, &names, Some("rivers")).unwrap(), "b/rivers");
-        assert_eq!(choose(p, &names, Some("a/roads.shp")).unwrap(), "a/roads");
-        let e = choose(p, &names, None).unwrap_err().to_string();
+        assert_eq!(
+            choose(p, &names, Some("rivers"), "--roads-layer").unwrap(),
+            "b/rivers"
+        );
+        assert_eq!(
+            choose(p, &names, Some("a/roads.shp"), "--roads-layer").unwrap(),
+            "a/roads"
+        );
+        // The message names the option of the layer's own kind.
+        let e = choose(p, &names, None, "--sites-layer")
+            .unwrap_err()
+            .to_string();
         assert!(
-            e.contains("3 Shapefile sets") && e.contains("b/rivers.shp"),
+            e.contains("3 Shapefile sets")
+                && e.contains("b/rivers.shp")
+                && e.contains("choose one with --sites-layer NAME"),
             "{e}"
         );
-        let e = choose(p, &names, Some("roads")).unwrap_err().to_string();
+        let e = choose(p, &names, Some("roads"), "--roads-layer")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("path inside the archive"), "{e}");
-        let e = choose(p, &names[3..], None).unwrap_err().to_string();
+        let e = choose(p, &names[3..], None, "--roads-layer")
+            .unwrap_err()
+            .to_string();
         assert!(
             e.contains("no Shapefile set") && e.contains("notes.txt"),
             "{e}"

@@ -10,6 +10,7 @@ mod corridors;
 pub mod fingerprint;
 mod hub;
 mod joined;
+pub mod needs;
 mod notes;
 pub mod options;
 pub mod record;

@@ -15,7 +15,7 @@ pub const MAX_TIME_LIMIT_S: f64 = 604_800.0;
 use crate::ingest::cost_table::{CostTable, RoadFilter};
 use crate::ingest::crs::Crs;
 use crate::ingest::damage::DamageRule;
-use crate::ingest::sites::{SiteSettings, reads_as_csv};
+use crate::ingest::sites::SiteSettings;
 use crate::ingest::{IngestError, RoadSettings};
 
 fn refuse(name: &'static str, message: impl Into<String>) -> IngestError {
@@ -240,208 +240,14 @@ fn needs_input(o: &Options) -> Result<(), IngestError> {
     }
 }
 
-/// The options given that this run would ignore, by flag, each with what it needs.
+/// The options given that this run would ignore, by flag, each with what it needs (the road
+/// options' own rules, then the table of [`super::needs::RULES`]).
 pub fn ignored(o: &Options) -> Vec<(&'static str, &'static str)> {
-    let sites_plan = o.sites.is_some() && !o.whole_network;
     let points = o.damage_points.is_some() || !o.earlier_damage_points.is_empty();
-    let csv_sites = o.sites.as_ref().is_some_and(reads_as_csv);
-    // Replan reads the earlier rounds' reports again with the same choices.
-    let report_files = || o.damage_points.iter().chain(&o.earlier_damage_points);
-    let csv_points = report_files().any(reads_as_csv);
-    let layered_points = report_files().any(|s| crate::ingest::reader::Format::of(s).has_layers());
-    let format = |s: &Option<crate::ingest::source::Source>, f| {
-        s.as_ref()
-            .is_some_and(|s| crate::ingest::reader::Format::of(s) == f)
-    };
-    use crate::ingest::reader::Format::{GeoPackage, OsmPbf};
-    let osm_sites = format(&o.sites, OsmPbf);
-    const SITES: &str = "this option is about the sites layer: give --sites";
-    const COLUMNS: &str = "only a CSV sites file (.csv or .txt) has coordinate columns; \
-                           other sites are read by their geometry";
-    const SITES_PLAN: &str =
-        "this option is about a sites plan: give --sites (and not --whole-network)";
-    const REPORT_COLUMNS: &str = "only a CSV damage reports file (.csv or .txt) has coordinate \
-                                  columns; other reports are read by their geometry";
-    let rules: [(&'static str, bool, bool, &'static str); 29] = [
-        (
-            "--damage-points-crs",
-            o.damage_points_crs.is_some(),
-            points,
-            "this is the field reports' CRS: give --damage-points",
-        ),
-        (
-            "--damage-points-delimiter",
-            o.damage_points_delimiter.is_some(),
-            csv_points,
-            "only a CSV damage reports file (.csv or .txt) has a field separator",
-        ),
-        (
-            "--damage-points-layer",
-            o.damage_points_layer.is_some(),
-            layered_points,
-            "only a GeoPackage or zipped Shapefile damage reports file (--damage-points \
-             FILE.gpkg or FILE.zip) holds layers to choose from",
-        ),
-        (
-            "--damage-points-lon-column",
-            o.damage_points_lon_column.is_some(),
-            csv_points,
-            REPORT_COLUMNS,
-        ),
-        (
-            "--damage-points-lat-column",
-            o.damage_points_lat_column.is_some(),
-            csv_points,
-            REPORT_COLUMNS,
-        ),
-        (
-            "--sites-delimiter",
-            o.sites_delimiter.is_some(),
-            csv_sites,
-            "only a CSV sites file (.csv or .txt) has a field separator",
-        ),
-        (
-            "--sites-layer",
-            o.sites_layer.is_some(),
-            o.sites
-                .as_ref()
-                .is_some_and(|s| crate::ingest::reader::Format::of(s).has_layers()),
-            "only a GeoPackage or zipped Shapefile sites file (--sites FILE.gpkg or FILE.zip) \
-             holds layers to choose from",
-        ),
-        (
-            "--zones-layer",
-            o.zones_layer.is_some(),
-            format(&o.damage_zones, GeoPackage),
-            "only a GeoPackage damage-zones file (--damage-zones FILE.gpkg) holds layers to \
-             choose from",
-        ),
-        (
-            "--roads-layer",
-            o.road.roads_layer.is_some(),
-            std::iter::once(&o.roads)
-                .chain(&o.more_roads)
-                .any(|r| crate::ingest::reader::Format::of(r).has_layers()),
-            "only a GeoPackage or zipped Shapefile road file (--roads FILE.gpkg or FILE.zip) \
-             holds layers to choose from",
-        ),
-        (
-            "--site-tags",
-            !o.site_tags.is_empty(),
-            osm_sites,
-            "only sites from an OpenStreetMap extract (--sites FILE.osm.pbf) are chosen by tag",
-        ),
-        (
-            "--hub",
-            o.hub.is_some(),
-            o.sites.is_some(),
-            "the hub is one of the sites: give --sites",
-        ),
-        (
-            "--max-attach",
-            o.max_attach_m.is_some(),
-            o.sites.is_some(),
-            SITES,
-        ),
-        (
-            "--site-id-field",
-            o.site_id_field.is_some(),
-            o.sites.is_some(),
-            SITES,
-        ),
-        (
-            "--site-name-field",
-            o.site_name_field.is_some(),
-            o.sites.is_some(),
-            SITES,
-        ),
-        (
-            "--priority-field",
-            o.priority_field.is_some(),
-            o.sites.is_some(),
-            SITES,
-        ),
-        (
-            "--sites-crs",
-            o.sites_crs.is_some(),
-            o.sites.is_some(),
-            SITES,
-        ),
-        ("--lon-column", o.lon_column.is_some(), csv_sites, COLUMNS),
-        ("--lat-column", o.lat_column.is_some(), csv_sites, COLUMNS),
-        (
-            "--redundancy",
-            o.redundancy,
-            sites_plan,
-            "backup links join sites to the hub: give --sites (and not --whole-network)",
-        ),
-        (
-            "--budget",
-            o.budget.is_some(),
-            sites_plan,
-            "a budget chooses which sites to join first: give --sites (and not --whole-network)",
-        ),
-        ("--effort", o.effort.is_some(), sites_plan, SITES_PLAN),
-        (
-            "--crews",
-            o.crews.is_some(),
-            o.crew_capacity.is_some(),
-            "crews share out the days of work: give --crew-capacity",
-        ),
-        (
-            "--max-detour",
-            o.max_detour.is_some(),
-            sites_plan,
-            "corridors run from the hub to the sites: give --sites (and not --whole-network)",
-        ),
-        (
-            "--time-limit",
-            o.time_limit_s.is_some(),
-            sites_plan,
-            SITES_PLAN,
-        ),
-        (
-            "--mst",
-            o.mst.is_some(),
-            !sites_plan,
-            "the algorithm is for the whole-network plan; with --sites the plan is a Steiner \
-             tree: give --whole-network, or leave --mst out",
-        ),
-        (
-            "--zones-crs",
-            o.zones_crs.is_some(),
-            o.damage_zones.is_some(),
-            "this is the damage zones' CRS: give --damage-zones",
-        ),
-        (
-            "--point-match-distance",
-            o.point_match_distance_m.is_some(),
-            points,
-            "this is how far a field report may lie from its road: give --damage-points",
-        ),
-        (
-            "--damage-points-field",
-            o.damage_points_field.is_some(),
-            points,
-            "this field is read from the field reports: give --damage-points",
-        ),
-        (
-            "--zone-damage-field",
-            o.zone_damage_field.is_some(),
-            o.damage_zones.is_some(),
-            "this field is read from the damage zones: give --damage-zones (field reports \
-             have --damage-points-field)",
-        ),
-    ];
     let later_damage = o.damage_zones.is_some() || points;
     road_ignored(&o.road, later_damage)
         .into_iter()
-        .chain(
-            rules
-                .into_iter()
-                .filter(|&(_, given, used, _)| given && !used)
-                .map(|(name, _, _, why)| (name, why)),
-        )
+        .chain(super::needs::unmet(o))
         .collect()
 }
 

@@ -194,3 +194,38 @@ pub fn case_names(source: &str) -> Vec<String> {
         .map(|l| l.split(',').next().unwrap().to_string())
         .collect()
 }
+
+/// One layer of a test GeoPackage: its table, `geometry_type_name`, `srs_id` and the column
+/// declarations after `fid` and `geom` (e.g. `", damage REAL"`).
+pub struct GpkgLayer<'a> {
+    pub table: &'a str,
+    pub kind: &'a str,
+    pub srs_id: i64,
+    pub columns: &'a str,
+}
+
+/// A GeoPackage `d/name` with the tables every reader looks at (OGC GeoPackage Encoding Standard
+/// 1.3 §1.1.2 `gpkg_spatial_ref_sys` holding WGS 84, §1.1.3 `gpkg_contents`, §2.1.5
+/// `gpkg_geometry_columns`), one table per layer, then `sql` run (rows to insert).
+pub fn gpkg_with(d: &Path, name: &str, layers: &[GpkgLayer], sql: &str) -> PathBuf {
+    let p = d.join(name);
+    let mut script = String::from(
+        "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, \
+         organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
+         INSERT INTO gpkg_spatial_ref_sys VALUES ('WGS 84', 4326, 'EPSG', 4326, 'GEOGCS[\"WGS 84\"]', '');
+         CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT);
+         CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, \
+         geometry_type_name TEXT, srs_id INTEGER, z INTEGER, m INTEGER);\n",
+    );
+    for l in layers {
+        script.push_str(&format!(
+            "INSERT INTO gpkg_geometry_columns VALUES ('{}', 'geom', '{}', {}, 0, 0);
+             CREATE TABLE {} (fid INTEGER PRIMARY KEY, geom BLOB{});\n",
+            l.table, l.kind, l.srs_id, l.table, l.columns
+        ));
+    }
+    script.push_str(sql);
+    let c = rusqlite::Connection::open(&p).unwrap();
+    c.execute_batch(&script).unwrap();
+    p
+}

@@ -135,6 +135,18 @@ pub fn at_m(x: f64, y: f64) -> [f64; 2] {
     [x * DEG_PER_M, y * DEG_PER_M]
 }
 
+/// `dir/roads.geojson`: one road 200 m east from (0, 0), damage 0.5.
+pub fn one_damaged_road(dir: &Path) -> PathBuf {
+    write_collection(
+        dir,
+        "roads.geojson",
+        &[line(
+            &[at_m(0.0, 0.0), at_m(200.0, 0.0)],
+            r#"{"damage":0.5}"#,
+        )],
+    )
+}
+
 /// A Point feature with the given properties (JSON text).
 pub fn point(p: [f64; 2], props: &str) -> String {
     format!(

@@ -56,7 +56,17 @@ impl District {
 
     /// Runs reknit from `dir`.
     pub fn run_in(&self, dir: &Path, args: &[&str]) -> Output {
-        reknit().current_dir(dir).args(args).output().unwrap()
+        self.run_env(dir, &[], args)
+    }
+
+    /// Runs reknit from `dir` with the environment variables `env` set.
+    pub fn run_env(&self, dir: &Path, env: &[(&str, &str)], args: &[&str]) -> Output {
+        let mut c = reknit();
+        c.current_dir(dir).args(args);
+        for (k, v) in env {
+            c.env(k, v);
+        }
+        c.output().unwrap()
     }
 
     /// Runs reknit from the folder and checks that it succeeded.
@@ -66,6 +76,11 @@ impl District {
 
     /// `reknit replan r1 --finished back.csv --out r2 -q`, then `extra`; checks that it succeeded.
     pub fn replan(&self, extra: &[&str]) -> Output {
+        self.replan_env(&[], extra)
+    }
+
+    /// [`District::replan`] with the environment variables `env` set (a thread count).
+    pub fn replan_env(&self, env: &[(&str, &str)], extra: &[&str]) -> Output {
         let mut a = vec![
             "replan",
             "r1",
@@ -76,7 +91,7 @@ impl District {
             "-q",
         ];
         a.extend(extra);
-        self.ok(&a)
+        ok(self.run_env(self.path(), env, &a))
     }
 
     /// Writes `back.csv` from the work orders of `r1`, comma-separated (see [`sheet`]).
