@@ -250,7 +250,8 @@ pub enum EffortChoice {
     Quick,
     /// Several starts, local search, a full bound on most networks.
     Normal,
-    /// Many starts and an unlimited bound computation.
+    /// Many starts, an unlimited bound and up to 500 search steps to prove the plan optimal; on
+    /// networks of tens of thousands of junctions it can take many minutes.
     Thorough,
 }
 

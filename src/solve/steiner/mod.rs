@@ -57,7 +57,8 @@ pub enum Effort {
     /// Several starts, local search to a local optimum, a full bound on most networks.
     #[default]
     Normal,
-    /// Many starts and an unlimited bound computation.
+    /// Many starts, an unlimited bound and up to 500 search steps to prove the plan optimal; on
+    /// networks of tens of thousands of junctions it can take many minutes.
     Thorough,
 }
 
